@@ -1,0 +1,50 @@
+"""matprops: a pinned, citable, unit-aware database of crystalline-silicon parameters.
+
+>>> import matprops
+>>> si = matprops.silicon()            # newest release
+>>> si.band_gap(300)                   # doctest: +SKIP
+<Quantity(1.12426238, 'electron_volt')>
+
+Importing matprops is cheap: pint, xarray and the data files load on first use,
+so a simulation code that only needs ``matprops.kernels`` pays for numpy alone.
+The numbers are model estimates; for decisions with consequences (thermal
+limits, electrical ratings) defer to measured data, local codes and licensed
+practice.
+"""
+
+from importlib import import_module
+
+from .errors import (ChecksumError, DatasetError, Error, InputError,
+                     ReleaseFrozenError, UnitError, UnknownModelError,
+                     UnknownNameError, UnknownQuantityError, UnknownReleaseError,
+                     ValidityError, ValidityWarning)
+
+__version__ = "0.1.0"
+
+__all__ = [
+    "silicon", "Silicon", "releases", "models", "Q_", "ureg", "optics",
+    "Error", "UnitError", "InputError", "UnknownNameError", "UnknownModelError",
+    "UnknownQuantityError", "UnknownReleaseError", "DatasetError", "ChecksumError",
+    "ReleaseFrozenError", "ValidityError", "ValidityWarning", "__version__",
+]
+
+# name -> module that defines it; imported on first access (PEP 562)
+_LAZY = {
+    "silicon": "material", "Silicon": "material", "releases": "material",
+    "models": "material", "Q_": "units", "ureg": "units",
+}
+_SUBMODULES = {"optics", "tables", "catalog", "units", "material", "kernels", "cli"}
+
+
+def __getattr__(name):
+    if name in _LAZY:
+        value = getattr(import_module(f".{_LAZY[name]}", __name__), name)
+        globals()[name] = value
+        return value
+    if name in _SUBMODULES:
+        return import_module(f".{name}", __name__)
+    raise AttributeError(f"module 'matprops' has no attribute {name!r}")
+
+
+def __dir__():
+    return sorted(set(globals()) | set(__all__))

@@ -1,0 +1,673 @@
+"""The model catalogue: reads ``datasets/``, validates it, binds kernels to numbers.
+
+A model file (``datasets/models/<quantity>/<model-id>.toml``) holds a published
+model's coefficients with units, its source, its validity ranges and how its
+numbers were obtained. This module checks each file against the checksum recorded
+in ``datasets/checksums.sha256`` and against the units its kernel declares, converts
+the coefficients to the kernel's internal units, and returns a :class:`Model`: a
+plain-array callable with its provenance attached.
+
+Three kinds of model share that shape:
+
+``closed-form``
+    a kernel plus scalar or vector coefficients;
+``table``
+    a kernel that interpolates a netCDF table (``datasets/tables/``), whose arrays
+    are bound like coefficients (loaded with xarray on first use);
+``composed``
+    a kernel that combines other quantities' models (``requires``), bound when a
+    material chooses those models.
+
+Releases (``datasets/releases/<id>.toml``) name one model per quantity.
+"""
+
+from __future__ import annotations
+
+import functools
+import hashlib
+import json
+import os
+import re
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+from types import MappingProxyType
+from typing import Any, Callable, Mapping
+
+import numpy as np
+
+from .errors import (ChecksumError, DatasetError, UnknownModelError,
+                     UnknownQuantityError, UnknownReleaseError, ValidityError,
+                     ValidityWarning, warn)
+from .kernels import module_for
+
+__all__ = ["Catalog", "Model", "Source", "Coefficient", "Range", "Release",
+           "default_catalog", "datasets_root"]
+
+CHECKSUM_FILE = "checksums.sha256"
+MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
+RELEASE_ID = re.compile(r"^\d{4}\.\d+$")
+KINDS = ("closed-form", "table", "composed")
+SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi")
+
+
+def datasets_root() -> Path:
+    """Where the data live: $MATPROPS_DATASETS, the installed copy, or the checkout."""
+    override = os.environ.get("MATPROPS_DATASETS")
+    if override:
+        return Path(override)
+    installed = Path(__file__).resolve().parent / "datasets"
+    if installed.is_dir():
+        return installed
+    return Path(__file__).resolve().parent.parent / "datasets"
+
+
+def sha256_of(path: Path) -> str:
+    return hashlib.sha256(path.read_bytes()).hexdigest()
+
+
+# --------------------------------------------------------------------------- records
+
+
+@dataclass(frozen=True)
+class Source:
+    """A bibliographic record of the publication a model comes from."""
+
+    authors: tuple[str, ...]
+    year: int
+    title: str
+    journal: str
+    volume: str
+    pages: str
+    doi: str
+
+    def citation(self) -> str:
+        authors = ", ".join(self.authors)
+        doi = f", doi:{self.doi}" if self.doi else ""
+        return (f"{authors}, \"{self.title}\", {self.journal} {self.volume}, "
+                f"{self.pages} ({self.year}){doi}")
+
+    def bibtex(self, key: str) -> str:
+        def esc(text):
+            return str(text).replace("{", "").replace("}", "")
+
+        lines = [f"@article{{{key},",
+                 f"  author = {{{' and '.join(esc(a) for a in self.authors)}}},",
+                 f"  title = {{{{{esc(self.title)}}}}},",
+                 f"  journal = {{{esc(self.journal)}}},",
+                 f"  volume = {{{esc(self.volume)}}},",
+                 f"  pages = {{{esc(self.pages)}}},",
+                 f"  year = {{{self.year}}},"]
+        if self.doi:
+            lines.append(f"  doi = {{{esc(self.doi)}}},")
+        lines.append("}")
+        return "\n".join(lines)
+
+    def as_dict(self) -> dict:
+        return {"authors": list(self.authors), "year": self.year, "title": self.title,
+                "journal": self.journal, "volume": self.volume, "pages": self.pages,
+                "doi": self.doi}
+
+
+@dataclass(frozen=True)
+class Coefficient:
+    """A coefficient as printed (value, units, uncertainty) and in kernel units."""
+
+    name: str
+    value: float | tuple[float, ...]
+    units: str
+    uncertainty: float | tuple[float, ...] | None
+    kernel_value: Any  # float or ndarray in the kernel's units
+    kernel_units: str
+
+    def as_dict(self) -> dict:
+        record = {"value": _plain(self.value), "units": self.units}
+        if self.uncertainty is not None:
+            record["uncertainty"] = _plain(self.uncertainty)
+        return record
+
+
+@dataclass(frozen=True)
+class Range:
+    """A model's validity range for one input, in the kernel's units."""
+
+    argument: str
+    low: float
+    high: float
+    units: str
+
+    def __str__(self) -> str:
+        return f"{self.argument} {self.low:g}-{self.high:g} {self.units}"
+
+
+def _plain(value):
+    if isinstance(value, tuple):
+        return list(value)
+    return value
+
+
+# --------------------------------------------------------------------------- model
+
+
+@dataclass(frozen=True, eq=False)
+class Model:
+    """One published model for one quantity, bound to its coefficients.
+
+    Calling the model evaluates it on plain arrays in the kernel's internal units
+    (see :attr:`inputs`) with no unit handling and no validity check: the door for
+    simulation codes. :meth:`check` does the validity check separately.
+    """
+
+    quantity: str
+    id: str
+    name: str
+    kind: str
+    kernel: Callable
+    source: Source
+    obtained: str
+    notes: str
+    coefficients: Mapping[str, Coefficient]
+    validity: Mapping[str, Range]
+    path: Path
+    sha256: str
+    requires: tuple[str, ...] = ()
+    table: str | None = None
+    table_arguments: Mapping[str, str] = field(default_factory=dict)
+    components: Mapping[str, "Model"] = field(default_factory=dict)
+    function: Callable | None = None
+
+    # -- evaluation
+    @property
+    def inputs(self) -> Mapping[str, str]:
+        """Input name -> internal unit string."""
+        return self.kernel.spec.inputs
+
+    @property
+    def output_units(self):
+        return self.kernel.spec.output
+
+    def __call__(self, *args, **kwargs):
+        if self.function is None:
+            missing = [q for q in self.requires if q not in self.components]
+            raise DatasetError(self.path, f"model {self.id!r} is composed from "
+                               f"{', '.join(missing)}; bind them with .compose()")
+        return self.function(*args, **kwargs)
+
+    def compose(self, **components: "Model") -> "Model":
+        """Bind the models this composed model requires (e.g. band_gap=...)."""
+        missing = [q for q in self.requires if q not in components]
+        if missing:
+            raise DatasetError(self.path, f"composed model {self.id!r} needs "
+                               f"{', '.join(missing)}")
+        chosen = {q: components[q] for q in self.requires}
+        function = functools.partial(self.kernel, **{q: m for q, m in chosen.items()})
+        return _replace(self, components=MappingProxyType(chosen), function=function)
+
+    def check(self, argument: str, low: float, high: float, strict: bool = False) -> None:
+        """Warn (or raise, if strict) when [low, high] leaves the validity range."""
+        rng = self.validity.get(argument)
+        if rng is not None and (low < rng.low or high > rng.high):
+            message = (f"model {self.quantity}/{self.id}: {argument} "
+                       f"{_span(low, high)} {rng.units} is outside its validity range "
+                       f"{rng.low:g}-{rng.high:g} {rng.units}; the value is an "
+                       "extrapolation")
+            if strict:
+                raise ValidityError(message)
+            warn(message, ValidityWarning)
+        for component in self.components.values():
+            component.check(argument, low, high, strict)
+
+    # -- provenance
+    def provenance(self) -> dict:
+        """Everything a modeller needs to trace this model's numbers."""
+        record = {
+            "quantity": self.quantity,
+            "model": self.id,
+            "name": self.name,
+            "kind": self.kind,
+            "citation": self.source.citation(),
+            "doi": self.source.doi,
+            "source": self.source.as_dict(),
+            "validity": {k: {"min": r.low, "max": r.high, "units": r.units}
+                         for k, r in self.validity.items()},
+            "obtained": self.obtained,
+            "notes": self.notes,
+            "coefficients": {k: c.as_dict() for k, c in self.coefficients.items()},
+            "file": f"models/{self.quantity}/{self.path.name}",
+            "sha256": self.sha256,
+        }
+        if self.table:
+            record["table"] = f"tables/{self.table}"
+        if self.components:
+            record["components"] = {q: m.provenance() for q, m in self.components.items()}
+        return record
+
+    def sources(self) -> list[tuple[str, Source]]:
+        """(model id, source) of this model and every model it is composed from."""
+        found = [(self.id, self.source)]
+        for component in self.components.values():
+            found += component.sources()
+        return found
+
+    def to_dataset(self):
+        """The model's numbers as an xarray.Dataset with provenance attributes."""
+        import xarray as xr
+
+        if self.kind == "table":
+            data = _open_table(self.path.parent.parent.parent / "tables" / self.table)
+        else:
+            variables = {}
+            for name, coef in self.coefficients.items():
+                value = np.asarray(coef.value, dtype=float)
+                dims = () if value.ndim == 0 else (f"{name}_index",)
+                attrs = {"units": coef.units, "kernel_units": coef.kernel_units}
+                if coef.uncertainty is not None:
+                    attrs["uncertainty"] = _plain(coef.uncertainty)
+                variables[name] = xr.Variable(dims, value, attrs)
+            data = xr.Dataset(variables)
+        data.attrs.update({
+            "quantity": self.quantity, "model": self.id, "title": self.name,
+            "references": self.source.citation(), "obtained": self.obtained,
+            "provenance": json.dumps(self.provenance(), ensure_ascii=False),
+        })
+        return data
+
+    def __repr__(self) -> str:
+        ranges = ", ".join(str(r) for r in self.validity.values()) or "no limits"
+        inputs = ", ".join(f"{k} [{u}]" for k, u in self.inputs.items()) or "none"
+        return (f"<Model {self.quantity}/{self.id} ({self.kind}): {self.name}; "
+                f"inputs {inputs}; valid {ranges}; {self.source.citation()}>")
+
+
+def _span(low, high) -> str:
+    return f"{low:g}" if low == high else f"{low:g}-{high:g}"
+
+
+def _replace(model: Model, **changes) -> Model:
+    import dataclasses
+    return dataclasses.replace(model, **changes)
+
+
+@dataclass(frozen=True)
+class Release:
+    """A named bundle: one model per quantity, a status, a date, notes."""
+
+    id: str
+    status: str  # "draft" or "final"
+    date: str
+    notes: str
+    models: Mapping[str, str]
+    path: Path
+
+    @property
+    def final(self) -> bool:
+        return self.status == "final"
+
+    @property
+    def reference_path(self) -> Path:
+        return self.path.with_name(f"{self.id}.reference.json")
+
+
+# --------------------------------------------------------------------------- loading
+
+
+def _open_table(path: Path):
+    import xarray as xr
+
+    with xr.open_dataset(path) as opened:
+        return opened.load()
+
+
+_UDUNITS_POWER = re.compile(r"([A-Za-z]+)(-?\d+)")
+
+
+def udunits_to_pint(text: str) -> str:
+    """Translate a UDUNITS string (``cm-3``, ``cm2 V-1 s-1``) to pint's grammar."""
+    text = text.strip()
+    if text in ("", "1"):
+        return "dimensionless"
+    return "*".join(_UDUNITS_POWER.sub(r"\1^\2", part) for part in text.split())
+
+
+class Catalog:
+    """The models, tables and releases found under one ``datasets/`` folder."""
+
+    def __init__(self, root: Path | str | None = None):
+        self.root = Path(root) if root is not None else datasets_root()
+        self._models: dict[tuple[str, str], Model] = {}
+        self._checksums: dict[str, str] | None = None
+
+    # -- listing
+    def quantities(self) -> list[str]:
+        folder = self.root / "models"
+        return sorted(p.name for p in folder.iterdir() if p.is_dir()) if folder.is_dir() else []
+
+    def model_ids(self, quantity: str) -> list[str]:
+        if quantity not in self.quantities():
+            raise UnknownQuantityError(quantity, self.quantities())
+        return sorted(p.stem for p in (self.root / "models" / quantity).glob("*.toml"))
+
+    def release_ids(self) -> list[str]:
+        folder = self.root / "releases"
+        ids = [p.stem for p in folder.glob("*.toml") if RELEASE_ID.match(p.stem)]
+        return sorted(ids, key=lambda r: tuple(int(x) for x in r.split(".")))
+
+    # -- checksums
+    def checksums(self) -> dict[str, str]:
+        if self._checksums is None:
+            path = self.root / CHECKSUM_FILE
+            if not path.is_file():
+                raise DatasetError(path, "checksum list is missing; refusing to load data")
+            sums = {}
+            for number, line in enumerate(path.read_text().splitlines(), 1):
+                if not line.strip() or line.startswith("#"):
+                    continue
+                parts = line.split(maxsplit=1)
+                if len(parts) != 2 or len(parts[0]) != 64:
+                    raise DatasetError(path, f"line {number} is not '<sha256>  <path>'")
+                sums[parts[1].strip()] = parts[0]
+            self._checksums = sums
+        return self._checksums
+
+    def verified_bytes(self, path: Path) -> bytes:
+        """Read a dataset file, refusing it if its sha256 differs from the record."""
+        relative = path.relative_to(self.root).as_posix()
+        recorded = self.checksums().get(relative)
+        if recorded is None:
+            raise ChecksumError(path, f"no checksum recorded in {CHECKSUM_FILE}; "
+                                "refusing to load an unlisted file")
+        data = path.read_bytes()
+        actual = hashlib.sha256(data).hexdigest()
+        if actual != recorded:
+            raise ChecksumError(path, f"sha256 {actual} does not match the recorded "
+                                f"{recorded}; the file was changed or corrupted. "
+                                "Refusing to load it.")
+        return data
+
+    def write_checksums(self) -> Path:
+        """Record the sha256 of every file under models/, tables/ and releases/."""
+        lines = ["# sha256 of every dataset file; loaders refuse files that differ.",
+                 "# Regenerate after a deliberate change: python -m matprops.catalog "
+                 "--update-checksums"]
+        for sub in ("models", "tables", "releases"):
+            for path in sorted((self.root / sub).rglob("*")):
+                if path.is_file() and path.suffix in (".toml", ".nc", ".json"):
+                    lines.append(f"{sha256_of(path)}  {path.relative_to(self.root).as_posix()}")
+        target = self.root / CHECKSUM_FILE
+        _atomic_write_text(target, "\n".join(lines) + "\n")
+        self._checksums = None
+        return target
+
+    # -- models
+    def model(self, quantity: str, model_id: str) -> Model:
+        key = (quantity, model_id)
+        if key not in self._models:
+            known = self.model_ids(quantity)
+            if model_id not in known:
+                raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
+            self._models[key] = self._load_model(
+                self.root / "models" / quantity / f"{model_id}.toml")
+        return self._models[key]
+
+    def _load_model(self, path: Path) -> Model:
+        raw = self.verified_bytes(path)
+        try:
+            data = tomllib.loads(raw.decode("utf-8"))
+        except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+            raise DatasetError(path, f"not valid TOML: {exc}") from exc
+        return _build_model(path, data, self)
+
+    # -- releases
+    def release(self, release_id: str) -> Release:
+        known = self.release_ids()
+        if release_id not in known:
+            raise UnknownReleaseError(release_id, known)
+        path = self.root / "releases" / f"{release_id}.toml"
+        data = tomllib.loads(self.verified_bytes(path).decode("utf-8"))
+        for name in ("release", "status", "date", "notes", "models"):
+            if name not in data:
+                raise DatasetError(path, f"missing field {name!r}")
+        if data["release"] != release_id:
+            raise DatasetError(path, f"field 'release' is {data['release']!r}, "
+                               f"the file name says {release_id!r}")
+        if data["status"] not in ("draft", "final"):
+            raise DatasetError(path, f"field 'status' must be 'draft' or 'final', "
+                               f"got {data['status']!r}")
+        return Release(release_id, data["status"], str(data["date"]), data["notes"],
+                       MappingProxyType(dict(data["models"])), path)
+
+    def table(self, name: str):
+        """A verified netCDF table from ``datasets/tables/`` as an xarray.Dataset."""
+        path = self.root / "tables" / name
+        if not path.is_file():
+            raise DatasetError(path, "table file is missing")
+        self.verified_bytes(path)
+        return _open_table(path)
+
+
+def _atomic_write_text(target: Path, text: str) -> None:
+    tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")
+    tmp.write_text(text)
+    os.replace(tmp, target)
+
+
+# --------------------------------------------------------------------------- validation
+
+
+def _require(path, data: Mapping, name: str, kind=None, where: str = ""):
+    if name not in data:
+        raise DatasetError(path, f"missing required field {where}{name!r}")
+    value = data[name]
+    if kind is not None and not isinstance(value, kind):
+        raise DatasetError(path, f"field {where}{name!r} must be {kind.__name__ if isinstance(kind, type) else kind}, "
+                           f"got {value!r}")
+    return value
+
+
+def _convert(path, where: str, value, units: str, target: str):
+    """Convert value (float or list) from ``units`` to ``target`` with pint."""
+    from .units import unit, Q_
+    import pint
+
+    try:
+        source_unit = unit(units)
+    except Exception as exc:
+        raise DatasetError(path, f"{where}: units {units!r} do not parse") from exc
+    target_unit = unit(target)
+    if source_unit.dimensionality != target_unit.dimensionality:
+        raise DatasetError(path, f"{where}: units {units!r} have dimension "
+                           f"{source_unit.dimensionality}, expected {target!r} "
+                           f"({target_unit.dimensionality})")
+    array = np.asarray(value, dtype=float)
+    try:
+        converted = Q_(array, source_unit).m_as(target_unit)
+    except pint.PintError as exc:  # pragma: no cover - dimension checked above
+        raise DatasetError(path, f"{where}: cannot convert {units!r} to {target!r}") from exc
+    return float(converted) if np.ndim(converted) == 0 else np.asarray(converted)
+
+
+def _number_or_list(path, where, value):
+    if isinstance(value, bool):
+        raise DatasetError(path, f"{where} must be a number or list of numbers, got {value!r}")
+    if isinstance(value, (int, float)):
+        return float(value)
+    if isinstance(value, list) and value and all(
+            isinstance(v, (int, float)) and not isinstance(v, bool) for v in value):
+        return tuple(float(v) for v in value)
+    raise DatasetError(path, f"{where} must be a number or list of numbers, got {value!r}")
+
+
+def _resolve_kernel(path, reference: str):
+    module_name, _, function_name = reference.rpartition(".")
+    if not module_name:
+        raise DatasetError(path, f"field 'kernel' must be '<module>.<function>', "
+                           f"got {reference!r}")
+    try:
+        module = module_for(module_name)
+    except ModuleNotFoundError as exc:
+        raise DatasetError(path, f"field 'kernel': no kernel module {module_name!r}") from exc
+    function = getattr(module, function_name, None)
+    if function is None or not hasattr(function, "spec"):
+        raise DatasetError(path, f"field 'kernel': {reference!r} is not a declared kernel")
+    return function
+
+
+def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
+    quantity = path.parent.name
+    model_id = _require(path, data, "id", str)
+    if model_id != path.stem:
+        raise DatasetError(path, f"field 'id' is {model_id!r}, the file name says {path.stem!r}")
+    if not MODEL_ID.match(model_id):
+        raise DatasetError(path, f"field 'id' {model_id!r} is not lower-case "
+                           "'firstauthor-year' form")
+    if _require(path, data, "quantity", str) != quantity:
+        raise DatasetError(path, f"field 'quantity' is {data['quantity']!r}, "
+                           f"the folder says {quantity!r}")
+    name = _require(path, data, "name", str)
+    kind = _require(path, data, "kind", str)
+    if kind not in KINDS:
+        raise DatasetError(path, f"field 'kind' must be one of {', '.join(KINDS)}, got {kind!r}")
+    obtained = _require(path, data, "obtained", str)
+    if not obtained.strip():
+        raise DatasetError(path, "field 'obtained' must say how the numbers were obtained")
+    notes = data.get("notes", "")
+    kernel = _resolve_kernel(path, _require(path, data, "kernel", str))
+    spec = kernel.spec
+
+    src = _require(path, data, "source", dict)
+    for f in SOURCE_FIELDS:
+        _require(path, src, f, where="source.")
+    authors = src["authors"]
+    if not isinstance(authors, list) or not authors:
+        raise DatasetError(path, "field 'source.authors' must be a non-empty list")
+    source = Source(tuple(authors), int(src["year"]), str(src["title"]), str(src["journal"]),
+                    str(src["volume"]), str(src["pages"]), str(src["doi"]))
+
+    validity = {}
+    for argument, entry in data.get("validity", {}).items():
+        where = f"validity.{argument}"
+        if argument not in spec.inputs:
+            raise DatasetError(path, f"{where}: the kernel has no input {argument!r} "
+                               f"(inputs: {', '.join(spec.inputs) or 'none'})")
+        for f in ("min", "max", "units"):
+            _require(path, entry, f, where=where + ".")
+        low = _convert(path, where, entry["min"], entry["units"], spec.inputs[argument])
+        high = _convert(path, where, entry["max"], entry["units"], spec.inputs[argument])
+        if not low < high:
+            raise DatasetError(path, f"{where}: min must be below max")
+        validity[argument] = Range(argument, low, high, spec.inputs[argument])
+
+    coefficients = {}
+    table = None
+    table_arguments: dict[str, str] = {}
+    raw_coefficients = data.get("coefficients", {})
+    if kind == "table":
+        table = _require(path, data, "table", str)
+        table_arguments = dict(_require(path, data, "table_arguments", dict))
+    supplied = set(raw_coefficients) | set(table_arguments)
+    expected = set(spec.coefficients)
+    if supplied != expected:
+        missing, extra = sorted(expected - supplied), sorted(supplied - expected)
+        raise DatasetError(path, "coefficients do not match kernel "
+                           f"{data['kernel']!r}: missing {missing or 'none'}, "
+                           f"unexpected {extra or 'none'}")
+    for cname, entry in raw_coefficients.items():
+        where = f"coefficients.{cname}"
+        if not isinstance(entry, dict):
+            raise DatasetError(path, f"{where} must be a table with value and units")
+        value = _number_or_list(path, where + ".value", _require(path, entry, "value", where=where + "."))
+        units = _require(path, entry, "units", str, where=where + ".")
+        uncertainty = entry.get("uncertainty")
+        if uncertainty is not None:
+            uncertainty = _number_or_list(path, where + ".uncertainty", uncertainty)
+        kernel_value = _convert(path, where, value, units, spec.coefficients[cname])
+        coefficients[cname] = Coefficient(cname, value, units, uncertainty,
+                                          kernel_value, spec.coefficients[cname])
+
+    requires = tuple(spec.requires)
+    if kind == "composed" and not requires:
+        raise DatasetError(path, f"kind 'composed' needs a kernel that requires other "
+                           f"quantities; {data['kernel']!r} requires none")
+    bound = {c.name: c.kernel_value for c in coefficients.values()}
+    function = None
+    if kind == "table":
+        function = _TableFunction(catalog, path, kernel, table, table_arguments, bound)
+    elif not requires:
+        function = functools.partial(kernel, **bound)
+
+    return Model(quantity=quantity, id=model_id, name=name, kind=kind, kernel=kernel,
+                 source=source, obtained=obtained, notes=notes,
+                 coefficients=MappingProxyType(coefficients),
+                 validity=MappingProxyType(validity), path=path,
+                 sha256=catalog.checksums().get(path.relative_to(catalog.root).as_posix(), ""),
+                 requires=requires, table=table,
+                 table_arguments=MappingProxyType(table_arguments), function=function)
+
+
+class _TableFunction:
+    """A table kernel whose arrays are read (and checked) on first call."""
+
+    def __init__(self, catalog, path, kernel, table, table_arguments, bound):
+        self._catalog, self._path, self._kernel = catalog, path, kernel
+        self._table, self._arguments, self._bound = table, table_arguments, bound
+        self._function = None
+
+    def _load(self):
+        data = self._catalog.table(self._table)
+        spec = self._kernel.spec
+        arrays = {}
+        for argument, variable in self._arguments.items():
+            where = f"table {self._table}, variable {variable!r}"
+            if variable not in data.variables:
+                raise DatasetError(self._path, f"{where} does not exist "
+                                   f"(has: {', '.join(map(str, data.variables))})")
+            units = udunits_to_pint(str(data[variable].attrs.get("units", "1")))
+            arrays[argument] = _convert(self._path, where, data[variable].values, units,
+                                        spec.coefficients[argument])
+        self._function = functools.partial(self._kernel, **self._bound, **arrays)
+        return self._function
+
+    def __call__(self, *args, **kwargs):
+        function = self._function or self._load()
+        return function(*args, **kwargs)
+
+
+@functools.lru_cache(maxsize=1)
+def default_catalog() -> Catalog:
+    """The catalogue of the installed datasets (created on first use)."""
+    return Catalog()
+
+
+def main(argv=None) -> int:
+    """Developer tool: ``python -m matprops.catalog --update-checksums``."""
+    import argparse
+
+    parser = argparse.ArgumentParser(prog="python -m matprops.catalog",
+                                     description="Check or re-record dataset checksums.")
+    parser.add_argument("--update-checksums", action="store_true",
+                        help="record the sha256 of every dataset file (after a deliberate change)")
+    parser.add_argument("--root", type=Path, default=None, help="datasets folder")
+    args = parser.parse_args(argv)
+    catalog = Catalog(args.root)
+    if args.update_checksums:
+        print(f"wrote {catalog.write_checksums()}")
+    problems = 0
+    for quantity in catalog.quantities():
+        for model_id in catalog.model_ids(quantity):
+            try:
+                catalog.model(quantity, model_id)
+            except DatasetError as exc:
+                problems += 1
+                print(f"error: {exc}")
+    for release_id in catalog.release_ids():
+        try:
+            catalog.release(release_id)
+        except DatasetError as exc:
+            problems += 1
+            print(f"error: {exc}")
+    print("all dataset files verified" if not problems else f"{problems} problem(s)")
+    return 1 if problems else 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

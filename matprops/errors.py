@@ -1,0 +1,107 @@
+"""The errors and warnings matprops raises.
+
+Every error subclasses :class:`Error` and also the built-in it resembles, so
+``except ValueError`` keeps working for callers that do not know matprops.
+Messages name the argument or file, the expected units or field, and the value
+received, and say what exists when a name is unknown.
+"""
+
+from __future__ import annotations
+
+import difflib
+import os
+import sys
+import warnings
+
+__all__ = [
+    "Error", "UnitError", "InputError", "UnknownNameError", "UnknownModelError",
+    "UnknownQuantityError", "UnknownReleaseError", "DatasetError", "ChecksumError",
+    "ReleaseFrozenError", "ValidityError", "ValidityWarning", "warn",
+]
+
+
+class Error(Exception):
+    """Base class of every matprops error."""
+
+
+class UnitError(Error, TypeError):
+    """An argument has the wrong physical dimension or an unparseable unit."""
+
+    def __init__(self, argument: str, expected: str, received):
+        self.argument, self.expected, self.received = argument, expected, received
+        super().__init__(f"argument {argument!r} expects a quantity in {expected} "
+                         f"(or a plain number in {expected}); received {received!r}")
+
+
+class InputError(Error, ValueError):
+    """An argument has the right units but an unphysical value (T <= 0, NaN, ...)."""
+
+    def __init__(self, argument: str, requirement: str, received):
+        self.argument, self.requirement, self.received = argument, requirement, received
+        super().__init__(f"argument {argument!r} must be {requirement}; "
+                         f"received {received}")
+
+
+class UnknownNameError(Error, KeyError):
+    """A name (model, quantity, release) that does not exist; lists what does."""
+
+    kind = "name"
+
+    def __init__(self, name: str, known, context: str = ""):
+        self.name, self.known = name, sorted(known)
+        close = difflib.get_close_matches(str(name), self.known, n=1)
+        hint = f" Did you mean {close[0]!r}?" if close else ""
+        where = f" {context}" if context else ""
+        self.message = (f"unknown {self.kind} {name!r}{where}; known: "
+                        f"{', '.join(self.known) or '(none)'}.{hint}")
+        super().__init__(self.message)
+
+    def __str__(self) -> str:  # KeyError would print the repr of the message
+        return self.message
+
+
+class UnknownModelError(UnknownNameError):
+    kind = "model"
+
+
+class UnknownQuantityError(UnknownNameError):
+    kind = "quantity"
+
+
+class UnknownReleaseError(UnknownNameError):
+    kind = "release"
+
+
+class DatasetError(Error, ValueError):
+    """A file in ``datasets/`` is missing a field, has a bad unit, or cannot be read."""
+
+    def __init__(self, path, problem: str):
+        self.path, self.problem = str(path), problem
+        super().__init__(f"{path}: {problem}")
+
+
+class ChecksumError(DatasetError):
+    """A dataset file does not match the checksum recorded for it: it is not loaded."""
+
+
+class ReleaseFrozenError(Error, RuntimeError):
+    """An attempt to change the reference numbers of a final release."""
+
+
+class ValidityError(Error, ValueError):
+    """An input outside a model's validity range, with ``strict=True``."""
+
+
+class ValidityWarning(UserWarning):
+    """An input outside a model's validity range; the value is still returned."""
+
+
+_PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))
+
+
+def warn(message: str, category=ValidityWarning) -> None:
+    """Issue a warning attributed to the first caller outside matprops."""
+    frame, level = sys._getframe(0), 1
+    while frame is not None and frame.f_code.co_filename.startswith(_PACKAGE_DIR):
+        frame, level = frame.f_back, level + 1
+    warnings.warn(message, category, stacklevel=level)

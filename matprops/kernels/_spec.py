@@ -1,0 +1,56 @@
+"""Metadata that a kernel carries: the units of its inputs, coefficients and output.
+
+Kernels are plain numpy functions. The catalogue needs to know, without running
+them, which inputs they take and in which units, and which coefficients a model
+file must supply (and in which units, so the loader can check and convert them).
+:func:`kernel` attaches that as attributes; it changes nothing about the call.
+
+Unit strings here are written in the grammar pint parses (``cm^-3``, ``eV/K``);
+this module itself never imports pint.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Mapping
+from types import MappingProxyType
+
+__all__ = ["kernel", "KernelSpec"]
+
+
+class KernelSpec:
+    """Units of a kernel's inputs, coefficients and output (read-only)."""
+
+    __slots__ = ("inputs", "coefficients", "output", "requires")
+
+    def __init__(self, inputs, coefficients, output, requires):
+        self.inputs: Mapping[str, str] = MappingProxyType(dict(inputs))
+        self.coefficients: Mapping[str, str] = MappingProxyType(dict(coefficients))
+        self.output = output
+        self.requires: tuple[str, ...] = tuple(requires)
+
+    def __repr__(self) -> str:
+        return (f"KernelSpec(inputs={dict(self.inputs)}, "
+                f"coefficients={dict(self.coefficients)}, output={self.output!r}, "
+                f"requires={self.requires})")
+
+
+def kernel(*, inputs: Mapping[str, str], output, coefficients: Mapping[str, str] = (),
+           requires: tuple[str, ...] = ()) -> Callable:
+    """Declare a function's units for the catalogue.
+
+    Parameters
+    ----------
+    inputs : mapping of input name -> unit string (the kernel's internal units)
+    output : unit string, or a tuple of unit strings for a kernel returning a tuple
+    coefficients : mapping of coefficient name -> unit string, as the model file
+        must supply them (values in other units of the same dimension are converted)
+    requires : names of quantities whose bound kernels are passed as keyword
+        arguments (composed models, e.g. an intrinsic density from a gap and
+        densities of states)
+    """
+
+    def attach(func: Callable) -> Callable:
+        func.spec = KernelSpec(inputs, dict(coefficients), output, requires)
+        return func
+
+    return attach

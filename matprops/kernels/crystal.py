@@ -1,0 +1,83 @@
+"""Crystal constants of the diamond lattice: lattice constant, densities, planes.
+
+Lengths in cm, mass in g, areal densities in cm^-2.
+"""
+
+import numpy as np
+
+from ._spec import kernel
+from .constants import AVOGADRO
+
+ATOMS_PER_CUBIC_CELL = 8  # diamond structure: fcc lattice with a two-atom basis
+
+# Low-index planes of the diamond lattice, for a cubic cell of side a:
+# atoms per a^2 in one atomic layer, and dangling bonds per surface atom of the
+# ideal, unreconstructed surface (each atom has four bonds; the cut breaks these).
+PLANES = {
+    "100": (2.0, 2),                     # square net 2/a^2; two bonds cut per atom
+    "110": (2.0 * np.sqrt(2.0), 1),      # 4 atoms per (a x a sqrt2) rectangle; one cut
+    "111": (4.0 / np.sqrt(3.0), 1),      # hexagonal net of side a/sqrt2; one cut
+}
+
+
+@kernel(inputs={"temperature": "K"}, output="cm",
+        coefficients={"reference_lattice_constant": "cm", "reference_temperature": "K",
+                      "c1": "1/K", "c2": "1/K", "c3": "1/K^2", "onset_temperature": "K"})
+def okada_tokumaru(temperature, *, reference_lattice_constant, reference_temperature,
+                   c1, c2, c3, onset_temperature):
+    """Lattice constant from the integrated linear thermal-expansion coefficient.
+
+    ``alpha(T) = c1 [1 - exp(-c2 (T - T1))] + c3 T`` and
+    ``a(T) = a(Tr) exp( int_Tr^T alpha dT )`` with the closed-form integral
+    ``F(T) = c1 [T + exp(-c2 (T - T1)) / c2] + c3 T^2 / 2``.
+
+    Parameters
+    ----------
+    temperature : array_like, K
+    reference_lattice_constant : cm, at reference_temperature (K)
+    c1 : 1/K;  c2 : 1/K;  c3 : 1/K^2;  onset_temperature (T1) : K
+
+    References
+    ----------
+    Y. Okada and Y. Tokumaru, J. Appl. Phys. 56, 314 (1984), doi:10.1063/1.333965.
+    """
+    t = np.asarray(temperature, dtype=float)
+
+    def integral(x):
+        return c1 * (x + np.exp(-c2 * (x - onset_temperature)) / c2) + 0.5 * c3 * x * x
+
+    return reference_lattice_constant * np.exp(integral(t) - integral(reference_temperature))
+
+
+def atomic_density(lattice_constant):
+    """Atoms per cm^3 of the diamond lattice, ``8 / a^3`` (a in cm)."""
+    a = np.asarray(lattice_constant, dtype=float)
+    return ATOMS_PER_CUBIC_CELL / (a * a * a)
+
+
+def mass_density(lattice_constant, atomic_mass):
+    """Mass density in g/cm^3 from the lattice constant (cm) and molar mass (g/mol)."""
+    return atomic_density(lattice_constant) * atomic_mass / AVOGADRO
+
+
+def plane_atom_density(lattice_constant, plane):
+    """Atoms per cm^2 in one atomic layer of a {100}, {110} or {111} plane."""
+    a = np.asarray(lattice_constant, dtype=float)
+    return PLANES[plane][0] / (a * a)
+
+
+def dangling_bond_density(lattice_constant, plane):
+    """Dangling bonds per cm^2 of an ideal, unreconstructed {100}/{110}/{111} surface."""
+    return plane_atom_density(lattice_constant, plane) * PLANES[plane][1]
+
+
+@kernel(inputs={}, output="1", coefficients={"value": "1"})
+def constant(*, value):
+    """A temperature-independent dimensionless value (e.g. relative permittivity)."""
+    return value
+
+
+@kernel(inputs={}, output="g/mol", coefficients={"value": "g/mol"})
+def molar_mass(*, value):
+    """A molar mass (standard atomic weight times 1 g/mol)."""
+    return value

@@ -1,0 +1,152 @@
+"""Frozen reference evaluations of a release, and the command that makes them.
+
+Each release ``datasets/releases/<id>.toml`` has a companion
+``<id>.reference.json``: its models evaluated through the public API on a fixed
+grid, plus the sha256 of every model file it pinned. Tests re-evaluate and
+compare to 1e-12 relative, so a change of code or data that moves a released
+number cannot pass unnoticed.
+
+While a release is a draft, its reference may be regenerated deliberately (and
+the diff reviewed in the commit)::
+
+    python -m matprops.reference regenerate 2026.1
+
+Once its status is ``final`` the command refuses: corrections make a new release.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import warnings
+from pathlib import Path
+
+import numpy as np
+
+from .catalog import Catalog, default_catalog, sha256_of
+from .errors import ReleaseFrozenError
+
+__all__ = ["CASES", "evaluate", "regenerate", "compare"]
+
+TEMPERATURES = [50.0, 77.0, 150.0, 200.0, 233.15, 250.0, 273.15, 298.15, 300.0,
+                350.0, 400.0, 473.15, 500.0, 600.0]
+
+# (case label, Silicon method, fixed keyword arguments, gridded arguments)
+# Gridded arguments are combined as an outer product in the order given.
+CASES = [
+    ("band_gap", "band_gap", {}, {"temperature": TEMPERATURES}),
+    ("densities_of_states", "densities_of_states", {}, {"temperature": TEMPERATURES}),
+    ("intrinsic_density", "intrinsic_density", {}, {"temperature": TEMPERATURES}),
+    ("lattice_constant", "lattice_constant", {}, {"temperature": TEMPERATURES}),
+    ("density", "density", {}, {"temperature": TEMPERATURES}),
+    ("atomic_density", "atomic_density", {}, {"temperature": TEMPERATURES}),
+    ("molar_mass", "molar_mass", {}, {}),
+    ("permittivity", "permittivity", {}, {}),
+    *[(f"surface_atom_density_{p}", "surface_atom_density", {"plane": p},
+       {"temperature": [300.0]}) for p in ("100", "110", "111")],
+    *[(f"dangling_bond_density_{p}", "dangling_bond_density", {"plane": p},
+       {"temperature": [300.0]}) for p in ("100", "110", "111")],
+]
+
+
+def _needs(method: str) -> tuple[str, ...]:
+    from .material import DERIVED
+
+    return DERIVED[method][0] if method in DERIVED else (method,)
+
+
+def evaluate(si) -> dict:
+    """Evaluate every reference case that ``si``'s release serves."""
+    cases = {}
+    for label, method, fixed, grid in CASES:
+        if not all(q in si.models for q in _needs(method)):
+            continue
+        names = list(grid)
+        arrays = np.meshgrid(*[np.asarray(grid[n], float) for n in names], indexing="ij")
+        arguments = {n: a.ravel() for n, a in zip(names, arrays)}
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # the grid crosses validity limits on purpose
+            result = getattr(si, method)(**fixed, **arguments)
+        parts = result if isinstance(result, tuple) else (result,)
+        cases[label] = {
+            "method": method, "fixed": fixed, "grid": grid,
+            "units": [f"{p.units:~}" for p in parts],
+            "values": [np.atleast_1d(p.magnitude).astype(float).tolist() for p in parts],
+        }
+    return cases
+
+
+def _model_files(si) -> dict:
+    return {q: {"model": m.id, "sha256": sha256_of(m.path)}
+            for q, m in sorted(si._models.items())}
+
+
+def regenerate(release_id: str, catalog: Catalog | None = None) -> Path:
+    """Write the reference evaluations of a draft release (refuses a final one)."""
+    from .material import Silicon
+
+    catalog = catalog or default_catalog()
+    release = catalog.release(release_id)
+    if release.final:
+        raise ReleaseFrozenError(f"release {release_id} is final: its reference numbers "
+                                 "never change; make a new release instead")
+    si = Silicon(release=release_id, catalog=catalog)
+    content = {"release": release_id, "model_files": _model_files(si),
+               "cases": evaluate(si)}
+    target = release.reference_path
+    tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")
+    tmp.write_text(json.dumps(content, indent=1, ensure_ascii=False) + "\n")
+    os.replace(tmp, target)
+    catalog.write_checksums()
+    return target
+
+
+def compare(release_id: str, catalog: Catalog | None = None, rtol: float = 1e-12) -> list[str]:
+    """Differences between the frozen reference and a fresh evaluation ([] if none)."""
+    from .material import Silicon
+
+    catalog = catalog or default_catalog()
+    release = catalog.release(release_id)
+    frozen = json.loads(catalog.verified_bytes(release.reference_path))
+    si = Silicon(release=release_id, catalog=catalog)
+    fresh = evaluate(si)
+    problems = []
+    for label, case in frozen["cases"].items():
+        if label not in fresh:
+            problems.append(f"{label}: no longer evaluated")
+            continue
+        if fresh[label]["units"] != case["units"]:
+            problems.append(f"{label}: units {fresh[label]['units']} != {case['units']}")
+        for new, old in zip(fresh[label]["values"], case["values"]):
+            new, old = np.asarray(new), np.asarray(old)
+            if new.shape != old.shape or not np.allclose(new, old, rtol=rtol, atol=0):
+                worst = np.max(np.abs(new / old - 1)) if new.shape == old.shape else np.inf
+                problems.append(f"{label}: differs from the frozen reference "
+                                f"(largest relative difference {worst:.3g})")
+    if release.final:
+        for quantity, record in frozen["model_files"].items():
+            model = si.model(quantity)
+            if model.id != record["model"] or sha256_of(model.path) != record["sha256"]:
+                problems.append(f"{quantity}: model file {model.id} changed in a final release")
+    return problems
+
+
+def main(argv=None) -> int:
+    import argparse
+
+    parser = argparse.ArgumentParser(prog="python -m matprops.reference",
+                                     description="Regenerate or check a release's "
+                                     "frozen reference evaluations.")
+    parser.add_argument("action", choices=["regenerate", "check"])
+    parser.add_argument("release")
+    args = parser.parse_args(argv)
+    if args.action == "regenerate":
+        print(f"wrote {regenerate(args.release)} (review the diff before committing)")
+        return 0
+    problems = compare(args.release)
+    print("\n".join(problems) if problems else f"release {args.release}: reference reproduced")
+    return 1 if problems else 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

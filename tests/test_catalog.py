@@ -1,0 +1,114 @@
+"""The catalogue: every data file validates; broken or tampered files are refused."""
+
+import pytest
+
+import matprops
+from matprops.catalog import Catalog, default_catalog
+
+
+def all_models():
+    catalog = default_catalog()
+    return [(q, m) for q in catalog.quantities() for m in catalog.model_ids(q)]
+
+
+@pytest.mark.parametrize("quantity, model_id", all_models())
+def test_every_model_file_loads_with_source_and_origin(quantity, model_id):
+    model = default_catalog().model(quantity, model_id)
+    record = model.provenance()
+    assert record["source"]["authors"] and record["source"]["year"] > 1900
+    assert record["source"]["title"] and record["source"]["journal"]
+    assert len(record["obtained"]) > 40  # says how the numbers were obtained
+    assert record["sha256"]
+    assert model_id in repr(model)
+
+
+def test_provenance_has_release_and_citation(si):
+    record = si.provenance("intrinsic_density")
+    assert record["release"] == "2026.1" and record["model"] == "couderc-2014"
+    assert record["doi"] == "10.1063/1.4867776"
+    assert record["validity"]["temperature"] == {"min": 77.0, "max": 500.0, "units": "K"}
+    assert record["overridden"] is False
+
+
+def test_override_is_recorded():
+    si = matprops.silicon(models={"band_gap": "thurmond-1975"})
+    record = si.provenance("band_gap")
+    assert record["overridden"] and record["release_choice"] == "passler-2002"
+    assert "*" in repr(si)
+
+
+def test_cite_bibtex_lists_every_model(si):
+    text = si.cite()
+    assert text.count("@article{") == len({m for m in si.models.values()})
+    for doi in ("10.1103/PhysRevB.66.085201", "10.1063/1.4867776", "10.1063/1.333965"):
+        assert doi in text
+
+
+def test_model_as_xarray_dataset(si):
+    data = si.model("band_gap").to_dataset()
+    assert float(data["theta"]) == 446 and data["theta"].attrs["units"] == "K"
+    assert data.attrs["model"] == "passler-2002"
+
+
+def test_kernel_door_is_plain_numpy(si):
+    import numpy as np
+
+    kernel = si.kernel("intrinsic_density")
+    t = np.linspace(250, 350, 5)
+    np.testing.assert_allclose(kernel(temperature=t), si.intrinsic_density(t).m_as("cm^-3"),
+                               rtol=1e-15)
+
+
+def _rewrite(root, relative, old, new):
+    path = root / relative
+    path.write_text(path.read_text().replace(old, new))
+    return path
+
+
+def test_tampered_file_is_refused(datasets_copy):
+    root, catalog = datasets_copy
+    _rewrite(root, "models/band_gap/passler-2002.toml", "446", "447")
+    with pytest.raises(matprops.ChecksumError, match=r"passler-2002\.toml: sha256 .* does not match"):
+        catalog.model("band_gap", "passler-2002")
+
+
+def test_unlisted_file_is_refused(datasets_copy):
+    root, catalog = datasets_copy
+    source = root / "models/band_gap/alex-1996.toml"
+    (root / "models/band_gap/extra-2020.toml").write_text(source.read_text())
+    with pytest.raises(matprops.ChecksumError, match="no checksum recorded"):
+        catalog.model("band_gap", "extra-2020")
+
+
+@pytest.mark.parametrize("old, new, message", [
+    ('units = "eV/K"', 'units = "nm"', r"coefficients.alpha: units 'nm' have dimension"),
+    ('units = "eV/K"', 'units = "glorbs"', r"coefficients.alpha: units 'glorbs' do not parse"),
+    ('doi = "10.1149/1.2134410"\n', "", r"missing required field source.'doi'"),
+    ('obtained = """', 'notes2 = """', r"missing required field 'obtained'"),
+    ("beta = { value = 636", "gamma = { value = 636", r"missing \['beta'\], unexpected \['gamma'\]"),
+    ('max = 1000', 'max = -1', r"validity.temperature: min must be below max"),
+    ('kernel = "band_gap.varshni"', 'kernel = "band_gap.nothing"', r"not a declared kernel"),
+    ('id = "thurmond-1975"', 'id = "Thurmond 1975"', r"field 'id' is 'Thurmond 1975'"),
+    ("[source]", "[source", r"not valid TOML"),
+])
+def test_incomplete_or_wrong_file_names_file_and_field(datasets_copy, old, new, message):
+    root, catalog = datasets_copy
+    _rewrite(root, "models/band_gap/thurmond-1975.toml", old, new)
+    catalog.write_checksums()  # a deliberate (but wrong) edit: the checksum is not the issue
+    with pytest.raises(matprops.DatasetError, match=message) as info:
+        catalog.model("band_gap", "thurmond-1975")
+    assert "thurmond-1975.toml" in str(info.value)
+
+
+def test_missing_checksum_list_is_refused(datasets_copy):
+    root, _ = datasets_copy
+    (root / "checksums.sha256").unlink()
+    with pytest.raises(matprops.DatasetError, match="checksum list is missing"):
+        Catalog(root).release("2026.1")
+
+
+def test_catalog_command_verifies_everything(capsys):
+    from matprops.catalog import main
+
+    assert main([]) == 0
+    assert "all dataset files verified" in capsys.readouterr().out

@@ -1,0 +1,98 @@
+"""Bad input gets a clear error; validity limits give a warning or, if strict, an error."""
+
+import warnings
+
+import numpy as np
+import pytest
+
+import matprops
+
+
+@pytest.mark.parametrize("bad, pattern", [
+    (0, r"'temperature' must be > 0 K; received 0 K"),
+    (-5.0, r"'temperature' must be > 0 K; received -5 K"),
+    ([300, -1], r"> 0 K; received -1 K"),
+    (float("nan"), r"'temperature' must be finite"),
+    ([300, np.inf], r"finite"),
+    (matprops.Q_(-300, "degC"), r"> 0 K; received -26.85 K"),
+])
+def test_unphysical_temperature(si, bad, pattern):
+    with pytest.raises(matprops.InputError, match=pattern) as info:
+        si.band_gap(bad)
+    assert isinstance(info.value, ValueError)
+    assert info.value.argument == "temperature"
+
+
+def test_length_passed_as_temperature(si):
+    with pytest.raises(matprops.UnitError, match=r"'temperature' expects a quantity in K.*meter") as info:
+        si.band_gap(matprops.Q_(300, "m"))
+    assert isinstance(info.value, TypeError)
+
+
+@pytest.mark.parametrize("text", ["banana", "300 bananas", "12 glorbs per fortnight"])
+def test_string_that_is_not_a_unit(si, text):
+    with pytest.raises(matprops.UnitError, match="'temperature'"):
+        si.band_gap(text)
+
+
+def test_non_numeric_input(si):
+    with pytest.raises(matprops.UnitError, match="'temperature'"):
+        si.band_gap(["hot", "cold"])
+    with pytest.raises(matprops.UnitError):
+        si.band_gap(True)
+
+
+def test_negative_doping_is_rejected():
+    from matprops.units import to_magnitude
+
+    with pytest.raises(matprops.InputError, match=r"'donor_density' must be >= 0 cm\^-3"):
+        to_magnitude(-1e15, "donor_density")
+    assert to_magnitude(matprops.Q_(1e21, "m^-3"), "donor_density") == pytest.approx(1e15)
+
+
+def test_unknown_model_lists_known_and_suggests():
+    with pytest.raises(matprops.UnknownModelError) as info:
+        matprops.silicon(models={"band_gap": "passler-2003"})
+    message = str(info.value)
+    assert "passler-2002" in message and "thurmond-1975" in message
+    assert "Did you mean 'passler-2002'" in message
+    assert isinstance(info.value, KeyError)
+
+
+def test_unknown_quantity_and_release():
+    with pytest.raises(matprops.UnknownQuantityError, match="Did you mean 'band_gap'"):
+        matprops.silicon(models={"bandgap": "passler-2002"})
+    with pytest.raises(matprops.UnknownReleaseError, match=r"known: 2026\.1"):
+        matprops.silicon(release="2025.9")
+    with pytest.raises(matprops.UnknownQuantityError, match="intrinsic_density"):
+        matprops.silicon().provenance("intrinsic_densty")
+    with pytest.raises(matprops.UnknownQuantityError):
+        matprops.models("mobilty")
+
+
+def test_validity_warning_names_model_input_and_range(si):
+    with pytest.warns(matprops.ValidityWarning,
+                      match=r"band_gap/passler-2002: temperature 700 K .* 0-600 K"):
+        value = si.band_gap(700)
+    assert 0.9 < value.m_as("eV") < 1.1  # the value is still returned
+
+
+def test_warning_points_at_the_caller(si):
+    with pytest.warns(matprops.ValidityWarning) as record:
+        si.intrinsic_density(20)
+    assert record[0].filename == __file__
+
+
+def test_strict_makes_it_an_error():
+    strict = matprops.silicon(strict=True)
+    with pytest.raises(matprops.ValidityError, match="couderc-2014.*77-500 K"):
+        strict.intrinsic_density([300, 600])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        strict.intrinsic_density(300)  # inside: no warning, no error
+
+
+def test_composed_model_checks_its_components():
+    si = matprops.silicon(models={"intrinsic_density": "boltzmann"})
+    with pytest.warns(matprops.ValidityWarning, match="densities_of_states/couderc-2014"):
+        si.intrinsic_density(50)

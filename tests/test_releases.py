@@ -1,0 +1,53 @@
+"""Releases: frozen reference numbers, immutability of final releases."""
+
+import json
+
+import pytest
+
+import matprops
+from matprops.reference import compare, regenerate
+
+
+@pytest.mark.parametrize("release_id", matprops.releases())
+def test_release_reproduces_its_frozen_reference(release_id):
+    # regression check (1e-12 relative) of every number the release pinned
+    assert compare(release_id) == []
+
+
+def test_release_lookup_and_listing():
+    assert matprops.releases()[-1] == matprops.silicon().release.id
+    assert matprops.silicon(release="2026.1").models["band_gap"] == "passler-2002"
+
+
+def test_a_change_is_detected(datasets_copy):
+    root, catalog = datasets_copy
+    path = root / "releases/2026.1.reference.json"
+    content = json.loads(path.read_text())
+    content["cases"]["band_gap"]["values"][0][3] *= 1 + 1e-9
+    path.write_text(json.dumps(content))
+    catalog.write_checksums()
+    problems = compare("2026.1", catalog)
+    assert problems and "band_gap" in problems[0]
+
+
+def test_final_release_cannot_be_regenerated_or_changed(datasets_copy):
+    root, catalog = datasets_copy
+    toml = root / "releases/2026.1.toml"
+    toml.write_text(toml.read_text().replace('status = "draft"', 'status = "final"'))
+    catalog.write_checksums()
+    with pytest.raises(matprops.ReleaseFrozenError, match="final"):
+        regenerate("2026.1", catalog)
+    # editing a model file the final release pinned is caught even if the numbers
+    # happened not to move (the file's hash is frozen with the release)
+    model = root / "models/band_gap/passler-2002.toml"
+    model.write_text(model.read_text() + "\n# an innocent-looking edit\n")
+    catalog.write_checksums()
+    assert any("changed in a final release" in p for p in compare("2026.1", catalog))
+
+
+def test_draft_release_regenerates_identically(datasets_copy):
+    root, catalog = datasets_copy
+    before = json.loads((root / "releases/2026.1.reference.json").read_text())
+    regenerate("2026.1", catalog)
+    after = json.loads((root / "releases/2026.1.reference.json").read_text())
+    assert after == before
