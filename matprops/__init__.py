@@ -14,18 +14,44 @@ practice.
 
 from importlib import import_module
 
-from .errors import (ChecksumError, DatasetError, Error, InputError,
-                     ReleaseFrozenError, UnitError, UnknownModelError,
-                     UnknownNameError, UnknownQuantityError, UnknownReleaseError,
-                     ValidityError, ValidityWarning)
+from .errors import (
+    ChecksumError,
+    DatasetError,
+    Error,
+    InputError,
+    ReleaseFrozenError,
+    UnitError,
+    UnknownModelError,
+    UnknownNameError,
+    UnknownQuantityError,
+    UnknownReleaseError,
+    ValidityError,
+    ValidityWarning,
+)
 
 __version__ = "0.1.0"
 
 __all__ = [
-    "silicon", "Silicon", "releases", "models", "Q_", "ureg", "optics",
-    "Error", "UnitError", "InputError", "UnknownNameError", "UnknownModelError",
-    "UnknownQuantityError", "UnknownReleaseError", "DatasetError", "ChecksumError",
-    "ReleaseFrozenError", "ValidityError", "ValidityWarning", "__version__",
+    "Q_",
+    "ChecksumError",
+    "DatasetError",
+    "Error",
+    "InputError",
+    "ReleaseFrozenError",
+    "Silicon",
+    "UnitError",
+    "UnknownModelError",
+    "UnknownNameError",
+    "UnknownQuantityError",
+    "UnknownReleaseError",
+    "ValidityError",
+    "ValidityWarning",
+    "__version__",
+    "models",
+    "optics",
+    "releases",
+    "silicon",
+    "ureg",
 ]
 
 # name -> module that defines it; imported on first access (PEP 562)

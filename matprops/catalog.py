@@ -29,20 +29,36 @@ import json
 import os
 import re
 import tomllib
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from types import MappingProxyType
-from typing import Any, Callable, Mapping
+from typing import Any
 
 import numpy as np
 
-from .errors import (ChecksumError, DatasetError, UnknownModelError,
-                     UnknownQuantityError, UnknownReleaseError, ValidityError,
-                     ValidityWarning, warn)
+from .errors import (
+    ChecksumError,
+    DatasetError,
+    UnknownModelError,
+    UnknownQuantityError,
+    UnknownReleaseError,
+    ValidityError,
+    ValidityWarning,
+    warn,
+)
 from .kernels import module_for
 
-__all__ = ["Catalog", "Model", "Source", "Coefficient", "Range", "Release",
-           "default_catalog", "datasets_root"]
+__all__ = [
+    "Catalog",
+    "Coefficient",
+    "Model",
+    "Range",
+    "Release",
+    "Source",
+    "datasets_root",
+    "default_catalog",
+]
 
 CHECKSUM_FILE = "checksums.sha256"
 MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
@@ -102,6 +118,14 @@ class Source:
             lines.append(f"  doi = {{{esc(self.doi)}}},")
         lines.append("}")
         return "\n".join(lines)
+
+    def key(self) -> str:
+        """A BibTeX key ``surname-year`` (lower-case ASCII) of the first author."""
+        import unicodedata
+
+        surname = self.authors[0].split()[-1]
+        ascii_name = unicodedata.normalize("NFKD", surname).encode("ascii", "ignore").decode()
+        return f"{re.sub(r'[^a-z]', '', ascii_name.lower())}-{self.year}"
 
     def as_dict(self) -> dict:
         return {"authors": list(self.authors), "year": self.year, "title": self.title,
@@ -171,9 +195,11 @@ class Model:
     path: Path
     sha256: str
     requires: tuple[str, ...] = ()
+    additional_sources: tuple[Source, ...] = ()
+    fallback: str | None = None
     table: str | None = None
     table_arguments: Mapping[str, str] = field(default_factory=dict)
-    components: Mapping[str, "Model"] = field(default_factory=dict)
+    components: Mapping[str, Model] = field(default_factory=dict)
     function: Callable | None = None
 
     # -- evaluation
@@ -193,7 +219,7 @@ class Model:
                                f"{', '.join(missing)}; bind them with .compose()")
         return self.function(*args, **kwargs)
 
-    def compose(self, **components: "Model") -> "Model":
+    def compose(self, **components: Model) -> Model:
         """Bind the models this composed model requires (e.g. band_gap=...)."""
         missing = [q for q in self.requires if q not in components]
         if missing:
@@ -207,10 +233,14 @@ class Model:
         """Warn (or raise, if strict) when [low, high] leaves the validity range."""
         rng = self.validity.get(argument)
         if rng is not None and (low < rng.low or high > rng.high):
+            consequence = ("no data there: NaN is returned outside the table"
+                           if self.kind == "table" else "the value is an extrapolation")
             message = (f"model {self.quantity}/{self.id}: {argument} "
                        f"{_span(low, high)} {rng.units} is outside its validity range "
-                       f"{rng.low:g}-{rng.high:g} {rng.units}; the value is an "
-                       "extrapolation")
+                       f"{rng.low:g}-{rng.high:g} {rng.units}; {consequence}")
+            if self.fallback:
+                message += (f"; the model {self.fallback!r} covers a wider range "
+                            f"(models={{{self.quantity!r}: {self.fallback!r}}})")
             if strict:
                 raise ValidityError(message)
             warn(message, ValidityWarning)
@@ -237,14 +267,21 @@ class Model:
             "sha256": self.sha256,
         }
         if self.table:
-            record["table"] = f"tables/{self.table}"
+            tables = {self.table} | {ref.rpartition(":")[0] for ref in
+                                     self.table_arguments.values() if ":" in ref}
+            record["tables"] = sorted(f"tables/{t}" for t in tables)
+        if self.additional_sources:
+            record["additional_sources"] = [s.as_dict() for s in self.additional_sources]
+        if self.fallback:
+            record["fallback"] = self.fallback
         if self.components:
             record["components"] = {q: m.provenance() for q, m in self.components.items()}
         return record
 
     def sources(self) -> list[tuple[str, Source]]:
-        """(model id, source) of this model and every model it is composed from."""
-        found = [(self.id, self.source)]
+        """(citation key, source) of this model and every model it is composed from."""
+        found = [(self.source.key(), self.source)]
+        found += [(s.key(), s) for s in self.additional_sources]
         for component in self.components.values():
             found += component.sources()
         return found
@@ -255,6 +292,7 @@ class Model:
 
         if self.kind == "table":
             data = _open_table(self.path.parent.parent.parent / "tables" / self.table)
+            data.attrs = {f"table_{k}": v for k, v in data.attrs.items()}
         else:
             variables = {}
             for name, coef in self.coefficients.items():
@@ -436,13 +474,32 @@ class Catalog:
         return Release(release_id, data["status"], str(data["date"]), data["notes"],
                        MappingProxyType(dict(data["models"])), path)
 
-    def table(self, name: str):
-        """A verified netCDF table from ``datasets/tables/`` as an xarray.Dataset."""
+    def table_path(self, name: str) -> Path:
         path = self.root / "tables" / name
         if not path.is_file():
             raise DatasetError(path, "table file is missing")
+        return path
+
+    def table(self, name: str):
+        """A verified netCDF table from ``datasets/tables/`` as an xarray.Dataset."""
+        path = self.table_path(name)
         self.verified_bytes(path)
         return _open_table(path)
+
+    def table_arrays(self, name: str) -> dict[str, tuple[np.ndarray, str]]:
+        """Variables of a verified table as ``{name: (values, UDUNITS units)}``.
+
+        Reads the checked bytes themselves with netCDF4 (cheaper to import than
+        xarray, and no window between the check and the read).
+        """
+        import netCDF4
+
+        path = self.table_path(name)
+        data = self.verified_bytes(path)
+        with netCDF4.Dataset(path.name, mode="r", memory=data) as handle:
+            return {key: (np.array(var[:], dtype=float),
+                          str(getattr(var, "units", "1")))
+                    for key, var in handle.variables.items()}
 
 
 def _atomic_write_text(target: Path, text: str) -> None:
@@ -466,8 +523,9 @@ def _require(path, data: Mapping, name: str, kind=None, where: str = ""):
 
 def _convert(path, where: str, value, units: str, target: str):
     """Convert value (float or list) from ``units`` to ``target`` with pint."""
-    from .units import unit, Q_
     import pint
+
+    from .units import Q_, unit
 
     try:
         source_unit = unit(units)
@@ -512,6 +570,18 @@ def _resolve_kernel(path, reference: str):
     return function
 
 
+def _source(path, src, where: str) -> Source:
+    if not isinstance(src, dict):
+        raise DatasetError(path, f"{where.rstrip('.')} must be a table of source fields")
+    for f in SOURCE_FIELDS:
+        _require(path, src, f, where=where)
+    authors = src["authors"]
+    if not isinstance(authors, list) or not authors:
+        raise DatasetError(path, f"field '{where}authors' must be a non-empty list")
+    return Source(tuple(authors), int(src["year"]), str(src["title"]), str(src["journal"]),
+                  str(src["volume"]), str(src["pages"]), str(src["doi"]))
+
+
 def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
     quantity = path.parent.name
     model_id = _require(path, data, "id", str)
@@ -534,14 +604,15 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
     kernel = _resolve_kernel(path, _require(path, data, "kernel", str))
     spec = kernel.spec
 
-    src = _require(path, data, "source", dict)
-    for f in SOURCE_FIELDS:
-        _require(path, src, f, where="source.")
-    authors = src["authors"]
-    if not isinstance(authors, list) or not authors:
-        raise DatasetError(path, "field 'source.authors' must be a non-empty list")
-    source = Source(tuple(authors), int(src["year"]), str(src["title"]), str(src["journal"]),
-                    str(src["volume"]), str(src["pages"]), str(src["doi"]))
+    source = _source(path, _require(path, data, "source", dict), "source.")
+    additional = data.get("additional_sources", [])
+    if not isinstance(additional, list):
+        raise DatasetError(path, "field 'additional_sources' must be a list of sources")
+    additional_sources = tuple(_source(path, entry, f"additional_sources[{i}].")
+                               for i, entry in enumerate(additional))
+    fallback = data.get("fallback")
+    if fallback is not None and fallback not in catalog.model_ids(quantity):
+        raise DatasetError(path, f"field 'fallback': no model {fallback!r} for {quantity!r}")
 
     validity = {}
     for argument, entry in data.get("validity", {}).items():
@@ -600,12 +671,18 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
                  coefficients=MappingProxyType(coefficients),
                  validity=MappingProxyType(validity), path=path,
                  sha256=catalog.checksums().get(path.relative_to(catalog.root).as_posix(), ""),
-                 requires=requires, table=table,
+                 requires=requires, additional_sources=additional_sources,
+                 fallback=fallback, table=table,
                  table_arguments=MappingProxyType(table_arguments), function=function)
 
 
 class _TableFunction:
-    """A table kernel whose arrays are read (and checked) on first call."""
+    """A table kernel whose arrays are read (and checked) on first call.
+
+    ``table_arguments`` maps a kernel coefficient to a variable of the model's
+    table, or to ``"<other table file>:<variable>"`` for a model that combines
+    two tables.
+    """
 
     def __init__(self, catalog, path, kernel, table, table_arguments, bound):
         self._catalog, self._path, self._kernel = catalog, path, kernel
@@ -613,16 +690,20 @@ class _TableFunction:
         self._function = None
 
     def _load(self):
-        data = self._catalog.table(self._table)
         spec = self._kernel.spec
-        arrays = {}
-        for argument, variable in self._arguments.items():
-            where = f"table {self._table}, variable {variable!r}"
-            if variable not in data.variables:
+        arrays, opened = {}, {}
+        for argument, reference in self._arguments.items():
+            table, _, variable = reference.rpartition(":")
+            table = table or self._table
+            if table not in opened:
+                opened[table] = self._catalog.table_arrays(table)
+            data = opened[table]
+            where = f"table {table}, variable {variable!r}"
+            if variable not in data:
                 raise DatasetError(self._path, f"{where} does not exist "
-                                   f"(has: {', '.join(map(str, data.variables))})")
-            units = udunits_to_pint(str(data[variable].attrs.get("units", "1")))
-            arrays[argument] = _convert(self._path, where, data[variable].values, units,
+                                   f"(has: {', '.join(data)})")
+            values, units = data[variable]
+            arrays[argument] = _convert(self._path, where, values, udunits_to_pint(units),
                                         spec.coefficients[argument])
         self._function = functools.partial(self._kernel, **self._bound, **arrays)
         return self._function

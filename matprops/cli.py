@@ -1,6 +1,7 @@
 """The ``matprops`` command: argument parsing and printing only.
 
     matprops table [QUANTITY ...] --temperature=-40,25,85degC [-o out.nc]
+    matprops table absorption --temperature=300 --wavelength='400:1100:100 nm'
     matprops demo                       # the bundled (invented) scenario
     matprops models [QUANTITY]          # what exists
     matprops releases
@@ -25,10 +26,10 @@ from .errors import Error, InputError, UnitError, ValidityWarning
 __all__ = ["main", "parse_temperatures"]
 
 
-def parse_temperatures(text: str):
+def parse_temperatures(text: str, option: str = "--temperature", default_units: str = "K"):
     """``"-40,25,85 degC"``, ``"250:400:50 K"`` (start:stop:step, stop included), ``"300"`` (K).
 
-    Returns a pint quantity (or a float array in K when no unit is given).
+    Returns a pint quantity (or a float array in default units when no unit is given).
     """
     from .units import Q_
 
@@ -50,16 +51,16 @@ def parse_temperatures(text: str):
             else:
                 values.append(float(item))
     except ValueError as exc:
-        raise InputError("--temperature", "numbers separated by commas or start:stop:step, "
+        raise InputError(option, "numbers separated by commas or start:stop:step, "
                          "then an optional unit (e.g. -40,25,85degC)", repr(text)) from exc
     if not values:
-        raise InputError("--temperature", "at least one value", repr(text))
+        raise InputError(option, "at least one value", repr(text))
     if not units:
         return np.asarray(values)
     try:
         return Q_(np.asarray(values), units)
     except Exception as exc:
-        raise UnitError("--temperature", "K, degC or another temperature unit", text) from exc
+        raise UnitError(option, f"{default_units} or another unit of the same kind", text) from exc
 
 
 def _silicon(args):
@@ -74,10 +75,10 @@ def _silicon(args):
     return Silicon(release=args.release, models=overrides, strict=args.strict)
 
 
-def _print_table(args, si, quantities, temperature):
+def _print_table(args, si, quantities, temperature, wavelength=None):
     from . import tables
 
-    data = si.table(quantities, temperature=temperature)
+    data = si.table(quantities, temperature=temperature, wavelength=wavelength)
     if args.output:
         path = tables.write(data, args.output, args.format)
         print(f"wrote {path}")
@@ -92,10 +93,14 @@ def _print_table(args, si, quantities, temperature):
 
 
 def _cmd_table(args):
-    from .tables import TEMPERATURE_DEPENDENT
+    from .tables import SPECTRAL, TEMPERATURE_DEPENDENT
 
-    quantities = args.quantities or list(TEMPERATURE_DEPENDENT)
-    _print_table(args, _silicon(args), quantities, parse_temperatures(args.temperature))
+    wavelength = (parse_temperatures(args.wavelength, "--wavelength", "nm")
+                  if args.wavelength else None)
+    quantities = args.quantities or (list(SPECTRAL) if wavelength is not None
+                                     else list(TEMPERATURE_DEPENDENT))
+    _print_table(args, _silicon(args), quantities, parse_temperatures(args.temperature),
+                 wavelength)
 
 
 def _cmd_demo(args):
@@ -175,6 +180,9 @@ def build_parser() -> argparse.ArgumentParser:
     table.add_argument("-t", "--temperature", required=True,
                        help="values with a unit, e.g. --temperature=-40,25,85degC or "
                             "--temperature='250:400:50 K' (plain numbers are kelvin)")
+    table.add_argument("-w", "--wavelength",
+                       help="wavelengths for absorption and refractive_index, e.g. "
+                            "--wavelength='400:1100:100 nm' (plain numbers are nm)")
     table.set_defaults(run=_cmd_table)
 
     demo = commands.add_parser("demo", parents=[material, output],

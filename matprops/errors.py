@@ -14,9 +14,19 @@ import sys
 import warnings
 
 __all__ = [
-    "Error", "UnitError", "InputError", "UnknownNameError", "UnknownModelError",
-    "UnknownQuantityError", "UnknownReleaseError", "DatasetError", "ChecksumError",
-    "ReleaseFrozenError", "ValidityError", "ValidityWarning", "warn",
+    "ChecksumError",
+    "DatasetError",
+    "Error",
+    "InputError",
+    "ReleaseFrozenError",
+    "UnitError",
+    "UnknownModelError",
+    "UnknownNameError",
+    "UnknownQuantityError",
+    "UnknownReleaseError",
+    "ValidityError",
+    "ValidityWarning",
+    "warn",
 ]
 
 
@@ -27,10 +37,10 @@ class Error(Exception):
 class UnitError(Error, TypeError):
     """An argument has the wrong physical dimension or an unparseable unit."""
 
-    def __init__(self, argument: str, expected: str, received):
+    def __init__(self, argument: str, expected: str, received, plain: str | None = None):
         self.argument, self.expected, self.received = argument, expected, received
         super().__init__(f"argument {argument!r} expects a quantity in {expected} "
-                         f"(or a plain number in {expected}); received {received!r}")
+                         f"(or a plain number in {plain or expected}); received {received!r}")
 
 
 class InputError(Error, ValueError):

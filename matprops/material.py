@@ -14,14 +14,14 @@ licensed practice.
 
 from __future__ import annotations
 
-from typing import Iterable, Mapping
+from collections.abc import Iterable, Mapping
 
 from .catalog import Catalog, Model, default_catalog
 from .errors import InputError, UnknownQuantityError
 from .kernels import crystal
 from .units import coerce, quantity
 
-__all__ = ["Silicon", "silicon", "releases", "models", "DERIVED"]
+__all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 # Quantities computed here from other quantities' models (not model files).
 # name -> (quantities it is built from, formula shown in the provenance)
@@ -183,6 +183,28 @@ class Silicon:
         return quantity(crystal.dangling_bond_density(self._lattice_cm(temperature), plane),
                         "cm^-2")
 
+    # ------------------------------------------------------------------ optics
+    def absorption(self, wavelength, temperature):
+        """Band-to-band absorption coefficient, 1/cm.
+
+        ``wavelength`` in nm (or a pint length, photon energy, frequency or
+        wavenumber); ``temperature`` in K. Arrays broadcast: pass
+        ``wavelength[:, None]`` and ``temperature[None, :]`` for a grid.
+        """
+        return self._quantity("absorption", wavelength=wavelength, temperature=temperature)
+
+    def refractive_index(self, wavelength, temperature):
+        """Real part of the complex refractive index (dimensionless)."""
+        return self._quantity("refractive_index", wavelength=wavelength,
+                              temperature=temperature)
+
+    def free_carrier_absorption(self, wavelength, n=0, p=0):
+        """Free-carrier absorption coefficient, 1/cm, for electron and hole densities
+        ``n`` and ``p`` (cm^-3); add it to :meth:`absorption` for doped or injected
+        silicon."""
+        return self._quantity("free_carrier_absorption", wavelength=wavelength,
+                              electron_density=n, hole_density=p)
+
     # ------------------------------------------------------------------ provenance
     def provenance(self, name: str) -> dict:
         """Model id, source, DOI, validity, coefficients, release, and overrides."""
@@ -200,32 +222,32 @@ class Silicon:
         return record
 
     def sources(self, names: Iterable[str] | None = None):
-        """Unique (model id, Source) pairs behind the given quantities (default: all)."""
+        """Unique (citation key, Source) pairs behind the given quantities (default: all)."""
         names = list(names) if names is not None else list(self._models)
         seen, found = set(), []
         for name in names:
             parts = DERIVED[name][0] if name in DERIVED else (name,)
             for part in parts:
-                for model_id, source in self.model(part).sources():
-                    key = source.doi or source.title
-                    if key not in seen:
-                        seen.add(key)
-                        found.append((model_id, source))
+                for key, source in self.model(part).sources():
+                    identity = source.doi or source.title
+                    if identity not in seen:
+                        seen.add(identity)
+                        found.append((key, source))
         return found
 
     def cite(self, format: str = "bibtex", quantities: Iterable[str] | None = None) -> str:
         """References of the models in use, as BibTeX (default) or plain text."""
         sources = self.sources(quantities)
         if format == "bibtex":
-            return "\n\n".join(source.bibtex(model_id) for model_id, source in sources)
+            return "\n\n".join(source.bibtex(key) for key, source in sources)
         if format == "text":
-            return "\n".join(f"[{model_id}] {source.citation()}" for model_id, source in sources)
+            return "\n".join(f"[{key}] {source.citation()}" for key, source in sources)
         raise InputError("format", "'bibtex' or 'text'", repr(format))
 
-    def table(self, quantities=None, temperature=None, *, T=None):
-        """Evaluate quantities on a temperature grid -> xarray.Dataset (see matprops.tables).
+    def table(self, quantities=None, temperature=None, *, T=None, wavelength=None):
+        """Evaluate quantities on a temperature (and wavelength) grid -> xarray.Dataset.
 
-        ``T`` is accepted as an alias of ``temperature``.
+        See :func:`matprops.tables.table`; ``T`` is accepted as an alias of ``temperature``.
         """
         from .tables import table
 
@@ -233,7 +255,7 @@ class Silicon:
             if temperature is not None:
                 raise InputError("T", "given only once (T is an alias of temperature)", T)
             temperature = T
-        return table(self, quantities, temperature=temperature)
+        return table(self, quantities, temperature=temperature, wavelength=wavelength)
 
     def __repr__(self) -> str:
         chosen = ", ".join(f"{q}={m.id}{'*' if q in self.overridden else ''}"

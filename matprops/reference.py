@@ -26,10 +26,14 @@ import numpy as np
 from .catalog import Catalog, default_catalog, sha256_of
 from .errors import ReleaseFrozenError
 
-__all__ = ["CASES", "evaluate", "regenerate", "compare"]
+__all__ = ["CASES", "compare", "evaluate", "regenerate"]
 
 TEMPERATURES = [50.0, 77.0, 150.0, 200.0, 233.15, 250.0, 273.15, 298.15, 300.0,
                 350.0, 400.0, 473.15, 500.0, 600.0]
+
+WAVELENGTHS = [260.0, 300.0, 365.0, 400.0, 500.0, 600.0, 700.0, 800.0, 900.0, 1000.0,
+               1050.0, 1100.0, 1150.0, 1180.0, 1300.0, 1450.0]
+OPTICAL_TEMPERATURES = [80.0, 250.0, 295.0, 300.0, 350.0, 473.15]
 
 # (case label, Silicon method, fixed keyword arguments, gridded arguments)
 # Gridded arguments are combined as an outer product in the order given.
@@ -46,6 +50,13 @@ CASES = [
        {"temperature": [300.0]}) for p in ("100", "110", "111")],
     *[(f"dangling_bond_density_{p}", "dangling_bond_density", {"plane": p},
        {"temperature": [300.0]}) for p in ("100", "110", "111")],
+    ("absorption", "absorption", {},
+     {"wavelength": WAVELENGTHS, "temperature": OPTICAL_TEMPERATURES}),
+    ("refractive_index", "refractive_index", {},
+     {"wavelength": WAVELENGTHS, "temperature": OPTICAL_TEMPERATURES}),
+    ("free_carrier_absorption", "free_carrier_absorption", {},
+     {"wavelength": [1000.0, 1300.0, 1450.0, 1550.0, 2000.0], "n": [0.0, 1e16],
+      "p": [0.0, 1e16]}),
 ]
 
 
@@ -119,7 +130,7 @@ def compare(release_id: str, catalog: Catalog | None = None, rtol: float = 1e-12
             problems.append(f"{label}: units {fresh[label]['units']} != {case['units']}")
         for new, old in zip(fresh[label]["values"], case["values"]):
             new, old = np.asarray(new), np.asarray(old)
-            if new.shape != old.shape or not np.allclose(new, old, rtol=rtol, atol=0):
+            if new.shape != old.shape or not np.allclose(new, old, rtol=rtol, atol=0, equal_nan=True):
                 worst = np.max(np.abs(new / old - 1)) if new.shape == old.shape else np.inf
                 problems.append(f"{label}: differs from the frozen reference "
                                 f"(largest relative difference {worst:.3g})")

@@ -11,20 +11,20 @@ the caller's own quantities.
 from __future__ import annotations
 
 import re
-from functools import lru_cache
+from functools import cache
 
 import numpy as np
 import pint
 
 from .errors import InputError, UnitError
 
-__all__ = ["ureg", "Q_", "unit", "coerce", "to_magnitude", "quantity"]
+__all__ = ["Q_", "coerce", "quantity", "to_magnitude", "unit", "ureg"]
 
 ureg = pint.get_application_registry()
 Q_ = ureg.Quantity
 
 
-@lru_cache(maxsize=None)
+@cache
 def unit(text: str) -> pint.Unit:
     """A cached pint Unit (parsing strings costs ~56 µs per call)."""
     return ureg.Unit(text)
@@ -38,7 +38,15 @@ ARGUMENTS = {
     "donor_density": ("cm^-3", "non-negative"),
     "wavelength": ("nm", "positive"),
     "thickness": ("cm", "positive"),
+    "electron_density": ("cm^-3", "non-negative"),
+    "hole_density": ("cm^-3", "non-negative"),
+    "absorption_coefficient": ("1/cm", "non-negative"),
+    "photon_energy": ("eV", "positive"),
 }
+
+# Arguments that also accept a photon energy, frequency or wavenumber (converted
+# with pint's spectroscopy context).
+SPECTRAL = {"wavelength", "photon_energy"}
 
 
 _NUMBER_THEN_UNIT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
@@ -86,9 +94,18 @@ def coerce(value, argument: str, units: str | None = None,
         value = _parse(value, argument, units)
     if isinstance(value, pint.Quantity):
         try:
-            magnitude = np.asarray(value.m_as(target), dtype=float)
+            if argument in SPECTRAL and value.dimensionality != target.dimensionality:
+                if np.any(np.asarray(value.magnitude) <= 0):
+                    raise InputError(argument, f"> 0 {units} (or a positive energy, "
+                                     "frequency or wavenumber)", _describe(value))
+                magnitude = np.asarray(value.to(target, "sp").magnitude, dtype=float)
+            else:
+                magnitude = np.asarray(value.m_as(target), dtype=float)
         except pint.DimensionalityError as exc:
-            raise UnitError(argument, units, f"{value} ({value.dimensionality})") from exc
+            accepted = (f"{units} or as a photon energy, frequency or wavenumber"
+                        if argument in SPECTRAL else units)
+            raise UnitError(argument, accepted, f"{value} ({value.dimensionality})",
+                            plain=units) from exc
     elif isinstance(value, (bool, np.bool_)):
         raise UnitError(argument, units, value)
     else:

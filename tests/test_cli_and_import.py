@@ -70,3 +70,17 @@ def test_import_is_light():
             "'matplotlib', 'pint', 'scipy') if m in sys.modules]; print(heavy)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"
+
+
+def test_optical_table(tmp_path, capsys):
+    assert main(["table", "absorption", "refractive_index", "-t", "25,85degC",
+                 "-w", "800:1100:100 nm"]) == 0
+    out = capsys.readouterr().out
+    assert "absorption_coefficient [cm-1]" in out and "green-2008-franta-2017" in out
+    path = tmp_path / "optics.nc"
+    assert main(["table", "-t", "300", "-w", "1000", "-o", str(path)]) == 0
+    with xr.open_dataset(path) as data:
+        assert data.absorption_coefficient.dims == ("wavelength", "temperature")
+        assert data.absorption_coefficient.values.item() == pytest.approx(64.0, rel=1e-3)
+    assert main(["table", "absorption", "-t", "300"]) == 2
+    assert "'wavelength' must be given" in capsys.readouterr().err

@@ -14,13 +14,13 @@ from __future__ import annotations
 from collections.abc import Callable, Mapping
 from types import MappingProxyType
 
-__all__ = ["kernel", "KernelSpec"]
+__all__ = ["KernelSpec", "kernel"]
 
 
 class KernelSpec:
     """Units of a kernel's inputs, coefficients and output (read-only)."""
 
-    __slots__ = ("inputs", "coefficients", "output", "requires")
+    __slots__ = ("coefficients", "inputs", "output", "requires")
 
     def __init__(self, inputs, coefficients, output, requires):
         self.inputs: Mapping[str, str] = MappingProxyType(dict(inputs))

@@ -17,3 +17,7 @@ AVOGADRO = 6.02214076e23                # N_A in 1/mol (exact)
 # (2 pi m0 k / h^2) is in m^-2 K^-1; ^(3/2) gives m^-3 K^-3/2; 1e-6 converts to cm^-3.
 STATES_PREFACTOR = 2.0 * (2.0 * 3.141592653589793 * ELECTRON_MASS_KG * BOLTZMANN_J
                           / PLANCK_J**2) ** 1.5 * 1e-6
+
+SPEED_OF_LIGHT = 299792458.0            # c in m/s (exact)
+# photon energy in eV times vacuum wavelength in nm: h c / e, in eV nm
+PHOTON_ENERGY_NM = PLANCK_J * SPEED_OF_LIGHT / ELEMENTARY_CHARGE * 1e9

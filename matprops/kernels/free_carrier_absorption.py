@@ -1,0 +1,52 @@
+"""Free-carrier absorption in silicon, in 1/cm (adds to band-to-band absorption)."""
+
+import numpy as np
+
+from ._spec import kernel
+from ._tables import linear_1d
+
+
+@kernel(inputs={"wavelength": "nm", "electron_density": "cm^-3", "hole_density": "cm^-3"},
+        output="1/cm",
+        coefficients={"electron_coefficient": "cm^2", "hole_coefficient": "cm^2",
+                      "electron_exponent": "1", "hole_exponent": "1",
+                      "reference_wavelength": "nm"})
+def power_law(wavelength, electron_density, hole_density, *, electron_coefficient,
+              hole_coefficient, electron_exponent, hole_exponent, reference_wavelength):
+    """``alpha = c_n n (lambda/lambda_0)^a + c_p p (lambda/lambda_0)^b``, linear in density.
+
+    Parameters
+    ----------
+    wavelength : nm;  electron_density, hole_density : cm^-3
+    electron_coefficient, hole_coefficient : cm^2 (cross-sections at lambda_0)
+    electron_exponent, hole_exponent : dimensionless;  reference_wavelength : nm
+    """
+    log_ratio = np.log(np.asarray(wavelength, dtype=float) / reference_wavelength)
+    return (electron_coefficient * np.asarray(electron_density, dtype=float)
+            * np.exp(electron_exponent * log_ratio)
+            + hole_coefficient * np.asarray(hole_density, dtype=float)
+            * np.exp(hole_exponent * log_ratio))
+
+
+@kernel(inputs={"wavelength": "nm", "electron_density": "cm^-3", "hole_density": "cm^-3"},
+        output="1/cm",
+        coefficients={"wavelengths": "nm", "electron_cross_sections": "cm^2",
+                      "hole_cross_sections": "cm^2"})
+def cross_sections_at_wavelengths(wavelength, electron_density, hole_density, *,
+                                  wavelengths, electron_cross_sections,
+                                  hole_cross_sections):
+    """``alpha = sigma_n(lambda) n + sigma_p(lambda) p`` with sigma published at a
+    few wavelengths; between them log(sigma) is linear in log(lambda) (a power
+    law through neighbouring points), outside them NaN.
+
+    Parameters
+    ----------
+    wavelength : nm;  electron_density, hole_density : cm^-3
+    wavelengths : nm (ascending);  electron_cross_sections, hole_cross_sections : cm^2
+    """
+    log_lambda = np.log(np.asarray(wavelength, dtype=float))
+    grid = np.log(np.asarray(wavelengths, dtype=float))
+    sigma_n = np.exp(linear_1d(log_lambda, grid, np.log(electron_cross_sections)))
+    sigma_p = np.exp(linear_1d(log_lambda, grid, np.log(hole_cross_sections)))
+    return (sigma_n * np.asarray(electron_density, dtype=float)
+            + sigma_p * np.asarray(hole_density, dtype=float))
