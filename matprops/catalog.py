@@ -226,15 +226,16 @@ class Model:
             raise DatasetError(self.path, f"composed model {self.id!r} needs "
                                f"{', '.join(missing)}")
         chosen = {q: components[q] for q in self.requires}
-        function = functools.partial(self.kernel, **{q: m for q, m in chosen.items()})
+        function = functools.partial(self.kernel, **chosen)
         return _replace(self, components=MappingProxyType(chosen), function=function)
 
     def check(self, argument: str, low: float, high: float, strict: bool = False) -> None:
         """Warn (or raise, if strict) when [low, high] leaves the validity range."""
         rng = self.validity.get(argument)
         if rng is not None and (low < rng.low or high > rng.high):
-            consequence = ("no data there: NaN is returned outside the table"
-                           if self.kind == "table" else "the value is an extrapolation")
+            consequence = ("the value is NaN where its table has no data and "
+                           "unvalidated elsewhere" if self.kind == "table"
+                           else "the value is an extrapolation")
             message = (f"model {self.quantity}/{self.id}: {argument} "
                        f"{_span(low, high)} {rng.units} is outside its validity range "
                        f"{rng.low:g}-{rng.high:g} {rng.units}; {consequence}")

@@ -93,11 +93,12 @@ def coerce(value, argument: str, units: str | None = None,
     if isinstance(value, str):
         value = _parse(value, argument, units)
     if isinstance(value, pint.Quantity):
+        spectral = argument in SPECTRAL and value.dimensionality != target.dimensionality
+        if spectral and np.any(np.asarray(value.magnitude) <= 0):
+            raise InputError(argument, f"> 0 {units} (or a positive energy, "
+                             "frequency or wavenumber)", _describe(value))
         try:
-            if argument in SPECTRAL and value.dimensionality != target.dimensionality:
-                if np.any(np.asarray(value.magnitude) <= 0):
-                    raise InputError(argument, f"> 0 {units} (or a positive energy, "
-                                     "frequency or wavenumber)", _describe(value))
+            if spectral:
                 magnitude = np.asarray(value.to(target, "sp").magnitude, dtype=float)
             else:
                 magnitude = np.asarray(value.m_as(target), dtype=float)
@@ -106,6 +107,10 @@ def coerce(value, argument: str, units: str | None = None,
                         if argument in SPECTRAL else units)
             raise UnitError(argument, accepted, f"{value} ({value.dimensionality})",
                             plain=units) from exc
+        except (pint.PintError, ValueError, TypeError) as exc:
+            # e.g. a quantity from another UnitRegistry: say so, with pint's reason
+            raise UnitError(argument, f"{units} (a quantity of matprops.ureg, pint's "
+                            f"application registry)", f"{value!r}: {exc}", plain=units) from exc
     elif isinstance(value, (bool, np.bool_)):
         raise UnitError(argument, units, value)
     else:

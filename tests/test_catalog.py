@@ -118,3 +118,13 @@ def test_catalog_command_verifies_everything(capsys):
 
     assert main([]) == 0
     assert "all dataset files verified" in capsys.readouterr().out
+
+
+def test_model_catalogue_in_docs_is_generated_from_datasets():
+    # docs/models.md must be exactly what `python -m matprops.modeldocs` writes
+    from pathlib import Path
+
+    from matprops.modeldocs import render
+
+    committed = Path(__file__).resolve().parent.parent / "docs" / "models.md"
+    assert committed.read_text() == render(), "regenerate: python -m matprops.modeldocs"

@@ -1,0 +1,73 @@
+"""Generate the model catalogue (docs/models.md) from datasets/ — never by hand.
+
+    python -m matprops.modeldocs            # rewrites docs/models.md
+
+A test checks that the committed file matches what this produces.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+from pathlib import Path
+
+from .catalog import Catalog, default_catalog
+
+__all__ = ["render", "main"]
+
+
+def _one_line(text: str) -> str:
+    return " ".join(str(text).split())
+
+
+def render(catalog: Catalog | None = None) -> str:
+    """The catalogue as Markdown: every quantity, model, source, validity, origin."""
+    catalog = catalog or default_catalog()
+    releases = {r: catalog.release(r) for r in catalog.release_ids()}
+    lines = ["# Model catalogue", "",
+             "Generated from `datasets/` by `python -m matprops.modeldocs`; do not edit.",
+             "Each model's `obtained` field says how its numbers were obtained.", ""]
+    lines += ["| release | status | date |", "|---|---|---|"]
+    lines += [f"| {r.id} | {r.status} | {r.date} |" for r in releases.values()]
+    for quantity in catalog.quantities():
+        lines += ["", f"## {quantity}", ""]
+        for model_id in catalog.model_ids(quantity):
+            model = catalog.model(quantity, model_id)
+            chosen = [r for r, rel in releases.items() if rel.models.get(quantity) == model_id]
+            default = f" — default in {', '.join(chosen)}" if chosen else ""
+            lines += [f"### `{model_id}`{default}", "", _one_line(model.name), ""]
+            lines.append(f"- kind: {model.kind}; kernel: "
+                         f"`{model.kernel.__module__.removeprefix('matprops.')}."
+                         f"{model.kernel.__name__}`")
+            lines.append(f"- source: {model.source.citation()}")
+            for extra in model.additional_sources:
+                lines.append(f"- also: {extra.citation()}")
+            if model.validity:
+                lines.append("- validity: " + "; ".join(str(r) for r in model.validity.values()))
+            if model.requires:
+                lines.append(f"- composed from: {', '.join(model.requires)} (the material's choice)")
+            if model.table:
+                lines.append(f"- tables: {', '.join(model.provenance()['tables'])}")
+            for name, coef in model.coefficients.items():
+                unc = f" ± {coef.uncertainty}" if coef.uncertainty is not None else ""
+                value = list(coef.value) if isinstance(coef.value, tuple) else coef.value
+                lines.append(f"- `{name}` = {value}{unc} {coef.units}")
+            lines.append(f"- obtained: {_one_line(model.obtained)}")
+            if model.notes:
+                lines.append(f"- notes: {_one_line(model.notes)}")
+            lines.append("")
+    return "\n".join(lines).rstrip() + "\n"
+
+
+def main(argv=None) -> int:
+    target = Path(argv[0]) if argv else Path(__file__).resolve().parent.parent / "docs" / "models.md"
+    target.parent.mkdir(parents=True, exist_ok=True)
+    tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")
+    tmp.write_text(render())
+    os.replace(tmp, target)
+    print(f"wrote {target}")
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main(sys.argv[1:]))
