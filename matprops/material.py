@@ -108,8 +108,11 @@ class Silicon:
     def model(self, name: str) -> Model:
         """The bound :class:`~matprops.catalog.Model` serving a quantity."""
         if name not in self._models:
-            raise UnknownQuantityError(name, list(self._models) + list(DERIVED),
-                                       "with a model file" if name in DERIVED else "")
+            if name in DERIVED:
+                raise UnknownQuantityError(
+                    name, self._models, f"with a model of its own: it is derived from "
+                    f"{' and '.join(DERIVED[name][0])} (see si.provenance({name!r}))")
+            raise UnknownQuantityError(name, list(self._models) + list(DERIVED))
         return self._models[name]
 
     def kernel(self, name: str):
