@@ -74,7 +74,7 @@ def evaluate(si) -> dict:
             continue
         names = list(grid)
         arrays = np.meshgrid(*[np.asarray(grid[n], float) for n in names], indexing="ij")
-        arguments = {n: a.ravel() for n, a in zip(names, arrays)}
+        arguments = {n: a.ravel() for n, a in zip(names, arrays, strict=False)}
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # the grid crosses validity limits on purpose
             result = getattr(si, method)(**fixed, **arguments)
@@ -128,7 +128,7 @@ def compare(release_id: str, catalog: Catalog | None = None, rtol: float = 1e-12
             continue
         if fresh[label]["units"] != case["units"]:
             problems.append(f"{label}: units {fresh[label]['units']} != {case['units']}")
-        for new, old in zip(fresh[label]["values"], case["values"]):
+        for new, old in zip(fresh[label]["values"], case["values"], strict=False):
             new, old = np.asarray(new), np.asarray(old)
             if new.shape != old.shape or not np.allclose(new, old, rtol=rtol, atol=0, equal_nan=True):
                 worst = np.max(np.abs(new / old - 1)) if new.shape == old.shape else np.inf

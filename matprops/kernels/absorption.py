@@ -95,10 +95,10 @@ def rajkanan(wavelength, temperature, *, indirect_gaps_at_zero, direct_gap_at_ze
     shift = beta * t * t / (t + gamma)
     kt = BOLTZMANN_EV * t
     alpha = np.zeros(energy.shape)
-    for ep, c in zip(phonon_energies, phonon_weights):            # the two phonons
+    for ep, c in zip(phonon_energies, phonon_weights, strict=True):  # the two phonons
         absorbed = 1.0 / np.expm1(ep / kt)                         # occupation n
         emitted = -1.0 / np.expm1(-ep / kt)                        # n + 1
-        for gap0, a in zip(indirect_gaps_at_zero, indirect_strengths):  # the two gaps
+        for gap0, a in zip(indirect_gaps_at_zero, indirect_strengths, strict=True):
             above = energy - (gap0 - shift)
             up = np.maximum(above + ep, 0.0)
             down = np.maximum(above - ep, 0.0)
