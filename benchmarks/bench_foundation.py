@@ -37,11 +37,12 @@ def best(stmt, number, repeat=7):
     return min(timeit.repeat(stmt, number=number, repeat=repeat)) / number
 
 
-def import_time(module, runs=7):
-    """Median wall time of a fresh ``python -c 'import module'``."""
+def import_time(module, runs=7, then=""):
+    """Median wall time of a fresh ``python -c 'import module; then'``."""
+    code = f"import {module}; {then}" if then else f"import {module}"
     return statistics.median(
-        timeit.timeit(lambda: subprocess.run([sys.executable, "-c", f"import {module}"],
-                                             check=True), number=1)
+        timeit.timeit(lambda: subprocess.run([sys.executable, "-c", code], check=True),
+                      number=1)
         for _ in range(runs))
 
 
@@ -77,8 +78,10 @@ def main():
     print(f"scalar call: band_gap(300) {scalar * 1e6:.1f} us, intrinsic_density(300) "
           f"{scalar_ni * 1e6:.1f} us, band_gap(Q_(25, 'degC')) {scalar_q * 1e6:.1f} us")
     mp, npy = import_time("matprops"), import_time("numpy")
+    first = import_time("matprops", then="matprops.silicon().band_gap(300)")
     print(f"import (wall, median of 7 processes): matprops {mp * 1e3:.0f} ms, "
-          f"numpy {npy * 1e3:.0f} ms, ratio {mp / npy:.2f}")
+          f"numpy {npy * 1e3:.0f} ms, ratio {mp / npy:.2f} (matprops defers numpy too); "
+          f"import + first band_gap call (loads numpy, pint, model files) {first * 1e3:.0f} ms")
 
 
 if __name__ == "__main__":
