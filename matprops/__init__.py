@@ -14,52 +14,21 @@ practice.
 
 from importlib import import_module
 
-from .errors import (
-    ChecksumError,
-    DatasetError,
-    Error,
-    InputError,
-    ReleaseFrozenError,
-    UnitError,
-    UnknownModelError,
-    UnknownNameError,
-    UnknownQuantityError,
-    UnknownReleaseError,
-    ValidityError,
-    ValidityWarning,
-)
+from . import errors as _errors
+from .errors import *  # noqa: F403  (the Error hierarchy and ValidityWarning)
 
 __version__ = "0.1.0"
 
-__all__ = [
-    "Q_",
-    "ChecksumError",
-    "DatasetError",
-    "Error",
-    "InputError",
-    "ReleaseFrozenError",
-    "Silicon",
-    "UnitError",
-    "UnknownModelError",
-    "UnknownNameError",
-    "UnknownQuantityError",
-    "UnknownReleaseError",
-    "ValidityError",
-    "ValidityWarning",
-    "__version__",
-    "models",
-    "optics",
-    "releases",
-    "silicon",
-    "ureg",
-]
+__all__ = ["silicon", "Silicon", "releases", "models", "Q_", "ureg", "optics",
+           "__version__", *_errors.__all__]
 
 # name -> module that defines it; imported on first access (PEP 562)
 _LAZY = {
     "silicon": "material", "Silicon": "material", "releases": "material",
     "models": "material", "Q_": "units", "ureg": "units",
 }
-_SUBMODULES = {"optics", "tables", "catalog", "units", "material", "kernels", "cli"}
+_SUBMODULES = {"optics", "tables", "catalog", "units", "material", "kernels", "cli",
+               "reference", "modeldocs"}
 
 
 def __getattr__(name):

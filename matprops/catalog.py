@@ -202,6 +202,14 @@ class Model:
     components: Mapping[str, Model] = field(default_factory=dict)
     function: Callable | None = None
 
+    @property
+    def tables(self) -> list[str]:
+        """Files in ``datasets/tables/`` this model reads (sorted; empty if none)."""
+        if not self.table:
+            return []
+        return sorted({self.table} | {ref.rpartition(":")[0] for ref in
+                                      self.table_arguments.values() if ":" in ref})
+
     # -- evaluation
     @property
     def inputs(self) -> Mapping[str, str]:
@@ -268,9 +276,7 @@ class Model:
             "sha256": self.sha256,
         }
         if self.table:
-            tables = {self.table} | {ref.rpartition(":")[0] for ref in
-                                     self.table_arguments.values() if ":" in ref}
-            record["tables"] = sorted(f"tables/{t}" for t in tables)
+            record["tables"] = [f"tables/{t}" for t in self.tables]
         if self.additional_sources:
             record["additional_sources"] = [s.as_dict() for s in self.additional_sources]
         if self.fallback:

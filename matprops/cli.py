@@ -23,11 +23,12 @@ import numpy as np
 
 from .errors import Error, InputError, UnitError, ValidityWarning
 
-__all__ = ["main", "parse_temperatures"]
+__all__ = ["main", "parse_grid"]
 
 
-def parse_temperatures(text: str, option: str = "--temperature", default_units: str = "K"):
-    """``"-40,25,85 degC"``, ``"250:400:50 K"`` (start:stop:step, stop included), ``"300"`` (K).
+def parse_grid(text: str, option: str = "--temperature", default_units: str = "K"):
+    """Values of a grid option: ``"-40,25,85 degC"``, ``"250:400:50 K"`` (start:stop:step,
+    stop included), ``"300"`` (in ``default_units``).
 
     Returns a pint quantity (or a float array in default units when no unit is given).
     """
@@ -95,11 +96,11 @@ def _print_table(args, si, quantities, temperature, wavelength=None):
 def _cmd_table(args):
     from .tables import SPECTRAL, TEMPERATURE_DEPENDENT
 
-    wavelength = (parse_temperatures(args.wavelength, "--wavelength", "nm")
+    wavelength = (parse_grid(args.wavelength, "--wavelength", "nm")
                   if args.wavelength else None)
     quantities = args.quantities or (list(SPECTRAL) if wavelength is not None
                                      else list(TEMPERATURE_DEPENDENT))
-    _print_table(args, _silicon(args), quantities, parse_temperatures(args.temperature),
+    _print_table(args, _silicon(args), quantities, parse_grid(args.temperature),
                  wavelength)
 
 

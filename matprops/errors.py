@@ -26,7 +26,6 @@ __all__ = [
     "UnknownReleaseError",
     "ValidityError",
     "ValidityWarning",
-    "warn",
 ]
 
 

@@ -74,7 +74,7 @@ def evaluate(si) -> dict:
             continue
         names = list(grid)
         arrays = np.meshgrid(*[np.asarray(grid[n], float) for n in names], indexing="ij")
-        arguments = {n: a.ravel() for n, a in zip(names, arrays, strict=False)}
+        arguments = {n: a.ravel() for n, a in zip(names, arrays, strict=True)}
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # the grid crosses validity limits on purpose
             result = getattr(si, method)(**fixed, **arguments)
@@ -128,9 +128,12 @@ def compare(release_id: str, catalog: Catalog | None = None, rtol: float = 1e-12
             continue
         if fresh[label]["units"] != case["units"]:
             problems.append(f"{label}: units {fresh[label]['units']} != {case['units']}")
-        for new, old in zip(fresh[label]["values"], case["values"], strict=False):
+            continue  # also covers a changed number of parts
+        for new, old in zip(fresh[label]["values"], case["values"], strict=True):
             new, old = np.asarray(new), np.asarray(old)
-            if new.shape != old.shape or not np.allclose(new, old, rtol=rtol, atol=0, equal_nan=True):
+            same = new.shape == old.shape and np.allclose(new, old, rtol=rtol, atol=0,
+                                                          equal_nan=True)
+            if not same:
                 worst = np.max(np.abs(new / old - 1)) if new.shape == old.shape else np.inf
                 problems.append(f"{label}: differs from the frozen reference "
                                 f"(largest relative difference {worst:.3g})")

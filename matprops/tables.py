@@ -98,7 +98,8 @@ def table(si, quantities: Iterable[str] | None = None, temperature=None, wavelen
         parts = result if isinstance(result, tuple) else (result,)
         provenance = json.dumps(si.provenance(name), ensure_ascii=False)
         model = si.models.get(name, "derived")
-        for (variable, long_name, cf_units, pint_units), part in zip(TABLE_QUANTITIES[name], parts, strict=False):
+        columns = zip(TABLE_QUANTITIES[name], parts, strict=True)
+        for (variable, long_name, cf_units, pint_units), part in columns:
             data[variable] = (dims, np.asarray(part.m_as(pint_units), float), {
                 "units": cf_units, "long_name": long_name, "quantity": name,
                 "model": model, "provenance": provenance})
@@ -177,6 +178,7 @@ def to_text(data) -> str:
     """A fixed-width table for a terminal."""
     heads, rows = _columns(data)
     widths = [max(len(h), 12) for h in heads]
-    out = ["  ".join(h.rjust(w) for h, w in zip(heads, widths, strict=False))]
-    out.extend("  ".join(f"{v:.6g}".rjust(w) for v, w in zip(row, widths, strict=False)) for row in rows)
+    out = ["  ".join(h.rjust(w) for h, w in zip(heads, widths, strict=True))]
+    out.extend("  ".join(f"{v:.6g}".rjust(w) for v, w in zip(row, widths, strict=True))
+               for row in rows)
     return "\n".join(out)

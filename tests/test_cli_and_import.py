@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 import xarray as xr
 
-from matprops.cli import main, parse_temperatures
+from matprops.cli import main, parse_grid
 
 
 def test_help(capsys):
@@ -24,8 +24,8 @@ def test_table_with_celsius(capsys):
 
 
 def test_temperature_ranges():
-    np.testing.assert_allclose(parse_temperatures("250:400:50 K").m_as("K"), [250, 300, 350, 400])
-    np.testing.assert_allclose(parse_temperatures("300"), [300])
+    np.testing.assert_allclose(parse_grid("250:400:50 K").m_as("K"), [250, 300, 350, 400])
+    np.testing.assert_allclose(parse_grid("300"), [300])
 
 
 def test_bad_input_is_a_clean_error(capsys):

@@ -41,9 +41,7 @@ def test_model_validity_lies_inside_its_tables(quantity):
         model = catalog.model(quantity, model_id)
         if model.kind != "table":
             continue
-        tables = {model.table} | {r.rpartition(":")[0] for r in model.table_arguments.values()
-                                  if ":" in r}
-        for name in tables:
+        for name in model.tables:
             data = load(name)
             lam = model.validity["wavelength"]
             assert data.wavelength.min() <= lam.low and lam.high <= data.wavelength.max()
