@@ -42,7 +42,9 @@ from .errors import (
     DatasetError,
     UnknownModelError,
     UnknownQuantityError,
+    UnknownNameError,
     UnknownReleaseError,
+    UnknownVariantError,
     ValidityError,
     ValidityWarning,
     warn,
@@ -143,11 +145,14 @@ class Coefficient:
     uncertainty: float | tuple[float, ...] | None
     kernel_value: Any  # float or ndarray in the kernel's units
     kernel_units: str
+    obtained: str | None = None  # this number's own origin, where it differs from the model's
 
     def as_dict(self) -> dict:
         record = {"value": _plain(self.value), "units": self.units}
         if self.uncertainty is not None:
             record["uncertainty"] = _plain(self.uncertainty)
+        if self.obtained:
+            record["obtained"] = self.obtained
         return record
 
 
@@ -201,6 +206,25 @@ class Model:
     table_arguments: Mapping[str, str] = field(default_factory=dict)
     components: Mapping[str, Model] = field(default_factory=dict)
     function: Callable | None = None
+    # coefficient sets per dopant species or per carrier: variant name -> bound Model
+    variant_axis: str | None = None
+    variants: Mapping[str, Model] = field(default_factory=dict)
+    variant: str | None = None
+    # quantity-specific sections of the model file (e.g. ``narrowing``), validated
+    extra: Mapping[str, Any] = field(default_factory=dict)
+
+    def select(self, variant: str) -> Model:
+        """The model bound to one coefficient set (a dopant species or a carrier)."""
+        if self.variant == variant:
+            return self
+        if variant not in self.variants:
+            if not self.variants:
+                raise UnknownNameError(variant, [], f"for model {self.quantity}/{self.id}, "
+                                       "which has a single coefficient set")
+            raise UnknownVariantError(variant, self.variants,
+                                      f"({self.variant_axis}) for model "
+                                      f"{self.quantity}/{self.id}")
+        return self.variants[variant]
 
     @property
     def tables(self) -> list[str]:
@@ -221,6 +245,11 @@ class Model:
         return self.kernel.spec.output
 
     def __call__(self, *args, **kwargs):
+        if self.function is None and self.variants:
+            raise UnknownVariantError("(none)", self.variants,
+                                      f"({self.variant_axis}): model {self.quantity}/"
+                                      f"{self.id} has one coefficient set per "
+                                      f"{self.variant_axis}; choose one with .select()")
         if self.function is None:
             missing = [q for q in self.requires if q not in self.components]
             raise DatasetError(self.path, f"model {self.id!r} is composed from "
@@ -283,6 +312,17 @@ class Model:
             record["fallback"] = self.fallback
         if self.components:
             record["components"] = {q: m.provenance() for q, m in self.components.items()}
+        if self.variant_axis:
+            record["variant_axis"] = self.variant_axis
+            if self.variant is not None:
+                record["variant"] = self.variant
+            else:
+                record["variants"] = {name: {k: c.as_dict() for k, c in
+                                             m.coefficients.items()
+                                             if k not in self.coefficients}
+                                      for name, m in self.variants.items()}
+        for key, value in self.extra.items():
+            record[key] = _plain_extra(value)
         return record
 
     def sources(self) -> list[tuple[str, Source]]:
@@ -322,6 +362,14 @@ class Model:
         inputs = ", ".join(f"{k} [{u}]" for k, u in self.inputs.items()) or "none"
         return (f"<Model {self.quantity}/{self.id} ({self.kind}): {self.name}; "
                 f"inputs {inputs}; valid {ranges}; {self.source.citation()}>")
+
+
+def _plain_extra(value):
+    if isinstance(value, Coefficient):
+        return value.as_dict()
+    if isinstance(value, Mapping):
+        return {k: _plain_extra(v) for k, v in value.items()}
+    return value
 
 
 def _span(low, high) -> str:
@@ -621,9 +669,88 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
     if fallback is not None and fallback not in catalog.model_ids(quantity):
         raise DatasetError(path, f"field 'fallback': no model {fallback!r} for {quantity!r}")
 
+    validity = _validity(path, data.get("validity", {}), spec, "validity")
+
+    table = None
+    table_arguments: dict[str, str] = {}
+    if kind == "table":
+        table = _require(path, data, "table", str)
+        table_arguments = dict(_require(path, data, "table_arguments", dict))
+    shared = _coefficients(path, data.get("coefficients", {}), spec, "coefficients",
+                           data["kernel"], table_arguments)
+    raw_variants = data.get("variants")
+    variant_axis = data.get("variant_axis")
+    if (raw_variants is None) != (variant_axis is None):
+        raise DatasetError(path, "fields 'variant_axis' and 'variants' go together")
+    if variant_axis is not None and variant_axis not in VARIANT_AXES:
+        raise DatasetError(path, f"field 'variant_axis' must be one of "
+                           f"{', '.join(VARIANT_AXES)}, got {variant_axis!r}")
+
+    requires = tuple(spec.requires)
+    if kind == "composed" and not requires:
+        raise DatasetError(path, f"kind 'composed' needs a kernel that requires other "
+                           f"quantities; {data['kernel']!r} requires none")
+    extra = _extra_sections(path, quantity, data)
+    common = dict(quantity=quantity, id=model_id, name=name, kind=kind, kernel=kernel,
+                  source=source, obtained=obtained, notes=notes, path=path,
+                  sha256=catalog.checksums().get(path.relative_to(catalog.root).as_posix(), ""),
+                  requires=requires, additional_sources=additional_sources,
+                  fallback=fallback, table=table,
+                  table_arguments=MappingProxyType(table_arguments),
+                  variant_axis=variant_axis, extra=MappingProxyType(extra))
+
+    def bind(coefficients):
+        _check_complete(path, data["kernel"], spec, set(coefficients) | set(table_arguments))
+        bound = {c.name: c.kernel_value for c in coefficients.values()}
+        if kind == "table":
+            return _TableFunction(catalog, path, kernel, table, table_arguments, bound)
+        return None if requires else functools.partial(kernel, **bound)
+
+    if raw_variants is None:
+        return Model(**common, coefficients=MappingProxyType(shared),
+                     validity=MappingProxyType(validity), function=bind(shared))
+
+    if not isinstance(raw_variants, dict) or not raw_variants:
+        raise DatasetError(path, "field 'variants' must hold one table per variant")
+    variants = {}
+    for variant, entry in raw_variants.items():
+        where = f"variants.{variant}"
+        if not isinstance(entry, dict):
+            raise DatasetError(path, f"{where} must be a table")
+        unknown = set(entry) - {"coefficients", "validity", "obtained"}
+        if unknown:
+            raise DatasetError(path, f"{where}: unknown field(s) {sorted(unknown)} "
+                               "(allowed: coefficients, validity, obtained)")
+        own = _coefficients(path, entry.get("coefficients", {}), spec,
+                            f"{where}.coefficients", data["kernel"],
+                            set(shared) | set(table_arguments))
+        overlap = sorted(set(own) & set(shared))
+        if overlap:
+            raise DatasetError(path, f"{where}: {overlap} also given in [coefficients]")
+        merged = {**shared, **own}
+        ranges = {**validity, **_validity(path, entry.get("validity", {}), spec,
+                                          f"{where}.validity")}
+        variant_obtained = entry.get("obtained")
+        variants[variant] = Model(
+            **{**common, "obtained": obtained + (f"\n{variant}: {variant_obtained}"
+                                                 if variant_obtained else "")},
+            coefficients=MappingProxyType(merged), validity=MappingProxyType(ranges),
+            function=bind(merged), variant=variant)
+    parent = Model(**common, coefficients=MappingProxyType(shared),
+                   validity=MappingProxyType(validity), function=None)
+    frozen = MappingProxyType(variants)
+    object.__setattr__(parent, "variants", frozen)
+    for model in variants.values():
+        object.__setattr__(model, "variants", frozen)
+    return parent
+
+
+def _validity(path, raw, spec, prefix) -> dict[str, Range]:
     validity = {}
-    for argument, entry in data.get("validity", {}).items():
-        where = f"validity.{argument}"
+    if not isinstance(raw, dict):
+        raise DatasetError(path, f"{prefix} must be a table of ranges")
+    for argument, entry in raw.items():
+        where = f"{prefix}.{argument}"
         if argument not in spec.inputs:
             raise DatasetError(path, f"{where}: the kernel has no input {argument!r} "
                                f"(inputs: {', '.join(spec.inputs) or 'none'})")
@@ -634,53 +761,98 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
         if not low < high:
             raise DatasetError(path, f"{where}: min must be below max")
         validity[argument] = Range(argument, low, high, spec.inputs[argument])
+    return validity
 
-    coefficients = {}
-    table = None
-    table_arguments: dict[str, str] = {}
-    raw_coefficients = data.get("coefficients", {})
-    if kind == "table":
-        table = _require(path, data, "table", str)
-        table_arguments = dict(_require(path, data, "table_arguments", dict))
-    supplied = set(raw_coefficients) | set(table_arguments)
+
+def _coefficient(path, where: str, entry, target_units: str) -> Coefficient:
+    if not isinstance(entry, dict):
+        raise DatasetError(path, f"{where} must be a table with value and units")
+    value = _number_or_list(path, where + ".value",
+                            _require(path, entry, "value", where=where + "."))
+    units = _require(path, entry, "units", str, where=where + ".")
+    uncertainty = entry.get("uncertainty")
+    if uncertainty is not None:
+        uncertainty = _number_or_list(path, where + ".uncertainty", uncertainty)
+    origin = entry.get("obtained")
+    if origin is not None and not (isinstance(origin, str) and origin.strip()):
+        raise DatasetError(path, f"{where}.obtained must be a non-empty string")
+    kernel_value = _convert(path, where, value, units, target_units)
+    return Coefficient(where.rpartition(".")[2], value, units, uncertainty, kernel_value,
+                       target_units, origin)
+
+
+def _coefficients(path, raw, spec, prefix, kernel_name, also=()) -> dict[str, Coefficient]:
+    """Parse a coefficient table; ``also`` are names supplied elsewhere in the file."""
+    if not isinstance(raw, dict):
+        raise DatasetError(path, f"{prefix} must be a table of coefficients")
+    if set(raw) - set(spec.coefficients):
+        _check_complete(path, kernel_name, spec, set(raw) | set(also))
+    return {name: _coefficient(path, f"{prefix}.{name}", entry, spec.coefficients[name])
+            for name, entry in raw.items()}
+
+
+def _check_complete(path, kernel_name, spec, supplied) -> None:
     expected = set(spec.coefficients)
     if supplied != expected:
         missing, extra = sorted(expected - supplied), sorted(supplied - expected)
         raise DatasetError(path, "coefficients do not match kernel "
-                           f"{data['kernel']!r}: missing {missing or 'none'}, "
+                           f"{kernel_name!r}: missing {missing or 'none'}, "
                            f"unexpected {extra or 'none'}")
-    for cname, entry in raw_coefficients.items():
-        where = f"coefficients.{cname}"
-        if not isinstance(entry, dict):
-            raise DatasetError(path, f"{where} must be a table with value and units")
-        value = _number_or_list(path, where + ".value", _require(path, entry, "value", where=where + "."))
-        units = _require(path, entry, "units", str, where=where + ".")
-        uncertainty = entry.get("uncertainty")
-        if uncertainty is not None:
-            uncertainty = _number_or_list(path, where + ".uncertainty", uncertainty)
-        kernel_value = _convert(path, where, value, units, spec.coefficients[cname])
-        coefficients[cname] = Coefficient(cname, value, units, uncertainty,
-                                          kernel_value, spec.coefficients[cname])
 
-    requires = tuple(spec.requires)
-    if kind == "composed" and not requires:
-        raise DatasetError(path, f"kind 'composed' needs a kernel that requires other "
-                           f"quantities; {data['kernel']!r} requires none")
-    bound = {c.name: c.kernel_value for c in coefficients.values()}
-    function = None
-    if kind == "table":
-        function = _TableFunction(catalog, path, kernel, table, table_arguments, bound)
-    elif not requires:
-        function = functools.partial(kernel, **bound)
 
-    return Model(quantity=quantity, id=model_id, name=name, kind=kind, kernel=kernel,
-                 source=source, obtained=obtained, notes=notes,
-                 coefficients=MappingProxyType(coefficients),
-                 validity=MappingProxyType(validity), path=path,
-                 sha256=catalog.checksums().get(path.relative_to(catalog.root).as_posix(), ""),
-                 requires=requires, additional_sources=additional_sources,
-                 fallback=fallback, table=table,
-                 table_arguments=MappingProxyType(table_arguments), function=function)
+# Sections a model file may carry for its quantity only, each checked by a function.
+def _narrowing_section(path, entry) -> dict:
+    where = "narrowing"
+    if not isinstance(entry, dict):
+        raise DatasetError(path, f"{where} must be a table")
+    unknown = set(entry) - {"type", "statistics", "intrinsic_density", "split"}
+    if unknown:
+        raise DatasetError(path, f"{where}: unknown field(s) {sorted(unknown)}")
+    kind = _require(path, entry, "type", str, where=where + ".")
+    if kind not in ("apparent", "physical"):
+        raise DatasetError(path, f"{where}.type must be 'apparent' or 'physical', got {kind!r}")
+    statistics = _require(path, entry, "statistics", str, where=where + ".")
+    if statistics not in ("boltzmann", "fermi-dirac"):
+        raise DatasetError(path, f"{where}.statistics must be 'boltzmann' or 'fermi-dirac'")
+    record = {"type": kind, "statistics": statistics,
+              "split": _require(path, entry, "split", str, where=where + ".")}
+    if kind == "apparent":
+        density = _require(path, entry, "intrinsic_density", dict, where=where + ".")
+        temperature = _require(path, density, "temperature", where=where + ".intrinsic_density.")
+        coefficient = _coefficient(path, f"{where}.intrinsic_density",
+                                   {k: v for k, v in density.items() if k != "temperature"},
+                                   "cm^-3")
+        record["intrinsic_density"] = coefficient
+        record["intrinsic_density_temperature"] = _convert(
+            path, f"{where}.intrinsic_density.temperature", temperature, "K", "K")
+    elif "intrinsic_density" in entry:
+        raise DatasetError(path, f"{where}.intrinsic_density belongs to apparent narrowings")
+    return record
+
+
+def _dopant_densities(path, value) -> str:
+    if value not in ("total", "ionised"):
+        raise DatasetError(path, f"field 'dopant_densities' must be 'total' or 'ionised', "
+                           f"got {value!r}")
+    return value
+
+
+QUANTITY_SECTIONS = {
+    "gap_narrowing": {"narrowing": _narrowing_section},
+    "mobility": {"dopant_densities": _dopant_densities},
+}
+VARIANT_AXES = ("dopant", "carrier")
+
+
+def _extra_sections(path, quantity, data) -> dict:
+    allowed = QUANTITY_SECTIONS.get(quantity, {})
+    found = {}
+    for key, check in allowed.items():
+        if key not in data:
+            raise DatasetError(path, f"missing required field {key!r} for a "
+                               f"{quantity} model")
+        found[key] = check(path, data[key])
+    return found
 
 
 class _TableFunction:

@@ -24,6 +24,7 @@ __all__ = [
     "UnknownNameError",
     "UnknownQuantityError",
     "UnknownReleaseError",
+    "UnknownVariantError",
     "ValidityError",
     "ValidityWarning",
 ]
@@ -79,6 +80,12 @@ class UnknownQuantityError(UnknownNameError):
 
 class UnknownReleaseError(UnknownNameError):
     kind = "release"
+
+
+class UnknownVariantError(UnknownNameError):
+    """A dopant species or carrier for which a model has no coefficient set."""
+
+    kind = "dopant species or carrier"
 
 
 class DatasetError(Error, ValueError):

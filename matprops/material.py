@@ -18,35 +18,20 @@ from collections.abc import Iterable, Mapping
 
 from .catalog import Catalog, Model, default_catalog
 from .errors import InputError, UnknownQuantityError
-from .kernels import crystal
+from .methods.carriers import CarrierMethods
+from .methods.crystal import DERIVED as CRYSTAL_DERIVED
+from .methods.crystal import CrystalMethods
+from .methods.optical import OpticalMethods
 from .units import coerce, quantity
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
-# Quantities computed here from other quantities' models (not model files).
+# Quantities computed from other quantities' models (no model file of their own):
 # name -> (quantities it is built from, formula shown in the provenance)
-DERIVED = {
-    "density": (("lattice_constant", "molar_mass"), "rho = 8 M / (N_A a(T)^3)"),
-    "atomic_density": (("lattice_constant",), "N = 8 / a(T)^3"),
-    "surface_atom_density": (("lattice_constant",),
-                             "atoms per area in one atomic layer of the plane, "
-                             "2/a^2 (100), 2 sqrt2/a^2 (110), 4/(sqrt3 a^2) (111)"),
-    "dangling_bond_density": (("lattice_constant",),
-                              "surface atom density x bonds cut per atom of the ideal "
-                              "unreconstructed surface: 2 (100), 1 (110), 1 (111)"),
-}
-
-PLANES = tuple(crystal.PLANES)
+DERIVED = {**CRYSTAL_DERIVED}
 
 
-def _plane(plane) -> str:
-    text = str(plane).strip().strip("(){}[]<>").replace(" ", "").replace(",", "")
-    if text not in crystal.PLANES:
-        raise InputError("plane", f"one of {', '.join(PLANES)} (Miller indices)", repr(plane))
-    return text
-
-
-class Silicon:
+class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
     """Crystalline silicon as described by one release of matprops.
 
     Parameters
@@ -135,78 +120,6 @@ class Silicon:
     def _quantity(self, name: str, **arguments):
         result, units = self._evaluate(name, **arguments)
         return quantity(result, units)
-
-    def _lattice_cm(self, temperature):
-        return self._evaluate("lattice_constant", temperature=temperature)[0]
-
-    # ------------------------------------------------------------------ quantities
-    def band_gap(self, temperature):
-        """Fundamental (indirect) band gap of undoped silicon, eV; no narrowing."""
-        return self._quantity("band_gap", temperature=temperature)
-
-    def densities_of_states(self, temperature):
-        """Effective densities of states ``(Nc, Nv)`` of the conduction and valence bands, cm^-3."""
-        (nc, nv), (uc, uv) = self._evaluate("densities_of_states", temperature=temperature)
-        return quantity(nc, uc), quantity(nv, uv)
-
-    def intrinsic_density(self, temperature):
-        """Intrinsic carrier density of undoped silicon (no gap narrowing), cm^-3."""
-        return self._quantity("intrinsic_density", temperature=temperature)
-
-    def lattice_constant(self, temperature):
-        """Cubic lattice constant a(T), nm."""
-        return self._quantity("lattice_constant", temperature=temperature).to("nm")
-
-    def molar_mass(self):
-        """Molar mass (standard atomic weight) of natural silicon, g/mol."""
-        return self._quantity("molar_mass")
-
-    def permittivity(self):
-        """Static relative permittivity (dimensionless)."""
-        return self._quantity("permittivity")
-
-    def atomic_density(self, temperature):
-        """Silicon atoms per volume, 8/a^3, cm^-3."""
-        return quantity(crystal.atomic_density(self._lattice_cm(temperature)), "cm^-3")
-
-    def density(self, temperature):
-        """Mass density from the lattice constant and the atomic weight, g/cm^3."""
-        mass, _ = self._evaluate("molar_mass")
-        return quantity(crystal.mass_density(self._lattice_cm(temperature), mass), "g/cm^3")
-
-    def surface_atom_density(self, plane, temperature):
-        """Atoms per area in one atomic layer of a (100), (110) or (111) plane, cm^-2."""
-        plane = _plane(plane)
-        return quantity(crystal.plane_atom_density(self._lattice_cm(temperature), plane),
-                        "cm^-2")
-
-    def dangling_bond_density(self, plane, temperature):
-        """Dangling bonds per area of the ideal unreconstructed (100)/(110)/(111) surface, cm^-2."""
-        plane = _plane(plane)
-        return quantity(crystal.dangling_bond_density(self._lattice_cm(temperature), plane),
-                        "cm^-2")
-
-    # ------------------------------------------------------------------ optics
-    def absorption(self, wavelength, temperature):
-        """Band-to-band absorption coefficient, 1/cm.
-
-        ``wavelength`` in nm (or a pint length, photon energy, frequency or
-        wavenumber); ``temperature`` in K. Arrays broadcast: pass
-        ``wavelength[:, None]`` and ``temperature[None, :]`` for a grid.
-        """
-        return self._quantity("absorption", wavelength=wavelength, temperature=temperature)
-
-    def refractive_index(self, wavelength, temperature):
-        """Real part of the complex refractive index (dimensionless)."""
-        return self._quantity("refractive_index", wavelength=wavelength,
-                              temperature=temperature)
-
-    def free_carrier_absorption(self, wavelength, n=0, p=0):
-        """Free-carrier absorption coefficient, 1/cm, for electron and hole densities
-        ``n`` and ``p`` (cm^-3); add it to :meth:`absorption` for doped or injected
-        silicon."""
-        return self._quantity("free_carrier_absorption", wavelength=wavelength,
-                              electron_density=n, hole_density=p)
 
     # ------------------------------------------------------------------ provenance
     def provenance(self, name: str) -> dict:

@@ -1,0 +1,71 @@
+"""Crystal constants: lattice constant, molar mass, permittivity and what follows from them."""
+
+from __future__ import annotations
+
+from ..errors import InputError
+from ..kernels import crystal
+from ..units import quantity
+
+__all__ = ["DERIVED", "PLANES", "CrystalMethods"]
+
+# Quantities computed from other quantities' models (no model file of their own).
+# name -> (quantities it is built from, formula shown in the provenance)
+DERIVED = {
+    "density": (("lattice_constant", "molar_mass"), "rho = 8 M / (N_A a(T)^3)"),
+    "atomic_density": (("lattice_constant",), "N = 8 / a(T)^3"),
+    "surface_atom_density": (("lattice_constant",),
+                             "atoms per area in one atomic layer of the plane, "
+                             "2/a^2 (100), 2 sqrt2/a^2 (110), 4/(sqrt3 a^2) (111)"),
+    "dangling_bond_density": (("lattice_constant",),
+                              "surface atom density x bonds cut per atom of the ideal "
+                              "unreconstructed surface: 2 (100), 1 (110), 1 (111)"),
+}
+
+PLANES = tuple(crystal.PLANES)
+
+
+def _plane(plane) -> str:
+    text = str(plane).strip().strip("(){}[]<>").replace(" ", "").replace(",", "")
+    if text not in crystal.PLANES:
+        raise InputError("plane", f"one of {', '.join(PLANES)} (Miller indices)", repr(plane))
+    return text
+
+
+class CrystalMethods:
+    """Lattice constant, densities, areal densities of planes, permittivity."""
+
+    def _lattice_cm(self, temperature):
+        return self._evaluate("lattice_constant", temperature=temperature)[0]
+
+    def lattice_constant(self, temperature):
+        """Cubic lattice constant a(T), nm."""
+        return self._quantity("lattice_constant", temperature=temperature).to("nm")
+
+    def molar_mass(self):
+        """Molar mass (standard atomic weight) of natural silicon, g/mol."""
+        return self._quantity("molar_mass")
+
+    def permittivity(self):
+        """Static relative permittivity (dimensionless)."""
+        return self._quantity("permittivity")
+
+    def atomic_density(self, temperature):
+        """Silicon atoms per volume, 8/a^3, cm^-3."""
+        return quantity(crystal.atomic_density(self._lattice_cm(temperature)), "cm^-3")
+
+    def density(self, temperature):
+        """Mass density from the lattice constant and the atomic weight, g/cm^3."""
+        mass, _ = self._evaluate("molar_mass")
+        return quantity(crystal.mass_density(self._lattice_cm(temperature), mass), "g/cm^3")
+
+    def surface_atom_density(self, plane, temperature):
+        """Atoms per area in one atomic layer of a (100), (110) or (111) plane, cm^-2."""
+        plane = _plane(plane)
+        return quantity(crystal.plane_atom_density(self._lattice_cm(temperature), plane),
+                        "cm^-2")
+
+    def dangling_bond_density(self, plane, temperature):
+        """Dangling bonds per area of the ideal unreconstructed (100)/(110)/(111) surface, cm^-2."""
+        plane = _plane(plane)
+        return quantity(crystal.dangling_bond_density(self._lattice_cm(temperature), plane),
+                        "cm^-2")
