@@ -19,6 +19,7 @@ __all__ = [
     "Error",
     "InputError",
     "ReleaseFrozenError",
+    "SolverError",
     "UnitError",
     "UnknownModelError",
     "UnknownNameError",
@@ -102,6 +103,10 @@ class ChecksumError(DatasetError):
 
 class ReleaseFrozenError(Error, RuntimeError):
     """An attempt to change the reference numbers of a final release."""
+
+
+class SolverError(Error, ArithmeticError):
+    """A numerical solve (e.g. charge neutrality) did not converge; names the points."""
 
 
 class ValidityError(Error, ValueError):

@@ -14,11 +14,13 @@ licensed practice.
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Iterable, Mapping
 
 from .catalog import Catalog, Model, default_catalog
 from .errors import InputError, UnknownQuantityError
-from .methods.carriers import CarrierMethods
+from .methods.carriers import DERIVED as CARRIER_DERIVED
+from .methods.carriers import CarrierMethods, dopant_species
 from .methods.crystal import DERIVED as CRYSTAL_DERIVED
 from .methods.crystal import CrystalMethods
 from .methods.optical import OpticalMethods
@@ -28,7 +30,7 @@ __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 # Quantities computed from other quantities' models (no model file of their own):
 # name -> (quantities it is built from, formula shown in the provenance)
-DERIVED = {**CRYSTAL_DERIVED}
+DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED}
 
 
 class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
@@ -100,22 +102,60 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
             raise UnknownQuantityError(name, list(self._models) + list(DERIVED))
         return self._models[name]
 
-    def kernel(self, name: str):
+    def kernel(self, name: str, **fixed):
         """A plain-array callable for a quantity: no units, no checks, no overhead.
 
         Inputs and outputs are in the internal units listed by
         ``si.model(name).inputs`` and ``.output_units`` (K, cm^-3, eV, ...).
+        ``fixed`` chooses what a quantity needs fixed: ``dopant=`` for ionisation;
+        ``donor=``, ``acceptor=`` and ``statistics=`` for ``equilibrium`` (a callable
+        ``(temperature, donor_density, acceptor_density) -> dict of arrays``).
         """
-        return self.model(name)
+        if name == "equilibrium":
+            unknown = set(fixed) - {"donor", "acceptor", "statistics"}
+            if unknown:
+                raise InputError(sorted(unknown)[0], "one of donor, acceptor, statistics",
+                                 fixed[sorted(unknown)[0]])
+            bound = self._carriers()
+            statistics = fixed.get("statistics") or bound.statistics
+            return functools.partial(
+                bound.equilibrium,
+                donor=dopant_species(fixed.get("donor", "phosphorus"), "donor", "donor"),
+                acceptor=dopant_species(fixed.get("acceptor", "boron"), "acceptor",
+                                        "acceptor"),
+                fermi_dirac=self._check_statistics(statistics, bound))
+        if name == "effective_intrinsic_density":
+            return self._carriers().effective_intrinsic_density
+        model = self.model(name)
+        if model.variant_axis == "dopant":
+            species = fixed.pop("dopant", None)
+            if species is None:
+                raise InputError("dopant", f"given for {name} (one of "
+                                 f"{', '.join(model.variants)})", None)
+            model = model.select(dopant_species(species, "dopant"))
+        if fixed:
+            key = sorted(fixed)[0]
+            raise InputError(key, f"not an option of the {name} kernel", fixed[key])
+        return model
 
     def _evaluate(self, name: str, **arguments):
+        """Coerce ``arguments`` (named as the kernel's inputs), check, call the model."""
         model = self.model(name)
+        return self._call(model, {a: coerce(raw, a) for a, raw in arguments.items()}), \
+            model.output_units
+
+    def _call(self, model: Model, prepared: Mapping[str, tuple]):
+        """Check validity and call ``model`` with the inputs it declares.
+
+        ``prepared`` maps kernel input names to ``(array, min, max)`` as returned by
+        :func:`matprops.units.coerce`; inputs the model does not take are ignored.
+        """
         values = {}
-        for argument, raw in arguments.items():
-            array, low, high = coerce(raw, argument)
+        for argument in model.inputs:
+            array, low, high = prepared[argument]
             model.check(argument, low, high, self.strict)
             values[argument] = array
-        return model(**values), model.output_units
+        return model(**values)
 
     def _quantity(self, name: str, **arguments):
         result, units = self._evaluate(name, **arguments)
@@ -128,6 +168,9 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
             parts, formula = DERIVED[name]
             record = {"quantity": name, "model": "derived", "formula": formula,
                       "components": {q: self.provenance(q) for q in parts}}
+            note = self._composition_note(name)
+            if note:
+                record["composition"] = note
         else:
             record = self.model(name).provenance()
         record["release"] = self.release.id

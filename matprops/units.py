@@ -42,6 +42,15 @@ ARGUMENTS = {
     "hole_density": ("cm^-3", "non-negative"),
     "absorption_coefficient": ("1/cm", "non-negative"),
     "photon_energy": ("eV", "positive"),
+    "dopant_density": ("cm^-3", "non-negative"),
+    "excess_density": ("cm^-3", "non-negative"),
+    # the public API's short names for densities (DESIGN.md): same units and rules
+    "Na": ("cm^-3", "non-negative"),
+    "Nd": ("cm^-3", "non-negative"),
+    "n": ("cm^-3", "non-negative"),
+    "p": ("cm^-3", "non-negative"),
+    "excess": ("cm^-3", "non-negative"),
+    "N": ("cm^-3", "non-negative"),
 }
 
 # Arguments that also accept a photon energy, frequency or wavenumber (converted
@@ -144,3 +153,16 @@ def quantity(magnitude, units: str):
     if isinstance(magnitude, np.ndarray) and magnitude.ndim == 0:
         magnitude = magnitude[()]
     return Q_(magnitude, unit(units))
+
+
+def cf_units(units) -> str:
+    """A pint unit as a UDUNITS string for CF files: ``cm^-3`` -> ``cm-3``,
+    ``cm^2/(V s)`` -> ``cm2 V-1 s-1``, dimensionless -> ``1``."""
+    parts = []
+    for name, power in unit(str(units))._units.items():
+        symbol = ureg.get_symbol(name)
+        if not symbol.isascii():  # e.g. the ohm: UDUNITS files are safest in ASCII
+            symbol = name
+        exponent = int(power) if float(power).is_integer() else float(power)
+        parts.append(symbol if exponent == 1 else f"{symbol}{exponent}")
+    return " ".join(parts) or "1"

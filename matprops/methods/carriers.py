@@ -1,16 +1,177 @@
-"""Bands and carriers: gap, densities of states, intrinsic density, and the doping axis."""
+"""Bands and carriers: gap, densities of states, intrinsic density, and the doping axis.
+
+Composition rules (each shown in the provenance of what it returns):
+
+- The equilibrium solver takes Nc and Nv from the release's densities of states and
+  ni from its intrinsic density; the gap entering the statistics is the one consistent
+  with them, ``kT ln(Nc Nv / ni^2)``, so undoped silicon reproduces the release's ni.
+- An *apparent* narrowing was fitted with Boltzmann statistics and one particular
+  intrinsic density ``ni_fit`` (at ``T_fit``), recorded in its model file. It is
+  composed with that density, never silently with another: the effective intrinsic
+  density is ``ni(T) * [ni_fit / ni(T_fit)] * exp(dEg / 2kT)`` with ni the release's
+  intrinsic density, and equilibrium uses Boltzmann statistics by default. Asking for
+  Fermi-Dirac statistics with an apparent narrowing warns (it counts degeneracy twice).
+- A *physical* narrowing (Schenk's) is composed with the release's ni as it is, uses
+  Fermi-Dirac statistics by default, and depends on the free-carrier densities: where
+  ``n`` and ``p`` are not given they are the equilibrium densities, solved
+  self-consistently with the narrowing.
+"""
 
 from __future__ import annotations
 
-from ..units import quantity
+import dataclasses
 
-__all__ = ["CarrierMethods"]
+import numpy as np
+
+from ..errors import InputError, ValidityError, ValidityWarning, warn
+from ..kernels import equilibrium as equilibrium_kernel
+from ..kernels.constants import BOLTZMANN_EV
+from ..results import Result
+from ..units import coerce, quantity
+
+__all__ = ["DERIVED", "DOPANTS", "CarrierMethods", "Equilibrium", "dopant_species"]
+
+# Dopant species of silicon and which kind each is (a classification, not a coefficient).
+DOPANTS = {"phosphorus": "donor", "arsenic": "donor", "antimony": "donor",
+           "boron": "acceptor", "aluminium": "acceptor", "gallium": "acceptor",
+           "indium": "acceptor"}
+_SYMBOLS = {"p": "phosphorus", "as": "arsenic", "sb": "antimony", "b": "boron",
+            "al": "aluminium", "aluminum": "aluminium", "ga": "gallium", "in": "indium"}
+STATISTICS = ("fermi-dirac", "boltzmann")
+
+DERIVED = {
+    "effective_intrinsic_density": (
+        ("intrinsic_density", "gap_narrowing"),
+        "ni_eff = ni(T) exp(dEg / 2kT); for an apparent narrowing ni(T) is scaled by "
+        "ni_fit / ni(T_fit), the intrinsic density the narrowing was fitted with"),
+    "equilibrium": (
+        ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation"),
+        "charge neutrality p + Nd+ = n + Na- solved for the Fermi level with n = Nc F(eta), "
+        "p = Nv F(-eta - Eg'/kT), Eg' = kT ln(Nc Nv / ni^2) - dEg"),
+}
+
+
+def dopant_species(value, argument: str, kind: str | None = None) -> str:
+    """The canonical name of a dopant species (``"P"``, ``"phosphorus"`` -> ``"phosphorus"``)."""
+    text = str(value).strip().lower()
+    name = _SYMBOLS.get(text, text)
+    allowed = [d for d, k in DOPANTS.items() if kind in (None, k)]
+    if name not in allowed:
+        what = f"a {kind} species" if kind else "a dopant species"
+        raise InputError(argument, f"{what}: one of {', '.join(allowed)}", repr(value))
+    return name
+
+
+@dataclasses.dataclass(frozen=True, repr=False)
+class Equilibrium(Result):
+    """Thermal-equilibrium state of doped silicon (arrays broadcast to one shape).
+
+    Energies are in eV. ``fermi_level`` is measured from the intrinsic level of
+    undoped silicon at the same temperature (``E_i = E_c - kT ln(Nc/ni)``);
+    ``fermi_level_from_conduction_edge`` (negative inside the gap) and
+    ``fermi_level_from_valence_edge`` (positive inside the gap) are measured from
+    the band edges *after* narrowing.
+    """
+
+    temperature: object
+    fermi_level: object
+    fermi_level_from_conduction_edge: object
+    fermi_level_from_valence_edge: object
+    electron_density: object
+    hole_density: object
+    ionised_donors: object
+    ionised_acceptors: object
+    gap_narrowing: object
+    conduction_edge_shift: object
+    valence_edge_shift: object
+    effective_intrinsic_density: object
+    statistics: str
+    donor: str
+    acceptor: str
+    provenance: dict = dataclasses.field(compare=False)
+
+    @property
+    def n(self):
+        return self.electron_density
+
+    @property
+    def p(self):
+        return self.hole_density
+
+
+class _Bound:
+    """The carrier models of one material, composed on plain arrays (internal units)."""
+
+    def __init__(self, si):
+        self.dos = si.model("densities_of_states")
+        self.ni = si.model("intrinsic_density")
+        self.narrowing = si.model("gap_narrowing")
+        self.ionisation = si.model("ionisation")
+        section = self.narrowing.extra["narrowing"]
+        self.apparent = section["type"] == "apparent"
+        self.statistics = section["statistics"]
+        self.uses_carriers = "electron_density" in self.narrowing.inputs
+
+    def narrowing_args(self, temperature, donor_density, acceptor_density, n, p):
+        values = {"temperature": temperature, "donor_density": donor_density,
+                  "acceptor_density": acceptor_density, "electron_density": n,
+                  "hole_density": p}
+        return {k: values[k] for k in self.narrowing.inputs}
+
+    def shifts(self, temperature, donor_density, acceptor_density, n=None, p=None):
+        return self.narrowing(**self.narrowing_args(temperature, donor_density,
+                                                    acceptor_density, n, p))
+
+    def reference_ratio(self):
+        """ni_fit / ni(T_fit) for an apparent narrowing, 1 for a physical one."""
+        if not self.apparent:
+            return 1.0
+        section = self.narrowing.extra["narrowing"]
+        fitted = section["intrinsic_density"].kernel_value
+        return fitted / float(self.ni(temperature=section["intrinsic_density_temperature"]))
+
+    def gap_offset(self, temperature):
+        """The extra narrowing that reconciles an apparent narrowing with the release's ni."""
+        return 2.0 * BOLTZMANN_EV * temperature * np.log(self.reference_ratio())
+
+    def level(self, species, density):
+        model = self.ionisation.select(species)
+        energy, share = model(dopant_density=density)
+        return (energy, share), model.coefficients["degeneracy"].kernel_value
+
+    def equilibrium(self, temperature, donor_density, acceptor_density, donor="phosphorus",
+                    acceptor="boron", fermi_dirac=True):
+        t, nd, na = np.broadcast_arrays(*(np.asarray(a, dtype=float) for a in
+                                          (temperature, donor_density, acceptor_density)))
+        nc, nv = self.dos(temperature=t)
+        donor_level, g_d = self.level(donor, nd)
+        acceptor_level, g_a = self.level(acceptor, na)
+
+        def narrowing(n, p):
+            return self.shifts(t, nd, na, n, p)
+
+        result = equilibrium_kernel.solve(
+            t, nd, na, conduction_states=nc, valence_states=nv,
+            intrinsic_density=self.ni(temperature=t), narrowing=narrowing,
+            narrowing_uses_carriers=self.uses_carriers, donor_level=donor_level,
+            acceptor_level=acceptor_level, donor_degeneracy=g_d, acceptor_degeneracy=g_a,
+            gap_offset=self.gap_offset(t), fermi_dirac=fermi_dirac)
+        result["temperature"] = t
+        return result
+
+    def effective_intrinsic_density(self, temperature, donor_density, acceptor_density,
+                                    n, p):
+        dec, dev = self.shifts(temperature, donor_density, acceptor_density, n, p)
+        kt = BOLTZMANN_EV * np.asarray(temperature, dtype=float)
+        return (self.ni(temperature=temperature) * self.reference_ratio()
+                * np.exp((dec + dev) / (2.0 * kt)))
 
 
 class CarrierMethods:
     """Band gap, densities of states, intrinsic and effective intrinsic density,
     gap narrowing, dopant ionisation and equilibrium carrier statistics."""
 
+    # ------------------------------------------------------------------ undoped
     def band_gap(self, temperature):
         """Fundamental (indirect) band gap of undoped silicon, eV; no narrowing."""
         return self._quantity("band_gap", temperature=temperature)
@@ -23,3 +184,215 @@ class CarrierMethods:
     def intrinsic_density(self, temperature):
         """Intrinsic carrier density of undoped silicon (no gap narrowing), cm^-3."""
         return self._quantity("intrinsic_density", temperature=temperature)
+
+    # ------------------------------------------------------------------ plumbing
+    def _carriers(self) -> _Bound:
+        bound = self.__dict__.get("_bound_carriers")
+        if bound is None:
+            bound = self.__dict__["_bound_carriers"] = _Bound(self)
+        return bound
+
+    def _inputs(self, **named):
+        """Coerce user arguments (``T``, ``Na``, ``Nd``, ``n``, ``p`` ...) and check that
+        they broadcast; returns ``{kernel input name: (array, min, max)}``."""
+        kernel_names = {"temperature": "temperature", "Na": "acceptor_density",
+                        "Nd": "donor_density", "n": "electron_density",
+                        "p": "hole_density", "excess": "excess_density"}
+        prepared = {kernel_names[name]: coerce(value, name)
+                    for name, value in named.items() if value is not None}
+        try:
+            np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
+        except ValueError:
+            shapes = ", ".join(f"{name} {np.shape(coerce(value, name)[0])}"
+                               for name, value in named.items() if value is not None)
+            raise InputError(", ".join(n for n, v in named.items() if v is not None),
+                             "arrays whose shapes broadcast together", shapes) from None
+        return prepared
+
+    def _check_statistics(self, statistics, bound: _Bound) -> bool:
+        """True for Fermi-Dirac; warns when the narrowing was fitted with other statistics."""
+        if statistics is None:
+            statistics = bound.statistics
+        if statistics not in STATISTICS:
+            raise InputError("statistics", f"one of {', '.join(STATISTICS)} or None "
+                             "(the narrowing model's own)", repr(statistics))
+        if bound.apparent and statistics != bound.statistics:
+            message = (f"model gap_narrowing/{bound.narrowing.id} is an apparent narrowing "
+                       f"fitted with {bound.statistics} statistics; combined with "
+                       f"{statistics} statistics it counts degeneracy twice")
+            if self.strict:
+                raise ValidityError(message)
+            warn(message, ValidityWarning)
+        return statistics == "fermi-dirac"
+
+    def _check_dopants(self, prepared, donor, acceptor):
+        """Validity of the ionisation models for the dopant densities given."""
+        ionisation = self._carriers().ionisation
+        for species, key in ((donor, "donor_density"), (acceptor, "acceptor_density")):
+            _, low, high = prepared[key]
+            ionisation.select(species).check("dopant_density", low, high, self.strict)
+
+    def _solve(self, temperature, Na, Nd, donor, acceptor, statistics):
+        donor = dopant_species(donor, "donor", "donor")
+        acceptor = dopant_species(acceptor, "acceptor", "acceptor")
+        bound = self._carriers()
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
+        fermi_dirac = self._check_statistics(statistics, bound)
+        t, low, high = prepared["temperature"]
+        for quantity_name in ("densities_of_states", "intrinsic_density"):
+            self.model(quantity_name).check("temperature", low, high, self.strict)
+        for argument in bound.narrowing.inputs:
+            if argument in prepared:
+                bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+        self._check_dopants(prepared, donor, acceptor)
+        result = bound.equilibrium(t, prepared["donor_density"][0],
+                                   prepared["acceptor_density"][0], donor, acceptor,
+                                   fermi_dirac)
+        return result, donor, acceptor, fermi_dirac
+
+    # ------------------------------------------------------------------ narrowing
+    def band_edge_shifts(self, temperature, Na=0, Nd=0, n=None, p=None, *,
+                         donor="phosphorus", acceptor="boron"):
+        """Shifts ``(dEc, dEv)`` of the conduction- and valence-band edges, eV (>= 0).
+
+        ``Na``, ``Nd``: total acceptor and donor densities, cm^-3. ``n``, ``p``: free
+        electron and hole densities, cm^-3, for a narrowing that depends on them
+        (Schenk's); when omitted, the equilibrium densities (self-consistent). An
+        apparent narrowing has no physical split: it is given in equal halves.
+        """
+        bound = self._carriers()
+        if bound.uses_carriers and (n is None or p is None):
+            if n is not None or p is not None:
+                raise InputError("n" if n is None else "p", "given together with "
+                                 f"{'p' if n is None else 'n'} (or both omitted)", None)
+            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
+            dec, dev = result["conduction_edge_shift"], result["valence_edge_shift"]
+        else:
+            prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
+            dec, dev = self._call(bound.narrowing, prepared)
+            if not bound.uses_carriers:  # broadcast to every argument's shape
+                shape = np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
+                dec, dev = np.broadcast_to(dec, shape), np.broadcast_to(dev, shape)
+        return quantity(np.asarray(dec, float), "eV"), quantity(np.asarray(dev, float), "eV")
+
+    def gap_narrowing(self, temperature, Na=0, Nd=0, n=None, p=None, *,
+                      donor="phosphorus", acceptor="boron"):
+        """Band-gap narrowing, eV (>= 0): the sum of :meth:`band_edge_shifts`.
+
+        For an apparent narrowing this is the published dEg (to be used with the
+        intrinsic density it was fitted with, see :meth:`effective_intrinsic_density`).
+        """
+        dec, dev = self.band_edge_shifts(temperature, Na, Nd, n, p, donor=donor,
+                                         acceptor=acceptor)
+        return dec + dev
+
+    def effective_intrinsic_density(self, temperature, Na=0, Nd=0, n=None, p=None, *,
+                                    donor="phosphorus", acceptor="boron"):
+        """Effective intrinsic density ``ni_eff = ni exp(dEg / 2kT)``, cm^-3.
+
+        Composed from the release's intrinsic density and gap narrowing (its
+        provenance names both and says how they were combined, see the module
+        notes). ``n``, ``p`` as in :meth:`band_edge_shifts`.
+        """
+        bound = self._carriers()
+        if bound.uses_carriers and (n is None or p is None):
+            if n is not None or p is not None:
+                raise InputError("n" if n is None else "p", "given together with "
+                                 f"{'p' if n is None else 'n'} (or both omitted)", None)
+            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
+            n, p = result["electron_density"], result["hole_density"]
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
+        self.model("intrinsic_density").check("temperature", *prepared["temperature"][1:],
+                                              self.strict)
+        for argument in bound.narrowing.inputs:
+            bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+        arrays = {k: v[0] for k, v in prepared.items()}
+        value = bound.effective_intrinsic_density(
+            arrays["temperature"], arrays.get("donor_density", 0.0),
+            arrays.get("acceptor_density", 0.0), arrays.get("electron_density"),
+            arrays.get("hole_density"))
+        shape = np.broadcast_shapes(*(a.shape for a in arrays.values()))
+        return quantity(np.broadcast_to(value, shape).astype(float), "cm^-3")
+
+    # ------------------------------------------------------------------ dopants
+    def dopant_level(self, N, dopant="phosphorus"):
+        """``(ionisation energy [eV], share of states still localised [1])`` of a dopant
+        at total density ``N`` (cm^-3); the rest of its states has merged into the band."""
+        species = dopant_species(dopant, "dopant")
+        model = self.model("ionisation").select(species)
+        array, low, high = coerce(N, "N")
+        model.check("dopant_density", low, high, self.strict)
+        energy, share = model(dopant_density=array)
+        return quantity(np.asarray(energy, float), "eV"), quantity(np.asarray(share, float),
+                                                                    "dimensionless")
+
+    def ionisation_energy(self, N, dopant="phosphorus"):
+        """Ionisation energy of a dopant at total density ``N`` (cm^-3), eV."""
+        return self.dopant_level(N, dopant)[0]
+
+    # ------------------------------------------------------------------ equilibrium
+    def equilibrium(self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron",
+                    statistics=None) -> Equilibrium:
+        """Thermal-equilibrium carriers of doped silicon, with incomplete ionisation.
+
+        Parameters
+        ----------
+        temperature : K (or a pint quantity);  Na, Nd : total acceptor and donor
+            densities, cm^-3; arrays broadcast
+        donor, acceptor : dopant species (``"phosphorus"``, ``"arsenic"``, ...;
+            ``"boron"``, ...) whose ionisation model applies
+        statistics : ``"fermi-dirac"``, ``"boltzmann"`` or None (the statistics the
+            narrowing model goes with: Fermi-Dirac for a physical narrowing,
+            Boltzmann for an apparent one)
+
+        Returns
+        -------
+        :class:`Equilibrium` (Fermi level with its references, n0, p0, ionised dopant
+        densities, the narrowing and effective intrinsic density used, provenance).
+        Every point meets charge neutrality to 1e-12 relative, or
+        :class:`matprops.SolverError` names the points that did not converge.
+        """
+        result, donor, acceptor, fermi_dirac = self._solve(temperature, Na, Nd, donor,
+                                                           acceptor, statistics)
+        bound = self._carriers()
+        t = result["temperature"]
+        kt = BOLTZMANN_EV * t
+        dec, dev = result["conduction_edge_shift"], result["valence_edge_shift"]
+        ni_eff = (bound.ni(temperature=t) * bound.reference_ratio()
+                  * np.exp((dec + dev) / (2.0 * kt)))
+        statistics = "fermi-dirac" if fermi_dirac else "boltzmann"
+        provenance = self.provenance("equilibrium")
+        provenance["statistics"] = statistics
+        provenance["species"] = {"donor": donor, "acceptor": acceptor}
+        return Equilibrium(
+            temperature=quantity(t, "K"),
+            fermi_level=quantity(result["fermi_from_intrinsic"], "eV"),
+            fermi_level_from_conduction_edge=quantity(result["fermi_from_conduction_edge"],
+                                                      "eV"),
+            fermi_level_from_valence_edge=quantity(result["fermi_from_valence_edge"], "eV"),
+            electron_density=quantity(result["electron_density"], "cm^-3"),
+            hole_density=quantity(result["hole_density"], "cm^-3"),
+            ionised_donors=quantity(result["ionised_donors"], "cm^-3"),
+            ionised_acceptors=quantity(result["ionised_acceptors"], "cm^-3"),
+            gap_narrowing=quantity(dec + dev, "eV"),
+            conduction_edge_shift=quantity(dec, "eV"),
+            valence_edge_shift=quantity(dev, "eV"),
+            effective_intrinsic_density=quantity(ni_eff, "cm^-3"),
+            statistics=statistics, donor=donor, acceptor=acceptor, provenance=provenance)
+
+    def _composition_note(self, name: str) -> str | None:
+        """How the narrowing was composed with the intrinsic density (for provenance)."""
+        if name not in ("effective_intrinsic_density", "equilibrium"):
+            return None
+        bound = self._carriers()
+        if bound.apparent:
+            section = bound.narrowing.extra["narrowing"]
+            fitted = section["intrinsic_density"]
+            return (f"apparent narrowing {bound.narrowing.id} composed with the intrinsic "
+                    f"density it was fitted with: ni(T) x [{fitted.value:g} cm^-3 / "
+                    f"ni({section['intrinsic_density_temperature']:g} K) = "
+                    f"{bound.reference_ratio():.6g}] x exp(dEg/2kT), ni from "
+                    f"{bound.ni.id}; default statistics {bound.statistics}")
+        return (f"physical narrowing {bound.narrowing.id} composed with the release's "
+                f"intrinsic density {bound.ni.id} as it is; default statistics "
+                f"{bound.statistics}")
