@@ -115,6 +115,8 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
             array, low, high = coerce(raw, argument)
             model.check(argument, low, high, self.strict)
             values[argument] = array
+        if model.regions:
+            model.check_regions(values, self.strict)
         return model(**values), model.output_units
 
     def _quantity(self, name: str, **arguments):
