@@ -50,12 +50,14 @@ from .errors import (
     warn,
 )
 from .kernels import module_for
+from .regions import Region, parse_regions
 
 __all__ = [
     "Catalog",
     "Coefficient",
     "Model",
     "Range",
+    "Region",
     "Release",
     "Source",
     "datasets_root",
@@ -67,6 +69,12 @@ MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 RELEASE_ID = re.compile(r"^\d{4}\.\d+$")
 KINDS = ("closed-form", "table", "composed")
 SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi")
+# Required fields of each kind of source record (``type`` in the file; default "article").
+SOURCE_TYPES = {
+    "article": SOURCE_FIELDS,
+    "book": ("authors", "year", "title", "publisher", "doi"),
+}
+BOOK_FIELDS = ("publisher", "edition", "address", "pages")
 
 
 def datasets_root() -> Path:
@@ -89,7 +97,11 @@ def sha256_of(path: Path) -> str:
 
 @dataclass(frozen=True)
 class Source:
-    """A bibliographic record of the publication a model comes from."""
+    """A bibliographic record of the publication a model comes from.
+
+    ``type`` is ``"article"`` (journal, volume, pages) or ``"book"`` (publisher,
+    optional edition, address and pages); it decides the BibTeX entry type.
+    """
 
     authors: tuple[str, ...]
     year: int
@@ -98,10 +110,19 @@ class Source:
     volume: str
     pages: str
     doi: str
+    type: str = "article"
+    publisher: str = ""
+    edition: str = ""
+    address: str = ""
 
     def citation(self) -> str:
         authors = ", ".join(self.authors)
         doi = f", doi:{self.doi}" if self.doi else ""
+        if self.type == "book":
+            edition = f", {self.edition} edition" if self.edition else ""
+            place = f"{self.publisher}, {self.address}" if self.address else self.publisher
+            pages = f", pp. {self.pages}" if self.pages else ""
+            return f"{authors}, {self.title}{edition} ({place}, {self.year}){pages}{doi}"
         return (f"{authors}, \"{self.title}\", {self.journal} {self.volume}, "
                 f"{self.pages} ({self.year}){doi}")
 
@@ -109,13 +130,17 @@ class Source:
         def esc(text):
             return str(text).replace("{", "").replace("}", "")
 
-        lines = [f"@article{{{key},",
+        lines = [f"@{self.type}{{{key},",
                  f"  author = {{{' and '.join(esc(a) for a in self.authors)}}},",
-                 f"  title = {{{{{esc(self.title)}}}}},",
-                 f"  journal = {{{esc(self.journal)}}},",
-                 f"  volume = {{{esc(self.volume)}}},",
-                 f"  pages = {{{esc(self.pages)}}},",
-                 f"  year = {{{self.year}}},"]
+                 f"  title = {{{{{esc(self.title)}}}}},"]
+        if self.type == "book":
+            fields = [("edition", self.edition), ("publisher", self.publisher),
+                      ("address", self.address), ("pages", self.pages)]
+        else:
+            fields = [("journal", self.journal), ("volume", self.volume),
+                      ("pages", self.pages)]
+        lines += [f"  {name} = {{{esc(value)}}}," for name, value in fields if value]
+        lines.append(f"  year = {{{self.year}}},")
         if self.doi:
             lines.append(f"  doi = {{{esc(self.doi)}}},")
         lines.append("}")
@@ -130,9 +155,15 @@ class Source:
         return f"{re.sub(r'[^a-z]', '', ascii_name.lower())}-{self.year}"
 
     def as_dict(self) -> dict:
-        return {"authors": list(self.authors), "year": self.year, "title": self.title,
-                "journal": self.journal, "volume": self.volume, "pages": self.pages,
-                "doi": self.doi}
+        record = {"type": self.type, "authors": list(self.authors), "year": self.year,
+                  "title": self.title}
+        if self.type == "book":
+            record.update({k: getattr(self, k) for k in BOOK_FIELDS if getattr(self, k)})
+        else:
+            record.update({"journal": self.journal, "volume": self.volume,
+                           "pages": self.pages})
+        record["doi"] = self.doi
+        return record
 
 
 @dataclass(frozen=True)
@@ -212,6 +243,8 @@ class Model:
     variant: str | None = None
     # quantity-specific sections of the model file (e.g. ``narrowing``), validated
     extra: Mapping[str, Any] = field(default_factory=dict)
+    # validity limits of one input that depend on another (see matprops.regions)
+    regions: tuple[Region, ...] = ()
 
     def select(self, variant: str) -> Model:
         """The model bound to one coefficient set (a dopant species or a carrier)."""
@@ -285,6 +318,19 @@ class Model:
         for component in self.components.values():
             component.check(argument, low, high, strict)
 
+    def check_regions(self, values: Mapping[str, Any], strict: bool = False) -> None:
+        """Warn (or raise) where inputs leave a validity region of several inputs.
+
+        ``values`` maps input names to arrays in kernel units (broadcast together).
+        """
+        for region in self.regions:
+            message = region.violation(values, f"{self.quantity}/{self.id}")
+            if message is None:
+                continue
+            if strict:
+                raise ValidityError(message)
+            warn(message, ValidityWarning)
+
     # -- provenance
     def provenance(self) -> dict:
         """Everything a modeller needs to trace this model's numbers."""
@@ -298,6 +344,7 @@ class Model:
             "source": self.source.as_dict(),
             "validity": {k: {"min": r.low, "max": r.high, "units": r.units}
                          for k, r in self.validity.items()},
+            "validity_regions": [r.as_dict() for r in self.regions],
             "obtained": self.obtained,
             "notes": self.notes,
             "coefficients": {k: c.as_dict() for k, c in self.coefficients.items()},
@@ -628,11 +675,20 @@ def _resolve_kernel(path, reference: str):
 def _source(path, src, where: str) -> Source:
     if not isinstance(src, dict):
         raise DatasetError(path, f"{where.rstrip('.')} must be a table of source fields")
-    for f in SOURCE_FIELDS:
+    kind = src.get("type", "article")
+    if kind not in SOURCE_TYPES:
+        raise DatasetError(path, f"field '{where}type' must be one of "
+                           f"{', '.join(SOURCE_TYPES)}, got {kind!r}")
+    for f in SOURCE_TYPES[kind]:
         _require(path, src, f, where=where)
     authors = src["authors"]
     if not isinstance(authors, list) or not authors:
         raise DatasetError(path, f"field '{where}authors' must be a non-empty list")
+    if kind == "book":
+        return Source(tuple(authors), int(src["year"]), str(src["title"]), "", "",
+                      str(src.get("pages", "")), str(src["doi"]), type="book",
+                      publisher=str(src["publisher"]), edition=str(src.get("edition", "")),
+                      address=str(src.get("address", "")))
     return Source(tuple(authors), int(src["year"]), str(src["title"]), str(src["journal"]),
                   str(src["volume"]), str(src["pages"]), str(src["doi"]))
 
@@ -697,7 +753,8 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
                   requires=requires, additional_sources=additional_sources,
                   fallback=fallback, table=table,
                   table_arguments=MappingProxyType(table_arguments),
-                  variant_axis=variant_axis, extra=MappingProxyType(extra))
+                  variant_axis=variant_axis, extra=MappingProxyType(extra),
+                  regions=parse_regions(path, data, spec))
 
     def bind(coefficients):
         _check_complete(path, data["kernel"], spec, set(coefficients) | set(table_arguments))

@@ -155,6 +155,8 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
             array, low, high = prepared[argument]
             model.check(argument, low, high, self.strict)
             values[argument] = array
+        if model.regions:
+            model.check_regions(values, self.strict)
         return model(**values)
 
     def _quantity(self, name: str, **arguments):

@@ -44,6 +44,8 @@ def render(catalog: Catalog | None = None) -> str:
                 lines.append(f"- also: {extra.citation()}")
             if model.validity:
                 lines.append("- validity: " + "; ".join(str(r) for r in model.validity.values()))
+            for region in model.regions:
+                lines.append(f"- validity region: {region} ({region.reason})")
             if model.requires:
                 lines.append(f"- composed from: {', '.join(model.requires)} (the material's choice)")
             if model.table:

@@ -2,9 +2,17 @@
 
 Each release ``datasets/releases/<id>.toml`` has a companion
 ``<id>.reference.json``: its models evaluated through the public API on a fixed
-grid, plus the sha256 of every model file it pinned. Tests re-evaluate and
-compare to 1e-12 relative, so a change of code or data that moves a released
-number cannot pass unnoticed.
+grid and, for every table model, at every stored point of its table (each
+tabulated wavelength at each tabulated temperature); a digest of the numbers of
+every table file its models read; and the sha256 of every model file it pinned.
+Tests re-evaluate and compare to 1e-12 relative and recompute the digests, so a
+change of code or data that moves a released number cannot pass unnoticed, not
+even at a wavelength between the points of the fixed grid.
+
+The table digest covers the decoded numbers (every variable's name, units, shape
+and float64 values), not the file bytes: netCDF files record library versions in
+hidden attributes, so a rebuild with other library versions changes the bytes
+but not the numbers.
 
 While a release is a draft, its reference may be regenerated deliberately (and
 the diff reviewed in the commit)::
@@ -16,6 +24,7 @@ Once its status is ``final`` the command refuses: corrections make a new release
 
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 import warnings
@@ -26,7 +35,7 @@ import numpy as np
 from .catalog import Catalog, default_catalog, sha256_of
 from .errors import ReleaseFrozenError
 
-__all__ = ["CASES", "compare", "evaluate", "regenerate"]
+__all__ = ["CASES", "compare", "evaluate", "regenerate", "table_digest"]
 
 TEMPERATURES = [50.0, 77.0, 150.0, 200.0, 233.15, 250.0, 273.15, 298.15, 300.0,
                 350.0, 400.0, 473.15, 500.0, 600.0]
@@ -55,8 +64,8 @@ CASES = [
     ("refractive_index", "refractive_index", {},
      {"wavelength": WAVELENGTHS, "temperature": OPTICAL_TEMPERATURES}),
     ("free_carrier_absorption", "free_carrier_absorption", {},
-     {"wavelength": [1000.0, 1300.0, 1450.0, 1550.0, 2000.0], "n": [0.0, 1e16],
-      "p": [0.0, 1e16]}),
+     {"wavelength": [1000.0, 1300.0, 1450.0, 1550.0, 2000.0, 5000.0],
+      "n": [0.0, 1e16, 1e19], "p": [0.0, 1e16, 1e19]}),
 ]
 
 
@@ -66,10 +75,50 @@ def _needs(method: str) -> tuple[str, ...]:
     return DERIVED[method][0] if method in DERIVED else (method,)
 
 
+def _table_cases(si) -> list:
+    """One case per table model: every stored wavelength (inside the model's range)
+    at every stored temperature of its tables (or its validity limits if its table
+    holds one temperature)."""
+    cases = []
+    for quantity, model in sorted(si._models.items()):
+        if model.kind != "table":
+            continue
+        arrays = {name: si.catalog.table_arrays(name) for name in model.tables}
+        wavelength = arrays[model.table]["wavelength"][0]
+        rng = model.validity.get("wavelength")
+        if rng is not None:
+            wavelength = wavelength[(wavelength >= rng.low) & (wavelength <= rng.high)]
+        temperatures = sorted({float(t) for data in arrays.values()
+                               if "temperature" in data for t in data["temperature"][0]})
+        if not temperatures:
+            t = model.validity["temperature"]
+            temperatures = [t.low, t.high]
+        cases.append((f"{quantity}_stored_points", quantity, {},
+                      {"wavelength": [float(w) for w in wavelength],
+                       "temperature": temperatures}))
+    return cases
+
+
+def table_digest(arrays) -> str:
+    """sha256 of a table's numbers: every variable's name, units, shape and values."""
+    h = hashlib.sha256()
+    for name in sorted(arrays):
+        values, units = arrays[name]
+        values = np.ascontiguousarray(values, dtype="<f8")
+        h.update(f"{name}|{units}|{values.shape}|".encode())
+        h.update(values.tobytes())
+    return h.hexdigest()
+
+
+def _table_digests(si) -> dict:
+    names = sorted({name for model in si._models.values() for name in model.tables})
+    return {name: table_digest(si.catalog.table_arrays(name)) for name in names}
+
+
 def evaluate(si) -> dict:
     """Evaluate every reference case that ``si``'s release serves."""
     cases = {}
-    for label, method, fixed, grid in CASES:
+    for label, method, fixed, grid in CASES + _table_cases(si):
         if not all(q in si.models for q in _needs(method)):
             continue
         names = list(grid)
@@ -103,7 +152,7 @@ def regenerate(release_id: str, catalog: Catalog | None = None) -> Path:
                                  "never change; make a new release instead")
     si = Silicon(release=release_id, catalog=catalog)
     content = {"release": release_id, "model_files": _model_files(si),
-               "cases": evaluate(si)}
+               "table_digests": _table_digests(si), "cases": evaluate(si)}
     target = release.reference_path
     tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")
     tmp.write_text(json.dumps(content, indent=1, ensure_ascii=False) + "\n")
@@ -122,6 +171,15 @@ def compare(release_id: str, catalog: Catalog | None = None, rtol: float = 1e-12
     si = Silicon(release=release_id, catalog=catalog)
     fresh = evaluate(si)
     problems = []
+    frozen_digests = frozen.get("table_digests")
+    if frozen_digests is None:
+        problems.append("the frozen reference has no table digests (regenerate it)")
+    else:
+        fresh_digests = _table_digests(si)
+        for name in sorted(set(frozen_digests) | set(fresh_digests)):
+            if frozen_digests.get(name) != fresh_digests.get(name):
+                problems.append(f"table {name}: its numbers differ from the frozen reference "
+                                "(or it was added or dropped)")
     for label, case in frozen["cases"].items():
         if label not in fresh:
             problems.append(f"{label}: no longer evaluated")

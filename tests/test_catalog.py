@@ -16,7 +16,9 @@ def test_every_model_file_loads_with_source_and_origin(quantity, model_id):
     model = default_catalog().model(quantity, model_id)
     record = model.provenance()
     assert record["source"]["authors"] and record["source"]["year"] > 1900
-    assert record["source"]["title"] and record["source"]["journal"]
+    source = record["source"]
+    assert source["title"] and (source["journal"] if source["type"] == "article"
+                                else source["publisher"])
     assert len(record["obtained"]) > 40  # says how the numbers were obtained
     assert record["sha256"]
     assert model_id in repr(model)
@@ -44,10 +46,31 @@ def test_cite_bibtex_lists_every_source_once(si):
         record = si.provenance(quantity)
         dois.add(record["doi"])
         dois.update(s["doi"] for s in record.get("additional_sources", []))
-    assert text.count("@article{") == len(dois)
+    assert text.count("@article{") + text.count("@book{") == len(dois)
     for doi in dois:
         assert text.count(f"doi = {{{doi}}}") == 1
     assert "@article{franta-2017," in text  # a combined model cites both its sources
+
+
+def test_a_book_is_cited_as_a_book():
+    si = matprops.silicon(models={"intrinsic_density": "boltzmann"})
+    text = si.cite(quantities=["intrinsic_density"])
+    assert "@book{sze-2007," in text and "publisher = {Wiley-Interscience}" in text
+    assert "journal" not in text.split("@book{sze-2007,")[1].split("}\n")[0]
+    record = si.provenance("intrinsic_density")["source"]
+    assert record["type"] == "book" and "journal" not in record
+
+
+def test_obtained_fields_are_traceable():
+    # every coefficient's origin names a document, a secondary source, or says "recalled";
+    # never an anonymous "public source code"
+    catalog = default_catalog()
+    for quantity, model_id in all_models():
+        obtained = catalog.model(quantity, model_id).obtained.lower()
+        assert "public source code" not in obtained
+        assert any(word in obtained for word in ("recalled", "read in", "transcribed",
+                                                 "tabulated values", "no coefficients",
+                                                 "combination", "abstract")), model_id
 
 
 def test_model_as_xarray_dataset(si):
@@ -104,6 +127,44 @@ def test_incomplete_or_wrong_file_names_file_and_field(datasets_copy, old, new, 
     with pytest.raises(matprops.DatasetError, match=message) as info:
         catalog.model("band_gap", "thurmond-1975")
     assert "thurmond-1975.toml" in str(info.value)
+
+
+@pytest.mark.parametrize("edit, message", [
+    (('[source]\n', '[source]\ntype = "thesis"\n'), r"source.type' must be one of article, book"),
+    (('journal = "Journal of the Electrochemical Society"\n', 'type = "book"\n'),
+     r"missing required field source.'publisher'"),
+])
+def test_source_type_is_checked(datasets_copy, edit, message):
+    root, catalog = datasets_copy
+    _rewrite(root, "models/band_gap/thurmond-1975.toml", *edit)
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=message):
+        catalog.model("band_gap", "thurmond-1975")
+
+
+REGION = """
+[[validity_region]]
+input = "temperature"
+limit = "max"
+varies_with = "{by}"
+points = {points}
+units = ["nm", "K"]
+reason = "a test"
+"""
+
+
+@pytest.mark.parametrize("by, points, message", [
+    ("wavelength", "[[900, 300], [800, 400]]", r"the wavelength values must increase"),
+    ("pressure", "[[900, 300], [1000, 400]]", r"the kernel has no input 'pressure'"),
+    ("wavelength", "[[900, 300]]", r"at least two"),
+])
+def test_validity_region_is_checked(datasets_copy, by, points, message):
+    root, catalog = datasets_copy
+    path = root / "models/absorption/rajkanan-1979.toml"
+    path.write_text(path.read_text() + REGION.format(by=by, points=points))
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=message):
+        catalog.model("absorption", "rajkanan-1979")
 
 
 def test_missing_checksum_list_is_refused(datasets_copy):

@@ -30,15 +30,10 @@ def test_thermal_expansion_near_room_temperature(si):
     assert alpha == pytest.approx(2.6e-6, rel=0.05)
 
 
-def test_density_against_periodictable_and_handbook(si):
-    rho = si.density(298.15).m_as("g/cm^3")
-    # 2.329 g/cm^3: common practice
-    assert rho == pytest.approx(2.329, abs=1e-3)
-    # element-data library: periodictable's silicon density (2.33, rounded) and mass
-    assert rho == pytest.approx(periodictable.Si.density, abs=0.005)
-    a = si.lattice_constant(298.15).m_as("cm")
-    from_library = 8 * periodictable.Si.mass / (scipy.constants.Avogadro * a**3)
-    assert rho == pytest.approx(from_library, rel=1e-4)
+def test_density_against_the_handbook_value(si):
+    # 2.329 g/cm^3 at room temperature: common practice, printed to four significant
+    # figures, so the model must round to it (half a unit of the last figure)
+    assert si.density(298.15).m_as("g/cm^3") == pytest.approx(2.329, abs=5e-4)
 
 
 def test_molar_mass_against_periodictable(si):

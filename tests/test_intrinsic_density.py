@@ -59,34 +59,15 @@ def test_boltzmann_composition_names_both_inputs():
     assert si.intrinsic_density(300).m_as("cm^-3") == pytest.approx(9.65e9, rel=0.02)
 
 
-def test_boltzmann_follows_the_chosen_gap():
-    # ni ~ exp(-Eg/2kT): a gap 1 meV larger lowers ni by exp(-0.001/(2kT)) = 1.9 % at 300 K
-    a = matprops.silicon(models={"intrinsic_density": "boltzmann", "band_gap": "passler-2002"})
-    b = matprops.silicon(models={"intrinsic_density": "boltzmann", "band_gap": "thurmond-1975"})
-    d_gap = (b.band_gap(300) - a.band_gap(300)).m_as("eV")
-    kT = 8.617333262e-5 * 300
-    ratio = (b.intrinsic_density(300) / a.intrinsic_density(300)).m_as("")
-    assert ratio == pytest.approx(np.exp(-d_gap / (2 * kT)), rel=1e-12)
-
-
 def test_green_1990_densities_of_states_at_300K():
     # Green 1990, J. Appl. Phys. 67, 2944: Nc = 2.86e19, Nv = 3.10e19 cm^-3 at 300 K
-    # (seen in a textbook appendix); m_e = 1.09 m0, m_h = 1.15 m0
+    # (seen in a textbook appendix; the same in Genius TCAD Open's
+    # src/material/Si/Si_band_default.cc). Printed to three significant figures: the
+    # model must round to them (half a unit of the last figure, 0.005e19).
     si = matprops.silicon(models={"densities_of_states": "green-1990"})
     nc, nv = si.densities_of_states(300)
-    assert nc.m_as("cm^-3") == pytest.approx(2.86e19, rel=0.005)
-    assert nv.m_as("cm^-3") == pytest.approx(3.10e19, rel=0.005)
-
-
-def test_couderc_masses_agree_with_couderc_intrinsic_prefactor():
-    # Couderc, Amara & Lemiti 2014 (J. Appl. Phys. 115, 093705) publish both the mass
-    # polynomials and ni = 1.541e15 T^1.712 exp(-Eg/2kT); sqrt(Nc Nv) must match the
-    # prefactor within 1 % over 200-500 K (two printed expressions of one paper)
-    si = matprops.silicon()
-    t = np.linspace(200, 500, 31)
-    nc, nv = si.densities_of_states(t)
-    product = np.sqrt(nc.m_as("cm^-3") * nv.m_as("cm^-3"))
-    np.testing.assert_allclose(product, 1.541e15 * t**1.712, rtol=0.01)
+    assert nc.m_as("cm^-3") == pytest.approx(2.86e19, abs=0.005e19)
+    assert nv.m_as("cm^-3") == pytest.approx(3.10e19, abs=0.005e19)
 
 
 def test_densities_of_states_grow_as_T_to_the_3_halves_roughly(si):

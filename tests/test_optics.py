@@ -5,8 +5,9 @@ import warnings
 
 import numpy as np
 import pytest
-from hypothesis import given, settings
+from hypothesis import assume, given, settings
 from hypothesis import strategies as st
+from outside_data import green_2008_copy, green_temperature_ratio
 
 import matprops
 from matprops import optics
@@ -27,13 +28,15 @@ def quiet(function, *args):
 
 def test_green_2008_against_schinke_2015():
     # Two independent measurements: Green 2008 (Sol. Energ. Mater. Sol. Cells 92, 1305;
-    # 300 K) and Schinke et al. 2015 (AIP Advances 5, 067168; 295 K). At 400-1150 nm
-    # they agree within 15 %; the largest spread, 13 % at 470 nm, is Schinke above
-    # Green (Schinke's stated uncertainty near 600 nm is 11 %).
+    # 300 K) and Schinke et al. 2015 (AIP Advances 5, 067168; 295 K). Schinke et al.
+    # state relative uncertainties of alpha of 11 % at 600 nm and 12 % at 1200 nm
+    # (abstract); Green states none. Taking Green's uncertainty as comparable to
+    # Schinke's (an assumption), the difference of the two independent measurements has
+    # a standard uncertainty of 11 % x sqrt(2) = 16 %: they must agree within that.
     lam = np.arange(400.0, 1151.0, 10.0)
     green = absorption("green-2008", lam)
     schinke = quiet(absorption, "schinke-2015", lam, 300.0)
-    assert np.max(np.abs(schinke / green - 1)) < 0.15
+    assert np.max(np.abs(schinke / green - 1)) < 0.11 * np.sqrt(2)
 
 
 def test_common_practice_values_at_300K(si):
@@ -57,55 +60,41 @@ def test_direct_gap_edge():
     assert absorption("green-2008", 350.0) / absorption("green-2008", 400.0) > 8
 
 
-def test_green_2008_printed_values():
-    # Green 2008, Table 1 (300 K), as transcribed in the open refractive-index database
-    # (CC0): alpha = 1.11e4, 4.14e3, 1.90e3, 850, 64, 3.5 /cm at 500, 600, 700, 800,
-    # 1000, 1100 nm (the 600 and 700 nm values here are from memory: the database's
-    # rounded k gives 4.17e3 and 1.89e3)
-    lam = [500.0, 600.0, 700.0, 800.0, 1000.0, 1100.0]
-    printed = [1.11e4, 4.14e3, 1.90e3, 850.0, 64.0, 3.5]
-    np.testing.assert_allclose(absorption("green-2008", lam), printed, rtol=0.01)
+def test_green_2008_table_matches_an_independent_copy():
+    # Outside check of the committed table (built from the open refractive-index
+    # database): Green 2008's Table 1 as transcribed independently in the source of the
+    # device simulator Genius TCAD Open (tests/data; its header names the file). The
+    # printed alpha has three significant figures, so the two may differ by half a unit
+    # of the third figure (0.5 %); n is printed to three decimals (half a unit: 0.0005).
+    lam, alpha, n, _, _ = green_2008_copy()
+    table = matprops.catalog.default_catalog().table("green-2008.nc")
+    np.testing.assert_array_equal(table.wavelength.values, lam)
+    np.testing.assert_allclose(table.absorption_coefficient.values, alpha, rtol=0.005)
+    np.testing.assert_allclose(table.refractive_index.values, n, rtol=0, atol=0.0005)
+    np.testing.assert_allclose(quiet(absorption, "green-2008", lam), alpha, rtol=0.005)
 
 
-def test_rajkanan_against_green_2008():
-    # Rajkanan, Singh & Shewchun 1979 (Solid-State Electron. 22, 793) fitted the data
-    # of their day; against Green 2008 at 300 K it runs 14-57 % high at 450-1050 nm
-    # (a known spread, noted in the model file). The authors' own accuracy claim could
-    # not be looked up here; this checks the model stays within a factor 1.6 of modern
-    # data over 1.18-2.76 eV, and within 10 % near the 400-nm crossing.
-    lam = np.arange(450.0, 1051.0, 25.0)
-    ratio = absorption("rajkanan-1979", lam) / absorption("green-2008", lam)
-    assert np.all((ratio > 0.9) & (ratio < 1.6))
-    assert absorption("rajkanan-1979", 400.0) / absorption("green-2008", 400.0) == \
-        pytest.approx(1.0, abs=0.1)
-
-
-def test_temperature_dependence_against_an_independent_model():
-    # The default (Green 2008 scaled by Franta et al. 2017, Appl. Surf. Sci. 421, 405)
-    # against the independent temperature dependence of Rajkanan et al. 1979: the
-    # ratio alpha(T)/alpha(300 K) agrees within 12 % at 600-1050 nm for 250-400 K.
+def test_temperature_dependence_against_green_2008_coefficients():
+    # Outside check: Green 2008 publishes temperature coefficients C(lambda) of alpha,
+    # here as transcribed in Genius TCAD Open (tests/data) and applied as there,
+    # alpha(T) = alpha(300 K) (T/300 K)^(300 K C). Near room temperature (250-350 K) and
+    # where band-to-band absorption is strong (500-1050 nm), the default's ratio
+    # alpha(T)/alpha(300 K) must agree with Green's within the spread between independent
+    # determinations: the largest difference between Green's coefficients and the
+    # independent temperature dependence of Rajkanan et al. 1979 at the same points.
+    lam = np.arange(500.0, 1051.0, 10.0)
     si = matprops.silicon()
-    lam = np.arange(600.0, 1051.0, 50.0)
     raj = matprops.silicon(models={"absorption": "rajkanan-1979"})
-    for t in (250.0, 350.0, 400.0):
-        ours = (si.absorption(lam, t) / si.absorption(lam, 300.0)).m_as("")
-        theirs = (raj.absorption(lam, t) / raj.absorption(lam, 300.0)).m_as("")
-        np.testing.assert_allclose(ours, theirs, rtol=0.12)
-
-
-def test_band_edge_rises_with_temperature_like_published_series():
-    # near the edge alpha roughly doubles from 300 to 350 K at 1050 nm and halves from
-    # 300 to 250 K (Franta et al. 2017 series; Rajkanan et al. 1979: x1.75 and x0.53)
-    si = matprops.silicon()
-    a = si.absorption(1050.0, [250.0, 300.0, 350.0]).m_as("1/cm")
-    assert 1.5 < a[2] / a[1] < 2.2
-    assert 0.4 < a[0] / a[1] < 0.6
-
-
-def test_default_equals_green_at_its_reference_temperature(si):
-    lam = np.arange(250.0, 1181.0, 10.0)
-    np.testing.assert_allclose(si.absorption(lam, 300.0).m_as("1/cm"),
-                               absorption("green-2008", lam), rtol=1e-12)
+    ours, spread = [], []
+    for t in (250.0, 275.0, 325.0, 350.0):
+        green = green_temperature_ratio(lam, t)
+        ours.append((si.absorption(lam, t) / si.absorption(lam, 300.0)).m_as("") / green)
+        spread.append((raj.absorption(lam, t) / raj.absorption(lam, 300.0)).m_as("") / green)
+    tolerance = np.max(np.abs(np.array(spread) - 1))
+    assert np.max(np.abs(np.array(ours) - 1)) <= tolerance
+    # the direction everywhere (common practice): absorption grows with temperature
+    alpha = si.absorption(lam[:, None], np.array([250.0, 300.0, 350.0])).m_as("1/cm")
+    assert np.all(np.diff(alpha, axis=1) > 0)
 
 
 def test_refractive_index():
@@ -123,24 +112,91 @@ def test_refractive_index():
     assert 1.5e-4 < dn < 2.2e-4
 
 
-def test_free_carrier_absorption():
-    schroder = matprops.silicon()
-    soref = matprops.silicon(models={"free_carrier_absorption": "soref-1987"})
-    # Soref & Bennett 1987 (IEEE J. Quantum Electron. 23, 123), from memory:
-    # 8.5e-18 N + 6.0e-18 P at 1.55 um
-    assert soref.free_carrier_absorption(1550, n=1e18).m_as("1/cm") == pytest.approx(8.5)
-    assert soref.free_carrier_absorption(1550, p=1e18).m_as("1/cm") == pytest.approx(6.0)
-    # holes: the lambda^2 form quoted from Schroder et al. 1978 agrees with Soref &
-    # Bennett at 1550 nm within 10 % (two independent sources)
-    a = schroder.free_carrier_absorption(1550, p=1e16).m_as("1/cm")
-    b = soref.free_carrier_absorption(1550, p=1e16).m_as("1/cm")
-    assert a == pytest.approx(b, rel=0.10)
-    # linear in density, additive in carriers, scales as lambda^2
-    two = schroder.free_carrier_absorption(2000, n=1e16, p=1e16).m_as("1/cm")
-    one = schroder.free_carrier_absorption(1000, n=1e16, p=1e16).m_as("1/cm")
-    assert two == pytest.approx(4 * one)
+def test_free_carrier_default_coefficients_against_an_independent_copy():
+    # Outside check of the copied coefficients: at 1.3 and 1.55 um the default's coefficients
+    # (read in the Tidy3D source) must reproduce the equations quoted from L. Chrostowski
+    # & M. Hochberg, Silicon Photonics Design (Cambridge University Press, 2015), as
+    # transcribed in gdsfactory (see the model file): delta alpha = 3.48e-22 N^1.229 +
+    # 1.02e-19 P^1.089 (labelled 1.31 um there) and 8.88e-21 N^1.167 + 5.84e-20 P^1.109
+    # at 1.55 um. Same printed digits: agreement to rounding of the arithmetic.
+    si = matprops.silicon()
+    assert si.provenance("free_carrier_absorption")["model"] == "nedeljkovic-2011"
+    density = np.array([1e17, 1e18, 1e19, 1e20])
+    for lam, a, b, c, d in ((1300, 3.48e-22, 1.229, 1.02e-19, 1.089),
+                            (1550, 8.88e-21, 1.167, 5.84e-20, 1.109)):
+        np.testing.assert_allclose(si.free_carrier_absorption(lam, n=density).m_as("1/cm"),
+                                   a * density**b, rtol=1e-10)
+        np.testing.assert_allclose(si.free_carrier_absorption(lam, p=density).m_as("1/cm"),
+                                   c * density**d, rtol=1e-10)
+
+
+def test_free_carrier_default_is_superlinear_in_heavily_doped_silicon():
+    # Outside checks from two abstracts (read): Isenberg & Warta 2004 (Appl. Phys. Lett.
+    # 84, 2265) found the linear-in-density parameterisation valid only up to about
+    # 3e16 cm^-3 and free-carrier absorption in heavily doped layers stronger than it;
+    # Baker-Finch et al. 2014 (J. Appl. Phys. 116, 063106) found that earlier linear
+    # parameterisations underestimate it in phosphorus (n-type) diffusions. So, per
+    # carrier, the doped-layer default must exceed the linear forms at 1e19-1e20 cm^-3.
+    si = matprops.silicon()
+    linear = matprops.silicon(models={"free_carrier_absorption": "soref-1987"})
+    for lam in (1300.0, 1550.0):
+        for n in (1e19, 1e20):
+            assert si.free_carrier_absorption(lam, n=n) > \
+                quiet(linear.free_carrier_absorption, lam, n)
+    density = np.array([1e18, 1e19, 1e20])
+    for kw in ("n", "p"):
+        per_carrier = si.free_carrier_absorption(1550, **{kw: density}).m_as("1/cm") / density
+        assert np.all(np.diff(per_carrier) > 0)
+
+
+def test_free_carrier_default_is_valid_for_doped_layers_and_linear_forms_are_not():
+    si = matprops.silicon(strict=True)
+    assert si.free_carrier_absorption(1550, n=1e19, p=0).m_as("1/cm") > 0  # no error
+    with pytest.raises(matprops.ValidityError, match=r"wavelength 1000 nm .* 1300-14000 nm"):
+        si.free_carrier_absorption(1000, n=1e19)
+    schroder = matprops.silicon(models={"free_carrier_absorption": "schroder-1978"})
     with pytest.warns(matprops.ValidityWarning, match=r"electron_density .* 0-3e\+16"):
         schroder.free_carrier_absorption(1550, n=1e19)
+
+
+def test_free_carrier_absorption_grows_with_wavelength():
+    # common practice (Drude-like behaviour of free carriers): alpha rises with wavelength
+    si = matprops.silicon()
+    lam = np.array([1300.0, 1550.0, 2000.0, 3000.0, 5000.0, 8000.0])
+    for kw in ({"n": 1e19}, {"p": 1e19}):
+        assert np.all(np.diff(si.free_carrier_absorption(lam, **kw).m_as("1/cm")) > 0)
+
+
+def test_low_temperature_band_edge_is_a_validity_region():
+    # At 10-200 K band-to-band absorption ends at shorter wavelengths than at 300 K; the
+    # default's temperature series keeps a floor there. Those points must warn.
+    si = matprops.silicon()
+    with pytest.warns(matprops.ValidityWarning,
+                      match=r"outside its validity region .* wavelength 1100 nm at "
+                            r"temperature 100 K, where the limit is 1045 nm"):
+        si.absorption(1100, 100)
+    with pytest.raises(matprops.ValidityError, match="validity region"):
+        matprops.silicon(strict=True).absorption([1000.0, 1150.0], [[10.0], [300.0]])
+    # inside the region nothing is said, even on a grid that crosses temperatures
+    si.absorption(np.array([800.0, 1000.0])[:, None], np.array([10.0, 300.0, 500.0])[None, :])
+    si.absorption(1180.0, [250.0, 300.0, 500.0])
+    region = si.provenance("absorption")["validity_regions"][0]
+    assert region["input"] == "wavelength" and region["varies_with"] == "temperature"
+
+
+def test_region_limit_at_low_temperature_respects_the_phonon_threshold():
+    # Outside check (physics of an indirect gap, common practice): near 0 K no phonons
+    # can be absorbed, so band-to-band absorption needs hv >= Eg(0) + the energy of the
+    # weakest assisting phonon, the transverse acoustic one (about 18 meV in silicon);
+    # with Eg(0) = 1.17 eV that is at most hc/(1.188 eV) = 1044 nm.
+    model = matprops.catalog.default_catalog().model("absorption", "green-2008-franta-2017")
+    (region,) = model.regions
+    limit_at_10K = float(region.bound_at(10.0))
+    threshold = optics.wavelength(matprops.Q_(1.17 + 0.018, "eV")).m_as("nm")
+    assert limit_at_10K <= threshold
+    # and at room temperature the region does not cut into the 300-K table (Green 2008
+    # tabulates band-to-band absorption to 1180 nm and beyond)
+    assert float(region.bound_at(300.0)) == model.validity["wavelength"].high
 
 
 # ---------------------------------------------------------------- validity and errors
@@ -226,11 +282,20 @@ def test_thickness_must_be_a_length():
 
 # ---------------------------------------------------------------- properties
 
+def band_edge_limit(temperature):
+    """The default's validity-region wavelength limit (nm) at a temperature (K)."""
+    (region,) = matprops.silicon().model("absorption").regions
+    return float(region.bound_at(temperature))
+
+
 @settings(deadline=None, max_examples=50)
 @given(st.floats(400, 1179), st.floats(1, 40), st.floats(80, 495))
 def test_alpha_positive_and_decreasing_with_wavelength(lam, step, t):
+    # over the validity region: inside it alpha is band-to-band absorption
+    top = band_edge_limit(t)
+    assume(lam < top)
     si = matprops.silicon()
-    a = si.absorption(np.array([lam, min(lam + step, 1180.0)]), t).m_as("1/cm")
+    a = si.absorption(np.array([lam, min(lam + step, top)]), t).m_as("1/cm")
     assert np.all(a > 0)
     assert a[1] <= a[0]
 
@@ -238,6 +303,7 @@ def test_alpha_positive_and_decreasing_with_wavelength(lam, step, t):
 @settings(deadline=None, max_examples=50)
 @given(st.floats(950, 1150), st.floats(80, 480), st.floats(5, 100))
 def test_alpha_rises_with_temperature_near_the_edge(lam, t, dt):
+    assume(lam <= band_edge_limit(t))  # the limit rises with temperature
     si = matprops.silicon()
     a = si.absorption(lam, np.array([t, min(t + dt, 500.0)])).m_as("1/cm")
     assert a[1] > a[0]

@@ -51,3 +51,38 @@ def test_draft_release_regenerates_identically(datasets_copy):
     regenerate("2026.1", catalog)
     after = json.loads((root / "releases/2026.1.reference.json").read_text())
     assert after == before
+
+
+def _scale_table(root, name, variable, wavelength, factor, temperature=None):
+    import xarray as xr
+
+    path = root / "tables" / name
+    with xr.open_dataset(path) as opened:
+        data = opened.load()
+    where = {"wavelength": wavelength}
+    if temperature is not None:
+        where["temperature"] = temperature
+    data[variable].loc[where] = data[variable].loc[where] * factor
+    data.to_netcdf(path)
+
+
+@pytest.mark.parametrize("name, variable, wavelength, temperature", [
+    # 810 nm lies between the fixed grid's 800 and 900 nm
+    ("green-2008.nc", "absorption_coefficient", 810.0, None),
+    ("green-2008.nc", "refractive_index", 1230.0, None),
+    # a point of the temperature series on no wavelength of Green's grid
+    ("franta-2017.nc", "absorption_coefficient", None, 150.0),
+])
+def test_an_edit_anywhere_in_a_table_is_detected(datasets_copy, name, variable, wavelength,
+                                                 temperature):
+    root, catalog = datasets_copy
+    if wavelength is None:  # pick a Franta wavelength between two of Green's
+        table = catalog.table("franta-2017.nc")
+        lam = table.wavelength.values
+        wavelength = float(lam[(lam > 1001) & (lam < 1009)][0])
+    _scale_table(root, name, variable, wavelength, 1.10, temperature)
+    catalog.write_checksums()  # a deliberate edit: the checksum list is not the guard here
+    problems = compare("2026.1", catalog)
+    assert any(f"table {name}" in p for p in problems)
+    if name == "green-2008.nc":  # and the evaluation at every stored point moves too
+        assert any("_stored_points: differs" in p for p in problems)

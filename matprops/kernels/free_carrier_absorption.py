@@ -1,9 +1,12 @@
-"""Free-carrier absorption in silicon, in 1/cm (adds to band-to-band absorption)."""
+"""Free-carrier absorption in silicon, in 1/cm (adds to band-to-band absorption).
+
+Wavelengths in nm, electron and hole densities in cm^-3.
+"""
 
 import numpy as np
 
 from ._spec import kernel
-from ._tables import linear_1d
+from ._tables import bracket, linear_1d
 
 
 @kernel(inputs={"wavelength": "nm", "electron_density": "cm^-3", "hole_density": "cm^-3"},
@@ -50,3 +53,40 @@ def cross_sections_at_wavelengths(wavelength, electron_density, hole_density, *,
     sigma_p = np.exp(linear_1d(log_lambda, grid, np.log(hole_cross_sections)))
     return (sigma_n * np.asarray(electron_density, dtype=float)
             + sigma_p * np.asarray(hole_density, dtype=float))
+
+
+@kernel(inputs={"wavelength": "nm", "electron_density": "cm^-3", "hole_density": "cm^-3"},
+        output="1/cm",
+        coefficients={"wavelengths": "nm", "electron_prefactors": "1/cm",
+                      "electron_exponents": "1", "hole_prefactors": "1/cm",
+                      "hole_exponents": "1"})
+def tabulated_power_laws(wavelength, electron_density, hole_density, *, wavelengths,
+                         electron_prefactors, electron_exponents, hole_prefactors,
+                         hole_exponents):
+    """Power laws in density whose coefficients are published at a set of wavelengths.
+
+    ``alpha = a_n(lambda) (n / 1 cm^-3)^b_n(lambda) + a_p(lambda) (p / 1 cm^-3)^b_p(lambda)``
+
+    The prefactors a are in 1/cm for densities counted in cm^-3. Between the
+    published wavelengths log(a) and b are interpolated linearly in log(lambda);
+    outside them the result is NaN.
+
+    Parameters
+    ----------
+    wavelength : nm;  electron_density, hole_density : cm^-3
+    wavelengths : nm (ascending)
+    electron_prefactors, hole_prefactors : 1/cm;  electron_exponents, hole_exponents : 1
+    """
+    i, w = bracket(np.log(np.asarray(wavelength, dtype=float)),
+                   np.log(np.asarray(wavelengths, dtype=float)))
+
+    def between(values):
+        return values[i] * (1.0 - w) + values[i + 1] * w
+
+    n = np.asarray(electron_density, dtype=float)
+    p = np.asarray(hole_density, dtype=float)
+    electrons = np.exp(between(np.log(electron_prefactors))) * np.power(
+        n, between(np.asarray(electron_exponents, dtype=float)))
+    holes = np.exp(between(np.log(hole_prefactors))) * np.power(
+        p, between(np.asarray(hole_exponents, dtype=float)))
+    return electrons + holes

@@ -14,6 +14,11 @@ class OpticalMethods:
         ``wavelength`` in nm (or a pint length, photon energy, frequency or
         wavenumber); ``temperature`` in K. Arrays broadcast: pass
         ``wavelength[:, None]`` and ``temperature[None, :]`` for a grid.
+
+        Besides its ranges, a model may limit wavelength and temperature together (a
+        validity region: the release default stops at shorter wavelengths at low
+        temperature, where band-to-band absorption ends); points outside it warn.
+        ``si.provenance("absorption")["validity_regions"]`` lists the limits.
         """
         return self._quantity("absorption", wavelength=wavelength, temperature=temperature)
 
@@ -25,6 +30,7 @@ class OpticalMethods:
     def free_carrier_absorption(self, wavelength, n=0, p=0):
         """Free-carrier absorption coefficient, 1/cm, for electron and hole densities
         ``n`` and ``p`` (cm^-3); add it to :meth:`absorption` for doped or injected
-        silicon."""
+        silicon. The release default is valid for doped layers (up to 1e20 cm^-3) at
+        1300-14000 nm; see ``si.provenance("free_carrier_absorption")``."""
         return self._quantity("free_carrier_absorption", wavelength=wavelength,
                               electron_density=n, hole_density=p)

@@ -1,0 +1,402 @@
+"""Regression and identity tests: the code against itself, never against the outside world.
+
+Nothing here validates a model. These tests pin down (a) identities that follow from how a
+model is built (a kernel reproduces the coefficient it was given; a composed model follows
+its parts), (b) numbers derived in this project from its own data by a stated rule (the
+validity-region limits), and (c) every figure quoted in a model file's notes, in the release
+notes and in the README, recomputed from the code so the text cannot drift from what the
+code gives. Outside checks live in the other test modules, each naming its source.
+"""
+
+import math
+import re
+import warnings
+from pathlib import Path
+
+import numpy as np
+import periodictable
+import pytest
+import scipy.constants
+from outside_data import green_temperature_ratio
+
+import matprops
+from matprops import optics
+from matprops.catalog import datasets_root, default_catalog
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def quiet(function, *args, **kwargs):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", matprops.ValidityWarning)
+        return function(*args, **kwargs)
+
+
+def with_model(quantity, model_id, **more):
+    return matprops.silicon(models={quantity: model_id, **more})
+
+
+def absorption(model_id, wavelength, temperature=300.0):
+    return quiet(with_model("absorption", model_id).absorption, wavelength,
+                 temperature).m_as("1/cm")
+
+
+# ------------------------------------------------------------------------- identities
+
+@pytest.mark.parametrize("model_id", matprops.models("band_gap"))
+def test_gap_tends_to_its_own_zero_kelvin_coefficient(model_id):
+    # identity: each kernel's expression must tend to the Eg(0) its file holds
+    model = default_catalog().model("band_gap", model_id)
+    coefficients = model.provenance()["coefficients"]
+    if "gap_at_zero" in coefficients:
+        printed = coefficients["gap_at_zero"]["value"]
+    else:  # bludau-1974: the constant term of the low-temperature quadratic
+        printed = coefficients["low_coefficients"]["value"][0]
+    gap = with_model("band_gap", model_id).band_gap(1e-4).m_as("eV")
+    assert gap == pytest.approx(printed, abs=1e-8)
+
+
+def test_boltzmann_follows_the_chosen_gap():
+    # identity: ni ~ exp(-Eg/2kT), so swapping the gap model scales ni by exp(-dEg/2kT)
+    a = matprops.silicon(models={"intrinsic_density": "boltzmann", "band_gap": "passler-2002"})
+    b = matprops.silicon(models={"intrinsic_density": "boltzmann", "band_gap": "thurmond-1975"})
+    d_gap = (b.band_gap(300) - a.band_gap(300)).m_as("eV")
+    kT = scipy.constants.k / scipy.constants.e * 300
+    ratio = (b.intrinsic_density(300) / a.intrinsic_density(300)).m_as("")
+    assert ratio == pytest.approx(np.exp(-d_gap / (2 * kT)), rel=1e-9)
+
+
+def test_default_absorption_equals_green_at_its_reference_temperature(si):
+    # identity: the default scales Green's table by a ratio that is 1 at 300 K
+    lam = np.arange(250.0, 1181.0, 10.0)
+    np.testing.assert_allclose(si.absorption(lam, 300.0).m_as("1/cm"),
+                               absorption("green-2008", lam), rtol=1e-12)
+
+
+def test_density_is_the_formula_of_the_lattice_constant_and_atomic_weight(si):
+    # identity: rho = 8 M / (N_A a^3), here with the element-data library's atomic weight
+    a = si.lattice_constant(298.15).m_as("cm")
+    from_library = 8 * periodictable.Si.mass / (scipy.constants.Avogadro * a**3)
+    assert si.density(298.15).m_as("g/cm^3") == pytest.approx(from_library, rel=1e-4)
+
+
+def test_lattice_constant_integrates_the_expansion_coefficient_of_its_file():
+    # identity (our closed-form integral): d ln a / dT equals the file's alpha(T)
+    # = c1 [1 - exp(-c2 (T - T1))] + c3 T, the formula of Okada & Tokumaru's abstract
+    si = matprops.silicon()
+    c = {k: v["value"] for k, v in si.provenance("lattice_constant")["coefficients"].items()}
+    for t in (150.0, 300.0, 600.0, 1200.0):
+        a = si.lattice_constant(np.array([t - 0.01, t + 0.01])).m_as("nm")
+        slope = np.log(a[1] / a[0]) / 0.02
+        formula = (c["c1"] * (1 - np.exp(-c["c2"] * (t - c["onset_temperature"])))
+                   + c["c3"] * t)
+        assert slope == pytest.approx(formula, rel=1e-6)
+
+
+def test_linear_free_carrier_forms_follow_their_own_equations():
+    # identity: schroder-1978 is linear in density, additive in carriers and ~ lambda^2;
+    # soref-1987 returns the cross-sections its file holds at 1300 and 1550 nm
+    schroder = with_model("free_carrier_absorption", "schroder-1978")
+    two = schroder.free_carrier_absorption(2000, n=1e16, p=1e16).m_as("1/cm")
+    one = schroder.free_carrier_absorption(1000, n=1e16, p=1e16).m_as("1/cm")
+    half = schroder.free_carrier_absorption(1000, n=0.5e16, p=0.5e16).m_as("1/cm")
+    assert two == pytest.approx(4 * one, rel=1e-12)
+    assert one == pytest.approx(2 * half, rel=1e-12)
+    soref = with_model("free_carrier_absorption", "soref-1987")
+    model = default_catalog().model("free_carrier_absorption", "soref-1987")
+    coefficients = model.provenance()["coefficients"]
+    for lam, sn, sp in zip(coefficients["wavelengths"]["value"],
+                           coefficients["electron_cross_sections"]["value"],
+                           coefficients["hole_cross_sections"]["value"], strict=True):
+        assert soref.free_carrier_absorption(lam, n=1e18).m_as("1/cm") == \
+            pytest.approx(sn * 1e18, rel=1e-12)
+        assert soref.free_carrier_absorption(lam, p=1e18).m_as("1/cm") == \
+            pytest.approx(sp * 1e18, rel=1e-12)
+
+
+# ------------------------------------------------- numbers derived here by a stated rule
+
+FLOOR_FIT = (1100.0, 1300.0)  # nm: the 10-K series is pure floor there
+FLOOR_MULTIPLE = 3.0
+
+
+def band_to_band_limits(cap):
+    """The validity-region rule stated in the absorption model files.
+
+    The floor of Franta et al.'s series is a power law fitted (least squares in log-log)
+    to its 10-K values at 1100-1300 nm. At each tabulated temperature the limit is the
+    longest grid wavelength (rounded down to whole nm) from 1000 nm on before alpha first
+    drops below three times the floor, at most ``cap``; the list stops at the first
+    temperature that reaches the cap.
+    """
+    table = default_catalog().table("franta-2017.nc")
+    lam = table.wavelength.values
+    alpha = table.absorption_coefficient.values
+    fit = (lam >= FLOOR_FIT[0]) & (lam <= FLOOR_FIT[1])
+    slope, offset = np.polyfit(np.log(lam[fit]), np.log(alpha[0, fit]), 1)
+    floor = np.exp(offset + slope * np.log(lam))
+    points = []
+    for row, temperature in zip(alpha, table.temperature.values, strict=True):
+        below = np.flatnonzero((lam >= 1000.0) & (row < FLOOR_MULTIPLE * floor))
+        limit = cap if below.size == 0 else min(cap, math.floor(lam[below[0] - 1]))
+        points.append([float(temperature), float(limit)])
+        if limit == cap:
+            break
+    return points
+
+
+@pytest.mark.parametrize("model_id, cap", [("green-2008-franta-2017", 1180.0),
+                                           ("franta-2017", 1200.0)])
+def test_validity_region_limits_follow_the_stated_rule(model_id, cap):
+    # regression: the region's numbers are derived from the committed table by the rule
+    # written in the model file; re-derive them and compare
+    model = default_catalog().model("absorption", model_id)
+    assert model.validity["wavelength"].high == cap
+    (region,) = model.regions
+    stored = [[t, w] for t, w in zip(region.by_values, region.bounds, strict=True)]
+    assert stored == band_to_band_limits(cap)
+
+
+# ------------------------------------------------ figures quoted in notes and the README
+
+def up(value, decimals):
+    """Round up: a figure quoted as 'within x' must not be below the true value."""
+    scale = 10 ** decimals
+    return f"{math.ceil(value * scale - 1e-9) / scale:.{decimals}f}"
+
+
+def near(value, decimals=0):
+    return f"{value:.{decimals}f}"
+
+
+def percent_span(ratio):
+    return near(100 * ratio.min()), near(100 * ratio.max())
+
+
+def _green_ratio(model_id, lo, hi):
+    lam = np.arange(lo, hi + 1.0, 10.0)
+    return absorption(model_id, lam) / absorption("green-2008", lam) - 1, lam
+
+
+def _schinke():
+    ratio, lam = _green_ratio("schinke-2015", 400, 1150)
+    return up(100 * np.abs(ratio).max(), 0), near(lam[np.argmax(np.abs(ratio))])
+
+
+def _green_temperature_coefficients():
+    lam = np.arange(500.0, 1051.0, 10.0)
+    temperatures = (250.0, 275.0, 325.0, 350.0)
+    si, raj = matprops.silicon(), with_model("absorption", "rajkanan-1979")
+    ours, theirs = [], []
+    for t in temperatures:
+        green = green_temperature_ratio(lam, t)
+        ours.append(quiet(si.absorption, lam, t).m_as("1/cm")
+                    / si.absorption(lam, 300.0).m_as("1/cm") / green - 1)
+        theirs.append(quiet(raj.absorption, lam, t).m_as("1/cm")
+                      / raj.absorption(lam, 300.0).m_as("1/cm") / green - 1)
+    return up(100 * np.abs(ours).max(), 0), up(100 * np.abs(theirs).max(), 0)
+
+
+def _region_text(model_id, last):
+    (region,) = default_catalog().model("absorption", model_id).regions
+    parts = [f"{b:g} nm at {t:g} K" for t, b in zip(region.by_values, region.bounds,
+                                                      strict=True)]
+    parts[-1] = parts[-1].replace(" at ", " from ")
+    return ", ".join(parts[:-1]) + f"{last} " + parts[-1]
+
+
+def _rajkanan_edge():
+    lam = np.arange(1100.0, 1300.0, 1.0)
+    alpha = absorption("rajkanan-1979", lam)
+    return near(lam[alpha > 0].max())
+
+
+def _gap_ratio_thurmond_bludau():
+    t = np.linspace(0.01, 300.0, 301)
+    a = with_model("band_gap", "thurmond-1975").band_gap(t).m_as("eV")
+    b = with_model("band_gap", "bludau-1974").band_gap(t).m_as("eV")
+    ratio = np.abs(a / b - 1)
+    return up(100 * ratio.max(), 2), up(100 * ratio[-1], 2)
+
+
+def _couderc_consistency():
+    si = matprops.silicon()
+    t = np.linspace(200.0, 500.0, 301)
+    nc, nv = si.densities_of_states(t)
+    ratio = np.sqrt(nc.m_as("cm^-3") * nv.m_as("cm^-3")) / (1.541e15 * t**1.712) - 1
+    return up(100 * abs(ratio[100]), 1), up(100 * np.abs(ratio).max(), 1)
+
+
+def _nedeljkovic():
+    model = default_catalog().model("free_carrier_absorption", "nedeljkovic-2011")
+    c = model.provenance()["coefficients"]
+    si = with_model("free_carrier_absorption", "nedeljkovic-2011")
+    low = max(si.free_carrier_absorption(1550, n=1e17).m_as("1/cm"),
+              si.free_carrier_absorption(1550, p=1e17).m_as("1/cm"))
+    e, h = c["electron_exponents"]["value"], c["hole_exponents"]["value"]
+    return (near(min(e), 2), near(max(e), 2), near(min(h), 2), near(max(h), 2),
+            up(low, 1))
+
+
+def _schroder_against_soref():
+    schroder = with_model("free_carrier_absorption", "schroder-1978")
+    soref = with_model("free_carrier_absorption", "soref-1987")
+    e = (soref.free_carrier_absorption(1550, n=1e16)
+         / schroder.free_carrier_absorption(1550, n=1e16)).m_as("")
+    h = (schroder.free_carrier_absorption(1550, p=1e16)
+         / soref.free_carrier_absorption(1550, p=1e16)).m_as("") - 1
+    return near(e, 1), near(100 * h)
+
+
+def _gap(model_id, t=300.0):
+    return near(with_model("band_gap", model_id).band_gap(t).m_as("eV"), 4)
+
+
+def sci(value, digits=2):
+    """1.00e10 style (the notes' spelling of numbers in scientific notation)."""
+    mantissa, exponent = f"{value:.{digits}e}".split("e")
+    return f"{mantissa}e{int(exponent)}"
+
+
+def _ni(model_id=None):
+    si = matprops.silicon() if model_id is None else with_model("intrinsic_density", model_id)
+    return sci(si.intrinsic_density(300).m_as("cm^-3"))
+
+
+def _gap_spread_473():
+    g = {m: with_model("band_gap", m).band_gap(473.15).m_as("eV")
+         for m in ("thurmond-1975", "alex-1996", "passler-2002")}
+    return (near(1e3 * (g["passler-2002"] - g["thurmond-1975"]), 1),
+            near(1e3 * (g["passler-2002"] - g["alex-1996"]), 1))
+
+
+def _passler_bludau():
+    t = np.linspace(4.0, 300.0, 297)
+    a = with_model("band_gap", "passler-2002").band_gap(t).m_as("eV")
+    b = with_model("band_gap", "bludau-1974").band_gap(t).m_as("eV")
+    return (up(1e3 * np.abs(a - b).max(), 1),)
+
+
+def _boltzmann():
+    si, bz = matprops.silicon(), with_model("intrinsic_density", "boltzmann")
+    t = np.linspace(77.0, 500.0, 424)
+    ratio = bz.intrinsic_density(t).m_as("cm^-3") / si.intrinsic_density(t).m_as("cm^-3") - 1
+    at300 = (bz.intrinsic_density(300) / si.intrinsic_density(300)).m_as("") - 1
+    return up(100 * abs(at300), 1), up(100 * np.abs(ratio).max(), 1)
+
+
+def _green_1990():
+    nc, nv = with_model("densities_of_states", "green-1990").densities_of_states(300)
+    worst = max(abs(nc.m_as("cm^-3") / 2.86e19 - 1), abs(nv.m_as("cm^-3") / 3.10e19 - 1))
+    return (up(100 * worst, 1),)
+
+
+def _okada():
+    codata = scipy.constants.physical_constants["lattice parameter of silicon"][0] * 1e9
+    a = matprops.silicon().lattice_constant(matprops.Q_(22.5, "degC")).m_as("nm")
+    relative = abs(a / codata - 1)
+    exponent = math.floor(math.log10(relative))
+    return near(a, 6), f"{up(relative / 10**exponent, 1)}e{exponent}"
+
+
+def _bludau_switch():
+    low, high = [default_catalog().model("band_gap", "bludau-1974").provenance()
+                 ["coefficients"][k]["value"] for k in ("low_coefficients", "high_coefficients")]
+    t = 170.0
+    return (near(1e3 * abs(np.polyval(low[::-1], t) - np.polyval(high[::-1], t)), 2),)
+
+
+def _thickness_800():
+    si = matprops.silicon()
+    return (near(optics.thickness_for_absorbed_fraction(si.absorption(800, 300), 0.9)
+                 .m_as("um")),)
+
+
+MODELS = datasets_root() / "models"
+# (file, text with {} placeholders, function returning the values that fill them)
+QUOTED = [
+    (MODELS / "absorption/green-2008-franta-2017.toml",
+     ("within {} % of the independent Schinke et al. 2015 data at 400-1150 nm; the largest "
+     "gap at {} nm"), _schinke),
+    (MODELS / "absorption/green-2008-franta-2017.toml",
+     ("T^(300 K x C)) within {} %, while the independent Rajkanan et al. 1979 model differs "
+     "from those coefficients by up to {} %"), _green_temperature_coefficients),
+    (MODELS / "absorption/green-2008-franta-2017.toml", "wavelength by temperature: {}",
+     lambda: (_region_text("green-2008-franta-2017", " and"),)),
+    (MODELS / "absorption/franta-2017.toml", "wavelength by temperature: {}",
+     lambda: (_region_text("franta-2017", " and"),)),
+    (MODELS / "absorption/franta-2017.toml", ("differs from Green 2008 by {} % to +{} % at "
+     "450-900 nm"), lambda: percent_span(_green_ratio("franta-2017", 450, 900)[0])),
+    (MODELS / "absorption/rajkanan-1979.toml", ("it lies {}-{} % above Green 2008 at "
+     "450-1050 nm ({}-{} % at 550-1050 nm)"),
+     lambda: percent_span(_green_ratio("rajkanan-1979", 450, 1050)[0])
+     + percent_span(_green_ratio("rajkanan-1979", 550, 1050)[0])),
+    (MODELS / "absorption/rajkanan-1979.toml", "phonon-assisted edge ({} nm at 300 K)",
+     lambda: (_rajkanan_edge(),)),
+    (MODELS / "free_carrier_absorption/schroder-1978.toml", ("electron term is {} times below "
+     "Soref & Bennett's 1987 value and its hole term {} % above"), _schroder_against_soref),
+    (MODELS / "free_carrier_absorption/nedeljkovic-2011.toml", ("(exponents {}-{} for "
+     "electrons, {}-{} for holes)"), lambda: _nedeljkovic()[:4]),
+    (MODELS / "free_carrier_absorption/nedeljkovic-2011.toml", ("below about {} /cm at "
+     "1550 nm"), lambda: _nedeljkovic()[4:]),
+    (MODELS / "band_gap/alex-1996.toml", "Eg(300 K) = {} eV", lambda: (_gap("alex-1996"),)),
+    (MODELS / "band_gap/passler-1999.toml", "Eg(300 K) = {} eV",
+     lambda: (_gap("passler-1999"),)),
+    (MODELS / "band_gap/passler-2002.toml", "Eg(300 K) = {} eV",
+     lambda: (_gap("passler-2002"),)),
+    (MODELS / "band_gap/passler-2002.toml", ("within {} meV of Bludau et al.'s two fits over "
+     "4-300 K"), _passler_bludau),
+    (MODELS / "band_gap/passler-2002.toml", ("At 473 K it lies {} meV above thurmond-1975 "
+     "and {} meV above alex-1996"), _gap_spread_473),
+    (MODELS / "band_gap/thurmond-1975.toml", "Eg(300 K) = {} eV",
+     lambda: (_gap("thurmond-1975"),)),
+    (MODELS / "band_gap/bludau-1974.toml", "switches at 170 K, where they differ by {} meV",
+     _bludau_switch),
+    (MODELS / "densities_of_states/green-1990.toml", "at 300 K to {} %", _green_1990),
+    (MODELS / "densities_of_states/green-1990.toml", ("by at most {} % at 0-300 K ({} % at "
+     "300 K)"), _gap_ratio_thurmond_bludau),
+    (MODELS / "densities_of_states/couderc-2014.toml", ("(within {} % at 300 K and {} % at "
+     "200-500 K)"), _couderc_consistency),
+    (MODELS / "densities_of_states/couderc-2014.toml", "Nv(300 K) = {} cm^-3", lambda: (
+        sci(matprops.silicon().densities_of_states(300)[1].m_as("cm^-3")),)),
+    (MODELS / "intrinsic_density/couderc-2014.toml", "ni(300 K) = {} cm^-3",
+     lambda: (_ni(),)),
+    (MODELS / "intrinsic_density/boltzmann.toml", ("within {} % at\n300 K and {} % over "
+     "77-500 K"), _boltzmann),
+    (MODELS / "intrinsic_density/sproul-1991.toml", "Gives ni(300 K) = {} cm^-3",
+     lambda: (_ni("sproul-1991"),)),
+    (MODELS / "intrinsic_density/sproul-1993.toml", "Gives ni(300 K) = {} cm^-3",
+     lambda: (_ni("sproul-1993"),)),
+    (MODELS / "lattice_constant/okada-1984.toml", ("Gives {} nm at 22.5 C, within {} "
+     "(relative)"), _okada),
+    (datasets_root() / "releases/2026.1.toml", "{} cm^-3 at 300 K", lambda: (_ni(),)),
+    (ROOT / "README.md", "si.band_gap(300)                              # {} eV",
+     lambda: (_gap("passler-2002"),)),
+    (ROOT / "README.md", "si.intrinsic_density(300)                     # {} cm^-3",
+     lambda: (_ni(),)),
+    (ROOT / "README.md", "0.9)   # ~{} um", _thickness_800),
+    (ROOT / "README.md", "`couderc-2014`, gives {} cm^-3 at 300 K", lambda: (_ni(),)),
+    (ROOT / "README.md", ("within {} % of the independent Schinke et al. 2015 data at "
+     "400-1150 nm, largest at {} nm"), _schinke),
+    (ROOT / "README.md", ("coefficients within {} % at 500-1050 nm and 250-350 K, closer "
+     "than the independent Rajkanan et al. 1979 model ({} %)"),
+     _green_temperature_coefficients),
+    (ROOT / "README.md", ("Franta's own values run {} % to +{} % off Green's at 300 K "
+     "(450-900 nm) and Rajkanan's {}-{} % above them (450-1050 nm)"),
+     lambda: percent_span(_green_ratio("franta-2017", 450, 900)[0])
+     + percent_span(_green_ratio("rajkanan-1979", 450, 1050)[0])),
+]
+
+
+def _normalise(text):
+    return re.sub(r"\s+", " ", text)
+
+
+@pytest.mark.parametrize("path, template, compute", QUOTED,
+                         ids=[f"{p.name}:{t[:30]}" for p, t, _ in QUOTED])
+def test_quoted_figures_are_what_the_code_gives(path, template, compute):
+    # regression of the text: recompute each quoted figure from the code; if the code or
+    # data change, the note must change with them
+    expected = _normalise(template.format(*compute()))
+    assert expected in _normalise(path.read_text()), \
+        f"{path.name} should say: {expected!r}"
