@@ -237,26 +237,36 @@ def _temperature_columns(data, values):
 
 
 def frame(data, layout: str = "long"):
-    """A pandas DataFrame of the table, one header row with units in the names."""
+    """A pandas DataFrame of the table, one header row with units in the names.
+
+    Axis columns (dimensions, then other coordinates such as labels or fixed
+    values) come first; ``frame.attrs["axis_columns"]`` says how many.
+    """
     import pandas as pd
 
     data = data.compute() if _is_lazy(data) else data
     dims = _dims_in_order(data)
     if layout == "wide" and dims:
         return _wide_frame(data, dims)
-    table = data.drop_vars([n for n in data.coords if n not in data.dims
-                            and data[n].dims])  # e.g. the citation along model
+    table = data.drop_vars([n for n in ("citation",) if n in data.coords])  # long text
     if dims:
         long = table.to_dataframe(dim_order=dims).reset_index()
     else:
         long = pd.DataFrame({n: [v.item()] for n, v in table.variables.items()})
-    columns = {}
-    for name in long.columns:
+    order = dims + [c for c in table.coords if c not in dims] + list(table.data_vars)
+    columns, axis_columns = {}, 0
+    for name in order:
+        if name not in long.columns:
+            continue
         if name == "temperature":
             columns.update(_temperature_columns(data, long[name].to_numpy()))
-        elif name in data.variables:
+        else:
             columns[_heading(data, name)] = long[name].to_numpy()
-    return pd.DataFrame(columns)
+        if name in table.coords:
+            axis_columns = len(columns)
+    result = pd.DataFrame(columns)
+    result.attrs["axis_columns"] = axis_columns
+    return result
 
 
 def _wide_frame(data, dims):
@@ -272,8 +282,13 @@ def _wide_frame(data, dims):
     else:
         columns[_heading(data, row)] = index
     for name in data.coords:
-        if name not in data.dims and not data[name].dims:
+        if name == "citation" or name in data.dims:
+            continue
+        if not data[name].dims:
             columns[_heading(data, name)] = np.full(index.size, data[name].item())
+        elif data[name].dims == (row,):
+            columns[_heading(data, name)] = data[name].values
+    axis_columns = len(columns)
     for name, variable in data.data_vars.items():
         if row not in variable.dims:
             variable = variable.expand_dims({row: index.size})
@@ -284,7 +299,9 @@ def _wide_frame(data, dims):
         for k, label in enumerate(labels):
             where = ", ".join(_point(data, d, v) for d, v in zip(others, label, strict=True))
             columns[_heading(data, name) + (f" at {where}" if where else "")] = values[:, k]
-    return pd.DataFrame(columns)
+    result = pd.DataFrame(columns)
+    result.attrs["axis_columns"] = axis_columns
+    return result
 
 
 def _point(data, dim, value) -> str:
@@ -406,10 +423,7 @@ def to_text(data, width: int | None = None, layout: str = "long") -> str:
     if table.empty:
         return "(empty table)"
     headings = list(table.columns)
-    axis_count = sum(1 for h in headings if h.split(" [")[0] in data.coords)
-    if layout == "wide":
-        axis_count = 1 + sum(1 for h in headings[:2] if h.startswith("temperature ["))
-        axis_count = min(axis_count, len(headings))
+    axis_count = min(table.attrs.get("axis_columns", 0), len(headings) - 1)
     cells, widths, heads = [], [], []
     for heading in headings:
         values = table[heading].to_numpy()

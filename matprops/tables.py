@@ -379,7 +379,7 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
         missing = [a for a in entry.required(si) if a not in grid]
         if missing:
             raise InputError(missing[0], f"given for {name} ({_axis_hint(AXES[missing[0]])})",
-                             None)
+                             "nothing")
         entries.append(entry)
     return entries
 
@@ -387,7 +387,7 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
 def _axis_hint(ax: Axis) -> str:
     if ax.category:
         return "one or more of " + ", ".join(ax.choices)
-    return f"{ax.units} or a pint quantity"
+    return f"in {ax.units}"
 
 
 # --------------------------------------------------------------------------- evaluation
