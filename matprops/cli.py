@@ -554,6 +554,16 @@ def _cmd_demo(args):
         print(f"(INVENTED data for demonstration; datasets/scenarios/{path.name})")
         print(_wrap(scenario.get("description", "")))
         print()
+    if args.output and args.output.lower().endswith((".png", ".svg")):
+        from .plotting import plot
+
+        plot(data, args.output, x="temperature", overwrite=args.force,
+             title=scenario["title"])
+        print(f"wrote {args.output}")
+        if skipped:
+            print(_wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
+                  file=sys.stderr)
+        return
     names = [data[v].attrs["quantity"] for v in data.data_vars]
     footer = _footer(si, list(dict.fromkeys(names)))
     if skipped:
@@ -699,7 +709,8 @@ def build_parser() -> argparse.ArgumentParser:
     diff.set_defaults(run=_cmd_release_diff)
 
     demo = commands.add_parser("demo", parents=[material, output],
-                               help="tables for the bundled, INVENTED scenario")
+                               help="tables for the bundled, INVENTED scenario "
+                                    "(-o also takes .png or .svg: a plot)")
     demo.add_argument("--scenario", default="two-site-modules",
                       help="scenario file in datasets/scenarios (default: %(default)s)")
     demo.set_defaults(run=_cmd_demo)

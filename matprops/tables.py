@@ -658,7 +658,8 @@ def table(si, quantities: Iterable[str] | str | None = None, *, chunks=None,
         "Conventions": "CF-1.11",
         "title": "Crystalline-silicon parameters from matprops",
         "source": f"matprops {__version__}, release {si.release.id} ({si.release.status})",
-        "references": si.cite(format="text", quantities=names),
+        "references": si.cite(format="text", quantities=list(dict.fromkeys(
+            q for e in entries for q in e.model_quantities()))),
         "history": f"matprops {__version__}: si.table({names!r}, {grid.describe()}"
                    f"{f', chunks={chunks!r}' if chunks is not None else ''})",
         "release": si.release.id,
