@@ -136,7 +136,7 @@ def _cli_message(text: str) -> str:
         text = text.replace(f"argument {ax.name!r}", f"option {ax.option}")
         if ax.alias:
             text = text.replace(f"argument {ax.alias!r}", f"option {ax.option}")
-    text = re.sub(r"argument '(-[\w-]+)'", r"option \1", text)
+    text = re.sub(r"argument '(-[\w/-]+)'", r"option \1", text)
     for argument, option in (("path", "-o/--output"), ("format", "--format"),
                              ("models", "--models"), ("x", "--x"), ("chunks", "--chunks"),
                              ("layout", "--layout")):
@@ -153,7 +153,7 @@ class _Parser(argparse.ArgumentParser):
 
     def error(self, message):
         hint = f" (see {self.prog} --help)"
-        self.exit(2, f"{self.prog}: error: {' '.join(message.split())}{hint}\n")
+        self.exit(2, f"matprops: error: {' '.join(message.split())}{hint}\n")
 
 
 # --------------------------------------------------------------------------- helpers
@@ -427,8 +427,8 @@ def _cmd_provenance(args):
     if record.get("overridden"):
         status += f"; overridden with --model (the release chose {record['release_choice']})"
     lines.append(status)
-    lines.append("(all fields: matprops provenance " + args.quantity + " --json; the model "
-                 "in full: matprops describe " + args.quantity + ")")
+    lines.append(_wrap(f"(all fields: matprops provenance {args.quantity} --json; the "
+                       f"model in full: matprops describe {args.quantity})"))
     print("\n".join(lines))
 
 
@@ -520,8 +520,8 @@ def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
             per_region.append(table.reset_coords([c for c in grid if c in AXES
                                                   and c in table.coords
                                                   and not table[c].dims], drop=False))
-        region_table = xr.concat(per_region, dim="region", data_vars="minimal",
-                                 coords="different", compat="equals",
+        region_table = xr.concat(per_region, dim="region", data_vars="all",
+                                 coords="minimal", compat="override",
                                  combine_attrs="override")
         region_table = region_table.assign_coords(region=("region", np.array(regions)))
         for name in ("acceptor_density", "donor_density", "excess_density"):
@@ -539,7 +539,8 @@ def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
                          "or site.",
     })
     if data.attrs.get("references"):
-        data.attrs["references"] = si.cite(format="text", quantities=shown)
+        data.attrs["references"] = si.cite(format="text", quantities=list(dict.fromkeys(
+            q for name in shown for q in QUANTITIES[name].model_quantities())))
     return data, skipped
 
 
@@ -549,7 +550,8 @@ def _cmd_demo(args):
         raise InputError("--scenario", "a scenario marked invented = true", path.name)
     si = _silicon(args)
     data, skipped = scenario_dataset(si, scenario, path.name)
-    if not args.output:
+    on_screen = not args.output and args.format in (None, "text")
+    if on_screen:
         print(scenario["title"])
         print(f"(INVENTED data for demonstration; datasets/scenarios/{path.name})")
         print(_wrap(scenario.get("description", "")))
@@ -569,7 +571,7 @@ def _cmd_demo(args):
     if skipped:
         footer += "\n" + _wrap("not yet in this release, skipped: " + ", ".join(skipped))
     _emit(args, data, footer)
-    if args.output and skipped:
+    if not on_screen and skipped:
         print(_wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
               file=sys.stderr)
 
@@ -729,7 +731,7 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-_NEGATIVE = re.compile(r"^-(\d|\.\d)")
+_NEGATIVE = re.compile(r"^-(\d|\.\d|inf|nan)", re.IGNORECASE)
 
 
 def _join_negative_values(argv: list[str], parser) -> list[str]:
