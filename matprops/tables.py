@@ -466,34 +466,37 @@ def _blocks(shape: list[int], numeric: list[int]):
 
 def _evaluate(si, entry: Tabulated, grid: _Grid, progress=None, done=0, total=0):
     dims = grid.dims_of(entry)
-    shape = [grid.values[d].size for d in dims]
-    size = math.prod(shape)
     values = {n: grid.values[n] for n in entry.takes if n in grid}
-    if size <= BLOCK:
+    if math.prod(values[d].size for d in dims) <= BLOCK:
         outs, units = _call_block(si, entry, values, dims)
         if progress:
-            progress(done + size, total)
+            progress(done + outs[0].size, total)
         return dims, outs, units
     units = _check_extremes(si, entry, grid, dims)  # warns once, or raises if strict
-    outs = None
-    numeric = [i for i, d in enumerate(dims) if not AXES[d].category]
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)  # checked on the extremes above
-        for along, part in _blocks(shape, numeric):
-            sub = dict(values)
-            index = [slice(None)] * len(dims)
-            if along is not None:
-                sub[dims[along]] = values[dims[along]][part]
-                index[along] = part
-            block, block_units = _call_block(si, entry, sub, dims)
-            if outs is None:
-                outs = [np.empty(shape) for _ in block]
-            for out, b, u, want in zip(outs, block, block_units, units, strict=True):
-                out[tuple(index)] = b if u == want else _convert(b, u, want)
-            done += block[0].size
-            if progress:
-                progress(done, total)
+        outs = _in_blocks(si, entry, values, dims, units, progress, done, total)
     return dims, outs, units
+
+
+def _in_blocks(si, entry, values, dims, units, progress=None, done=0, total=0):
+    """Evaluate block by block into preallocated outputs (linear time and memory)."""
+    shape = [values[d].size for d in dims]
+    numeric = [i for i, d in enumerate(dims) if not AXES[d].category]
+    outs = [np.empty(shape) for _ in units]
+    for along, part in _blocks(shape, numeric):
+        sub = dict(values)
+        index = [slice(None)] * len(dims)
+        if along is not None:
+            sub[dims[along]] = values[dims[along]][part]
+            index[along] = part
+        block, block_units = _call_block(si, entry, sub, dims)
+        for out, b, u, want in zip(outs, block, block_units, units, strict=True):
+            out[tuple(index)] = b if u == want else _convert(b, u, want)
+        done += block[0].size
+        if progress:
+            progress(done, total)
+    return outs
 
 
 def _convert(values, unit, target):
@@ -528,20 +531,24 @@ def _recipe(si):
 class _BlockFunction:
     """Picklable block evaluator for dask: one output part of one quantity."""
 
-    def __init__(self, recipe, quantity, dims, scalars, part, units):
+    def __init__(self, recipe, quantity, dims, scalars, part, all_units):
         self.recipe, self.quantity, self.dims = recipe, quantity, dims
-        self.scalars, self.part, self.units = scalars, part, units
+        self.scalars, self.part, self.all_units = scalars, part, all_units
+        self.units = all_units[part]
 
     def __call__(self, *blocks):
         si = _rebuild(self.recipe)
         values = dict(self.scalars)
         values.update(zip(self.dims, blocks, strict=True))
+        entry = QUANTITIES[self.quantity]
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)  # checked before the graph
-            outs, units = _call_block(si, QUANTITIES[self.quantity], values, self.dims)
-        out = outs[self.part]
-        return out if units[self.part] == self.units else _convert(out, units[self.part],
-                                                                   self.units)
+            if math.prod(values[d].size for d in self.dims) <= BLOCK:
+                outs, got = _call_block(si, entry, values, self.dims)
+                out = outs[self.part]
+                return out if got[self.part] == self.units else _convert(
+                    out, got[self.part], self.units)
+            return _in_blocks(si, entry, values, self.dims, self.all_units)[self.part]
 
 
 def _chunk_sizes(chunks, dims: list[str], grid: _Grid) -> dict[str, int]:
@@ -576,11 +583,11 @@ def _evaluate_lazy(si, entry: Tabulated, grid: _Grid, chunks):
         arguments += [da.from_array(grid.values[d], chunks=sizes[d]), letter]
     recipe = _recipe(si)
     outs = []
-    for part, unit in enumerate(units):
-        function = _BlockFunction(recipe, entry.name, dims, scalars, part, unit)
+    token = _grid_token(grid, (recipe, sorted(sizes.items())))
+    for part in range(len(units)):
+        function = _BlockFunction(recipe, entry.name, dims, scalars, part, units)
         outs.append(da.blockwise(function, letters, *arguments, dtype=float,
-                                 name=f"matprops-{entry.name}-{part}-"
-                                      f"{_grid_token(grid, recipe)}"))
+                                 name=f"matprops-{entry.name}-{part}-{token}"))
     return dims, outs, units
 
 

@@ -162,8 +162,18 @@ def test_lazy_table_matches_eager(si):
     for name in eager.data_vars:
         np.testing.assert_array_equal(computed[name], eager[name])
         assert computed[name].attrs == eager[name].attrs
-    again = si.table(["absorption"], T=t, wavelength=lam, chunks=7)
+    # dask keys are deterministic, and differ when the chunks differ
+    again = si.table(["absorption"], T=t, wavelength=lam, chunks={"T": 7, "wavelength": 8})
     assert again.absorption_coefficient.data.name == lazy.absorption_coefficient.data.name
+    other = si.table(["absorption"], T=t, wavelength=lam, chunks=7)
+    assert other.absorption_coefficient.data.name != lazy.absorption_coefficient.data.name
+    # blocks larger than the evaluation block are evaluated in pieces, same numbers
+    big = si.table(["absorption"], T=np.linspace(250.0, 400.0, 600),
+                   wavelength=np.linspace(400.0, 1100.0, 500), chunks=600)
+    np.testing.assert_array_equal(
+        big.absorption_coefficient.compute(scheduler="synchronous"),
+        si.table(["absorption"], T=np.linspace(250.0, 400.0, 600),
+                 wavelength=np.linspace(400.0, 1100.0, 500)).absorption_coefficient)
     with pytest.warns(matprops.ValidityWarning, match="200-1100 nm"):  # warned at build time
         si.table(["absorption"], T=t, wavelength=np.linspace(200.0, 1100.0, 10), chunks=5)
     with pytest.raises(matprops.InputError, match="'chunks'"):
