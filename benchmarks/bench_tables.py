@@ -162,7 +162,7 @@ def cluster_sweep(si, points, chunk_sizes):
             seconds = time.perf_counter() - start
         print(f"   threads scheduler, chunk {chunk:5d}: {seconds:6.2f} s")
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  host="127.0.0.1", dashboard_address=None,
+                                  host="127.0.0.1", dashboard_address=":0",
                                   memory_limit="1.5GB") as cluster, \
             distributed.Client(cluster) as client:
         for chunk in chunk_sizes:

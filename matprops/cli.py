@@ -186,9 +186,26 @@ class _Progress:
             self.stream.flush()
 
 
+def _catalog():
+    """The installed catalogue, or a one-line error when its folder is unusable."""
+    from .catalog import default_catalog
+    from .errors import DatasetError
+
+    catalog = default_catalog()
+    root = catalog.root
+    hint = ("set MATPROPS_DATASETS to a matprops datasets folder (absolute path), or unset "
+            "it to use the installed data")
+    if not root.is_dir():
+        raise DatasetError(root, f"datasets folder does not exist; {hint}")
+    if not catalog.release_ids():
+        raise DatasetError(root / "releases", f"no release files (<YYYY.N>.toml); {hint}")
+    return catalog
+
+
 def _silicon(args):
     from .material import Silicon
 
+    _catalog()
     overrides = {}
     for item in args.model or []:
         quantity, sep, model_id = item.partition("=")
@@ -435,6 +452,7 @@ def _cmd_provenance(args):
 def _cmd_release_diff(args):
     from .tables import release_difference
 
+    _catalog()
     diff = release_difference(args.old, args.new)
     if args.json:
         print(json.dumps(diff, indent=1, ensure_ascii=False))
@@ -580,6 +598,7 @@ def _cmd_models(args):
     from .catalog import default_catalog
     from .material import models
 
+    _catalog()
     catalog = models(args.quantity) if args.quantity else models()
     if args.quantity:
         catalog = {args.quantity: catalog}
@@ -592,9 +611,7 @@ def _cmd_models(args):
 
 
 def _cmd_releases(args):
-    from .catalog import default_catalog
-
-    catalog = default_catalog()
+    catalog = _catalog()
     for release_id in catalog.release_ids():
         release = catalog.release(release_id)
         print(f"{release_id} ({release.status}, {release.date})")
@@ -782,6 +799,15 @@ def main(argv=None) -> int:
         os.dup2(devnull, sys.stdout.fileno())
         print("matprops: error: output closed by the reading program before the end",
               file=sys.stderr)
+        return 2
+    except tomllib.TOMLDecodeError as exc:
+        print(f"matprops: error: a data file is not valid TOML ({_cli_message(str(exc))}); "
+              "check the files under the datasets folder (python -m matprops.catalog)",
+              file=sys.stderr)
+        return 2
+    except OSError as exc:  # a file that cannot be read or written
+        where = f": {exc.filename}" if exc.filename else ""
+        print(f"matprops: error: {exc.strerror or exc}{where}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
         print("matprops: interrupted", file=sys.stderr)

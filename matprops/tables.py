@@ -264,6 +264,10 @@ def _grid_values(ax: Axis, value):
             raise InputError(ax.name, "at least one value", "an empty list")
         scalar = isinstance(value, str) or np.ndim(value) == 0
         return np.asarray(cleaned, dtype=object), None, not scalar
+    if isinstance(value, (list, tuple)) and value and all(isinstance(v, str) for v in value):
+        if any(v in QUANTITIES for v in value):
+            raise InputError(ax.name, f"numbers in {ax.units} (quantity names go in the "
+                             "first argument, as one list)", repr(value))
     requested = None
     if isinstance(value, pint.Quantity) and ax.name == "temperature":
         for name in value.units._units:

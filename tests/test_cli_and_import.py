@@ -349,3 +349,37 @@ def test_optical_table(tmp_path, capsys):
     with xr.open_dataset(path) as data:
         assert data.absorption_coefficient.dims == ("temperature", "wavelength")
         assert data.absorption_coefficient.values.item() == pytest.approx(64.0, rel=1e-3)
+
+
+@pytest.fixture
+def datasets_env(datasets_copy, monkeypatch):
+    """Point the command line at a private datasets folder (and back afterwards)."""
+    from matprops.catalog import default_catalog
+
+    root, catalog = datasets_copy
+    default_catalog.cache_clear()
+    yield root, catalog, monkeypatch
+    monkeypatch.delenv("MATPROPS_DATASETS", raising=False)
+    default_catalog.cache_clear()
+
+
+@pytest.mark.parametrize("case, fragment", [
+    ("missing", "datasets folder does not exist; set MATPROPS_DATASETS"),
+    ("no releases", "no release files"),
+    ("malformed release", "not valid TOML"),
+])
+def test_unusable_datasets_folder_is_one_line(capsys, tmp_path, datasets_env, case, fragment):
+    root, catalog, monkeypatch = datasets_env
+    if case == "missing":
+        monkeypatch.setenv("MATPROPS_DATASETS", str(tmp_path / "nowhere"))
+    elif case == "no releases":
+        for path in (root / "releases").glob("*.toml"):
+            path.unlink()
+        monkeypatch.setenv("MATPROPS_DATASETS", str(root))
+    else:
+        (root / "releases/2026.1.toml").write_text('release = "2026.1\n')
+        catalog.write_checksums()
+        monkeypatch.setenv("MATPROPS_DATASETS", str(root))
+    for argv in (["table", "-t", "300"], ["releases"]):
+        code, _, err = run(capsys, *argv)
+        one_line_error(code, err, fragment)

@@ -113,6 +113,7 @@ def test_default_selection_follows_the_axes(si):
     ({"T": []}, r"'temperature' must be at least one value"),
     ({"T": [300, -5]}, r"'temperature' must be > 0 K"),
     ({"T": matprops.Q_([1], "m")}, r"'temperature' expects a quantity in K"),
+    ({"temperature": ["intrinsic_density"]}, r"quantity names go in the first argument"),
 ])
 def test_bad_grids(si, kwargs, pattern):
     with pytest.raises(matprops.Error, match=pattern):
@@ -187,7 +188,7 @@ def test_lazy_table_on_a_two_worker_cluster(si):
     eager = si.table(["absorption", "intrinsic_density"], T=t, wavelength=lam)
     lazy = si.table(["absorption", "intrinsic_density"], T=t, wavelength=lam, chunks=16)
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  host="127.0.0.1", dashboard_address=None) as cluster, \
+                                  host="127.0.0.1", dashboard_address=":0") as cluster, \
             distributed.Client(cluster) as client:
         computed = client.compute(lazy).result()
     np.testing.assert_array_equal(computed.absorption_coefficient, eager.absorption_coefficient)
