@@ -450,7 +450,7 @@ def _cmd_provenance(args):
 
 
 def _cmd_release_diff(args):
-    from .tables import release_difference
+    from .changes import release_difference
 
     _catalog()
     diff = release_difference(args.old, args.new)
@@ -461,8 +461,8 @@ def _cmd_release_diff(args):
     print(f"models: release {old} -> {new}")
     for record in diff["models"]:
         mark = "changed" if record["changed"] else "same"
-        print(f"  {record['quantity']:24s} {str(record['old']):24s} -> "
-              f"{str(record['new']):24s} {mark}")
+        print(f"  {record['quantity']:24s} {record['old']!s:24s} -> "
+              f"{record['new']!s:24s} {mark}")
     print(f"\nlargest deviation on the standard reference grid ({new} against {old}):")
     for record in diff["deviations"]:
         if record["largest_relative"] is None:

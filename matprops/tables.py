@@ -1,4 +1,4 @@
-"""Grids of quantities -> xarray.Dataset; model comparison; release differences.
+"""Grids of quantities -> xarray.Dataset, and model comparison.
 
 The analyst's door. :data:`QUANTITIES` is the registry of what can be tabulated:
 each entry says which grid axes (:data:`AXES`: temperature, doping, excess
@@ -38,8 +38,8 @@ import numpy as np
 from .errors import InputError, UnknownModelError, UnknownQuantityError, ValidityWarning
 from .units import to_magnitude
 
-__all__ = ["AXES", "QUANTITIES", "Axis", "Tabulated", "axis", "cf_units", "compare",
-           "release_difference", "table"]
+__all__ = ["AXES", "QUANTITIES", "Axis", "Tabulated", "available", "axis", "cf_units",
+           "compare", "table"]
 
 BLOCK = 1 << 18  # points per evaluation block (~2 MB per float64 temporary)
 
@@ -121,6 +121,13 @@ class Tabulated:
     log : the values span decades (log y axis in plots)
     needs : quantities whose models produce it (default: its own name, or the
         components of a derived quantity)
+    fields : for a method that returns a result object (e.g. a frozen dataclass of
+        pint quantities), the attribute holding each output, in the order of
+        ``outputs``
+
+    Example: ``Tabulated("mobility", {"carrier": 0, "temperature": 1,
+    "acceptor_density": "Na", "donor_density": "Nd"}, (("mobility", "carrier
+    mobility"),))`` makes ``si.mobility(carrier, T, Na=..., Nd=...)`` tabulable.
     """
 
     name: str
@@ -130,6 +137,7 @@ class Tabulated:
     wants: tuple[str, ...] = ()
     log: bool = False
     needs: tuple[str, ...] = ()
+    fields: tuple[str, ...] = ()
     _signature: dict = field(default_factory=dict, compare=False, repr=False)
 
     def parameters(self, si) -> dict[str, tuple[str, bool]]:
@@ -177,10 +185,10 @@ def _registry(*entries: Tabulated) -> dict[str, Tabulated]:
 _T = {"temperature": 0}
 # One entry per tabulable quantity; add one here when a Silicon method lands.
 QUANTITIES: dict[str, Tabulated] = _registry(
-    Tabulated("band_gap", _T, (("band_gap", "fundamental (indirect) band gap, undoped, "
-                                            "no narrowing"),)),
-    Tabulated("intrinsic_density", _T,
-              (("intrinsic_density", "intrinsic carrier density, undoped"),), log=True),
+    Tabulated("band_gap", _T, (
+        ("band_gap", "fundamental (indirect) band gap, undoped, no narrowing"),)),
+    Tabulated("intrinsic_density", _T, (
+        ("intrinsic_density", "intrinsic carrier density, undoped"),), log=True),
     Tabulated("densities_of_states", _T, (
         ("conduction_band_states", "effective density of states of the conduction band"),
         ("valence_band_states", "effective density of states of the valence band")),
@@ -188,24 +196,22 @@ QUANTITIES: dict[str, Tabulated] = _registry(
     Tabulated("lattice_constant", _T, (("lattice_constant", "cubic lattice constant"),)),
     Tabulated("density", _T, (("density", "mass density"),)),
     Tabulated("atomic_density", _T, (("atomic_density", "silicon atoms per volume"),)),
-    Tabulated("surface_atom_density", {"plane": 0, "temperature": 1},
-              (("surface_atom_density", "atoms per area in one atomic layer of the "
-                                        "plane"),)),
-    Tabulated("dangling_bond_density", {"plane": 0, "temperature": 1},
-              (("dangling_bond_density", "dangling bonds per area of the ideal "
-                                         "unreconstructed surface"),)),
+    Tabulated("surface_atom_density", {"plane": 0, "temperature": 1}, (
+        ("surface_atom_density", "atoms per area in one atomic layer of the plane"),)),
+    Tabulated("dangling_bond_density", {"plane": 0, "temperature": 1}, (
+        ("dangling_bond_density",
+         "dangling bonds per area of the ideal unreconstructed surface"),)),
     Tabulated("molar_mass", {}, (("molar_mass", "molar mass (standard atomic weight)"),)),
-    Tabulated("permittivity", {}, (("relative_permittivity",
-                                    "static relative permittivity"),)),
-    Tabulated("absorption", {"wavelength": 0, "temperature": 1},
-              (("absorption_coefficient", "band-to-band absorption coefficient"),),
-              log=True),
-    Tabulated("refractive_index", {"wavelength": 0, "temperature": 1},
-              (("refractive_index", "real part of the complex refractive index"),)),
+    Tabulated("permittivity", {}, (
+        ("relative_permittivity", "static relative permittivity"),)),
+    Tabulated("absorption", {"wavelength": 0, "temperature": 1}, (
+        ("absorption_coefficient", "band-to-band absorption coefficient"),), log=True),
+    Tabulated("refractive_index", {"wavelength": 0, "temperature": 1}, (
+        ("refractive_index", "real part of the complex refractive index"),)),
     Tabulated("free_carrier_absorption",
-              {"wavelength": 0, "electron_density": "n", "hole_density": "p"},
-              (("free_carrier_absorption_coefficient", "free-carrier absorption "
-                                                       "coefficient"),),
+              {"wavelength": 0, "electron_density": "n", "hole_density": "p"}, (
+                  ("free_carrier_absorption_coefficient",
+                   "free-carrier absorption coefficient"),),
               wants=("electron_density", "hole_density"), log=True),
 )
 
@@ -264,9 +270,9 @@ def _grid_values(ax: Axis, value):
             raise InputError(ax.name, "at least one value", "an empty list")
         scalar = isinstance(value, str) or np.ndim(value) == 0
         return np.asarray(cleaned, dtype=object), None, not scalar
-    if isinstance(value, (list, tuple)) and value and all(isinstance(v, str) for v in value):
-        if any(v in QUANTITIES for v in value):
-            raise InputError(ax.name, f"numbers in {ax.units} (quantity names go in the "
+    if (isinstance(value, (list, tuple)) and value and all(isinstance(v, str) for v in value)
+            and any(v in QUANTITIES for v in value)):
+        raise InputError(ax.name, f"numbers in {ax.units} (quantity names go in the "
                              "first argument, as one list)", repr(value))
     requested = None
     if isinstance(value, pint.Quantity) and ax.name == "temperature":
@@ -301,10 +307,10 @@ class _Grid:
         self.values: dict[str, np.ndarray] = {}
         self.requested: dict[str, str] = {}
         self.dims: list[str] = []
-        for name in AXES:  # canonical order
+        for name, ax in AXES.items():  # canonical order
             if name not in given:
                 continue
-            values, requested, is_dim = _grid_values(AXES[name], given[name])
+            values, requested, is_dim = _grid_values(ax, given[name])
             self.values[name] = values if is_dim else values.reshape(())
             if requested:
                 self.requested[name] = requested
@@ -427,7 +433,12 @@ def _call_block(si, entry: Tabulated, values: Mapping[str, np.ndarray], dims: li
             else:
                 arguments[name] = str(vals.item()) if AXES[name].category else vals.item()
         result = entry.call(si, arguments)
-        parts = result if isinstance(result, tuple) else (result,)
+        if isinstance(result, tuple):
+            parts = result
+        elif entry.fields:
+            parts = tuple(getattr(result, name) for name in entry.fields)
+        else:
+            parts = (result,)
         if outs is None:
             units = [p.units for p in parts]
             outs = [np.empty(shape) for _ in parts]
@@ -776,66 +787,3 @@ def compare(si, quantity: str, models: Iterable[str] | None = None, *, chunks=No
                    f"{_Grid(axes).describe()})",
     })
     return combined
-
-
-# --------------------------------------------------------------------------- releases
-
-
-def release_difference(old: str, new: str, catalog=None) -> dict:
-    """What changed between two releases.
-
-    Returns a dict with ``models``: one record per quantity (the model in each
-    release, ``changed`` when the model id or its file differs), and
-    ``deviations``: for every case of the standard reference grid
-    (:data:`matprops.reference.CASES`) that both releases evaluate, the largest
-    relative deviation ``|new/old - 1|``, the largest absolute deviation with units,
-    and the grid point where the relative one occurs.
-    """
-    from .catalog import default_catalog, sha256_of
-    from .material import Silicon
-    from .reference import evaluate
-
-    catalog = catalog or default_catalog()
-    releases = {r: catalog.release(r) for r in (old, new)}
-    silicon = {r: Silicon(release=r, catalog=catalog) for r in (old, new)}
-    models = []
-    for quantity in sorted(set(releases[old].models) | set(releases[new].models)):
-        before, after = releases[old].models.get(quantity), releases[new].models.get(quantity)
-        record = {"quantity": quantity, "old": before, "new": after}
-        files = [sha256_of(silicon[r].model(quantity).path) if m else None
-                 for r, m in ((old, before), (new, after))]
-        record["changed"] = before != after or files[0] != files[1]
-        models.append(record)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", ValidityWarning)
-        cases = {r: evaluate(silicon[r]) for r in (old, new)}
-    deviations = []
-    for label in sorted(set(cases[old]) & set(cases[new])):
-        a, b = cases[old][label], cases[new][label]
-        for index, (va, vb) in enumerate(zip(a["values"], b["values"], strict=False)):
-            va, vb = np.asarray(va, float), np.asarray(vb, float)
-            both = np.isfinite(va) & np.isfinite(vb)
-            record = {"case": label if len(a["values"]) == 1 else f"{label}[{index}]",
-                      "units": a["units"][index], "points": int(va.size),
-                      "compared": int(both.sum())}
-            if a["units"][index] != b["units"][index] or va.shape != vb.shape:
-                record.update(largest_relative=None, largest_absolute=None, at=None,
-                              note="units or grid differ between the releases")
-            elif not both.any():
-                record.update(largest_relative=None, largest_absolute=None, at=None)
-            else:
-                with np.errstate(divide="ignore", invalid="ignore"):
-                    rel = np.where(both & (va != 0), np.abs(vb / va - 1), 0.0)
-                absolute = np.where(both, np.abs(vb - va), 0.0)
-                worst = int(np.argmax(rel))
-                names = list(a["grid"])
-                point = {}
-                if names:
-                    shape = [len(a["grid"][n]) for n in names]
-                    for n, i in zip(names, np.unravel_index(worst, shape), strict=True):
-                        point[n] = a["grid"][n][i]
-                point.update(a["fixed"])
-                record.update(largest_relative=float(rel.max()),
-                              largest_absolute=float(absolute.max()), at=point)
-            deviations.append(record)
-    return {"old": old, "new": new, "models": models, "deviations": deviations}

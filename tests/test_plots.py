@@ -13,7 +13,7 @@ from matprops.cli import main
 pytest.importorskip("matplotlib")
 Image = pytest.importorskip("PIL.Image")
 
-from matprops import plotting  # noqa: E402
+from matprops import plotting
 
 
 def texts(figure):

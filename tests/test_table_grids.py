@@ -248,7 +248,9 @@ def test_release_difference_with_a_temporary_second_release(datasets_copy):
     root, catalog = datasets_copy
     _second_release(root, catalog, {"band_gap": ("passler-2002", "thurmond-1975"),
                                     "intrinsic_density": ("couderc-2014", "boltzmann")})
-    diff = tables.release_difference("2026.1", "2026.2", catalog)
+    from matprops.changes import release_difference
+
+    diff = release_difference("2026.1", "2026.2", catalog)
     changed = {r["quantity"] for r in diff["models"] if r["changed"]}
     assert changed == {"band_gap", "intrinsic_density"}
     record = {r["quantity"]: r for r in diff["models"]}["band_gap"]
@@ -300,3 +302,27 @@ def test_a_registry_entry_is_all_a_new_quantity_needs(plugged):
                                si.table(T=[300.0], Nd=[1e18]).data_vars.values()}
     assert "gap_narrowing" not in {v.attrs["quantity"] for v in
                                    si.table(T=[300.0]).data_vars.values()}
+
+
+def test_methods_returning_a_result_object(monkeypatch):
+    """A method that answers with several named fields (like the coming equilibrium
+    result) is tabulated field by field."""
+    from dataclasses import dataclass
+
+    @dataclass(frozen=True)
+    class Pair:
+        gap: object
+        states: object
+
+    def pair(self, T):
+        nc, _ = self.densities_of_states(T)
+        return Pair(self.band_gap(T), nc)
+
+    monkeypatch.setattr(matprops.Silicon, "pair_probe", pair, raising=False)
+    monkeypatch.setitem(QUANTITIES, "pair_probe", Tabulated(
+        "pair_probe", {"temperature": 0}, (("gap", "gap"), ("states", "states")),
+        needs=("band_gap", "densities_of_states"), fields=("gap", "states")))
+    si = matprops.silicon()
+    data = si.table(["pair_probe"], T=[250.0, 300.0])
+    np.testing.assert_array_equal(data.gap, si.band_gap([250.0, 300.0]).m_as("eV"))
+    assert data.states.attrs["units"] == "cm-3"
