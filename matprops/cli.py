@@ -57,23 +57,26 @@ def _expand(start: float, stop: float, step: str, option: str, text: str) -> np.
         factor = float(step[1:])
         if not factor > 1 or start <= 0:
             raise bad("a geometric range start:stop:*factor with start > 0 and factor > 1")
-        count = int(np.floor(np.log(stop / start) / np.log(factor) + 1e-9)) + 1
-        exponents = np.arange(min(count, MAX_VALUES + 1))
-        values = start * factor ** exponents
+        count = np.floor(np.log(stop / start) / np.log(factor) + 1e-9) + 1
     elif step.endswith("decade"):
         per_decade = float(step.split("/")[0])
         if not per_decade > 0 or start <= 0:
             raise bad("a range start:stop:N/decade with start > 0 and N > 0")
-        count = int(np.floor(np.log10(stop / start) * per_decade + 1e-9)) + 1
-        values = 10 ** (np.log10(start) + np.arange(min(count, MAX_VALUES + 1)) / per_decade)
+        count = np.floor(np.log10(stop / start) * per_decade + 1e-9) + 1
     else:
         linear = float(step)
         if not linear > 0:
             raise bad("a range start:stop:step with step > 0")
-        count = int(np.floor((stop - start) / linear + 1e-9)) + 1
-        values = start + linear * np.arange(min(count, MAX_VALUES + 1))
-    if count > MAX_VALUES:
+        count = np.floor((stop - start) / linear + 1e-9) + 1
+    if not count <= MAX_VALUES:  # checked before anything is allocated
         raise bad(f"a range of at most {MAX_VALUES:.0e} values (this one has {count:.3g})")
+    steps = np.arange(int(count))
+    if step.startswith("*"):
+        values = start * factor ** steps
+    elif step.endswith("decade"):
+        values = 10 ** (np.log10(start) + steps / per_decade)
+    else:
+        values = start + linear * steps
     return values
 
 
