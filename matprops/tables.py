@@ -183,6 +183,9 @@ def _registry(*entries: Tabulated) -> dict[str, Tabulated]:
 
 
 _T = {"temperature": 0}
+_DOPED = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
+          "electron_density": "n", "hole_density": "p"}
+_DOPING = ("acceptor_density", "donor_density", "electron_density", "hole_density")
 # One entry per tabulable quantity; add one here when a Silicon method lands.
 QUANTITIES: dict[str, Tabulated] = _registry(
     Tabulated("band_gap", _T, (
@@ -213,6 +216,25 @@ QUANTITIES: dict[str, Tabulated] = _registry(
                   ("free_carrier_absorption_coefficient",
                    "free-carrier absorption coefficient"),),
               wants=("electron_density", "hole_density"), log=True),
+    # doping axis (methods of the carrier family; inert until the release serves them)
+    Tabulated("gap_narrowing", _DOPED, (
+        ("gap_narrowing", "band-gap narrowing"),), wants=_DOPING),
+    Tabulated("effective_intrinsic_density", _DOPED, (
+        ("effective_intrinsic_density",
+         "effective intrinsic carrier density, with band-gap narrowing"),),
+        wants=_DOPING, log=True),
+    Tabulated("equilibrium",
+              {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"}, (
+                  ("fermi_level", "Fermi level from the intrinsic level of undoped silicon"),
+                  ("fermi_level_from_conduction_edge",
+                   "Fermi level from the conduction-band edge after narrowing"),
+                  ("equilibrium_electron_density", "electron density in equilibrium"),
+                  ("equilibrium_hole_density", "hole density in equilibrium"),
+                  ("ionised_donor_density", "ionised donor density"),
+                  ("ionised_acceptor_density", "ionised acceptor density")),
+              fields=("fermi_level", "fermi_level_from_conduction_edge", "electron_density",
+                      "hole_density", "ionised_donors", "ionised_acceptors"),
+              wants=_DOPING[:2]),
 )
 
 
