@@ -28,7 +28,7 @@ _LAZY = {
     "models": "material", "Q_": "units", "ureg": "units",
 }
 _SUBMODULES = {"optics", "tables", "catalog", "units", "material", "kernels", "cli",
-               "reference", "modeldocs"}
+               "reference", "modeldocs", "export", "plotting", "changes"}
 
 
 def __getattr__(name):

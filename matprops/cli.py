@@ -1,21 +1,31 @@
 """The ``matprops`` command: argument parsing and printing only.
 
-    matprops table [QUANTITY ...] --temperature=-40,25,85degC [-o out.nc]
-    matprops table absorption --temperature=300 --wavelength='400:1100:100 nm'
-    matprops demo                       # the bundled (invented) scenario
-    matprops models [QUANTITY]          # what exists
-    matprops releases
-    matprops provenance QUANTITY
-    matprops cite [--format text]
+    matprops demo                              # the bundled, INVENTED scenario
+    matprops table band_gap intrinsic_density --temperature -40,25,85degC
+    matprops table absorption -t 300 -w '400:1100:100 nm' -o optics.nc
+    matprops table --Na '1e14:1e19:*10' -t 300 ...      # doping axes (cm^-3)
+    matprops compare band_gap -t '50:500:50 K'          # every model side by side
+    matprops plot band_gap --models passler-2002,thurmond-1975 -t 50:500:5 -o gap.png
+    matprops describe intrinsic_density [MODEL]         # equation, coefficients, source
+    matprops provenance QUANTITY [--json]
+    matprops release-diff OLD NEW
+    matprops models [QUANTITY]; matprops releases; matprops cite [--format text]
 
-Every sub-command that evaluates accepts ``--release`` and ``--model Q=ID``.
+Grid options take numbers separated by commas, ranges ``start:stop:step``,
+``start:stop:*factor`` or ``start:stop:N/decade``, then an optional unit:
+``-40,25,85degC``, ``'250:400:50 K'``, ``1e15:1e19:*10``, ``'3e2 K'``. Errors are one
+line on stderr with exit status 2; warnings name the command's own options.
 """
 
 from __future__ import annotations
 
 import argparse
 import json
+import os
+import re
+import shlex
 import sys
+import textwrap
 import tomllib
 import warnings
 
@@ -25,48 +35,180 @@ from .errors import Error, InputError, UnitError, ValidityWarning
 
 __all__ = ["main", "parse_grid"]
 
+_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
+_ITEM = re.compile(rf"^\s*(?P<start>{_NUMBER})(?:\s*:\s*(?P<stop>{_NUMBER})\s*:\s*"
+                   rf"(?P<step>\*\s*{_NUMBER}|{_NUMBER}\s*/\s*decade|{_NUMBER}))?\s*"
+                   rf"(?P<rest>.*?)\s*$")
+_NONFINITE = re.compile(r"(?i)(^|[\s,:*/+-])(nan|inf|infinity)\b")
+MAX_VALUES = 10**8
+_GRID_HELP = ("numbers separated by commas, or ranges start:stop:step, start:stop:*factor "
+              "or start:stop:N/decade, then an optional unit (e.g. -40,25,85degC, "
+              "'250:400:50 K', 1e15:1e19:*10)")
+
+
+def _expand(start: float, stop: float, step: str, option: str, text: str) -> np.ndarray:
+    """The values of one range item."""
+    def bad(requirement):
+        return InputError(option, requirement, repr(text))
+
+    if stop < start:
+        raise bad("a range whose stop is not below its start")
+    if step.startswith("*"):
+        factor = float(step[1:])
+        if not factor > 1 or start <= 0:
+            raise bad("a geometric range start:stop:*factor with start > 0 and factor > 1")
+        count = np.floor(np.log(stop / start) / np.log(factor) + 1e-9) + 1
+    elif step.endswith("decade"):
+        per_decade = float(step.split("/")[0])
+        if not per_decade > 0 or start <= 0:
+            raise bad("a range start:stop:N/decade with start > 0 and N > 0")
+        count = np.floor(np.log10(stop / start) * per_decade + 1e-9) + 1
+    else:
+        linear = float(step)
+        if not linear > 0:
+            raise bad("a range start:stop:step with step > 0")
+        count = np.floor((stop - start) / linear + 1e-9) + 1
+    if not count <= MAX_VALUES:  # checked before anything is allocated
+        raise bad(f"a range of at most {MAX_VALUES:.0e} values (this one has {count:.3g})")
+    steps = np.arange(int(count))
+    if step.startswith("*"):
+        values = start * factor ** steps
+    elif step.endswith("decade"):
+        values = 10 ** (np.log10(start) + steps / per_decade)
+    else:
+        values = start + linear * steps
+    return values
+
 
 def parse_grid(text: str, option: str = "--temperature", default_units: str = "K"):
-    """Values of a grid option: ``"-40,25,85 degC"``, ``"250:400:50 K"`` (start:stop:step,
-    stop included), ``"300"`` (in ``default_units``).
+    """Values of a grid option: ``"-40,25,85 degC"``, ``"250:400:50 K"``,
+    ``"1e15:1e19:*10"`` (geometric), ``"1e15:1e19:4/decade"``, ``"3e2 K"``, ``"300"``.
 
-    Returns a pint quantity (or a float array in default units when no unit is given).
+    Ranges include their stop. Returns a pint quantity when a unit is given, else a
+    float array in ``default_units``; a category option (``default_units=None``)
+    returns a list of strings.
     """
     from .units import Q_
 
-    text = text.strip()
-    numbers, units = text, ""
-    for index, char in enumerate(text):
-        if char.isalpha() or char in "°":
-            numbers, units = text[:index], text[index:].strip()
-            break
-    values = []
-    try:
-        for item in filter(None, (p.strip() for p in numbers.split(","))):
-            if ":" in item:
-                start, stop, step = (float(x) for x in item.split(":"))
-                if step <= 0:
-                    raise ValueError("step must be > 0")
-                count = int(np.floor((stop - start) / step + 1e-9)) + 1
-                values.extend(start + step * np.arange(count))
-            else:
-                values.append(float(item))
-    except ValueError as exc:
-        raise InputError(option, "numbers separated by commas or start:stop:step, "
-                         "then an optional unit (e.g. -40,25,85degC)", repr(text)) from exc
-    if not values:
-        raise InputError(option, "at least one value", repr(text))
+    text = str(text).strip()
+    if default_units is None:  # a category such as --carrier electron,hole
+        items = [p.strip() for p in text.split(",") if p.strip()]
+        if not items:
+            raise InputError(option, "one or more names separated by commas", repr(text))
+        return items
+    if _NONFINITE.search(text):
+        raise InputError(option, "finite numbers (nan and inf are not grid values)",
+                         repr(text))
+    pieces = text.split(",")
+    values, units = [], ""
+    for number, piece in enumerate(pieces):
+        match = _ITEM.match(piece)
+        if not match or (match["rest"] and number != len(pieces) - 1):
+            raise InputError(option, _GRID_HELP, repr(text))
+        if match["stop"] is None:
+            values.append(np.array([float(match["start"])]))
+        else:
+            values.append(_expand(float(match["start"]), float(match["stop"]),
+                                  match["step"].replace(" ", ""), option, text))
+        units = match["rest"]
+    array = np.concatenate(values)
+    if array.size > MAX_VALUES:
+        raise InputError(option, f"at most {MAX_VALUES:.0e} values", f"{array.size:.3g}")
     if not units:
-        return np.asarray(values)
+        return array
+    if re.match(r"^[:*/]", units):
+        raise InputError(option, _GRID_HELP, repr(text))
     try:
-        return Q_(np.asarray(values), units)
-    except Exception as exc:
-        raise UnitError(option, f"{default_units} or another unit of the same kind", text) from exc
+        from .units import unit
+
+        return Q_(array, unit(units))
+    except Exception as exc:  # pint raises several unrelated types for a bad unit
+        raise UnitError(option, f"{default_units} or another unit of the same kind",
+                        text) from exc
+
+
+# --------------------------------------------------------------------------- messages
+
+
+def _cli_message(text: str) -> str:
+    """Library wording -> the command line's: options instead of argument names and
+    Python syntax; one line."""
+    from .tables import AXES
+
+    for ax in AXES.values():
+        text = text.replace(f"argument {ax.name!r}", f"option {ax.option}")
+        if ax.alias:
+            text = text.replace(f"argument {ax.alias!r}", f"option {ax.option}")
+    text = re.sub(r"argument '(-[\w/-]+)'", r"option \1", text)
+    for argument, option in (("path", "-o/--output"), ("format", "--format"),
+                             ("models", "--models"), ("x", "--x"), ("chunks", "--chunks"),
+                             ("layout", "--layout")):
+        text = text.replace(f"argument {argument!r}", f"option {option}")
+    text = text.replace("argument 'quantities'", "the QUANTITY arguments")
+    text = text.replace("(--force, or overwrite=True, replaces it)", "(--force replaces it)")
+    text = re.sub(r"\(?models=\{'(\w+)': '([\w.-]+)'\}\)?", r"(--model \1=\2)", text)
+    text = text.replace("strict=True", "--strict")
+    return " ".join(str(text).split())
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse with one-line errors (exit status 2)."""
+
+    def error(self, message):
+        hint = f" (see {self.prog} --help)"
+        self.exit(2, f"matprops: error: {' '.join(message.split())}{hint}\n")
+
+
+# --------------------------------------------------------------------------- helpers
+
+
+class _Progress:
+    """A progress bar on stderr for grids above ~1e6 points; silent when stderr is
+    not a terminal."""
+
+    THRESHOLD = 1_000_000
+
+    def __init__(self, stream=None):
+        self.stream = stream or sys.stderr
+        self.active = hasattr(self.stream, "isatty") and self.stream.isatty()
+        self.drawn = False
+
+    def __call__(self, done: int, total: int):
+        if not self.active or total < self.THRESHOLD:
+            return
+        width = 30
+        filled = int(width * done / total)
+        self.stream.write(f"\r[{'#' * filled}{'.' * (width - filled)}] "
+                          f"{100 * done / total:5.1f} % of {total:.3g} points")
+        self.stream.flush()
+        self.drawn = True
+
+    def close(self):
+        if self.drawn:
+            self.stream.write("\n")
+            self.stream.flush()
+
+
+def _catalog():
+    """The installed catalogue, or a one-line error when its folder is unusable."""
+    from .catalog import default_catalog
+    from .errors import DatasetError
+
+    catalog = default_catalog()
+    root = catalog.root
+    hint = ("set MATPROPS_DATASETS to a matprops datasets folder (absolute path), or unset "
+            "it to use the installed data")
+    if not root.is_dir():
+        raise DatasetError(root, f"datasets folder does not exist; {hint}")
+    if not catalog.release_ids():
+        raise DatasetError(root / "releases", f"no release files (<YYYY.N>.toml); {hint}")
+    return catalog
 
 
 def _silicon(args):
     from .material import Silicon
 
+    _catalog()
     overrides = {}
     for item in args.model or []:
         quantity, sep, model_id = item.partition("=")
@@ -76,118 +218,523 @@ def _silicon(args):
     return Silicon(release=args.release, models=overrides, strict=args.strict)
 
 
-def _print_table(args, si, quantities, temperature, wavelength=None):
-    from . import tables
+def _grid(args) -> dict:
+    from .tables import AXES
 
-    data = si.table(quantities, temperature=temperature, wavelength=wavelength)
+    grid = {}
+    for ax in AXES.values():
+        text = getattr(args, ax.name, None)
+        if text is not None:
+            grid[ax.name] = parse_grid(text, ax.option, ax.units)
+    return grid
+
+
+def _wrap(text: str, indent: str = "", width: int | None = None) -> str:
+    from .export import terminal_width
+
+    return textwrap.fill(" ".join(str(text).split()), width or terminal_width(),
+                         initial_indent=indent, subsequent_indent=indent + "  ")
+
+
+def _command_line(argv) -> str:
+    return "matprops " + shlex.join(argv)
+
+
+def _emit(args, data, footer: str = ""):
+    """Write a table to -o, or print it in --format (text by default)."""
+    from . import export
+
     if args.output:
-        path = tables.write(data, args.output, args.format)
-        print(f"wrote {path}")
-    elif args.format == "csv":
-        sys.stdout.write(tables.to_csv(data))
+        written = export.write(
+            data, args.output, None if args.format in (None, "text") else args.format,
+            layout=args.layout, provenance="header" if args.csv_header else "companion",
+            overwrite=args.force, command=args.command_line)
+        print("wrote " + " and ".join(str(p) for p in written))
+        return
+    if args.format == "csv":
+        sys.stdout.write(export.to_csv(data, layout=args.layout, header=args.csv_header))
     elif args.format == "json":
-        print(json.dumps(data.to_dict(data="list"), indent=1, ensure_ascii=False, default=str))
+        sys.stdout.write(export.to_json(export.stamp(data, args.command_line)))
     else:
-        print(tables.to_text(data))
-        print(f"\nrelease {si.release.id} ({si.release.status}); models: "
-              + ", ".join(f"{q}={si.models.get(q, 'derived')}" for q in quantities))
+        sys.stdout.write(export.to_text(data, layout=args.layout))
+        if footer:
+            print(footer)
+
+
+def _footer(si, names) -> str:
+    names = list(dict.fromkeys(names))
+    lines = [_wrap(f"release {si.release.id} ({si.release.status}); models: "
+                   + "; ".join(f"{q} {si.models[q]}" if q in si.models else f"{q} (derived)"
+                               for q in names))]
+    lines.append(_wrap("sources: matprops provenance QUANTITY; references: matprops cite"))
+    return "\n".join(lines)
+
+
+def _needs_output(args, what: str):
+    if not args.output:
+        raise InputError("-o/--output", f"a file name for {what}", "none")
+
+
+# --------------------------------------------------------------------------- commands
 
 
 def _cmd_table(args):
-    from .tables import SPECTRAL, TEMPERATURE_DEPENDENT
+    if args.format == "netcdf" and not args.output:
+        _needs_output(args, "netCDF")
+    si = _silicon(args)
+    progress = _Progress()
+    chunks = args.chunks
+    if chunks is not None and (args.format not in (None, "netcdf")
+                               or not (args.output or "").lower().endswith((".nc", ".nc4"))):
+        raise InputError("--chunks", "used with a netCDF output (-o FILE.nc), which is "
+                         "written chunk by chunk", repr(args.chunks))
+    try:
+        data = si.table(args.quantities or None, progress=progress, chunks=chunks,
+                        **_grid(args))
+    finally:
+        progress.close()
+    _note_unused_axes(data)
+    _emit(args, data, _footer(si, [data[v].attrs["quantity"] for v in data.data_vars]))
 
-    wavelength = (parse_grid(args.wavelength, "--wavelength", "nm")
-                  if args.wavelength else None)
-    quantities = args.quantities or (list(SPECTRAL) if wavelength is not None
-                                     else list(TEMPERATURE_DEPENDENT))
-    _print_table(args, _silicon(args), quantities, parse_grid(args.temperature),
-                 wavelength)
+
+def _note_unused_axes(data):
+    from .tables import AXES
+
+    used = set().union(*(data[v].dims for v in data.data_vars)) if data.data_vars else set()
+    for dim in data.dims:
+        if dim in AXES and dim not in used:
+            print(f"matprops: note: no quantity in this table depends on {AXES[dim].option}",
+                  file=sys.stderr)
+
+
+def _cmd_compare(args):
+    if args.format == "netcdf" and not args.output:
+        _needs_output(args, "netCDF")
+    si = _silicon(args)
+    models = [m.strip() for m in args.models.split(",")] if args.models else None
+    progress = _Progress()
+    try:
+        data = si.compare(args.quantity, models, progress=progress, **_grid(args))
+    finally:
+        progress.close()
+    footer = "\n".join(_wrap(f"[{m}] {c}") for m, c in
+                       zip(data.model.values, data.citation.values, strict=True))
+    footer += "\n" + _wrap("spread = largest minus smallest model value; relative_spread "
+                           "= spread / mean absolute value")
+    _emit(args, data, footer)
+
+
+def _cmd_plot(args):
+    from .plotting import plot
+
+    _needs_output(args, "the plot (.png or .svg)")
+    si = _silicon(args)
+    grid = _grid(args)
+    if args.models:
+        if len(args.quantities) != 1:
+            raise InputError("--models", "used with exactly one QUANTITY",
+                             f"{len(args.quantities)} quantities")
+        models = [m.strip() for m in args.models.split(",")]
+        if models == ["all"]:
+            models = None
+        data = si.compare(args.quantities[0], models, **grid)
+    else:
+        data = si.table(args.quantities, **grid)
+    plot(data, args.output, x=args.x, format=args.format, overwrite=args.force)
+    print(f"wrote {args.output}")
+
+
+def _equation(model) -> str:
+    import inspect
+
+    doc = inspect.getdoc(model.kernel) or ""
+    return doc.split("\nParameters")[0].strip()
+
+
+def _describe(si, quantity, model_id=None) -> str:
+    catalog = si.catalog
+    if model_id is None:
+        model = si.model(quantity)
+    else:
+        catalog.model_ids(quantity)  # unknown quantity -> error listing what exists
+        model = catalog.model(quantity, model_id)
+    releases = [r for r in catalog.release_ids()
+                if catalog.release(r).models.get(quantity) == model.id]
+    out = [f"{quantity} / {model.id}", _wrap(model.name, "  ")]
+    if releases:
+        out.append(f"  default in release {', '.join(releases)}")
+    out += ["", "equation:"]
+    out += [_wrap(line, "  ") if line.strip() else "" for line in
+            _equation(model).splitlines()]
+    kernel = f"{model.kernel.__module__.removeprefix('matprops.')}.{model.kernel.__name__}"
+    out.append(f"  (kernel {kernel}; kind {model.kind})")
+    if model.requires:
+        chosen = ", ".join(f"{q} {si.models.get(q, '?')}" for q in model.requires)
+        out.append(_wrap(f"composed from the material's choice of: {chosen}", "  "))
+    if model.coefficients:
+        out += ["", "coefficients (as published; value ± uncertainty, units):"]
+        width = max(len(n) for n in model.coefficients)
+        for name, coef in model.coefficients.items():
+            value = (", ".join(f"{v:g}" for v in coef.value) if isinstance(coef.value, tuple)
+                     else f"{coef.value:g}")
+            unc = coef.uncertainty
+            unc = ("" if unc is None else " ± " + (", ".join(f"{u:g}" for u in unc)
+                                                    if isinstance(unc, tuple) else f"{unc:g}"))
+            units = "" if coef.units in ("1", "dimensionless") else f" {coef.units}"
+            out.append(_wrap(f"{name.ljust(width)} = {value}{unc}{units}", "  "))
+    if model.tables:
+        out += ["", "tables: " + ", ".join(f"datasets/tables/{t}" for t in model.tables)]
+    out += ["", "validity:"]
+    out += [f"  {r}" for r in model.validity.values()] or ["  no limits recorded"]
+    out += ["", "source:", _wrap(model.source.citation(), "  ")]
+    out += [_wrap(s.citation(), "  also: ") for s in model.additional_sources]
+    out += ["", "how the numbers were obtained:", _wrap(model.obtained, "  ")]
+    if model.notes:
+        out += ["", "notes:", _wrap(model.notes, "  ")]
+    relative = f"models/{quantity}/{model.path.name}"
+    out += ["", f"file: datasets/{relative}", f"sha256: {model.sha256}"]
+    return "\n".join(out)
+
+
+def _cmd_describe(args):
+    si = _silicon(args)
+    print(_describe(si, args.quantity, args.model_id))
+
+
+def _provenance_text(record: dict, indent: str = "") -> list[str]:
+    lines = []
+    if record.get("model") == "derived":
+        lines.append(f"{indent}{record['quantity']}: derived, {record['formula']}")
+        for part in record.get("components", {}).values():
+            lines += _provenance_text(part, indent + "  ")
+        return lines
+    lines.append(f"{indent}{record['quantity']}: model {record['model']} "
+                 f"({record.get('kind', '?')})")
+    lines.append(_wrap(record.get("name", ""), indent + "  "))
+    lines.append(_wrap(f"source: {record.get('citation', '?')}", indent + "  "))
+    for extra in record.get("additional_sources", []):
+        authors = ", ".join(extra["authors"][:3]) + (" et al." if len(extra["authors"]) > 3
+                                                     else "")
+        lines.append(_wrap(f"also: {authors} ({extra['year']}), {extra['journal']} "
+                           f"{extra['volume']}, {extra['pages']}, doi:{extra['doi']}",
+                           indent + "  "))
+    validity = record.get("validity") or {}
+    if validity:
+        lines.append(_wrap("validity: " + "; ".join(
+            f"{k} {v['min']:g}-{v['max']:g} {v['units']}" for k, v in validity.items()),
+            indent + "  "))
+    coefficients = record.get("coefficients") or {}
+    if coefficients:
+        lines.append(_wrap("coefficients: " + "; ".join(
+            f"{k} = {v['value']} {v['units']}" for k, v in coefficients.items()),
+            indent + "  "))
+    lines.append(_wrap(f"obtained: {record.get('obtained', '?')}", indent + "  "))
+    if "file" in record:
+        lines.append(f"{indent}  file: datasets/{record['file']} "
+                     f"(sha256 {record.get('sha256', '')[:12]}...)")
+    for part in record.get("components", {}).values():
+        lines += _provenance_text(part, indent + "  ")
+    return lines
+
+
+def _cmd_provenance(args):
+    record = _silicon(args).provenance(args.quantity)
+    if args.json:
+        print(json.dumps(record, indent=2, ensure_ascii=False))
+        return
+    lines = _provenance_text(record)
+    status = f"release {record['release']} ({record['release_status']})"
+    if record.get("overridden"):
+        status += f"; overridden with --model (the release chose {record['release_choice']})"
+    lines.append(status)
+    lines.append(_wrap(f"(all fields: matprops provenance {args.quantity} --json; the "
+                       f"model in full: matprops describe {args.quantity})"))
+    print("\n".join(lines))
+
+
+def _cmd_release_diff(args):
+    from .changes import release_difference
+
+    _catalog()
+    diff = release_difference(args.old, args.new)
+    if args.json:
+        print(json.dumps(diff, indent=1, ensure_ascii=False))
+        return
+    old, new = diff["old"], diff["new"]
+    print(f"models: release {old} -> {new}")
+    for record in diff["models"]:
+        mark = "changed" if record["changed"] else "same"
+        print(f"  {record['quantity']:24s} {record['old']!s:24s} -> "
+              f"{record['new']!s:24s} {mark}")
+    print(f"\nlargest deviation on the standard reference grid ({new} against {old}):")
+    for record in diff["deviations"]:
+        if record["largest_relative"] is None:
+            detail = record.get("note", "no finite values to compare")
+        else:
+            at = ", ".join(f"{k}={v:g}" if isinstance(v, float) else f"{k}={v}"
+                           for k, v in (record["at"] or {}).items())
+            detail = (f"{100 * record['largest_relative']:.3g} % "
+                      f"({record['largest_absolute']:.3g} {record['units']})"
+                      + (f" at {at}" if at else ""))
+        print(_wrap(f"{record['case']:28s} {detail}", "  "))
+
+
+def _scenario(name: str):
+    from .catalog import datasets_root
+
+    folder = datasets_root() / "scenarios"
+    path = folder / f"{name}.toml"
+    if not path.is_file():
+        known = sorted(p.stem for p in folder.glob("*.toml"))
+        raise InputError("--scenario", f"one of {', '.join(known) or '(none)'}", repr(name))
+    try:
+        return path, tomllib.loads(path.read_text(encoding="utf-8"))
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        raise InputError("--scenario", "a valid TOML scenario file",
+                         f"{path.name}: {exc}") from exc
+
+
+def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
+    """The scenario's table: every listed quantity the release serves, at its
+    operating points (and its regions' dopings for doping-dependent quantities).
+
+    Returns (dataset, skipped quantity names).
+    """
+    import xarray as xr
+
+    from .tables import AXES, QUANTITIES, available
+    from .units import Q_
+
+    units = scenario["temperature"]["units"]
+    points = []
+    for site, conditions in scenario["temperature"]["sites"].items():
+        for condition, value in conditions.items():
+            points.append((float(value), f"{site}: {condition}"))
+    points.sort()
+    temperature = Q_(np.array([p[0] for p in points]), units)
+    labels = np.array([p[1] for p in points])
+    serves = set(available(si))
+    listed = scenario["quantities"]
+    shown = [q for q in listed if q in serves]
+    skipped = [q for q in listed if q not in serves]
+    doping = {"acceptor_density", "donor_density", "excess_density"}
+    plain = [q for q in shown if not set(QUANTITIES[q].takes) & doping]
+    doped = [q for q in shown if q not in plain]
+    extra = {}
+    if scenario.get("carriers"):
+        extra["carrier"] = scenario["carriers"]
+    parts = []
+    if plain:
+        takes = set().union(*(QUANTITIES[q].takes for q in plain))
+        parts.append(si.table(plain, temperature=temperature,
+                              **{k: v for k, v in extra.items() if k in takes}))
+    if doped:
+        takes = set().union(*(QUANTITIES[q].takes for q in doped))
+        regions, per_region = list(scenario["regions"]), []
+        for region in regions:
+            spec = scenario["regions"][region]
+            grid = {k: Q_(float(spec[k]), spec["units"]) for k in
+                    ("acceptor_density", "donor_density", "excess_density")
+                    if k in spec and k in takes}
+            grid.update({k: v for k, v in extra.items() if k in takes})
+            table = si.table(doped, temperature=temperature, **grid)
+            per_region.append(table.reset_coords([c for c in grid if c in AXES
+                                                  and c in table.coords
+                                                  and not table[c].dims], drop=False))
+        region_table = xr.concat(per_region, dim="region", data_vars="all",
+                                 coords="minimal", compat="override",
+                                 combine_attrs="override")
+        region_table = region_table.assign_coords(region=("region", np.array(regions)))
+        for name in ("acceptor_density", "donor_density", "excess_density"):
+            if name in region_table.data_vars:
+                region_table = region_table.set_coords(name)
+        parts.append(region_table)
+    data = xr.merge(parts, combine_attrs="override") if parts else xr.Dataset(
+        coords={"temperature": ("temperature", temperature.m_as("K"))})
+    data = data.assign_coords(operating_point=("temperature", labels,
+                                               {"long_name": "invented operating point"}))
+    data.attrs.update({
+        "title": scenario["title"],
+        "scenario": f"{scenario['name']} ({path_name}); INVENTED data for demonstration",
+        "scenario_note": "INVENTED scenario - not measured data, not a real product "
+                         "or site.",
+    })
+    if data.attrs.get("references"):
+        data.attrs["references"] = si.cite(format="text", quantities=list(dict.fromkeys(
+            q for name in shown for q in QUANTITIES[name].model_quantities())))
+    return data, skipped
 
 
 def _cmd_demo(args):
-    from .catalog import datasets_root
-    from .units import Q_
+    path, scenario = _scenario(args.scenario)
+    if not scenario.get("invented"):
+        raise InputError("--scenario", "a scenario marked invented = true", path.name)
+    si = _silicon(args)
+    data, skipped = scenario_dataset(si, scenario, path.name)
+    on_screen = not args.output and args.format in (None, "text")
+    if on_screen:
+        print(scenario["title"])
+        print(f"(INVENTED data for demonstration; datasets/scenarios/{path.name})")
+        print(_wrap(scenario.get("description", "")))
+        print()
+    if args.output and args.output.lower().endswith((".png", ".svg")):
+        from .plotting import plot
 
-    path = datasets_root() / "scenarios" / "desert-rooftop.toml"
-    scenario = tomllib.loads(path.read_text())
-    print(f"{scenario['title']}\n(INVENTED data for demonstration; {path.name})\n")
-    temperature = Q_(np.asarray(scenario["temperatures"]), scenario["temperature_units"])
-    print("cell temperatures: " + ", ".join(f"{t:g}" for t in scenario["temperatures"])
-          + f" {scenario['temperature_units']}\n")
-    _print_table(args, _silicon(args), scenario["quantities"], temperature)
+        plot(data, args.output, x="temperature", overwrite=args.force,
+             title=scenario["title"])
+        print(f"wrote {args.output}")
+        if skipped:
+            print(_wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
+                  file=sys.stderr)
+        return
+    names = [data[v].attrs["quantity"] for v in data.data_vars]
+    footer = _footer(si, list(dict.fromkeys(names)))
+    if skipped:
+        footer += "\n" + _wrap("not yet in this release, skipped: " + ", ".join(skipped))
+    _emit(args, data, footer)
+    if not on_screen and skipped:
+        print(_wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
+              file=sys.stderr)
 
 
 def _cmd_models(args):
+    from .catalog import default_catalog
     from .material import models
 
+    _catalog()
     catalog = models(args.quantity) if args.quantity else models()
     if args.quantity:
         catalog = {args.quantity: catalog}
-    from .catalog import default_catalog
-
     for quantity, ids in catalog.items():
         print(f"{quantity}:")
         for model_id in ids:
             model = default_catalog().model(quantity, model_id)
             ranges = ", ".join(str(r) for r in model.validity.values()) or "no limits"
-            print(f"  {model_id:16s} {model.name}  [{ranges}]")
+            print(_wrap(f"{model_id:22s} {model.name} [{ranges}]", "  "))
 
 
 def _cmd_releases(args):
-    from .catalog import default_catalog
-
-    catalog = default_catalog()
+    catalog = _catalog()
     for release_id in catalog.release_ids():
         release = catalog.release(release_id)
         print(f"{release_id} ({release.status}, {release.date})")
         for quantity, model_id in release.models.items():
-            print(f"  {quantity:22s} {model_id}")
-
-
-def _cmd_provenance(args):
-    print(json.dumps(_silicon(args).provenance(args.quantity), indent=2, ensure_ascii=False))
+            print(f"  {quantity:24s} {model_id}")
 
 
 def _cmd_cite(args):
     print(_silicon(args).cite(format=args.format))
 
 
+# --------------------------------------------------------------------------- parser
+
+
 def build_parser() -> argparse.ArgumentParser:
     from . import __version__
+    from .tables import AXES
 
-    parser = argparse.ArgumentParser(
-        prog="matprops",
-        description="Temperature-dependent parameters of crystalline silicon, with units "
-                    "and sources. Values are model estimates: for decisions with "
-                    "consequences defer to measured data, local codes and licensed practice.")
+    parser = _Parser(
+        prog="matprops", allow_abbrev=False,
+        description="Temperature- and doping-dependent parameters of crystalline silicon, "
+                    "with units and sources. Values are model estimates: for decisions "
+                    "with consequences defer to measured data, local codes and licensed "
+                    "practice.")
     parser.add_argument("--version", action="version", version=f"matprops {__version__}")
-    commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
+    commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND",
+                                     parser_class=_Parser)
 
-    material = argparse.ArgumentParser(add_help=False)
+    material = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
     material.add_argument("--release", help="release id (default: newest)")
     material.add_argument("--model", action="append", metavar="QUANTITY=ID",
                           help="override the release's model for a quantity (repeatable)")
     material.add_argument("--strict", action="store_true",
                           help="fail instead of warning outside a model's validity range")
-    output = argparse.ArgumentParser(add_help=False)
-    output.add_argument("--format", choices=["text", "csv", "json", "netcdf"], default=None,
-                        help="output format (default: text on screen, or from -o's suffix)")
-    output.add_argument("-o", "--output", help="write to a file (.nc, .csv, .json)")
 
-    table = commands.add_parser("table", parents=[material, output],
-                                help="a table of quantities at given temperatures")
+    grid = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+    group = grid.add_argument_group("grid (" + _GRID_HELP + ")")
+    for ax in AXES.values():
+        flags = [ax.option]
+        if ax.alias:
+            flags.append(f"--{ax.alias}")
+        if ax.name == "temperature":
+            flags.insert(0, "-t")
+        if ax.name == "wavelength":
+            flags.insert(0, "-w")
+        if ax.category:
+            text = f"{ax.long_name}: {', '.join(ax.choices)} (comma-separated)"
+        else:
+            text = f"{ax.long_name} (plain numbers are {ax.units})"
+        group.add_argument(*flags, dest=ax.name, metavar="VALUES", help=text)
+
+    output = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+    out = output.add_argument_group("output")
+    out.add_argument("-o", "--output", metavar="FILE",
+                     help="write a file: .nc (netCDF), .csv (+ FILE.provenance.json), "
+                          ".json; refused if it exists unless --force")
+    out.add_argument("--format", choices=["text", "csv", "json", "netcdf"], default=None,
+                     help="output format (default: text on screen, or from -o's extension)")
+    out.add_argument("--layout", choices=["long", "wide"], default="long",
+                     help="long: one row per grid point; wide: one row per temperature")
+    out.add_argument("--csv-header", action="store_true",
+                     help="CSV: provenance as '#' lines above the header instead of a "
+                          "companion .provenance.json file")
+    out.add_argument("--force", action="store_true", help="replace an existing file")
+
+    table = commands.add_parser("table", parents=[material, grid, output],
+                                help="a table of quantities on a grid")
     table.add_argument("quantities", nargs="*", metavar="QUANTITY",
-                       help="quantities (default: all temperature-dependent ones)")
-    table.add_argument("-t", "--temperature", required=True,
-                       help="values with a unit, e.g. --temperature=-40,25,85degC or "
-                            "--temperature='250:400:50 K' (plain numbers are kelvin)")
-    table.add_argument("-w", "--wavelength",
-                       help="wavelengths for absorption and refractive_index, e.g. "
-                            "--wavelength='400:1100:100 nm' (plain numbers are nm)")
+                       help="quantities (default: every one the given axes allow)")
+    table.add_argument("--chunks", type=int, metavar="N",
+                       help="with -o FILE.nc: evaluate lazily in chunks of N values per "
+                            "axis (grids larger than memory)")
     table.set_defaults(run=_cmd_table)
 
+    compare = commands.add_parser("compare", parents=[material, grid, output],
+                                  help="models of one quantity side by side, with spread")
+    compare.add_argument("quantity")
+    compare.add_argument("--models", metavar="ID,ID,...",
+                         help="model ids (default: every model of the quantity)")
+    compare.set_defaults(run=_cmd_compare)
+
+    plot = commands.add_parser("plot", parents=[material, grid],
+                               help="plot quantities (or models of one) to PNG or SVG")
+    plot.add_argument("quantities", nargs="+", metavar="QUANTITY")
+    plot.add_argument("-o", "--output", metavar="FILE.png|FILE.svg",
+                      help="the image to write (required)")
+    plot.add_argument("--format", choices=["png", "svg"], default=None)
+    plot.add_argument("--models", metavar="ID,ID,...|all",
+                      help="compare these models of the (single) quantity")
+    plot.add_argument("--x", metavar="AXIS",
+                      help="axis to plot against (default: the one with most values)")
+    plot.add_argument("--force", action="store_true", help="replace an existing file")
+    plot.set_defaults(run=_cmd_plot)
+
+    describe = commands.add_parser("describe", parents=[material],
+                                   help="one model: equation, coefficients, validity, "
+                                        "source, how the numbers were obtained")
+    describe.add_argument("quantity")
+    describe.add_argument("model_id", nargs="?", metavar="MODEL",
+                          help="model id (default: the release's choice)")
+    describe.set_defaults(run=_cmd_describe)
+
+    prov = commands.add_parser("provenance", parents=[material],
+                               help="where a quantity's numbers come from")
+    prov.add_argument("quantity")
+    prov.add_argument("--json", action="store_true", help="every field, as JSON")
+    prov.set_defaults(run=_cmd_provenance)
+
+    diff = commands.add_parser("release-diff", help="models changed between two releases "
+                                                    "and the largest deviations")
+    diff.add_argument("old")
+    diff.add_argument("new")
+    diff.add_argument("--json", action="store_true")
+    diff.set_defaults(run=_cmd_release_diff)
+
     demo = commands.add_parser("demo", parents=[material, output],
-                               help="table for the bundled, invented rooftop scenario")
+                               help="tables for the bundled, INVENTED scenario "
+                                    "(-o also takes .png or .svg: a plot)")
+    demo.add_argument("--scenario", default="two-site-modules",
+                      help="scenario file in datasets/scenarios (default: %(default)s)")
     demo.set_defaults(run=_cmd_demo)
 
     listing = commands.add_parser("models", help="list models, per quantity")
@@ -197,31 +744,77 @@ def build_parser() -> argparse.ArgumentParser:
     rel = commands.add_parser("releases", help="list releases and their model choices")
     rel.set_defaults(run=_cmd_releases)
 
-    prov = commands.add_parser("provenance", parents=[material],
-                               help="where a quantity's numbers come from (JSON)")
-    prov.add_argument("quantity")
-    prov.set_defaults(run=_cmd_provenance)
-
-    cite = commands.add_parser("cite", parents=[material], help="references of the models in use")
+    cite = commands.add_parser("cite", parents=[material], help="references of the models "
+                                                                "in use")
     cite.add_argument("--format", choices=["bibtex", "text"], default="bibtex")
     cite.set_defaults(run=_cmd_cite)
     return parser
 
 
+_NEGATIVE = re.compile(r"^-(\d|\.\d|inf|nan)", re.IGNORECASE)
+
+
+def _join_negative_values(argv: list[str], parser) -> list[str]:
+    """``--temperature -40,25degC`` -> ``--temperature=-40,25degC`` (argparse would
+    read -40 as an option)."""
+    options = set()
+    for action in parser._subparsers._group_actions[0].choices.values():
+        for act in action._actions:
+            if act.nargs is None and act.option_strings:
+                options.update(act.option_strings)
+    out, i = [], 0
+    while i < len(argv):
+        token = argv[i]
+        if token in options and i + 1 < len(argv) and _NEGATIVE.match(argv[i + 1]):
+            out.append(f"{token}={argv[i + 1]}")
+            i += 2
+            continue
+        out.append(token)
+        i += 1
+    return out
+
+
 def main(argv=None) -> int:
+    argv = list(sys.argv[1:] if argv is None else argv)
     parser = build_parser()
-    args = parser.parse_args(argv)
-    if getattr(args, "format", None) == "netcdf" and not getattr(args, "output", None):
-        parser.error("--format netcdf needs -o/--output FILE")
+    args = parser.parse_args(_join_negative_values(argv, parser))
+    args.command_line = _command_line(argv)
+    seen = set()
+
+    def show(message, *rest, **kw):
+        text = _cli_message(str(message))
+        if text not in seen:
+            seen.add(text)
+            print(f"matprops: warning: {text}", file=sys.stderr)
+
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("always", ValidityWarning)
-            warnings.showwarning = lambda message, *rest, **kw: print(
-                f"warning: {message}", file=sys.stderr)
+            warnings.showwarning = show
             args.run(args)
+        sys.stdout.flush()
     except Error as exc:
-        print(f"matprops: error: {exc}", file=sys.stderr)
+        print(f"matprops: error: {_cli_message(str(exc))}", file=sys.stderr)
         return 2
+    except BrokenPipeError:
+        # the reader went away (matprops models | head -1): stop quietly, one line
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        print("matprops: error: output closed by the reading program before the end",
+              file=sys.stderr)
+        return 2
+    except tomllib.TOMLDecodeError as exc:
+        print(f"matprops: error: a data file is not valid TOML ({_cli_message(str(exc))}); "
+              "check the files under the datasets folder (python -m matprops.catalog)",
+              file=sys.stderr)
+        return 2
+    except OSError as exc:  # a file that cannot be read or written
+        where = f": {exc.filename}" if exc.filename else ""
+        print(f"matprops: error: {exc.strerror or exc}{where}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("matprops: interrupted", file=sys.stderr)
+        return 130
     return 0
 
 

@@ -205,18 +205,25 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
             return "\n".join(f"[{key}] {source.citation()}" for key, source in sources)
         raise InputError("format", "'bibtex' or 'text'", repr(format))
 
-    def table(self, quantities=None, temperature=None, *, T=None, wavelength=None):
-        """Evaluate quantities on a temperature (and wavelength) grid -> xarray.Dataset.
+    def table(self, quantities=None, temperature=None, **grid):
+        """Evaluate quantities on a grid -> xarray.Dataset.
 
-        See :func:`matprops.tables.table`; ``T`` is accepted as an alias of ``temperature``.
+        Axes by name or alias (``T``, ``Na``, ``Nd``, ``excess``, ``n``, ``p``,
+        ``wavelength``, ``carrier``, ``plane``) and ``chunks=`` for a lazy dask-backed
+        Dataset; see :func:`matprops.tables.table`.
         """
         from .tables import table
 
-        if T is not None:
-            if temperature is not None:
-                raise InputError("T", "given only once (T is an alias of temperature)", T)
-            temperature = T
-        return table(self, quantities, temperature=temperature, wavelength=wavelength)
+        if temperature is not None:
+            grid["temperature"] = temperature
+        return table(self, quantities, **grid)
+
+    def compare(self, quantity, models=None, **grid):
+        """The same grid evaluated by several models of one quantity -> xarray.Dataset
+        with a ``model`` dimension and the spread; see :func:`matprops.tables.compare`."""
+        from .tables import compare
+
+        return compare(self, quantity, models, **grid)
 
     def __repr__(self) -> str:
         chosen = ", ".join(f"{q}={m.id}{'*' if q in self.overridden else ''}"

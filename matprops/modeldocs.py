@@ -62,7 +62,15 @@ def render(catalog: Catalog | None = None) -> str:
 
 
 def main(argv=None) -> int:
-    target = Path(argv[0]) if argv else Path(__file__).resolve().parent.parent / "docs" / "models.md"
+    import argparse
+
+    default = Path(__file__).resolve().parent.parent / "docs" / "models.md"
+    parser = argparse.ArgumentParser(
+        prog="python -m matprops.modeldocs",
+        description="Regenerate the model catalogue (docs/models.md) from datasets/.")
+    parser.add_argument("output", nargs="?", type=Path, default=default,
+                        help="where to write it (default: %(default)s)")
+    target = parser.parse_args(argv).output
     target.parent.mkdir(parents=True, exist_ok=True)
     tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")
     tmp.write_text(render())

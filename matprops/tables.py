@@ -1,184 +1,811 @@
-"""Grids of quantities -> xarray.Dataset, and exports to netCDF (CF), CSV and JSON.
+"""Grids of quantities -> xarray.Dataset, and model comparison.
 
-Every variable carries its units (UDUNITS strings, as CF asks), a long name, the
-id of the model that produced it and its full provenance as a JSON string; the
-dataset carries the release, the references and the call that made it. Files are
-written atomically: a temporary file in the target folder, then a rename.
+The analyst's door. :data:`QUANTITIES` is the registry of what can be tabulated:
+each entry says which grid axes (:data:`AXES`: temperature, doping, excess
+density, wavelength, carrier, ...) its :class:`~matprops.Silicon` method takes and
+how the method takes them. A new quantity becomes tabulable, comparable and
+plottable from the command line by adding one entry.
+
+A table's dimensions are the axes actually given (a scalar becomes a scalar
+coordinate, a list a dimension), in the fixed order of :data:`AXES`; each variable
+spans only the dimensions its quantity depends on. Every variable carries its
+units (UDUNITS strings, as CF asks), a long name, the id of its model and its full
+provenance (a JSON string, since netCDF attributes cannot hold objects); the
+dataset carries the release, the references and the call that made it.
+
+Large grids are evaluated in blocks of about 2^18 points written into
+preallocated outputs (memory and time stay linear in the grid size; the validity
+check runs once on the grid's extremes). ``chunks=`` returns a lazy dask-backed
+Dataset instead, for sweeps larger than memory; any dask scheduler (threads, a
+``dask.distributed`` cluster) evaluates it.
+
+Writing files (netCDF, CSV, JSON) lives in :mod:`matprops.export`.
 """
 
 from __future__ import annotations
 
+import functools
+import inspect
+import itertools
 import json
-import os
-from collections.abc import Iterable
-from pathlib import Path
+import math
+import warnings
+from collections.abc import Callable, Iterable, Mapping
+from dataclasses import dataclass, field
 
 import numpy as np
 
-from .errors import InputError, UnknownQuantityError
+from .errors import InputError, UnknownModelError, UnknownQuantityError, ValidityWarning
 from .units import to_magnitude
 
-__all__ = ["FORMATS", "TABLE_QUANTITIES", "table", "write"]
+__all__ = ["AXES", "QUANTITIES", "Axis", "Tabulated", "available", "axis", "cf_units",
+           "compare", "table"]
 
-# quantity -> [(variable name, long name, UDUNITS units, pint units), ...]
-TABLE_QUANTITIES = {
-    "band_gap": [("band_gap", "fundamental (indirect) band gap, undoped, no narrowing",
-                  "eV", "eV")],
-    "intrinsic_density": [("intrinsic_density", "intrinsic carrier density, undoped",
-                           "cm-3", "cm^-3")],
-    "densities_of_states": [
-        ("conduction_band_states", "effective density of states of the conduction band",
-         "cm-3", "cm^-3"),
-        ("valence_band_states", "effective density of states of the valence band",
-         "cm-3", "cm^-3")],
-    "lattice_constant": [("lattice_constant", "cubic lattice constant", "nm", "nm")],
-    "density": [("density", "mass density", "g cm-3", "g/cm^3")],
-    "atomic_density": [("atomic_density", "silicon atoms per volume", "cm-3", "cm^-3")],
-    "absorption": [("absorption_coefficient", "band-to-band absorption coefficient",
-                    "cm-1", "1/cm")],
-    "refractive_index": [("refractive_index", "real part of the complex refractive index",
-                          "1", "dimensionless")],
-}
-SPECTRAL = ("absorption", "refractive_index")  # also depend on wavelength
-TEMPERATURE_DEPENDENT = tuple(q for q in TABLE_QUANTITIES if q not in SPECTRAL)
-FORMATS = ("netcdf", "csv", "json")
+BLOCK = 1 << 18  # points per evaluation block (~2 MB per float64 temporary)
 
 
-def table(si, quantities: Iterable[str] | None = None, temperature=None, wavelength=None):
-    """Evaluate quantities of ``si`` on a temperature (and wavelength) grid.
+# --------------------------------------------------------------------------- axes
+
+
+@dataclass(frozen=True)
+class Axis:
+    """A grid axis: the coordinate name (also the argument name the units layer
+    knows), a short keyword alias, internal units (None for a category axis such as
+    the carrier) and how to read it."""
+
+    name: str
+    alias: str | None
+    units: str | None
+    long_name: str
+    requirement: str | None = None  # "positive" or "non-negative" for numeric axes
+    log: bool = False  # spans decades: log-spaced ranges, log plot axis
+    choices: tuple[str, ...] = ()  # the values a category axis takes
+
+    @property
+    def category(self) -> bool:
+        return self.units is None
+
+    @property
+    def option(self) -> str:
+        """The command-line option for this axis."""
+        return "--" + self.name.replace("_", "-")
+
+    @property
+    def cf_units(self) -> str | None:
+        return None if self.category else cf_units(self.units)
+
+
+# The order here is the order of a table's dimensions (last varies fastest).
+AXES: dict[str, Axis] = {a.name: a for a in (
+    Axis("carrier", None, None, "charge carrier", choices=("electron", "hole")),
+    Axis("plane", None, None, "crystal plane (Miller indices)",
+         choices=("100", "110", "111")),
+    Axis("temperature", "T", "K", "temperature", "positive"),
+    Axis("acceptor_density", "Na", "cm^-3", "acceptor density", "non-negative", log=True),
+    Axis("donor_density", "Nd", "cm^-3", "donor density", "non-negative", log=True),
+    Axis("excess_density", "excess", "cm^-3", "excess carrier density", "non-negative",
+         log=True),
+    Axis("electron_density", "n", "cm^-3", "electron density", "non-negative", log=True),
+    Axis("hole_density", "p", "cm^-3", "hole density", "non-negative", log=True),
+    Axis("wavelength", None, "nm", "vacuum wavelength", "positive"),
+)}
+_ALIASES = {a.alias: a.name for a in AXES.values() if a.alias}
+
+
+def axis(name: str) -> Axis:
+    """The :class:`Axis` for a name or alias (``"Na"`` -> acceptor_density)."""
+    key = _ALIASES.get(name, name)
+    if key not in AXES:
+        known = sorted(AXES) + sorted(_ALIASES)
+        raise InputError(name, f"a grid axis: one of {', '.join(known)}",
+                         "an unknown keyword")
+    return AXES[key]
+
+
+# --------------------------------------------------------------------------- registry
+
+
+@dataclass(frozen=True)
+class Tabulated:
+    """How to tabulate one quantity.
+
+    Parameters
+    ----------
+    name : the quantity (and, unless ``method`` says otherwise, the Silicon method)
+    takes : axis name -> the method's positional index (int) or keyword (str)
+    outputs : (variable name, long name) for each part of the result (a method
+        returning a tuple, like densities_of_states, has several parts)
+    wants : for the default selection of a table with no quantities named: at least
+        one of these axes must be given (free-carrier absorption is zero without a
+        carrier density)
+    log : the values span decades (log y axis in plots)
+    needs : quantities whose models produce it (default: its own name, or the
+        components of a derived quantity)
+    fields : for a method that returns a result object (e.g. a frozen dataclass of
+        pint quantities), the attribute holding each output, in the order of
+        ``outputs``
+
+    Example: ``Tabulated("mobility", {"carrier": 0, "temperature": 1,
+    "acceptor_density": "Na", "donor_density": "Nd"}, (("mobility", "carrier
+    mobility"),))`` makes ``si.mobility(carrier, T, Na=..., Nd=...)`` tabulable.
+    """
+
+    name: str
+    takes: Mapping[str, int | str]
+    outputs: tuple[tuple[str, str], ...]
+    method: str | None = None
+    wants: tuple[str, ...] = ()
+    log: bool = False
+    needs: tuple[str, ...] = ()
+    fields: tuple[str, ...] = ()
+    _signature: dict = field(default_factory=dict, compare=False, repr=False)
+
+    def parameters(self, si) -> dict[str, tuple[str, bool]]:
+        """Axis -> (the method's parameter name, whether the parameter is required)."""
+        method = getattr(type(si), self.method or self.name)
+        if id(method) not in self._signature:
+            params = [p for p in inspect.signature(method).parameters.values()
+                      if p.kind in (p.POSITIONAL_OR_KEYWORD, p.KEYWORD_ONLY)][1:]  # no self
+            by_name = {p.name: p for p in params}
+            resolved = {}
+            for ax, where in self.takes.items():
+                param = params[where] if isinstance(where, int) else by_name[where]
+                resolved[ax] = (param.name, param.default is inspect.Parameter.empty)
+            self._signature[id(method)] = resolved
+        return self._signature[id(method)]
+
+    def required(self, si) -> tuple[str, ...]:
+        """Axes the method cannot do without (its parameters with no default)."""
+        return tuple(ax for ax, (_, needed) in self.parameters(si).items() if needed)
+
+    def model_quantities(self) -> tuple[str, ...]:
+        if self.needs:
+            return self.needs
+        from .material import DERIVED
+
+        return tuple(DERIVED[self.name][0]) if self.name in DERIVED else (self.name,)
+
+    def call(self, si, values: Mapping[str, object]):
+        """Call the Silicon method with axis values (missing optional axes: defaults)."""
+        names = self.parameters(si)
+        return getattr(si, self.method or self.name)(
+            **{names[ax][0]: value for ax, value in values.items() if ax in names})
+
+
+def _registry(*entries: Tabulated) -> dict[str, Tabulated]:
+    table = {}
+    for entry in entries:
+        for ax in entry.takes:
+            if ax not in AXES:
+                raise ValueError(f"quantity {entry.name!r} takes unknown axis {ax!r}")
+        table[entry.name] = entry
+    return table
+
+
+_T = {"temperature": 0}
+_DOPED = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
+          "electron_density": "n", "hole_density": "p"}
+_DOPING = ("acceptor_density", "donor_density", "electron_density", "hole_density")
+# One entry per tabulable quantity; add one here when a Silicon method lands.
+QUANTITIES: dict[str, Tabulated] = _registry(
+    Tabulated("band_gap", _T, (
+        ("band_gap", "fundamental (indirect) band gap, undoped, no narrowing"),)),
+    Tabulated("intrinsic_density", _T, (
+        ("intrinsic_density", "intrinsic carrier density, undoped"),), log=True),
+    Tabulated("densities_of_states", _T, (
+        ("conduction_band_states", "effective density of states of the conduction band"),
+        ("valence_band_states", "effective density of states of the valence band")),
+        log=True),
+    Tabulated("lattice_constant", _T, (("lattice_constant", "cubic lattice constant"),)),
+    Tabulated("density", _T, (("density", "mass density"),)),
+    Tabulated("atomic_density", _T, (("atomic_density", "silicon atoms per volume"),)),
+    Tabulated("surface_atom_density", {"plane": 0, "temperature": 1}, (
+        ("surface_atom_density", "atoms per area in one atomic layer of the plane"),)),
+    Tabulated("dangling_bond_density", {"plane": 0, "temperature": 1}, (
+        ("dangling_bond_density",
+         "dangling bonds per area of the ideal unreconstructed surface"),)),
+    Tabulated("molar_mass", {}, (("molar_mass", "molar mass (standard atomic weight)"),)),
+    Tabulated("permittivity", {}, (
+        ("relative_permittivity", "static relative permittivity"),)),
+    Tabulated("absorption", {"wavelength": 0, "temperature": 1}, (
+        ("absorption_coefficient", "band-to-band absorption coefficient"),), log=True),
+    Tabulated("refractive_index", {"wavelength": 0, "temperature": 1}, (
+        ("refractive_index", "real part of the complex refractive index"),)),
+    Tabulated("free_carrier_absorption",
+              {"wavelength": 0, "electron_density": "n", "hole_density": "p"}, (
+                  ("free_carrier_absorption_coefficient",
+                   "free-carrier absorption coefficient"),),
+              wants=("electron_density", "hole_density"), log=True),
+    # doping axis (methods of the carrier family; inert until the release serves them)
+    Tabulated("gap_narrowing", _DOPED, (
+        ("gap_narrowing", "band-gap narrowing"),), wants=_DOPING),
+    Tabulated("effective_intrinsic_density", _DOPED, (
+        ("effective_intrinsic_density",
+         "effective intrinsic carrier density, with band-gap narrowing"),),
+        wants=_DOPING, log=True),
+    Tabulated("equilibrium",
+              {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"}, (
+                  ("fermi_level", "Fermi level from the intrinsic level of undoped silicon"),
+                  ("fermi_level_from_conduction_edge",
+                   "Fermi level from the conduction-band edge after narrowing"),
+                  ("equilibrium_electron_density", "electron density in equilibrium"),
+                  ("equilibrium_hole_density", "hole density in equilibrium"),
+                  ("ionised_donor_density", "ionised donor density"),
+                  ("ionised_acceptor_density", "ionised acceptor density")),
+              fields=("fermi_level", "fermi_level_from_conduction_edge", "electron_density",
+                      "hole_density", "ionised_donors", "ionised_acceptors"),
+              wants=_DOPING[:2]),
+)
+
+
+def available(si) -> list[str]:
+    """Registry quantities that ``si`` can evaluate (its release serves their models)."""
+    return [name for name, entry in QUANTITIES.items()
+            if hasattr(si, entry.method or name)
+            and all(q in si.models for q in entry.model_quantities())]
+
+
+# --------------------------------------------------------------------------- units
+
+_CF_SYMBOLS = {"ohm": "ohm", "degree_Celsius": "degC", "degree_Fahrenheit": "degF",
+               "percent": "%", "micrometer": "um", "microsecond": "us",
+               "dimensionless": "1"}
+
+
+@functools.cache
+def cf_units(units) -> str:
+    """A UDUNITS string for pint units: ``cm^-3`` -> ``cm-3``,
+    ``cm^2/(V*s)`` -> ``cm2 V-1 s-1``, dimensionless -> ``1``."""
+    from .units import ureg
+
+    unit = ureg.Unit(units) if isinstance(units, str) else units
+    if unit.dimensionless and not unit._units:
+        return "1"
+    parts = []
+    for name, power in unit._units.items():
+        symbol = _CF_SYMBOLS.get(name) or ureg.get_symbol(name).replace("µ", "u")
+        power = int(power) if float(power).is_integer() else float(power)
+        parts.append(symbol if power == 1 else f"{symbol}{power}")
+    return " ".join(parts) or "1"
+
+
+_DISPLAY_TEMPERATURE = {"kelvin": "K", "degree_Celsius": "degC",
+                        "degree_Fahrenheit": "degF", "degree_Rankine": "degR"}
+
+
+# --------------------------------------------------------------------------- grids
+
+
+def _grid_values(ax: Axis, value):
+    """Coerce one axis: (values in internal units or strings, requested units, is_dim)."""
+    import pint
+
+    if ax.category:
+        items = [value] if isinstance(value, str) or np.ndim(value) == 0 else list(value)
+        cleaned = []
+        for item in items:
+            text = str(item).strip().strip("(){}[]<>").replace(" ", "").replace(",", "")
+            if ax.choices and text not in ax.choices:
+                raise InputError(ax.name, f"one of {', '.join(ax.choices)}", repr(item))
+            cleaned.append(text)
+        if not cleaned:
+            raise InputError(ax.name, "at least one value", "an empty list")
+        scalar = isinstance(value, str) or np.ndim(value) == 0
+        return np.asarray(cleaned, dtype=object), None, not scalar
+    if (isinstance(value, (list, tuple)) and value and all(isinstance(v, str) for v in value)
+            and any(v in QUANTITIES for v in value)):
+        raise InputError(ax.name, f"numbers in {ax.units} (quantity names go in the "
+                             "first argument, as one list)", repr(value))
+    requested = None
+    if isinstance(value, pint.Quantity) and ax.name == "temperature":
+        for name in value.units._units:
+            requested = _DISPLAY_TEMPERATURE.get(name)
+    elif isinstance(value, str) and ax.name == "temperature":
+        for key, short in (("degC", "degC"), ("°C", "degC"), ("celsius", "degC"),
+                           ("degF", "degF"), ("°F", "degF")):
+            if key.lower() in value.lower():
+                requested = short
+    array = to_magnitude(value, ax.name, ax.units, ax.requirement)
+    if array.ndim > 1:
+        raise InputError(ax.name, "a scalar or a 1-D list", f"shape {array.shape}")
+    if array.ndim == 1 and array.size == 0:
+        raise InputError(ax.name, "at least one value", "an empty list")
+    return np.asarray(array, dtype=float), requested, array.ndim == 1
+
+
+class _Grid:
+    """The axes of one table: values (1-D for dimensions, 0-d for scalars)."""
+
+    def __init__(self, axes: Mapping[str, object]):
+        given: dict[str, object] = {}
+        for key, value in axes.items():
+            if value is None:
+                continue
+            ax = axis(key)
+            if ax.name in given:
+                raise InputError(key, f"given once (it names the same axis as "
+                                 f"{ax.name if key != ax.name else ax.alias!r})", "twice")
+            given[ax.name] = value
+        self.values: dict[str, np.ndarray] = {}
+        self.requested: dict[str, str] = {}
+        self.dims: list[str] = []
+        for name, ax in AXES.items():  # canonical order
+            if name not in given:
+                continue
+            values, requested, is_dim = _grid_values(ax, given[name])
+            self.values[name] = values if is_dim else values.reshape(())
+            if requested:
+                self.requested[name] = requested
+            if is_dim:
+                self.dims.append(name)
+
+    def __contains__(self, name):
+        return name in self.values
+
+    def dims_of(self, entry: Tabulated) -> list[str]:
+        return [d for d in self.dims if d in entry.takes]
+
+    def size_of(self, entry: Tabulated) -> int:
+        return math.prod(self.values[d].size for d in self.dims_of(entry))
+
+    def coords(self) -> dict:
+        coords = {}
+        for name, values in self.values.items():
+            ax = AXES[name]
+            attrs = {"long_name": ax.long_name}
+            if not ax.category:
+                attrs["units"] = ax.cf_units
+            if name == "temperature":
+                attrs["units_metadata"] = "temperature: on_scale"
+            if name in self.requested:
+                attrs["requested_units"] = self.requested[name]
+            if ax.category:
+                values = values.astype(str)
+            coords[name] = ((name,) if values.ndim else (), values, attrs)
+        return coords
+
+    def describe(self) -> str:
+        parts = []
+        for name, values in self.values.items():
+            ax = AXES[name]
+            units = "" if ax.category else f", {ax.units}"
+            if values.ndim == 0:
+                parts.append(f"{name}={values.item()!r}" if ax.category
+                             else f"{name}={values.item():g}{units.replace(',', '')}")
+            else:
+                parts.append(f"{name}=<{values.size} values{units}>")
+        return ", ".join(parts)
+
+
+def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
+    if quantities is None:
+        chosen = []
+        for name in available(si):
+            entry = QUANTITIES[name]
+            if not set(entry.takes) & set(grid.values):
+                continue
+            if not set(entry.required(si)) <= set(grid.values):
+                continue
+            if entry.wants and not set(entry.wants) & set(grid.values):
+                continue
+            chosen.append(entry)
+        if not chosen:
+            raise InputError("quantities", "named, or a grid some quantity depends on "
+                             "(e.g. temperature)", "none of either")
+        return chosen
+    if isinstance(quantities, str):
+        quantities = [quantities]
+    names = list(quantities)
+    if not names:
+        raise InputError("quantities", "at least one quantity name", "an empty list")
+    entries = []
+    serves = available(si)
+    for name in names:
+        if not isinstance(name, str):
+            raise InputError("quantities", "quantity names (strings)", repr(name))
+        if name not in QUANTITIES:
+            raise UnknownQuantityError(name, QUANTITIES, "for tables")
+        if name not in serves:
+            raise UnknownQuantityError(name, serves, f"in release {si.release.id}")
+        entry = QUANTITIES[name]
+        missing = [a for a in entry.required(si) if a not in grid]
+        if missing:
+            raise InputError(missing[0], f"given for {name} ({_axis_hint(AXES[missing[0]])})",
+                             "nothing")
+        entries.append(entry)
+    return entries
+
+
+def _axis_hint(ax: Axis) -> str:
+    if ax.category:
+        return "one or more of " + ", ".join(ax.choices)
+    return f"in {ax.units}"
+
+
+# --------------------------------------------------------------------------- evaluation
+
+
+def _shape(values: np.ndarray, position: int, ndim: int) -> np.ndarray:
+    shape = [1] * ndim
+    shape[position] = values.size
+    return values.reshape(shape)
+
+
+def _call_block(si, entry: Tabulated, values: Mapping[str, np.ndarray], dims: list[str]):
+    """Evaluate an entry on the outer product of 1-D values (dims) and scalars.
+
+    Returns a list of float arrays (one per output part) of shape [len(d) for d in
+    dims] and the pint units of each part.
+    """
+    categories = [d for d in dims if AXES[d].category]
+    numeric = [d for d in dims if not AXES[d].category]
+    shape = [values[d].size for d in dims]
+    outs: list[np.ndarray] | None = None
+    units = None
+    for picks in itertools.product(*(range(values[d].size) for d in categories)):
+        arguments = {}
+        for name in entry.takes:
+            if name not in values:
+                continue
+            vals = values[name]
+            if name in categories:
+                arguments[name] = str(vals[picks[categories.index(name)]])
+            elif name in numeric:
+                arguments[name] = _shape(vals, numeric.index(name), len(numeric))
+            else:
+                arguments[name] = str(vals.item()) if AXES[name].category else vals.item()
+        result = entry.call(si, arguments)
+        if isinstance(result, tuple):
+            parts = result
+        elif entry.fields:
+            parts = tuple(getattr(result, name) for name in entry.fields)
+        else:
+            parts = (result,)
+        if outs is None:
+            units = [p.units for p in parts]
+            outs = [np.empty(shape) for _ in parts]
+        index = tuple(picks[categories.index(d)] if d in categories else slice(None)
+                      for d in dims)
+        sub_shape = [values[d].size for d in numeric]
+        for out, part, unit in zip(outs, parts, units, strict=True):
+            magnitude = part.m_as(unit) if part.units != unit else part.magnitude
+            out[index] = np.broadcast_to(np.asarray(magnitude, dtype=float), sub_shape)
+    return outs, units
+
+
+def _check_extremes(si, entry: Tabulated, grid: _Grid, dims: list[str]):
+    """Evaluate on each numeric axis's extremes: the validity checks see the same
+    minimum and maximum as on the full grid (warning, or error if strict), and the
+    result gives the output units."""
+    values = {}
+    for name in entry.takes:
+        if name not in grid:
+            continue
+        vals = grid.values[name]
+        if name in dims and not AXES[name].category and vals.size > 2:
+            vals = np.array([vals.min(), vals.max()])
+        values[name] = vals
+    return _call_block(si, entry, values, dims)[1]
+
+
+def _blocks(shape: list[int], numeric: list[int]):
+    """Slices of the grid along its largest numeric dimension, ~BLOCK points each."""
+    total = math.prod(shape)
+    if total <= BLOCK or not numeric:
+        yield None, slice(None)
+        return
+    along = max(numeric, key=lambda i: shape[i])
+    rest = total // shape[along]
+    step = max(1, BLOCK // max(rest, 1))
+    for start in range(0, shape[along], step):
+        yield along, slice(start, min(start + step, shape[along]))
+
+
+def _evaluate(si, entry: Tabulated, grid: _Grid, progress=None, done=0, total=0):
+    dims = grid.dims_of(entry)
+    values = {n: grid.values[n] for n in entry.takes if n in grid}
+    if math.prod(values[d].size for d in dims) <= BLOCK:
+        outs, units = _call_block(si, entry, values, dims)
+        if progress:
+            progress(done + outs[0].size, total)
+        return dims, outs, units
+    units = _check_extremes(si, entry, grid, dims)  # warns once, or raises if strict
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)  # checked on the extremes above
+        outs = _in_blocks(si, entry, values, dims, units, progress, done, total)
+    return dims, outs, units
+
+
+def _in_blocks(si, entry, values, dims, units, progress=None, done=0, total=0):
+    """Evaluate block by block into preallocated outputs (linear time and memory)."""
+    shape = [values[d].size for d in dims]
+    numeric = [i for i, d in enumerate(dims) if not AXES[d].category]
+    outs = [np.empty(shape) for _ in units]
+    for along, part in _blocks(shape, numeric):
+        sub = dict(values)
+        index = [slice(None)] * len(dims)
+        if along is not None:
+            sub[dims[along]] = values[dims[along]][part]
+            index[along] = part
+        block, block_units = _call_block(si, entry, sub, dims)
+        for out, b, u, want in zip(outs, block, block_units, units, strict=True):
+            out[tuple(index)] = b if u == want else _convert(b, u, want)
+        done += block[0].size
+        if progress:
+            progress(done, total)
+    return outs
+
+
+def _convert(values, unit, target):
+    from .units import Q_
+
+    return Q_(values, unit).m_as(target)
+
+
+# --------------------------------------------------------------------------- lazy
+
+
+@functools.lru_cache(maxsize=8)
+def _rebuild(recipe):
+    """A Silicon from its recipe (release, overrides, strictness, datasets folder), once
+    per process: dask workers rebuild it instead of unpickling a bound one."""
+    from .catalog import Catalog, default_catalog
+    from .material import Silicon
+
+    root, release, overrides, strict = recipe
+    catalog = default_catalog() if root is None else Catalog(root)
+    return Silicon(release=release, models=dict(overrides), strict=strict, catalog=catalog)
+
+
+def _recipe(si):
+    from .catalog import default_catalog
+
+    root = None if si.catalog is default_catalog() else str(si.catalog.root)
+    overrides = tuple(sorted((q, m) for q, m in si.models.items() if q in si.overridden))
+    return (root, si.release.id, overrides, si.strict)
+
+
+class _BlockFunction:
+    """Picklable block evaluator for dask: one output part of one quantity."""
+
+    def __init__(self, recipe, quantity, dims, scalars, part, all_units):
+        self.recipe, self.quantity, self.dims = recipe, quantity, dims
+        self.scalars, self.part, self.all_units = scalars, part, all_units
+        self.units = all_units[part]
+
+    def __call__(self, *blocks):
+        si = _rebuild(self.recipe)
+        values = dict(self.scalars)
+        values.update(zip(self.dims, blocks, strict=True))
+        entry = QUANTITIES[self.quantity]
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)  # checked before the graph
+            if math.prod(values[d].size for d in self.dims) <= BLOCK:
+                outs, got = _call_block(si, entry, values, self.dims)
+                out = outs[self.part]
+                return out if got[self.part] == self.units else _convert(
+                    out, got[self.part], self.units)
+            return _in_blocks(si, entry, values, self.dims, self.all_units)[self.part]
+
+
+def _chunk_sizes(chunks, dims: list[str], grid: _Grid) -> dict[str, int]:
+    if isinstance(chunks, Mapping):
+        sizes = {}
+        for key, value in chunks.items():
+            sizes[axis(key).name] = value
+    elif isinstance(chunks, (int, np.integer)) and not isinstance(chunks, bool):
+        sizes = dict.fromkeys(dims, int(chunks))
+    else:
+        raise InputError("chunks", "a positive integer or a mapping axis -> integer",
+                         repr(chunks))
+    out = {}
+    for d in dims:
+        size = sizes.get(d, grid.values[d].size)
+        if isinstance(size, bool) or not isinstance(size, (int, np.integer)) or size < 1:
+            raise InputError("chunks", f"a positive integer for {d}", repr(size))
+        out[d] = min(int(size), grid.values[d].size) if not AXES[d].category else 1
+    return out
+
+
+def _evaluate_lazy(si, entry: Tabulated, grid: _Grid, chunks):
+    import dask.array as da
+
+    dims = grid.dims_of(entry)
+    units = _check_extremes(si, entry, grid, dims)  # warns or raises now, not in workers
+    sizes = _chunk_sizes(chunks, dims, grid)
+    scalars = {n: grid.values[n] for n in entry.takes if n in grid and n not in dims}
+    letters = "abcdefghijklmnopqrstuvwxyz"[:len(dims)]
+    arguments = []
+    for d, letter in zip(dims, letters, strict=True):
+        arguments += [da.from_array(grid.values[d], chunks=sizes[d]), letter]
+    recipe = _recipe(si)
+    outs = []
+    token = _grid_token(grid, (recipe, sorted(sizes.items())))
+    for part in range(len(units)):
+        function = _BlockFunction(recipe, entry.name, dims, scalars, part, units)
+        outs.append(da.blockwise(function, letters, *arguments, dtype=float,
+                                 name=f"matprops-{entry.name}-{part}-{token}"))
+    return dims, outs, units
+
+
+def _grid_token(grid: _Grid, recipe) -> str:
+    """A deterministic dask key: same recipe and grid -> same key, in any process."""
+    import hashlib
+
+    digest = hashlib.sha1(repr(recipe).encode())
+    for d, values in grid.values.items():  # every axis, scalars included
+        digest.update(d.encode())
+        digest.update(np.ascontiguousarray(values).astype(str if AXES[d].category
+                                                          else float).tobytes())
+    return digest.hexdigest()[:16]
+
+
+# --------------------------------------------------------------------------- table
+
+
+def table(si, quantities: Iterable[str] | str | None = None, *, chunks=None,
+          progress: Callable[[int, int], None] | None = None, **axes):
+    """Evaluate quantities of ``si`` on a grid -> :class:`xarray.Dataset`.
 
     Parameters
     ----------
     si : matprops.Silicon
-    quantities : names from :data:`TABLE_QUANTITIES` (default: all that depend on
-        temperature alone, plus the optical ones when a wavelength grid is given)
-    temperature : array_like, K, or a pint quantity (degC works)
-    wavelength : array_like, nm, or a pint quantity; needed for absorption and
-        refractive_index, which get the dimensions (wavelength, temperature)
+    quantities : names from :data:`QUANTITIES` (default: every quantity of the release
+        whose required axes are given and which depends on a given axis)
+    **axes : grid axes by name or alias, each a scalar (a scalar coordinate), a 1-D
+        list or array (a dimension), or a pint quantity (``25 degC`` works):
+        ``temperature``/``T`` [K], ``acceptor_density``/``Na``, ``donor_density``/``Nd``,
+        ``excess_density``/``excess``, ``electron_density``/``n``,
+        ``hole_density``/``p`` [cm^-3], ``wavelength`` [nm, or photon energy],
+        ``carrier`` ("electron", "hole"), ``plane`` ("100", "110", "111")
+    chunks : int or mapping axis -> int, optional
+        Return a lazy dask-backed Dataset with these chunk sizes (validity is
+        checked now, on the grid's extremes; values are computed by dask).
+    progress : callable(done_points, total_points), optional
+        Called as blocks of a large grid are evaluated (the command line draws a bar).
 
     Returns
     -------
-    xarray.Dataset with a ``temperature`` coordinate (K) and, for optical
-    quantities, a ``wavelength`` coordinate (nm).
+    xarray.Dataset whose dimensions are the 1-D axes given, in the order of
+    :data:`AXES`; each variable spans the dimensions its quantity depends on.
+
+    Examples
+    --------
+    >>> si = matprops.silicon()                                   # doctest: +SKIP
+    >>> si.table(["band_gap", "absorption"], T=Q_([25, 85], "degC"),
+    ...          wavelength=range(400, 1101, 50))                 # doctest: +SKIP
     """
     import xarray as xr
 
     from . import __version__
 
-    if quantities is not None:
-        names = list(quantities)
-    else:
-        names = list(TEMPERATURE_DEPENDENT) + (list(SPECTRAL) if wavelength is not None else [])
-    for name in names:
-        if name not in TABLE_QUANTITIES:
-            raise UnknownQuantityError(name, TABLE_QUANTITIES, "for tables")
-    if temperature is None:
-        raise InputError("temperature", "given (K or a pint quantity)", None)
-    kelvin = _grid(temperature, "temperature")
-    coords = {"temperature": ("temperature", kelvin, {
-        "units": "K", "long_name": "temperature",
-        "units_metadata": "temperature: on_scale"})}
-    spectral = [n for n in names if n in SPECTRAL]
-    if spectral:
-        if wavelength is None:
-            raise InputError("wavelength", f"given for {', '.join(spectral)} (nm or a pint "
-                             "quantity)", None)
-        nm = _grid(wavelength, "wavelength")
-        coords["wavelength"] = ("wavelength", nm, {"units": "nm",
-                                                   "long_name": "vacuum wavelength"})
-
-    data = xr.Dataset(coords=coords)
-    for name in names:
-        if name in SPECTRAL:
-            dims = ("wavelength", "temperature")
-            result = getattr(si, name)(nm[:, None], kelvin[None, :])
+    grid = _Grid(axes)
+    entries = _select(si, grid, quantities)
+    total = sum(grid.size_of(e) for e in entries)
+    data = xr.Dataset(coords=grid.coords())
+    done = 0
+    for entry in entries:
+        if chunks is not None and grid.dims_of(entry):
+            dims, outs, units = _evaluate_lazy(si, entry, grid, chunks)
         else:
-            dims = ("temperature",)
-            result = getattr(si, name)(kelvin)
-        parts = result if isinstance(result, tuple) else (result,)
-        provenance = json.dumps(si.provenance(name), ensure_ascii=False)
-        model = si.models.get(name, "derived")
-        columns = zip(TABLE_QUANTITIES[name], parts, strict=True)
-        for (variable, long_name, cf_units, pint_units), part in columns:
-            data[variable] = (dims, np.asarray(part.m_as(pint_units), float), {
-                "units": cf_units, "long_name": long_name, "quantity": name,
+            dims, outs, units = _evaluate(si, entry, grid, progress, done, total)
+            done += grid.size_of(entry)
+        provenance = _provenance_json(si, entry.name)
+        model = si.models.get(entry.name, "derived")
+        for (variable, long_name), values, unit in zip(entry.outputs, outs, units,
+                                                       strict=True):
+            data[variable] = (tuple(dims), values, {
+                "units": cf_units(unit), "long_name": long_name, "quantity": entry.name,
                 "model": model, "provenance": provenance})
+    names = [e.name for e in entries]
     data.attrs.update({
         "Conventions": "CF-1.11",
         "title": "Crystalline-silicon parameters from matprops",
         "source": f"matprops {__version__}, release {si.release.id} ({si.release.status})",
-        "references": si.cite(format="text", quantities=names),
-        "history": f"matprops {__version__}: si.table({names!r}, temperature=<{kelvin.size} "
-                   f"values, K>{f', wavelength=<{nm.size} values, nm>' if spectral else ''})",
+        "references": si.cite(format="text", quantities=list(dict.fromkeys(
+            q for e in entries for q in e.model_quantities()))),
+        "history": f"matprops {__version__}: si.table({names!r}, {grid.describe()}"
+                   f"{f', chunks={chunks!r}' if chunks is not None else ''})",
         "release": si.release.id,
+        "release_status": si.release.status,
         "comment": "Model estimates; for decisions with consequences defer to measured "
                    "data, local codes and licensed practice.",
     })
     return data
 
 
-def _grid(values, argument):
-    array = np.atleast_1d(to_magnitude(values, argument)).astype(float)
-    if array.ndim != 1:
-        raise InputError(argument, "a scalar or a 1-D list", f"shape {array.shape}")
-    return array
-
-
-def _atomic(path: Path, writer) -> Path:
-    path = Path(path)
-    tmp = path.with_name(f".{path.name}.tmp-{os.getpid()}")
+def _provenance_json(si, name: str) -> str:
     try:
-        writer(tmp)
-        os.replace(tmp, path)
-    finally:
-        if tmp.exists():
-            tmp.unlink()
-    return path
+        record = si.provenance(name)
+    except UnknownQuantityError:
+        record = {"quantity": name, "release": si.release.id,
+                  "models": {q: si.models.get(q) for q in QUANTITIES[name].model_quantities()}}
+    return json.dumps(record, ensure_ascii=False)
 
 
-def write(data, path, format: str | None = None) -> Path:
-    """Write a table atomically as netCDF, CSV (with a commented header) or JSON."""
-    path = Path(path)
-    format = format or {".nc": "netcdf", ".csv": "csv", ".json": "json"}.get(path.suffix)
-    if format not in FORMATS:
-        raise InputError("format", f"one of {', '.join(FORMATS)} (or a .nc/.csv/.json path)",
-                         repr(format))
-    if format == "netcdf":
-        encoding = {name: {"_FillValue": None} for name in data.variables}
-        return _atomic(path, lambda tmp: data.to_netcdf(tmp, encoding=encoding))
-    if format == "csv":
-        return _atomic(path, lambda tmp: tmp.write_text(to_csv(data)))
-    return _atomic(path, lambda tmp: tmp.write_text(
-        json.dumps(data.to_dict(data="list"), indent=1, ensure_ascii=False, default=str)))
+# --------------------------------------------------------------------------- compare
 
 
-def to_csv(data) -> str:
-    """CSV text: '# key: value' header lines, then one column per variable with units."""
-    lines = [f"# {key}: {' | '.join(str(value).splitlines())}"
-             for key, value in data.attrs.items()]
-    for name, variable in data.data_vars.items():
-        lines.append(f"# {name}: model {variable.attrs.get('model')}, "
-                     f"{variable.attrs.get('long_name')}")
-    heads, rows = _columns(data)
-    lines.append(",".join(heads))
-    lines.extend(",".join(f"{v:.10g}" for v in row) for row in rows)
-    return "\n".join(lines) + "\n"
+def _overrides(si) -> dict[str, str]:
+    return {q: m for q, m in si.models.items() if q in si.overridden}
 
 
-def _columns(data):
-    """Column headings with units, and rows: one per grid point (long format)."""
-    frame = data.to_dataframe().reset_index()
-    names = [n for n in ("wavelength", "temperature") if n in data.coords]
-    names += list(data.data_vars)
-    heads = [f"{n} [{data[n].attrs.get('units', '')}]" for n in names]
-    return heads, frame[names].to_numpy()
+def compare(si, quantity: str, models: Iterable[str] | None = None, *, chunks=None,
+            progress=None, **axes):
+    """Evaluate several models of one quantity on the same grid.
 
+    Parameters
+    ----------
+    si : matprops.Silicon (its release, other model choices and strictness are kept)
+    quantity : a quantity with model files (``matprops.models()`` lists them)
+    models : model ids (default: every model of the quantity)
+    **axes, chunks, progress : as for :func:`table`
 
-def to_text(data) -> str:
-    """A fixed-width table for a terminal."""
-    heads, rows = _columns(data)
-    widths = [max(len(h), 12) for h in heads]
-    out = ["  ".join(h.rjust(w) for h, w in zip(heads, widths, strict=True))]
-    out.extend("  ".join(f"{v:.6g}".rjust(w) for v, w in zip(row, widths, strict=True))
-               for row in rows)
-    return "\n".join(out)
+    Returns
+    -------
+    xarray.Dataset with a ``model`` dimension (and a ``citation`` coordinate along
+    it), the quantity's variables, and for each variable ``<name>_spread`` (largest
+    minus smallest model value at each grid point, same units) and
+    ``<name>_relative_spread`` (that spread over the mean of the absolute values).
+    Models outside their validity warn as usual; table models give NaN where
+    they have no data, and the spread skips them.
+    """
+    import xarray as xr
+
+    from .material import Silicon
+
+    if quantity not in si.catalog.quantities() or quantity not in QUANTITIES:
+        comparable = [q for q in si.catalog.quantities() if q in QUANTITIES]
+        raise UnknownQuantityError(quantity, comparable, "with models to compare")
+    known = si.catalog.model_ids(quantity)
+    ids = list(known if models is None else ([models] if isinstance(models, str)
+                                             else models))
+    if not ids:
+        raise InputError("models", "at least one model id", "an empty list")
+    for model_id in ids:
+        if model_id not in known:
+            raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
+    if len(set(ids)) != len(ids):
+        raise InputError("models", "distinct model ids", repr(ids))
+    parts, citations, provenance = [], [], {}
+    for model_id in ids:
+        variant = Silicon(release=si.release.id,
+                          models={**_overrides(si), quantity: model_id},
+                          strict=si.strict, catalog=si.catalog)
+        data = table(variant, [quantity], chunks=chunks, progress=progress, **axes)
+        parts.append(data)
+        citations.append(variant.model(quantity).source.citation())
+        provenance[model_id] = variant.provenance(quantity)
+    combined = xr.concat(parts, dim="model", data_vars="all", coords="minimal",
+                         compat="override", combine_attrs="override")
+    combined = combined.assign_coords(
+        model=("model", np.asarray(ids, dtype=str), {"long_name": "model id"}),
+        citation=("model", np.asarray(citations, dtype=str),
+                  {"long_name": "source of the model"}))
+    for name, _ in QUANTITIES[quantity].outputs:
+        variable = combined[name]
+        variable.attrs.update({"model": ", ".join(ids),
+                               "provenance": json.dumps(provenance, ensure_ascii=False)})
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN points stay NaN
+            high, low = variable.max("model", skipna=True), variable.min("model", skipna=True)
+            spread = high - low
+            scale = abs(variable).mean("model", skipna=True)
+            relative = spread / scale.where(scale != 0)
+        combined[f"{name}_spread"] = spread.assign_attrs({
+            "units": variable.attrs["units"],
+            "long_name": f"spread (largest minus smallest) across models of: "
+                         f"{variable.attrs['long_name']}", "quantity": quantity})
+        combined[f"{name}_relative_spread"] = relative.assign_attrs({
+            "units": "1", "long_name": f"spread across models over their mean absolute "
+                                       f"value: {variable.attrs['long_name']}",
+            "quantity": quantity})
+    from . import __version__
+
+    combined.attrs.update({
+        "title": f"Models of {quantity} compared (matprops)",
+        "references": "\n".join(f"[{m}] {c}" for m, c in zip(ids, citations, strict=True)),
+        "history": f"matprops {__version__}: si.compare({quantity!r}, models={ids!r}, "
+                   f"{_Grid(axes).describe()})",
+    })
+    return combined
