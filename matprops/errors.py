@@ -21,6 +21,7 @@ __all__ = [
     "ReleaseFrozenError",
     "SolverError",
     "UnitError",
+    "UnknownDefectError",
     "UnknownModelError",
     "UnknownNameError",
     "UnknownQuantityError",
@@ -81,6 +82,12 @@ class UnknownQuantityError(UnknownNameError):
 
 class UnknownReleaseError(UnknownNameError):
     kind = "release"
+
+
+class UnknownDefectError(UnknownNameError):
+    """A defect name that is not in the defect catalogue (``datasets/defects/``)."""
+
+    kind = "defect"
 
 
 class UnknownVariantError(UnknownNameError):
