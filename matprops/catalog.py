@@ -296,7 +296,8 @@ class Model:
             raise DatasetError(self.path, f"composed model {self.id!r} needs "
                                f"{', '.join(missing)}")
         chosen = {q: components[q] for q in self.requires}
-        function = functools.partial(self.kernel, **chosen)
+        own = {c.name: c.kernel_value for c in self.coefficients.values()}
+        function = functools.partial(self.kernel, **own, **chosen)
         return _replace(self, components=MappingProxyType(chosen), function=function)
 
     def check(self, argument: str, low: float, high: float, strict: bool = False) -> None:
@@ -525,11 +526,11 @@ class Catalog:
         return data
 
     def write_checksums(self) -> Path:
-        """Record the sha256 of every file under models/, tables/ and releases/."""
+        """Record the sha256 of every file under models/, tables/, releases/ and defects/."""
         lines = ["# sha256 of every dataset file; loaders refuse files that differ.",
                  "# Regenerate after a deliberate change: python -m matprops.catalog "
                  "--update-checksums"]
-        for sub in ("models", "tables", "releases"):
+        for sub in ("models", "tables", "releases", "defects"):
             for path in sorted((self.root / sub).rglob("*")):
                 if path.is_file() and path.suffix in (".toml", ".nc", ".json"):
                     lines.append(f"{sha256_of(path)}  {path.relative_to(self.root).as_posix()}")
@@ -894,8 +895,35 @@ def _dopant_densities(path, value) -> str:
     return value
 
 
+def _fit_section(path, entry) -> dict:
+    """What an intrinsic-lifetime model was fitted with (its radiative term, intrinsic
+    density and narrowing), so that the material composes it consistently."""
+    where = "fit"
+    if not isinstance(entry, dict):
+        raise DatasetError(path, f"{where} must be a table")
+    unknown = set(entry) - {"radiative", "intrinsic_density", "gap_narrowing"}
+    if unknown:
+        raise DatasetError(path, f"{where}: unknown field(s) {sorted(unknown)}")
+    record = {"radiative": _require(path, entry, "radiative", str, where=where + "."),
+              "gap_narrowing": _require(path, entry, "gap_narrowing", str,
+                                        where=where + ".")}
+    density = entry.get("intrinsic_density")
+    if density is not None:
+        if not isinstance(density, dict):
+            raise DatasetError(path, f"{where}.intrinsic_density must be a table")
+        temperature = _require(path, density, "temperature",
+                               where=where + ".intrinsic_density.")
+        record["intrinsic_density"] = _coefficient(
+            path, f"{where}.intrinsic_density",
+            {k: v for k, v in density.items() if k != "temperature"}, "cm^-3")
+        record["intrinsic_density_temperature"] = _convert(
+            path, f"{where}.intrinsic_density.temperature", temperature, "K", "K")
+    return record
+
+
 QUANTITY_SECTIONS = {
     "gap_narrowing": {"narrowing": _narrowing_section},
+    "intrinsic_lifetime": {"fit": _fit_section},
     "mobility": {"dopant_densities": _dopant_densities},
 }
 VARIANT_AXES = ("dopant", "carrier")
@@ -979,6 +1007,14 @@ def main(argv=None) -> int:
     for release_id in catalog.release_ids():
         try:
             catalog.release(release_id)
+        except DatasetError as exc:
+            problems += 1
+            print(f"error: {exc}")
+    from . import defects
+
+    for name in defects.names(catalog):
+        try:
+            defects.defect(name, catalog)
         except DatasetError as exc:
             problems += 1
             print(f"error: {exc}")

@@ -24,16 +24,18 @@ from .methods.carriers import CarrierMethods, dopant_species
 from .methods.crystal import DERIVED as CRYSTAL_DERIVED
 from .methods.crystal import CrystalMethods
 from .methods.optical import OpticalMethods
+from .methods.recombination import DERIVED as RECOMBINATION_DERIVED
+from .methods.recombination import RecombinationMethods
 from .units import coerce, quantity
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 # Quantities computed from other quantities' models (no model file of their own):
 # name -> (quantities it is built from, formula shown in the provenance)
-DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED}
+DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED, **RECOMBINATION_DERIVED}
 
 
-class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
+class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, RecombinationMethods):
     """Crystalline silicon as described by one release of matprops.
 
     Parameters
