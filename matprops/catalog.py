@@ -28,6 +28,7 @@ import hashlib
 import json
 import os
 import re
+import threading
 import tomllib
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
@@ -68,6 +69,11 @@ CHECKSUM_FILE = "checksums.sha256"
 MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 RELEASE_ID = re.compile(r"^\d{4}\.\d+$")
 KINDS = ("closed-form", "table", "composed")
+
+# The netCDF/HDF5 library is not thread-safe: two threads opening files at once can
+# crash the process. Every read of a table goes through this one (process-wide) lock;
+# what is read is then kept in read-only arrays and never changes.
+_TABLE_LOCK = threading.RLock()
 SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi")
 # Required fields of each kind of source record (``type`` in the file; default "article").
 SOURCE_TYPES = {
@@ -454,8 +460,15 @@ class Release:
 def _open_table(path: Path):
     import xarray as xr
 
-    with xr.open_dataset(path) as opened:
+    with _TABLE_LOCK, xr.open_dataset(path) as opened:
         return opened.load()
+
+
+def _read_only(value):
+    """Freeze an array that a bound model shares between threads."""
+    if isinstance(value, np.ndarray):
+        value.flags.writeable = False
+    return value
 
 
 _UDUNITS_POWER = re.compile(r"([A-Za-z]+)(-?\d+)")
@@ -476,6 +489,7 @@ class Catalog:
         self.root = Path(root) if root is not None else datasets_root()
         self._models: dict[tuple[str, str], Model] = {}
         self._checksums: dict[str, str] | None = None
+        self._lock = threading.RLock()  # models are built once, even from many threads
 
     # -- listing
     def quantities(self) -> list[str]:
@@ -494,6 +508,10 @@ class Catalog:
 
     # -- checksums
     def checksums(self) -> dict[str, str]:
+        with self._lock:
+            return self._read_checksums()
+
+    def _read_checksums(self) -> dict[str, str]:
         if self._checksums is None:
             path = self.root / CHECKSUM_FILE
             if not path.is_file():
@@ -541,13 +559,17 @@ class Catalog:
     # -- models
     def model(self, quantity: str, model_id: str) -> Model:
         key = (quantity, model_id)
-        if key not in self._models:
-            known = self.model_ids(quantity)
-            if model_id not in known:
-                raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
-            self._models[key] = self._load_model(
-                self.root / "models" / quantity / f"{model_id}.toml")
-        return self._models[key]
+        model = self._models.get(key)
+        if model is not None:
+            return model
+        with self._lock:
+            if key not in self._models:
+                known = self.model_ids(quantity)
+                if model_id not in known:
+                    raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
+                self._models[key] = self._load_model(
+                    self.root / "models" / quantity / f"{model_id}.toml")
+            return self._models[key]
 
     def _load_model(self, path: Path) -> Model:
         raw = self.verified_bytes(path)
@@ -598,8 +620,8 @@ class Catalog:
 
         path = self.table_path(name)
         data = self.verified_bytes(path)
-        with netCDF4.Dataset(path.name, mode="r", memory=data) as handle:
-            return {key: (np.array(var[:], dtype=float),
+        with _TABLE_LOCK, netCDF4.Dataset(path.name, mode="r", memory=data) as handle:
+            return {key: (_read_only(np.array(var[:], dtype=float)),
                           str(getattr(var, "units", "1")))
                     for key, var in handle.variables.items()}
 
@@ -643,7 +665,7 @@ def _convert(path, where: str, value, units: str, target: str):
         converted = Q_(array, source_unit).m_as(target_unit)
     except pint.PintError as exc:  # pragma: no cover - dimension checked above
         raise DatasetError(path, f"{where}: cannot convert {units!r} to {target!r}") from exc
-    return float(converted) if np.ndim(converted) == 0 else np.asarray(converted)
+    return float(converted) if np.ndim(converted) == 0 else _read_only(np.array(converted))
 
 
 def _number_or_list(path, where, value):
@@ -924,8 +946,15 @@ class _TableFunction:
         self._catalog, self._path, self._kernel = catalog, path, kernel
         self._table, self._arguments, self._bound = table, table_arguments, bound
         self._function = None
+        self._lock = threading.Lock()
 
     def _load(self):
+        with self._lock:  # the first callers wait for one load; later calls take no lock
+            if self._function is None:
+                self._function = self._read_tables()
+        return self._function
+
+    def _read_tables(self):
         spec = self._kernel.spec
         arrays, opened = {}, {}
         for argument, reference in self._arguments.items():
@@ -941,18 +970,24 @@ class _TableFunction:
             values, units = data[variable]
             arrays[argument] = _convert(self._path, where, values, udunits_to_pint(units),
                                         spec.coefficients[argument])
-        self._function = functools.partial(self._kernel, **self._bound, **arrays)
-        return self._function
+        return functools.partial(self._kernel, **self._bound, **arrays)
 
     def __call__(self, *args, **kwargs):
         function = self._function or self._load()
         return function(*args, **kwargs)
 
 
-@functools.lru_cache(maxsize=1)
+_DEFAULT: list[Catalog] = []
+_DEFAULT_LOCK = threading.Lock()
+
+
 def default_catalog() -> Catalog:
-    """The catalogue of the installed datasets (created on first use)."""
-    return Catalog()
+    """The catalogue of the installed datasets (created once, on first use)."""
+    if not _DEFAULT:
+        with _DEFAULT_LOCK:
+            if not _DEFAULT:
+                _DEFAULT.append(Catalog())
+    return _DEFAULT[0]
 
 
 def main(argv=None) -> int:
