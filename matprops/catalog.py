@@ -61,6 +61,7 @@ __all__ = [
     "Region",
     "Release",
     "Source",
+    "catalog_at",
     "datasets_root",
     "default_catalog",
 ]
@@ -410,6 +411,19 @@ class Model:
         })
         return data
 
+    # -- pickling (process pools, dask workers) and copying
+    def __reduce__(self):
+        # by name, re-bound on load from the catalogue at the same root (or the
+        # receiver's installed data when this came from the default catalogue)
+        return _rebind_model, (catalog_at(self.path.parent.parent.parent), self.quantity,
+                               self.id, self.sha256, dict(self.components), self.variant)
+
+    def __copy__(self):
+        return self  # immutable
+
+    def __deepcopy__(self, memo):
+        return self
+
     def __repr__(self) -> str:
         ranges = ", ".join(str(r) for r in self.validity.values()) or "no limits"
         inputs = ", ".join(f"{k} [{u}]" for k, u in self.inputs.items()) or "none"
@@ -423,6 +437,17 @@ def _plain_extra(value):
     if isinstance(value, Mapping):
         return {k: _plain_extra(v) for k, v in value.items()}
     return value
+
+
+def _rebind_model(catalog: Catalog, quantity: str, model_id: str, sha256: str,
+                  components: Mapping[str, Model], variant: str | None = None) -> Model:
+    model = catalog.model(quantity, model_id)
+    if model.sha256 != sha256:
+        raise DatasetError(model.path, f"has sha256 {model.sha256} here but {sha256} where "
+                           "the model was pickled: the two processes read different data")
+    if variant is not None:
+        model = model.select(variant)
+    return model.compose(**components) if components else model
 
 
 def _span(low, high) -> str:
@@ -452,6 +477,19 @@ class Release:
     @property
     def reference_path(self) -> Path:
         return self.path.with_name(f"{self.id}.reference.json")
+
+    def __reduce__(self):
+        return _reload_release, (catalog_at(self.path.parent.parent), self.id)
+
+    def __copy__(self):
+        return self  # immutable
+
+    def __deepcopy__(self, memo):
+        return self
+
+
+def _reload_release(catalog: Catalog, release_id: str) -> Release:
+    return catalog.release(release_id)
 
 
 # --------------------------------------------------------------------------- loading
@@ -486,10 +524,23 @@ class Catalog:
     """The models, tables and releases found under one ``datasets/`` folder."""
 
     def __init__(self, root: Path | str | None = None):
-        self.root = Path(root) if root is not None else datasets_root()
+        # absolute once, so a later change of working folder changes nothing
+        self.root = Path(os.path.abspath(root)) if root is not None else datasets_root()
         self._models: dict[tuple[str, str], Model] = {}
         self._checksums: dict[str, str] | None = None
         self._lock = threading.RLock()  # models are built once, even from many threads
+
+    def __reduce__(self):
+        # a catalogue pickles as its root; the default one as "the receiver's default",
+        # so a worker on another machine reads its own installed copy
+        default = bool(_DEFAULT) and self is _DEFAULT[0]
+        return catalog_at, (None if default else str(self.root),)
+
+    def __copy__(self):
+        return self  # a cache of immutable records: one per root is enough
+
+    def __deepcopy__(self, memo):
+        return self
 
     # -- listing
     def quantities(self) -> list[str]:
@@ -988,6 +1039,26 @@ def default_catalog() -> Catalog:
             if not _DEFAULT:
                 _DEFAULT.append(Catalog())
     return _DEFAULT[0]
+
+
+_CATALOGS: dict[Path, Catalog] = {}
+
+
+def catalog_at(root: Path | str | None) -> Catalog:
+    """The shared catalogue of a datasets folder (the default one for ``None``).
+
+    Unpickled models and materials find their catalogue here, so a worker reads and
+    checks each file once however many objects it receives.
+    """
+    if root is None:
+        return default_catalog()
+    root = Path(root)
+    with _DEFAULT_LOCK:
+        if _DEFAULT and _DEFAULT[0].root == root:
+            return _DEFAULT[0]
+        if root not in _CATALOGS:
+            _CATALOGS[root] = Catalog(root)
+        return _CATALOGS[root]
 
 
 def main(argv=None) -> int:

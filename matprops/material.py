@@ -18,7 +18,7 @@ import functools
 from collections.abc import Iterable, Mapping
 
 from .catalog import Catalog, Model, default_catalog
-from .errors import InputError, UnknownQuantityError
+from .errors import DatasetError, InputError, UnknownQuantityError
 from .methods.carriers import DERIVED as CARRIER_DERIVED
 from .methods.carriers import CarrierMethods, dopant_species
 from .methods.crystal import DERIVED as CRYSTAL_DERIVED
@@ -64,12 +64,19 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
         for name in overrides:
             if name not in known:
                 raise UnknownQuantityError(name, known, "in models=")
+        self._overrides = overrides
         self.overridden = frozenset(q for q, m in overrides.items()
                                     if self.release.models.get(q) != m)
         choice = {**self.release.models, **overrides}
         self._models: dict[str, Model] = {}
         for name in choice:
             self._bind(name, choice)
+
+    def __reduce__(self):
+        # pickled by release, overrides, strict flag and catalogue, re-bound on load;
+        # the model files' hashes travel along so that both sides use the same numbers
+        hashes = {q: m.sha256 for q, m in self._models.items()}
+        return _restore, (self.catalog, self.release.id, self._overrides, self.strict, hashes)
 
     def _bind(self, name: str, choice: Mapping[str, str], chain=()) -> Model:
         if name in self._models:
@@ -230,6 +237,16 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
                            for q, m in self._models.items())
         return (f"<Silicon release {self.release.id} ({self.release.status}); {chosen}"
                 f"{'; * overridden' if self.overridden else ''}>")
+
+
+def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
+    si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog)
+    for quantity, model in si._models.items():
+        if model.sha256 != hashes.get(quantity):
+            raise DatasetError(model.path, f"has sha256 {model.sha256} here but "
+                               f"{hashes.get(quantity)} where the material was pickled: "
+                               "the two processes read different data")
+    return si
 
 
 def silicon(release: str | None = None, models: Mapping[str, str] | None = None,
