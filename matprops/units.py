@@ -6,6 +6,11 @@ cm^-3, nm, s, ohm cm), or pint quantities in any unit of the right dimension
 or strings such as ``"25 degC"``. Kernels then see plain float arrays in internal
 units. Outputs are pint quantities of the application registry, so they mix with
 the caller's own quantities.
+
+Masked arrays (``numpy.ma``, also inside a quantity) are refused rather than
+evaluated: their masked slots hold arbitrary fill values, and a quantity cannot carry
+the mask out again. Evaluate ``a.compressed()`` (or ``a.filled(v)`` with a value of
+your choice) and put the mask back with ``numpy.ma.masked_array(result, a.mask)``.
 """
 
 from __future__ import annotations
@@ -102,6 +107,7 @@ def coerce(value, argument: str, units: str | None = None,
     if isinstance(value, str):
         value = _parse(value, argument, units)
     if isinstance(value, pint.Quantity):
+        _refuse_masked(value.magnitude, argument, units)
         spectral = argument in SPECTRAL and value.dimensionality != target.dimensionality
         if spectral and np.any(np.asarray(value.magnitude) <= 0):
             raise InputError(argument, f"> 0 {units} (or a positive energy, "
@@ -123,12 +129,23 @@ def coerce(value, argument: str, units: str | None = None,
     elif isinstance(value, (bool, np.bool_)):
         raise UnitError(argument, units, value)
     else:
+        _refuse_masked(value, argument, units)
         try:
             magnitude = np.asarray(value, dtype=float)
         except (TypeError, ValueError) as exc:
             raise UnitError(argument, units, value) from exc
     low, high = check_values(magnitude, argument, units, requirement)
     return magnitude, low, high
+
+
+def _refuse_masked(value, argument: str, units: str) -> None:
+    if isinstance(value, np.ma.MaskedArray):
+        raise InputError(argument, f"a plain array or quantity in {units}, not a masked "
+                         "array (its masked slots hold arbitrary fill values): evaluate "
+                         "a.compressed() and put the mask back with "
+                         "numpy.ma.masked_array(result, a.mask)",
+                         f"a masked array with {np.ma.count_masked(value)} of "
+                         f"{value.size} values masked")
 
 
 def check_values(magnitude: np.ndarray, argument: str, units: str,
