@@ -96,3 +96,30 @@ def test_composed_model_checks_its_components():
     si = matprops.silicon(models={"intrinsic_density": "boltzmann"})
     with pytest.warns(matprops.ValidityWarning, match="densities_of_states/couderc-2014"):
         si.intrinsic_density(50)
+
+
+# ------------------------------------------------------------------ masked arrays (refused)
+
+@pytest.mark.parametrize("value", [
+    np.ma.masked_array([300.0, -1e20], mask=[False, True]),   # a masked fill value
+    np.ma.masked_array([300.0, 310.0], mask=[False, False]),  # nothing masked: still refused
+    matprops.Q_(np.ma.masked_array([300.0, 1.0], mask=[False, True]), "K"),
+    matprops.Q_(np.ma.masked_array([25.0, 1e9], mask=[False, True]), "degC"),
+])
+def test_masked_input_is_refused_not_evaluated(si, value):
+    # before: the masked values were evaluated (a gap of -1.99 eV) or the mask dropped
+    with pytest.raises(matprops.InputError, match=r"'temperature' must be .*not a masked "
+                       r"array.*compressed\(\)") as info:
+        si.band_gap(value)
+    assert info.value.argument == "temperature"
+
+
+def test_masked_input_is_refused_by_every_door(si):
+    masked = np.ma.masked_array([800.0, 900.0], mask=[False, True])
+    with pytest.raises(matprops.InputError, match="'wavelength'.*masked"):
+        si.absorption(masked, 300)
+    from matprops import optics
+
+    with pytest.raises(matprops.InputError, match="'thickness'.*masked"):
+        optics.absorbed_fraction(10.0, masked)
+
