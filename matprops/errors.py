@@ -66,10 +66,12 @@ class Error(Exception):
 class UnitError(Error, TypeError):
     """An argument has the wrong physical dimension or an unparseable unit."""
 
-    def __init__(self, argument: str, expected: str, received, plain: str | None = None):
+    def __init__(self, argument: str, expected: str, received, plain: str | None = None,
+                 description: str | None = None):
         self.argument, self.expected, self.received = argument, expected, received
+        shown = description if description is not None else repr(received)
         super().__init__(f"argument {argument!r} expects a quantity in {expected} "
-                         f"(or a plain number in {plain or expected}); received {received!r}")
+                         f"(or a plain number in {plain or expected}); received {shown}")
 
 
 class InputError(Error, ValueError):

@@ -11,6 +11,9 @@ Masked arrays (``numpy.ma``, also inside a quantity) are refused rather than
 evaluated: their masked slots hold arbitrary fill values, and a quantity cannot carry
 the mask out again. Evaluate ``a.compressed()`` (or ``a.filled(v)`` with a value of
 your choice) and put the mask back with ``numpy.ma.masked_array(result, a.mask)``.
+Booleans and complex numbers are refused too (numpy would read True as 1 and drop
+an imaginary part), and so is a temperature difference (``delta_degC``) where an
+absolute temperature belongs.
 """
 
 from __future__ import annotations
@@ -107,7 +110,10 @@ def coerce(value, argument: str, units: str | None = None,
     if isinstance(value, str):
         value = _parse(value, argument, units)
     if isinstance(value, pint.Quantity):
-        _refuse_masked(value.magnitude, argument, units)
+        _real_array(value.magnitude, argument, units)
+        if target == _KELVIN and "delta_" in str(value.units):
+            raise UnitError(argument, "K, degC or degF (an absolute temperature)", value,
+                            plain="K", description=f"{value} (a temperature difference)")
         spectral = argument in SPECTRAL and value.dimensionality != target.dimensionality
         if spectral and np.any(np.asarray(value.magnitude) <= 0):
             raise InputError(argument, f"> 0 {units} (or a positive energy, "
@@ -126,16 +132,42 @@ def coerce(value, argument: str, units: str | None = None,
             # e.g. a quantity from another UnitRegistry: say so, with pint's reason
             raise UnitError(argument, f"{units} (a quantity of matprops.ureg, pint's "
                             f"application registry)", f"{value!r}: {exc}", plain=units) from exc
-    elif isinstance(value, (bool, np.bool_)):
-        raise UnitError(argument, units, value)
     else:
-        _refuse_masked(value, argument, units)
+        array = _real_array(value, argument, units)
         try:
-            magnitude = np.asarray(value, dtype=float)
+            magnitude = np.asarray(array, dtype=float)
         except (TypeError, ValueError) as exc:
             raise UnitError(argument, units, value) from exc
     low, high = check_values(magnitude, argument, units, requirement)
     return magnitude, low, high
+
+
+_KELVIN = ureg.Unit("K")
+
+
+def _real_array(value, argument: str, units: str) -> np.ndarray:
+    """``value`` (a magnitude) as an array of real numbers, any real dtype.
+
+    Refuses what numpy would silently turn into wrong numbers: masked arrays (their
+    fill values), booleans (True -> 1.0) and complex numbers (imaginary part dropped).
+    """
+    _refuse_masked(value, argument, units)
+    try:
+        array = np.asarray(value)
+    except (TypeError, ValueError) as exc:  # e.g. a ragged nested list
+        raise UnitError(argument, units, value) from exc
+    if array.dtype.kind == "b":
+        raise UnitError(argument, units, value, description=f"a boolean {_brief(value)} "
+                        "(True and False are not numbers here)")
+    if array.dtype.kind == "c":
+        raise UnitError(argument, units, value, description=f"a complex {_brief(value)} "
+                        "(only real numbers are accepted)")
+    return array
+
+
+def _brief(value) -> str:
+    array = np.asarray(value)
+    return repr(value) if array.size <= 6 else f"array of shape {array.shape}"
 
 
 def _refuse_masked(value, argument: str, units: str) -> None:

@@ -123,3 +123,39 @@ def test_masked_input_is_refused_by_every_door(si):
     with pytest.raises(matprops.InputError, match="'thickness'.*masked"):
         optics.absorbed_fraction(10.0, masked)
 
+
+# ------------------------------------------------------------------ booleans, complex, deltas
+
+@pytest.mark.parametrize("value, pattern", [
+    (np.array([True, False]), r"'temperature' expects a quantity in K.*received a boolean"),
+    ([True, True], r"received a boolean"),
+    (np.bool_(True), r"received a boolean"),
+    (np.array([300 + 1j, 310 + 0j]), r"received a complex .*only real numbers"),
+    (300 + 0j, r"received a complex"),
+    (matprops.Q_(np.array([300 + 1j]), "K"), r"received a complex"),
+    (matprops.Q_(np.array([True]), "K"), r"received a boolean"),
+])
+def test_booleans_and_complex_numbers_are_refused(si, value, pattern):
+    # before: True was taken as 1 K; complex values lost their imaginary part silently
+    with pytest.raises(matprops.UnitError, match=pattern) as info:
+        si.band_gap(value)
+    assert info.value.argument == "temperature"
+
+
+@pytest.mark.parametrize("value", [matprops.Q_(10, "delta_degC"),
+                                   matprops.Q_([5.0, 300.0], "delta_degF"),
+                                   "300 delta_degC"])
+def test_temperature_difference_is_not_a_temperature(si, value):
+    # before: 10 delta_degC was read as 10 K (a gap of 1.17 eV came back)
+    with pytest.raises(matprops.UnitError, match=r"'temperature' expects a quantity in K, "
+                       r"degC or degF \(an absolute temperature\).*difference") as info:
+        si.band_gap(value)
+    assert isinstance(info.value, TypeError)
+
+
+def test_kelvin_and_celsius_still_work(si):
+    assert si.band_gap(matprops.Q_(26.85, "degC")).m_as("eV") == pytest.approx(
+        si.band_gap(300).m_as("eV"), rel=1e-12)
+    assert si.band_gap(np.array([300], dtype=np.int32)).shape == (1,)
+    assert si.band_gap(np.float32(300)).m_as("eV") == pytest.approx(1.1243, abs=1e-4)
+
