@@ -17,6 +17,8 @@ from __future__ import annotations
 import functools
 from collections.abc import Iterable, Mapping
 
+import numpy as np
+
 from .catalog import Catalog, Model, default_catalog
 from .errors import DatasetError, InputError, UnknownQuantityError
 from .methods.carriers import DERIVED as CARRIER_DERIVED
@@ -24,7 +26,7 @@ from .methods.carriers import CarrierMethods, dopant_species
 from .methods.crystal import DERIVED as CRYSTAL_DERIVED
 from .methods.crystal import CrystalMethods
 from .methods.optical import OpticalMethods
-from .units import coerce, quantity
+from .units import check_broadcast, coerce, quantity
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
@@ -58,6 +60,8 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
         self.catalog = catalog or default_catalog()
         ids = self.catalog.release_ids()
         self.release = self.catalog.release(release if release is not None else ids[-1])
+        if not isinstance(strict, (bool, np.bool_)):  # strict="no" is not False
+            raise InputError("strict", "True or False", repr(strict))
         self.strict = bool(strict)
         overrides = dict(models or {})
         known = set(self.catalog.quantities())
@@ -148,8 +152,10 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
     def _evaluate(self, name: str, **arguments):
         """Coerce ``arguments`` (named as the kernel's inputs), check, call the model."""
         model = self.model(name)
-        return self._call(model, {a: coerce(raw, a) for a, raw in arguments.items()}), \
-            model.output_units
+        prepared = {a: coerce(raw, a) for a, raw in arguments.items()}
+        if len(prepared) > 1:  # before the validity checks: a shape error comes first
+            check_broadcast(**{a: array for a, (array, _, _) in prepared.items()})
+        return self._call(model, prepared), model.output_units
 
     def _call(self, model: Model, prepared: Mapping[str, tuple]):
         """Check validity and call ``model`` with the inputs it declares.

@@ -20,7 +20,7 @@ import numpy as np
 
 from .errors import InputError
 from .kernels.constants import PHOTON_ENERGY_NM
-from .units import coerce, quantity, to_magnitude
+from .units import check_broadcast, coerce, quantity, to_magnitude
 
 __all__ = [
     "absorbed_fraction",
@@ -40,12 +40,14 @@ def _alpha(alpha):
 def transmitted_fraction(alpha, thickness):
     """Fraction of the light entering the material that passes a thickness, exp(-alpha W)."""
     a, w = _alpha(alpha), to_magnitude(thickness, "thickness")
+    check_broadcast(alpha=a, thickness=w)
     return quantity(np.exp(-a * w), "dimensionless")
 
 
 def absorbed_fraction(alpha, thickness):
     """Fraction absorbed in a thickness in a single pass, 1 - exp(-alpha W)."""
     a, w = _alpha(alpha), to_magnitude(thickness, "thickness")
+    check_broadcast(alpha=a, thickness=w)
     return quantity(-np.expm1(-a * w), "dimensionless")
 
 
@@ -55,6 +57,7 @@ def thickness_for_absorbed_fraction(alpha, fraction):
     f, _, high = coerce(fraction, "fraction", "dimensionless", "positive")
     if high >= 1:
         raise InputError("fraction", "between 0 and 1 (exclusive)", f"{high:g}")
+    check_broadcast(alpha=a, fraction=f)
     if np.any(a == 0):
         raise InputError("alpha", "> 0 1/cm (no thickness absorbs anything at alpha = 0)",
                          "0 1/cm")

@@ -26,7 +26,7 @@ import pint
 
 from .errors import InputError, UnitError
 
-__all__ = ["Q_", "coerce", "quantity", "to_magnitude", "unit", "ureg"]
+__all__ = ["Q_", "check_broadcast", "coerce", "quantity", "to_magnitude", "unit", "ureg"]
 
 ureg = pint.get_application_registry()
 Q_ = ureg.Quantity
@@ -107,8 +107,12 @@ def coerce(value, argument: str, units: str | None = None,
     units = units or default_units
     requirement = requirement or default_req
     target = unit(units)
+    if value is None:
+        raise UnitError(argument, units, None)
     if isinstance(value, str):
         value = _parse(value, argument, units)
+    elif isinstance(value, (list, tuple)) and any(isinstance(v, pint.Quantity) for v in value):
+        value = _from_sequence(value, argument, units)
     if isinstance(value, pint.Quantity):
         _real_array(value.magnitude, argument, units)
         if target == _KELVIN and "delta_" in str(value.units):
@@ -162,12 +166,37 @@ def _real_array(value, argument: str, units: str) -> np.ndarray:
     if array.dtype.kind == "c":
         raise UnitError(argument, units, value, description=f"a complex {_brief(value)} "
                         "(only real numbers are accepted)")
+    if array.dtype.kind == "O" and any(v is None for v in array.flat):
+        raise UnitError(argument, units, value)  # not "received array(nan)"
     return array
 
 
+def _from_sequence(values, argument: str, units: str):
+    """A list of quantities -> one quantity in the first one's units."""
+    if not all(isinstance(v, pint.Quantity) for v in values):
+        raise UnitError(argument, units, values, description=f"a list that mixes plain "
+                        f"numbers and quantities {_brief(values)}: give every value units, "
+                        "or none")
+    first = values[0].units
+    magnitudes = []
+    for item in values:
+        try:
+            magnitudes.append(item.m_as(first))
+        except pint.DimensionalityError as exc:
+            raise UnitError(argument, units, item,
+                            description=f"{item} ({item.dimensionality})") from exc
+        except (pint.PintError, ValueError, TypeError) as exc:
+            raise UnitError(argument, f"{units} (quantities of matprops.ureg, pint's "
+                            "application registry)", values,
+                            description=f"{item!r}: {exc}") from exc
+    return Q_(np.asarray(magnitudes), first)
+
+
 def _brief(value) -> str:
-    array = np.asarray(value)
-    return repr(value) if array.size <= 6 else f"array of shape {array.shape}"
+    if isinstance(value, (list, tuple)):
+        return repr(value) if len(value) <= 6 else f"{type(value).__name__} of {len(value)}"
+    shape = np.shape(value)
+    return repr(value) if np.prod(shape) <= 6 else f"array of shape {shape}"
 
 
 def _refuse_masked(value, argument: str, units: str) -> None:
@@ -178,6 +207,21 @@ def _refuse_masked(value, argument: str, units: str) -> None:
                          "numpy.ma.masked_array(result, a.mask)",
                          f"a masked array with {np.ma.count_masked(value)} of "
                          f"{value.size} values masked")
+
+
+def check_broadcast(**arrays) -> tuple[int, ...]:
+    """The broadcast shape of the arguments, or an InputError naming the first one
+    whose shape does not broadcast with those before it."""
+    shape, seen = (), []
+    for name, array in arrays.items():
+        try:
+            shape = np.broadcast_shapes(shape, np.shape(array))
+        except ValueError:
+            others = " and ".join(f"{n!r} of shape {s}" for n, s in seen if s)
+            raise InputError(name, f"an array whose shape broadcasts (numpy rules) with "
+                             f"{others}", f"shape {np.shape(array)}") from None
+        seen.append((name, np.shape(array)))
+    return shape
 
 
 def check_values(magnitude: np.ndarray, argument: str, units: str,

@@ -159,3 +159,57 @@ def test_kelvin_and_celsius_still_work(si):
     assert si.band_gap(np.array([300], dtype=np.int32)).shape == (1,)
     assert si.band_gap(np.float32(300)).m_as("eV") == pytest.approx(1.1243, abs=1e-4)
 
+
+# ------------------------------------------------------------------ messages that say what happened
+
+def test_none_is_reported_as_none(si):
+    # before: "must be finite numbers in K; received array(nan)"
+    with pytest.raises(matprops.UnitError, match=r"'temperature' expects .*received None$"):
+        si.band_gap(None)
+    with pytest.raises(matprops.UnitError, match=r"received \[300, None\]"):
+        si.band_gap([300, None])
+
+
+def test_list_of_quantities_is_accepted(si):
+    # before: "expects a quantity in K ... received [<Quantity(300, 'kelvin')>, ...]"
+    Q_ = matprops.Q_
+    expected = si.band_gap([300.0, 310.0]).m_as("eV")
+    np.testing.assert_allclose(si.band_gap([Q_(300, "K"), Q_(310, "K")]).m_as("eV"), expected)
+    np.testing.assert_allclose(si.band_gap((Q_(26.85, "degC"), Q_(310, "K"))).m_as("eV"),
+                               expected, rtol=1e-12)
+
+
+def test_list_mixing_kinds_says_so(si):
+    Q_ = matprops.Q_
+    with pytest.raises(matprops.UnitError, match=r"mixes plain numbers and quantities"):
+        si.band_gap([300, Q_(310, "K")])
+    with pytest.raises(matprops.UnitError, match=r"'temperature' expects a quantity in K.*meter"):
+        si.band_gap([Q_(300, "K"), Q_(3, "m")])
+
+
+def test_table_accepts_a_single_quantity_name(si):
+    # before: "unknown quantity 'b'"
+    data = si.table("band_gap", temperature=[300, 350])
+    assert list(data.data_vars) == ["band_gap"]
+
+
+def test_shapes_that_do_not_broadcast_name_both_arguments(si):
+    # before: a bare numpy "operands could not be broadcast together"
+    with pytest.raises(matprops.InputError, match=r"'temperature' must be .*broadcasts \(numpy rules\) with "
+                       r"'wavelength' of shape \(3,\); received shape \(4,\)"):
+        si.absorption([800, 900, 1000], [250, 300, 350, 400])
+    with pytest.raises(matprops.InputError, match=r"'hole_density'.*broadcast"):
+        si.free_carrier_absorption([1300, 1500], n=[1e16, 1e17], p=[1e16, 1e17, 1e18])
+    from matprops import optics
+
+    with pytest.raises(matprops.InputError, match=r"'thickness'.*broadcast"):
+        optics.absorbed_fraction([10.0, 20.0], [1e-4, 2e-4, 3e-4])
+    assert si.absorption([[800], [900]], [250, 300, 350]).shape == (2, 3)  # still broadcasts
+
+
+@pytest.mark.parametrize("flag", ["no", "False", 0, 1, None, "yes"])
+def test_strict_takes_only_true_or_false(flag):
+    # before: strict='no' was read as True (a non-empty string)
+    with pytest.raises(matprops.InputError, match=r"'strict' must be True or False"):
+        matprops.silicon(strict=flag)
+    assert matprops.silicon(strict=np.bool_(True)).strict is True
