@@ -52,6 +52,7 @@ from .errors import (
 )
 from .kernels import module_for
 from .regions import Region, parse_regions
+from .schema import KINDS, MODEL, RELEASE, validate
 
 __all__ = [
     "Catalog",
@@ -69,7 +70,6 @@ __all__ = [
 CHECKSUM_FILE = "checksums.sha256"
 MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 RELEASE_ID = re.compile(r"^\d{4}\.\d+$")
-KINDS = ("closed-form", "table", "composed")
 
 # The netCDF/HDF5 library is not thread-safe: two threads opening files at once can
 # crash the process. Every read of a table goes through this one (process-wide) lock;
@@ -624,10 +624,8 @@ class Catalog:
 
     def _load_model(self, path: Path) -> Model:
         raw = self.verified_bytes(path)
-        try:
-            data = tomllib.loads(raw.decode("utf-8"))
-        except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-            raise DatasetError(path, f"not valid TOML: {exc}") from exc
+        data = _parse_toml(path, raw)
+        validate(path, data, MODEL)
         return _build_model(path, data, self)
 
     # -- releases
@@ -636,16 +634,11 @@ class Catalog:
         if release_id not in known:
             raise UnknownReleaseError(release_id, known)
         path = self.root / "releases" / f"{release_id}.toml"
-        data = tomllib.loads(self.verified_bytes(path).decode("utf-8"))
-        for name in ("release", "status", "date", "notes", "models"):
-            if name not in data:
-                raise DatasetError(path, f"missing field {name!r}")
+        data = _parse_toml(path, self.verified_bytes(path))
+        validate(path, data, RELEASE)
         if data["release"] != release_id:
             raise DatasetError(path, f"field 'release' is {data['release']!r}, "
                                f"the file name says {release_id!r}")
-        if data["status"] not in ("draft", "final"):
-            raise DatasetError(path, f"field 'status' must be 'draft' or 'final', "
-                               f"got {data['status']!r}")
         return Release(release_id, data["status"], str(data["date"]), data["notes"],
                        MappingProxyType(dict(data["models"])), path)
 
@@ -675,6 +668,13 @@ class Catalog:
             return {key: (_read_only(np.array(var[:], dtype=float)),
                           str(getattr(var, "units", "1")))
                     for key, var in handle.variables.items()}
+
+
+def _parse_toml(path: Path, raw: bytes) -> dict:
+    try:
+        return tomllib.loads(raw.decode("utf-8"))
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        raise DatasetError(path, f"not valid TOML: {exc}") from exc
 
 
 def _atomic_write_text(target: Path, text: str) -> None:

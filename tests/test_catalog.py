@@ -112,8 +112,8 @@ def test_unlisted_file_is_refused(datasets_copy):
 @pytest.mark.parametrize("old, new, message", [
     ('units = "eV/K"', 'units = "nm"', r"coefficients.alpha: units 'nm' have dimension"),
     ('units = "eV/K"', 'units = "glorbs"', r"coefficients.alpha: units 'glorbs' do not parse"),
-    ('doi = "10.1149/1.2134410"\n', "", r"missing required field source.'doi'"),
-    ('obtained = """', 'notes2 = """', r"missing required field 'obtained'"),
+    ('doi = "10.1149/1.2134410"\n', "", r"missing required field 'source.doi'"),
+    ('obtained = """', 'notes2 = """', r"unknown field 'notes2'"),
     ("beta = { value = 636", "gamma = { value = 636", r"missing \['beta'\], unexpected \['gamma'\]"),
     ('max = 1000', 'max = -1', r"validity.temperature: min must be below max"),
     ('kernel = "band_gap.varshni"', 'kernel = "band_gap.nothing"', r"not a declared kernel"),
@@ -189,3 +189,83 @@ def test_model_catalogue_in_docs_is_generated_from_datasets():
 
     committed = Path(__file__).resolve().parent.parent / "docs" / "models.md"
     assert committed.read_text() == render(), "regenerate: python -m matprops.modeldocs"
+
+
+# ------------------------------------------------------------------ the strict schema
+
+@pytest.mark.parametrize("old, new, message", [
+    # unknown or misspelt keys, at every level (a misspelt validity section used to
+    # remove range checking without a word)
+    ('notes = "', 'note = "x"\nnotes = "', r"unknown field 'note' .*did you mean 'notes'\?"),
+    ("[validity.temperature]", "[validty.temperature]",
+     r"unknown field 'validty' .*did you mean 'validity'\?"),
+    ("max = 1000", "maks = 1000", r"unknown field 'validity.temperature.maks'"),
+    ('beta = { value = 636, units = "K" }', 'beta = { value = 636, unit = "K" }',
+     r"unknown field 'coefficients.beta.unit' .*did you mean 'units'\?"),
+    ("[source]", "[sauce]", r"unknown field 'sauce'"),
+    ('journal = "', 'jornal = "', r"unknown field 'source.jornal'"),
+    # numbers that are not finite: coefficient, limit, uncertainty, list entry
+    ("value = 636", "value = nan", r"field 'coefficients.beta.value' must be a finite number"),
+    ("max = 1000", "max = inf", r"field 'validity.temperature.max' must be a finite number"),
+    ("min = 0", "min = -inf", r"field 'validity.temperature.min' must be a finite number"),
+    ('value = 4.73e-4, units = "eV/K"', 'value = 4.73e-4, units = "eV/K", uncertainty = nan',
+     r"field 'coefficients.alpha.uncertainty' must be a finite number"),
+    ("value = 1.17,", "value = [1.17, nan],",
+     r"field 'coefficients.gap_at_zero.value\[1\]' must be a finite number"),
+    # wrong kinds of value
+    ("year = 1975", 'year = "1975"', r"field 'source.year' must be an integer"),
+    ('kind = "closed-form"', 'kind = "closed form"', r"field 'kind' must be one of"),
+    ("value = 636", 'value = "636"', r"field 'coefficients.beta.value' must be a finite number"),
+    ('authors = ["C. D. Thurmond"]', 'authors = "C. D. Thurmond"',
+     r"field 'source.authors' must be a list of text"),
+])
+def test_model_file_schema(datasets_copy, old, new, message):
+    root, catalog = datasets_copy
+    path = _rewrite(root, "models/band_gap/thurmond-1975.toml", old, new)
+    assert new in path.read_text()
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=message) as info:
+        catalog.model("band_gap", "thurmond-1975")
+    assert str(path) in str(info.value)
+
+
+def test_missing_required_field_is_named(datasets_copy):
+    import re
+
+    root, catalog = datasets_copy
+    path = root / "models/band_gap/thurmond-1975.toml"
+    path.write_text(re.sub(r'obtained = """.*?"""\n', "", path.read_text(), flags=re.S))
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"thurmond-1975.toml: missing required "
+                       r"field 'obtained'"):
+        catalog.model("band_gap", "thurmond-1975")
+
+
+@pytest.mark.parametrize("old, new, message", [
+    ('status = "draft"', 'status = "draft"\nstatuss = "final"',
+     r"unknown field 'statuss' .*did you mean 'status'\?"),
+    ('date = "2026-12-01"\n', "", r"missing required field 'date'"),
+    ('status = "draft"', 'status = "frozen"', r"field 'status' must be one of 'draft', 'final'"),
+    ('band_gap = "passler-2002"', "band_gap = 2002", r"field 'models.band_gap' must be text"),
+    ('date = "2026-12-01"', 'date = "1 December"', r"field 'date' must be a date"),
+])
+def test_release_file_schema(datasets_copy, old, new, message):
+    root, catalog = datasets_copy
+    path = _rewrite(root, "releases/2026.1.toml", old, new)
+    assert new in path.read_text()
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=message) as info:
+        catalog.release("2026.1")
+    assert str(path) in str(info.value)
+
+
+def test_schema_accepts_every_shipped_file():
+    import tomllib
+
+    from matprops.schema import MODEL, RELEASE, validate
+
+    catalog = default_catalog()
+    for path in sorted((catalog.root / "models").rglob("*.toml")):
+        validate(path, tomllib.loads(path.read_text()), MODEL)
+    for path in sorted((catalog.root / "releases").glob("*.toml")):
+        validate(path, tomllib.loads(path.read_text()), RELEASE)
