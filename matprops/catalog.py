@@ -68,6 +68,9 @@ __all__ = [
 ]
 
 CHECKSUM_FILE = "checksums.sha256"
+# folder -> suffixes of the data files in it, each covered by the checksum list
+DATA_FILES = {"models": (".toml",), "tables": (".nc",), "releases": (".toml", ".json"),
+              "scenarios": (".toml",)}
 MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 RELEASE_ID = re.compile(r"^\d{4}\.\d+$")
 
@@ -391,8 +394,8 @@ class Model:
         """The model's numbers as an xarray.Dataset with provenance attributes."""
         import xarray as xr
 
-        if self.kind == "table":
-            data = _open_table(self.path.parent.parent.parent / "tables" / self.table)
+        if self.kind == "table":  # read through the checksum check, like the kernel
+            data = catalog_at(self.path.parent.parent.parent).table(self.table)
             data.attrs = {f"table_{k}": v for k, v in data.attrs.items()}
         else:
             variables = {}
@@ -495,11 +498,19 @@ def _reload_release(catalog: Catalog, release_id: str) -> Release:
 # --------------------------------------------------------------------------- loading
 
 
-def _open_table(path: Path):
+def _open_table(name: str, data: bytes):
+    """An in-memory netCDF file (already verified) as a loaded xarray.Dataset."""
+    import netCDF4
     import xarray as xr
 
-    with _TABLE_LOCK, xr.open_dataset(path) as opened:
-        return opened.load()
+    with _TABLE_LOCK:
+        handle = netCDF4.Dataset(name, mode="r", memory=data)
+        try:
+            with xr.open_dataset(xr.backends.NetCDF4DataStore(handle)) as opened:
+                return opened.load()  # closing the store closes the handle
+        finally:
+            if handle.isopen():
+                handle.close()
 
 
 def _read_only(value):
@@ -585,7 +596,11 @@ class Catalog:
         if recorded is None:
             raise ChecksumError(path, f"no checksum recorded in {CHECKSUM_FILE}; "
                                 "refusing to load an unlisted file")
-        data = path.read_bytes()
+        try:
+            data = path.read_bytes()
+        except OSError as exc:
+            raise DatasetError(path, f"cannot be read ({exc.strerror or exc}); it is "
+                               f"listed in {CHECKSUM_FILE}") from exc
         actual = hashlib.sha256(data).hexdigest()
         if actual != recorded:
             raise ChecksumError(path, f"sha256 {actual} does not match the recorded "
@@ -593,15 +608,23 @@ class Catalog:
                                 "Refusing to load it.")
         return data
 
+    def data_files(self) -> list[str]:
+        """Every data file under the root (relative paths): the files the checksum
+        list must cover."""
+        found = []
+        for sub, suffixes in DATA_FILES.items():
+            found += [path.relative_to(self.root).as_posix()
+                      for path in sorted((self.root / sub).rglob("*"))
+                      if path.is_file() and path.suffix in suffixes]
+        return found
+
     def write_checksums(self) -> Path:
-        """Record the sha256 of every file under models/, tables/ and releases/."""
+        """Record the sha256 of every data file (see :meth:`data_files`)."""
         lines = ["# sha256 of every dataset file; loaders refuse files that differ.",
                  "# Regenerate after a deliberate change: python -m matprops.catalog "
                  "--update-checksums"]
-        for sub in ("models", "tables", "releases"):
-            for path in sorted((self.root / sub).rglob("*")):
-                if path.is_file() and path.suffix in (".toml", ".nc", ".json"):
-                    lines.append(f"{sha256_of(path)}  {path.relative_to(self.root).as_posix()}")
+        for relative in self.data_files():
+            lines.append(f"{sha256_of(self.root / relative)}  {relative}")
         target = self.root / CHECKSUM_FILE
         _atomic_write_text(target, "\n".join(lines) + "\n")
         self._checksums = None
@@ -649,10 +672,27 @@ class Catalog:
         return path
 
     def table(self, name: str):
-        """A verified netCDF table from ``datasets/tables/`` as an xarray.Dataset."""
+        """A verified netCDF table from ``datasets/tables/`` as an xarray.Dataset
+        (read from the checked bytes themselves: no window between check and read)."""
         path = self.table_path(name)
-        self.verified_bytes(path)
-        return _open_table(path)
+        return _open_table(path.name, self.verified_bytes(path))
+
+    # -- scenarios (invented demonstration data)
+    def scenario_names(self) -> list[str]:
+        return sorted(p.stem for p in (self.root / "scenarios").glob("*.toml"))
+
+    def scenario(self, name: str) -> dict:
+        """A verified, schema-checked scenario file from ``datasets/scenarios/``."""
+        from .errors import UnknownNameError
+        from .schema import SCENARIO
+
+        known = self.scenario_names()
+        if name not in known:
+            raise UnknownNameError(name, known, "among the scenarios")
+        path = self.root / "scenarios" / f"{name}.toml"
+        data = _parse_toml(path, self.verified_bytes(path))
+        validate(path, data, SCENARIO)
+        return data
 
     def table_arrays(self, name: str) -> dict[str, tuple[np.ndarray, str]]:
         """Variables of a verified table as ``{name: (values, UDUNITS units)}``.
@@ -1062,8 +1102,14 @@ def catalog_at(root: Path | str | None) -> Catalog:
 
 
 def main(argv=None) -> int:
-    """Developer tool: ``python -m matprops.catalog --update-checksums``."""
+    """Developer tool: ``python -m matprops.catalog [--update-checksums]``.
+
+    Checks every data file (see :func:`matprops.integrity.check`); exit status 1 when
+    anything is wrong.
+    """
     import argparse
+
+    from .integrity import check
 
     parser = argparse.ArgumentParser(prog="python -m matprops.catalog",
                                      description="Check or re-record dataset checksums.")
@@ -1074,21 +1120,11 @@ def main(argv=None) -> int:
     catalog = Catalog(args.root)
     if args.update_checksums:
         print(f"wrote {catalog.write_checksums()}")
-    problems = 0
-    for quantity in catalog.quantities():
-        for model_id in catalog.model_ids(quantity):
-            try:
-                catalog.model(quantity, model_id)
-            except DatasetError as exc:
-                problems += 1
-                print(f"error: {exc}")
-    for release_id in catalog.release_ids():
-        try:
-            catalog.release(release_id)
-        except DatasetError as exc:
-            problems += 1
-            print(f"error: {exc}")
-    print("all dataset files verified" if not problems else f"{problems} problem(s)")
+    problems, checked = check(catalog)
+    for problem in problems:
+        print(f"error: {problem}")
+    print(f"{catalog.root}: all {checked} dataset files verified" if not problems
+          else f"{len(problems)} problem(s) in {catalog.root}")
     return 1 if problems else 0
 
 

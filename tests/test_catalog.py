@@ -1,5 +1,7 @@
 """The catalogue: every data file validates; broken or tampered files are refused."""
 
+import re
+
 import pytest
 
 import matprops
@@ -178,7 +180,107 @@ def test_catalog_command_verifies_everything(capsys):
     from matprops.catalog import main
 
     assert main([]) == 0
-    assert "all dataset files verified" in capsys.readouterr().out
+    out = capsys.readouterr().out
+    assert re.search(r"all \d+ dataset files verified", out)
+    listed = default_catalog().checksums()
+    assert f"all {len(listed)} dataset files" in out  # models, tables, releases, scenarios
+    assert any(name.startswith("scenarios/") for name in listed)
+
+
+def _alter_table(path):
+    """Change one number inside a netCDF table: still a readable file, other data."""
+    import netCDF4
+
+    with netCDF4.Dataset(path, "a") as handle:
+        variable = handle.variables["absorption_coefficient"]
+        variable[0] = variable[0] * 2
+
+
+def test_model_dataset_refuses_a_tampered_table(datasets_copy):
+    # before: to_dataset() opened the table without its checksum check
+    root, catalog = datasets_copy
+    _alter_table(root / "tables/green-2008.nc")
+    with pytest.raises(matprops.ChecksumError, match=r"green-2008\.nc: sha256"):
+        catalog.model("absorption", "green-2008").to_dataset()
+
+
+def _check(root, capsys):
+    from matprops.catalog import main
+
+    status = main(["--root", str(root)])
+    return status, capsys.readouterr().out
+
+
+def _problems(out):
+    return [line for line in out.splitlines() if line.startswith("error: ")]
+
+
+def test_check_command_fails_on_a_corrupted_table(datasets_copy, capsys):
+    root, _ = datasets_copy
+    _alter_table(root / "tables/green-2008.nc")
+    status, out = _check(root, capsys)
+    assert status == 1 and "verified" not in out
+    assert len(_problems(out)) == 1 and "tables/green-2008.nc: sha256" in out
+
+
+def test_check_command_fails_on_a_missing_table(datasets_copy, capsys):
+    root, _ = datasets_copy
+    (root / "tables/franta-2017.nc").unlink()
+    status, out = _check(root, capsys)
+    assert status == 1 and "tables/franta-2017.nc: listed in checksums.sha256 but missing" in out
+    assert len(_problems(out)) == 1  # once, though three models read it
+
+
+@pytest.mark.parametrize("relative, change, expected", [
+    ("scenarios/desert-rooftop.toml", lambda t: t.replace("-20.0", "-25.0"),
+     "desert-rooftop.toml: sha256"),
+    ("releases/2026.1.reference.json", lambda t: t.replace("1.", "2.", 1),
+     "2026.1.reference.json: sha256"),
+    ("models/band_gap/alex-1996.toml", lambda t: t + "\n", "alex-1996.toml: sha256"),
+])
+def test_check_command_covers_every_kind_of_file(datasets_copy, capsys, relative, change,
+                                                  expected):
+    root, _ = datasets_copy
+    path = root / relative
+    path.write_text(change(path.read_text()))
+    status, out = _check(root, capsys)
+    assert status == 1 and expected in out
+
+
+def test_check_command_fails_on_unlisted_files_and_bad_references(datasets_copy, capsys):
+    root, catalog = datasets_copy
+    _rewrite(root, "releases/2026.1.toml", '"schroder-1978"', '"schroder-1987"')
+    catalog.write_checksums()
+    (root / "scenarios/extra.toml").write_text("name = 'extra'\n")
+    status, out = _check(root, capsys)
+    assert status == 1
+    assert "models.free_carrier_absorption = 'schroder-1987' does not exist" in out
+    assert "scenarios/extra.toml: not listed in checksums.sha256" in out
+
+
+def test_check_command_fails_on_an_empty_or_missing_folder(tmp_path, capsys):
+    # before: "all dataset files verified" for an empty folder
+    empty = tmp_path / "datasets"
+    empty.mkdir()
+    status, out = _check(empty, capsys)
+    assert status == 1 and "checksum list is missing" in out
+    (empty / "checksums.sha256").write_text("")
+    status, out = _check(empty, capsys)
+    assert status == 1 and "no model files" in out and "no release files" in out
+    status, out = _check(tmp_path / "nowhere", capsys)
+    assert status == 1 and "does not exist" in out
+
+
+def test_scenario_is_read_verified_and_checked(datasets_copy):
+    root, catalog = datasets_copy
+    scenario = catalog.scenario("desert-rooftop")
+    assert scenario["invented"] is True
+    _rewrite(root, "scenarios/desert-rooftop.toml", "invented = true", "invented = 1")
+    with pytest.raises(matprops.ChecksumError):
+        catalog.scenario("desert-rooftop")
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match="field 'invented' must be true or false"):
+        catalog.scenario("desert-rooftop")
 
 
 def test_model_catalogue_in_docs_is_generated_from_datasets():
