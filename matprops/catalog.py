@@ -88,10 +88,25 @@ BOOK_FIELDS = ("publisher", "edition", "address", "pages")
 
 
 def datasets_root() -> Path:
-    """Where the data live: $MATPROPS_DATASETS, the installed copy, or the checkout."""
-    override = os.environ.get("MATPROPS_DATASETS")
-    if override:
-        return Path(override)
+    """Where the data live: $MATPROPS_DATASETS, the installed copy, or the checkout.
+
+    A relative MATPROPS_DATASETS is resolved against the working folder of this
+    call (the default catalogue calls it once, so a later ``chdir`` changes
+    nothing); a value that is not a folder is a DatasetError saying so. An empty
+    value counts as unset.
+    """
+    override = os.environ.get("MATPROPS_DATASETS", "")
+    if override.strip():
+        given = Path(override).expanduser()
+        root = Path(os.path.abspath(given))
+        if not root.is_dir():
+            where = ("" if given.is_absolute() else
+                     f" (a relative path, resolved against the working folder {os.getcwd()})")
+            raise DatasetError(root, f"MATPROPS_DATASETS={override!r}{where} is not a "
+                               "folder: point it at a datasets folder (models/, tables/, "
+                               "releases/, checksums.sha256) or unset it to use the "
+                               "installed data")
+        return root
     installed = Path(__file__).resolve().parent / "datasets"
     if installed.is_dir():
         return installed
@@ -554,9 +569,17 @@ class Catalog:
         return self
 
     # -- listing
+    def _folder(self, name: str) -> Path:
+        folder = self.root / name
+        if not folder.is_dir():
+            origin = (" (set by MATPROPS_DATASETS)"
+                      if os.environ.get("MATPROPS_DATASETS", "").strip() else "")
+            raise DatasetError(folder, f"folder is missing: {self.root}{origin} is not a "
+                               "matprops datasets folder")
+        return folder
+
     def quantities(self) -> list[str]:
-        folder = self.root / "models"
-        return sorted(p.name for p in folder.iterdir() if p.is_dir()) if folder.is_dir() else []
+        return sorted(p.name for p in self._folder("models").iterdir() if p.is_dir())
 
     def model_ids(self, quantity: str) -> list[str]:
         if quantity not in self.quantities():
@@ -564,9 +587,17 @@ class Catalog:
         return sorted(p.stem for p in (self.root / "models" / quantity).glob("*.toml"))
 
     def release_ids(self) -> list[str]:
-        folder = self.root / "releases"
-        ids = [p.stem for p in folder.glob("*.toml") if RELEASE_ID.match(p.stem)]
+        ids = [p.stem for p in self._folder("releases").glob("*.toml")
+               if RELEASE_ID.match(p.stem)]
         return sorted(ids, key=lambda r: tuple(int(x) for x in r.split(".")))
+
+    def newest_release_id(self) -> str:
+        """The newest release's id; a DatasetError when there is none."""
+        ids = self.release_ids()
+        if not ids:
+            raise DatasetError(self.root / "releases", "no release file (<YYYY.N>.toml) in "
+                               "this folder; a release names the model of each quantity")
+        return ids[-1]
 
     # -- checksums
     def checksums(self) -> dict[str, str]:

@@ -45,24 +45,24 @@ def check(catalog: Catalog) -> tuple[list[str], int]:
     for relative in sorted(on_disk & set(recorded)):
         attempt(catalog.verified_bytes, root / relative)
 
-    quantities = catalog.quantities()
-    if not quantities:
+    quantities = attempt(catalog.quantities)  # None: the folder is missing (reported)
+    if quantities == []:
         problems.append(f"{root / 'models'}: no model files")
-    for quantity in quantities:
+    for quantity in quantities or []:
         for model_id in catalog.model_ids(quantity):
             model = attempt(catalog.model, quantity, model_id)
             if model is not None and model.kind == "table":
                 attempt(model.function._load)  # opens and converts every table it reads
 
-    releases = catalog.release_ids()
-    if not releases:
+    releases = attempt(catalog.release_ids)
+    if releases == []:
         problems.append(f"{root / 'releases'}: no release files")
-    for release_id in releases:
+    for release_id in releases or []:
         release = attempt(catalog.release, release_id)
         if release is None:
             continue
         for quantity, model_id in release.models.items():
-            known = catalog.model_ids(quantity) if quantity in quantities else []
+            known = catalog.model_ids(quantity) if quantity in (quantities or []) else []
             if model_id not in known:
                 problems.append(f"{release.path}: models.{quantity} = {model_id!r} does not "
                                 f"exist (models of {quantity!r}: {', '.join(known) or 'none'})")
@@ -73,6 +73,6 @@ def check(catalog: Catalog) -> tuple[list[str], int]:
             except ValueError as exc:
                 problems.append(f"{release.reference_path}: not valid JSON: {exc}")
 
-    for name in catalog.scenario_names():
+    for name in catalog.scenario_names():  # (optional folder)
         attempt(catalog.scenario, name)
     return problems, len(on_disk & set(recorded))

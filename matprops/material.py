@@ -58,8 +58,8 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
     def __init__(self, release: str | None = None, models: Mapping[str, str] | None = None,
                  strict: bool = False, catalog: Catalog | None = None):
         self.catalog = catalog or default_catalog()
-        ids = self.catalog.release_ids()
-        self.release = self.catalog.release(release if release is not None else ids[-1])
+        self.release = self.catalog.release(release if release is not None
+                                            else self.catalog.newest_release_id())
         if not isinstance(strict, (bool, np.bool_)):  # strict="no" is not False
             raise InputError("strict", "True or False", repr(strict))
         self.strict = bool(strict)

@@ -266,6 +266,10 @@ def test_check_command_fails_on_an_empty_or_missing_folder(tmp_path, capsys):
     assert status == 1 and "checksum list is missing" in out
     (empty / "checksums.sha256").write_text("")
     status, out = _check(empty, capsys)
+    assert status == 1 and "models: folder is missing" in out
+    (empty / "models").mkdir()
+    (empty / "releases").mkdir()
+    status, out = _check(empty, capsys)
     assert status == 1 and "no model files" in out and "no release files" in out
     status, out = _check(tmp_path / "nowhere", capsys)
     assert status == 1 and "does not exist" in out
@@ -371,3 +375,58 @@ def test_schema_accepts_every_shipped_file():
         validate(path, tomllib.loads(path.read_text()), MODEL)
     for path in sorted((catalog.root / "releases").glob("*.toml")):
         validate(path, tomllib.loads(path.read_text()), RELEASE)
+
+
+# ------------------------------------------------------------------ where the data are
+
+def test_datasets_variable_pointing_nowhere_is_named(tmp_path, monkeypatch):
+    # before: a bare IndexError from the empty list of releases
+    from matprops.catalog import datasets_root
+
+    monkeypatch.setenv("MATPROPS_DATASETS", str(tmp_path / "nowhere"))
+    with pytest.raises(matprops.DatasetError, match=r"nowhere: MATPROPS_DATASETS=.* is "
+                       r"not a folder"):
+        datasets_root()
+    monkeypatch.chdir(tmp_path)
+    monkeypatch.setenv("MATPROPS_DATASETS", "data")
+    with pytest.raises(matprops.DatasetError, match=r"a relative path, resolved against "
+                       r"the working folder"):
+        datasets_root()
+
+
+def test_empty_datasets_folder_is_named(tmp_path, monkeypatch):
+    monkeypatch.setenv("MATPROPS_DATASETS", str(tmp_path))
+    with pytest.raises(matprops.DatasetError, match=r"releases: folder is missing: .* \(set "
+                       r"by MATPROPS_DATASETS\) is not a matprops datasets folder"):
+        matprops.Silicon(catalog=Catalog())
+    (tmp_path / "releases").mkdir()
+    with pytest.raises(matprops.DatasetError, match=r"releases: no release file"):
+        matprops.Silicon(catalog=Catalog())
+
+
+def test_relative_datasets_path_is_resolved_once(datasets_copy, monkeypatch, tmp_path):
+    root, _ = datasets_copy
+    monkeypatch.chdir(root.parent)
+    monkeypatch.setenv("MATPROPS_DATASETS", root.name)
+    catalog = Catalog()
+    assert catalog.root == root and catalog.root.is_absolute()
+    monkeypatch.chdir(tmp_path.parent)  # elsewhere: the catalogue still finds its data
+    assert matprops.Silicon(catalog=catalog).band_gap(300).m_as("eV") > 1
+    monkeypatch.setenv("MATPROPS_DATASETS", "")  # empty counts as unset
+    assert Catalog().root == default_catalog().root
+
+
+def test_missing_release_file_is_named(datasets_copy):
+    root, catalog = datasets_copy
+    (root / "releases/2026.1.toml").unlink()
+    with pytest.raises(matprops.DatasetError, match=r"releases: no release file"):
+        matprops.Silicon(catalog=catalog)
+
+
+def test_malformed_release_file_is_named(datasets_copy):
+    # before: tomllib's error with no file name
+    root, catalog = datasets_copy
+    _rewrite(root, "releases/2026.1.toml", "[models]", "[models")
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"2026\.1\.toml: not valid TOML"):
+        matprops.Silicon(catalog=catalog)
