@@ -52,7 +52,7 @@ from .errors import (
 )
 from .kernels import module_for
 from .regions import Region, parse_regions
-from .schema import KINDS, MODEL, RELEASE, validate
+from .schema import KINDS, MODEL, RELEASE, VARIANT_AXES, validate
 
 __all__ = [
     "Catalog",
@@ -1042,7 +1042,6 @@ QUANTITY_SECTIONS = {
     "gap_narrowing": {"narrowing": _narrowing_section},
     "mobility": {"dopant_densities": _dopant_densities},
 }
-VARIANT_AXES = ("dopant", "carrier")
 
 
 def _extra_sections(path, quantity, data) -> dict:

@@ -32,10 +32,11 @@ from typing import Any
 
 from .errors import DatasetError
 
-__all__ = ["KINDS", "MODEL", "RELEASE", "SCENARIO", "validate"]
+__all__ = ["KINDS", "MODEL", "RELEASE", "SCENARIO", "VARIANT_AXES", "validate"]
 
 REQUIRED, OPTIONAL = True, False
 KINDS = ("closed-form", "table", "composed")  # of model: see matprops.catalog
+VARIANT_AXES = ("dopant", "carrier")  # what a model's coefficient sets are per
 
 
 @dataclass(frozen=True)
@@ -105,6 +106,7 @@ COEFFICIENT = {                    # [coefficients] name = { value = ..., units 
     "value": (NUMBERS, REQUIRED),
     "units": (TEXT, REQUIRED),
     "uncertainty": (NUMBERS, OPTIONAL),
+    "obtained": (TEXT, OPTIONAL),  # this number's own origin, where it differs
 }
 
 RANGE = {                          # [validity.<kernel input>]
@@ -114,8 +116,21 @@ RANGE = {                          # [validity.<kernel input>]
 }
 
 VARIANT = {                        # [variants.<name>]: one coefficient set of a model
-    "coefficients": (table_of(COEFFICIENT), REQUIRED),
+    "coefficients": (table_of(COEFFICIENT), OPTIONAL),
     "validity": (table_of(RANGE), OPTIONAL),
+    "obtained": (TEXT, OPTIONAL),
+}
+
+FITTED_DENSITY = {                 # the intrinsic density an apparent narrowing was fitted with
+    **COEFFICIENT,
+    "temperature": (NUMBER, REQUIRED),  # K
+}
+
+NARROWING = {                      # [narrowing] of a gap_narrowing model
+    "type": (one_of("apparent", "physical"), REQUIRED),
+    "statistics": (one_of("boltzmann", "fermi-dirac"), REQUIRED),
+    "split": (TEXT, REQUIRED),
+    "intrinsic_density": (FITTED_DENSITY, OPTIONAL),  # required for "apparent"
 }
 
 MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
@@ -133,12 +148,12 @@ MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
     "table_arguments": (table_of(TEXT), OPTIONAL),   # required for kind "table"
     "validity": (table_of(RANGE), OPTIONAL),
     "coefficients": (table_of(COEFFICIENT), OPTIONAL),
-    # -- the doping axis adds its fields here, one line each (and the catalogue reads
-    #    them), e.g.:
-    # "variant_axis": (TEXT, OPTIONAL),
-    # "variants": (table_of(VARIANT), OPTIONAL),
-    # "narrowing": (NARROWING, OPTIONAL),           # a section declared above
-    # "dopant_densities": (one_of("total", "ionised"), OPTIONAL),
+    # -- the doping axis (which quantity needs which section: catalog.QUANTITY_SECTIONS)
+    "variant_axis": (one_of(*VARIANT_AXES), OPTIONAL),  # goes with variants
+    "variants": (table_of(VARIANT), OPTIONAL),          # one coefficient set per name
+    "narrowing": (NARROWING, OPTIONAL),                 # gap_narrowing models
+    "dopant_densities": (one_of("total", "ionised"), OPTIONAL),  # mobility models
+    # -- new fields: one line here
 }
 
 RELEASE = {                        # datasets/releases/<release-id>.toml
