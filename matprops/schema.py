@@ -13,7 +13,7 @@ Kinds of value::
     TEXT        a string                    NUMBER   a finite int or float
     INTEGER     an int                      NUMBERS  a finite number or a non-empty list of them
     TEXTS       a list of strings           FLAG     true or false
-    DATE        a TOML date or "YYYY-MM-DD"
+    DATE        a TOML date or "YYYY-MM-DD" PAIRS    a list of [number, number] pairs
     one_of(...)     one of the given strings
     table_of(S)     a table whose keys are free names (coefficient, input, quantity ...)
                     and whose values are each a section S (or a kind)
@@ -73,13 +73,15 @@ NUMBERS = Kind("a finite number or a non-empty list of finite numbers",
                                            and all(_is_number(x) for x in v)))
 TEXTS = Kind("a list of text", lambda v: isinstance(v, list)
              and all(isinstance(x, str) for x in v))
+PAIRS = Kind("a list of [number, number] pairs", lambda v: isinstance(v, list) and all(
+    isinstance(p, list) and len(p) == 2 and all(_is_number(x) for x in p) for p in v))
 FLAG = Kind("true or false", lambda v: isinstance(v, bool))
 DATE = Kind("a date (YYYY-MM-DD)", lambda v: isinstance(v, datetime.date) or (
     isinstance(v, str) and re.fullmatch(r"\d{4}-\d{2}-\d{2}", v) is not None))
 
 
 def one_of(*choices: str) -> Kind:
-    return Kind(f"one of {', '.join(repr(c) for c in choices)}", lambda v: v in choices)
+    return Kind(f"one of {', '.join(choices)}", lambda v: v in choices)
 
 
 def table_of(entry) -> TableOf:
@@ -92,13 +94,17 @@ def list_of(entry) -> ListOf:
 
 # --------------------------------------------------------------------------- sections
 
-SOURCE = {
+SOURCE = {                         # which fields each type needs: catalog.SOURCE_TYPES
+    "type": (one_of("article", "book"), OPTIONAL),   # default "article"
     "authors": (TEXTS, REQUIRED),
     "year": (INTEGER, REQUIRED),
     "title": (TEXT, REQUIRED),
-    "journal": (TEXT, REQUIRED),
-    "volume": (TEXT, REQUIRED),
-    "pages": (TEXT, REQUIRED),
+    "journal": (TEXT, OPTIONAL),   # articles
+    "volume": (TEXT, OPTIONAL),    # articles
+    "pages": (TEXT, OPTIONAL),     # articles
+    "publisher": (TEXT, OPTIONAL),  # books
+    "edition": (TEXT, OPTIONAL),   # books
+    "address": (TEXT, OPTIONAL),   # books
     "doi": (TEXT, REQUIRED),       # "" where the publication has none
 }
 
@@ -113,6 +119,15 @@ RANGE = {                          # [validity.<kernel input>]
     "min": (NUMBER, REQUIRED),
     "max": (NUMBER, REQUIRED),
     "units": (TEXT, REQUIRED),
+}
+
+REGION = {                         # [[validity_region]]: see matprops.regions
+    "input": (TEXT, REQUIRED),
+    "limit": (one_of("min", "max"), REQUIRED),
+    "varies_with": (TEXT, REQUIRED),
+    "points": (PAIRS, REQUIRED),
+    "units": (TEXTS, REQUIRED),
+    "reason": (TEXT, REQUIRED),
 }
 
 VARIANT = {                        # [variants.<name>]: one coefficient set of a model
@@ -147,6 +162,7 @@ MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
     "table": (TEXT, OPTIONAL),                       # required for kind "table"
     "table_arguments": (table_of(TEXT), OPTIONAL),   # required for kind "table"
     "validity": (table_of(RANGE), OPTIONAL),
+    "validity_region": (list_of(REGION), OPTIONAL),
     "coefficients": (table_of(COEFFICIENT), OPTIONAL),
     # -- the doping axis (which quantity needs which section: catalog.QUANTITY_SECTIONS)
     "variant_axis": (one_of(*VARIANT_AXES), OPTIONAL),  # goes with variants
@@ -217,8 +233,8 @@ def _check(path, value, kind, where: str) -> None:
 
 
 def _check_finite(path, value, where: str) -> None:
-    items = enumerate(value) if isinstance(value, list) else [(None, value)]
-    for index, item in items:
-        if isinstance(item, float) and not math.isfinite(item):
-            at = where if index is None else f"{where}[{index}]"
-            raise DatasetError(path, f"field '{at}' must be a finite number, got {item!r}")
+    if isinstance(value, list):
+        for index, item in enumerate(value):
+            _check_finite(path, item, f"{where}[{index}]")
+    elif isinstance(value, float) and not math.isfinite(value):
+        raise DatasetError(path, f"field '{where}' must be a finite number, got {value!r}")

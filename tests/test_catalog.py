@@ -249,12 +249,13 @@ def test_check_command_covers_every_kind_of_file(datasets_copy, capsys, relative
 
 def test_check_command_fails_on_unlisted_files_and_bad_references(datasets_copy, capsys):
     root, catalog = datasets_copy
-    _rewrite(root, "releases/2026.1.toml", '"schroder-1978"', '"schroder-1987"')
+    _rewrite(root, "releases/2026.1.toml", 'band_gap = "passler-2002"',
+             'band_gap = "passler-2003"')
     catalog.write_checksums()
     (root / "scenarios/extra.toml").write_text("name = 'extra'\n")
     status, out = _check(root, capsys)
     assert status == 1
-    assert "models.free_carrier_absorption = 'schroder-1987' does not exist" in out
+    assert "models.band_gap = 'passler-2003' does not exist" in out
     assert "scenarios/extra.toml: not listed in checksums.sha256" in out
 
 
@@ -351,7 +352,7 @@ def test_missing_required_field_is_named(datasets_copy):
     ('status = "draft"', 'status = "draft"\nstatuss = "final"',
      r"unknown field 'statuss' .*did you mean 'status'\?"),
     ('date = "2026-12-01"\n', "", r"missing required field 'date'"),
-    ('status = "draft"', 'status = "frozen"', r"field 'status' must be one of 'draft', 'final'"),
+    ('status = "draft"', 'status = "frozen"', r"field 'status' must be one of draft, final, got 'frozen'"),
     ('band_gap = "passler-2002"', "band_gap = 2002", r"field 'models.band_gap' must be text"),
     ('date = "2026-12-01"', 'date = "1 December"', r"field 'date' must be a date"),
 ])

@@ -25,7 +25,10 @@ EXAMPLES = [
     (errors.UnknownReleaseError("2025.9", ["2026.1"]), ("name", "known")),
     (errors.DatasetError(Path("models/a/b.toml"), "missing field 'id'"), ("path", "problem")),
     (errors.ChecksumError("tables/x.nc", "sha256 differs"), ("path", "problem")),
+    (errors.UnknownVariantError("tin", ["boron", "phosphorus"], "for ionisation"),
+     ("name", "known")),
     (errors.ReleaseFrozenError("release 2026.1 is final"), ()),
+    (errors.SolverError("charge neutrality did not converge at 3 points"), ()),
     (errors.ValidityError("temperature 700 K is outside 0-600 K"), ()),
     (errors.ValidityWarning("temperature 700 K is outside 0-600 K"), ()),
 ]
