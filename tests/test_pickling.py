@@ -94,6 +94,10 @@ def test_silicon_and_kernels_deep_copy(si):
     assert copy.deepcopy(kernel)(temperature=300.0) == kernel(temperature=300.0)
     assert round_trip(kernel)(temperature=300.0) == kernel(temperature=300.0)
     assert round_trip(si.release).models == si.release.models
+    boron = si.kernel("ionisation", dopant="boron")  # one coefficient set of a model
+    clone = round_trip(boron)
+    assert clone.variant == "boron" and copy.deepcopy(boron) is boron
+    np.testing.assert_array_equal(clone(dopant_density=1e18), boron(dopant_density=1e18))
 
 
 def test_pickle_keeps_the_catalogue_root(datasets_copy):
