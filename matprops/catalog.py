@@ -749,9 +749,21 @@ def _parse_toml(path: Path, raw: bytes) -> dict:
 
 
 def _atomic_write_text(target: Path, text: str) -> None:
+    """Write through a temporary file and a rename; a folder that cannot be written
+    (a read-only install) is a DatasetError saying so, not an OSError traceback."""
     tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")
-    tmp.write_text(text)
-    os.replace(tmp, target)
+    try:
+        tmp.write_text(text)
+        os.replace(tmp, target)
+    except OSError as exc:
+        try:
+            tmp.unlink(missing_ok=True)
+        except OSError:
+            pass
+        raise DatasetError(target, f"cannot be written ({exc.strerror or exc}): this "
+                           "command changes the datasets folder itself, which is read-only "
+                           "here (an installed copy?); run it in a writable checkout, or "
+                           "on a writable copy (--root or MATPROPS_DATASETS)") from exc
 
 
 # --------------------------------------------------------------------------- validation
@@ -1138,7 +1150,9 @@ def main(argv=None) -> int:
     anything is wrong.
     """
     import argparse
+    import sys
 
+    from .errors import Error
     from .integrity import check
 
     parser = argparse.ArgumentParser(prog="python -m matprops.catalog",
@@ -1147,9 +1161,13 @@ def main(argv=None) -> int:
                         help="record the sha256 of every dataset file (after a deliberate change)")
     parser.add_argument("--root", type=Path, default=None, help="datasets folder")
     args = parser.parse_args(argv)
-    catalog = Catalog(args.root)
-    if args.update_checksums:
-        print(f"wrote {catalog.write_checksums()}")
+    try:
+        catalog = Catalog(args.root)
+        if args.update_checksums:
+            print(f"wrote {catalog.write_checksums()}")
+    except Error as exc:  # e.g. a read-only install, MATPROPS_DATASETS pointing nowhere
+        print(f"error: {exc}", file=sys.stderr)
+        return 2
     problems, checked = check(catalog)
     for problem in problems:
         print(f"error: {problem}")
