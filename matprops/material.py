@@ -27,6 +27,8 @@ from .methods.crystal import DERIVED as CRYSTAL_DERIVED
 from .methods.crystal import CrystalMethods
 from .methods.optical import OpticalMethods
 from .units import check_broadcast, coerce, quantity
+from .units import name as check_name
+from .units import names as check_names
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
@@ -105,6 +107,7 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
 
     def model(self, name: str) -> Model:
         """The bound :class:`~matprops.catalog.Model` serving a quantity."""
+        name = check_name(name)
         if name not in self._models:
             if name in DERIVED:
                 raise UnknownQuantityError(
@@ -179,6 +182,7 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
     # ------------------------------------------------------------------ provenance
     def provenance(self, name: str) -> dict:
         """Model id, source, DOI, validity, coefficients, release, and overrides."""
+        name = check_name(name)
         if name in DERIVED:
             parts, formula = DERIVED[name]
             record = {"quantity": name, "model": "derived", "formula": formula,
@@ -197,7 +201,7 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
 
     def sources(self, names: Iterable[str] | None = None):
         """Unique (citation key, Source) pairs behind the given quantities (default: all)."""
-        names = list(names) if names is not None else list(self._models)
+        names = check_names(names) if names is not None else list(self._models)
         seen, found = set(), []
         for name in names:
             parts = DERIVED[name][0] if name in DERIVED else (name,)

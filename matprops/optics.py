@@ -33,6 +33,15 @@ __all__ = [
 ]
 
 
+def _finite(values, units, argument, given, given_units):
+    """``values`` as a quantity, or an InputError where a reciprocal overflowed (an
+    input so close to zero that the result exceeds the floating-point range)."""
+    if not np.all(np.isfinite(values)):
+        raise InputError(argument, "large enough that the result is a finite number "
+                         f"(its reciprocal overflows)", f"{np.min(given):g} {given_units}")
+    return quantity(values, units)
+
+
 def _alpha(alpha):
     return to_magnitude(alpha, "absorption_coefficient")
 
@@ -61,7 +70,8 @@ def thickness_for_absorbed_fraction(alpha, fraction):
     if np.any(a == 0):
         raise InputError("alpha", "> 0 1/cm (no thickness absorbs anything at alpha = 0)",
                          "0 1/cm")
-    return quantity(-np.log1p(-f) / a, "cm").to("um")
+    with np.errstate(over="ignore"):  # checked by _finite
+        return _finite(-np.log1p(-f) / a * 1e4, "um", "alpha", a, "1/cm")
 
 
 def absorption_depth(alpha):
@@ -69,17 +79,22 @@ def absorption_depth(alpha):
     a = _alpha(alpha)
     if np.any(a == 0):
         raise InputError("alpha", "> 0 1/cm (the depth is infinite at alpha = 0)", "0 1/cm")
-    return quantity(1.0 / a, "cm").to("um")
+    with np.errstate(over="ignore"):
+        return _finite(1e4 / a, "um", "alpha", a, "1/cm")
 
 
 def photon_energy(wavelength):
     """Photon energy of a vacuum wavelength, eV (E = hc/lambda)."""
-    return quantity(PHOTON_ENERGY_NM / to_magnitude(wavelength, "wavelength"), "eV")
+    nm = to_magnitude(wavelength, "wavelength")
+    with np.errstate(over="ignore"):
+        return _finite(PHOTON_ENERGY_NM / nm, "eV", "wavelength", nm, "nm")
 
 
 def wavelength(energy):
     """Vacuum wavelength of a photon energy, nm (lambda = hc/E)."""
-    return quantity(PHOTON_ENERGY_NM / to_magnitude(energy, "photon_energy"), "nm")
+    ev = to_magnitude(energy, "photon_energy")
+    with np.errstate(over="ignore"):
+        return _finite(PHOTON_ENERGY_NM / ev, "nm", "energy", ev, "eV")
 
 
 def absorbed_fraction_spectrum(si, wavelengths, thickness, temperature):

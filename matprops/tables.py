@@ -36,6 +36,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .errors import InputError, UnknownModelError, UnknownQuantityError, ValidityWarning
+from .units import names as check_names
 from .units import to_magnitude
 
 __all__ = ["AXES", "QUANTITIES", "Axis", "Tabulated", "available", "axis", "cf_units",
@@ -393,9 +394,7 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
             raise InputError("quantities", "named, or a grid some quantity depends on "
                              "(e.g. temperature)", "none of either")
         return chosen
-    if isinstance(quantities, str):
-        quantities = [quantities]
-    names = list(quantities)
+    names = check_names(quantities)  # one name (not its letters) or several, as text
     if not names:
         raise InputError("quantities", "at least one quantity name", "an empty list")
     entries = []

@@ -26,7 +26,8 @@ import pint
 
 from .errors import InputError, UnitError
 
-__all__ = ["Q_", "check_broadcast", "coerce", "quantity", "to_magnitude", "unit", "ureg"]
+__all__ = ["Q_", "check_broadcast", "coerce", "name", "names", "quantity", "to_magnitude", "unit",
+           "ureg"]
 
 ureg = pint.get_application_registry()
 Q_ = ureg.Quantity
@@ -207,6 +208,26 @@ def _refuse_masked(value, argument: str, units: str) -> None:
                          "numpy.ma.masked_array(result, a.mask)",
                          f"a masked array with {np.ma.count_masked(value)} of "
                          f"{value.size} values masked")
+
+
+def names(value, argument: str = "quantities") -> list[str]:
+    """One quantity name or an iterable of them -> a list of names (text only)."""
+    if isinstance(value, str):
+        return [value]
+    try:
+        found = list(value)
+    except TypeError:
+        raise InputError(argument, "a quantity name or a list of names", repr(value)) from None
+    for item in found:
+        name(item, argument)
+    return found
+
+
+def name(value, argument: str = "name") -> str:
+    """A quantity (or model, release ...) name: text, or an InputError."""
+    if not isinstance(value, str):
+        raise InputError(argument, "a name (text)", repr(value))
+    return value
 
 
 def check_broadcast(**arrays) -> tuple[int, ...]:

@@ -213,3 +213,40 @@ def test_strict_takes_only_true_or_false(flag):
     with pytest.raises(matprops.InputError, match=r"'strict' must be True or False"):
         matprops.silicon(strict=flag)
     assert matprops.silicon(strict=np.bool_(True)).strict is True
+
+
+# ------------------------------------------------------------------ found by the sweep (test_sweep.py)
+
+@pytest.mark.parametrize("call", [
+    lambda si: si.provenance(["band_gap"]), lambda si: si.model(3),
+    lambda si: si.kernel(None), lambda si: si.cite(quantities=3), lambda si: si.sources(7),
+    lambda si: si.table(5, temperature=300), lambda si: si.table([["band_gap"]], temperature=300),
+])
+def test_names_that_are_not_text_are_refused(si, call):
+    # before: TypeError (unhashable type, int not iterable) from inside the method
+    with pytest.raises(matprops.InputError, match=r"must be a name|a quantity name"):
+        call(si)
+
+
+@pytest.mark.parametrize("function, value, argument", [
+    ("photon_energy", 5e-324, "wavelength"), ("wavelength", 1e-310, "energy"),
+    ("absorption_depth", 5e-324, "alpha"),
+])
+def test_reciprocal_that_overflows_is_refused(function, value, argument):
+    # before: inf returned without a word (and numpy's overflow warning)
+    from matprops import optics
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        with pytest.raises(matprops.InputError, match=rf"'{argument}' must be large enough"):
+            getattr(optics, function)(value)
+
+
+@pytest.mark.parametrize("keyword", ["Na", "Nd"])
+def test_none_doping_is_reported(keyword):
+    # before: KeyError('acceptor_density') from inside the narrowing
+    si = matprops.silicon(models={"gap_narrowing": "klaassen-1992"})
+    with pytest.raises(matprops.UnitError, match=rf"'{keyword}' expects .*received None"):
+        si.gap_narrowing(300, **{keyword: None})
+    with pytest.raises(matprops.UnitError, match=r"'temperature' expects .*received None"):
+        si.gap_narrowing(None)
