@@ -43,7 +43,8 @@ def _rebuild(cls, args, state):
 def _picklable(value):
     try:
         pickle.dumps(value)
-    except Exception:  # a generator, a lock, an object of the caller's ...
+    except (pickle.PicklingError, TypeError, AttributeError, ValueError, RecursionError):
+        # a generator, a lock, a local object of the caller's ...
         return repr(value)
     return value
 

@@ -251,10 +251,10 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
 
 def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
     si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog)
-    for quantity, model in si._models.items():
-        if model.sha256 != hashes.get(quantity):
+    for name, model in si._models.items():
+        if model.sha256 != hashes.get(name):
             raise DatasetError(model.path, f"has sha256 {model.sha256} here but "
-                               f"{hashes.get(quantity)} where the material was pickled: "
+                               f"{hashes.get(name)} where the material was pickled: "
                                "the two processes read different data")
     return si
 

@@ -38,7 +38,7 @@ def _finite(values, units, argument, given, given_units):
     input so close to zero that the result exceeds the floating-point range)."""
     if not np.all(np.isfinite(values)):
         raise InputError(argument, "large enough that the result is a finite number "
-                         f"(its reciprocal overflows)", f"{np.min(given):g} {given_units}")
+                         "(its reciprocal overflows)", f"{np.min(given):g} {given_units}")
     return quantity(values, units)
 
 

@@ -341,7 +341,7 @@ def test_missing_required_field_is_named(datasets_copy):
 
     root, catalog = datasets_copy
     path = root / "models/band_gap/thurmond-1975.toml"
-    path.write_text(re.sub(r'obtained = """.*?"""\n', "", path.read_text(), flags=re.S))
+    path.write_text(re.sub(r'obtained = """.*?"""\n', "", path.read_text(), flags=re.DOTALL))
     catalog.write_checksums()
     with pytest.raises(matprops.DatasetError, match=r"thurmond-1975.toml: missing required "
                        r"field 'obtained'"):
