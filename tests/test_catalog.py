@@ -232,8 +232,8 @@ def test_check_command_fails_on_a_missing_table(datasets_copy, capsys):
 
 
 @pytest.mark.parametrize("relative, change, expected", [
-    ("scenarios/desert-rooftop.toml", lambda t: t.replace("-20.0", "-25.0"),
-     "desert-rooftop.toml: sha256"),
+    ("scenarios/two-site-modules.toml", lambda t: t.replace("dawn = 12.0", "dawn = 13.0"),
+     "two-site-modules.toml: sha256"),
     ("releases/2026.1.reference.json", lambda t: t.replace("1.", "2.", 1),
      "2026.1.reference.json: sha256"),
     ("models/band_gap/alex-1996.toml", lambda t: t + "\n", "alex-1996.toml: sha256"),
@@ -278,14 +278,20 @@ def test_check_command_fails_on_an_empty_or_missing_folder(tmp_path, capsys):
 
 def test_scenario_is_read_verified_and_checked(datasets_copy):
     root, catalog = datasets_copy
-    scenario = catalog.scenario("desert-rooftop")
+    scenario = catalog.scenario("two-site-modules")
     assert scenario["invented"] is True
-    _rewrite(root, "scenarios/desert-rooftop.toml", "invented = true", "invented = 1")
+    _rewrite(root, "scenarios/two-site-modules.toml", "invented = true", "invented = 1")
     with pytest.raises(matprops.ChecksumError):
-        catalog.scenario("desert-rooftop")
+        catalog.scenario("two-site-modules")
     catalog.write_checksums()
     with pytest.raises(matprops.DatasetError, match="field 'invented' must be true or false"):
-        catalog.scenario("desert-rooftop")
+        catalog.scenario("two-site-modules")
+    _rewrite(root, "scenarios/two-site-modules.toml", "invented = 1", "invented = true")
+    _rewrite(root, "scenarios/two-site-modules.toml", "dawn = 12.0", "dawn = nan")
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"field 'temperature.sites.hot-site.dawn'"
+                       r" must be a finite number"):
+        catalog.scenario("two-site-modules")
 
 
 def test_model_catalogue_in_docs_is_generated_from_datasets():
@@ -385,13 +391,13 @@ def test_datasets_variable_pointing_nowhere_is_named(tmp_path, monkeypatch):
     from matprops.catalog import datasets_root
 
     monkeypatch.setenv("MATPROPS_DATASETS", str(tmp_path / "nowhere"))
-    with pytest.raises(matprops.DatasetError, match=r"nowhere: MATPROPS_DATASETS=.* is "
-                       r"not a folder"):
+    with pytest.raises(matprops.DatasetError, match=r"nowhere: datasets folder does not "
+                       r"exist; set MATPROPS_DATASETS .*\(MATPROPS_DATASETS='.*nowhere'\)"):
         datasets_root()
     monkeypatch.chdir(tmp_path)
     monkeypatch.setenv("MATPROPS_DATASETS", "data")
-    with pytest.raises(matprops.DatasetError, match=r"a relative path, resolved against "
-                       r"the working folder"):
+    with pytest.raises(matprops.DatasetError, match=r"MATPROPS_DATASETS='data', a relative "
+                       r"path resolved against the working folder"):
         datasets_root()
 
 
