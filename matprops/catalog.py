@@ -101,11 +101,11 @@ def datasets_root() -> Path:
         root = Path(os.path.abspath(given))
         if not root.is_dir():
             where = ("" if given.is_absolute() else
-                     f" (a relative path, resolved against the working folder {os.getcwd()})")
-            raise DatasetError(root, f"MATPROPS_DATASETS={override!r}{where} is not a "
-                               "folder: point it at a datasets folder (models/, tables/, "
-                               "releases/, checksums.sha256) or unset it to use the "
-                               "installed data")
+                     f", a relative path resolved against the working folder {os.getcwd()}")
+            raise DatasetError(root, "datasets folder does not exist; set MATPROPS_DATASETS "
+                               "to a matprops datasets folder (models/, tables/, releases/, "
+                               "checksums.sha256), or unset it to use the installed data "
+                               f"(MATPROPS_DATASETS={override!r}{where})")
         return root
     installed = Path(__file__).resolve().parent / "datasets"
     if installed.is_dir():
@@ -1121,6 +1121,15 @@ def default_catalog() -> Catalog:
             if not _DEFAULT:
                 _DEFAULT.append(Catalog())
     return _DEFAULT[0]
+
+
+def _forget_default() -> None:
+    """Drop the default catalogue (tests that change MATPROPS_DATASETS call this)."""
+    with _DEFAULT_LOCK:
+        _DEFAULT.clear()
+
+
+default_catalog.cache_clear = _forget_default  # the name functools.lru_cache gives it
 
 
 _CATALOGS: dict[Path, Catalog] = {}
