@@ -219,7 +219,8 @@ def names(value, argument: str = "quantities") -> list[str]:
     except TypeError:
         raise InputError(argument, "a quantity name or a list of names", repr(value)) from None
     for item in found:
-        name(item, argument)
+        if not isinstance(item, str):
+            raise InputError(argument, "quantity names (text)", repr(item))
     return found
 
 

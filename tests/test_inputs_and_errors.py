@@ -221,10 +221,13 @@ def test_strict_takes_only_true_or_false(flag):
     lambda si: si.provenance(["band_gap"]), lambda si: si.model(3),
     lambda si: si.kernel(None), lambda si: si.cite(quantities=3), lambda si: si.sources(7),
     lambda si: si.table(5, temperature=300), lambda si: si.table([["band_gap"]], temperature=300),
+    lambda si: si.compare(["band_gap"], temperature=300),
+    lambda si: si.compare("band_gap", models=3, temperature=300),
 ])
 def test_names_that_are_not_text_are_refused(si, call):
     # before: TypeError (unhashable type, int not iterable) from inside the method
-    with pytest.raises(matprops.InputError, match=r"must be a name|a quantity name"):
+    with pytest.raises(matprops.InputError,
+                       match=r"must be (a name|a quantity name|quantity names)"):
         call(si)
 
 

@@ -92,6 +92,8 @@ KINDS = {
     "quantities": Choice((None, ["band_gap"], ["band_gap", "density"], ("absorption",),
                           "band_gap", ["no_such_quantity"], [])),
     "format": Choice(("bibtex", "text", "BibTeX", "json")),
+    "model_ids": Choice((None, ["passler-2002", "thurmond-1975"], ("alex-1996",),
+                         "passler-2002", ["no-such-model"], [3], [])),
 }
 
 # Silicon methods: (name, positional argument kinds, keyword argument kinds). Keyword
@@ -128,6 +130,7 @@ SILICON_METHODS = [
     ("cite", (), {"format": "format", "quantities": "quantities"}),
     ("sources", ("quantities",), {}),
     ("table", ("quantities",), {"temperature": "temperature", "wavelength": "wavelength"}),
+    ("compare", ("quantity",), {"models": "model_ids", "temperature": "temperature"}),
 ]
 
 # optics functions: (name, positional argument kinds, keyword argument kinds)
