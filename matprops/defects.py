@@ -30,24 +30,22 @@ from __future__ import annotations
 
 import dataclasses
 import re
-import tomllib
 import weakref
 from collections.abc import Mapping
 from pathlib import Path
 
 import numpy as np
 
-from .catalog import Catalog, Source, _convert, _require, _source, default_catalog
+from .catalog import (Catalog, Source, _convert, _parse_toml, _require, _source,
+                      default_catalog)
 from .errors import DatasetError, InputError, UnknownDefectError
 from .kernels import srh_lifetime as srh
+from .schema import DEFECT, validate
 
 __all__ = ["CrossSection", "Defect", "defect", "describe", "names", "parse"]
 
 FOLDER = "defects"
 NAME = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
-_FIELDS = {"name", "aliases", "description", "obtained", "notes", "level",
-           "electron_cross_section", "hole_cross_section", "cross_section_ratio",
-           "thermal_velocity", "source", "additional_sources", "validity"}
 
 
 @dataclasses.dataclass(frozen=True)
@@ -221,12 +219,7 @@ def defect(name: str, catalog: Catalog | None = None) -> Defect:
             key = aliases[key.lower()]
     if key not in cache:
         path = _folder(catalog) / f"{key}.toml"
-        raw = catalog.verified_bytes(path)
-        try:
-            data = tomllib.loads(raw.decode("utf-8"))
-        except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-            raise DatasetError(path, f"not valid TOML: {exc}") from exc
-        cache[key] = _build(path, data)
+        cache[key] = _build(path, _parse_toml(path, catalog.verified_bytes(path)))
     return cache[key]
 
 
@@ -276,9 +269,7 @@ def _cross_section_file(path, where, entry) -> CrossSection:
 
 
 def _build(path: Path, data: Mapping) -> Defect:
-    unknown = set(data) - _FIELDS
-    if unknown:
-        raise DatasetError(path, f"unknown field(s) {sorted(unknown)}")
+    validate(path, data, DEFECT)
     name = _require(path, data, "name", str)
     if name != path.stem or not NAME.match(name):
         raise DatasetError(path, f"field 'name' is {name!r}; it must equal the file name "
