@@ -24,16 +24,19 @@ from .methods.carriers import CarrierMethods, dopant_species
 from .methods.crystal import DERIVED as CRYSTAL_DERIVED
 from .methods.crystal import CrystalMethods
 from .methods.optical import OpticalMethods
+from .methods.transport import DERIVED as TRANSPORT_DERIVED
+from .methods.transport import KERNELS as TRANSPORT_KERNELS
+from .methods.transport import TransportMethods
 from .units import coerce, quantity
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 # Quantities computed from other quantities' models (no model file of their own):
 # name -> (quantities it is built from, formula shown in the provenance)
-DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED}
+DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED, **TRANSPORT_DERIVED}
 
 
-class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
+class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods):
     """Crystalline silicon as described by one release of matprops.
 
     Parameters
@@ -107,7 +110,9 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
 
         Inputs and outputs are in the internal units listed by
         ``si.model(name).inputs`` and ``.output_units`` (K, cm^-3, eV, ...).
-        ``fixed`` chooses what a quantity needs fixed: ``dopant=`` for ionisation;
+        ``fixed`` chooses what a quantity needs fixed: ``carrier=`` (and ``donor=`` /
+        ``acceptor=`` where the model has one coefficient set per dopant) for the
+        transport quantities; ``dopant=`` for ionisation;
         ``donor=``, ``acceptor=`` and ``statistics=`` for ``equilibrium`` (a callable
         ``(temperature, donor_density, acceptor_density) -> dict of arrays``).
         """
@@ -126,6 +131,8 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods):
                 fermi_dirac=self._check_statistics(statistics, bound))
         if name == "effective_intrinsic_density":
             return self._carriers().effective_intrinsic_density
+        if name in TRANSPORT_KERNELS:
+            return self._transport_kernel(name, fixed)
         model = self.model(name)
         if model.variant_axis == "dopant":
             species = fixed.pop("dopant", None)
