@@ -1077,10 +1077,23 @@ def _fit_section(path, entry) -> dict:
     return record
 
 
+def _velocity_definition(path, value) -> str:
+    if value not in THERMAL_VELOCITY_DEFINITIONS:
+        raise DatasetError(path, "field 'definition' must be one of "
+                           f"{', '.join(map(repr, THERMAL_VELOCITY_DEFINITIONS))}, "
+                           f"got {value!r}")
+    return value
+
+
+# A thermal velocity is either the mean speed sqrt(8kT/(pi m)) or the root-mean-square
+# speed sqrt(3kT/m); they differ by sqrt(3 pi/8) = 1.085, so every model says which.
+THERMAL_VELOCITY_DEFINITIONS = ("mean speed", "root-mean-square speed")
+
 QUANTITY_SECTIONS = {
     "gap_narrowing": {"narrowing": _narrowing_section},
     "intrinsic_lifetime": {"fit": _fit_section},
     "mobility": {"dopant_densities": _dopant_densities},
+    "thermal_velocity": {"definition": _velocity_definition},
 }
 
 

@@ -28,6 +28,9 @@ from .methods.crystal import CrystalMethods
 from .methods.optical import OpticalMethods
 from .methods.recombination import DERIVED as RECOMBINATION_DERIVED
 from .methods.recombination import RecombinationMethods
+from .methods.transport import DERIVED as TRANSPORT_DERIVED
+from .methods.transport import KERNELS as TRANSPORT_KERNELS
+from .methods.transport import TransportMethods
 from .units import check_broadcast, coerce, quantity
 from .units import name as check_name
 from .units import names as check_names
@@ -36,10 +39,12 @@ __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 # Quantities computed from other quantities' models (no model file of their own):
 # name -> (quantities it is built from, formula shown in the provenance)
-DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED, **RECOMBINATION_DERIVED}
+DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED, **TRANSPORT_DERIVED,
+           **RECOMBINATION_DERIVED}
 
 
-class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, RecombinationMethods):
+class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
+              RecombinationMethods):
     """Crystalline silicon as described by one release of matprops.
 
     Parameters
@@ -123,7 +128,9 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, RecombinationMetho
 
         Inputs and outputs are in the internal units listed by
         ``si.model(name).inputs`` and ``.output_units`` (K, cm^-3, eV, ...).
-        ``fixed`` chooses what a quantity needs fixed: ``dopant=`` for ionisation;
+        ``fixed`` chooses what a quantity needs fixed: ``carrier=`` (and ``donor=`` /
+        ``acceptor=`` where the model has one coefficient set per dopant) for the
+        transport quantities; ``dopant=`` for ionisation;
         ``donor=``, ``acceptor=`` and ``statistics=`` for ``equilibrium`` (a callable
         ``(temperature, donor_density, acceptor_density) -> dict of arrays``).
         """
@@ -142,6 +149,8 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, RecombinationMetho
                 fermi_dirac=self._check_statistics(statistics, bound))
         if name == "effective_intrinsic_density":
             return self._carriers().effective_intrinsic_density
+        if name in TRANSPORT_KERNELS:
+            return self._transport_kernel(name, fixed)
         model = self.model(name)
         if model.variant_axis == "dopant":
             species = fixed.pop("dopant", None)

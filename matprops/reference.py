@@ -66,6 +66,8 @@ CASES = [
     ("free_carrier_absorption", "free_carrier_absorption", {},
      {"wavelength": [1000.0, 1300.0, 1450.0, 1550.0, 2000.0, 5000.0],
       "n": [0.0, 1e16, 1e19], "p": [0.0, 1e16, 1e19]}),
+    *[(f"thermal_velocity_{c}", "thermal_velocity", {"carrier": c},
+       {"temperature": TEMPERATURES}) for c in ("electron", "hole")],
 ]
 
 

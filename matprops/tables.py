@@ -237,6 +237,9 @@ QUANTITIES: dict[str, Tabulated] = _registry(
               fields=("fermi_level", "fermi_level_from_conduction_edge", "electron_density",
                       "hole_density", "ionised_donors", "ionised_acceptors"),
               wants=_DOPING[:2]),
+    # transport (methods of the transport family)
+    Tabulated("thermal_velocity", {"carrier": 0, "temperature": 1}, (
+        ("thermal_velocity", "thermal velocity (mean thermal speed)"),)),
 )
 
 
