@@ -176,6 +176,7 @@ MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
     "narrowing": (NARROWING, OPTIONAL),                 # gap_narrowing models
     "dopant_densities": (one_of("total", "ionised"), OPTIONAL),  # mobility models
     "fit": (FIT, OPTIONAL),                             # intrinsic_lifetime models
+    "definition": (TEXT, OPTIONAL),                     # thermal_velocity models
     # -- new fields: one line here
 }
 
