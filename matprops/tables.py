@@ -77,11 +77,24 @@ class Axis:
         return None if self.category else cf_units(self.units)
 
 
+def _catalogue_defects() -> tuple[str, ...]:
+    """Names of the defect catalogue, for the ``defect`` axis (empty if unreadable:
+    the recombination methods then name what exists)."""
+    try:
+        from .defects import names
+
+        return tuple(names())
+    except Exception:  # noqa: BLE001 - a help text must not stop an import
+        return ()
+
+
 # The order here is the order of a table's dimensions (last varies fastest).
 AXES: dict[str, Axis] = {a.name: a for a in (
     Axis("carrier", None, None, "charge carrier", choices=("electron", "hole")),
     Axis("plane", None, None, "crystal plane (Miller indices)",
          choices=("100", "110", "111")),
+    Axis("defect", None, None, "recombination centre of the defect catalogue",
+         choices=_catalogue_defects()),
     Axis("temperature", "T", "K", "temperature", "positive"),
     Axis("acceptor_density", "Na", "cm^-3", "acceptor density", "non-negative", log=True),
     Axis("donor_density", "Nd", "cm^-3", "donor density", "non-negative", log=True),
@@ -89,6 +102,10 @@ AXES: dict[str, Axis] = {a.name: a for a in (
          log=True),
     Axis("electron_density", "n", "cm^-3", "electron density", "non-negative", log=True),
     Axis("hole_density", "p", "cm^-3", "hole density", "non-negative", log=True),
+    Axis("defect_density", None, "cm^-3", "defect density", "non-negative", log=True),
+    Axis("generation", None, "cm^-2/s", "photogeneration per area (absorbed photon flux)",
+         "positive", log=True),
+    Axis("thickness", None, "cm", "sample thickness", "positive"),
     Axis("wavelength", None, "nm", "vacuum wavelength", "positive"),
 )}
 _ALIASES = {a.alias: a.name for a in AXES.values() if a.alias}
@@ -188,6 +205,10 @@ _T = {"temperature": 0}
 _DOPED = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
           "electron_density": "n", "hole_density": "p"}
 _DOPING = ("acceptor_density", "donor_density", "electron_density", "hole_density")
+_LIFETIME = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
+             "excess_density": "excess"}
+_INJECTED = ("acceptor_density", "donor_density", "excess_density")
+_EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
 # One entry per tabulable quantity; add one here when a Silicon method lands.
 QUANTITIES: dict[str, Tabulated] = _registry(
     Tabulated("band_gap", _T, (
@@ -240,6 +261,30 @@ QUANTITIES: dict[str, Tabulated] = _registry(
     # transport (methods of the transport family)
     Tabulated("thermal_velocity", {"carrier": 0, "temperature": 1}, (
         ("thermal_velocity", "thermal velocity (mean thermal speed)"),)),
+    # recombination (methods of the recombination family)
+    Tabulated("radiative_coefficient", _T, (
+        ("radiative_coefficient", "radiative recombination coefficient"),), log=True),
+    Tabulated("intrinsic_lifetime", _LIFETIME, (
+        ("intrinsic_lifetime", "intrinsic (Auger and radiative) lifetime"),),
+        wants=_INJECTED, log=True, needs=("intrinsic_lifetime", *_EQUILIBRIUM)),
+    Tabulated("auger_lifetime", _LIFETIME, (
+        ("auger_lifetime", "Auger lifetime (the Auger part of the intrinsic lifetime)"),),
+        wants=_INJECTED, log=True),
+    Tabulated("srh_lifetime", {**_LIFETIME, "defect": "defect", "defect_density": "density"},
+              (("srh_lifetime", "Shockley-Read-Hall lifetime through the defect"),),
+              log=True, needs=("srh_lifetime", "thermal_velocity", "band_gap", *_EQUILIBRIUM)),
+    Tabulated("effective_lifetime",
+              {**_LIFETIME, "defect": "defect", "defect_density": "density"},
+              (("effective_lifetime", "effective bulk lifetime (intrinsic and SRH)"),),
+              fields=("effective_lifetime",), wants=_INJECTED, log=True),
+    Tabulated("implied_voltage",
+              {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
+               "defect": "defect", "defect_density": "density", "generation": "generation",
+               "thickness": "thickness"},
+              (("implied_voltage", "implied open-circuit voltage (steady state, uniform "
+                                   "generation, flat carrier profile)"),
+               ("steady_state_excess_density", "excess carrier density in steady state")),
+              fields=("implied_voltage", "excess_density")),
 )
 
 
