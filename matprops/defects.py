@@ -197,7 +197,7 @@ def _aliases(catalog: Catalog) -> dict[str, str]:
         table = {}
         for name in names(catalog):
             for alias in defect(name, catalog).aliases:
-                table[alias.lower()] = name
+                table[alias.lower()] = (alias, name)
         cache["__aliases__"] = table
     return cache["__aliases__"]
 
@@ -214,9 +214,9 @@ def defect(name: str, catalog: Catalog | None = None) -> Defect:
         else:
             aliases = _aliases(catalog)
             if key.lower() not in aliases:
-                shown = known + sorted(f"{a} (= {n})" for a, n in aliases.items())
+                shown = known + sorted(f"{a} (= {n})" for a, n in aliases.values())
                 raise UnknownDefectError(name, shown, "in the defect catalogue")
-            key = aliases[key.lower()]
+            key = aliases[key.lower()][1]
     if key not in cache:
         path = _folder(catalog) / f"{key}.toml"
         cache[key] = _build(path, _parse_toml(path, catalog.verified_bytes(path)))

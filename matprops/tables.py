@@ -270,7 +270,9 @@ QUANTITIES: dict[str, Tabulated] = _registry(
     Tabulated("auger_lifetime", _LIFETIME, (
         ("auger_lifetime", "Auger lifetime (the Auger part of the intrinsic lifetime)"),),
         wants=_INJECTED, log=True),
-    Tabulated("srh_lifetime", {**_LIFETIME, "defect": "defect", "defect_density": "density"},
+    Tabulated("srh_lifetime", {"defect": 0, "temperature": 1, "acceptor_density": "Na",
+                               "donor_density": "Nd", "excess_density": "excess",
+                               "defect_density": "density"},
               (("srh_lifetime", "Shockley-Read-Hall lifetime through the defect"),),
               log=True, needs=("srh_lifetime", "thermal_velocity", "band_gap", *_EQUILIBRIUM)),
     Tabulated("effective_lifetime",
@@ -278,9 +280,8 @@ QUANTITIES: dict[str, Tabulated] = _registry(
               (("effective_lifetime", "effective bulk lifetime (intrinsic and SRH)"),),
               fields=("effective_lifetime",), wants=_INJECTED, log=True),
     Tabulated("implied_voltage",
-              {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
-               "defect": "defect", "defect_density": "density", "generation": "generation",
-               "thickness": "thickness"},
+              {"temperature": 0, "generation": 1, "thickness": 2, "acceptor_density": "Na",
+               "donor_density": "Nd", "defect": "defect", "defect_density": "density"},
               (("implied_voltage", "implied open-circuit voltage (steady state, uniform "
                                    "generation, flat carrier profile)"),
                ("steady_state_excess_density", "excess carrier density in steady state")),

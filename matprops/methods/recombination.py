@@ -78,7 +78,7 @@ class Lifetimes(Result):
 
     ``effective_lifetime`` combines ``intrinsic_lifetime`` (whose parts are
     ``auger_lifetime`` and ``radiative_lifetime``) and ``srh_lifetime`` (all defects
-    together; infinite without defects).
+    together; None without defects).
     """
 
     effective_lifetime: object
@@ -106,6 +106,11 @@ class ImpliedVoltage(Result):
     equilibrium_hole_density: object
     assumptions: str
     provenance: dict = dataclasses.field(compare=False)
+
+
+def _optional(values):
+    """The SRH lifetime as a quantity, or None when there is no defect."""
+    return None if values is None else quantity(values, "s")
 
 
 def _full(values, shape):
@@ -280,9 +285,11 @@ class RecombinationMethods:
             limit = "the gap"
         if np.any(outside):
             bound = float(np.min(gap)) * (0.5 if defect.reference == "intrinsic" else 1.0)
-            raise InputError(f"{defect.name!r} level", f"inside the band gap: between 0 and "
-                             f"{limit} ({bound:.4g} eV at {float(np.max(t)):g} K) from "
-                             f"the {defect.reference} reference", defect.level_text())
+            edge = {"conduction": "the conduction-band edge", "valence": "the valence-band "
+                    "edge", "intrinsic": "the intrinsic level (either way)"}[defect.reference]
+            raise InputError("defect", f"a level inside the band gap, between 0 and {limit} "
+                             f"({bound:.4g} eV at {float(np.max(t)):g} K) from {edge}, for "
+                             f"{defect.name!r}", defect.level_text())
         if defect.temperature_range is not None:
             low, high = defect.temperature_range
             t_low, t_high = float(np.min(t)), float(np.max(t))
@@ -315,7 +322,7 @@ class RecombinationMethods:
                              f"entry has only the ratio sigma_n/sigma_p = "
                              f"{defect.cross_section_ratio:g} (no absolute cross-section):"
                              " tau_n0 = 1/(sigma_n v_n N_t) in s", "nothing (a density)")
-        n_t, _, _ = coerce(density, "density", "cm^-3", "non-negative")
+        n_t, _, _ = coerce(density, "density", "cm^-3", "positive")
         tau_n0 = srh.capture_time(defect.electron_cross_section(t), v_n, n_t)
         tau_p0 = srh.capture_time(defect.hole_cross_section(t), v_p, n_t)
         return tau_n0, tau_p0, record
@@ -323,7 +330,7 @@ class RecombinationMethods:
     def _srh(self, state: _State, items, excess=None):
         """SRH lifetime of several (defect, density, electron_capture_time) items."""
         if not items:
-            return np.full(state.shape, np.inf), []
+            return None, []
         model = self.model("srh_lifetime")
         nc, nv = self.model("densities_of_states")(temperature=state.temperature)
         product = state.n0 * state.p0
@@ -365,18 +372,18 @@ class RecombinationMethods:
                                                      f"defects[{number}]"), pair[1], None))
         return items
 
-    def srh_lifetime(self, temperature, Na=0, Nd=0, excess=0, *, defect, density=None,
+    def srh_lifetime(self, defect, temperature, Na=0, Nd=0, excess=0, *, density=None,
                      electron_capture_time=None, n0=None, p0=None, donor="phosphorus",
                      acceptor="boron", statistics=None):
         """Shockley-Read-Hall lifetime through one defect level, s.
 
         Parameters
         ----------
-        temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics : as for
-            :meth:`intrinsic_lifetime`
         defect : a catalogue name or alias (``si.defects()``: ``"iron-interstitial"``,
             ``"Fe_i"``, ...), or an inline mapping (see :mod:`matprops.defects`)
-        density : defect density N_t, cm^-3
+        temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics : as for
+            :meth:`intrinsic_lifetime`
+        density : defect density N_t, cm^-3 (> 0)
         electron_capture_time : tau_n0 = 1/(sigma_n v_n N_t), s, instead of
             ``density`` (needed for entries that give only sigma_n/sigma_p)
 
@@ -385,6 +392,10 @@ class RecombinationMethods:
         pint quantity in s. Capture cross-sections are used with the thermal velocity
         their source extracted them with where the entry names it, else the release's
         (``si.provenance("srh_lifetime")``).
+
+        Examples
+        --------
+        >>> si.srh_lifetime("Fe_i", 300, Na=1e16, excess=1e14, density=1e11)  # doctest: +SKIP
         """
         items = self._defect_items(defect, density, electron_capture_time, None)
         state = self._recombination_state(temperature, Na, Nd, excess, n0, p0, donor,
@@ -425,7 +436,7 @@ class RecombinationMethods:
             intrinsic_lifetime=quantity(parts["intrinsic"], "s"),
             auger_lifetime=quantity(parts["auger"], "s"),
             radiative_lifetime=quantity(parts["radiative"], "s"),
-            srh_lifetime=quantity(parts["srh"], "s"),
+            srh_lifetime=_optional(parts["srh"]),
             excess_density=quantity(_full(state.excess, state.shape), "cm^-3"),
             equilibrium_electron_density=quantity(_full(state.n0, state.shape), "cm^-3"),
             equilibrium_hole_density=quantity(_full(state.p0, state.shape), "cm^-3"),
@@ -436,7 +447,8 @@ class RecombinationMethods:
         radiative = _full(self._intrinsic(state, "radiative", excess), state.shape)
         intrinsic = 1.0 / (1.0 / auger + 1.0 / radiative)
         srh_value, records = self._srh(state, items, excess)
-        effective = 1.0 / (1.0 / intrinsic + 1.0 / srh_value)
+        effective = intrinsic if srh_value is None else 1.0 / (1.0 / intrinsic
+                                                               + 1.0 / srh_value)
         return {"effective": effective, "intrinsic": intrinsic, "auger": auger,
                 "radiative": radiative, "srh": srh_value, "records": records}
 
@@ -448,7 +460,7 @@ class RecombinationMethods:
         return provenance
 
     # ------------------------------------------------------------------ implied voltage
-    def implied_voltage(self, temperature, Na=0, Nd=0, *, generation, thickness,
+    def implied_voltage(self, temperature, generation, thickness, Na=0, Nd=0, *,
                         defect=None, density=None, electron_capture_time=None, defects=None,
                         n0=None, p0=None, donor="phosphorus", acceptor="boron",
                         statistics=None) -> ImpliedVoltage:
@@ -456,11 +468,11 @@ class RecombinationMethods:
 
         Parameters
         ----------
-        temperature, Na, Nd, n0, p0, donor, acceptor, statistics : as for
-            :meth:`intrinsic_lifetime`
+        temperature : K (or a pint quantity)
         generation : photons absorbed per area and time, cm^-2 s^-1 (> 0), or the
             photogenerated current density as a pint quantity (e.g. ``Q_(40, "mA/cm^2")``)
         thickness : sample thickness, cm (or a pint length)
+        Na, Nd, n0, p0, donor, acceptor, statistics : as for :meth:`intrinsic_lifetime`
         defect, density, electron_capture_time, defects : as for :meth:`effective_lifetime`
 
         Returns
@@ -470,6 +482,10 @@ class RecombinationMethods:
         (also in the result): steady state; generation uniform through the thickness;
         flat carrier profile and no surface recombination; dn = dp; Boltzmann
         statistics for the quasi-Fermi-level splitting.
+
+        Examples
+        --------
+        >>> si.implied_voltage(300, Q_(40, "mA/cm^2"), Q_(180, "um"), Na=1e15)  # doctest: +SKIP
         """
         items = self._defect_items(defect, density, electron_capture_time, defects)
         g_area = self._generation(generation)
@@ -503,7 +519,7 @@ class RecombinationMethods:
             generation_rate=quantity(_full(rate, shape), "cm^-3/s"),
             effective_lifetime=quantity(parts["effective"], "s"),
             intrinsic_lifetime=quantity(parts["intrinsic"], "s"),
-            srh_lifetime=quantity(parts["srh"], "s"),
+            srh_lifetime=_optional(parts["srh"]),
             equilibrium_electron_density=quantity(_full(state.n0, shape), "cm^-3"),
             equilibrium_hole_density=quantity(_full(state.p0, shape), "cm^-3"),
             assumptions=ASSUMPTIONS, provenance=provenance)
