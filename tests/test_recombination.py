@@ -330,10 +330,11 @@ _DOPING = st.floats(13, 19).map(lambda x: 10.0 ** x)
 
 
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(low=_DOPING, factor=st.floats(1.5, 100), kind=st.sampled_from(["Nd", "Na"]),
-       excess=st.sampled_from([0.0, 1e12, 1e14]))
+@given(low=st.floats(13, 18).map(lambda x: 10.0 ** x), factor=st.floats(1.5, 100),
+       kind=st.sampled_from(["Nd", "Na"]), excess=st.sampled_from([0.0, 1e12, 1e14]))
 def test_intrinsic_lifetime_falls_with_doping(si, low, factor, kind, excess):
-    # common practice: more carriers, faster Auger and radiative recombination
+    # common practice: more carriers, faster Auger and radiative recombination (doping up
+    # to 1e20 cm^-3, the limit of the lifetime models)
     tau = quiet(si.intrinsic_lifetime, 300, excess=excess,
                 **{kind: [low, low * factor]}).m_as("s")
     assert tau[1] < tau[0]

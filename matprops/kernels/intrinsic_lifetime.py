@@ -33,23 +33,38 @@ _INPUTS = {"temperature": "K", "equilibrium_electron_density": "cm^-3",
            "equilibrium_hole_density": "cm^-3", "excess_density": "cm^-3"}
 
 
-def _lifetime(n0, p0, dn, auger, radiative, part):
+def _lifetime(shape, n0, p0, dn, auger, radiative, part):
+    """1 / [(n0 + p0 + dn) x coefficient] of the part asked for, with the shape of all
+    inputs together (``auger`` may be a fresh array: it is reused in place)."""
     if part == "total":
-        coefficient = auger + radiative
+        coefficient = np.add(auger, radiative, out=auger if _owned(auger, shape) else None)
     elif part == "auger":
         coefficient = auger
     elif part == "radiative":
         coefficient = radiative
     else:
         raise ValueError(f"part must be one of {', '.join(PARTS)}, got {part!r}")
+    total = n0 + p0
+    total = np.add(total, dn, out=total if _owned(total, shape) else None)
     with np.errstate(divide="ignore"):
-        return 1.0 / ((n0 + p0 + dn) * coefficient)
+        result = np.multiply(total, coefficient, out=total if _owned(total, shape) else None)
+        result = np.divide(1.0, result, out=result if _owned(result, shape) else None)
+    return np.broadcast_to(result, shape) if np.shape(result) != shape else result
+
+
+def _owned(array, shape) -> bool:
+    """Whether ``array`` is a float array of the full shape that may be overwritten."""
+    return isinstance(array, np.ndarray) and array.shape == shape and array.dtype == float
+
+
+def _arrays(*values):
+    return tuple(np.asarray(v, dtype=float) for v in values)
 
 
 def _power(density, exponent):
-    """density^exponent for densities in cm^-3 (0 -> 0 for a positive exponent)."""
-    with np.errstate(divide="ignore"):
-        return np.exp(exponent * np.log(density))
+    """density^exponent for densities in cm^-3 (np.power: on this machine kind about
+    twice as fast as exp(exponent log x))."""
+    return np.power(density, exponent)
 
 
 @kernel(inputs=_INPUTS, output="s",
@@ -85,16 +100,14 @@ def richter(temperature, equilibrium_electron_density, equilibrium_hole_density,
     -------
     lifetime, s
     """
-    t = np.asarray(temperature, dtype=float)
-    n0 = np.asarray(equilibrium_electron_density, dtype=float)
-    p0 = np.asarray(equilibrium_hole_density, dtype=float)
-    dn = np.asarray(excess_density, dtype=float)
+    t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
+                            equilibrium_hole_density, excess_density)
+    shape = np.broadcast_shapes(t.shape, n0.shape, p0.shape, dn.shape)
     g_eeh = 1.0 + eeh_enhancement * (1.0 - np.tanh(_power(n0 / eeh_density, eeh_exponent)))
     g_ehh = 1.0 + ehh_enhancement * (1.0 - np.tanh(_power(p0 / ehh_density, ehh_exponent)))
     auger = (electron_coefficient * g_eeh * n0 + hole_coefficient * g_ehh * p0
              + injection_coefficient * _power(dn, injection_exponent))
-    radiative = np.full(np.shape(t), float(radiative_coefficient))
-    return _lifetime(n0, p0, dn, auger, radiative, part)
+    return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part)
 
 
 @kernel(inputs=_INPUTS, output="s",
@@ -124,15 +137,13 @@ def kerr_cuevas(temperature, equilibrium_electron_density, equilibrium_hole_dens
     -------
     lifetime, s
     """
-    t = np.asarray(temperature, dtype=float)
-    n0 = np.asarray(equilibrium_electron_density, dtype=float)
-    p0 = np.asarray(equilibrium_hole_density, dtype=float)
-    dn = np.asarray(excess_density, dtype=float)
-    auger = (electron_coefficient * _power(n0, electron_exponent)
-             + hole_coefficient * _power(p0, hole_exponent)
-             + injection_coefficient * _power(dn, injection_exponent))
-    radiative = np.full(np.shape(t), float(radiative_coefficient))
-    return _lifetime(n0, p0, dn, auger, radiative, part)
+    t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
+                            equilibrium_hole_density, excess_density)
+    shape = np.broadcast_shapes(t.shape, n0.shape, p0.shape, dn.shape)
+    auger = electron_coefficient * _power(n0, electron_exponent)
+    auger = auger + hole_coefficient * _power(p0, hole_exponent)
+    auger = auger + injection_coefficient * _power(dn, injection_exponent)
+    return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part)
 
 
 @kernel(inputs=_INPUTS, output="s",
@@ -160,10 +171,9 @@ def constant_coefficients(temperature, equilibrium_electron_density,
     -------
     lifetime, s
     """
-    t = np.asarray(temperature, dtype=float)
-    n0 = np.asarray(equilibrium_electron_density, dtype=float)
-    p0 = np.asarray(equilibrium_hole_density, dtype=float)
-    dn = np.asarray(excess_density, dtype=float)
+    t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
+                            equilibrium_hole_density, excess_density)
+    shape = np.broadcast_shapes(t.shape, n0.shape, p0.shape, dn.shape)
     auger = electron_coefficient * (n0 + dn) + hole_coefficient * (p0 + dn)
     radiative = np.asarray(radiative_coefficient(temperature=t), dtype=float)
-    return _lifetime(n0, p0, dn, auger, radiative, part)
+    return _lifetime(shape, n0, p0, dn, auger, radiative, part)

@@ -108,6 +108,12 @@ class ImpliedVoltage(Result):
     provenance: dict = dataclasses.field(compare=False)
 
 
+def _range(values):
+    """(min, max) of an array; (inf, -inf) for an empty one (no check applies)."""
+    array = np.asarray(values)
+    return (float(array.min()), float(array.max())) if array.size else (np.inf, -np.inf)
+
+
 def _optional(values):
     """The SRH lifetime as a quantity, or None when there is no defect."""
     return None if values is None else quantity(values, "s")
@@ -129,6 +135,7 @@ class _State:
     excess: np.ndarray
     shape: tuple
     given: bool  # n0, p0 given by the caller instead of solved
+    ranges: dict  # kernel input -> (min, max), for the validity checks
 
     def kernel_inputs(self, excess=None):
         return {"temperature": self.temperature, "equilibrium_electron_density": self.n0,
@@ -164,27 +171,31 @@ class RecombinationMethods:
             if prepared["acceptor_density"][2] > 0 or prepared["donor_density"][2] > 0:
                 raise InputError("Na, Nd", "omitted (zero) when the equilibrium densities "
                                  "n0 and p0 are given", "dopant densities as well")
-            n0_array, _, _ = coerce(n0, "n0")
-            p0_array, _, _ = coerce(p0, "p0")
+            n0_array, *n0_range = coerce(n0, "n0")
+            p0_array, *p0_range = coerce(p0, "p0")
             given = True
         else:
             result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics)
             n0_array, p0_array = result["electron_density"], result["hole_density"]
+            n0_range, p0_range = _range(n0_array), _range(p0_array)
             given = False
         try:
             shape = np.broadcast_shapes(t.shape, n0_array.shape, p0_array.shape, dn.shape)
         except ValueError:
             raise InputError("n0, p0", "arrays whose shapes broadcast with T and excess",
                              f"shapes {n0_array.shape}, {p0_array.shape}") from None
-        return _State(t, n0_array, p0_array, dn, shape, given)
+        ranges = {"temperature": prepared["temperature"][1:],
+                  "equilibrium_electron_density": tuple(n0_range),
+                  "equilibrium_hole_density": tuple(p0_range),
+                  "excess_density": prepared["excess_density"][1:]}
+        return _State(t, n0_array, p0_array, dn, shape, given, ranges)
 
     def _check_intrinsic(self, state: _State):
         """Validity of the intrinsic-lifetime model at these inputs; fit conventions."""
         model = self.model("intrinsic_lifetime")
-        for argument, values in state.kernel_inputs().items():
-            if values.size:
-                model.check(argument, float(values.min()), float(values.max()),
-                            self.strict)
+        for argument, (low, high) in state.ranges.items():
+            if low <= high:  # (an empty array has no range)
+                model.check(argument, low, high, self.strict)
         if model.regions:
             model.check_regions(state.kernel_inputs(), self.strict)
         fitted = model.extra["fit"]["gap_narrowing"]
@@ -263,10 +274,11 @@ class RecombinationMethods:
         else:
             model = self.model("thermal_velocity")
         velocities = []
-        low, high = float(np.min(t)), float(np.max(t))
+        low, high = _range(t)
         for carrier in ("electron", "hole"):
             bound = model.select(carrier) if model.variant_axis == "carrier" else model
-            bound.check("temperature", low, high, self.strict)
+            if low <= high:
+                bound.check("temperature", low, high, self.strict)
             arguments = {"temperature": t}
             if "carrier" in bound.inputs:
                 arguments["carrier"] = carrier
@@ -275,6 +287,8 @@ class RecombinationMethods:
 
     def _check_level(self, defect, t):
         """The level must lie inside the (unnarrowed) gap at every temperature."""
+        if np.size(t) == 0:
+            return
         gap = np.asarray(self.model("band_gap")(temperature=t), dtype=float)
         energy = defect.energy
         if defect.reference == "intrinsic":
@@ -496,7 +510,6 @@ class RecombinationMethods:
         shape = np.broadcast_shapes(state.shape, rate.shape)
         state.shape = shape
         state.excess = np.zeros(shape)
-        self._check_intrinsic(state)
         rate = np.broadcast_to(rate, shape).astype(float)
 
         def recombination(dn):
@@ -507,6 +520,7 @@ class RecombinationMethods:
         guess = np.clip(rate * low_injection, 1.0, 1e22)
         dn = voltage_kernel.steady_state_excess(recombination, rate, guess)
         state.excess = dn
+        state.ranges["excess_density"] = _range(dn)
         self._check_intrinsic(state)  # the excess densities reached
         parts = self._lifetime_parts(state, items)
         volts = voltage_kernel.implied_voltage(state.temperature, state.n0, state.p0, dn)
