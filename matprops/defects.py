@@ -36,8 +36,7 @@ from pathlib import Path
 
 import numpy as np
 
-from .catalog import (Catalog, Source, _convert, _parse_toml, _require, _source,
-                      default_catalog)
+from .catalog import Catalog, Source, _convert, _parse_toml, _require, _source, default_catalog
 from .errors import DatasetError, InputError, UnknownDefectError
 from .kernels import srh_lifetime as srh
 from .schema import DEFECT, validate

@@ -291,8 +291,8 @@ QUANTITIES: dict[str, Tabulated] = _registry(
     Tabulated("implied_voltage",
               {"temperature": 0, "generation": 1, "thickness": 2, "acceptor_density": "Na",
                "donor_density": "Nd", "defect": "defect", "defect_density": "density"},
-              (("implied_voltage", "implied open-circuit voltage (steady state, uniform "
-                                   "generation, flat carrier profile)"),
+              (("implied_voltage", ("implied open-circuit voltage (steady state, uniform "
+                                    "generation, flat carrier profile)")),
                ("steady_state_excess_density", "excess carrier density in steady state")),
               fields=("implied_voltage", "excess_density")),
 )

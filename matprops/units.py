@@ -57,7 +57,7 @@ ARGUMENTS = {
     "equilibrium_hole_density": ("cm^-3", "positive"),
     "defect_density": ("cm^-3", "non-negative"),
     "generation": ("cm^-2/s", "positive"),
-    "capture_time": ("s", "positive"),
+    "electron_capture_time": ("s", "positive"),
     # the public API's short names for densities (DESIGN.md): same units and rules
     "Na": ("cm^-3", "non-negative"),
     "Nd": ("cm^-3", "non-negative"),

@@ -419,9 +419,9 @@ def test_negative_excess_density_is_refused(si):
 
 @pytest.mark.parametrize("defect, pattern", [
     ({"level": 1.3, "reference": "valence", "electron_cross_section": 1e-15,
-      "hole_cross_section": 1e-15}, r"'defect' must be a level inside the band gap, between 0 "
-     r"and the gap \(1.12\d+ eV at 300 K\) from the valence-band edge, for 'inline defect'; "
-     r"received E_v \+ 1.3 eV"),
+      "hole_cross_section": 1e-15},
+     (r"'defect' must be a level inside the band gap, between 0 and the gap \(1.12\d+ eV at "
+      r"300 K\) from the valence-band edge, for 'inline defect'; received E_v \+ 1.3 eV")),
     ({"level": -0.1, "reference": "conduction", "electron_cross_section": 1e-15,
       "hole_cross_section": 1e-15}, r"> 0 eV into the gap from the conduction band edge"),
     ({"level": 0.7, "reference": "intrinsic", "electron_cross_section": 1e-15,
@@ -479,8 +479,9 @@ def test_equilibrium_densities_given_incompletely_or_twice(si):
 @pytest.mark.parametrize("kwargs, pattern", [
     ({"generation": -1e17, "thickness": 0.018}, r"'generation' must be > 0"),
     ({"generation": 1e17, "thickness": 0}, r"'thickness' must be > 0 cm"),
-    ({"generation": Q_(1, "V"), "thickness": 0.018}, r"'generation' expects a quantity in "
-     r"cm\^-2/s \(photons absorbed per area and time\) or A/cm\^2"),
+    ({"generation": Q_(1, "V"), "thickness": 0.018},
+     (r"'generation' expects a quantity in cm\^-2/s \(photons absorbed per area and time\) "
+      r"or A/cm\^2")),
     ({"generation": Q_(-40, "mA/cm^2"), "thickness": 0.018}, r"'generation' must be > 0"),
 ])
 def test_bad_generation_or_thickness(si, kwargs, pattern):

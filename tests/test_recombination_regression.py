@@ -159,8 +159,12 @@ def _radiative_shares():
 def _kerr_over_richter():
     richter, kc = matprops.silicon(), matprops.silicon(models={"intrinsic_lifetime":
                                                                "kerr-2002"})
-    return [f"{(kc.intrinsic_lifetime(300, excess=1e15, **{k: 1e15}) / richter.intrinsic_lifetime(300, excess=1e15, **{k: 1e15})).m_as(''):.2f}"  # noqa: E501
-            for k in ("Nd", "Na")]
+    ratios = []
+    for kind in ("Nd", "Na"):
+        ratio = (kc.intrinsic_lifetime(300, excess=1e15, **{kind: 1e15})
+                 / richter.intrinsic_lifetime(300, excess=1e15, **{kind: 1e15})).m_as("")
+        ratios.append(f"{ratio:.2f}")
+    return ratios
 
 
 def _paudyal(name):
@@ -171,11 +175,12 @@ def _paudyal(name):
 
 QUOTED = [
     (MODELS / "intrinsic_lifetime/richter-2012.toml",
-     "C_a = 3.0e-29 dn^-0.08: {}e-30 at 1e15, {}e-30 at 5e15, {}e-30 at 1e16, {}e-30 cm^6/s "
-     "at 5e16 cm^-3", _richter_ambipolar),
+     ("C_a = 3.0e-29 dn^-0.08: {}e-30 at 1e15, {}e-30 at 5e15, {}e-30 at 1e16, {}e-30 "
+      "cm^6/s at 5e16 cm^-3"), _richter_ambipolar),
     (MODELS / "intrinsic_lifetime/richter-2012.toml",
-     "Radiative recombination makes up {} % (n-type) and {} % (p-type) of the low-injection "
-     "intrinsic rate at 1e15 cm^-3, and {} % and {} % at 1e16 cm^-3", _radiative_shares),
+     ("Radiative recombination makes up {} % (n-type) and {} % (p-type) of the "
+      "low-injection intrinsic rate at 1e15 cm^-3, and {} % and {} % at 1e16 cm^-3"),
+     _radiative_shares),
     (MODELS / "intrinsic_lifetime/kerr-2002.toml",
      "of 1e15 cm^-3 it gives {} (n-type) and {} (p-type) of richter-2012's lifetime",
      _kerr_over_richter),

@@ -65,7 +65,8 @@ def test_every_quantity_of_the_release_can_be_tabulated(si):
                "excess_density": [0.0, 1e15], "electron_density": [1e16],
                "hole_density": [1e16], "carrier": ["electron", "hole"],
                "plane": ["100", "110", "111"], "defect": ["iron-interstitial"],
-               "defect_density": [1e11], "generation": [1e17], "thickness": [0.018]}
+               "defect_density": [1e11], "generation": [1e17], "thickness": [0.018],
+               "dopant": ["boron"], "dopant_density": [1e16]}
     served = available(si)
     # every quantity with a model in the release, and every derived one, is in the registry
     from matprops.material import DERIVED

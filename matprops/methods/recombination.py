@@ -57,13 +57,13 @@ DERIVED = {
         "the Auger part of the intrinsic-lifetime model alone: 1/[(n0 + p0 + dn) A]"),
     "effective_lifetime": (
         ("intrinsic_lifetime", *_SRH, *_EQUILIBRIUM),
-        "1/tau_eff = 1/tau_intrinsic + sum over defects of 1/tau_SRH, at the same excess "
-        "density; no surface recombination"),
+        ("1/tau_eff = 1/tau_intrinsic + sum over defects of 1/tau_SRH, at the same excess "
+         "density; no surface recombination")),
     "implied_voltage": (
         ("intrinsic_lifetime", *_SRH, *_EQUILIBRIUM),
-        "steady state G = dn/tau_eff(dn) with G the generation per area over the "
-        "thickness (uniform generation, flat carrier profile), then "
-        "V = (kT/q) ln[(n0 + dn)(p0 + dn)/(n0 p0)]"),
+        ("steady state G = dn/tau_eff(dn) with G the generation per area over the "
+         "thickness (uniform generation, flat carrier profile), then "
+         "V = (kT/q) ln[(n0 + dn)(p0 + dn)/(n0 p0)]")),
 }
 
 ASSUMPTIONS = ("steady state; generation uniform through the thickness; flat carrier "
