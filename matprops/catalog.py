@@ -302,6 +302,28 @@ class Model:
     def output_units(self):
         return self.kernel.spec.output
 
+    @property
+    def array_api(self) -> bool:
+        """Whether the kernel (and every model it is composed from) accepts arrays of
+        any array-API namespace, not only numpy's."""
+        return self.kernel.spec.array_api and all(c.array_api
+                                                  for c in self.components.values())
+
+    @property
+    def derivative(self):
+        """The kernel's analytic derivatives bound to this model's coefficients:
+        ``(**inputs) -> (value, {input: partial})``; None for a model without them."""
+        function = getattr(self.kernel, "derivatives", None)
+        if function is None or self.kind == "table" or (self.variants and
+                                                         self.variant is None):
+            return None
+        if self.requires and not self.components:
+            return None
+        if any(c.derivative is None for c in self.components.values()):
+            return None
+        own = {c.name: c.kernel_value for c in self.coefficients.values()}
+        return functools.partial(function, **own, **dict(self.components))
+
     def __call__(self, *args, **kwargs):
         if self.function is None and self.variants:
             raise UnknownVariantError("(none)", self.variants,

@@ -14,7 +14,6 @@ licensed practice.
 
 from __future__ import annotations
 
-import functools
 from collections.abc import Iterable, Mapping
 
 import numpy as np
@@ -124,44 +123,35 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
         return self._models[name]
 
     def kernel(self, name: str, **fixed):
-        """A plain-array callable for a quantity: no units, no checks, no overhead.
+        """A plain-array callable for a quantity: the door for simulation codes.
 
-        Inputs and outputs are in the internal units listed by
-        ``si.model(name).inputs`` and ``.output_units`` (K, cm^-3, eV, ...).
-        ``fixed`` chooses what a quantity needs fixed: ``carrier=`` (and ``donor=`` /
-        ``acceptor=`` where the model has one coefficient set per dopant) for the
-        transport quantities; ``dopant=`` for ionisation;
-        ``donor=``, ``acceptor=`` and ``statistics=`` for ``equilibrium`` (a callable
-        ``(temperature, donor_density, acceptor_density) -> dict of arrays``).
+        Returns a :class:`~matprops.bound.BoundKernel`: inputs and outputs in the
+        internal units its docstring and repr list (K, cm^-3, eV, ...), no unit
+        handling and no validity check per call (``kernel.check(...)`` validates a
+        mesh once), large arrays evaluated in blocks into one output,
+        ``kernel.provenance`` and, for the smooth closed-form models,
+        ``kernel.derivatives(...)``. ``fixed`` chooses what a quantity needs fixed:
+        ``carrier=`` (and ``donor=`` / ``acceptor=`` where the model has one
+        coefficient set per dopant) for the transport quantities; ``dopant=`` for
+        ionisation; ``donor=``, ``acceptor=`` and ``statistics=`` for ``equilibrium``
+        (a callable ``(temperature, donor_density, acceptor_density) -> dict of
+        arrays``).
         """
-        if name == "equilibrium":
-            unknown = set(fixed) - {"donor", "acceptor", "statistics"}
-            if unknown:
-                raise InputError(sorted(unknown)[0], "one of donor, acceptor, statistics",
-                                 fixed[sorted(unknown)[0]])
-            bound = self._carriers()
-            statistics = fixed.get("statistics") or bound.statistics
-            return functools.partial(
-                bound.equilibrium,
-                donor=dopant_species(fixed.get("donor", "phosphorus"), "donor", "donor"),
-                acceptor=dopant_species(fixed.get("acceptor", "boron"), "acceptor",
-                                        "acceptor"),
-                fermi_dirac=self._check_statistics(statistics, bound))
-        if name == "effective_intrinsic_density":
-            return self._carriers().effective_intrinsic_density
-        if name in TRANSPORT_KERNELS:
-            return self._transport_kernel(name, fixed)
-        model = self.model(name)
-        if model.variant_axis == "dopant":
-            species = fixed.pop("dopant", None)
-            if species is None:
-                raise InputError("dopant", f"given for {name} (one of "
-                                 f"{', '.join(model.variants)})", None)
-            model = model.select(dopant_species(species, "dopant"))
-        if fixed:
-            key = sorted(fixed)[0]
-            raise InputError(key, f"not an option of the {name} kernel", fixed[key])
-        return model
+        from .bound import make_kernel
+
+        name = check_name(name)
+        try:
+            key = (name, tuple(sorted(fixed.items())))
+            hash(key)
+        except TypeError:
+            key = None
+        cache = self.__dict__.setdefault("_kernel_cache", {})
+        if key is not None and key in cache:
+            return cache[key]
+        made = make_kernel(self, name, fixed)
+        if key is not None:
+            cache[key] = made
+        return made
 
     def _evaluate(self, name: str, **arguments):
         """Coerce ``arguments`` (named as the kernel's inputs), check, call the model."""

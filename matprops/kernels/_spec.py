@@ -14,28 +14,29 @@ from __future__ import annotations
 from collections.abc import Callable, Mapping
 from types import MappingProxyType
 
-__all__ = ["KernelSpec", "kernel"]
+__all__ = ["KernelSpec", "derivatives_of", "kernel"]
 
 
 class KernelSpec:
     """Units of a kernel's inputs, coefficients and output (read-only)."""
 
-    __slots__ = ("coefficients", "inputs", "output", "requires")
+    __slots__ = ("array_api", "coefficients", "inputs", "output", "requires")
 
-    def __init__(self, inputs, coefficients, output, requires):
+    def __init__(self, inputs, coefficients, output, requires, array_api=False):
         self.inputs: Mapping[str, str] = MappingProxyType(dict(inputs))
         self.coefficients: Mapping[str, str] = MappingProxyType(dict(coefficients))
         self.output = output
         self.requires: tuple[str, ...] = tuple(requires)
+        self.array_api = bool(array_api)
 
     def __repr__(self) -> str:
         return (f"KernelSpec(inputs={dict(self.inputs)}, "
                 f"coefficients={dict(self.coefficients)}, output={self.output!r}, "
-                f"requires={self.requires})")
+                f"requires={self.requires}, array_api={self.array_api})")
 
 
 def kernel(*, inputs: Mapping[str, str], output, coefficients: Mapping[str, str] = (),
-           requires: tuple[str, ...] = ()) -> Callable:
+           requires: tuple[str, ...] = (), array_api: bool = False) -> Callable:
     """Declare a function's units for the catalogue.
 
     Parameters
@@ -47,10 +48,29 @@ def kernel(*, inputs: Mapping[str, str], output, coefficients: Mapping[str, str]
     requires : names of quantities whose bound kernels are passed as keyword
         arguments (composed models, e.g. an intrinsic density from a gap and
         densities of states)
+    array_api : the kernel computes with the namespace of its inputs
+        (:func:`matprops.kernels._xp.namespace`), so any array-API-standard array
+        works, not only numpy's
     """
 
     def attach(func: Callable) -> Callable:
-        func.spec = KernelSpec(inputs, dict(coefficients), output, requires)
+        func.spec = KernelSpec(inputs, dict(coefficients), output, requires, array_api)
         return func
+
+    return attach
+
+
+def derivatives_of(function: Callable) -> Callable:
+    """Declare a function as the analytic derivatives of kernel ``function``.
+
+    The derivative function takes the kernel's inputs and coefficients and returns
+    ``(value, {input name: partial derivative})`` with the kernel's output structure
+    (a tuple of arrays for a kernel returning a tuple). It becomes
+    ``function.derivatives``; the catalogue binds it with the same coefficients.
+    """
+
+    def attach(derivative: Callable) -> Callable:
+        function.derivatives = derivative
+        return derivative
 
     return attach

@@ -165,8 +165,9 @@ class _Bound:
         return result
 
     def effective_intrinsic_density(self, temperature, donor_density, acceptor_density,
-                                    n, p):
-        dec, dev = self.shifts(temperature, donor_density, acceptor_density, n, p)
+                                    electron_density=None, hole_density=None):
+        dec, dev = self.shifts(temperature, donor_density, acceptor_density,
+                               electron_density, hole_density)
         kt = BOLTZMANN_EV * np.asarray(temperature, dtype=float)
         return (self.ni(temperature=temperature) * self.reference_ratio()
                 * np.exp((dec + dev) / (2.0 * kt)))

@@ -1,0 +1,543 @@
+"""Bound kernels: the door for simulation codes.
+
+``si.kernel(quantity, **fixed)`` hands out a :class:`BoundKernel`: the release's
+model for that quantity bound to its coefficients, called on plain floats or
+arrays in fixed internal units, with no unit handling and no validity check per
+call. It describes itself (its docstring and repr state the inputs with their
+units, the output units, the model id and the citation; ``.provenance`` holds
+the full record), validates a whole mesh once with :meth:`BoundKernel.check`,
+evaluates large inputs in blocks into one preallocated output, and, for the
+smooth closed-form models, returns partial derivatives with
+:meth:`BoundKernel.derivatives`.
+
+Policies (stated in every kernel's docstring):
+
+- **Units.** Internal units throughout (K, cm, cm^-3, eV, s, V, nm for
+  wavelengths). Where the public method returns other units, the kernel says so
+  loudly (``lattice_constant``: the kernel gives cm, ``si.lattice_constant`` nm).
+- **dtype.** Every kernel computes in float64 and returns float64 whatever the
+  input dtype: doping quantities square densities up to 1e21 cm^-3 (1e42 is beyond
+  float32's 3e38), Auger coefficients of 1e-30 cm^6/s lie below its smallest
+  normal number (1e-38), and the equilibrium solver needs 1e-12 relative
+  neutrality (float32 carries 6e-8). To store a result in float32, pass
+  ``out=`` a float32 array: each block is computed in float64 and cast on writing.
+- **Memory.** Inputs of more than :data:`~matprops.kernels._blocks.BLOCK` points
+  (numpy arrays) are evaluated in blocks of that size into one output: extra memory
+  is the result plus a few block-sized temporaries, cost linear in the size.
+- **Array API.** Closed-form kernels accept any array-API-standard array (CuPy,
+  JAX, PyTorch through array-api-compat, ``array_api_strict``) and compute in its
+  namespace, unblocked. Table interpolation and the equilibrium solver take numpy
+  arrays only and raise :class:`TypeError` saying so.
+"""
+
+from __future__ import annotations
+
+import functools
+import inspect
+import warnings
+from collections.abc import Callable, Mapping
+
+import numpy as np
+
+from .errors import InputError, ValidityWarning
+from .kernels._blocks import BLOCK, evaluate
+
+__all__ = ["BoundKernel"]
+
+_DTYPE_NOTE = ("computes in float64 and returns float64 whatever the input dtype "
+               "(densities squared overflow float32, Auger coefficients underflow it); "
+               "pass out=<float32 array> to store the result in float32")
+
+
+def _foreign(value) -> bool:
+    """Whether ``value`` is an array of another array library (not numpy)."""
+    return (hasattr(value, "__array_namespace__")
+            and not isinstance(value, (np.ndarray, np.generic)))
+
+
+class BoundKernel:
+    """A quantity's model bound to its coefficients: plain arrays in internal units.
+
+    Call it with the inputs named in :attr:`inputs` (positionally in that order, or by
+    name); it returns the output in :attr:`output_units`. See the module notes for
+    the units, dtype, memory and array-API policies, and ``help(kernel)`` or
+    ``print(kernel.__doc__)`` for this kernel's own.
+
+    Attributes
+    ----------
+    quantity : str
+    model : the bound :class:`~matprops.catalog.Model` (None for a composition)
+    model_id : str
+    inputs : mapping input name -> internal unit string
+    output_units : unit string, or tuple of them for a kernel returning a tuple
+    api_units : what the public method returns (differs from ``output_units`` only
+        where the docstring says so)
+    array_api : whether the kernel accepts arrays of any array-API namespace
+    """
+
+    def __init__(self, si, quantity: str, function: Callable, inputs: Mapping[str, str],
+                 output_units, *, model=None, model_id: str, citation: str,
+                 validity: Mapping[str, tuple] | None = None, regions=(),
+                 checker: Callable | None = None, derivative: Callable | None = None,
+                 array_api: bool = True, blocked: bool = True, api_units=None,
+                 api_method: str | None = None, numpy_only_reason: str = "",
+                 options: Mapping[str, object] | None = None, optional=(), fixed=None,
+                 description: str = "", returns: str = ""):
+        self._si = si
+        self.quantity = quantity
+        self.model = model
+        self.model_id = model_id
+        self.citation = citation
+        self._function = function
+        self.inputs = dict(inputs)
+        self._names = tuple(self.inputs)
+        self._optional = frozenset(optional)
+        self.output_units = output_units
+        self.api_units = output_units if api_units is None else api_units
+        self.api_method = api_method or quantity
+        self.array_api = array_api
+        self._blocked = blocked
+        self._numpy_only_reason = numpy_only_reason
+        self._validity = dict(validity or {})
+        self._regions = tuple(regions)
+        self._checker = checker
+        self._derivative = derivative
+        self._options = dict(options or {})
+        self._fixed = dict(fixed or {})
+        self._description = description
+        self._returns = returns
+        self.__doc__ = self._document()
+
+    # ------------------------------------------------------------------ calling
+    def _arguments(self, args, kwargs, what="kernel"):
+        """Positional and keyword inputs -> (inputs by name, options)."""
+        if len(args) > len(self._names):
+            raise TypeError(f"the {self.quantity} {what} takes at most {len(self._names)} "
+                            f"positional inputs ({', '.join(self._names)}); "
+                            f"received {len(args)}")
+        arguments = dict(zip(self._names, args))
+        options = {}
+        for name, value in kwargs.items():
+            if name in self.inputs:
+                if name in arguments:
+                    raise TypeError(f"input {name!r} of the {self.quantity} {what} given "
+                                    "twice (by position and by name)")
+                arguments[name] = value
+            elif name in self._options:
+                options[name] = value
+            else:
+                raise TypeError(f"the {self.quantity} {what} has no input or option "
+                                f"{name!r}; inputs: {', '.join(self._names) or 'none'}"
+                                + (f"; options: {', '.join(self._options)}"
+                                   if self._options else ""))
+        for name in self._names:
+            if name not in arguments or arguments[name] is None:
+                if name in self._optional:
+                    arguments.pop(name, None)
+                    continue
+                raise TypeError(f"the {self.quantity} {what} needs input {name!r} "
+                                f"[{self.inputs[name]}]")
+        return arguments, options
+
+    def __call__(self, *args, out=None, **kwargs):
+        arguments, options = self._arguments(args, kwargs)
+        if not self.array_api:
+            self._refuse_foreign(arguments)
+        if not self._blocked:
+            if out is not None:
+                raise TypeError(f"the {self.quantity} kernel returns several fields; "
+                                "out= is not supported")
+            return self._function(**arguments, **options)
+        return evaluate(self._function, arguments, out=out, **options)
+
+    def _refuse_foreign(self, arguments):
+        for name, value in arguments.items():
+            if _foreign(value):
+                raise TypeError(
+                    f"the {self.quantity} kernel ({self.model_id}) takes numpy arrays "
+                    f"only: {self._numpy_only_reason}; input {name!r} is a "
+                    f"{type(value).__module__}.{type(value).__name__}. Convert it with "
+                    "numpy.asarray (or the library's own to-numpy function) first")
+
+    def derivatives(self, *args, out=None, **kwargs):
+        """Value and partial derivatives with respect to every input.
+
+        Returns
+        -------
+        (value, partials) : the kernel's value and a dict input name -> partial
+            derivative of the value (same structure: a tuple of arrays for a kernel
+            that returns a tuple), in output units per input unit (eV/K, eV cm^3, ...).
+            Analytic, evaluated in the same blocks as the value.
+        """
+        if self._derivative is None:
+            raise TypeError(f"the {self.quantity} kernel ({self.model_id}) has no "
+                            "derivatives: they are provided for the smooth closed-form "
+                            "models (band gap, narrowing, intrinsic and effective "
+                            "intrinsic density, radiative coefficient, intrinsic "
+                            "lifetime, mobility)")
+        arguments, options = self._arguments(args, kwargs, "derivatives")
+        names = tuple(arguments)
+        function = self._derivative
+
+        def flat(**values):
+            value, partials = function(**values, **options)
+            parts = value if isinstance(value, tuple) else (value,)
+            for name in names:
+                d = partials[name]
+                parts += d if isinstance(d, tuple) else (d,)
+            return parts
+
+        if out is not None:
+            raise TypeError("derivatives() has no out= (it returns several arrays)")
+        parts = evaluate(flat, arguments)
+        width = len(self.output_units) if isinstance(self.output_units, tuple) else 1
+
+        def pick(k):
+            chunk = parts[k * width:(k + 1) * width]
+            return chunk if width > 1 else chunk[0]
+
+        return pick(0), {name: pick(k + 1) for k, name in enumerate(names)}
+
+    # ------------------------------------------------------------------ checking
+    def check(self, *args, strict: bool | None = None, **kwargs) -> list[str]:
+        """Validate a whole mesh once, before a simulation calls the kernel on it.
+
+        Each input (positionally or by name, as for a call) must hold finite numbers
+        in its internal units (positive temperatures and wavelengths, non-negative
+        densities): an :class:`~matprops.InputError` names the first that does not.
+        Then every validity range of the model (and of the models it is composed
+        from) and every validity region is checked on the extremes and points given.
+
+        Parameters
+        ----------
+        strict : bool, optional
+            Raise :class:`~matprops.ValidityError` at the first violation (default:
+            the material's own ``strict`` setting); otherwise each violation is a
+            :class:`~matprops.ValidityWarning`.
+
+        Returns
+        -------
+        list of str : the validity messages (empty when the whole mesh is inside).
+        """
+        from .units import ARGUMENTS, check_values
+
+        arguments, _ = self._arguments(args, kwargs, "check")
+        arrays, ranges = {}, {}
+        for name, value in arguments.items():
+            if _foreign(value):
+                value = _to_numpy(value)
+            array = np.asarray(value, dtype=float)
+            requirement = ARGUMENTS.get(name, (None, "non-negative"))[1]
+            ranges[name] = check_values(array, name, self.inputs[name], requirement)
+            arrays[name] = array
+        shapes = [a.shape for a in arrays.values()]
+        try:
+            np.broadcast_shapes(*shapes)
+        except ValueError:
+            raise InputError(", ".join(arrays), "arrays whose shapes broadcast together",
+                             ", ".join(f"{n} {a.shape}" for n, a in arrays.items())) from None
+        strict = self._si.strict if strict is None else bool(strict)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", ValidityWarning)
+            self._checker(arrays, ranges, strict)
+        messages = []
+        for item in caught:
+            if issubclass(item.category, ValidityWarning):
+                messages.append(str(item.message))
+            warnings.warn_explicit(item.message, item.category, item.filename, item.lineno)
+        return messages
+
+    # ------------------------------------------------------------------ description
+    @property
+    def provenance(self) -> dict:
+        """Model id, source, DOI, validity, coefficients and release (a fresh dict)."""
+        record = self._si.provenance(self.quantity)
+        if self.model is not None and self.model.variant is not None:
+            record = {**record, **self.model.provenance()}
+            record["release"] = self._si.release.id
+        if self._fixed:
+            record["kernel_options"] = dict(self._fixed)
+        return record
+
+    def _signature(self) -> str:
+        names = [f"{n}=None" if n in self._optional else n for n in self._names]
+        names += [f"{k}={v!r}" for k, v in self._options.items()]
+        return f"({', '.join(names)})"
+
+    def _document(self) -> str:
+        units = self.output_units
+        shown = " and ".join(units) if isinstance(units, tuple) else units
+        lines = [f"Bound kernel of {self.quantity}: model {self.model_id} "
+                 f"(release {self._si.release.id}).", "",
+                 f"kernel{self._signature()} -> {self._returns or shown}"]
+        if self._description:
+            lines += ["", self._description]
+        lines += ["", "Inputs (internal units; floats or arrays that broadcast)"]
+        for name, unit in self.inputs.items():
+            valid = self._validity.get(name)
+            span = f"; valid {valid[0]:g}-{valid[1]:g} {unit}" if valid else ""
+            optional = " (optional)" if name in self._optional else ""
+            lines.append(f"    {name} : {unit}{span}{optional}")
+        for region in self._regions:
+            lines.append(f"    validity region: {region}")
+        lines += ["", f"Output: {shown}"]
+        if self.api_units != self.output_units:
+            api = (" and ".join(self.api_units) if isinstance(self.api_units, tuple)
+                   else self.api_units)
+            lines.append(f"    NOTE: units differ from the public method: this kernel "
+                         f"returns {shown}, si.{self.api_method}() returns {api}.")
+        else:
+            lines.append(f"    (the same units as si.{self.api_method}())")
+        if self._options:
+            lines += ["", "Options: " + ", ".join(f"{k}={v!r}" for k, v in
+                                                  self._options.items())]
+        lines += ["", "Model: " + self.model_id, "    " + self.citation, "",
+                  "No unit handling and no validity check per call: call "
+                  "kernel.check(...) once on your mesh (ranges and validity regions); "
+                  "kernel.provenance holds the full record.",
+                  f"dtype: {_DTYPE_NOTE}.",
+                  f"Memory: numpy inputs above {BLOCK} points are evaluated in blocks "
+                  "into one output (out= to supply it)."
+                  if self._blocked else
+                  "Memory: the solver works in blocks of its own; out= is not supported.",
+                  ("Array API: accepts any array-API-standard array (computed in its "
+                   "namespace, unblocked)." if self.array_api else
+                   f"Array API: numpy arrays only ({self._numpy_only_reason}); other "
+                   "arrays raise TypeError."),
+                  ("Derivatives: kernel.derivatives(...) -> (value, {input: partial})."
+                   if self._derivative is not None else "Derivatives: none.")]
+        if self.model is not None and self.model.kernel.__doc__:
+            lines += ["", "The model's kernel:", "",
+                      inspect.cleandoc(self.model.kernel.__doc__)]
+        return "\n".join(lines)
+
+    def __repr__(self) -> str:
+        units = self.output_units
+        shown = ", ".join(units) if isinstance(units, tuple) else units
+        inputs = ", ".join(f"{n} [{u}]" for n, u in self.inputs.items())
+        valid = "; ".join(f"{n} {lo:g}-{hi:g} {self.inputs.get(n, '')}".rstrip()
+                          for n, (lo, hi) in self._validity.items()) or "no limits"
+        note = ""
+        if self.api_units != self.output_units:
+            note = f" (NOTE: si.{self.api_method}() returns {self.api_units})"
+        fixed = "".join(f", {k}={v!r}" for k, v in self._fixed.items())
+        return (f"<BoundKernel {self.quantity}/{self.model_id}{fixed}: ({inputs}) -> "
+                f"[{shown}]{note}; valid {valid}; release {self._si.release.id}; "
+                f"{self.citation}>")
+
+    # ------------------------------------------------------------------ compatibility
+    def __getattr__(self, name):
+        # the Model's attributes (path, variant, coefficients, validity ...) for code
+        # written when si.kernel returned the Model itself
+        model = self.__dict__.get("model")
+        if model is not None and not name.startswith("__"):
+            return getattr(model, name)
+        raise AttributeError(f"{type(self).__name__} has no attribute {name!r}")
+
+    def __reduce__(self):
+        return _rebuild, (self._si, self.quantity, self._fixed)
+
+    def __copy__(self):
+        return self  # immutable
+
+    def __deepcopy__(self, memo):
+        return self
+
+
+def _rebuild(si, quantity, fixed):
+    return si.kernel(quantity, **fixed)
+
+
+def _to_numpy(value):
+    """An array of another array library as a numpy array (for checks only)."""
+    try:
+        return np.asarray(value)
+    except Exception:  # noqa: BLE001 - e.g. array_api_strict refuses __array__
+        return np.from_dlpack(value)
+
+
+# ---------------------------------------------------------------------------- factory
+
+# what the public method returns where it differs from the kernel's output
+_API_UNITS = {"lattice_constant": "nm"}
+_API_METHOD = {"gap_narrowing": "band_edge_shifts", "ionisation": "dopant_level"}
+_DESCRIPTIONS = {
+    "gap_narrowing": ("Returns the pair (conduction-edge shift, valence-edge shift), each "
+                      ">= 0; si.gap_narrowing() returns their sum, si.band_edge_shifts() "
+                      "the pair."),
+    "ionisation": "Returns (ionisation energy [eV], share of states still localised [1]).",
+    "densities_of_states": "Returns (Nc, Nv).",
+    "intrinsic_lifetime": ("Option part='total' (Auger + radiative), 'auger' or "
+                           "'radiative': the lifetime of that part alone."),
+}
+_TABLE_REASON = "it interpolates measured tables with numpy's searchsorted and interp"
+_SOLVER_REASON = "an iterative Newton solver working on numpy blocks"
+
+
+def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
+    """The :class:`BoundKernel` of quantity ``name`` for ``si`` (see ``Silicon.kernel``)."""
+    from .errors import InputError
+    from .methods.carriers import dopant_species
+    from .methods.transport import KERNELS as TRANSPORT_KERNELS
+
+    fixed = dict(fixed)
+    if name == "equilibrium":
+        return _equilibrium_kernel(si, fixed)
+    if name == "effective_intrinsic_density":
+        if fixed:
+            key = sorted(fixed)[0]
+            raise InputError(key, "not an option of the effective_intrinsic_density kernel",
+                             fixed[key])
+        return _effective_intrinsic_density_kernel(si)
+    if name in TRANSPORT_KERNELS:
+        model = si._transport_kernel(name, fixed)
+        return _model_kernel(si, name, model, fixed)
+    model = si.model(name)
+    if model.variant_axis == "dopant":
+        species = fixed.pop("dopant", None)
+        if species is None:
+            raise InputError("dopant", f"given for {name} (one of "
+                             f"{', '.join(model.variants)})", None)
+        species = dopant_species(species, "dopant")
+        model = model.select(species)
+        chosen = {"dopant": species}
+    else:
+        chosen = {}
+    if fixed:
+        key = sorted(fixed)[0]
+        raise InputError(key, f"not an option of the {name} kernel", fixed[key])
+    return _model_kernel(si, name, model, chosen)
+
+
+def _model_checker(models, strict_default=None):
+    """A checker of the inputs each model takes (ranges, then regions)."""
+
+    def check(arrays, ranges, strict):
+        for model in models:
+            for argument in model.inputs:
+                if argument in ranges and ranges[argument][0] <= ranges[argument][1]:
+                    model.check(argument, *ranges[argument], strict)
+            if model.regions:
+                model.check_regions({k: arrays[k] for k in model.inputs if k in arrays},
+                                    strict)
+
+    return check
+
+
+def _validity(models) -> dict:
+    found = {}
+    for model in models:
+        for name, rng in model.validity.items():
+            low, high = found.get(name, (-np.inf, np.inf))
+            found[name] = (max(low, rng.low), min(high, rng.high))
+        for component in model.components.values():
+            for name, (low, high) in _validity([component]).items():
+                old = found.get(name, (-np.inf, np.inf))
+                found[name] = (max(old[0], low), min(old[1], high))
+    return found
+
+
+def _options(model) -> dict:
+    """Keyword options of a kernel besides its coefficients (e.g. ``part``)."""
+    spec = model.kernel.spec
+    options = {}
+    for parameter in inspect.signature(model.kernel).parameters.values():
+        if (parameter.kind is parameter.KEYWORD_ONLY
+                and parameter.default is not parameter.empty
+                and parameter.name not in spec.coefficients
+                and parameter.name not in spec.requires):
+            options[parameter.name] = parameter.default
+    return options
+
+
+def _model_kernel(si, name, model, fixed) -> BoundKernel:
+    table = model.kind == "table"
+    return BoundKernel(
+        si, name, model.function or model, model.inputs, model.output_units, model=model,
+        model_id=model.id,
+        citation=model.source.citation(), validity=_validity([model]),
+        regions=model.regions, checker=_model_checker([model]),
+        derivative=model.derivative, array_api=model.array_api,
+        api_units=_API_UNITS.get(name), api_method=_API_METHOD.get(name),
+        numpy_only_reason=(_TABLE_REASON if table else
+                           "its interpolation between published wavelengths uses "
+                           "numpy indexing"),
+        options=_options(model), fixed=fixed, description=_DESCRIPTIONS.get(name, ""))
+
+
+def _effective_intrinsic_density_kernel(si) -> BoundKernel:
+    bound = si._carriers()
+    inputs = {"temperature": "K", "donor_density": "cm^-3", "acceptor_density": "cm^-3",
+              "electron_density": "cm^-3", "hole_density": "cm^-3"}
+    optional = () if bound.uses_carriers else ("electron_density", "hole_density")
+    models = [bound.ni, bound.narrowing]
+    citation = "; ".join(dict.fromkeys(m.source.citation() for m in models))
+    carriers = ("the free-carrier densities n and p are required (the narrowing "
+                f"{bound.narrowing.id} depends on them)" if bound.uses_carriers else
+                f"electron_density and hole_density are ignored (the narrowing "
+                f"{bound.narrowing.id} does not depend on them)")
+    return BoundKernel(
+        si, "effective_intrinsic_density", bound.effective_intrinsic_density, inputs,
+        "cm^-3", model=None, model_id=f"derived ({bound.ni.id} x {bound.narrowing.id})",
+        citation=citation, validity=_validity(models), checker=_model_checker(models),
+        derivative=(bound.effective_intrinsic_density_derivatives
+                    if bound.ni.derivative is not None
+                    and bound.narrowing.derivative is not None else None),
+        array_api=bound.ni.array_api and bound.narrowing.array_api,
+        numpy_only_reason="one of its models takes numpy arrays only", optional=optional,
+        description=("ni_eff = ni(T) x ratio x exp((dEc + dEv) / 2kT), composed as "
+                     "si.effective_intrinsic_density() does (see its provenance); "
+                     + carriers + "."))
+
+
+def _equilibrium_kernel(si, fixed) -> BoundKernel:
+    from .errors import InputError
+    from .methods.carriers import dopant_species
+
+    unknown = set(fixed) - {"donor", "acceptor", "statistics"}
+    if unknown:
+        raise InputError(sorted(unknown)[0], "one of donor, acceptor, statistics",
+                         fixed[sorted(unknown)[0]])
+    bound = si._carriers()
+    statistics = fixed.get("statistics") or bound.statistics
+    donor = dopant_species(fixed.get("donor", "phosphorus"), "donor", "donor")
+    acceptor = dopant_species(fixed.get("acceptor", "boron"), "acceptor", "acceptor")
+    fermi_dirac = si._check_statistics(statistics, bound)
+    function = functools.partial(bound.equilibrium, donor=donor, acceptor=acceptor,
+                                 fermi_dirac=fermi_dirac)
+    models = [bound.dos, bound.ni, bound.narrowing]
+    donor_model = bound.ionisation.select(donor)
+    acceptor_model = bound.ionisation.select(acceptor)
+    base = _model_checker(models)
+
+    def check(arrays, ranges, strict):
+        base(arrays, ranges, strict)
+        for model, key in ((donor_model, "donor_density"), (acceptor_model,
+                                                            "acceptor_density")):
+            low, high = ranges[key]
+            if low <= high:
+                model.check("dopant_density", low, high, strict)
+
+    validity = _validity(models)
+    validity.pop("electron_density", None)
+    validity.pop("hole_density", None)
+    ids = ", ".join(f"{m.quantity} {m.id}" for m in (*models, bound.ionisation))
+    return BoundKernel(
+        si, "equilibrium", function,
+        {"temperature": "K", "donor_density": "cm^-3", "acceptor_density": "cm^-3"},
+        "dict", model=None, model_id=f"derived ({ids})",
+        citation="; ".join(dict.fromkeys(m.source.citation()
+                                         for m in (*models, bound.ionisation))),
+        validity=validity, checker=check, array_api=False, blocked=True,
+        numpy_only_reason=_SOLVER_REASON,
+        fixed={"donor": donor, "acceptor": acceptor,
+               "statistics": "fermi-dirac" if fermi_dirac else "boltzmann"},
+        returns=("dict of arrays: electron_density, hole_density, ionised_donors, "
+                 "ionised_acceptors [cm^-3]; conduction_edge_shift, valence_edge_shift, "
+                 "fermi_from_conduction_edge, fermi_from_valence_edge, "
+                 "fermi_from_intrinsic [eV]; reduced_fermi_level, residual [1]; "
+                 "temperature [K]"),
+        description=(f"Charge neutrality with {'Fermi-Dirac' if fermi_dirac else 'Boltzmann'}"
+                     f" statistics, donor {donor}, acceptor {acceptor}: the solver of "
+                     "si.equilibrium() on plain arrays; every point converges to 1e-12 "
+                     "relative neutrality or SolverError names those that did not."))
