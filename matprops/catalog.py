@@ -1166,7 +1166,15 @@ class _TableFunction:
             values, units = data[variable]
             arrays[argument] = _convert(self._path, where, values, udunits_to_pint(units),
                                         spec.coefficients[argument])
+        prepare = getattr(self._kernel, "prepare", None)
+        if prepare is not None:  # the same function, prepared once for fast evaluation
+            return prepare(**self._bound, **arrays)
         return functools.partial(self._kernel, **self._bound, **arrays)
+
+    @property
+    def blocks_itself(self) -> bool:
+        """Whether the prepared table evaluates large inputs in blocks of its own."""
+        return hasattr(self._kernel, "prepare")
 
     def __call__(self, *args, **kwargs):
         function = self._function or self._load()

@@ -64,8 +64,10 @@ def test_sixteen_cold_threads_first_optical_call(process):
 def test_loaded_tables_are_immutable(si):
     si.absorption(800.0, 300.0)  # loads the tables
     kernel = si.kernel("absorption")
-    arrays = [v for v in kernel.function._function.keywords.values()
-              if isinstance(v, np.ndarray)]
+    table = kernel.function._function  # the prepared table (see kernels/_tables.py)
+    arrays = [a for a in table.arrays if isinstance(a, np.ndarray)]
+    table(np.array([800.0, 900.0]), 300.0)  # the cached row at one temperature, too
+    arrays += list(table._rows.values())
     assert arrays and all(not a.flags.writeable for a in arrays)
     with pytest.raises(ValueError, match="read-only"):
         arrays[0][0] = 0.0

@@ -2,6 +2,7 @@
 
 import json
 
+import numpy as np
 import pytest
 
 import matprops
@@ -46,11 +47,32 @@ def test_final_release_cannot_be_regenerated_or_changed(datasets_copy):
 
 
 def test_draft_release_regenerates_identically(datasets_copy):
+    # regression check: regenerating a draft reproduces it -- every field exactly, every
+    # number to 1e-14 relative. (The optical tables are evaluated by a prepared, exact
+    # reformulation of their definition -- issue 12 -- whose last bit can differ from
+    # the frozen numbers; 1e-14 is 45 ulp, far below the 1e-12 the release promises.)
     root, catalog = datasets_copy
     before = json.loads((root / "releases/2026.1.reference.json").read_text())
     regenerate("2026.1", catalog)
     after = json.loads((root / "releases/2026.1.reference.json").read_text())
-    assert after == before
+    assert _without_numbers(after) == _without_numbers(before)
+    np.testing.assert_allclose(_numbers(after), _numbers(before), rtol=1e-14, atol=0)
+
+
+def _numbers(value) -> list:
+    if isinstance(value, dict):
+        return [x for key in sorted(value) for x in _numbers(value[key])]
+    if isinstance(value, list):
+        return [x for item in value for x in _numbers(item)]
+    return [value] if isinstance(value, float) else []
+
+
+def _without_numbers(value):
+    if isinstance(value, dict):
+        return {key: _without_numbers(item) for key, item in value.items()}
+    if isinstance(value, list):
+        return [_without_numbers(item) for item in value]
+    return "<number>" if isinstance(value, float) else value
 
 
 def _scale_table(root, name, variable, wavelength, factor, temperature=None):

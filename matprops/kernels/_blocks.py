@@ -50,6 +50,10 @@ def evaluate(function: Callable, arguments: Mapping[str, object], out=None,
     The kernel's result: a float64 array (or tuple of arrays) of the broadcast
     shape when blocked, else whatever the kernel returns; ``out`` when given.
     """
+    if getattr(function, "blocks_itself", False):  # e.g. a prepared table
+        if out is None:
+            return function(**arguments, **options)
+        return function(**arguments, out=out, **options)
     shapes = []
     for value in arguments.values():
         if type(value) in _SCALARS:
