@@ -34,7 +34,8 @@ _SUBMODULES = {"optics", "tables", "catalog", "units", "material", "kernels", "c
 def __getattr__(name):
     if name in _LAZY:
         value = getattr(import_module(f".{_LAZY[name]}", __name__), name)
-        globals()[name] = value
+        if name != "Q_":  # Q_ follows the application registry, whenever it is set
+            globals()[name] = value
         return value
     if name in _SUBMODULES:
         return import_module(f".{name}", __name__)

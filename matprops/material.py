@@ -20,6 +20,7 @@ import numpy as np
 
 from .catalog import Catalog, Model, default_catalog
 from .errors import DatasetError, InputError, UnknownQuantityError
+from .kernels._blocks import evaluate
 from .methods.carriers import DERIVED as CARRIER_DERIVED
 from .methods.carriers import CarrierMethods, dopant_species
 from .methods.crystal import DERIVED as CRYSTAL_DERIVED
@@ -174,7 +175,7 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
             values[argument] = array
         if model.regions:
             model.check_regions(values, self.strict)
-        return model(**values)
+        return evaluate(model.function or model, values)  # in blocks for large inputs
 
     def _quantity(self, name: str, **arguments):
         result, units = self._evaluate(name, **arguments)

@@ -20,6 +20,7 @@ first and last point. The catalogue parses the table into a :class:`Region`;
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import Any
@@ -49,9 +50,13 @@ class Region:
     by_units: str
     reason: str
 
+    @functools.cached_property
+    def _points(self):
+        return np.array(self.by_values), np.array(self.bounds)
+
     def bound_at(self, by_value):
         """The bound on ``argument`` at ``by_value`` (array in, array out)."""
-        return np.interp(by_value, self.by_values, self.bounds)
+        return np.interp(by_value, *self._points)
 
     def outside(self, value, by_value):
         """Boolean array: where (value, by_value) leaves the region (broadcast)."""
@@ -62,6 +67,10 @@ class Region:
         """A message naming the points of ``values`` outside the region, or None."""
         if self.argument not in values or self.by not in values:
             return None
+        if np.ndim(values[self.argument]) == 0 and np.ndim(values[self.by]) == 0:
+            # one point (the scalar fast path): no arrays to broadcast
+            if not self.outside(float(values[self.argument]), float(values[self.by])):
+                return None
         value, by_value = np.broadcast_arrays(np.asarray(values[self.argument], float),
                                               np.asarray(values[self.by], float))
         outside = self.outside(value, by_value)

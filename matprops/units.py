@@ -18,6 +18,7 @@ absolute temperature belongs.
 
 from __future__ import annotations
 
+import math
 import re
 from functools import cache
 
@@ -29,14 +30,33 @@ from .errors import InputError, UnitError
 __all__ = ["Q_", "check_broadcast", "coerce", "name", "names", "quantity", "to_magnitude", "unit",
            "ureg"]
 
+# pint's application registry, through its wrapper: every use goes to whatever registry
+# the application has set (pint.set_application_registry), even one set after matprops
+# was imported. Nothing here builds it: pint parses its definitions (~150 ms) on the
+# first quantity made, not on import (see docs/simulation.md, "Start-up").
 ureg = pint.get_application_registry()
-Q_ = ureg.Quantity
+
+
+def __getattr__(name):
+    if name == "Q_":  # the Quantity class of the current application registry
+        return ureg.Quantity
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
+
+def _Q(value, units=None):  # noqa: N802 - pint's own spelling of the constructor
+    """A quantity of the current application registry (``ureg.Quantity(value, units)``)."""
+    return ureg.Quantity(value, units)
 
 
 @cache
+def _unit_of(registry, text: str) -> pint.Unit:
+    return registry.Unit(text)
+
+
 def unit(text: str) -> pint.Unit:
-    """A cached pint Unit (parsing strings costs ~56 µs per call)."""
-    return ureg.Unit(text)
+    """A pint Unit of the application registry, parsed once per registry (parsing a
+    string costs ~56 µs per call)."""
+    return _unit_of(ureg.get(), text)
 
 
 # Default (and internal) unit of each argument name, and what its value must be.
@@ -70,6 +90,10 @@ ARGUMENTS = {
     "density": ("cm^-3", "non-negative"),
 }
 
+# Exact types that take the scalar fast path of coerce (bool, a subclass of int, is not
+# one of them: it is refused below, as True is not a number here).
+_PLAIN_SCALARS = (float, int, np.float64)
+
 # Arguments that also accept a photon energy, frequency or wavenumber (converted
 # with pint's spectroscopy context).
 SPECTRAL = {"wavelength", "photon_energy"}
@@ -85,8 +109,8 @@ def _parse(text: str, argument: str, units: str):
     try:
         if match:
             number, unit_text = match.groups()
-            return Q_(float(number), unit(unit_text) if unit_text else unit(units))
-        return Q_(text)
+            return _Q(float(number), unit(unit_text) if unit_text else unit(units))
+        return _Q(text)
     except Exception as exc:  # pint raises several unrelated types here
         raise UnitError(argument, units, text) from exc
 
@@ -115,6 +139,15 @@ def coerce(value, argument: str, units: str | None = None,
     default_units, default_req = ARGUMENTS.get(argument, (None, None))
     units = units or default_units
     requirement = requirement or default_req
+    if type(value) in _PLAIN_SCALARS:  # the scalar fast path: a plain number
+        number = float(value)
+        if not math.isfinite(number):
+            raise InputError(argument, f"finite numbers in {units}", repr(value))
+        if requirement == "positive" and number <= 0:
+            raise InputError(argument, f"> 0 {units}", f"{number:g} {units}")
+        if requirement == "non-negative" and number < 0:
+            raise InputError(argument, f">= 0 {units}", f"{number:g} {units}")
+        return np.array(number), number, number
     target = unit(units)
     if value is None:
         raise UnitError(argument, units, None)
@@ -124,7 +157,7 @@ def coerce(value, argument: str, units: str | None = None,
         value = _from_sequence(value, argument, units)
     if isinstance(value, pint.Quantity):
         _real_array(value.magnitude, argument, units)
-        if target == _KELVIN and "delta_" in str(value.units):
+        if target == unit("K") and "delta_" in str(value.units):
             raise UnitError(argument, "K, degC or degF (an absolute temperature)", value,
                             plain="K", description=f"{value} (a temperature difference)")
         spectral = argument in SPECTRAL and value.dimensionality != target.dimensionality
@@ -153,9 +186,6 @@ def coerce(value, argument: str, units: str | None = None,
             raise UnitError(argument, units, value) from exc
     low, high = check_values(magnitude, argument, units, requirement)
     return magnitude, low, high
-
-
-_KELVIN = ureg.Unit("K")
 
 
 def _real_array(value, argument: str, units: str) -> np.ndarray:
@@ -198,7 +228,7 @@ def _from_sequence(values, argument: str, units: str):
             raise UnitError(argument, f"{units} (quantities of matprops.ureg, pint's "
                             "application registry)", values,
                             description=f"{item!r}: {exc}") from exc
-    return Q_(np.asarray(magnitudes), first)
+    return _Q(np.asarray(magnitudes), first)
 
 
 def _brief(value) -> str:
@@ -275,7 +305,8 @@ def quantity(magnitude, units: str):
     """Attach units to a kernel result; 0-d arrays become scalars."""
     if isinstance(magnitude, np.ndarray) and magnitude.ndim == 0:
         magnitude = magnitude[()]
-    return Q_(magnitude, unit(units))
+    registry = ureg.get()
+    return registry.Quantity(magnitude, _unit_of(registry, units))
 
 
 

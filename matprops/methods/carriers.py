@@ -25,6 +25,7 @@ import numpy as np
 
 from ..errors import InputError, ValidityError, ValidityWarning, warn
 from ..kernels import equilibrium as equilibrium_kernel
+from ..kernels._blocks import evaluate
 from ..kernels.constants import BOLTZMANN_EV
 from ..results import Result
 from ..units import coerce, quantity
@@ -268,20 +269,24 @@ class CarrierMethods:
         (Schenk's); when omitted, the equilibrium densities (self-consistent). An
         apparent narrowing has no physical split: it is given in equal halves.
         """
+        dec, dev = self._edge_shifts(temperature, Na, Nd, n, p, donor, acceptor)
+        return quantity(np.asarray(dec, float), "eV"), quantity(np.asarray(dev, float), "eV")
+
+    def _edge_shifts(self, temperature, Na, Nd, n, p, donor, acceptor):
+        """(dEc, dEv) as float arrays in eV (see :meth:`band_edge_shifts`)."""
         bound = self._carriers()
         if bound.uses_carriers and (n is None or p is None):
             if n is not None or p is not None:
                 raise InputError("n" if n is None else "p", "given together with "
                                  f"{'p' if n is None else 'n'} (or both omitted)", None)
             result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
-            dec, dev = result["conduction_edge_shift"], result["valence_edge_shift"]
-        else:
-            prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
-            dec, dev = self._call(bound.narrowing, prepared)
-            if not bound.uses_carriers:  # broadcast to every argument's shape
-                shape = np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
-                dec, dev = np.broadcast_to(dec, shape), np.broadcast_to(dev, shape)
-        return quantity(np.asarray(dec, float), "eV"), quantity(np.asarray(dev, float), "eV")
+            return result["conduction_edge_shift"], result["valence_edge_shift"]
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
+        dec, dev = self._call(bound.narrowing, prepared)
+        if not bound.uses_carriers:  # broadcast to every argument's shape
+            shape = np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
+            dec, dev = np.broadcast_to(dec, shape), np.broadcast_to(dev, shape)
+        return dec, dev
 
     def gap_narrowing(self, temperature, Na=0, Nd=0, n=None, p=None, *,
                       donor="phosphorus", acceptor="boron"):
@@ -290,9 +295,8 @@ class CarrierMethods:
         For an apparent narrowing this is the published dEg (to be used with the
         intrinsic density it was fitted with, see :meth:`effective_intrinsic_density`).
         """
-        dec, dev = self.band_edge_shifts(temperature, Na, Nd, n, p, donor=donor,
-                                         acceptor=acceptor)
-        return dec + dev
+        dec, dev = self._edge_shifts(temperature, Na, Nd, n, p, donor, acceptor)
+        return quantity(np.add(dec, dev, dtype=float), "eV")
 
     def effective_intrinsic_density(self, temperature, Na=0, Nd=0, n=None, p=None, *,
                                     donor="phosphorus", acceptor="boron"):
@@ -315,12 +319,13 @@ class CarrierMethods:
         for argument in bound.narrowing.inputs:
             bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
         arrays = {k: v[0] for k, v in prepared.items()}
-        value = bound.effective_intrinsic_density(
-            arrays["temperature"], arrays.get("donor_density", 0.0),
-            arrays.get("acceptor_density", 0.0), arrays.get("electron_density"),
-            arrays.get("hole_density"))
-        shape = np.broadcast_shapes(*(a.shape for a in arrays.values()))
-        return quantity(np.broadcast_to(value, shape).astype(float), "cm^-3")
+        arrays.setdefault("donor_density", 0.0)
+        arrays.setdefault("acceptor_density", 0.0)
+        value = evaluate(bound.effective_intrinsic_density, arrays)  # blocks if large
+        shape = np.broadcast_shapes(*(np.shape(a) for a in arrays.values()))
+        if np.shape(value) != shape:
+            value = np.broadcast_to(value, shape)
+        return quantity(np.asarray(value, dtype=float), "cm^-3")
 
     # ------------------------------------------------------------------ dopants
     def dopant_level(self, N, dopant="phosphorus"):

@@ -2,9 +2,12 @@
 
 from __future__ import annotations
 
+from functools import cache
+
 from ..errors import InputError
 from ..kernels import crystal
-from ..units import quantity
+from ..kernels._blocks import evaluate
+from ..units import coerce, quantity, unit
 
 __all__ = ["DERIVED", "PLANES", "CrystalMethods"]
 
@@ -37,9 +40,29 @@ class CrystalMethods:
     def _lattice_cm(self, temperature):
         return self._evaluate("lattice_constant", temperature=temperature)[0]
 
+    def _from_lattice(self, function, temperature, *args):
+        """``function(a(T), *args)`` evaluated block by block with the lattice model,
+        after the lattice model's input and validity checks."""
+        model = self.model("lattice_constant")
+        prepared = coerce(temperature, "temperature")
+        model.check("temperature", prepared[1], prepared[2], self.strict)
+        lattice = model.function
+
+        def composed(temperature):
+            return function(lattice(temperature=temperature), *args)
+
+        return evaluate(composed, {"temperature": prepared[0]})
+
     def lattice_constant(self, temperature):
-        """Cubic lattice constant a(T), nm."""
-        return self._quantity("lattice_constant", temperature=temperature).to("nm")
+        """Cubic lattice constant a(T), nm.
+
+        (The bound kernel, ``si.kernel("lattice_constant")``, returns cm: the
+        kernels' internal length unit.)
+        """
+        result, units = self._evaluate("lattice_constant", temperature=temperature)
+        # cm -> nm with pint's own factor (exactly what Quantity.to("nm") multiplies by),
+        # looked up once instead of a unit conversion per call
+        return quantity(result * _factor(units, "nm"), "nm")
 
     def molar_mass(self):
         """Molar mass (standard atomic weight) of natural silicon, g/mol."""
@@ -51,21 +74,30 @@ class CrystalMethods:
 
     def atomic_density(self, temperature):
         """Silicon atoms per volume, 8/a^3, cm^-3."""
-        return quantity(crystal.atomic_density(self._lattice_cm(temperature)), "cm^-3")
+        return quantity(self._from_lattice(crystal.atomic_density, temperature), "cm^-3")
 
     def density(self, temperature):
         """Mass density from the lattice constant and the atomic weight, g/cm^3."""
         mass, _ = self._evaluate("molar_mass")
-        return quantity(crystal.mass_density(self._lattice_cm(temperature), mass), "g/cm^3")
+        return quantity(self._from_lattice(crystal.mass_density, temperature, mass),
+                        "g/cm^3")
 
     def surface_atom_density(self, plane, temperature):
         """Atoms per area in one atomic layer of a (100), (110) or (111) plane, cm^-2."""
         plane = _plane(plane)
-        return quantity(crystal.plane_atom_density(self._lattice_cm(temperature), plane),
+        return quantity(self._from_lattice(crystal.plane_atom_density, temperature, plane),
                         "cm^-2")
 
     def dangling_bond_density(self, plane, temperature):
         """Dangling bonds per area of the ideal unreconstructed (100)/(110)/(111) surface, cm^-2."""
         plane = _plane(plane)
-        return quantity(crystal.dangling_bond_density(self._lattice_cm(temperature), plane),
-                        "cm^-2")
+        return quantity(self._from_lattice(crystal.dangling_bond_density, temperature,
+                                           plane), "cm^-2")
+
+
+@cache
+def _factor(source: str, target: str) -> float:
+    """pint's multiplier from ``source`` to ``target`` units (cached)."""
+    from ..units import ureg
+
+    return float(ureg.Quantity(1.0, unit(source)).to(unit(target)).magnitude)

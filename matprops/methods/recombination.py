@@ -41,6 +41,7 @@ import numpy as np
 from .. import defects as defect_catalogue
 from ..errors import InputError, UnitError, ValidityError, ValidityWarning, warn
 from ..kernels import implied_voltage as voltage_kernel
+from ..kernels._blocks import evaluate
 from ..kernels import srh_lifetime as srh
 from ..kernels.constants import ELEMENTARY_CHARGE
 from ..results import Result
@@ -212,7 +213,8 @@ class RecombinationMethods:
         return model
 
     def _intrinsic(self, state: _State, part="total", excess=None):
-        return self.model("intrinsic_lifetime")(**state.kernel_inputs(excess), part=part)
+        model = self.model("intrinsic_lifetime")
+        return evaluate(model.function or model, state.kernel_inputs(excess), part=part)
 
     # ------------------------------------------------------------------ intrinsic
     def intrinsic_lifetime(self, temperature, Na=0, Nd=0, excess=0, *, n0=None, p0=None,
