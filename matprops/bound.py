@@ -460,8 +460,8 @@ def _model_kernel(si, name, model, fixed) -> BoundKernel:
         derivative=model.derivative, array_api=model.array_api,
         api_units=_API_UNITS.get(name), api_method=_API_METHOD.get(name),
         numpy_only_reason=(_TABLE_REASON if table else
-                           "its interpolation between published wavelengths uses "
-                           "numpy indexing"),
+                           "it interpolates coefficients published at a few wavelengths "
+                           "with numpy indexing"),
         options=_options(model), fixed=fixed, description=_DESCRIPTIONS.get(name, ""))
 
 

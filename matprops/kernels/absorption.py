@@ -25,6 +25,7 @@ from ._tables import (
     linear_1d,
     union_grid,
 )
+from ._xp import asfloat, namespace, zeros_like
 from .constants import BOLTZMANN_EV, PHOTON_ENERGY_NM
 
 
@@ -107,7 +108,8 @@ table_scaled_by_series.prepare = _prepare_scaled
         coefficients={"indirect_gaps_at_zero": "eV", "direct_gap_at_zero": "eV",
                       "phonon_energies": "eV", "phonon_weights": "1",
                       "indirect_strengths": "1/(cm*eV^2)",
-                      "direct_strength": "1/(cm*eV^0.5)", "beta": "eV/K", "gamma": "K"})
+                      "direct_strength": "1/(cm*eV^0.5)", "beta": "eV/K", "gamma": "K"},
+        array_api=True)
 def rajkanan(wavelength, temperature, *, indirect_gaps_at_zero, direct_gap_at_zero,
              phonon_energies, phonon_weights, indirect_strengths, direct_strength,
              beta, gamma):
@@ -135,19 +137,22 @@ def rajkanan(wavelength, temperature, *, indirect_gaps_at_zero, direct_gap_at_ze
     ----------
     K. Rajkanan, R. Singh and J. Shewchun, Solid-State Electron. 22, 793 (1979).
     """
-    energy = PHOTON_ENERGY_NM / np.asarray(wavelength, dtype=float)
-    t = np.asarray(temperature, dtype=float)
-    energy, t = np.broadcast_arrays(energy, t)
+    xp = namespace(wavelength, temperature)
+    energy = PHOTON_ENERGY_NM / asfloat(xp, wavelength)
+    t = asfloat(xp, temperature)
+    energy, t = xp.broadcast_arrays(energy, t)
     shift = beta * t * t / (t + gamma)
     kt = BOLTZMANN_EV * t
-    alpha = np.zeros(energy.shape)
+    alpha = zeros_like(xp, energy)
     for ep, c in zip(phonon_energies, phonon_weights, strict=True):  # the two phonons
-        absorbed = 1.0 / np.expm1(ep / kt)                         # occupation n
-        emitted = -1.0 / np.expm1(-ep / kt)                        # n + 1
+        ep, c = float(ep), float(c)
+        absorbed = 1.0 / xp.expm1(ep / kt)                         # occupation n
+        emitted = -1.0 / xp.expm1(-ep / kt)                        # n + 1
         for gap0, a in zip(indirect_gaps_at_zero, indirect_strengths, strict=True):
-            above = energy - (gap0 - shift)
-            up = np.maximum(above + ep, 0.0)
-            down = np.maximum(above - ep, 0.0)
-            alpha += c * a * (up * up * absorbed + down * down * emitted)
-    alpha += direct_strength * np.sqrt(np.maximum(energy - (direct_gap_at_zero - shift), 0.0))
+            above = energy - (float(gap0) - shift)
+            up = xp.maximum(above + ep, 0.0)
+            down = xp.maximum(above - ep, 0.0)
+            alpha = alpha + c * float(a) * (up * up * absorbed + down * down * emitted)
+    alpha = alpha + direct_strength * xp.sqrt(xp.maximum(
+        energy - (direct_gap_at_zero - shift), 0.0))
     return alpha

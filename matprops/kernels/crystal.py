@@ -6,6 +6,7 @@ Lengths in cm, mass in g, areal densities in cm^-2.
 import numpy as np
 
 from ._spec import kernel
+from ._xp import asfloat, namespace
 from .constants import AVOGADRO
 
 ATOMS_PER_CUBIC_CELL = 8  # diamond structure: fcc lattice with a two-atom basis
@@ -22,7 +23,8 @@ PLANES = {
 
 @kernel(inputs={"temperature": "K"}, output="cm",
         coefficients={"reference_lattice_constant": "cm", "reference_temperature": "K",
-                      "c1": "1/K", "c2": "1/K", "c3": "1/K^2", "onset_temperature": "K"})
+                      "c1": "1/K", "c2": "1/K", "c3": "1/K^2", "onset_temperature": "K"},
+        array_api=True)
 def okada_tokumaru(temperature, *, reference_lattice_constant, reference_temperature,
                    c1, c2, c3, onset_temperature):
     """Lattice constant from the integrated linear thermal-expansion coefficient.
@@ -41,17 +43,19 @@ def okada_tokumaru(temperature, *, reference_lattice_constant, reference_tempera
     ----------
     Y. Okada and Y. Tokumaru, J. Appl. Phys. 56, 314 (1984), doi:10.1063/1.333965.
     """
-    t = np.asarray(temperature, dtype=float)
+    xp = namespace(temperature)
+    t = asfloat(xp, temperature)
 
-    def integral(x):
-        return c1 * (x + np.exp(-c2 * (x - onset_temperature)) / c2) + 0.5 * c3 * x * x
+    def integral(x, exp):
+        return c1 * (x + exp(-c2 * (x - onset_temperature)) / c2) + 0.5 * c3 * x * x
 
-    return reference_lattice_constant * np.exp(integral(t) - integral(reference_temperature))
+    reference = float(integral(reference_temperature, np.exp))
+    return reference_lattice_constant * xp.exp(integral(t, xp.exp) - reference)
 
 
 def atomic_density(lattice_constant):
     """Atoms per cm^3 of the diamond lattice, ``8 / a^3`` (a in cm)."""
-    a = np.asarray(lattice_constant, dtype=float)
+    a = asfloat(namespace(lattice_constant), lattice_constant)
     return ATOMS_PER_CUBIC_CELL / (a * a * a)
 
 
@@ -62,7 +66,7 @@ def mass_density(lattice_constant, atomic_mass):
 
 def plane_atom_density(lattice_constant, plane):
     """Atoms per cm^2 in one atomic layer of a {100}, {110} or {111} plane."""
-    a = np.asarray(lattice_constant, dtype=float)
+    a = asfloat(namespace(lattice_constant), lattice_constant)
     return PLANES[plane][0] / (a * a)
 
 
@@ -71,13 +75,13 @@ def dangling_bond_density(lattice_constant, plane):
     return plane_atom_density(lattice_constant, plane) * PLANES[plane][1]
 
 
-@kernel(inputs={}, output="1", coefficients={"value": "1"})
+@kernel(inputs={}, output="1", coefficients={"value": "1"}, array_api=True)
 def constant(*, value):
     """A temperature-independent dimensionless value (e.g. relative permittivity)."""
     return value
 
 
-@kernel(inputs={}, output="g/mol", coefficients={"value": "g/mol"})
+@kernel(inputs={}, output="g/mol", coefficients={"value": "g/mol"}, array_api=True)
 def molar_mass(*, value):
     """A molar mass (standard atomic weight times 1 g/mol)."""
     return value

@@ -7,13 +7,14 @@ import numpy as np
 
 from ._spec import kernel
 from ._tables import bracket, linear_1d
+from ._xp import asfloat, namespace
 
 
 @kernel(inputs={"wavelength": "nm", "electron_density": "cm^-3", "hole_density": "cm^-3"},
         output="1/cm",
         coefficients={"electron_coefficient": "cm^2", "hole_coefficient": "cm^2",
                       "electron_exponent": "1", "hole_exponent": "1",
-                      "reference_wavelength": "nm"})
+                      "reference_wavelength": "nm"}, array_api=True)
 def power_law(wavelength, electron_density, hole_density, *, electron_coefficient,
               hole_coefficient, electron_exponent, hole_exponent, reference_wavelength):
     """``alpha = c_n n (lambda/lambda_0)^a + c_p p (lambda/lambda_0)^b``, linear in density.
@@ -24,11 +25,12 @@ def power_law(wavelength, electron_density, hole_density, *, electron_coefficien
     electron_coefficient, hole_coefficient : cm^2 (cross-sections at lambda_0)
     electron_exponent, hole_exponent : dimensionless;  reference_wavelength : nm
     """
-    log_ratio = np.log(np.asarray(wavelength, dtype=float) / reference_wavelength)
-    return (electron_coefficient * np.asarray(electron_density, dtype=float)
-            * np.exp(electron_exponent * log_ratio)
-            + hole_coefficient * np.asarray(hole_density, dtype=float)
-            * np.exp(hole_exponent * log_ratio))
+    xp = namespace(wavelength, electron_density, hole_density)
+    log_ratio = xp.log(asfloat(xp, wavelength) / reference_wavelength)
+    return (electron_coefficient * asfloat(xp, electron_density)
+            * xp.exp(electron_exponent * log_ratio)
+            + hole_coefficient * asfloat(xp, hole_density)
+            * xp.exp(hole_exponent * log_ratio))
 
 
 @kernel(inputs={"wavelength": "nm", "electron_density": "cm^-3", "hole_density": "cm^-3"},
@@ -40,7 +42,8 @@ def cross_sections_at_wavelengths(wavelength, electron_density, hole_density, *,
                                   hole_cross_sections):
     """``alpha = sigma_n(lambda) n + sigma_p(lambda) p`` with sigma published at a
     few wavelengths; between them log(sigma) is linear in log(lambda) (a power
-    law through neighbouring points), outside them NaN.
+    law through neighbouring points), outside them NaN. Numpy arrays only (the
+    interpolation between the published wavelengths uses numpy indexing).
 
     Parameters
     ----------
@@ -69,7 +72,8 @@ def tabulated_power_laws(wavelength, electron_density, hole_density, *, waveleng
 
     The prefactors a are in 1/cm for densities counted in cm^-3. Between the
     published wavelengths log(a) and b are interpolated linearly in log(lambda);
-    outside them the result is NaN.
+    outside them the result is NaN. Numpy arrays only (the interpolation between the
+    published wavelengths uses numpy indexing).
 
     Parameters
     ----------

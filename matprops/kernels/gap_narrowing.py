@@ -18,19 +18,27 @@ from many-body theory, depend on the free-carrier densities as well as on the
 dopants, and go with Fermi-Dirac statistics.
 """
 
-import numpy as np
+import math
 
-from ._spec import kernel
+from ._spec import derivatives_of, kernel
+from ._xp import asfloat, cbrt, errstate, namespace, zeros_like
 from .constants import BOLTZMANN_EV
 
 
-def _total(donor_density, acceptor_density):
-    return np.asarray(donor_density, dtype=float) + np.asarray(acceptor_density, dtype=float)
+def _total(xp, donor_density, acceptor_density):
+    return asfloat(xp, donor_density) + asfloat(xp, acceptor_density)
+
+
+def _by_total(xp, value, derivative):
+    """Halves of a narrowing of N = Nd + Na and its derivative, for both edges."""
+    half, slope = 0.5 * value, 0.5 * derivative
+    return (half, half), {"donor_density": (slope, slope), "acceptor_density": (slope, slope)}
 
 
 @kernel(inputs={"donor_density": "cm^-3", "acceptor_density": "cm^-3"},
         output=("eV", "eV"),
-        coefficients={"energy": "eV", "reference_density": "cm^-3", "constant": "1"})
+        coefficients={"energy": "eV", "reference_density": "cm^-3", "constant": "1"},
+        array_api=True)
 def slotboom(donor_density, acceptor_density, *, energy, reference_density, constant):
     """Slotboom's form of the apparent narrowing, split in equal halves.
 
@@ -49,18 +57,34 @@ def slotboom(donor_density, acceptor_density, *, energy, reference_density, cons
     D. B. M. Klaassen, J. W. Slotboom and H. C. de Graaff, Solid-State Electron.
     35, 125 (1992).
     """
-    with np.errstate(divide="ignore"):
-        x = np.log(_total(donor_density, acceptor_density) / reference_density)
-    root = np.sqrt(x * x + constant)
-    with np.errstate(invalid="ignore"):  # x = -inf gives C / inf = 0, as it should
-        narrowing = energy * np.where(x > 0, x + root, constant / (root - x))
+    xp = namespace(donor_density, acceptor_density)
+    with errstate(xp, divide="ignore"):
+        x = xp.log(_total(xp, donor_density, acceptor_density) / reference_density)
+    root = xp.sqrt(x * x + constant)
+    with errstate(xp, invalid="ignore"):  # x = -inf gives C / inf = 0, as it should
+        narrowing = energy * xp.where(x > 0, x + root, constant / (root - x))
     half = 0.5 * narrowing
     return half, half
 
 
+@derivatives_of(slotboom)
+def slotboom_derivatives(donor_density, acceptor_density, *, energy, reference_density,
+                         constant):
+    """``d dEg/dN = E (1 + x / sqrt(x^2 + C)) / N = dEg / (N sqrt(x^2 + C))``
+    (infinite at N = 0), the same for Nd and Na, halved for each edge."""
+    xp = namespace(donor_density, acceptor_density)
+    total = _total(xp, donor_density, acceptor_density)
+    with errstate(xp, divide="ignore", invalid="ignore"):
+        x = xp.log(total / reference_density)
+        root = xp.sqrt(x * x + constant)
+        narrowing = energy * xp.where(x > 0, x + root, constant / (root - x))
+        slope = xp.where(total > 0, narrowing / (root * total), zeros_like(xp, total) + math.inf)
+    return _by_total(xp, narrowing, slope)
+
+
 @kernel(inputs={"donor_density": "cm^-3", "acceptor_density": "cm^-3"},
         output=("eV", "eV"),
-        coefficients={"energy": "eV", "onset_density": "cm^-3"})
+        coefficients={"energy": "eV", "onset_density": "cm^-3"}, array_api=True)
 def logarithmic(donor_density, acceptor_density, *, energy, onset_density):
     """A narrowing logarithmic in the dopant density above an onset, in equal halves.
 
@@ -72,11 +96,23 @@ def logarithmic(donor_density, acceptor_density, *, energy, onset_density):
     donor_density, acceptor_density : array_like, cm^-3
     energy : eV;  onset_density : cm^-3
     """
-    total = _total(donor_density, acceptor_density)
-    with np.errstate(divide="ignore"):
-        narrowing = energy * np.log(np.maximum(total, onset_density) / onset_density)
+    xp = namespace(donor_density, acceptor_density)
+    total = _total(xp, donor_density, acceptor_density)
+    with errstate(xp, divide="ignore"):
+        narrowing = energy * xp.log(xp.maximum(total, onset_density) / onset_density)
     half = 0.5 * narrowing
     return half, half
+
+
+@derivatives_of(logarithmic)
+def logarithmic_derivatives(donor_density, acceptor_density, *, energy, onset_density):
+    """``d dEg/dN = E / N`` above the onset and 0 below (one-sided at the onset)."""
+    xp = namespace(donor_density, acceptor_density)
+    total = _total(xp, donor_density, acceptor_density)
+    with errstate(xp, divide="ignore"):
+        narrowing = energy * xp.log(xp.maximum(total, onset_density) / onset_density)
+        slope = xp.where(total > onset_density, energy / total, zeros_like(xp, total))
+    return _by_total(xp, narrowing, slope)
 
 
 @kernel(inputs={"temperature": "K", "donor_density": "cm^-3", "acceptor_density": "cm^-3",
@@ -88,7 +124,7 @@ def logarithmic(donor_density, acceptor_density, *, energy, onset_density):
                       "b_e": "1", "b_h": "1", "c_e": "1", "c_h": "1",
                       "d_e": "1", "d_h": "1", "p_e": "1", "p_h": "1",
                       "h_e": "1", "h_h": "1", "j_e": "1", "j_h": "1",
-                      "k_e": "1", "k_h": "1", "q_e": "1", "q_h": "1"})
+                      "k_e": "1", "k_h": "1", "q_e": "1", "q_h": "1"}, array_api=True)
 def schenk(temperature, donor_density, acceptor_density, electron_density, hole_density, *,
            electron_mass, hole_mass, electron_degeneracy, hole_degeneracy,
            exciton_rydberg, exciton_radius, b_e, b_h, c_e, c_h, d_e, d_h, p_e, p_h,
@@ -157,63 +193,184 @@ def _fixed_dopants(temperature, donor_density, acceptor_density, *, electron_mas
 schenk.with_fixed_dopants = _fixed_dopants
 
 
+@derivatives_of(schenk)
+def schenk_derivatives(temperature, donor_density, acceptor_density, electron_density,
+                       hole_density, *, electron_mass, hole_mass, electron_degeneracy,
+                       hole_degeneracy, exciton_rydberg, exciton_radius, b_e, b_h, c_e, c_h,
+                       d_e, d_h, p_e, p_h, h_e, h_h, j_e, j_h, k_e, k_h, q_e, q_h):
+    """Schenk's shifts and their partial derivatives with respect to T (eV/K) and Nd,
+    Na, n, p (eV cm^3), analytic.
+
+    Each part has the form ``-top / bottom``, so ``d(part) = -(d top + part x d bottom)
+    / bottom``; the chain rule runs through ``ns = n + p``, ``alpha_e n + alpha_h p``,
+    ``Ns = Nd + Na``, ``alpha_e Nd + alpha_h Na`` and ``t = kT / Ry``. A zero carrier
+    density gives a NaN partial (the cube root's slope is infinite there).
+    """
+    parts = _SchenkParts(temperature, donor_density, acceptor_density, electron_mass,
+                         hole_mass, electron_degeneracy, hole_degeneracy, exciton_rydberg,
+                         exciton_radius, (b_e, c_e, d_e, p_e, h_e, j_e, k_e, q_e),
+                         (b_h, c_h, d_h, p_h, h_h, j_h, k_h, q_h), derivatives=True)
+    return parts.with_derivatives(electron_density, hole_density)
+
+
 class _SchenkParts:
-    """The ionic shifts of both bands (dopants, T) and a callable for the exchange part."""
+    """The ionic shifts of both bands (dopants, T) and a callable for the exchange part.
+
+    With ``derivatives=True`` it also keeps the partial derivatives of the ionic parts
+    (with respect to T, Nd, Na) and :meth:`with_derivatives` gives those of the whole
+    shifts (see :func:`schenk_derivatives` for the formulas).
+    """
 
     def __init__(self, temperature, donor_density, acceptor_density, electron_mass,
                  hole_mass, electron_degeneracy, hole_degeneracy, rydberg, radius,
-                 electron_set, hole_set):
+                 electron_set, hole_set, derivatives=False):
+        xp = self.xp = namespace(temperature, donor_density, acceptor_density)
         self.rydberg, self.volume = rydberg, radius ** 3
-        t = BOLTZMANN_EV * np.asarray(temperature, dtype=float) / rydberg
+        t = BOLTZMANN_EV * asfloat(xp, temperature) / rydberg
         self.t = t
         self.alpha_e = hole_mass / (electron_mass + hole_mass)
         self.alpha_h = electron_mass / (electron_mass + hole_mass)
         self.g_e, self.g_h = electron_degeneracy, hole_degeneracy
         self.electron_set, self.hole_set = electron_set, hole_set
-        donors = np.asarray(donor_density, dtype=float) * self.volume
-        acceptors = np.asarray(acceptor_density, dtype=float) * self.volume
+        donors = asfloat(xp, donor_density) * self.volume
+        acceptors = asfloat(xp, acceptor_density) * self.volume
         dopants = donors + acceptors
         t3 = t * t * t
         u = dopants * dopants / t3
-        screening = np.sqrt(t * dopants / (2.0 * np.pi))
-        log_screening = np.log1p(np.sqrt(dopants) / t)
+        screening = xp.sqrt(t * dopants / (2.0 * math.pi))
+        root_dopants = xp.sqrt(dopants)
+        log_screening = xp.log1p(root_dopants / t)
         ions_p = self.alpha_e * donors + self.alpha_h * acceptors
-        with np.errstate(divide="ignore"):
-            log_ions_p = np.log(ions_p)
-        ions_p34 = np.exp(0.75 * log_ions_p)
+        with errstate(xp, divide="ignore"):
+            log_ions_p = xp.log(ions_p)
+        ions_p34 = xp.exp(0.75 * log_ions_p)
         ionic_top = dopants * (1.0 + u)
+        present = dopants > 0
+        zero = zeros_like(xp, dopants)
 
         def ionic(parameters):
             _, _, _, _, h, j, k, q = parameters
-            with np.errstate(invalid="ignore", divide="ignore"):
-                value = -ionic_top / (screening * (1.0 + h * log_screening)
-                                      + j * u * ions_p34 * (1.0 + k * np.exp(q * log_ions_p)))
-            return np.where(dopants > 0, value, 0.0)
+            with errstate(xp, invalid="ignore", divide="ignore"):
+                power_q = xp.exp(q * log_ions_p)
+                lattice = screening * (1.0 + h * log_screening)
+                impurity = j * u * ions_p34 * (1.0 + k * power_q)
+                bottom = lattice + impurity
+                value = -ionic_top / bottom
+            value = xp.where(present, value, zero)
+            if not derivatives:
+                return value, None
+            # I = -top / bottom; dI = -(d top + I d bottom) / bottom, for v = Ns, Np, t
+            with errstate(xp, invalid="ignore", divide="ignore"):
+                ratio = root_dopants / t
+                d_lattice_ns = (screening / (2.0 * dopants) * (1.0 + h * log_screening)
+                                + screening * h * ratio / (2.0 * dopants * (1.0 + ratio)))
+                d_lattice_t = (screening / (2.0 * t) * (1.0 + h * log_screening)
+                               - screening * h * ratio / (t * (1.0 + ratio)))
+                d_impurity_ns = impurity * 2.0 / dopants
+                d_impurity_np = impurity * (0.75 + k * q * power_q / (1.0 + k * power_q)) \
+                    / ions_p
+                d_impurity_t = -3.0 * impurity / t
+                d_bottom_ns = d_lattice_ns + d_impurity_ns
+                d_ns = -((1.0 + 3.0 * u) + value * d_bottom_ns) / bottom
+                d_np = -(value * d_impurity_np) / bottom
+                d_t = -((-3.0 * dopants * u / t) + value * (d_lattice_t + d_impurity_t)) / bottom
+            d_donor = xp.where(present, d_ns + self.alpha_e * d_np, zero)
+            d_acceptor = xp.where(present, d_ns + self.alpha_h * d_np, zero)
+            return value, (xp.where(present, d_t, zero), d_donor, d_acceptor)
 
-        self.ionic_e, self.ionic_h = ionic(electron_set), ionic(hole_set)
+        (self.ionic_e, self.d_ionic_e), (self.ionic_h, self.d_ionic_h) = (
+            ionic(electron_set), ionic(hole_set))
         t2 = t * t
         self.t2, self.t3 = t2, t3
-        self.t52 = t2 * np.sqrt(t)
+        self.t52 = t2 * xp.sqrt(t)
 
     def __call__(self, electron_density, hole_density):
-        n = np.asarray(electron_density, dtype=float) * self.volume
-        p = np.asarray(hole_density, dtype=float) * self.volume
+        xp = self.xp
+        n = asfloat(xp, electron_density) * self.volume
+        p = asfloat(xp, hole_density) * self.volume
         t, t2 = self.t, self.t2
         ns = n + p
-        sqrt_ns = np.sqrt(ns)
-        with np.errstate(divide="ignore"):
-            log_np = np.log(self.alpha_e * n + self.alpha_h * p)
-        four_pi_cubed_ns2 = (4.0 * np.pi) ** 3 * ns * ns
-        common_top = np.sqrt(8.0 * np.pi) * sqrt_ns * self.t52
+        sqrt_ns = xp.sqrt(ns)
+        with errstate(xp, divide="ignore"):
+            log_np = xp.log(self.alpha_e * n + self.alpha_h * p)
+        four_pi_cubed_ns2 = (4.0 * math.pi) ** 3 * ns * ns
+        common_top = _ROOT_8PI * sqrt_ns * self.t52
         common_bottom = four_pi_cubed_ns2 + self.t3 + 40.0 * ns * sqrt_ns * t
 
         def shift(n_a, g_a, alpha_a, parameters, ionic):
             b, c, d, pa, *_ = parameters
-            exchange = -(four_pi_cubed_ns2 * (np.cbrt((48.0 / (np.pi * g_a)) * n_a)
-                                              + c * np.log1p(d * np.exp(pa * log_np)))
-                         + (8.0 * np.pi * alpha_a / g_a) * n_a * t2 + common_top) \
+            exchange = -(four_pi_cubed_ns2 * (cbrt(xp, (48.0 / (math.pi * g_a)) * n_a)
+                                              + c * xp.log1p(d * xp.exp(pa * log_np)))
+                         + (8.0 * math.pi * alpha_a / g_a) * n_a * t2 + common_top) \
                 / (common_bottom + b * sqrt_ns * t2)
             return -(exchange + ionic) * self.rydberg
 
         return (shift(n, self.g_e, self.alpha_e, self.electron_set, self.ionic_e),
                 shift(p, self.g_h, self.alpha_h, self.hole_set, self.ionic_h))
+
+    def with_derivatives(self, electron_density, hole_density):
+        """The shifts (as :meth:`__call__`) and their partial derivatives with respect to
+        temperature (eV/K) and the four densities (eV cm^3)."""
+        xp = self.xp
+        volume, rydberg = self.volume, self.rydberg
+        n = asfloat(xp, electron_density) * volume
+        p = asfloat(xp, hole_density) * volume
+        t, t2 = self.t, self.t2
+        ns = n + p
+        sqrt_ns = xp.sqrt(ns)
+        m = self.alpha_e * n + self.alpha_h * p
+        with errstate(xp, divide="ignore"):
+            log_np = xp.log(m)
+        four_pi_cubed_ns2 = (4.0 * math.pi) ** 3 * ns * ns
+        common_top = _ROOT_8PI * sqrt_ns * self.t52
+        common_bottom = four_pi_cubed_ns2 + self.t3 + 40.0 * ns * sqrt_ns * t
+        with errstate(xp, divide="ignore", invalid="ignore"):
+            d_f = 2.0 * (4.0 * math.pi) ** 3 * ns                   # dF/dns
+            d_top_ns = _ROOT_8PI * self.t52 / (2.0 * sqrt_ns)       # d common_top/dns
+            d_top_t = 2.5 * common_top / t
+            d_bottom_ns = d_f + 60.0 * sqrt_ns * t
+            d_bottom_t = 3.0 * t2 + 40.0 * ns * sqrt_ns
+        d_t_dtemperature = BOLTZMANN_EV / rydberg
+
+        def shift(n_a, g_a, alpha_a, parameters, ionic, d_ionic, own):
+            b, c, d, pa, *_ = parameters
+            with errstate(xp, divide="ignore", invalid="ignore"):
+                cube = cbrt(xp, (48.0 / (math.pi * g_a)) * n_a)
+                w = d * xp.exp(pa * log_np)
+                log_term = xp.log1p(w)
+                k_a = 8.0 * math.pi * alpha_a / g_a
+                top = (four_pi_cubed_ns2 * (cube + c * log_term) + k_a * n_a * t2
+                       + common_top)
+                bottom = common_bottom + b * sqrt_ns * t2
+                exchange = -top / bottom
+                value = -(exchange + ionic) * rydberg
+                # exchange X = -top/bottom: dX = -(d top + X d bottom) / bottom
+                d_cube = cube / (3.0 * n_a)                          # d cube / d n_a
+                d_log_m = c * pa * w / ((1.0 + w) * m)               # c dL/dm
+                mixed = d_f * (cube + c * log_term) + d_top_ns
+                d_bottom = d_bottom_ns + b * t2 / (2.0 * sqrt_ns)
+                partial = []
+                for carrier, alpha in ((0, self.alpha_e), (1, self.alpha_h)):
+                    d_top = mixed + four_pi_cubed_ns2 * alpha * d_log_m
+                    if carrier == own:
+                        d_top = d_top + four_pi_cubed_ns2 * d_cube + k_a * t2
+                    partial.append(-(d_top + exchange * d_bottom) / bottom)
+                d_top_time = 2.0 * k_a * n_a * t + d_top_t
+                d_time = -(d_top_time + exchange * (d_bottom_t + 2.0 * b * sqrt_ns * t)) / bottom
+            d_ionic_t, d_ionic_nd, d_ionic_na = d_ionic
+            scale = -rydberg * volume
+            return value, {
+                "temperature": -rydberg * d_t_dtemperature * (d_time + d_ionic_t),
+                "donor_density": scale * d_ionic_nd,
+                "acceptor_density": scale * d_ionic_na,
+                "electron_density": scale * partial[0],
+                "hole_density": scale * partial[1]}
+
+        ec, d_ec = shift(n, self.g_e, self.alpha_e, self.electron_set, self.ionic_e,
+                         self.d_ionic_e, 0)
+        ev, d_ev = shift(p, self.g_h, self.alpha_h, self.hole_set, self.ionic_h,
+                         self.d_ionic_h, 1)
+        return (ec, ev), {name: (d_ec[name], d_ev[name]) for name in d_ec}
+
+
+_ROOT_8PI = math.sqrt(8.0 * math.pi)

@@ -25,7 +25,8 @@ Every kernel takes ``part="total"`` (Auger + radiative), ``"auger"`` or
 
 import numpy as np
 
-from ._spec import kernel
+from ._spec import derivatives_of, kernel
+from ._xp import asfloat, errstate, namespace, power
 
 PARTS = ("total", "auger", "radiative")
 
@@ -33,9 +34,22 @@ _INPUTS = {"temperature": "K", "equilibrium_electron_density": "cm^-3",
            "equilibrium_hole_density": "cm^-3", "excess_density": "cm^-3"}
 
 
-def _lifetime(shape, n0, p0, dn, auger, radiative, part):
+def _coefficient(auger, radiative, part):
+    if part == "total":
+        return auger + radiative
+    if part == "auger":
+        return auger
+    if part == "radiative":
+        return radiative
+    raise ValueError(f"part must be one of {', '.join(PARTS)}, got {part!r}")
+
+
+def _lifetime(shape, n0, p0, dn, auger, radiative, part, xp=np):
     """1 / [(n0 + p0 + dn) x coefficient] of the part asked for, with the shape of all
     inputs together (``auger`` may be a fresh array: it is reused in place)."""
+    if xp is not np:  # the same arithmetic, without numpy's in-place outputs
+        result = 1.0 / ((n0 + p0 + dn) * _coefficient(auger, radiative, part))
+        return xp.broadcast_to(result, shape) if tuple(result.shape) != shape else result
     if part == "total":
         coefficient = np.add(auger, radiative, out=auger if _owned(auger, shape) else None)
     elif part == "auger":
@@ -58,13 +72,35 @@ def _owned(array, shape) -> bool:
 
 
 def _arrays(*values):
-    return tuple(np.asarray(v, dtype=float) for v in values)
+    xp = namespace(*values)
+    return (xp, *(asfloat(xp, v) for v in values))
 
 
-def _power(density, exponent):
+def _shape(*arrays):
+    return tuple(np.broadcast_shapes(*(tuple(a.shape) for a in arrays)))
+
+
+def _power(xp, density, exponent):
     """density^exponent for densities in cm^-3 (np.power: on this machine kind about
     twice as fast as exp(exponent log x))."""
-    return np.power(density, exponent)
+    return power(xp, density, exponent)
+
+
+def _lifetime_derivatives(xp, shape, n0, p0, dn, auger, radiative, d_auger, d_radiative,
+                          part):
+    """tau = 1/(S K) with S = n0 + p0 + dn and K the part's coefficient:
+    ``d tau = -tau (dS/S + dK/K)``; ``d_auger``, ``d_radiative``: input -> partial."""
+    coefficient = _coefficient(auger, radiative, part)
+    total = n0 + p0 + dn
+    value = 1.0 / (total * coefficient)
+    zero = 0.0 * value
+    partials = {}
+    with errstate(xp, invalid="ignore", divide="ignore"):
+        for name in _INPUTS:
+            d_k = _coefficient(d_auger.get(name, zero), d_radiative.get(name, zero), part)
+            d_s = 0.0 if name == "temperature" else 1.0 / total
+            partials[name] = xp.broadcast_to(-value * (d_s + d_k / coefficient), shape)
+    return xp.broadcast_to(value, shape), partials
 
 
 @kernel(inputs=_INPUTS, output="s",
@@ -72,7 +108,7 @@ def _power(density, exponent):
                       "injection_coefficient": "cm^3/s", "injection_exponent": "1",
                       "eeh_enhancement": "1", "eeh_density": "cm^-3", "eeh_exponent": "1",
                       "ehh_enhancement": "1", "ehh_density": "cm^-3", "ehh_exponent": "1",
-                      "radiative_coefficient": "cm^3/s"})
+                      "radiative_coefficient": "cm^3/s"}, array_api=True)
 def richter(temperature, equilibrium_electron_density, equilibrium_hole_density,
             excess_density, *, electron_coefficient, hole_coefficient,
             injection_coefficient, injection_exponent, eeh_enhancement, eeh_density,
@@ -100,21 +136,54 @@ def richter(temperature, equilibrium_electron_density, equilibrium_hole_density,
     -------
     lifetime, s
     """
-    t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
-                            equilibrium_hole_density, excess_density)
-    shape = np.broadcast_shapes(t.shape, n0.shape, p0.shape, dn.shape)
-    g_eeh = 1.0 + eeh_enhancement * (1.0 - np.tanh(_power(n0 / eeh_density, eeh_exponent)))
-    g_ehh = 1.0 + ehh_enhancement * (1.0 - np.tanh(_power(p0 / ehh_density, ehh_exponent)))
+    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
+                                equilibrium_hole_density, excess_density)
+    shape = _shape(t, n0, p0, dn)
+    g_eeh = 1.0 + eeh_enhancement * (1.0 - xp.tanh(_power(xp, n0 / eeh_density,
+                                                          eeh_exponent)))
+    g_ehh = 1.0 + ehh_enhancement * (1.0 - xp.tanh(_power(xp, p0 / ehh_density,
+                                                          ehh_exponent)))
     auger = (electron_coefficient * g_eeh * n0 + hole_coefficient * g_ehh * p0
-             + injection_coefficient * _power(dn, injection_exponent))
-    return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part)
+             + injection_coefficient * _power(xp, dn, injection_exponent))
+    return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part, xp)
+
+
+@derivatives_of(richter)
+def richter_derivatives(temperature, equilibrium_electron_density, equilibrium_hole_density,
+                        excess_density, *, electron_coefficient, hole_coefficient,
+                        injection_coefficient, injection_exponent, eeh_enhancement,
+                        eeh_density, eeh_exponent, ehh_enhancement, ehh_density,
+                        ehh_exponent, radiative_coefficient, part="total"):
+    """The lifetime and its partials: with ``y = (n0/N_eeh)^x``,
+    ``dA/dn0 = C_n [g_eeh - a_eeh x y (1 - tanh^2 y)]`` (likewise p0),
+    ``dA/ddn = C_dn gamma dn^(gamma - 1)`` (infinite at dn = 0); T does not enter."""
+    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
+                                equilibrium_hole_density, excess_density)
+    shape = _shape(t, n0, p0, dn)
+    y_e = _power(xp, n0 / eeh_density, eeh_exponent)
+    y_h = _power(xp, p0 / ehh_density, ehh_exponent)
+    tanh_e, tanh_h = xp.tanh(y_e), xp.tanh(y_h)
+    g_eeh = 1.0 + eeh_enhancement * (1.0 - tanh_e)
+    g_ehh = 1.0 + ehh_enhancement * (1.0 - tanh_h)
+    auger = (electron_coefficient * g_eeh * n0 + hole_coefficient * g_ehh * p0
+             + injection_coefficient * _power(xp, dn, injection_exponent))
+    with errstate(xp, divide="ignore"):
+        d_auger = {
+            "equilibrium_electron_density": electron_coefficient * (
+                g_eeh - eeh_enhancement * eeh_exponent * y_e * (1.0 - tanh_e * tanh_e)),
+            "equilibrium_hole_density": hole_coefficient * (
+                g_ehh - ehh_enhancement * ehh_exponent * y_h * (1.0 - tanh_h * tanh_h)),
+            "excess_density": injection_coefficient * injection_exponent * _power(
+                xp, dn, injection_exponent - 1.0)}
+    return _lifetime_derivatives(xp, shape, n0, p0, dn, auger, float(radiative_coefficient),
+                                 d_auger, {}, part)
 
 
 @kernel(inputs=_INPUTS, output="s",
         coefficients={"electron_coefficient": "cm^3/s", "electron_exponent": "1",
                       "hole_coefficient": "cm^3/s", "hole_exponent": "1",
                       "injection_coefficient": "cm^3/s", "injection_exponent": "1",
-                      "radiative_coefficient": "cm^3/s"})
+                      "radiative_coefficient": "cm^3/s"}, array_api=True)
 def kerr_cuevas(temperature, equilibrium_electron_density, equilibrium_hole_density,
                 excess_density, *, electron_coefficient, electron_exponent,
                 hole_coefficient, hole_exponent, injection_coefficient,
@@ -137,18 +206,43 @@ def kerr_cuevas(temperature, equilibrium_electron_density, equilibrium_hole_dens
     -------
     lifetime, s
     """
-    t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
-                            equilibrium_hole_density, excess_density)
-    shape = np.broadcast_shapes(t.shape, n0.shape, p0.shape, dn.shape)
-    auger = electron_coefficient * _power(n0, electron_exponent)
-    auger = auger + hole_coefficient * _power(p0, hole_exponent)
-    auger = auger + injection_coefficient * _power(dn, injection_exponent)
-    return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part)
+    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
+                                equilibrium_hole_density, excess_density)
+    shape = _shape(t, n0, p0, dn)
+    auger = electron_coefficient * _power(xp, n0, electron_exponent)
+    auger = auger + hole_coefficient * _power(xp, p0, hole_exponent)
+    auger = auger + injection_coefficient * _power(xp, dn, injection_exponent)
+    return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part, xp)
+
+
+@derivatives_of(kerr_cuevas)
+def kerr_cuevas_derivatives(temperature, equilibrium_electron_density,
+                            equilibrium_hole_density, excess_density, *, electron_coefficient,
+                            electron_exponent, hole_coefficient, hole_exponent,
+                            injection_coefficient, injection_exponent,
+                            radiative_coefficient, part="total"):
+    """The lifetime and its partials (``dA/dn0 = c_n a_n n0^(a_n - 1)`` ...; T does not
+    enter)."""
+    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
+                                equilibrium_hole_density, excess_density)
+    shape = _shape(t, n0, p0, dn)
+    auger = electron_coefficient * _power(xp, n0, electron_exponent)
+    auger = auger + hole_coefficient * _power(xp, p0, hole_exponent)
+    auger = auger + injection_coefficient * _power(xp, dn, injection_exponent)
+    with errstate(xp, divide="ignore"):
+        d_auger = {"equilibrium_electron_density": electron_coefficient * electron_exponent
+                   * _power(xp, n0, electron_exponent - 1.0),
+                   "equilibrium_hole_density": hole_coefficient * hole_exponent
+                   * _power(xp, p0, hole_exponent - 1.0),
+                   "excess_density": injection_coefficient * injection_exponent
+                   * _power(xp, dn, injection_exponent - 1.0)}
+    return _lifetime_derivatives(xp, shape, n0, p0, dn, auger, float(radiative_coefficient),
+                                 d_auger, {}, part)
 
 
 @kernel(inputs=_INPUTS, output="s",
         coefficients={"electron_coefficient": "cm^6/s", "hole_coefficient": "cm^6/s"},
-        requires=("radiative_coefficient",))
+        requires=("radiative_coefficient",), array_api=True)
 def constant_coefficients(temperature, equilibrium_electron_density,
                           equilibrium_hole_density, excess_density, *,
                           electron_coefficient, hole_coefficient, radiative_coefficient,
@@ -171,9 +265,29 @@ def constant_coefficients(temperature, equilibrium_electron_density,
     -------
     lifetime, s
     """
-    t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
-                            equilibrium_hole_density, excess_density)
-    shape = np.broadcast_shapes(t.shape, n0.shape, p0.shape, dn.shape)
+    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
+                                equilibrium_hole_density, excess_density)
+    shape = _shape(t, n0, p0, dn)
     auger = electron_coefficient * (n0 + dn) + hole_coefficient * (p0 + dn)
-    radiative = np.asarray(radiative_coefficient(temperature=t), dtype=float)
-    return _lifetime(shape, n0, p0, dn, auger, radiative, part)
+    radiative = asfloat(xp, radiative_coefficient(temperature=t))
+    return _lifetime(shape, n0, p0, dn, auger, radiative, part, xp)
+
+
+@derivatives_of(constant_coefficients)
+def constant_coefficients_derivatives(temperature, equilibrium_electron_density,
+                                      equilibrium_hole_density, excess_density, *,
+                                      electron_coefficient, hole_coefficient,
+                                      radiative_coefficient, part="total"):
+    """The lifetime and its partials: ``dA/dn0 = C_n``, ``dA/dp0 = C_p``,
+    ``dA/ddn = C_n + C_p`` and ``dR/dT = dB/dT`` from the radiative model."""
+    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
+                                equilibrium_hole_density, excess_density)
+    shape = _shape(t, n0, p0, dn)
+    auger = electron_coefficient * (n0 + dn) + hole_coefficient * (p0 + dn)
+    radiative, slopes = radiative_coefficient.derivative(temperature=t)
+    radiative = asfloat(xp, radiative)
+    d_auger = {"equilibrium_electron_density": electron_coefficient + 0.0 * auger,
+               "equilibrium_hole_density": hole_coefficient + 0.0 * auger,
+               "excess_density": (electron_coefficient + hole_coefficient) + 0.0 * auger}
+    return _lifetime_derivatives(xp, shape, n0, p0, dn, auger, radiative, d_auger,
+                                 {"temperature": asfloat(xp, slopes["temperature"])}, part)

@@ -17,13 +17,14 @@ same expression.
 import numpy as np
 
 from ._spec import kernel
+from ._xp import asfloat, errstate, namespace, zeros_like
 from .constants import BOLTZMANN_EV
 
 
 @kernel(inputs={"dopant_density": "cm^-3"}, output=("eV", "1"),
         coefficients={"energy_at_low_density": "eV", "energy_density": "cm^-3",
                       "energy_exponent": "1", "merging_density": "cm^-3",
-                      "merging_exponent": "1", "degeneracy": "1"})
+                      "merging_exponent": "1", "degeneracy": "1"}, array_api=True)
 def lowered_level(dopant_density, *, energy_at_low_density, energy_density,
                   energy_exponent, merging_density, merging_exponent, degeneracy):
     """A level whose energy falls with density and whose states merge into the band.
@@ -42,17 +43,18 @@ def lowered_level(dopant_density, *, energy_at_low_density, energy_density,
     -------
     (ionisation energy [eV], localised share [1])
     """
-    n = np.asarray(dopant_density, dtype=float)
-    with np.errstate(divide="ignore"):  # N = 0: log -> -inf, power -> 0
-        log_n = np.log(n)
-    energy = energy_at_low_density / (1.0 + np.exp(energy_exponent
-                                                   * (log_n - np.log(energy_density))))
-    share = 1.0 / (1.0 + np.exp(merging_exponent * (log_n - np.log(merging_density))))
+    xp = namespace(dopant_density)
+    n = asfloat(xp, dopant_density)
+    with errstate(xp, divide="ignore"):  # N = 0: log -> -inf, power -> 0
+        log_n = xp.log(n)
+    energy = energy_at_low_density / (1.0 + xp.exp(energy_exponent
+                                                   * (log_n - float(np.log(energy_density)))))
+    share = 1.0 / (1.0 + xp.exp(merging_exponent * (log_n - float(np.log(merging_density)))))
     return energy, share
 
 
 @kernel(inputs={"dopant_density": "cm^-3"}, output=("eV", "1"),
-        coefficients={"energy": "eV", "degeneracy": "1"})
+        coefficients={"energy": "eV", "degeneracy": "1"}, array_api=True)
 def fixed_level(dopant_density, *, energy, degeneracy):
     """A level at a fixed ionisation energy whose states all stay localised (``b = 1``).
 
@@ -65,8 +67,9 @@ def fixed_level(dopant_density, *, energy, degeneracy):
     -------
     (ionisation energy [eV], localised share [1])
     """
-    shape = np.shape(dopant_density)
-    return np.full(shape, float(energy)), np.ones(shape)
+    xp = namespace(dopant_density)
+    zero = zeros_like(xp, asfloat(xp, dopant_density))
+    return zero + float(energy), zero + 1.0
 
 
 def ionised_fraction(reduced_fermi_level, temperature, energy, share, degeneracy):

@@ -8,12 +8,12 @@ constant carried inside some intrinsic-lifetime parameterisations. Each model
 file says which one it holds.
 """
 
-import numpy as np
+from ._spec import derivatives_of, kernel
+from ._xp import asfloat, namespace, zeros_like
 
-from ._spec import kernel
 
-
-@kernel(inputs={"temperature": "K"}, output="cm^3/s", coefficients={"coefficient": "cm^3/s"})
+@kernel(inputs={"temperature": "K"}, output="cm^3/s", coefficients={"coefficient": "cm^3/s"},
+        array_api=True)
 def constant(temperature, *, coefficient):
     """A coefficient that does not vary inside the model's temperature range.
 
@@ -26,4 +26,13 @@ def constant(temperature, *, coefficient):
     -------
     B, cm^3/s, with the shape of ``temperature``
     """
-    return np.full(np.shape(temperature), float(coefficient))
+    xp = namespace(temperature)
+    return zeros_like(xp, asfloat(xp, temperature)) + float(coefficient)
+
+
+@derivatives_of(constant)
+def constant_derivatives(temperature, *, coefficient):
+    """B and ``dB/dT = 0``."""
+    xp = namespace(temperature)
+    zero = zeros_like(xp, asfloat(xp, temperature))
+    return zero + float(coefficient), {"temperature": zero}

@@ -20,6 +20,7 @@ capture cross-section that may vary with temperature, and the capture times.
 import numpy as np
 
 from ._spec import kernel
+from ._xp import asfloat, namespace
 from .constants import BOLTZMANN_EV
 
 REFERENCES = ("conduction", "valence", "intrinsic")
@@ -29,7 +30,7 @@ LAWS = ("constant", "power", "activated")
 @kernel(inputs={"excess_density": "cm^-3", "equilibrium_electron_density": "cm^-3",
                 "equilibrium_hole_density": "cm^-3", "electron_emission_density": "cm^-3",
                 "hole_emission_density": "cm^-3", "electron_capture_time": "s",
-                "hole_capture_time": "s"}, output="s")
+                "hole_capture_time": "s"}, output="s", array_api=True)
 def single_level(excess_density, equilibrium_electron_density, equilibrium_hole_density,
                  electron_emission_density, hole_emission_density, electron_capture_time,
                  hole_capture_time):
@@ -47,9 +48,12 @@ def single_level(excess_density, equilibrium_electron_density, equilibrium_hole_
     -------
     lifetime, s
     """
-    dn = np.asarray(excess_density, dtype=float)
-    n0 = np.asarray(equilibrium_electron_density, dtype=float)
-    p0 = np.asarray(equilibrium_hole_density, dtype=float)
+    xp = namespace(excess_density, equilibrium_electron_density, equilibrium_hole_density,
+                   electron_emission_density, hole_emission_density, electron_capture_time,
+                   hole_capture_time)
+    dn = asfloat(xp, excess_density)
+    n0 = asfloat(xp, equilibrium_electron_density)
+    p0 = asfloat(xp, equilibrium_hole_density)
     return ((hole_capture_time * (n0 + electron_emission_density + dn)
              + electron_capture_time * (p0 + hole_emission_density + dn))
             / (n0 + p0 + dn))

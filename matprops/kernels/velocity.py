@@ -7,13 +7,14 @@ mobility in cm^2/(V s).
 import numpy as np
 
 from ._spec import kernel
+from ._xp import asfloat, asin, asinh, errstate, namespace, zeros_like
 from .band_gap import varshni
 from .constants import BOLTZMANN_J, ELECTRON_MASS_KG
 
 __all__ = ["field_dependent_mobility", "mean_thermal_speed", "mean_speed_mass",
            "power_of_temperature"]
 
-_MEAN_SPEED_CM = np.sqrt(8.0 * BOLTZMANN_J / (np.pi * ELECTRON_MASS_KG)) * 100.0
+_MEAN_SPEED_CM = float(np.sqrt(8.0 * BOLTZMANN_J / (np.pi * ELECTRON_MASS_KG)) * 100.0)
 
 
 def mean_speed_mass(longitudinal_mass, transverse_mass):
@@ -30,21 +31,24 @@ def mean_speed_mass(longitudinal_mass, transverse_mass):
     ``m = m_l = m_t`` for a sphere. (Derived here; the same expression gives
     Green's 1990 electron thermal-velocity mass.)
     """
-    m_l = np.asarray(longitudinal_mass, dtype=float)
-    m_t = np.asarray(transverse_mass, dtype=float)
+    xp = namespace(longitudinal_mass, transverse_mass)
+    m_l = asfloat(xp, longitudinal_mass)
+    m_t = asfloat(xp, transverse_mass)
     ratio = m_t / m_l
-    prolate = np.sqrt(np.clip(1.0 - ratio, 0.0, None))
-    oblate = np.sqrt(np.clip(ratio - 1.0, 0.0, None))
-    with np.errstate(invalid="ignore", divide="ignore"):
-        g = np.where(prolate > 1e-8, np.arcsin(prolate) / prolate,
-                     np.where(oblate > 1e-8, np.arcsinh(oblate) / oblate, 1.0))
-    return 4.0 * m_l / (1.0 + np.sqrt(m_l / m_t) * g) ** 2
+    prolate = xp.sqrt(xp.maximum(1.0 - ratio, 0.0))
+    oblate = xp.sqrt(xp.maximum(ratio - 1.0, 0.0))
+    with errstate(xp, invalid="ignore", divide="ignore"):
+        one = zeros_like(xp, oblate) + 1.0
+        g = xp.where(prolate > 1e-8, asin(xp, prolate) / xp.where(prolate > 1e-8, prolate, one),
+                     xp.where(oblate > 1e-8, asinh(xp, oblate) / xp.where(oblate > 1e-8, oblate,
+                                                                         one), one))
+    return 4.0 * m_l / (1.0 + xp.sqrt(m_l / m_t) * g) ** 2
 
 
 @kernel(inputs={"temperature": "K"}, output="cm/s",
         coefficients={"longitudinal_mass": "1", "transverse_mass_at_zero": "1",
                       "transverse_mass_gap_scaling": "1", "gap_at_zero": "eV",
-                      "gap_alpha": "eV/K", "gap_beta": "K"})
+                      "gap_alpha": "eV/K", "gap_beta": "K"}, array_api=True)
 def mean_thermal_speed(temperature, *, longitudinal_mass, transverse_mass_at_zero,
                        transverse_mass_gap_scaling, gap_at_zero, gap_alpha, gap_beta):
     """Mean thermal speed ``v_th = sqrt(8 k T / (pi m_th))`` of carriers in one valley.
@@ -74,18 +78,20 @@ def mean_thermal_speed(temperature, *, longitudinal_mass, transverse_mass_at_zer
     ----------
     M. A. Green, J. Appl. Phys. 67, 2944 (1990), doi:10.1063/1.345414.
     """
-    t = np.asarray(temperature, dtype=float)
+    xp = namespace(temperature)
+    t = asfloat(xp, temperature)
     if transverse_mass_gap_scaling:
         gap = varshni(t, gap_at_zero=gap_at_zero, alpha=gap_alpha, beta=gap_beta)
         m_t = transverse_mass_at_zero * (gap_at_zero / gap) ** transverse_mass_gap_scaling
     else:
-        m_t = np.full_like(t, transverse_mass_at_zero)
+        m_t = zeros_like(xp, t) + transverse_mass_at_zero
     mass = mean_speed_mass(longitudinal_mass, m_t)
-    return _MEAN_SPEED_CM * np.sqrt(t / mass)
+    return _MEAN_SPEED_CM * xp.sqrt(t / mass)
 
 
 @kernel(inputs={"temperature": "K"}, output="cm/s",
-        coefficients={"prefactor": "cm/s", "exponent": "1", "reference_temperature": "K"})
+        coefficients={"prefactor": "cm/s", "exponent": "1", "reference_temperature": "K"},
+        array_api=True)
 def power_of_temperature(temperature, *, prefactor, exponent, reference_temperature):
     """``v = A (T / T_ref)^gamma`` (Jacoboni et al. write ``A T^gamma``, T in K: T_ref = 1 K).
 
@@ -98,15 +104,16 @@ def power_of_temperature(temperature, *, prefactor, exponent, reference_temperat
     -------
     cm/s
     """
-    t = np.asarray(temperature, dtype=float)
-    return prefactor * np.exp(exponent * np.log(t / reference_temperature))
+    xp = namespace(temperature)
+    t = asfloat(xp, temperature)
+    return prefactor * xp.exp(exponent * xp.log(t / reference_temperature))
 
 
 @kernel(inputs={"field": "V/cm", "temperature": "K", "low_field_mobility": "cm^2/(V*s)",
                 "saturation_velocity": "cm/s"},
         output="cm^2/(V*s)",
         coefficients={"beta_prefactor": "1", "beta_exponent": "1",
-                      "reference_temperature": "K"})
+                      "reference_temperature": "K"}, array_api=True)
 def field_dependent_mobility(field, temperature, low_field_mobility, saturation_velocity, *,
                              beta_prefactor, beta_exponent, reference_temperature):
     """Mobility in a field of the Caughey-Thomas form, with a temperature-dependent beta.
@@ -128,10 +135,11 @@ def field_dependent_mobility(field, temperature, low_field_mobility, saturation_
     -------
     cm^2/(V s)
     """
-    t = np.asarray(temperature, dtype=float)
-    mu0 = np.asarray(low_field_mobility, dtype=float)
-    beta = beta_prefactor * np.exp(beta_exponent * np.log(t / reference_temperature))
-    x = mu0 * np.asarray(field, dtype=float) / np.asarray(saturation_velocity, dtype=float)
-    with np.errstate(divide="ignore"):
-        log_x = np.log(x)
-    return mu0 * np.exp(-np.log1p(np.exp(beta * log_x)) / beta)
+    xp = namespace(field, temperature, low_field_mobility, saturation_velocity)
+    t = asfloat(xp, temperature)
+    mu0 = asfloat(xp, low_field_mobility)
+    beta = beta_prefactor * xp.exp(beta_exponent * xp.log(t / reference_temperature))
+    x = mu0 * asfloat(xp, field) / asfloat(xp, saturation_velocity)
+    with errstate(xp, divide="ignore"):
+        log_x = xp.log(x)
+    return mu0 * xp.exp(-xp.log1p(xp.exp(beta * log_x)) / beta)

@@ -26,6 +26,7 @@ import numpy as np
 from ..errors import InputError, ValidityError, ValidityWarning, warn
 from ..kernels import equilibrium as equilibrium_kernel
 from ..kernels._blocks import evaluate
+from ..kernels._xp import asfloat, namespace
 from ..kernels.constants import BOLTZMANN_EV
 from ..results import Result
 from ..units import coerce, quantity
@@ -167,11 +168,41 @@ class _Bound:
 
     def effective_intrinsic_density(self, temperature, donor_density, acceptor_density,
                                     electron_density=None, hole_density=None):
+        xp = namespace(temperature, donor_density, acceptor_density, electron_density,
+                       hole_density)
         dec, dev = self.shifts(temperature, donor_density, acceptor_density,
                                electron_density, hole_density)
-        kt = BOLTZMANN_EV * np.asarray(temperature, dtype=float)
-        return (self.ni(temperature=temperature) * self.reference_ratio()
-                * np.exp((dec + dev) / (2.0 * kt)))
+        kt = BOLTZMANN_EV * asfloat(xp, temperature)
+        return (self.ni(temperature=temperature) * float(self.reference_ratio())
+                * xp.exp((dec + dev) / (2.0 * kt)))
+
+    def effective_intrinsic_density_derivatives(self, temperature, donor_density,
+                                                acceptor_density, electron_density=None,
+                                                hole_density=None):
+        """ni_eff and its partials: ``d ln ni_eff = d ln ni + d(dEc + dEv)/2kT`` with
+        ``d/dT`` also taking ``-(dEc + dEv)/2kT^2``."""
+        xp = namespace(temperature, donor_density, acceptor_density, electron_density,
+                       hole_density)
+        t = asfloat(xp, temperature)
+        values = {"temperature": temperature, "donor_density": donor_density,
+                  "acceptor_density": acceptor_density, "electron_density": electron_density,
+                  "hole_density": hole_density}
+        (dec, dev), shifts = self.narrowing.derivative(
+            **{k: values[k] for k in self.narrowing.inputs})
+        ni, slopes = self.ni.derivative(temperature=temperature)
+        kt = BOLTZMANN_EV * t
+        two_kt = 2.0 * kt
+        value = ni * float(self.reference_ratio()) * xp.exp((dec + dev) / two_kt)
+        partials = {}
+        for name, given in values.items():
+            if given is None:
+                continue
+            pair = shifts.get(name)
+            log_slope = 0.0 if pair is None else (pair[0] + pair[1]) / two_kt
+            if name == "temperature":
+                log_slope = log_slope + slopes["temperature"] / ni - (dec + dev) / (two_kt * t)
+            partials[name] = value * log_slope
+        return value, partials
 
 
 class CarrierMethods:
