@@ -3,6 +3,8 @@
 Lengths in cm, mass in g, areal densities in cm^-2.
 """
 
+import functools
+
 import numpy as np
 
 from ._spec import kernel
@@ -45,12 +47,39 @@ def okada_tokumaru(temperature, *, reference_lattice_constant, reference_tempera
     """
     xp = namespace(temperature)
     t = asfloat(xp, temperature)
+    reference = _okada_integral(reference_temperature, c1, c2, c3, onset_temperature)
+    if xp is np and t.ndim:  # the same operations, in place (two arrays)
+        power = np.subtract(t, onset_temperature)
+        power *= -c2
+        np.exp(power, out=power)
+        power /= c2
+        power += t
+        power *= c1
+        square = np.multiply(0.5 * c3, t)
+        square *= t
+        power += square
+        power -= reference
+        np.exp(power, out=power)
+        power *= reference_lattice_constant
+        return power
+    return reference_lattice_constant * xp.exp(
+        _okada_integral(t, c1, c2, c3, onset_temperature, xp.exp) - reference)
 
-    def integral(x, exp):
-        return c1 * (x + exp(-c2 * (x - onset_temperature)) / c2) + 0.5 * c3 * x * x
 
-    reference = float(integral(reference_temperature, np.exp))
-    return reference_lattice_constant * xp.exp(integral(t, xp.exp) - reference)
+okada_tokumaru.block = 1 << 17  # a few operations per point: large blocks
+
+
+def _okada_integral(x, c1, c2, c3, onset_temperature, exp=None):
+    """``F(x) = c1 [x + exp(-c2 (x - T1)) / c2] + c3 x^2 / 2`` (a float for a float x,
+    computed once per set of coefficients)."""
+    if exp is None:
+        return _okada_constant(float(x), c1, c2, c3, onset_temperature)
+    return c1 * (x + exp(-c2 * (x - onset_temperature)) / c2) + 0.5 * c3 * x * x
+
+
+@functools.lru_cache(maxsize=16)
+def _okada_constant(x, c1, c2, c3, onset_temperature):
+    return float(_okada_integral(x, c1, c2, c3, onset_temperature, np.exp))
 
 
 def atomic_density(lattice_constant):

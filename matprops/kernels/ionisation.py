@@ -14,6 +14,8 @@ silicon). :func:`ionised_fraction` evaluates it; the equilibrium solver uses the
 same expression.
 """
 
+import functools
+
 import numpy as np
 
 from ._spec import kernel
@@ -47,10 +49,25 @@ def lowered_level(dopant_density, *, energy_at_low_density, energy_density,
     n = asfloat(xp, dopant_density)
     with errstate(xp, divide="ignore"):  # N = 0: log -> -inf, power -> 0
         log_n = xp.log(n)
+    if xp is np and log_n.ndim:  # the same operations, in place (no temporaries)
+        return (_fraction(log_n, _log(energy_density), energy_exponent, energy_at_low_density),
+                _fraction(log_n, _log(merging_density), merging_exponent, 1.0))
     energy = energy_at_low_density / (1.0 + xp.exp(energy_exponent
-                                                   * (log_n - float(np.log(energy_density)))))
-    share = 1.0 / (1.0 + xp.exp(merging_exponent * (log_n - float(np.log(merging_density)))))
+                                                   * (log_n - _log(energy_density))))
+    share = 1.0 / (1.0 + xp.exp(merging_exponent * (log_n - _log(merging_density))))
     return energy, share
+
+
+def _fraction(log_n, log_reference, exponent, numerator):
+    """``numerator / (1 + exp(exponent (log_n - log_reference)))`` in one array."""
+    result = np.subtract(log_n, log_reference)
+    result *= exponent
+    np.exp(result, out=result)
+    result += 1.0
+    return np.divide(numerator, result, out=result)
+
+
+lowered_level.block = 1 << 17  # a few operations per point: large blocks
 
 
 @kernel(inputs={"dopant_density": "cm^-3"}, output=("eV", "1"),
@@ -68,8 +85,20 @@ def fixed_level(dopant_density, *, energy, degeneracy):
     (ionisation energy [eV], localised share [1])
     """
     xp = namespace(dopant_density)
+    if xp is np:
+        shape = np.shape(dopant_density)
+        return np.full(shape, float(energy)), np.ones(shape)
     zero = zeros_like(xp, asfloat(xp, dopant_density))
     return zero + float(energy), zero + 1.0
+
+
+fixed_level.unblocked = True  # fills its outputs and nothing else: no blocks needed
+
+
+@functools.lru_cache(maxsize=64)
+def _log(value: float) -> float:
+    """numpy's log of a coefficient, as a Python float, computed once."""
+    return float(np.log(value))
 
 
 def ionised_fraction(reduced_fermi_level, temperature, energy, share, degeneracy):

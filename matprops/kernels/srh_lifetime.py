@@ -54,9 +54,27 @@ def single_level(excess_density, equilibrium_electron_density, equilibrium_hole_
     dn = asfloat(xp, excess_density)
     n0 = asfloat(xp, equilibrium_electron_density)
     p0 = asfloat(xp, equilibrium_hole_density)
+    shape = np.broadcast_shapes(*(np.shape(a) for a in (
+        dn, n0, p0, electron_emission_density, hole_emission_density,
+        electron_capture_time, hole_capture_time)))
+    if xp is np and shape:  # the same operations, in place (three arrays, no more)
+        electrons = np.add(n0, electron_emission_density, out=np.empty(shape))
+        electrons += dn
+        electrons *= hole_capture_time
+        holes = np.add(p0, hole_emission_density, out=np.empty(shape))
+        holes += dn
+        holes *= electron_capture_time
+        electrons += holes
+        total = np.add(n0, p0, out=holes)
+        total += dn
+        electrons /= total
+        return electrons
     return ((hole_capture_time * (n0 + electron_emission_density + dn)
              + electron_capture_time * (p0 + hole_emission_density + dn))
             / (n0 + p0 + dn))
+
+
+single_level.block = 1 << 17  # a few operations per point: large blocks
 
 
 def emission_densities(temperature, energy, reference, conduction_states, valence_states,

@@ -36,6 +36,9 @@ def mean_speed_mass(longitudinal_mass, transverse_mass):
     m_t = asfloat(xp, transverse_mass)
     ratio = m_t / m_l
     prolate = xp.sqrt(xp.maximum(1.0 - ratio, 0.0))
+    if xp is np and prolate.size and prolate.min() > 1e-8:
+        # every valley prolate (silicon's electrons): one branch, the same numbers
+        return 4.0 * m_l / (1.0 + np.sqrt(m_l / m_t) * (np.arcsin(prolate) / prolate)) ** 2
     oblate = xp.sqrt(xp.maximum(ratio - 1.0, 0.0))
     with errstate(xp, invalid="ignore", divide="ignore"):
         one = zeros_like(xp, oblate) + 1.0
@@ -83,6 +86,10 @@ def mean_thermal_speed(temperature, *, longitudinal_mass, transverse_mass_at_zer
     if transverse_mass_gap_scaling:
         gap = varshni(t, gap_at_zero=gap_at_zero, alpha=gap_alpha, beta=gap_beta)
         m_t = transverse_mass_at_zero * (gap_at_zero / gap) ** transverse_mass_gap_scaling
+    elif transverse_mass_at_zero == longitudinal_mass:
+        # a spherical band of fixed mass: the mean-speed mass is that mass (exactly
+        # what mean_speed_mass gives, without the arrays)
+        return _MEAN_SPEED_CM * xp.sqrt(t / float(longitudinal_mass))
     else:
         m_t = zeros_like(xp, t) + transverse_mass_at_zero
     mass = mean_speed_mass(longitudinal_mass, m_t)
