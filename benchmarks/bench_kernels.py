@@ -517,6 +517,10 @@ def section_derivatives(si, size):
             if release_model and name not in ("gap_narrowing", "effective_intrinsic_density"):
                 continue
             kernel = material.kernel(name, **fixed)
+            if name == "gap_narrowing":  # the model's own inputs, in its order
+                args = tuple(dict(zip(("temperature", "donor_density", "acceptor_density",
+                                       "electron_density", "hole_density"), doped))[k]
+                             for k in kernel.inputs)
             value, both = compare(lambda: kernel(*args), lambda: kernel.derivatives(*args))
             label = f"{name} ({material.model(name).id if name in material.models else 'derived'})"
             print(f"   {label:48s} value {value / size * 1e9:7.1f} ns/el, value + "

@@ -187,6 +187,11 @@ class BoundKernel:
                 parts += d if isinstance(d, tuple) else (d,)
             return parts
 
+        derivative = getattr(function, "func", function)
+        for attribute in ("block", "unblocked"):  # the derivative kernel's own block size
+            if hasattr(derivative, attribute):
+                setattr(flat, attribute, getattr(derivative, attribute))
+
         if out is not None:
             raise TypeError("derivatives() has no out= (it returns several arrays)")
         parts = evaluate(flat, arguments)
@@ -419,7 +424,7 @@ def _model_checker(models, strict_default=None):
                     model.check(argument, *ranges[argument], strict)
             if model.regions:
                 model.check_regions({k: arrays[k] for k in model.inputs if k in arrays},
-                                    strict)
+                                    strict, ranges)
 
     return check
 

@@ -366,13 +366,16 @@ class Model:
         for component in self.components.values():
             component.check(argument, low, high, strict)
 
-    def check_regions(self, values: Mapping[str, Any], strict: bool = False) -> None:
+    def check_regions(self, values: Mapping[str, Any], strict: bool = False,
+                      ranges: Mapping[str, tuple[float, float]] | None = None) -> None:
         """Warn (or raise) where inputs leave a validity region of several inputs.
 
-        ``values`` maps input names to arrays in kernel units (broadcast together).
+        ``values`` maps input names to arrays in kernel units (broadcast together);
+        ``ranges``, input -> (min, max) where known, spare a pass over the points when
+        the extremes already show every point inside.
         """
         for region in self.regions:
-            message = region.violation(values, f"{self.quantity}/{self.id}")
+            message = region.violation(values, f"{self.quantity}/{self.id}", ranges)
             if message is None:
                 continue
             if strict:

@@ -168,13 +168,14 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
         ``prepared`` maps kernel input names to ``(array, min, max)`` as returned by
         :func:`matprops.units.coerce`; inputs the model does not take are ignored.
         """
-        values = {}
+        values, ranges = {}, {}
         for argument in model.inputs:
             array, low, high = prepared[argument]
             model.check(argument, low, high, self.strict)
             values[argument] = array
+            ranges[argument] = (low, high)
         if model.regions:
-            model.check_regions(values, self.strict)
+            model.check_regions(values, self.strict, ranges)
         return evaluate(model.function or model, values)  # in blocks for large inputs
 
     def _quantity(self, name: str, **arguments):

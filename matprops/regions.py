@@ -63,9 +63,33 @@ class Region:
         bound = self.bound_at(by_value)
         return value > bound if self.limit == "max" else value < bound
 
-    def violation(self, values: Mapping[str, Any], model: str) -> str | None:
-        """A message naming the points of ``values`` outside the region, or None."""
+    def bound_range(self, low: float, high: float) -> tuple[float, float]:
+        """The least and greatest bound for ``by`` anywhere in ``[low, high]`` (the bound
+        is piecewise linear: its extremes lie at the ends or at the points)."""
+        xs, bounds = self._points
+        inside = bounds[(xs > low) & (xs < high)]
+        ends = np.interp([low, high], xs, bounds)
+        candidates = np.concatenate([ends, inside])
+        return float(candidates.min()), float(candidates.max())
+
+    def clearly_inside(self, ranges: Mapping[str, tuple[float, float]]) -> bool:
+        """Whether every point lies inside the region, judged from the inputs' extremes
+        alone: the largest value under the smallest bound (for a maximum)."""
+        if self.argument not in ranges or self.by not in ranges:
+            return False
+        low, high = ranges[self.argument]
+        bound_low, bound_high = self.bound_range(*ranges[self.by])
+        return high <= bound_low if self.limit == "max" else low >= bound_high
+
+    def violation(self, values: Mapping[str, Any], model: str,
+                  ranges: Mapping[str, tuple[float, float]] | None = None) -> str | None:
+        """A message naming the points of ``values`` outside the region, or None.
+
+        ``ranges`` (input -> (min, max)), when known, settle most calls without a pass
+        over the points."""
         if self.argument not in values or self.by not in values:
+            return None
+        if ranges is not None and self.clearly_inside(ranges):
             return None
         if np.ndim(values[self.argument]) == 0 and np.ndim(values[self.by]) == 0:
             # one point (the scalar fast path): no arrays to broadcast

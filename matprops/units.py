@@ -289,8 +289,7 @@ def check_values(magnitude: np.ndarray, argument: str, units: str,
     """Raise InputError for NaN, infinities, and values breaking ``requirement``."""
     if magnitude.size == 0:
         return np.inf, -np.inf
-    low = float(magnitude.min())
-    high = float(magnitude.max())
+    low, high = extremes(magnitude)
     if not (np.isfinite(low) and np.isfinite(high)):  # NaN propagates into min/max
         raise InputError(argument, f"finite numbers in {units}",
                          _describe(magnitude))
@@ -301,12 +300,32 @@ def check_values(magnitude: np.ndarray, argument: str, units: str,
     return low, high
 
 
+_EXTREMES_BLOCK = 1 << 15
+
+
+def extremes(array: np.ndarray) -> tuple[float, float]:
+    """(min, max) of an array in one pass over memory: a large array is read block by
+    block, and each block's maximum is taken while the block is still in cache (NaN
+    propagates into both, as with min and max)."""
+    if array.size <= 4 * _EXTREMES_BLOCK or not array.flags.c_contiguous:
+        return float(array.min()), float(array.max())
+    flat = array.reshape(-1)
+    low, high = np.inf, -np.inf
+    for start in range(0, flat.size, _EXTREMES_BLOCK):
+        block = flat[start:start + _EXTREMES_BLOCK]
+        block_low, block_high = float(block.min()), float(block.max())
+        if block_low != block_low:  # NaN (Python's min would drop it)
+            return np.nan, np.nan
+        low, high = min(low, block_low), max(high, block_high)
+    return low, high
+
+
 def quantity(magnitude, units: str):
     """Attach units to a kernel result; 0-d arrays become scalars."""
     if isinstance(magnitude, np.ndarray) and magnitude.ndim == 0:
         magnitude = magnitude[()]
     registry = ureg.get()
-    return registry.Quantity(magnitude, _unit_of(registry, units))
+    return registry.Quantity(magnitude, _unit_of(registry, units)._units)
 
 
 

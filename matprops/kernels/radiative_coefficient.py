@@ -41,5 +41,11 @@ constant.unblocked = True  # fills its output and nothing else: no blocks needed
 def constant_derivatives(temperature, *, coefficient):
     """B and ``dB/dT = 0``."""
     xp = namespace(temperature)
+    if xp is np:
+        shape = np.shape(temperature)
+        return np.full(shape, float(coefficient)), {"temperature": np.zeros(shape)}
     zero = zeros_like(xp, asfloat(xp, temperature))
     return zero + float(coefficient), {"temperature": zero}
+
+
+constant_derivatives.unblocked = True

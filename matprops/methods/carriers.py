@@ -55,6 +55,8 @@ DERIVED = {
 
 def dopant_species(value, argument: str, kind: str | None = None) -> str:
     """The canonical name of a dopant species (``"P"``, ``"phosphorus"`` -> ``"phosphorus"``)."""
+    if isinstance(value, str) and value in DOPANTS and kind in (None, DOPANTS[value]):
+        return value
     text = str(value).strip().lower()
     name = _SYMBOLS.get(text, text)
     allowed = [d for d, k in DOPANTS.items() if kind in (None, k)]

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 from functools import cache
 
+import numpy as np
+
 from ..errors import InputError
 from ..kernels import crystal
 from ..kernels._blocks import evaluate
@@ -61,8 +63,14 @@ class CrystalMethods:
         """
         result, units = self._evaluate("lattice_constant", temperature=temperature)
         # cm -> nm with pint's own factor (exactly what Quantity.to("nm") multiplies by),
-        # looked up once instead of a unit conversion per call
-        return quantity(result * _factor(units, "nm"), "nm")
+        # looked up once instead of a unit conversion per call; in place on the fresh
+        # result of an array
+        factor = _factor(units, "nm")
+        if isinstance(result, np.ndarray) and result.ndim and result.flags.writeable \
+                and result.flags.owndata:
+            result *= factor
+            return quantity(result, "nm")
+        return quantity(result * factor, "nm")
 
     def molar_mass(self):
         """Molar mass (standard atomic weight) of natural silicon, g/mol."""
