@@ -756,8 +756,9 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
                   variant_axis=variant_axis, extra=MappingProxyType(extra),
                   regions=parse_regions(path, data, spec))
 
-    def bind(coefficients):
-        _check_complete(path, data["kernel"], spec, set(coefficients) | set(table_arguments))
+    def bind(coefficients, kernel=kernel, kernel_name=data["kernel"]):
+        _check_complete(path, kernel_name, kernel.spec,
+                        set(coefficients) | set(table_arguments))
         bound = {c.name: c.kernel_value for c in coefficients.values()}
         if kind == "table":
             return _TableFunction(catalog, path, kernel, table, table_arguments, bound)
@@ -774,12 +775,23 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
         where = f"variants.{variant}"
         if not isinstance(entry, dict):
             raise DatasetError(path, f"{where} must be a table")
-        unknown = set(entry) - {"coefficients", "validity", "obtained"}
+        unknown = set(entry) - {"coefficients", "validity", "obtained", "kernel"}
         if unknown:
             raise DatasetError(path, f"{where}: unknown field(s) {sorted(unknown)} "
-                               "(allowed: coefficients, validity, obtained)")
-        own = _coefficients(path, entry.get("coefficients", {}), spec,
-                            f"{where}.coefficients", data["kernel"],
+                               "(allowed: coefficients, validity, obtained, kernel)")
+        # a variant may have an equation form of its own (e.g. a standard that gives
+        # boron and phosphorus different forms), with the same inputs and output
+        variant_kernel, kernel_name = kernel, data["kernel"]
+        if "kernel" in entry:
+            kernel_name = _require(path, entry, "kernel", str, where=where + ".")
+            variant_kernel = _resolve_kernel(path, kernel_name)
+            if (dict(variant_kernel.spec.inputs) != dict(spec.inputs)
+                    or variant_kernel.spec.output != spec.output
+                    or variant_kernel.spec.requires != spec.requires):
+                raise DatasetError(path, f"{where}.kernel {kernel_name!r} must take the same "
+                                   f"inputs and give the same output as {data['kernel']!r}")
+        own = _coefficients(path, entry.get("coefficients", {}), variant_kernel.spec,
+                            f"{where}.coefficients", kernel_name,
                             set(shared) | set(table_arguments))
         overlap = sorted(set(own) & set(shared))
         if overlap:
@@ -789,10 +801,11 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
                                           f"{where}.validity")}
         variant_obtained = entry.get("obtained")
         variants[variant] = Model(
-            **{**common, "obtained": obtained + (f"\n{variant}: {variant_obtained}"
-                                                 if variant_obtained else "")},
+            **{**common, "kernel": variant_kernel,
+               "obtained": obtained + (f"\n{variant}: {variant_obtained}"
+                                       if variant_obtained else "")},
             coefficients=MappingProxyType(merged), validity=MappingProxyType(ranges),
-            function=bind(merged), variant=variant)
+            function=bind(merged, variant_kernel, kernel_name), variant=variant)
     parent = Model(**common, coefficients=MappingProxyType(shared),
                    validity=MappingProxyType(validity), function=None)
     frozen = MappingProxyType(variants)

@@ -80,6 +80,9 @@ AXES: dict[str, Axis] = {a.name: a for a in (
     Axis("carrier", None, None, "charge carrier", choices=("electron", "hole")),
     Axis("plane", None, None, "crystal plane (Miller indices)",
          choices=("100", "110", "111")),
+    Axis("dopant", None, None, "dopant species",
+         choices=("phosphorus", "arsenic", "antimony", "boron", "aluminium", "gallium",
+                  "indium")),
     Axis("temperature", "T", "K", "temperature", "positive"),
     Axis("acceptor_density", "Na", "cm^-3", "acceptor density", "non-negative", log=True),
     Axis("donor_density", "Nd", "cm^-3", "donor density", "non-negative", log=True),
@@ -87,6 +90,8 @@ AXES: dict[str, Axis] = {a.name: a for a in (
          log=True),
     Axis("electron_density", "n", "cm^-3", "electron density", "non-negative", log=True),
     Axis("hole_density", "p", "cm^-3", "hole density", "non-negative", log=True),
+    Axis("field", None, "V/cm", "electric field strength", "non-negative", log=True),
+    Axis("resistivity", "rho", "ohm*cm", "resistivity", "positive", log=True),
     Axis("wavelength", None, "nm", "vacuum wavelength", "positive"),
 )}
 _ALIASES = {a.alias: a.name for a in AXES.values() if a.alias}
@@ -124,6 +129,8 @@ class Tabulated:
     fields : for a method that returns a result object (e.g. a frozen dataclass of
         pint quantities), the attribute holding each output, in the order of
         ``outputs``
+    fixed : keyword arguments always passed to the method (e.g. the standard
+        resistivity is ``si.resistivity(..., conversion="standard")``)
 
     Example: ``Tabulated("mobility", {"carrier": 0, "temperature": 1,
     "acceptor_density": "Na", "donor_density": "Nd"}, (("mobility", "carrier
@@ -138,6 +145,7 @@ class Tabulated:
     log: bool = False
     needs: tuple[str, ...] = ()
     fields: tuple[str, ...] = ()
+    fixed: Mapping[str, object] = field(default_factory=dict)
     _signature: dict = field(default_factory=dict, compare=False, repr=False)
 
     def parameters(self, si) -> dict[str, tuple[str, bool]]:
@@ -169,7 +177,8 @@ class Tabulated:
         """Call the Silicon method with axis values (missing optional axes: defaults)."""
         names = self.parameters(si)
         return getattr(si, self.method or self.name)(
-            **{names[ax][0]: value for ax, value in values.items() if ax in names})
+            **{names[ax][0]: value for ax, value in values.items() if ax in names},
+            **self.fixed)
 
 
 def _registry(*entries: Tabulated) -> dict[str, Tabulated]:
@@ -186,6 +195,11 @@ _T = {"temperature": 0}
 _DOPED = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
           "electron_density": "n", "hole_density": "p"}
 _DOPING = ("acceptor_density", "donor_density", "electron_density", "hole_density")
+_EQUILIBRIUM_AXES = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"}
+_DOPANTS_AND_CARRIERS = {"acceptor_density": "Na", "donor_density": "Nd",
+                         "electron_density": "n", "hole_density": "p"}
+_DOPED_SHIFTED = {"temperature": 1, **_DOPANTS_AND_CARRIERS}  # after a carrier argument
+_FROM_RESISTIVITY = {"resistivity": 0, "temperature": 1, "dopant": "dopant"}
 # One entry per tabulable quantity; add one here when a Silicon method lands.
 QUANTITIES: dict[str, Tabulated] = _registry(
     Tabulated("band_gap", _T, (
@@ -236,8 +250,34 @@ QUANTITIES: dict[str, Tabulated] = _registry(
                       "hole_density", "ionised_donors", "ionised_acceptors"),
               wants=_DOPING[:2]),
     # transport (methods of the transport family)
+    Tabulated("mobility", {"carrier": 0, **_DOPED_SHIFTED}, (
+        ("mobility", "low-field carrier mobility"),), log=True),
+    Tabulated("high_field_mobility", {"carrier": 0, "field": 1, "temperature": 2,
+                                      **_DOPANTS_AND_CARRIERS}, (
+        ("high_field_mobility", "carrier mobility in an electric field"),),
+        needs=("high_field_mobility", "mobility", "saturation_velocity"), log=True),
+    Tabulated("diffusivity", {"carrier": 0, **_DOPED_SHIFTED}, (
+        ("diffusivity", "carrier diffusion coefficient (Einstein relation)"),), log=True),
+    Tabulated("saturation_velocity", {"carrier": 0, "temperature": 1}, (
+        ("saturation_velocity", "saturation drift velocity"),)),
     Tabulated("thermal_velocity", {"carrier": 0, "temperature": 1}, (
         ("thermal_velocity", "thermal velocity (mean thermal speed)"),)),
+    Tabulated("resistivity", _EQUILIBRIUM_AXES, (
+        ("electrical_resistivity", "resistivity of silicon in equilibrium"),),
+        wants=_DOPING[:2], log=True),
+    Tabulated("conductivity", _EQUILIBRIUM_AXES, (
+        ("electrical_conductivity", "conductivity of silicon in equilibrium"),),
+        wants=_DOPING[:2], log=True),
+    Tabulated("doping_from_resistivity", _FROM_RESISTIVITY, (
+        ("dopant_density", "density of the dopant species that gives the resistivity"),),
+        log=True),
+    Tabulated("standard_resistivity", _EQUILIBRIUM_AXES, (
+        ("standard_resistivity", "resistivity by the standard conversion (23 degC)"),),
+        method="resistivity", fixed={"conversion": "standard"}, wants=_DOPING[:2],
+        log=True),
+    Tabulated("standard_dopant_density", _FROM_RESISTIVITY, (
+        ("standard_dopant_density", "dopant density by the standard conversion (23 degC)"),),
+        method="doping_from_resistivity", fixed={"conversion": "standard"}, log=True),
 )
 
 

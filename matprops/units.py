@@ -51,6 +51,9 @@ ARGUMENTS = {
     "p": ("cm^-3", "non-negative"),
     "excess": ("cm^-3", "non-negative"),
     "N": ("cm^-3", "non-negative"),
+    # transport
+    "field": ("V/cm", "non-negative"),
+    "resistivity": ("ohm*cm", "positive"),
 }
 
 # Arguments that also accept a photon energy, frequency or wavenumber (converted
