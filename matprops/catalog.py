@@ -28,6 +28,7 @@ import hashlib
 import json
 import os
 import re
+import threading
 import tomllib
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
@@ -51,6 +52,7 @@ from .errors import (
 )
 from .kernels import module_for
 from .regions import Region, parse_regions
+from .schema import KINDS, MODEL, RELEASE, THERMAL_VELOCITY_DEFINITIONS, VARIANT_AXES, validate
 
 __all__ = [
     "Catalog",
@@ -60,14 +62,22 @@ __all__ = [
     "Region",
     "Release",
     "Source",
+    "catalog_at",
     "datasets_root",
     "default_catalog",
 ]
 
 CHECKSUM_FILE = "checksums.sha256"
+# folder -> suffixes of the data files in it, each covered by the checksum list
+DATA_FILES = {"models": (".toml",), "tables": (".nc",), "releases": (".toml", ".json"),
+              "scenarios": (".toml",)}
 MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 RELEASE_ID = re.compile(r"^\d{4}\.\d+$")
-KINDS = ("closed-form", "table", "composed")
+
+# The netCDF/HDF5 library is not thread-safe: two threads opening files at once can
+# crash the process. Every read of a table goes through this one (process-wide) lock;
+# what is read is then kept in read-only arrays and never changes.
+_TABLE_LOCK = threading.RLock()
 SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi")
 # Required fields of each kind of source record (``type`` in the file; default "article").
 SOURCE_TYPES = {
@@ -78,10 +88,25 @@ BOOK_FIELDS = ("publisher", "edition", "address", "pages")
 
 
 def datasets_root() -> Path:
-    """Where the data live: $MATPROPS_DATASETS, the installed copy, or the checkout."""
-    override = os.environ.get("MATPROPS_DATASETS")
-    if override:
-        return Path(override)
+    """Where the data live: $MATPROPS_DATASETS, the installed copy, or the checkout.
+
+    A relative MATPROPS_DATASETS is resolved against the working folder of this
+    call (the default catalogue calls it once, so a later ``chdir`` changes
+    nothing); a value that is not a folder is a DatasetError saying so. An empty
+    value counts as unset.
+    """
+    override = os.environ.get("MATPROPS_DATASETS", "")
+    if override.strip():
+        given = Path(override).expanduser()
+        root = Path(os.path.abspath(given))
+        if not root.is_dir():
+            where = ("" if given.is_absolute() else
+                     f", a relative path resolved against the working folder {os.getcwd()}")
+            raise DatasetError(root, "datasets folder does not exist; set MATPROPS_DATASETS "
+                               "to a matprops datasets folder (models/, tables/, releases/, "
+                               "checksums.sha256), or unset it to use the installed data "
+                               f"(MATPROPS_DATASETS={override!r}{where})")
+        return root
     installed = Path(__file__).resolve().parent / "datasets"
     if installed.is_dir():
         return installed
@@ -384,8 +409,8 @@ class Model:
         """The model's numbers as an xarray.Dataset with provenance attributes."""
         import xarray as xr
 
-        if self.kind == "table":
-            data = _open_table(self.path.parent.parent.parent / "tables" / self.table)
+        if self.kind == "table":  # read through the checksum check, like the kernel
+            data = catalog_at(self.path.parent.parent.parent).table(self.table)
             data.attrs = {f"table_{k}": v for k, v in data.attrs.items()}
         else:
             variables = {}
@@ -404,6 +429,19 @@ class Model:
         })
         return data
 
+    # -- pickling (process pools, dask workers) and copying
+    def __reduce__(self):
+        # by name, re-bound on load from the catalogue at the same root (or the
+        # receiver's installed data when this came from the default catalogue)
+        return _rebind_model, (catalog_at(self.path.parent.parent.parent), self.quantity,
+                               self.id, self.sha256, dict(self.components), self.variant)
+
+    def __copy__(self):
+        return self  # immutable
+
+    def __deepcopy__(self, memo):
+        return self
+
     def __repr__(self) -> str:
         ranges = ", ".join(str(r) for r in self.validity.values()) or "no limits"
         inputs = ", ".join(f"{k} [{u}]" for k, u in self.inputs.items()) or "none"
@@ -417,6 +455,17 @@ def _plain_extra(value):
     if isinstance(value, Mapping):
         return {k: _plain_extra(v) for k, v in value.items()}
     return value
+
+
+def _rebind_model(catalog: Catalog, quantity: str, model_id: str, sha256: str,
+                  components: Mapping[str, Model], variant: str | None = None) -> Model:
+    model = catalog.model(quantity, model_id)
+    if model.sha256 != sha256:
+        raise DatasetError(model.path, f"has sha256 {model.sha256} here but {sha256} where "
+                           "the model was pickled: the two processes read different data")
+    if variant is not None:
+        model = model.select(variant)
+    return model.compose(**components) if components else model
 
 
 def _span(low, high) -> str:
@@ -447,15 +496,43 @@ class Release:
     def reference_path(self) -> Path:
         return self.path.with_name(f"{self.id}.reference.json")
 
+    def __reduce__(self):
+        return _reload_release, (catalog_at(self.path.parent.parent), self.id)
+
+    def __copy__(self):
+        return self  # immutable
+
+    def __deepcopy__(self, memo):
+        return self
+
+
+def _reload_release(catalog: Catalog, release_id: str) -> Release:
+    return catalog.release(release_id)
+
 
 # --------------------------------------------------------------------------- loading
 
 
-def _open_table(path: Path):
+def _open_table(name: str, data: bytes):
+    """An in-memory netCDF file (already verified) as a loaded xarray.Dataset."""
+    import netCDF4
     import xarray as xr
 
-    with xr.open_dataset(path) as opened:
-        return opened.load()
+    with _TABLE_LOCK:
+        handle = netCDF4.Dataset(name, mode="r", memory=data)
+        try:
+            with xr.open_dataset(xr.backends.NetCDF4DataStore(handle)) as opened:
+                return opened.load()  # closing the store closes the handle
+        finally:
+            if handle.isopen():
+                handle.close()
+
+
+def _read_only(value):
+    """Freeze an array that a bound model shares between threads."""
+    if isinstance(value, np.ndarray):
+        value.flags.writeable = False
+    return value
 
 
 _UDUNITS_POWER = re.compile(r"([A-Za-z]+)(-?\d+)")
@@ -473,14 +550,36 @@ class Catalog:
     """The models, tables and releases found under one ``datasets/`` folder."""
 
     def __init__(self, root: Path | str | None = None):
-        self.root = Path(root) if root is not None else datasets_root()
+        # absolute once, so a later change of working folder changes nothing
+        self.root = Path(os.path.abspath(root)) if root is not None else datasets_root()
         self._models: dict[tuple[str, str], Model] = {}
         self._checksums: dict[str, str] | None = None
+        self._lock = threading.RLock()  # models are built once, even from many threads
+
+    def __reduce__(self):
+        # a catalogue pickles as its root; the default one as "the receiver's default",
+        # so a worker on another machine reads its own installed copy
+        default = bool(_DEFAULT) and self is _DEFAULT[0]
+        return catalog_at, (None if default else str(self.root),)
+
+    def __copy__(self):
+        return self  # a cache of immutable records: one per root is enough
+
+    def __deepcopy__(self, memo):
+        return self
 
     # -- listing
+    def _folder(self, name: str) -> Path:
+        folder = self.root / name
+        if not folder.is_dir():
+            origin = (" (set by MATPROPS_DATASETS)"
+                      if os.environ.get("MATPROPS_DATASETS", "").strip() else "")
+            raise DatasetError(folder, f"folder is missing: {self.root}{origin} is not a "
+                               "matprops datasets folder")
+        return folder
+
     def quantities(self) -> list[str]:
-        folder = self.root / "models"
-        return sorted(p.name for p in folder.iterdir() if p.is_dir()) if folder.is_dir() else []
+        return sorted(p.name for p in self._folder("models").iterdir() if p.is_dir())
 
     def model_ids(self, quantity: str) -> list[str]:
         if quantity not in self.quantities():
@@ -488,12 +587,24 @@ class Catalog:
         return sorted(p.stem for p in (self.root / "models" / quantity).glob("*.toml"))
 
     def release_ids(self) -> list[str]:
-        folder = self.root / "releases"
-        ids = [p.stem for p in folder.glob("*.toml") if RELEASE_ID.match(p.stem)]
+        ids = [p.stem for p in self._folder("releases").glob("*.toml")
+               if RELEASE_ID.match(p.stem)]
         return sorted(ids, key=lambda r: tuple(int(x) for x in r.split(".")))
+
+    def newest_release_id(self) -> str:
+        """The newest release's id; a DatasetError when there is none."""
+        ids = self.release_ids()
+        if not ids:
+            raise DatasetError(self.root / "releases", "no release file (<YYYY.N>.toml) in "
+                               "this folder; a release names the model of each quantity")
+        return ids[-1]
 
     # -- checksums
     def checksums(self) -> dict[str, str]:
+        with self._lock:
+            return self._read_checksums()
+
+    def _read_checksums(self) -> dict[str, str]:
         if self._checksums is None:
             path = self.root / CHECKSUM_FILE
             if not path.is_file():
@@ -516,7 +627,11 @@ class Catalog:
         if recorded is None:
             raise ChecksumError(path, f"no checksum recorded in {CHECKSUM_FILE}; "
                                 "refusing to load an unlisted file")
-        data = path.read_bytes()
+        try:
+            data = path.read_bytes()
+        except OSError as exc:
+            raise DatasetError(path, f"cannot be read ({exc.strerror or exc}); it is "
+                               f"listed in {CHECKSUM_FILE}") from exc
         actual = hashlib.sha256(data).hexdigest()
         if actual != recorded:
             raise ChecksumError(path, f"sha256 {actual} does not match the recorded "
@@ -524,15 +639,23 @@ class Catalog:
                                 "Refusing to load it.")
         return data
 
+    def data_files(self) -> list[str]:
+        """Every data file under the root (relative paths): the files the checksum
+        list must cover."""
+        found = []
+        for sub, suffixes in DATA_FILES.items():
+            found += [path.relative_to(self.root).as_posix()
+                      for path in sorted((self.root / sub).rglob("*"))
+                      if path.is_file() and path.suffix in suffixes]
+        return found
+
     def write_checksums(self) -> Path:
-        """Record the sha256 of every file under models/, tables/ and releases/."""
+        """Record the sha256 of every data file (see :meth:`data_files`)."""
         lines = ["# sha256 of every dataset file; loaders refuse files that differ.",
                  "# Regenerate after a deliberate change: python -m matprops.catalog "
                  "--update-checksums"]
-        for sub in ("models", "tables", "releases"):
-            for path in sorted((self.root / sub).rglob("*")):
-                if path.is_file() and path.suffix in (".toml", ".nc", ".json"):
-                    lines.append(f"{sha256_of(path)}  {path.relative_to(self.root).as_posix()}")
+        for relative in self.data_files():
+            lines.append(f"{sha256_of(self.root / relative)}  {relative}")
         target = self.root / CHECKSUM_FILE
         _atomic_write_text(target, "\n".join(lines) + "\n")
         self._checksums = None
@@ -541,20 +664,22 @@ class Catalog:
     # -- models
     def model(self, quantity: str, model_id: str) -> Model:
         key = (quantity, model_id)
-        if key not in self._models:
-            known = self.model_ids(quantity)
-            if model_id not in known:
-                raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
-            self._models[key] = self._load_model(
-                self.root / "models" / quantity / f"{model_id}.toml")
-        return self._models[key]
+        model = self._models.get(key)
+        if model is not None:
+            return model
+        with self._lock:
+            if key not in self._models:
+                known = self.model_ids(quantity)
+                if model_id not in known:
+                    raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
+                self._models[key] = self._load_model(
+                    self.root / "models" / quantity / f"{model_id}.toml")
+            return self._models[key]
 
     def _load_model(self, path: Path) -> Model:
         raw = self.verified_bytes(path)
-        try:
-            data = tomllib.loads(raw.decode("utf-8"))
-        except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-            raise DatasetError(path, f"not valid TOML: {exc}") from exc
+        data = _parse_toml(path, raw)
+        validate(path, data, MODEL)
         return _build_model(path, data, self)
 
     # -- releases
@@ -563,16 +688,11 @@ class Catalog:
         if release_id not in known:
             raise UnknownReleaseError(release_id, known)
         path = self.root / "releases" / f"{release_id}.toml"
-        data = tomllib.loads(self.verified_bytes(path).decode("utf-8"))
-        for name in ("release", "status", "date", "notes", "models"):
-            if name not in data:
-                raise DatasetError(path, f"missing field {name!r}")
+        data = _parse_toml(path, self.verified_bytes(path))
+        validate(path, data, RELEASE)
         if data["release"] != release_id:
             raise DatasetError(path, f"field 'release' is {data['release']!r}, "
                                f"the file name says {release_id!r}")
-        if data["status"] not in ("draft", "final"):
-            raise DatasetError(path, f"field 'status' must be 'draft' or 'final', "
-                               f"got {data['status']!r}")
         return Release(release_id, data["status"], str(data["date"]), data["notes"],
                        MappingProxyType(dict(data["models"])), path)
 
@@ -583,10 +703,27 @@ class Catalog:
         return path
 
     def table(self, name: str):
-        """A verified netCDF table from ``datasets/tables/`` as an xarray.Dataset."""
+        """A verified netCDF table from ``datasets/tables/`` as an xarray.Dataset
+        (read from the checked bytes themselves: no window between check and read)."""
         path = self.table_path(name)
-        self.verified_bytes(path)
-        return _open_table(path)
+        return _open_table(path.name, self.verified_bytes(path))
+
+    # -- scenarios (invented demonstration data)
+    def scenario_names(self) -> list[str]:
+        return sorted(p.stem for p in (self.root / "scenarios").glob("*.toml"))
+
+    def scenario(self, name: str) -> dict:
+        """A verified, schema-checked scenario file from ``datasets/scenarios/``."""
+        from .errors import UnknownNameError
+        from .schema import SCENARIO
+
+        known = self.scenario_names()
+        if name not in known:
+            raise UnknownNameError(name, known, "among the scenarios")
+        path = self.root / "scenarios" / f"{name}.toml"
+        data = _parse_toml(path, self.verified_bytes(path))
+        validate(path, data, SCENARIO)
+        return data
 
     def table_arrays(self, name: str) -> dict[str, tuple[np.ndarray, str]]:
         """Variables of a verified table as ``{name: (values, UDUNITS units)}``.
@@ -598,16 +735,35 @@ class Catalog:
 
         path = self.table_path(name)
         data = self.verified_bytes(path)
-        with netCDF4.Dataset(path.name, mode="r", memory=data) as handle:
-            return {key: (np.array(var[:], dtype=float),
+        with _TABLE_LOCK, netCDF4.Dataset(path.name, mode="r", memory=data) as handle:
+            return {key: (_read_only(np.array(var[:], dtype=float)),
                           str(getattr(var, "units", "1")))
                     for key, var in handle.variables.items()}
 
 
+def _parse_toml(path: Path, raw: bytes) -> dict:
+    try:
+        return tomllib.loads(raw.decode("utf-8"))
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        raise DatasetError(path, f"not valid TOML: {exc}") from exc
+
+
 def _atomic_write_text(target: Path, text: str) -> None:
+    """Write through a temporary file and a rename; a folder that cannot be written
+    (a read-only install) is a DatasetError saying so, not an OSError traceback."""
     tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")
-    tmp.write_text(text)
-    os.replace(tmp, target)
+    try:
+        tmp.write_text(text)
+        os.replace(tmp, target)
+    except OSError as exc:
+        try:
+            tmp.unlink(missing_ok=True)
+        except OSError:
+            pass
+        raise DatasetError(target, f"cannot be written ({exc.strerror or exc}): this "
+                           "command changes the datasets folder itself, which is read-only "
+                           "here (an installed copy?); run it in a writable checkout, or "
+                           "on a writable copy (--root or MATPROPS_DATASETS)") from exc
 
 
 # --------------------------------------------------------------------------- validation
@@ -643,7 +799,7 @@ def _convert(path, where: str, value, units: str, target: str):
         converted = Q_(array, source_unit).m_as(target_unit)
     except pint.PintError as exc:  # pragma: no cover - dimension checked above
         raise DatasetError(path, f"{where}: cannot convert {units!r} to {target!r}") from exc
-    return float(converted) if np.ndim(converted) == 0 else np.asarray(converted)
+    return float(converted) if np.ndim(converted) == 0 else _read_only(np.array(converted))
 
 
 def _number_or_list(path, where, value):
@@ -915,16 +1071,13 @@ def _velocity_definition(path, value) -> str:
     return value
 
 
-# A thermal velocity is either the mean speed sqrt(8kT/(pi m)) or the root-mean-square
-# speed sqrt(3kT/m); they differ by sqrt(3 pi/8) = 1.085, so every model says which.
-THERMAL_VELOCITY_DEFINITIONS = ("mean speed", "root-mean-square speed")
-
+# (A thermal velocity is either the mean speed sqrt(8kT/(pi m)) or the root-mean-square
+# speed sqrt(3kT/m), sqrt(3 pi/8) = 1.085 apart, so every such model says which.)
 QUANTITY_SECTIONS = {
     "gap_narrowing": {"narrowing": _narrowing_section},
     "mobility": {"dopant_densities": _dopant_densities},
     "thermal_velocity": {"definition": _velocity_definition},
 }
-VARIANT_AXES = ("dopant", "carrier")
 
 
 def _extra_sections(path, quantity, data) -> dict:
@@ -950,8 +1103,15 @@ class _TableFunction:
         self._catalog, self._path, self._kernel = catalog, path, kernel
         self._table, self._arguments, self._bound = table, table_arguments, bound
         self._function = None
+        self._lock = threading.Lock()
 
     def _load(self):
+        with self._lock:  # the first callers wait for one load; later calls take no lock
+            if self._function is None:
+                self._function = self._read_tables()
+        return self._function
+
+    def _read_tables(self):
         spec = self._kernel.spec
         arrays, opened = {}, {}
         for argument, reference in self._arguments.items():
@@ -967,23 +1127,66 @@ class _TableFunction:
             values, units = data[variable]
             arrays[argument] = _convert(self._path, where, values, udunits_to_pint(units),
                                         spec.coefficients[argument])
-        self._function = functools.partial(self._kernel, **self._bound, **arrays)
-        return self._function
+        return functools.partial(self._kernel, **self._bound, **arrays)
 
     def __call__(self, *args, **kwargs):
         function = self._function or self._load()
         return function(*args, **kwargs)
 
 
-@functools.lru_cache(maxsize=1)
+_DEFAULT: list[Catalog] = []
+_DEFAULT_LOCK = threading.Lock()
+
+
 def default_catalog() -> Catalog:
-    """The catalogue of the installed datasets (created on first use)."""
-    return Catalog()
+    """The catalogue of the installed datasets (created once, on first use)."""
+    if not _DEFAULT:
+        with _DEFAULT_LOCK:
+            if not _DEFAULT:
+                _DEFAULT.append(Catalog())
+    return _DEFAULT[0]
+
+
+def _forget_default() -> None:
+    """Drop the default catalogue (tests that change MATPROPS_DATASETS call this)."""
+    with _DEFAULT_LOCK:
+        _DEFAULT.clear()
+
+
+default_catalog.cache_clear = _forget_default  # the name functools.lru_cache gives it
+
+
+_CATALOGS: dict[Path, Catalog] = {}
+
+
+def catalog_at(root: Path | str | None) -> Catalog:
+    """The shared catalogue of a datasets folder (the default one for ``None``).
+
+    Unpickled models and materials find their catalogue here, so a worker reads and
+    checks each file once however many objects it receives.
+    """
+    if root is None:
+        return default_catalog()
+    root = Path(root)
+    with _DEFAULT_LOCK:
+        if _DEFAULT and _DEFAULT[0].root == root:
+            return _DEFAULT[0]
+        if root not in _CATALOGS:
+            _CATALOGS[root] = Catalog(root)
+        return _CATALOGS[root]
 
 
 def main(argv=None) -> int:
-    """Developer tool: ``python -m matprops.catalog --update-checksums``."""
+    """Developer tool: ``python -m matprops.catalog [--update-checksums]``.
+
+    Checks every data file (see :func:`matprops.integrity.check`); exit status 1 when
+    anything is wrong.
+    """
     import argparse
+    import sys
+
+    from .errors import Error
+    from .integrity import check
 
     parser = argparse.ArgumentParser(prog="python -m matprops.catalog",
                                      description="Check or re-record dataset checksums.")
@@ -991,24 +1194,18 @@ def main(argv=None) -> int:
                         help="record the sha256 of every dataset file (after a deliberate change)")
     parser.add_argument("--root", type=Path, default=None, help="datasets folder")
     args = parser.parse_args(argv)
-    catalog = Catalog(args.root)
-    if args.update_checksums:
-        print(f"wrote {catalog.write_checksums()}")
-    problems = 0
-    for quantity in catalog.quantities():
-        for model_id in catalog.model_ids(quantity):
-            try:
-                catalog.model(quantity, model_id)
-            except DatasetError as exc:
-                problems += 1
-                print(f"error: {exc}")
-    for release_id in catalog.release_ids():
-        try:
-            catalog.release(release_id)
-        except DatasetError as exc:
-            problems += 1
-            print(f"error: {exc}")
-    print("all dataset files verified" if not problems else f"{problems} problem(s)")
+    try:
+        catalog = Catalog(args.root)
+        if args.update_checksums:
+            print(f"wrote {catalog.write_checksums()}")
+    except Error as exc:  # e.g. a read-only install, MATPROPS_DATASETS pointing nowhere
+        print(f"error: {exc}", file=sys.stderr)
+        return 2
+    problems, checked = check(catalog)
+    for problem in problems:
+        print(f"error: {problem}")
+    print(f"{catalog.root}: all {checked} dataset files verified" if not problems
+          else f"{len(problems)} problem(s) in {catalog.root}")
     return 1 if problems else 0
 
 

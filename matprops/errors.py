@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import difflib
 import os
+import pickle
 import sys
 import warnings
 
@@ -31,17 +32,47 @@ __all__ = [
 ]
 
 
+def _rebuild(cls, args, state):
+    """Unpickle an error without calling its ``__init__`` (see :meth:`Error.__reduce__`)."""
+    error = cls.__new__(cls, *args)
+    error.args = args
+    error.__dict__.update(state)
+    return error
+
+
+def _picklable(value):
+    try:
+        pickle.dumps(value)
+    except (pickle.PicklingError, TypeError, AttributeError, ValueError, RecursionError):
+        # a generator, a lock, a local object of the caller's ...
+        return repr(value)
+    return value
+
+
 class Error(Exception):
-    """Base class of every matprops error."""
+    """Base class of every matprops error.
+
+    Errors pickle with their message and fields (argument, received value, path ...),
+    so a process pool or a dask worker hands the real error back to its parent. A
+    field whose value cannot be pickled crosses as its ``repr``.
+    """
+
+    def __reduce__(self):
+        # Exception's own reduce re-calls __init__ with the message alone, which our
+        # subclasses' signatures refuse: the parent of a process pool then hangs.
+        state = {key: _picklable(value) for key, value in self.__dict__.items()}
+        return _rebuild, (type(self), self.args, state)
 
 
 class UnitError(Error, TypeError):
     """An argument has the wrong physical dimension or an unparseable unit."""
 
-    def __init__(self, argument: str, expected: str, received, plain: str | None = None):
+    def __init__(self, argument: str, expected: str, received, plain: str | None = None,
+                 description: str | None = None):
         self.argument, self.expected, self.received = argument, expected, received
+        shown = description if description is not None else repr(received)
         super().__init__(f"argument {argument!r} expects a quantity in {expected} "
-                         f"(or a plain number in {plain or expected}); received {received!r}")
+                         f"(or a plain number in {plain or expected}); received {shown}")
 
 
 class InputError(Error, ValueError):
@@ -114,7 +145,10 @@ class ValidityError(Error, ValueError):
 
 
 class ValidityWarning(UserWarning):
-    """An input outside a model's validity range; the value is still returned."""
+    """An input outside a model's validity range; the value is still returned.
+
+    (It takes only a message, so it pickles as every warning does.)
+    """
 
 
 _PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))

@@ -17,8 +17,10 @@ from __future__ import annotations
 import functools
 from collections.abc import Iterable, Mapping
 
+import numpy as np
+
 from .catalog import Catalog, Model, default_catalog
-from .errors import InputError, UnknownQuantityError
+from .errors import DatasetError, InputError, UnknownQuantityError
 from .methods.carriers import DERIVED as CARRIER_DERIVED
 from .methods.carriers import CarrierMethods, dopant_species
 from .methods.crystal import DERIVED as CRYSTAL_DERIVED
@@ -27,7 +29,9 @@ from .methods.optical import OpticalMethods
 from .methods.transport import DERIVED as TRANSPORT_DERIVED
 from .methods.transport import KERNELS as TRANSPORT_KERNELS
 from .methods.transport import TransportMethods
-from .units import coerce, quantity
+from .units import check_broadcast, coerce, quantity
+from .units import name as check_name
+from .units import names as check_names
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
@@ -59,20 +63,29 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods):
     def __init__(self, release: str | None = None, models: Mapping[str, str] | None = None,
                  strict: bool = False, catalog: Catalog | None = None):
         self.catalog = catalog or default_catalog()
-        ids = self.catalog.release_ids()
-        self.release = self.catalog.release(release if release is not None else ids[-1])
+        self.release = self.catalog.release(release if release is not None
+                                            else self.catalog.newest_release_id())
+        if not isinstance(strict, (bool, np.bool_)):  # strict="no" is not False
+            raise InputError("strict", "True or False", repr(strict))
         self.strict = bool(strict)
         overrides = dict(models or {})
         known = set(self.catalog.quantities())
         for name in overrides:
             if name not in known:
                 raise UnknownQuantityError(name, known, "in models=")
+        self._overrides = overrides
         self.overridden = frozenset(q for q, m in overrides.items()
                                     if self.release.models.get(q) != m)
         choice = {**self.release.models, **overrides}
         self._models: dict[str, Model] = {}
         for name in choice:
             self._bind(name, choice)
+
+    def __reduce__(self):
+        # pickled by release, overrides, strict flag and catalogue, re-bound on load;
+        # the model files' hashes travel along so that both sides use the same numbers
+        hashes = {q: m.sha256 for q, m in self._models.items()}
+        return _restore, (self.catalog, self.release.id, self._overrides, self.strict, hashes)
 
     def _bind(self, name: str, choice: Mapping[str, str], chain=()) -> Model:
         if name in self._models:
@@ -97,6 +110,7 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods):
 
     def model(self, name: str) -> Model:
         """The bound :class:`~matprops.catalog.Model` serving a quantity."""
+        name = check_name(name)
         if name not in self._models:
             if name in DERIVED:
                 raise UnknownQuantityError(
@@ -148,8 +162,10 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods):
     def _evaluate(self, name: str, **arguments):
         """Coerce ``arguments`` (named as the kernel's inputs), check, call the model."""
         model = self.model(name)
-        return self._call(model, {a: coerce(raw, a) for a, raw in arguments.items()}), \
-            model.output_units
+        prepared = {a: coerce(raw, a) for a, raw in arguments.items()}
+        if len(prepared) > 1:  # before the validity checks: a shape error comes first
+            check_broadcast(**{a: array for a, (array, _, _) in prepared.items()})
+        return self._call(model, prepared), model.output_units
 
     def _call(self, model: Model, prepared: Mapping[str, tuple]):
         """Check validity and call ``model`` with the inputs it declares.
@@ -173,6 +189,7 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods):
     # ------------------------------------------------------------------ provenance
     def provenance(self, name: str) -> dict:
         """Model id, source, DOI, validity, coefficients, release, and overrides."""
+        name = check_name(name)
         if name in DERIVED:
             parts, formula = DERIVED[name]
             record = {"quantity": name, "model": "derived", "formula": formula,
@@ -191,7 +208,7 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods):
 
     def sources(self, names: Iterable[str] | None = None):
         """Unique (citation key, Source) pairs behind the given quantities (default: all)."""
-        names = list(names) if names is not None else list(self._models)
+        names = check_names(names) if names is not None else list(self._models)
         seen, found = set(), []
         for name in names:
             parts = DERIVED[name][0] if name in DERIVED else (name,)
@@ -237,6 +254,16 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods):
                            for q, m in self._models.items())
         return (f"<Silicon release {self.release.id} ({self.release.status}); {chosen}"
                 f"{'; * overridden' if self.overridden else ''}>")
+
+
+def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
+    si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog)
+    for name, model in si._models.items():
+        if model.sha256 != hashes.get(name):
+            raise DatasetError(model.path, f"has sha256 {model.sha256} here but "
+                               f"{hashes.get(name)} where the material was pickled: "
+                               "the two processes read different data")
+    return si
 
 
 def silicon(release: str | None = None, models: Mapping[str, str] | None = None,

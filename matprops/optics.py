@@ -20,7 +20,7 @@ import numpy as np
 
 from .errors import InputError
 from .kernels.constants import PHOTON_ENERGY_NM
-from .units import coerce, quantity, to_magnitude
+from .units import check_broadcast, coerce, quantity, to_magnitude
 
 __all__ = [
     "absorbed_fraction",
@@ -33,6 +33,15 @@ __all__ = [
 ]
 
 
+def _finite(values, units, argument, given, given_units):
+    """``values`` as a quantity, or an InputError where a reciprocal overflowed (an
+    input so close to zero that the result exceeds the floating-point range)."""
+    if not np.all(np.isfinite(values)):
+        raise InputError(argument, "large enough that the result is a finite number "
+                         "(its reciprocal overflows)", f"{np.min(given):g} {given_units}")
+    return quantity(values, units)
+
+
 def _alpha(alpha):
     return to_magnitude(alpha, "absorption_coefficient")
 
@@ -40,12 +49,14 @@ def _alpha(alpha):
 def transmitted_fraction(alpha, thickness):
     """Fraction of the light entering the material that passes a thickness, exp(-alpha W)."""
     a, w = _alpha(alpha), to_magnitude(thickness, "thickness")
+    check_broadcast(alpha=a, thickness=w)
     return quantity(np.exp(-a * w), "dimensionless")
 
 
 def absorbed_fraction(alpha, thickness):
     """Fraction absorbed in a thickness in a single pass, 1 - exp(-alpha W)."""
     a, w = _alpha(alpha), to_magnitude(thickness, "thickness")
+    check_broadcast(alpha=a, thickness=w)
     return quantity(-np.expm1(-a * w), "dimensionless")
 
 
@@ -55,10 +66,12 @@ def thickness_for_absorbed_fraction(alpha, fraction):
     f, _, high = coerce(fraction, "fraction", "dimensionless", "positive")
     if high >= 1:
         raise InputError("fraction", "between 0 and 1 (exclusive)", f"{high:g}")
+    check_broadcast(alpha=a, fraction=f)
     if np.any(a == 0):
         raise InputError("alpha", "> 0 1/cm (no thickness absorbs anything at alpha = 0)",
                          "0 1/cm")
-    return quantity(-np.log1p(-f) / a, "cm").to("um")
+    with np.errstate(over="ignore"):  # checked by _finite
+        return _finite(-np.log1p(-f) / a * 1e4, "um", "alpha", a, "1/cm")
 
 
 def absorption_depth(alpha):
@@ -66,17 +79,22 @@ def absorption_depth(alpha):
     a = _alpha(alpha)
     if np.any(a == 0):
         raise InputError("alpha", "> 0 1/cm (the depth is infinite at alpha = 0)", "0 1/cm")
-    return quantity(1.0 / a, "cm").to("um")
+    with np.errstate(over="ignore"):
+        return _finite(1e4 / a, "um", "alpha", a, "1/cm")
 
 
 def photon_energy(wavelength):
     """Photon energy of a vacuum wavelength, eV (E = hc/lambda)."""
-    return quantity(PHOTON_ENERGY_NM / to_magnitude(wavelength, "wavelength"), "eV")
+    nm = to_magnitude(wavelength, "wavelength")
+    with np.errstate(over="ignore"):
+        return _finite(PHOTON_ENERGY_NM / nm, "eV", "wavelength", nm, "nm")
 
 
 def wavelength(energy):
     """Vacuum wavelength of a photon energy, nm (lambda = hc/E)."""
-    return quantity(PHOTON_ENERGY_NM / to_magnitude(energy, "photon_energy"), "nm")
+    ev = to_magnitude(energy, "photon_energy")
+    with np.errstate(over="ignore"):
+        return _finite(PHOTON_ENERGY_NM / ev, "nm", "energy", ev, "eV")
 
 
 def absorbed_fraction_spectrum(si, wavelengths, thickness, temperature):

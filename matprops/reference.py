@@ -26,14 +26,14 @@ from __future__ import annotations
 
 import hashlib
 import json
-import os
+import sys
 import warnings
 from pathlib import Path
 
 import numpy as np
 
-from .catalog import Catalog, default_catalog, sha256_of
-from .errors import ReleaseFrozenError
+from .catalog import Catalog, _atomic_write_text, default_catalog, sha256_of
+from .errors import Error, ReleaseFrozenError
 
 __all__ = ["CASES", "compare", "evaluate", "regenerate", "table_digest"]
 
@@ -156,9 +156,7 @@ def regenerate(release_id: str, catalog: Catalog | None = None) -> Path:
     content = {"release": release_id, "model_files": _model_files(si),
                "table_digests": _table_digests(si), "cases": evaluate(si)}
     target = release.reference_path
-    tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")
-    tmp.write_text(json.dumps(content, indent=1, ensure_ascii=False) + "\n")
-    os.replace(tmp, target)
+    _atomic_write_text(target, json.dumps(content, indent=1, ensure_ascii=False) + "\n")
     catalog.write_checksums()
     return target
 
@@ -214,10 +212,14 @@ def main(argv=None) -> int:
     parser.add_argument("action", choices=["regenerate", "check"])
     parser.add_argument("release")
     args = parser.parse_args(argv)
-    if args.action == "regenerate":
-        print(f"wrote {regenerate(args.release)} (review the diff before committing)")
-        return 0
-    problems = compare(args.release)
+    try:
+        if args.action == "regenerate":
+            print(f"wrote {regenerate(args.release)} (review the diff before committing)")
+            return 0
+        problems = compare(args.release)
+    except Error as exc:  # a read-only install, a final release, an unknown release ...
+        print(f"error: {exc}", file=sys.stderr)
+        return 2
     print("\n".join(problems) if problems else f"release {args.release}: reference reproduced")
     return 1 if problems else 0
 

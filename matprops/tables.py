@@ -36,6 +36,8 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .errors import InputError, UnknownModelError, UnknownQuantityError, ValidityWarning
+from .units import name as check_name
+from .units import names as check_names
 from .units import to_magnitude
 
 __all__ = ["AXES", "QUANTITIES", "Axis", "Tabulated", "available", "axis", "cf_units",
@@ -436,9 +438,7 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
             raise InputError("quantities", "named, or a grid some quantity depends on "
                              "(e.g. temperature)", "none of either")
         return chosen
-    if isinstance(quantities, str):
-        quantities = [quantities]
-    names = list(quantities)
+    names = check_names(quantities)  # one name (not its letters) or several, as text
     if not names:
         raise InputError("quantities", "at least one quantity name", "an empty list")
     entries = []
@@ -797,12 +797,12 @@ def compare(si, quantity: str, models: Iterable[str] | None = None, *, chunks=No
 
     from .material import Silicon
 
+    quantity = check_name(quantity, "quantity")
     if quantity not in si.catalog.quantities() or quantity not in QUANTITIES:
         comparable = [q for q in si.catalog.quantities() if q in QUANTITIES]
         raise UnknownQuantityError(quantity, comparable, "with models to compare")
     known = si.catalog.model_ids(quantity)
-    ids = list(known if models is None else ([models] if isinstance(models, str)
-                                             else models))
+    ids = list(known) if models is None else check_names(models, "models")
     if not ids:
         raise InputError("models", "at least one model id", "an empty list")
     for model_id in ids:

@@ -6,6 +6,14 @@ cm^-3, nm, s, ohm cm), or pint quantities in any unit of the right dimension
 or strings such as ``"25 degC"``. Kernels then see plain float arrays in internal
 units. Outputs are pint quantities of the application registry, so they mix with
 the caller's own quantities.
+
+Masked arrays (``numpy.ma``, also inside a quantity) are refused rather than
+evaluated: their masked slots hold arbitrary fill values, and a quantity cannot carry
+the mask out again. Evaluate ``a.compressed()`` (or ``a.filled(v)`` with a value of
+your choice) and put the mask back with ``numpy.ma.masked_array(result, a.mask)``.
+Booleans and complex numbers are refused too (numpy would read True as 1 and drop
+an imaginary part), and so is a temperature difference (``delta_degC``) where an
+absolute temperature belongs.
 """
 
 from __future__ import annotations
@@ -18,7 +26,8 @@ import pint
 
 from .errors import InputError, UnitError
 
-__all__ = ["Q_", "coerce", "quantity", "to_magnitude", "unit", "ureg"]
+__all__ = ["Q_", "check_broadcast", "coerce", "name", "names", "quantity", "to_magnitude", "unit",
+           "ureg"]
 
 ureg = pint.get_application_registry()
 Q_ = ureg.Quantity
@@ -102,9 +111,17 @@ def coerce(value, argument: str, units: str | None = None,
     units = units or default_units
     requirement = requirement or default_req
     target = unit(units)
+    if value is None:
+        raise UnitError(argument, units, None)
     if isinstance(value, str):
         value = _parse(value, argument, units)
+    elif isinstance(value, (list, tuple)) and any(isinstance(v, pint.Quantity) for v in value):
+        value = _from_sequence(value, argument, units)
     if isinstance(value, pint.Quantity):
+        _real_array(value.magnitude, argument, units)
+        if target == _KELVIN and "delta_" in str(value.units):
+            raise UnitError(argument, "K, degC or degF (an absolute temperature)", value,
+                            plain="K", description=f"{value} (a temperature difference)")
         spectral = argument in SPECTRAL and value.dimensionality != target.dimensionality
         if spectral and np.any(np.asarray(value.magnitude) <= 0):
             raise InputError(argument, f"> 0 {units} (or a positive energy, "
@@ -123,15 +140,113 @@ def coerce(value, argument: str, units: str | None = None,
             # e.g. a quantity from another UnitRegistry: say so, with pint's reason
             raise UnitError(argument, f"{units} (a quantity of matprops.ureg, pint's "
                             f"application registry)", f"{value!r}: {exc}", plain=units) from exc
-    elif isinstance(value, (bool, np.bool_)):
-        raise UnitError(argument, units, value)
     else:
+        array = _real_array(value, argument, units)
         try:
-            magnitude = np.asarray(value, dtype=float)
+            magnitude = np.asarray(array, dtype=float)
         except (TypeError, ValueError) as exc:
             raise UnitError(argument, units, value) from exc
     low, high = check_values(magnitude, argument, units, requirement)
     return magnitude, low, high
+
+
+_KELVIN = ureg.Unit("K")
+
+
+def _real_array(value, argument: str, units: str) -> np.ndarray:
+    """``value`` (a magnitude) as an array of real numbers, any real dtype.
+
+    Refuses what numpy would silently turn into wrong numbers: masked arrays (their
+    fill values), booleans (True -> 1.0) and complex numbers (imaginary part dropped).
+    """
+    _refuse_masked(value, argument, units)
+    try:
+        array = np.asarray(value)
+    except (TypeError, ValueError) as exc:  # e.g. a ragged nested list
+        raise UnitError(argument, units, value) from exc
+    if array.dtype.kind == "b":
+        raise UnitError(argument, units, value, description=f"a boolean {_brief(value)} "
+                        "(True and False are not numbers here)")
+    if array.dtype.kind == "c":
+        raise UnitError(argument, units, value, description=f"a complex {_brief(value)} "
+                        "(only real numbers are accepted)")
+    if array.dtype.kind == "O" and any(v is None for v in array.flat):
+        raise UnitError(argument, units, value)  # not "received array(nan)"
+    return array
+
+
+def _from_sequence(values, argument: str, units: str):
+    """A list of quantities -> one quantity in the first one's units."""
+    if not all(isinstance(v, pint.Quantity) for v in values):
+        raise UnitError(argument, units, values, description=f"a list that mixes plain "
+                        f"numbers and quantities {_brief(values)}: give every value units, "
+                        "or none")
+    first = values[0].units
+    magnitudes = []
+    for item in values:
+        try:
+            magnitudes.append(item.m_as(first))
+        except pint.DimensionalityError as exc:
+            raise UnitError(argument, units, item,
+                            description=f"{item} ({item.dimensionality})") from exc
+        except (pint.PintError, ValueError, TypeError) as exc:
+            raise UnitError(argument, f"{units} (quantities of matprops.ureg, pint's "
+                            "application registry)", values,
+                            description=f"{item!r}: {exc}") from exc
+    return Q_(np.asarray(magnitudes), first)
+
+
+def _brief(value) -> str:
+    if isinstance(value, (list, tuple)):
+        return repr(value) if len(value) <= 6 else f"{type(value).__name__} of {len(value)}"
+    shape = np.shape(value)
+    return repr(value) if np.prod(shape) <= 6 else f"array of shape {shape}"
+
+
+def _refuse_masked(value, argument: str, units: str) -> None:
+    if isinstance(value, np.ma.MaskedArray):
+        raise InputError(argument, f"a plain array or quantity in {units}, not a masked "
+                         "array (its masked slots hold arbitrary fill values): evaluate "
+                         "a.compressed() and put the mask back with "
+                         "numpy.ma.masked_array(result, a.mask)",
+                         f"a masked array with {np.ma.count_masked(value)} of "
+                         f"{value.size} values masked")
+
+
+def names(value, argument: str = "quantities") -> list[str]:
+    """One quantity name or an iterable of them -> a list of names (text only)."""
+    if isinstance(value, str):
+        return [value]
+    try:
+        found = list(value)
+    except TypeError:
+        raise InputError(argument, "a quantity name or a list of names", repr(value)) from None
+    for item in found:
+        if not isinstance(item, str):
+            raise InputError(argument, "quantity names (text)", repr(item))
+    return found
+
+
+def name(value, argument: str = "name") -> str:
+    """A quantity (or model, release ...) name: text, or an InputError."""
+    if not isinstance(value, str):
+        raise InputError(argument, "a name (text)", repr(value))
+    return value
+
+
+def check_broadcast(**arrays) -> tuple[int, ...]:
+    """The broadcast shape of the arguments, or an InputError naming the first one
+    whose shape does not broadcast with those before it."""
+    shape, seen = (), []
+    for name, array in arrays.items():
+        try:
+            shape = np.broadcast_shapes(shape, np.shape(array))
+        except ValueError:
+            others = " and ".join(f"{n!r} of shape {s}" for n, s in seen if s)
+            raise InputError(name, f"an array whose shape broadcasts (numpy rules) with "
+                             f"{others}", f"shape {np.shape(array)}") from None
+        seen.append((name, np.shape(array)))
+    return shape
 
 
 def check_values(magnitude: np.ndarray, argument: str, units: str,

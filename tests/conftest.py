@@ -26,3 +26,17 @@ def datasets_copy(tmp_path):
     root = tmp_path / "datasets"
     shutil.copytree(datasets_root(), root, ignore=shutil.ignore_patterns("__pycache__", "*.py"))
     return root, Catalog(root)
+
+
+@pytest.fixture(scope="session")
+def spawn_pool():
+    """Two worker processes started with 'spawn' (as on Windows and macOS): nothing is
+    inherited, so every argument, result and error crosses by pickle."""
+    import multiprocessing
+
+    from _spawn import plain_pickling
+
+    pool = multiprocessing.get_context("spawn").Pool(2, initializer=plain_pickling)
+    yield pool
+    pool.terminate()
+    pool.join()

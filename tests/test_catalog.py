@@ -1,5 +1,7 @@
 """The catalogue: every data file validates; broken or tampered files are refused."""
 
+import re
+
 import pytest
 
 import matprops
@@ -112,8 +114,8 @@ def test_unlisted_file_is_refused(datasets_copy):
 @pytest.mark.parametrize("old, new, message", [
     ('units = "eV/K"', 'units = "nm"', r"coefficients.alpha: units 'nm' have dimension"),
     ('units = "eV/K"', 'units = "glorbs"', r"coefficients.alpha: units 'glorbs' do not parse"),
-    ('doi = "10.1149/1.2134410"\n', "", r"missing required field source.'doi'"),
-    ('obtained = """', 'notes2 = """', r"missing required field 'obtained'"),
+    ('doi = "10.1149/1.2134410"\n', "", r"missing required field 'source.doi'"),
+    ('obtained = """', 'notes2 = """', r"unknown field 'notes2'"),
     ("beta = { value = 636", "gamma = { value = 636", r"missing \['beta'\], unexpected \['gamma'\]"),
     ('max = 1000', 'max = -1', r"validity.temperature: min must be below max"),
     ('kernel = "band_gap.varshni"', 'kernel = "band_gap.nothing"', r"not a declared kernel"),
@@ -178,7 +180,118 @@ def test_catalog_command_verifies_everything(capsys):
     from matprops.catalog import main
 
     assert main([]) == 0
-    assert "all dataset files verified" in capsys.readouterr().out
+    out = capsys.readouterr().out
+    assert re.search(r"all \d+ dataset files verified", out)
+    listed = default_catalog().checksums()
+    assert f"all {len(listed)} dataset files" in out  # models, tables, releases, scenarios
+    assert any(name.startswith("scenarios/") for name in listed)
+
+
+def _alter_table(path):
+    """Change one number inside a netCDF table: still a readable file, other data."""
+    import netCDF4
+
+    with netCDF4.Dataset(path, "a") as handle:
+        variable = handle.variables["absorption_coefficient"]
+        variable[0] = variable[0] * 2
+
+
+def test_model_dataset_refuses_a_tampered_table(datasets_copy):
+    # before: to_dataset() opened the table without its checksum check
+    root, catalog = datasets_copy
+    _alter_table(root / "tables/green-2008.nc")
+    with pytest.raises(matprops.ChecksumError, match=r"green-2008\.nc: sha256"):
+        catalog.model("absorption", "green-2008").to_dataset()
+
+
+def _check(root, capsys):
+    from matprops.catalog import main
+
+    status = main(["--root", str(root)])
+    return status, capsys.readouterr().out
+
+
+def _problems(out):
+    return [line for line in out.splitlines() if line.startswith("error: ")]
+
+
+def test_check_command_fails_on_a_corrupted_table(datasets_copy, capsys):
+    root, _ = datasets_copy
+    _alter_table(root / "tables/green-2008.nc")
+    status, out = _check(root, capsys)
+    assert status == 1 and "verified" not in out
+    assert len(_problems(out)) == 1 and "tables/green-2008.nc: sha256" in out
+
+
+def test_check_command_fails_on_a_missing_table(datasets_copy, capsys):
+    root, _ = datasets_copy
+    (root / "tables/franta-2017.nc").unlink()
+    status, out = _check(root, capsys)
+    assert status == 1 and "tables/franta-2017.nc: listed in checksums.sha256 but missing" in out
+    assert len(_problems(out)) == 1  # once, though three models read it
+
+
+@pytest.mark.parametrize("relative, change, expected", [
+    ("scenarios/two-site-modules.toml", lambda t: t.replace("dawn = 12.0", "dawn = 13.0"),
+     "two-site-modules.toml: sha256"),
+    ("releases/2026.1.reference.json", lambda t: t.replace("1.", "2.", 1),
+     "2026.1.reference.json: sha256"),
+    ("models/band_gap/alex-1996.toml", lambda t: t + "\n", "alex-1996.toml: sha256"),
+])
+def test_check_command_covers_every_kind_of_file(datasets_copy, capsys, relative, change,
+                                                  expected):
+    root, _ = datasets_copy
+    path = root / relative
+    path.write_text(change(path.read_text()))
+    status, out = _check(root, capsys)
+    assert status == 1 and expected in out
+
+
+def test_check_command_fails_on_unlisted_files_and_bad_references(datasets_copy, capsys):
+    root, catalog = datasets_copy
+    _rewrite(root, "releases/2026.1.toml", 'band_gap = "passler-2002"',
+             'band_gap = "passler-2003"')
+    catalog.write_checksums()
+    (root / "scenarios/extra.toml").write_text("name = 'extra'\n")
+    status, out = _check(root, capsys)
+    assert status == 1
+    assert "models.band_gap = 'passler-2003' does not exist" in out
+    assert "scenarios/extra.toml: not listed in checksums.sha256" in out
+
+
+def test_check_command_fails_on_an_empty_or_missing_folder(tmp_path, capsys):
+    # before: "all dataset files verified" for an empty folder
+    empty = tmp_path / "datasets"
+    empty.mkdir()
+    status, out = _check(empty, capsys)
+    assert status == 1 and "checksum list is missing" in out
+    (empty / "checksums.sha256").write_text("")
+    status, out = _check(empty, capsys)
+    assert status == 1 and "models: folder is missing" in out
+    (empty / "models").mkdir()
+    (empty / "releases").mkdir()
+    status, out = _check(empty, capsys)
+    assert status == 1 and "no model files" in out and "no release files" in out
+    status, out = _check(tmp_path / "nowhere", capsys)
+    assert status == 1 and "does not exist" in out
+
+
+def test_scenario_is_read_verified_and_checked(datasets_copy):
+    root, catalog = datasets_copy
+    scenario = catalog.scenario("two-site-modules")
+    assert scenario["invented"] is True
+    _rewrite(root, "scenarios/two-site-modules.toml", "invented = true", "invented = 1")
+    with pytest.raises(matprops.ChecksumError):
+        catalog.scenario("two-site-modules")
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match="field 'invented' must be true or false"):
+        catalog.scenario("two-site-modules")
+    _rewrite(root, "scenarios/two-site-modules.toml", "invented = 1", "invented = true")
+    _rewrite(root, "scenarios/two-site-modules.toml", "dawn = 12.0", "dawn = nan")
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"field 'temperature.sites.hot-site.dawn'"
+                       r" must be a finite number"):
+        catalog.scenario("two-site-modules")
 
 
 def test_model_catalogue_in_docs_is_generated_from_datasets():
@@ -189,3 +302,138 @@ def test_model_catalogue_in_docs_is_generated_from_datasets():
 
     committed = Path(__file__).resolve().parent.parent / "docs" / "models.md"
     assert committed.read_text() == render(), "regenerate: python -m matprops.modeldocs"
+
+
+# ------------------------------------------------------------------ the strict schema
+
+@pytest.mark.parametrize("old, new, message", [
+    # unknown or misspelt keys, at every level (a misspelt validity section used to
+    # remove range checking without a word)
+    ('notes = "', 'note = "x"\nnotes = "', r"unknown field 'note' .*did you mean 'notes'\?"),
+    ("[validity.temperature]", "[validty.temperature]",
+     r"unknown field 'validty' .*did you mean 'validity'\?"),
+    ("max = 1000", "maks = 1000", r"unknown field 'validity.temperature.maks'"),
+    ('beta = { value = 636, units = "K" }', 'beta = { value = 636, unit = "K" }',
+     r"unknown field 'coefficients.beta.unit' .*did you mean 'units'\?"),
+    ("[source]", "[sauce]", r"unknown field 'sauce'"),
+    ('journal = "', 'jornal = "', r"unknown field 'source.jornal'"),
+    # numbers that are not finite: coefficient, limit, uncertainty, list entry
+    ("value = 636", "value = nan", r"field 'coefficients.beta.value' must be a finite number"),
+    ("max = 1000", "max = inf", r"field 'validity.temperature.max' must be a finite number"),
+    ("min = 0", "min = -inf", r"field 'validity.temperature.min' must be a finite number"),
+    ('value = 4.73e-4, units = "eV/K"', 'value = 4.73e-4, units = "eV/K", uncertainty = nan',
+     r"field 'coefficients.alpha.uncertainty' must be a finite number"),
+    ("value = 1.17,", "value = [1.17, nan],",
+     r"field 'coefficients.gap_at_zero.value\[1\]' must be a finite number"),
+    # wrong kinds of value
+    ("year = 1975", 'year = "1975"', r"field 'source.year' must be an integer"),
+    ('kind = "closed-form"', 'kind = "closed form"', r"field 'kind' must be one of"),
+    ("value = 636", 'value = "636"', r"field 'coefficients.beta.value' must be a finite number"),
+    ('authors = ["C. D. Thurmond"]', 'authors = "C. D. Thurmond"',
+     r"field 'source.authors' must be a list of text"),
+])
+def test_model_file_schema(datasets_copy, old, new, message):
+    root, catalog = datasets_copy
+    path = _rewrite(root, "models/band_gap/thurmond-1975.toml", old, new)
+    assert new in path.read_text()
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=message) as info:
+        catalog.model("band_gap", "thurmond-1975")
+    assert str(path) in str(info.value)
+
+
+def test_missing_required_field_is_named(datasets_copy):
+    import re
+
+    root, catalog = datasets_copy
+    path = root / "models/band_gap/thurmond-1975.toml"
+    path.write_text(re.sub(r'obtained = """.*?"""\n', "", path.read_text(), flags=re.DOTALL))
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"thurmond-1975.toml: missing required "
+                       r"field 'obtained'"):
+        catalog.model("band_gap", "thurmond-1975")
+
+
+@pytest.mark.parametrize("old, new, message", [
+    ('status = "draft"', 'status = "draft"\nstatuss = "final"',
+     r"unknown field 'statuss' .*did you mean 'status'\?"),
+    ('date = "2026-12-01"\n', "", r"missing required field 'date'"),
+    ('status = "draft"', 'status = "frozen"', r"field 'status' must be one of draft, final, got 'frozen'"),
+    ('band_gap = "passler-2002"', "band_gap = 2002", r"field 'models.band_gap' must be text"),
+    ('date = "2026-12-01"', 'date = "1 December"', r"field 'date' must be a date"),
+])
+def test_release_file_schema(datasets_copy, old, new, message):
+    root, catalog = datasets_copy
+    path = _rewrite(root, "releases/2026.1.toml", old, new)
+    assert new in path.read_text()
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=message) as info:
+        catalog.release("2026.1")
+    assert str(path) in str(info.value)
+
+
+def test_schema_accepts_every_shipped_file():
+    import tomllib
+
+    from matprops.schema import MODEL, RELEASE, validate
+
+    catalog = default_catalog()
+    for path in sorted((catalog.root / "models").rglob("*.toml")):
+        validate(path, tomllib.loads(path.read_text()), MODEL)
+    for path in sorted((catalog.root / "releases").glob("*.toml")):
+        validate(path, tomllib.loads(path.read_text()), RELEASE)
+
+
+# ------------------------------------------------------------------ where the data are
+
+def test_datasets_variable_pointing_nowhere_is_named(tmp_path, monkeypatch):
+    # before: a bare IndexError from the empty list of releases
+    from matprops.catalog import datasets_root
+
+    monkeypatch.setenv("MATPROPS_DATASETS", str(tmp_path / "nowhere"))
+    with pytest.raises(matprops.DatasetError, match=r"nowhere: datasets folder does not "
+                       r"exist; set MATPROPS_DATASETS .*\(MATPROPS_DATASETS='.*nowhere'\)"):
+        datasets_root()
+    monkeypatch.chdir(tmp_path)
+    monkeypatch.setenv("MATPROPS_DATASETS", "data")
+    with pytest.raises(matprops.DatasetError, match=r"MATPROPS_DATASETS='data', a relative "
+                       r"path resolved against the working folder"):
+        datasets_root()
+
+
+def test_empty_datasets_folder_is_named(tmp_path, monkeypatch):
+    monkeypatch.setenv("MATPROPS_DATASETS", str(tmp_path))
+    with pytest.raises(matprops.DatasetError, match=r"releases: folder is missing: .* \(set "
+                       r"by MATPROPS_DATASETS\) is not a matprops datasets folder"):
+        matprops.Silicon(catalog=Catalog())
+    (tmp_path / "releases").mkdir()
+    with pytest.raises(matprops.DatasetError, match=r"releases: no release file"):
+        matprops.Silicon(catalog=Catalog())
+
+
+def test_relative_datasets_path_is_resolved_once(datasets_copy, monkeypatch, tmp_path):
+    root, _ = datasets_copy
+    monkeypatch.chdir(root.parent)
+    monkeypatch.setenv("MATPROPS_DATASETS", root.name)
+    catalog = Catalog()
+    assert catalog.root == root and catalog.root.is_absolute()
+    monkeypatch.chdir(tmp_path.parent)  # elsewhere: the catalogue still finds its data
+    assert matprops.Silicon(catalog=catalog).band_gap(300).m_as("eV") > 1
+    monkeypatch.setenv("MATPROPS_DATASETS", "")  # empty counts as unset
+    assert Catalog().root == default_catalog().root
+
+
+def test_missing_release_file_is_named(datasets_copy):
+    root, catalog = datasets_copy
+    (root / "releases/2026.1.toml").unlink()
+    with pytest.raises(matprops.DatasetError, match=r"releases: no release file"):
+        matprops.Silicon(catalog=catalog)
+
+
+def test_malformed_release_file_is_named(datasets_copy):
+    # before: tomllib's error with no file name
+    root, catalog = datasets_copy
+    _rewrite(root, "releases/2026.1.toml", "[models]", "[models")
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"2026\.1\.toml: not valid TOML"):
+        matprops.Silicon(catalog=catalog)

@@ -86,3 +86,56 @@ def test_an_edit_anywhere_in_a_table_is_detected(datasets_copy, name, variable, 
     assert any(f"table {name}" in p for p in problems)
     if name == "green-2008.nc":  # and the evaluation at every stored point moves too
         assert any("_stored_points: differs" in p for p in problems)
+
+
+# ------------------------------------------------------------------ read-only installs
+
+@pytest.fixture
+def read_only(monkeypatch):
+    """Make writes under a folder fail as on a read-only install. (Tests run as root,
+    for whom file permissions do not bind, so the refusal is simulated at the call
+    that writes.)"""
+    import errno
+    from pathlib import Path
+
+    folders = []
+    original = Path.write_text
+
+    def write_text(self, *args, **kwargs):
+        if any(self.is_relative_to(folder) for folder in folders):
+            raise PermissionError(errno.EACCES, "Permission denied", str(self))
+        return original(self, *args, **kwargs)
+
+    monkeypatch.setattr(Path, "write_text", write_text)
+    return folders.append
+
+
+def test_update_checksums_on_a_read_only_install_says_so(datasets_copy, read_only, capsys):
+    # before: an OSError traceback
+    from matprops.catalog import main
+
+    root, _ = datasets_copy
+    read_only(root)
+    before = (root / "checksums.sha256").read_text()
+    assert main(["--update-checksums", "--root", str(root)]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and err.startswith("error: ")
+    assert "checksums.sha256: cannot be written (Permission denied)" in err
+    assert "read-only" in err and "Traceback" not in err
+    assert (root / "checksums.sha256").read_text() == before
+    assert not list(root.glob(".*tmp*"))
+
+
+def test_reference_regenerate_on_a_read_only_install_says_so(datasets_copy, read_only,
+                                                             capsys, monkeypatch):
+    from matprops import catalog as catalog_module
+    from matprops.reference import main
+
+    root, catalog = datasets_copy
+    monkeypatch.setattr(catalog_module, "_DEFAULT", [catalog])  # the "installed" copy
+    read_only(root)
+    assert main(["regenerate", "2026.1"]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "2026.1.reference.json: cannot be written" in err
+    assert main(["regenerate", "2030.1"]) == 2  # and an unknown release: no traceback
+    assert "unknown release '2030.1'" in capsys.readouterr().err

@@ -16,6 +16,7 @@ def cached_log(values: np.ndarray) -> np.ndarray:
         return hit[1]
     with np.errstate(divide="ignore"):
         logs = np.log(values)
+    logs.flags.writeable = False  # shared by every thread that calls the kernel
     _LOG_CACHE[id(values)] = (values, logs)
     return logs
 

@@ -198,8 +198,10 @@ class CarrierMethods:
         kernel_names = {"temperature": "temperature", "Na": "acceptor_density",
                         "Nd": "donor_density", "n": "electron_density",
                         "p": "hole_density", "excess": "excess_density"}
-        prepared = {kernel_names[name]: coerce(value, name)
-                    for name, value in named.items() if value is not None}
+        # None means "not given" only for the optional carrier densities n and p;
+        # elsewhere coerce says what was received
+        named = {k: v for k, v in named.items() if v is not None or k not in ("n", "p")}
+        prepared = {kernel_names[name]: coerce(value, name) for name, value in named.items()}
         try:
             np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
         except ValueError:

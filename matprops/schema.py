@@ -1,0 +1,259 @@
+"""The shape of every data file in ``datasets/``, declared in one place.
+
+Each section below is a table ``key: (kind of value, REQUIRED or OPTIONAL)``. A file
+is checked against it before anything is read from it: an unknown (or misspelt) key,
+a missing required field, a value of the wrong kind and a number that is not finite
+(TOML allows ``nan`` and ``inf``) are each a :class:`~matprops.DatasetError` naming the
+file and the field, e.g. ``coefficients.alpha.value[1]``. A new field is one new line
+in its section. Rules that need more than the file's shape (a coefficient set that
+matches its kernel, units that convert, min below max) live in :mod:`matprops.catalog`.
+
+Kinds of value::
+
+    TEXT        a string                    NUMBER   a finite int or float
+    INTEGER     an int                      NUMBERS  a finite number or a non-empty list of them
+    TEXTS       a list of strings           FLAG     true or false
+    DATE        a TOML date or "YYYY-MM-DD" PAIRS    a list of [number, number] pairs
+    one_of(...)     one of the given strings
+    table_of(S)     a table whose keys are free names (coefficient, input, quantity ...)
+                    and whose values are each a section S (or a kind)
+    list_of(S)      a list whose entries are each a section S
+"""
+
+from __future__ import annotations
+
+import datetime
+import difflib
+import math
+import re
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass
+from typing import Any
+
+from .errors import DatasetError
+
+__all__ = ["KINDS", "MODEL", "RELEASE", "SCENARIO", "THERMAL_VELOCITY_DEFINITIONS",
+           "VARIANT_AXES", "validate"]
+
+REQUIRED, OPTIONAL = True, False
+KINDS = ("closed-form", "table", "composed")  # of model: see matprops.catalog
+VARIANT_AXES = ("dopant", "carrier")  # what a model's coefficient sets are per
+# a thermal velocity is the mean speed sqrt(8kT/(pi m)) or the rms speed sqrt(3kT/m)
+THERMAL_VELOCITY_DEFINITIONS = ("mean speed", "root-mean-square speed")
+
+
+@dataclass(frozen=True)
+class Kind:
+    """A leaf value: its description for messages and a test."""
+
+    description: str
+    accepts: Callable[[Any], bool]
+
+
+@dataclass(frozen=True)
+class TableOf:
+    """A table whose keys are free names, each holding ``entry``."""
+
+    entry: Any
+
+
+@dataclass(frozen=True)
+class ListOf:
+    """A list whose entries are each ``entry`` (a section)."""
+
+    entry: Any
+
+
+def _is_number(value) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
+
+
+TEXT = Kind("text", lambda v: isinstance(v, str))
+INTEGER = Kind("an integer", lambda v: isinstance(v, int) and not isinstance(v, bool))
+NUMBER = Kind("a finite number", _is_number)
+NUMBERS = Kind("a finite number or a non-empty list of finite numbers",
+               lambda v: _is_number(v) or (isinstance(v, list) and bool(v)
+                                           and all(_is_number(x) for x in v)))
+TEXTS = Kind("a list of text", lambda v: isinstance(v, list)
+             and all(isinstance(x, str) for x in v))
+PAIRS = Kind("a list of [number, number] pairs", lambda v: isinstance(v, list) and all(
+    isinstance(p, list) and len(p) == 2 and all(_is_number(x) for x in p) for p in v))
+FLAG = Kind("true or false", lambda v: isinstance(v, bool))
+DATE = Kind("a date (YYYY-MM-DD)", lambda v: isinstance(v, datetime.date) or (
+    isinstance(v, str) and re.fullmatch(r"\d{4}-\d{2}-\d{2}", v) is not None))
+
+
+def one_of(*choices: str) -> Kind:
+    return Kind(f"one of {', '.join(choices)}", lambda v: v in choices)
+
+
+def table_of(entry) -> TableOf:
+    return TableOf(entry)
+
+
+def list_of(entry) -> ListOf:
+    return ListOf(entry)
+
+
+# --------------------------------------------------------------------------- sections
+
+SOURCE = {                         # which fields each type needs: catalog.SOURCE_TYPES
+    "type": (one_of("article", "book"), OPTIONAL),   # default "article"
+    "authors": (TEXTS, REQUIRED),
+    "year": (INTEGER, REQUIRED),
+    "title": (TEXT, REQUIRED),
+    "journal": (TEXT, OPTIONAL),   # articles
+    "volume": (TEXT, OPTIONAL),    # articles
+    "pages": (TEXT, OPTIONAL),     # articles
+    "publisher": (TEXT, OPTIONAL),  # books
+    "edition": (TEXT, OPTIONAL),   # books
+    "address": (TEXT, OPTIONAL),   # books
+    "doi": (TEXT, REQUIRED),       # "" where the publication has none
+}
+
+COEFFICIENT = {                    # [coefficients] name = { value = ..., units = ... }
+    "value": (NUMBERS, REQUIRED),
+    "units": (TEXT, REQUIRED),
+    "uncertainty": (NUMBERS, OPTIONAL),
+    "obtained": (TEXT, OPTIONAL),  # this number's own origin, where it differs
+}
+
+RANGE = {                          # [validity.<kernel input>]
+    "min": (NUMBER, REQUIRED),
+    "max": (NUMBER, REQUIRED),
+    "units": (TEXT, REQUIRED),
+}
+
+REGION = {                         # [[validity_region]]: see matprops.regions
+    "input": (TEXT, REQUIRED),
+    "limit": (one_of("min", "max"), REQUIRED),
+    "varies_with": (TEXT, REQUIRED),
+    "points": (PAIRS, REQUIRED),
+    "units": (TEXTS, REQUIRED),
+    "reason": (TEXT, REQUIRED),
+}
+
+VARIANT = {                        # [variants.<name>]: one coefficient set of a model
+    "coefficients": (table_of(COEFFICIENT), OPTIONAL),
+    "validity": (table_of(RANGE), OPTIONAL),
+    "obtained": (TEXT, OPTIONAL),
+    "kernel": (TEXT, OPTIONAL),  # an equation form of its own (same inputs and output)
+}
+
+FITTED_DENSITY = {                 # the intrinsic density an apparent narrowing was fitted with
+    **COEFFICIENT,
+    "temperature": (NUMBER, REQUIRED),  # K
+}
+
+NARROWING = {                      # [narrowing] of a gap_narrowing model
+    "type": (one_of("apparent", "physical"), REQUIRED),
+    "statistics": (one_of("boltzmann", "fermi-dirac"), REQUIRED),
+    "split": (TEXT, REQUIRED),
+    "intrinsic_density": (FITTED_DENSITY, OPTIONAL),  # required for "apparent"
+}
+
+MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
+    "id": (TEXT, REQUIRED),
+    "quantity": (TEXT, REQUIRED),
+    "name": (TEXT, REQUIRED),
+    "kind": (one_of(*KINDS), REQUIRED),
+    "kernel": (TEXT, REQUIRED),
+    "obtained": (TEXT, REQUIRED),
+    "notes": (TEXT, OPTIONAL),
+    "source": (SOURCE, REQUIRED),
+    "additional_sources": (list_of(SOURCE), OPTIONAL),
+    "fallback": (TEXT, OPTIONAL),
+    "table": (TEXT, OPTIONAL),                       # required for kind "table"
+    "table_arguments": (table_of(TEXT), OPTIONAL),   # required for kind "table"
+    "validity": (table_of(RANGE), OPTIONAL),
+    "validity_region": (list_of(REGION), OPTIONAL),
+    "coefficients": (table_of(COEFFICIENT), OPTIONAL),
+    # -- the doping axis (which quantity needs which section: catalog.QUANTITY_SECTIONS)
+    "variant_axis": (one_of(*VARIANT_AXES), OPTIONAL),  # goes with variants
+    "variants": (table_of(VARIANT), OPTIONAL),          # one coefficient set per name
+    "narrowing": (NARROWING, OPTIONAL),                 # gap_narrowing models
+    "dopant_densities": (one_of("total", "ionised"), OPTIONAL),  # mobility models
+    "definition": (one_of(*THERMAL_VELOCITY_DEFINITIONS), OPTIONAL),  # thermal_velocity
+    # -- new fields: one line here
+}
+
+RELEASE = {                        # datasets/releases/<release-id>.toml
+    "release": (TEXT, REQUIRED),
+    "status": (one_of("draft", "final"), REQUIRED),
+    "date": (DATE, REQUIRED),
+    "notes": (TEXT, REQUIRED),
+    "models": (table_of(TEXT), REQUIRED),            # quantity = "model-id"
+}
+
+OPERATING_POINTS = {               # [temperature] of a scenario
+    "units": (TEXT, REQUIRED),
+    "sites": (table_of(table_of(NUMBER)), REQUIRED),  # [temperature.sites.<site>] name = T
+}
+
+DOPED_REGION = {                   # [regions.<name>] of a scenario
+    "units": (TEXT, REQUIRED),
+    "acceptor_density": (NUMBER, OPTIONAL),
+    "donor_density": (NUMBER, OPTIONAL),
+    "excess_density": (NUMBER, OPTIONAL),
+    "note": (TEXT, OPTIONAL),
+}
+
+SCENARIO = {                       # datasets/scenarios/<name>.toml (invented demo data)
+    "name": (TEXT, REQUIRED),
+    "title": (TEXT, REQUIRED),
+    "invented": (FLAG, REQUIRED),
+    "description": (TEXT, OPTIONAL),
+    "quantities": (TEXTS, REQUIRED),
+    "carriers": (TEXTS, OPTIONAL),
+    "temperature": (OPERATING_POINTS, REQUIRED),
+    "regions": (table_of(DOPED_REGION), OPTIONAL),
+}
+
+
+# --------------------------------------------------------------------------- checking
+
+
+def validate(path, data: Mapping, section: Mapping, where: str = "") -> None:
+    """Raise DatasetError(path, ...) at the first field of ``data`` that ``section``
+    does not allow, misses, or whose value is of the wrong kind or not finite."""
+    for key in data:
+        if key not in section:
+            close = difflib.get_close_matches(str(key), list(section), n=1)
+            hint = f"; did you mean {close[0]!r}?" if close else ""
+            raise DatasetError(path, f"unknown field '{where}{key}' (allowed here: "
+                               f"{', '.join(section)}){hint}")
+    for key, (kind, required) in section.items():
+        if key in data:
+            _check(path, data[key], kind, f"{where}{key}")
+        elif required:
+            raise DatasetError(path, f"missing required field '{where}{key}'")
+
+
+def _check(path, value, kind, where: str) -> None:
+    if isinstance(kind, Mapping):
+        if not isinstance(value, Mapping):
+            raise DatasetError(path, f"field '{where}' must be a table, got {value!r}")
+        validate(path, value, kind, f"{where}.")
+    elif isinstance(kind, TableOf):
+        if not isinstance(value, Mapping):
+            raise DatasetError(path, f"field '{where}' must be a table, got {value!r}")
+        for name, entry in value.items():
+            _check(path, entry, kind.entry, f"{where}.{name}")
+    elif isinstance(kind, ListOf):
+        if not isinstance(value, list):
+            raise DatasetError(path, f"field '{where}' must be a list, got {value!r}")
+        for index, entry in enumerate(value):
+            _check(path, entry, kind.entry, f"{where}[{index}]")
+    else:
+        if not kind.accepts(value):
+            raise DatasetError(path, f"field '{where}' must be {kind.description}, "
+                               f"got {value!r}")
+        _check_finite(path, value, where)
+
+
+def _check_finite(path, value, where: str) -> None:
+    if isinstance(value, list):
+        for index, item in enumerate(value):
+            _check_finite(path, item, f"{where}[{index}]")
+    elif isinstance(value, float) and not math.isfinite(value):
+        raise DatasetError(path, f"field '{where}' must be a finite number, got {value!r}")
