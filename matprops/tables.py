@@ -133,6 +133,8 @@ class Tabulated:
         ``outputs``
     fixed : keyword arguments always passed to the method (e.g. the standard
         resistivity is ``si.resistivity(..., conversion="standard")``)
+    by_default : False for a quantity tabulated only when named (the standard's 23 degC
+        conversions, which warn at any other temperature)
 
     Example: ``Tabulated("mobility", {"carrier": 0, "temperature": 1,
     "acceptor_density": "Na", "donor_density": "Nd"}, (("mobility", "carrier
@@ -148,6 +150,7 @@ class Tabulated:
     needs: tuple[str, ...] = ()
     fields: tuple[str, ...] = ()
     fixed: Mapping[str, object] = field(default_factory=dict)
+    by_default: bool = True
     _signature: dict = field(default_factory=dict, compare=False, repr=False)
 
     def parameters(self, si) -> dict[str, tuple[str, bool]]:
@@ -276,10 +279,11 @@ QUANTITIES: dict[str, Tabulated] = _registry(
     Tabulated("standard_resistivity", _EQUILIBRIUM_AXES, (
         ("standard_resistivity", "resistivity by the standard conversion (23 degC)"),),
         method="resistivity", fixed={"conversion": "standard"}, wants=_DOPING[:2],
-        log=True),
+        log=True, by_default=False),
     Tabulated("standard_dopant_density", _FROM_RESISTIVITY, (
         ("standard_dopant_density", "dopant density by the standard conversion (23 degC)"),),
-        method="doping_from_resistivity", fixed={"conversion": "standard"}, log=True),
+        method="doping_from_resistivity", fixed={"conversion": "standard"}, log=True,
+        by_default=False),
 )
 
 
@@ -427,6 +431,8 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
         chosen = []
         for name in available(si):
             entry = QUANTITIES[name]
+            if not entry.by_default:
+                continue
             if not set(entry.takes) & set(grid.values):
                 continue
             if not set(entry.required(si)) <= set(grid.values):

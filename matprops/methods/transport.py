@@ -64,7 +64,9 @@ DERIVED = {
         ("mobility", *_EQUILIBRIUM),
         "the density N of one dopant species with rho(T, N) equal to the given "
         "resistivity, rho as for resistivity; solved for all points at once (Illinois "
-        "false position in ln N, to 1e-13 in ln N) on the branch above 4 ni"),
+        "false position in ln N, to 1e-13 in ln N) on the doping-dominated branch: for "
+        "acceptors above the resistivity maximum at N = ni (sqrt(r) - 1/sqrt(r)), "
+        "r = mu_n/mu_p of intrinsic silicon"),
 }
 
 # Quantities whose plain-array kernels this family hands out (see Silicon.kernel).
@@ -359,6 +361,9 @@ class TransportMethods:
         A resistivity that no density of the dopant gives at that temperature
         (above that of nearly intrinsic silicon, or below that of 1e21 cm^-3) is an
         error naming the range; a density outside the models' validity warns.
+        Acceptors first raise the resistivity of intrinsic silicon (they remove its
+        more mobile electrons) up to a maximum near ``N = ni (sqrt(r) - 1/sqrt(r))``,
+        ``r = mu_n / mu_p``; the answer is the density above that maximum.
         """
         _choice(conversion, "conversion", CONVERSIONS)
         species = dopant_species(dopant, "dopant")
@@ -378,7 +383,7 @@ class TransportMethods:
         acceptor = species if kind == "acceptor" else "boron"
         target = np.broadcast_to(rho[0], shape).ravel()
         temperatures = np.broadcast_to(t[0], shape).ravel()
-        density = self._invert_resistivity(target, temperatures, kind, donor, acceptor)
+        density = self._invert_resistivity(target, temperatures, species, donor, acceptor)
         # validity of every model on the answer's range (warn, or raise if strict)
         zeros = np.zeros_like(density)
         nd, na = (density, zeros) if kind == "donor" else (zeros, density)
@@ -392,9 +397,29 @@ class TransportMethods:
                     model.check(name, *prepared[name][1:], self.strict)
         return quantity(density.reshape(shape), "cm^-3")
 
-    def _invert_resistivity(self, target, temperatures, kind, donor, acceptor):
-        """N (1-D) with rho(T, N) = target, on the branch N >= 4 ni(T)."""
-        bound = self._carriers()
+    def _lowest_density(self, temperatures, kind, donor, acceptor):
+        """Where the doping-dominated branch of rho(N) starts (cm^-3, 1-D).
+
+        Donors: rho falls from the intrinsic value for any N, so 1e-3 ni. Acceptors:
+        rho peaks where p = ni sqrt(r), r = mu_n/mu_p of intrinsic silicon, i.e. at
+        N = ni (sqrt(r) - 1/sqrt(r)); the branch above it falls monotonically.
+        """
+        ni = self._carriers().ni(temperature=temperatures)
+        if kind == "donor":
+            return np.maximum(1e-3 * ni, 1e-30)
+        zeros = np.zeros_like(ni)
+        state = {"temperature": temperatures, "donor_density": zeros,
+                 "acceptor_density": zeros, "electron_density": ni, "hole_density": ni}
+        mu = [model(**{k: state[k] for k in model.inputs}) for model in
+              (self._mobility_model(c, donor, acceptor) for c in CARRIERS)]
+        root = np.sqrt(np.maximum(mu[0] / mu[1], 1.0))
+        return np.maximum(ni * (root - 1.0 / root), 1e-3 * ni)
+
+    def _invert_resistivity(self, target, temperatures, species, donor, acceptor):
+        """N (1-D) with rho(T, N) = target on the doping-dominated branch."""
+        kind = DOPANTS[species]
+        if target.size == 0:
+            return np.zeros(0)
         log_target = np.log(target)
 
         def log_rho(log_n, index):
@@ -406,17 +431,17 @@ class TransportMethods:
             return -np.log(sigma)
 
         everything = np.arange(target.size)
-        low = np.log(np.maximum(4.0 * bound.ni(temperature=temperatures), 1.0))
+        low = np.log(self._lowest_density(temperatures, kind, donor, acceptor))
         high = np.full(target.size, np.log(_HIGHEST_DENSITY))
         rho_low, rho_high = log_rho(low, everything), log_rho(high, everything)
         for bad, limit, what in ((log_target > rho_low, rho_low, "at most"),
                                  (log_target < rho_high, rho_high, "at least")):
             if bad.any():
                 i = np.flatnonzero(bad)[0]
-                raise InputError("resistivity", f"{what} {np.exp(limit[i]):.4g} ohm*cm at "
-                                 f"{temperatures[i]:g} K for {kind}s of one species "
-                                 f"(densities {np.exp(low[i]):.3g}-{_HIGHEST_DENSITY:.0e} "
-                                 f"cm^-3)", f"{target[i]:g} ohm*cm at point #{i} "
+                raise InputError("resistivity", f"{what} {np.exp(limit[i]):.4g} ohm*cm for "
+                                 f"{species}-doped silicon at {temperatures[i]:g} K (what "
+                                 f"{np.exp(low[i]):.3g}-{_HIGHEST_DENSITY:.0e} cm^-3 give)",
+                                 f"{target[i]:g} ohm*cm at point #{i} "
                                  f"({np.count_nonzero(bad)} point(s) out of reach)")
         log_n, converged = resistivity_kernels.solve_decreasing(
             log_rho, log_target, low, high, f_low=rho_low, f_high=rho_high)
