@@ -48,6 +48,9 @@ DOPINGS = [0.0, 1e14, 1e16, 1e18, 1e20]
 
 # (case label, Silicon method, fixed keyword arguments, gridded arguments)
 # Gridded arguments are combined as an outer product in the order given.
+DOPANTS = {"Nd": [0.0, 1e14, 1e16, 1e18, 3e19, 1e20], "Na": [0.0, 1e15, 1e17, 1e19]}
+DOPING_GRID = {"temperature": [250.0, 300.0, 350.0], **DOPANTS}
+
 CASES = [
     ("band_gap", "band_gap", {}, {"temperature": TEMPERATURES}),
     ("densities_of_states", "densities_of_states", {}, {"temperature": TEMPERATURES}),
@@ -68,6 +71,15 @@ CASES = [
     ("free_carrier_absorption", "free_carrier_absorption", {},
      {"wavelength": [1000.0, 1300.0, 1450.0, 1550.0, 2000.0, 5000.0],
       "n": [0.0, 1e16, 1e19], "p": [0.0, 1e16, 1e19]}),
+    ("gap_narrowing", "gap_narrowing", {}, DOPING_GRID),
+    ("band_edge_shifts", "band_edge_shifts", {},
+     {"temperature": [250.0, 300.0, 400.0], "Nd": [0.0, 1e18, 1e20], "Na": [0.0, 1e17],
+      "n": [1e10, 1e18, 1e20], "p": [1e3, 1e16, 1e19]}),
+    ("effective_intrinsic_density", "effective_intrinsic_density", {}, DOPING_GRID),
+    ("equilibrium", "equilibrium", {},
+     {"temperature": [77.0, 200.0, 300.0, 400.0, 500.0], **DOPANTS}),
+    ("equilibrium_boltzmann", "equilibrium", {"statistics": "boltzmann"},
+     {"temperature": [300.0], **DOPANTS}),
     *[(f"thermal_velocity_{c}", "thermal_velocity", {"carrier": c},
        {"temperature": TEMPERATURES}) for c in ("electron", "hole")],
     *[(f"saturation_velocity_{c}", "saturation_velocity", {"carrier": c},
@@ -96,9 +108,15 @@ CASES = [
 ]
 
 
+# Silicon methods named otherwise than the quantity whose model they evaluate
+_METHOD_QUANTITIES = {"band_edge_shifts": ("gap_narrowing",), "dopant_level": ("ionisation",)}
+
+
 def _needs(method: str) -> tuple[str, ...]:
     from .material import DERIVED
 
+    if method in _METHOD_QUANTITIES:
+        return _METHOD_QUANTITIES[method]
     return DERIVED[method][0] if method in DERIVED else (method,)
 
 
@@ -142,10 +160,21 @@ def _table_digests(si) -> dict:
     return {name: table_digest(si.catalog.table_arrays(name)) for name in names}
 
 
+def _variant_cases(si) -> list:
+    """Every coefficient set of the ionisation model (one case per dopant species)."""
+    if "ionisation" not in si.models:
+        return []
+    return [(f"dopant_level_{species}", "dopant_level", {"dopant": species},
+             {"N": [0.0, 1e14, 1e16, 1e18, 3e18, 1e19, 1e20]})
+            for species in si.model("ionisation").variants]
+
+
 def evaluate(si) -> dict:
     """Evaluate every reference case that ``si``'s release serves."""
+    from .results import Result
+
     cases = {}
-    for label, method, fixed, grid in CASES + _table_cases(si):
+    for label, method, fixed, grid in CASES + _table_cases(si) + _variant_cases(si):
         if not all(q in si.models for q in _needs(method)):
             continue
         names = list(grid)
@@ -154,7 +183,10 @@ def evaluate(si) -> dict:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # the grid crosses validity limits on purpose
             result = getattr(si, method)(**fixed, **arguments)
-        parts = result if isinstance(result, tuple) else (result,)
+        if isinstance(result, Result):
+            parts = tuple(result.quantities().values())
+        else:
+            parts = result if isinstance(result, tuple) else (result,)
         cases[label] = {
             "method": method, "fixed": fixed, "grid": grid,
             "units": [f"{p.units:~}" for p in parts],

@@ -38,7 +38,7 @@ import numpy as np
 from .errors import InputError, UnknownModelError, UnknownQuantityError, ValidityWarning
 from .units import name as check_name
 from .units import names as check_names
-from .units import to_magnitude
+from .units import cf_units, to_magnitude
 
 __all__ = ["AXES", "QUANTITIES", "Axis", "Tabulated", "available", "axis", "cf_units",
            "compare", "table"]
@@ -82,9 +82,6 @@ AXES: dict[str, Axis] = {a.name: a for a in (
     Axis("carrier", None, None, "charge carrier", choices=("electron", "hole")),
     Axis("plane", None, None, "crystal plane (Miller indices)",
          choices=("100", "110", "111")),
-    Axis("dopant", None, None, "dopant species",
-         choices=("phosphorus", "arsenic", "antimony", "boron", "aluminium", "gallium",
-                  "indium")),
     Axis("temperature", "T", "K", "temperature", "positive"),
     Axis("acceptor_density", "Na", "cm^-3", "acceptor density", "non-negative", log=True),
     Axis("donor_density", "Nd", "cm^-3", "donor density", "non-negative", log=True),
@@ -95,6 +92,11 @@ AXES: dict[str, Axis] = {a.name: a for a in (
     Axis("field", None, "V/cm", "electric field strength", "non-negative", log=True),
     Axis("resistivity", "rho", "ohm*cm", "resistivity", "positive", log=True),
     Axis("wavelength", None, "nm", "vacuum wavelength", "positive"),
+    Axis("dopant", None, None, "dopant species",
+         choices=("phosphorus", "arsenic", "antimony", "boron", "aluminium", "gallium",
+                  "indium")),
+    Axis("dopant_density", "N", "cm^-3", "density of one dopant species", "non-negative",
+         log=True),
 )}
 _ALIASES = {a.alias: a.name for a in AXES.values() if a.alias}
 
@@ -254,6 +256,10 @@ QUANTITIES: dict[str, Tabulated] = _registry(
               fields=("fermi_level", "fermi_level_from_conduction_edge", "electron_density",
                       "hole_density", "ionised_donors", "ionised_acceptors"),
               wants=_DOPING[:2]),
+    Tabulated("ionisation", {"dopant_density": 0, "dopant": 1}, (
+        ("ionisation_energy", "ionisation energy of the dopant level"),
+        ("localised_share", "share of the dopant's states still localised")),
+        method="dopant_level", wants=("dopant_density",)),
     # transport (methods of the transport family)
     Tabulated("mobility", {"carrier": 0, **_DOPED_SHIFTED}, (
         ("mobility", "low-field carrier mobility"),), log=True),
@@ -274,7 +280,8 @@ QUANTITIES: dict[str, Tabulated] = _registry(
         ("electrical_conductivity", "conductivity of silicon in equilibrium"),),
         wants=_DOPING[:2], log=True),
     Tabulated("doping_from_resistivity", _FROM_RESISTIVITY, (
-        ("dopant_density", "density of the dopant species that gives the resistivity"),),
+        ("doping_from_resistivity",
+         "density of the dopant species that gives the resistivity"),),
         log=True),
     Tabulated("standard_resistivity", _EQUILIBRIUM_AXES, (
         ("standard_resistivity", "resistivity by the standard conversion (23 degC)"),),
@@ -295,28 +302,6 @@ def available(si) -> list[str]:
 
 
 # --------------------------------------------------------------------------- units
-
-_CF_SYMBOLS = {"ohm": "ohm", "degree_Celsius": "degC", "degree_Fahrenheit": "degF",
-               "percent": "%", "micrometer": "um", "microsecond": "us",
-               "dimensionless": "1"}
-
-
-@functools.cache
-def cf_units(units) -> str:
-    """A UDUNITS string for pint units: ``cm^-3`` -> ``cm-3``,
-    ``cm^2/(V*s)`` -> ``cm2 V-1 s-1``, dimensionless -> ``1``."""
-    from .units import ureg
-
-    unit = ureg.Unit(units) if isinstance(units, str) else units
-    if unit.dimensionless and not unit._units:
-        return "1"
-    parts = []
-    for name, power in unit._units.items():
-        symbol = _CF_SYMBOLS.get(name) or ureg.get_symbol(name).replace("µ", "u")
-        power = int(power) if float(power).is_integer() else float(power)
-        parts.append(symbol if power == 1 else f"{symbol}{power}")
-    return " ".join(parts) or "1"
-
 
 _DISPLAY_TEMPERATURE = {"kelvin": "K", "degree_Celsius": "degC",
                         "degree_Fahrenheit": "degF", "degree_Rankine": "degR"}

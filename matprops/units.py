@@ -273,14 +273,22 @@ def quantity(magnitude, units: str):
     return Q_(magnitude, unit(units))
 
 
+
+_CF_SYMBOLS = {"ohm": "ohm", "degree_Celsius": "degC", "degree_Fahrenheit": "degF",
+               "percent": "%", "micrometer": "um", "microsecond": "us",
+               "dimensionless": "1"}
+
+
+@cache
 def cf_units(units) -> str:
-    """A pint unit as a UDUNITS string for CF files: ``cm^-3`` -> ``cm-3``,
-    ``cm^2/(V s)`` -> ``cm2 V-1 s-1``, dimensionless -> ``1``."""
+    """A UDUNITS string for CF files: ``cm^-3`` -> ``cm-3``,
+    ``cm^2/(V*s)`` -> ``cm2 V-1 s-1``, dimensionless -> ``1`` (ASCII only)."""
+    unit_ = unit(units) if isinstance(units, str) else units
+    if unit_.dimensionless and not unit_._units:
+        return "1"
     parts = []
-    for name, power in unit(str(units))._units.items():
-        symbol = ureg.get_symbol(name)
-        if not symbol.isascii():  # e.g. the ohm: UDUNITS files are safest in ASCII
-            symbol = name
-        exponent = int(power) if float(power).is_integer() else float(power)
-        parts.append(symbol if exponent == 1 else f"{symbol}{exponent}")
+    for name, power in unit_._units.items():
+        symbol = _CF_SYMBOLS.get(name) or ureg.get_symbol(name).replace("µ", "u")
+        power = int(power) if float(power).is_integer() else float(power)
+        parts.append(symbol if power == 1 else f"{symbol}{power}")
     return " ".join(parts) or "1"

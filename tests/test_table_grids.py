@@ -65,7 +65,8 @@ def test_every_quantity_of_the_release_can_be_tabulated(si):
                "excess_density": [0.0, 1e15], "electron_density": [1e16],
                "hole_density": [1e16], "carrier": ["electron", "hole"],
                "plane": ["100", "110", "111"], "field": [0.0, 1e4],
-               "resistivity": [1.0, 10.0], "dopant": ["boron", "phosphorus"]}
+               "resistivity": [1.0, 10.0], "dopant": ["boron", "phosphorus"],
+               "dopant_density": [1e16, 1e18]}
     served = available(si)
     # every quantity with a model in the release, and every derived one, is in the registry
     from matprops.material import DERIVED

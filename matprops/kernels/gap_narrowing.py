@@ -135,42 +135,85 @@ def schenk(temperature, donor_density, acceptor_density, electron_density, hole_
     ----------
     A. Schenk, J. Appl. Phys. 84, 3684 (1998), doi:10.1063/1.368545.
     """
-    t = BOLTZMANN_EV * np.asarray(temperature, dtype=float) / exciton_rydberg
-    volume = exciton_radius ** 3
-    n = np.asarray(electron_density, dtype=float) * volume
-    p = np.asarray(hole_density, dtype=float) * volume
-    donors = np.asarray(donor_density, dtype=float) * volume
-    acceptors = np.asarray(acceptor_density, dtype=float) * volume
-    dopants = donors + acceptors
-    alpha_e = hole_mass / (electron_mass + hole_mass)
-    alpha_h = electron_mass / (electron_mass + hole_mass)
+    parts = _SchenkParts(temperature, donor_density, acceptor_density, electron_mass,
+                         hole_mass, electron_degeneracy, hole_degeneracy, exciton_rydberg,
+                         exciton_radius, (b_e, c_e, d_e, p_e, h_e, j_e, k_e, q_e),
+                         (b_h, c_h, d_h, p_h, h_h, j_h, k_h, q_h))
+    return parts(electron_density, hole_density)
 
-    ns = n + p
-    n_p = alpha_e * n + alpha_h * p
-    t2 = t * t
-    t3 = t2 * t
-    four_pi_cubed_ns2 = (4.0 * np.pi) ** 3 * ns * ns
-    sqrt_ns = np.sqrt(ns)
-    common_top = np.sqrt(8.0 * np.pi * ns) * t2 * np.sqrt(t)
-    common_bottom = four_pi_cubed_ns2 + t3 + 40.0 * ns * sqrt_ns * t
 
-    u = dopants * dopants / t3
-    ionic_top = dopants * (1.0 + u)
-    sqrt_dopants = np.sqrt(dopants)
-    screening = np.sqrt(t * dopants / (2.0 * np.pi))
-    ions_p = alpha_e * donors + alpha_h * acceptors
-    ions_p34 = ions_p ** 0.75
+def _fixed_dopants(temperature, donor_density, acceptor_density, *, electron_mass,
+                   hole_mass, electron_degeneracy, hole_degeneracy, exciton_rydberg,
+                   exciton_radius, b_e, b_h, c_e, c_h, d_e, d_h, p_e, p_h, h_e, h_h, j_e, j_h,
+                   k_e, k_h, q_e, q_h):
+    """Schenk's shifts as a function of ``(n, p)`` alone, the ionic part computed once
+    (for solvers that iterate on the carrier densities at fixed T, Nd, Na)."""
+    return _SchenkParts(temperature, donor_density, acceptor_density, electron_mass,
+                        hole_mass, electron_degeneracy, hole_degeneracy, exciton_rydberg,
+                        exciton_radius, (b_e, c_e, d_e, p_e, h_e, j_e, k_e, q_e),
+                        (b_h, c_h, d_h, p_h, h_h, j_h, k_h, q_h))
 
-    def shift(n_a, g_a, alpha_a, b, c, d, pa, h, j, k, q):
-        exchange = -(four_pi_cubed_ns2 * (np.cbrt(48.0 * n_a / (np.pi * g_a))
-                                          + c * np.log1p(d * n_p ** pa))
-                     + (8.0 * np.pi * alpha_a / g_a) * n_a * t2 + common_top) \
-            / (common_bottom + b * sqrt_ns * t2)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            ionic = -ionic_top / (screening * (1.0 + h * np.log1p(sqrt_dopants / t))
-                                  + j * u * ions_p34 * (1.0 + k * ions_p ** q))
-        ionic = np.where(dopants > 0, ionic, 0.0)
-        return -(exchange + ionic) * exciton_rydberg
 
-    return (shift(n, electron_degeneracy, alpha_e, b_e, c_e, d_e, p_e, h_e, j_e, k_e, q_e),
-            shift(p, hole_degeneracy, alpha_h, b_h, c_h, d_h, p_h, h_h, j_h, k_h, q_h))
+schenk.with_fixed_dopants = _fixed_dopants
+
+
+class _SchenkParts:
+    """The ionic shifts of both bands (dopants, T) and a callable for the exchange part."""
+
+    def __init__(self, temperature, donor_density, acceptor_density, electron_mass,
+                 hole_mass, electron_degeneracy, hole_degeneracy, rydberg, radius,
+                 electron_set, hole_set):
+        self.rydberg, self.volume = rydberg, radius ** 3
+        t = BOLTZMANN_EV * np.asarray(temperature, dtype=float) / rydberg
+        self.t = t
+        self.alpha_e = hole_mass / (electron_mass + hole_mass)
+        self.alpha_h = electron_mass / (electron_mass + hole_mass)
+        self.g_e, self.g_h = electron_degeneracy, hole_degeneracy
+        self.electron_set, self.hole_set = electron_set, hole_set
+        donors = np.asarray(donor_density, dtype=float) * self.volume
+        acceptors = np.asarray(acceptor_density, dtype=float) * self.volume
+        dopants = donors + acceptors
+        t3 = t * t * t
+        u = dopants * dopants / t3
+        screening = np.sqrt(t * dopants / (2.0 * np.pi))
+        log_screening = np.log1p(np.sqrt(dopants) / t)
+        ions_p = self.alpha_e * donors + self.alpha_h * acceptors
+        with np.errstate(divide="ignore"):
+            log_ions_p = np.log(ions_p)
+        ions_p34 = np.exp(0.75 * log_ions_p)
+        ionic_top = dopants * (1.0 + u)
+
+        def ionic(parameters):
+            _, _, _, _, h, j, k, q = parameters
+            with np.errstate(invalid="ignore", divide="ignore"):
+                value = -ionic_top / (screening * (1.0 + h * log_screening)
+                                      + j * u * ions_p34 * (1.0 + k * np.exp(q * log_ions_p)))
+            return np.where(dopants > 0, value, 0.0)
+
+        self.ionic_e, self.ionic_h = ionic(electron_set), ionic(hole_set)
+        t2 = t * t
+        self.t2, self.t3 = t2, t3
+        self.t52 = t2 * np.sqrt(t)
+
+    def __call__(self, electron_density, hole_density):
+        n = np.asarray(electron_density, dtype=float) * self.volume
+        p = np.asarray(hole_density, dtype=float) * self.volume
+        t, t2 = self.t, self.t2
+        ns = n + p
+        sqrt_ns = np.sqrt(ns)
+        with np.errstate(divide="ignore"):
+            log_np = np.log(self.alpha_e * n + self.alpha_h * p)
+        four_pi_cubed_ns2 = (4.0 * np.pi) ** 3 * ns * ns
+        common_top = np.sqrt(8.0 * np.pi) * sqrt_ns * self.t52
+        common_bottom = four_pi_cubed_ns2 + self.t3 + 40.0 * ns * sqrt_ns * t
+
+        def shift(n_a, g_a, alpha_a, parameters, ionic):
+            b, c, d, pa, *_ = parameters
+            exchange = -(four_pi_cubed_ns2 * (np.cbrt((48.0 / (np.pi * g_a)) * n_a)
+                                              + c * np.log1p(d * np.exp(pa * log_np)))
+                         + (8.0 * np.pi * alpha_a / g_a) * n_a * t2 + common_top) \
+                / (common_bottom + b * sqrt_ns * t2)
+            return -(exchange + ionic) * self.rydberg
+
+        return (shift(n, self.g_e, self.alpha_e, self.electron_set, self.ionic_e),
+                shift(p, self.g_h, self.alpha_h, self.hole_set, self.ionic_h))

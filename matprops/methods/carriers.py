@@ -147,8 +147,13 @@ class _Bound:
         donor_level, g_d = self.level(donor, nd)
         acceptor_level, g_a = self.level(acceptor, na)
 
-        def narrowing(n, p):
-            return self.shifts(t, nd, na, n, p)
+        fixed = getattr(self.narrowing.kernel, "with_fixed_dopants", None)
+        coefficients = {name: c.kernel_value for name, c in self.narrowing.coefficients.items()}
+
+        def narrowing(t, nd, na):
+            if fixed is not None:  # the dopant part computed once, not at every iteration
+                return fixed(t, nd, na, **coefficients)
+            return lambda n, p: self.shifts(t, nd, na, n, p)
 
         result = equilibrium_kernel.solve(
             t, nd, na, conduction_states=nc, valence_states=nv,

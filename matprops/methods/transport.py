@@ -27,7 +27,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import InputError, SolverError
+from ..errors import InputError, SolverError, ValidityError, ValidityWarning, warn
 from ..kernels import resistivity as resistivity_kernels
 from ..kernels.constants import BOLTZMANN_EV
 from ..kernels.diffusivity import einstein_factor
@@ -328,12 +328,19 @@ class TransportMethods:
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
         t, nd, na = np.broadcast_arrays(*(prepared[k][0] for k in
                                           ("temperature", "donor_density", "acceptor_density")))
-        if np.any((nd > 0) & (na > 0)):
-            raise InputError("Na, Nd", "zero for one of them at every point (the standard "
-                             "conversion covers singly doped silicon)", "both non-zero")
+        compensated = (nd > 0) & (na > 0)
+        if compensated.any():
+            message = (f"model standard_resistivity/{self.model('standard_resistivity').id}: "
+                       f"the standard conversion covers singly doped silicon; "
+                       f"{np.count_nonzero(compensated)} point(s) with both Na and Nd > 0 "
+                       "are NaN (conversion='physics' handles them)")
+            if self.strict:
+                raise ValidityError(message)
+            warn(message, ValidityWarning)
         model = self.model("standard_resistivity")
-        out = np.empty(t.shape)
-        for species, where in ((acceptor, na > 0), (donor, ~(na > 0))):
+        out = np.full(t.shape, np.nan)
+        for species, where in ((acceptor, (na > 0) & ~compensated),
+                               (donor, ~(na > 0))):
             if not where.any():
                 continue
             chosen = model.select(species)
