@@ -70,7 +70,7 @@ __all__ = [
 CHECKSUM_FILE = "checksums.sha256"
 # folder -> suffixes of the data files in it, each covered by the checksum list
 DATA_FILES = {"models": (".toml",), "tables": (".nc",), "releases": (".toml", ".json"),
-              "scenarios": (".toml",)}
+              "scenarios": (".toml",), "defects": (".toml",)}
 MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 RELEASE_ID = re.compile(r"^\d{4}\.\d+$")
 
@@ -321,7 +321,8 @@ class Model:
             raise DatasetError(self.path, f"composed model {self.id!r} needs "
                                f"{', '.join(missing)}")
         chosen = {q: components[q] for q in self.requires}
-        function = functools.partial(self.kernel, **chosen)
+        own = {c.name: c.kernel_value for c in self.coefficients.values()}
+        function = functools.partial(self.kernel, **own, **chosen)
         return _replace(self, components=MappingProxyType(chosen), function=function)
 
     def check(self, argument: str, low: float, high: float, strict: bool = False) -> None:
@@ -1063,6 +1064,32 @@ def _dopant_densities(path, value) -> str:
     return value
 
 
+def _fit_section(path, entry) -> dict:
+    """What an intrinsic-lifetime model was fitted with (its radiative term, intrinsic
+    density and narrowing), so that the material composes it consistently."""
+    where = "fit"
+    if not isinstance(entry, dict):
+        raise DatasetError(path, f"{where} must be a table")
+    unknown = set(entry) - {"radiative", "intrinsic_density", "gap_narrowing"}
+    if unknown:
+        raise DatasetError(path, f"{where}: unknown field(s) {sorted(unknown)}")
+    record = {"radiative": _require(path, entry, "radiative", str, where=where + "."),
+              "gap_narrowing": _require(path, entry, "gap_narrowing", str,
+                                        where=where + ".")}
+    density = entry.get("intrinsic_density")
+    if density is not None:
+        if not isinstance(density, dict):
+            raise DatasetError(path, f"{where}.intrinsic_density must be a table")
+        temperature = _require(path, density, "temperature",
+                               where=where + ".intrinsic_density.")
+        record["intrinsic_density"] = _coefficient(
+            path, f"{where}.intrinsic_density",
+            {k: v for k, v in density.items() if k != "temperature"}, "cm^-3")
+        record["intrinsic_density_temperature"] = _convert(
+            path, f"{where}.intrinsic_density.temperature", temperature, "K", "K")
+    return record
+
+
 def _velocity_definition(path, value) -> str:
     if value not in THERMAL_VELOCITY_DEFINITIONS:
         raise DatasetError(path, "field 'definition' must be one of "
@@ -1075,6 +1102,7 @@ def _velocity_definition(path, value) -> str:
 # speed sqrt(3kT/m), sqrt(3 pi/8) = 1.085 apart, so every such model says which.)
 QUANTITY_SECTIONS = {
     "gap_narrowing": {"narrowing": _narrowing_section},
+    "intrinsic_lifetime": {"fit": _fit_section},
     "mobility": {"dopant_densities": _dopant_densities},
     "thermal_velocity": {"definition": _velocity_definition},
 }

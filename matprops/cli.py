@@ -574,6 +574,57 @@ def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
     return data, skipped
 
 
+def _scenario_text(data, scenario: dict) -> str:
+    """A scenario's table for the screen, one block per site: operating points across
+    (at most ~80 columns), quantities down; doping-dependent rows per region."""
+    from .units import Q_
+
+    units = scenario["temperature"]["units"]
+    labels = [str(v) for v in data["operating_point"].values]
+    sites = list(dict.fromkeys(label.split(": ")[0] for label in labels))
+    regions = list(data["region"].values) if "region" in data.dims else []
+
+    def row(name, values):
+        cells = "".join(f" {v:>11.4g}" if isinstance(v, float) else f" {v:>11}"
+                        for v in values)
+        return f"{name[:36]:<36}{cells}"
+
+    def rows_for(columns, region=None):
+        lines = []
+        for variable in data.data_vars:
+            array = data[variable]
+            if ("region" in array.dims) != (region is not None):
+                continue
+            if region is not None:
+                array = array.sel(region=region)
+            unit = array.attrs.get("units", "")
+            extra = [d for d in array.dims if d != "temperature"]
+            picks = ([{}] if not extra else
+                     [{extra[0]: value} for value in data[extra[0]].values])
+            for pick in picks:
+                selected = array.sel(pick) if pick else array
+                suffix = f" ({next(iter(pick.values()))})" if pick else ""
+                values = [float(selected.values[i]) for i in columns]
+                lines.append(row(f"{variable}{suffix} [{unit}]", values))
+        return lines
+
+    out = []
+    for site in sites:
+        columns = [i for i, label in enumerate(labels) if label.startswith(site + ":")]
+        out.append(f"== {site} (invented) ==")
+        out.append(row("operating point", [labels[i].split(": ")[1] for i in columns]))
+        shown = Q_(data["temperature"].values, "K").to(units).magnitude
+        out.append(row(f"temperature [{units}]", [float(shown[i]) for i in columns]))
+        out.extend(rows_for(columns))
+        for region in regions:
+            spec = scenario["regions"][str(region)]
+            out.append(f"-- {region}: {spec.get('note', '')} (Na {spec['acceptor_density']:g},"
+                       f" Nd {spec['donor_density']:g} {spec['units']})")
+            out.extend(rows_for(columns, region))
+        out.append("")
+    return "\n".join(out)
+
+
 def _cmd_demo(args):
     path, scenario = _scenario(args.scenario)
     if not scenario.get("invented"):
@@ -600,6 +651,10 @@ def _cmd_demo(args):
     footer = _footer(si, list(dict.fromkeys(names)))
     if skipped:
         footer += "\n" + _wrap("not yet in this release, skipped: " + ", ".join(skipped))
+    if on_screen:
+        print(_scenario_text(data, scenario))
+        print(footer)
+        return
     _emit(args, data, footer)
     if not on_screen and skipped:
         print(_wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),

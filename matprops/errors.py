@@ -22,6 +22,7 @@ __all__ = [
     "ReleaseFrozenError",
     "SolverError",
     "UnitError",
+    "UnknownDefectError",
     "UnknownModelError",
     "UnknownNameError",
     "UnknownQuantityError",
@@ -112,6 +113,12 @@ class UnknownQuantityError(UnknownNameError):
 
 class UnknownReleaseError(UnknownNameError):
     kind = "release"
+
+
+class UnknownDefectError(UnknownNameError):
+    """A defect name that is not in the defect catalogue (``datasets/defects/``)."""
+
+    kind = "defect"
 
 
 class UnknownVariantError(UnknownNameError):

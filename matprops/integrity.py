@@ -4,7 +4,7 @@ Every file the checksum list names must exist and match; every data file on disk
 must be listed; every model file must load (schema, kernel, units) and every table it
 reads must open and hold the variables it names; every release must load, name
 models that exist and have a readable frozen reference; every scenario must pass its
-schema. A folder with no models or no releases is a failure, not an empty success.
+schema, and every defect of the catalogue must load. A folder with no models or no releases is a failure, not an empty success.
 """
 
 from __future__ import annotations
@@ -75,4 +75,8 @@ def check(catalog: Catalog) -> tuple[list[str], int]:
 
     for name in catalog.scenario_names():  # (optional folder)
         attempt(catalog.scenario, name)
+    from . import defects  # the defect catalogue (optional folder)
+
+    for name in defects.names(catalog):
+        attempt(defects.defect, name, catalog)
     return problems, len(on_disk & set(recorded))

@@ -26,6 +26,8 @@ from .methods.carriers import CarrierMethods, dopant_species
 from .methods.crystal import DERIVED as CRYSTAL_DERIVED
 from .methods.crystal import CrystalMethods
 from .methods.optical import OpticalMethods
+from .methods.recombination import DERIVED as RECOMBINATION_DERIVED
+from .methods.recombination import RecombinationMethods
 from .methods.transport import DERIVED as TRANSPORT_DERIVED
 from .methods.transport import KERNELS as TRANSPORT_KERNELS
 from .methods.transport import TransportMethods
@@ -37,10 +39,12 @@ __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 # Quantities computed from other quantities' models (no model file of their own):
 # name -> (quantities it is built from, formula shown in the provenance)
-DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED, **TRANSPORT_DERIVED}
+DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED, **TRANSPORT_DERIVED,
+           **RECOMBINATION_DERIVED}
 
 
-class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods):
+class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
+              RecombinationMethods):
     """Crystalline silicon as described by one release of matprops.
 
     Parameters

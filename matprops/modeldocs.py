@@ -54,11 +54,52 @@ def render(catalog: Catalog | None = None) -> str:
                 unc = f" ± {coef.uncertainty}" if coef.uncertainty is not None else ""
                 value = list(coef.value) if isinstance(coef.value, tuple) else coef.value
                 lines.append(f"- `{name}` = {value}{unc} {coef.units}")
+            fit = model.extra.get("fit")
+            if fit:
+                density = fit.get("intrinsic_density")
+                density = (f"; intrinsic density {density.value:g} {density.units} at "
+                           f"{fit['intrinsic_density_temperature']:g} K" if density else "")
+                lines.append(f"- fitted with: radiative term {_one_line(fit['radiative'])}"
+                             f"{density}; narrowing {fit['gap_narrowing']}")
             lines.append(f"- obtained: {_one_line(model.obtained)}")
             if model.notes:
                 lines.append(f"- notes: {_one_line(model.notes)}")
             lines.append("")
+    lines += _defect_lines(catalog)
     return "\n".join(lines).rstrip() + "\n"
+
+
+def _defect_lines(catalog: Catalog) -> list[str]:
+    """The defect catalogue (``datasets/defects/``), one entry per defect."""
+    from .defects import describe
+
+    entries = describe(catalog)
+    if not entries:
+        return []
+    lines = ["", "## Defect catalogue (Shockley-Read-Hall centres)", "",
+             "Used by `si.srh_lifetime`, `si.effective_lifetime` and `si.implied_voltage`.",
+             ""]
+    for defect in entries:
+        aliases = f" (also {', '.join(defect.aliases)})" if defect.aliases else ""
+        lines += [f"### `{defect.name}`{aliases}", "", _one_line(defect.description), ""]
+        lines.append(f"- level: {defect.level_text()}")
+        if defect.absolute:
+            lines.append(f"- electron capture cross-section: "
+                         f"{defect.electron_cross_section.describe()}")
+            lines.append(f"- hole capture cross-section: "
+                         f"{defect.hole_cross_section.describe()}")
+        else:
+            lines.append(f"- sigma_n / sigma_p = {defect.cross_section_ratio:g} "
+                         "(ratio only: give the electron capture time)")
+        lines.append(f"- thermal velocity: {_one_line(defect.thermal_velocity_note)}")
+        lines.append(f"- source: {defect.source.citation()}")
+        for extra in defect.additional_sources:
+            lines.append(f"- also: {extra.citation()}")
+        lines.append(f"- obtained: {_one_line(defect.obtained)}")
+        if defect.notes:
+            lines.append(f"- notes: {_one_line(defect.notes)}")
+        lines.append("")
+    return lines
 
 
 def main(argv=None) -> int:

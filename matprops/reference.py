@@ -46,6 +46,10 @@ OPTICAL_TEMPERATURES = [80.0, 250.0, 295.0, 300.0, 350.0, 473.15]
 TRANSPORT_TEMPERATURES = [77.0, 150.0, 250.0, 300.0, 350.0, 400.0, 500.0]
 DOPINGS = [0.0, 1e14, 1e16, 1e18, 1e20]
 
+LIFETIME_TEMPERATURES = [250.0, 298.15, 300.0, 350.0]
+LIFETIME_DOPING = [1e13, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20]
+EXCESS = [0.0, 1e12, 1e14, 1e15, 1e16, 1e17]
+
 # (case label, Silicon method, fixed keyword arguments, gridded arguments)
 # Gridded arguments are combined as an outer product in the order given.
 DOPANTS = {"Nd": [0.0, 1e14, 1e16, 1e18, 3e19, 1e20], "Na": [0.0, 1e15, 1e17, 1e19]}
@@ -82,6 +86,25 @@ CASES = [
      {"temperature": [300.0], **DOPANTS}),
     *[(f"thermal_velocity_{c}", "thermal_velocity", {"carrier": c},
        {"temperature": TEMPERATURES}) for c in ("electron", "hole")],
+    ("radiative_coefficient", "radiative_coefficient", {}, {"temperature": TEMPERATURES}),
+    ("intrinsic_lifetime_n_type", "intrinsic_lifetime", {},
+     {"temperature": LIFETIME_TEMPERATURES, "Nd": LIFETIME_DOPING, "excess": EXCESS}),
+    ("intrinsic_lifetime_p_type", "intrinsic_lifetime", {},
+     {"temperature": LIFETIME_TEMPERATURES, "Na": LIFETIME_DOPING, "excess": EXCESS}),
+    ("auger_lifetime_n_type", "auger_lifetime", {},
+     {"temperature": [300.0], "Nd": LIFETIME_DOPING, "excess": EXCESS}),
+    *[(f"srh_lifetime_{d}", "srh_lifetime", {"defect": d, "density": 1e11},
+       {"temperature": LIFETIME_TEMPERATURES, "Na": [1e14, 1e15, 1e16, 1e17],
+        "excess": EXCESS})
+      for d in ("iron-interstitial", "iron-boron-pair", "iron-interstitial-paudyal-2010")],
+    ("srh_lifetime_chromium_interstitial", "srh_lifetime",
+     {"defect": "chromium-interstitial", "electron_capture_time": 1e-5},
+     {"temperature": [300.0], "Nd": [1e14, 1e15, 1e16], "excess": EXCESS}),
+    ("effective_lifetime", "effective_lifetime",
+     {"defect": "iron-boron-pair", "density": 1e11},
+     {"temperature": [300.0], "Na": [1e15, 1e16], "excess": EXCESS}),
+    ("implied_voltage", "implied_voltage", {"thickness": 0.018},
+     {"temperature": [298.15, 300.0], "Na": [1e15, 1e16], "generation": [1e15, 1e17, 2.5e17]}),
     *[(f"saturation_velocity_{c}", "saturation_velocity", {"carrier": c},
        {"temperature": TEMPERATURES}) for c in ("electron", "hole")],
     *[(f"mobility_{c}", "mobility", {"carrier": c},
@@ -183,7 +206,7 @@ def evaluate(si) -> dict:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # the grid crosses validity limits on purpose
             result = getattr(si, method)(**fixed, **arguments)
-        if isinstance(result, Result):
+        if isinstance(result, Result):  # a result object: every quantity field
             parts = tuple(result.quantities().values())
         else:
             parts = result if isinstance(result, tuple) else (result,)

@@ -32,7 +32,7 @@ from typing import Any
 
 from .errors import DatasetError
 
-__all__ = ["KINDS", "MODEL", "RELEASE", "SCENARIO", "THERMAL_VELOCITY_DEFINITIONS",
+__all__ = ["DEFECT", "KINDS", "MODEL", "RELEASE", "SCENARIO", "THERMAL_VELOCITY_DEFINITIONS",
            "VARIANT_AXES", "validate"]
 
 REQUIRED, OPTIONAL = True, False
@@ -152,6 +152,12 @@ NARROWING = {                      # [narrowing] of a gap_narrowing model
     "intrinsic_density": (FITTED_DENSITY, OPTIONAL),  # required for "apparent"
 }
 
+FIT = {                            # [fit] of an intrinsic_lifetime model
+    "radiative": (TEXT, REQUIRED),   # which radiative term the model goes with
+    "gap_narrowing": (TEXT, REQUIRED),  # a gap_narrowing model id, or "none"/"not known"
+    "intrinsic_density": (FITTED_DENSITY, OPTIONAL),
+}
+
 MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
     "id": (TEXT, REQUIRED),
     "quantity": (TEXT, REQUIRED),
@@ -173,8 +179,42 @@ MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
     "variants": (table_of(VARIANT), OPTIONAL),          # one coefficient set per name
     "narrowing": (NARROWING, OPTIONAL),                 # gap_narrowing models
     "dopant_densities": (one_of("total", "ionised"), OPTIONAL),  # mobility models
+    "fit": (FIT, OPTIONAL),                             # intrinsic_lifetime models
     "definition": (one_of(*THERMAL_VELOCITY_DEFINITIONS), OPTIONAL),  # thermal_velocity
     # -- new fields: one line here
+}
+
+QUANTITY = {                       # a number with units: { value = ..., units = "..." }
+    "value": (NUMBER, REQUIRED),
+    "units": (TEXT, REQUIRED),
+}
+
+CROSS_SECTION = {                  # [electron_cross_section] / [hole_cross_section]
+    "value": (NUMBER, REQUIRED),
+    "units": (TEXT, REQUIRED),
+    "law": (one_of("constant", "power", "activated"), OPTIONAL),  # default constant
+    "exponent": (NUMBER, OPTIONAL),                  # power law
+    "reference_temperature": (QUANTITY, OPTIONAL),   # power law
+    "activation_energy": (QUANTITY, OPTIONAL),       # activated law
+}
+
+DEFECT = {                         # datasets/defects/<name>.toml: see matprops.defects
+    "name": (TEXT, REQUIRED),
+    "aliases": (TEXTS, OPTIONAL),
+    "description": (TEXT, OPTIONAL),
+    "obtained": (TEXT, REQUIRED),
+    "notes": (TEXT, OPTIONAL),
+    "level": ({"energy": (QUANTITY, REQUIRED),
+               "reference": (one_of("conduction", "valence", "intrinsic"), REQUIRED)},
+              REQUIRED),
+    "electron_cross_section": (CROSS_SECTION, OPTIONAL),  # with hole_cross_section, or
+    "hole_cross_section": (CROSS_SECTION, OPTIONAL),
+    "cross_section_ratio": (QUANTITY, OPTIONAL),     # only sigma_n / sigma_p is known
+    "thermal_velocity": ({"convention": (TEXT, REQUIRED), "model": (TEXT, OPTIONAL)},
+                         REQUIRED),
+    "source": (SOURCE, REQUIRED),
+    "additional_sources": (list_of(SOURCE), OPTIONAL),
+    "validity": ({"temperature": (RANGE, REQUIRED)}, OPTIONAL),
 }
 
 RELEASE = {                        # datasets/releases/<release-id>.toml

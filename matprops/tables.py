@@ -77,11 +77,24 @@ class Axis:
         return None if self.category else cf_units(self.units)
 
 
+def _catalogue_defects() -> tuple[str, ...]:
+    """Names of the defect catalogue, for the ``defect`` axis (empty if unreadable:
+    the recombination methods then name what exists)."""
+    try:
+        from .defects import names
+
+        return tuple(names())
+    except Exception:  # noqa: BLE001 - a help text must not stop an import
+        return ()
+
+
 # The order here is the order of a table's dimensions (last varies fastest).
 AXES: dict[str, Axis] = {a.name: a for a in (
     Axis("carrier", None, None, "charge carrier", choices=("electron", "hole")),
     Axis("plane", None, None, "crystal plane (Miller indices)",
          choices=("100", "110", "111")),
+    Axis("defect", None, None, "recombination centre of the defect catalogue",
+         choices=_catalogue_defects()),
     Axis("temperature", "T", "K", "temperature", "positive"),
     Axis("acceptor_density", "Na", "cm^-3", "acceptor density", "non-negative", log=True),
     Axis("donor_density", "Nd", "cm^-3", "donor density", "non-negative", log=True),
@@ -91,6 +104,10 @@ AXES: dict[str, Axis] = {a.name: a for a in (
     Axis("hole_density", "p", "cm^-3", "hole density", "non-negative", log=True),
     Axis("field", None, "V/cm", "electric field strength", "non-negative", log=True),
     Axis("resistivity", "rho", "ohm*cm", "resistivity", "positive", log=True),
+    Axis("defect_density", None, "cm^-3", "defect density", "non-negative", log=True),
+    Axis("generation", None, "cm^-2/s", "photogeneration per area (absorbed photon flux)",
+         "positive", log=True),
+    Axis("thickness", None, "cm", "sample thickness", "positive"),
     Axis("wavelength", None, "nm", "vacuum wavelength", "positive"),
     Axis("dopant", None, None, "dopant species",
          choices=("phosphorus", "arsenic", "antimony", "boron", "aluminium", "gallium",
@@ -207,6 +224,10 @@ _DOPANTS_AND_CARRIERS = {"acceptor_density": "Na", "donor_density": "Nd",
                          "electron_density": "n", "hole_density": "p"}
 _DOPED_SHIFTED = {"temperature": 1, **_DOPANTS_AND_CARRIERS}  # after a carrier argument
 _FROM_RESISTIVITY = {"resistivity": 0, "temperature": 1, "dopant": "dopant"}
+_LIFETIME = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
+             "excess_density": "excess"}
+_INJECTED = ("acceptor_density", "donor_density", "excess_density")
+_EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
 # One entry per tabulable quantity; add one here when a Silicon method lands.
 QUANTITIES: dict[str, Tabulated] = _registry(
     Tabulated("band_gap", _T, (
@@ -291,6 +312,31 @@ QUANTITIES: dict[str, Tabulated] = _registry(
         ("standard_dopant_density", "dopant density by the standard conversion (23 degC)"),),
         method="doping_from_resistivity", fixed={"conversion": "standard"}, log=True,
         by_default=False),
+    # recombination (methods of the recombination family)
+    Tabulated("radiative_coefficient", _T, (
+        ("radiative_coefficient", "radiative recombination coefficient"),), log=True),
+    Tabulated("intrinsic_lifetime", _LIFETIME, (
+        ("intrinsic_lifetime", "intrinsic (Auger and radiative) lifetime"),),
+        wants=_INJECTED, log=True, needs=("intrinsic_lifetime", *_EQUILIBRIUM)),
+    Tabulated("auger_lifetime", _LIFETIME, (
+        ("auger_lifetime", "Auger lifetime (the Auger part of the intrinsic lifetime)"),),
+        wants=_INJECTED, log=True),
+    Tabulated("srh_lifetime", {"defect": 0, "temperature": 1, "acceptor_density": "Na",
+                               "donor_density": "Nd", "excess_density": "excess",
+                               "defect_density": "density"},
+              (("srh_lifetime", "Shockley-Read-Hall lifetime through the defect"),),
+              log=True, needs=("srh_lifetime", "thermal_velocity", "band_gap", *_EQUILIBRIUM)),
+    Tabulated("effective_lifetime",
+              {**_LIFETIME, "defect": "defect", "defect_density": "density"},
+              (("effective_lifetime", "effective bulk lifetime (intrinsic and SRH)"),),
+              fields=("effective_lifetime",), wants=_INJECTED, log=True),
+    Tabulated("implied_voltage",
+              {"temperature": 0, "generation": 1, "thickness": 2, "acceptor_density": "Na",
+               "donor_density": "Nd", "defect": "defect", "defect_density": "density"},
+              (("implied_voltage", ("implied open-circuit voltage (steady state, uniform "
+                                    "generation, flat carrier profile)")),
+               ("steady_state_excess_density", "excess carrier density in steady state")),
+              fields=("implied_voltage", "excess_density")),
 )
 
 

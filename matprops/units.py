@@ -53,6 +53,11 @@ ARGUMENTS = {
     "photon_energy": ("eV", "positive"),
     "dopant_density": ("cm^-3", "non-negative"),
     "excess_density": ("cm^-3", "non-negative"),
+    "equilibrium_electron_density": ("cm^-3", "positive"),
+    "equilibrium_hole_density": ("cm^-3", "positive"),
+    "defect_density": ("cm^-3", "non-negative"),
+    "generation": ("cm^-2/s", "positive"),
+    "electron_capture_time": ("s", "positive"),
     # the public API's short names for densities (DESIGN.md): same units and rules
     "Na": ("cm^-3", "non-negative"),
     "Nd": ("cm^-3", "non-negative"),
@@ -63,6 +68,9 @@ ARGUMENTS = {
     # transport
     "field": ("V/cm", "non-negative"),
     "resistivity": ("ohm*cm", "positive"),
+    "n0": ("cm^-3", "positive"),
+    "p0": ("cm^-3", "positive"),
+    "density": ("cm^-3", "non-negative"),
 }
 
 # Arguments that also accept a photon energy, frequency or wavenumber (converted

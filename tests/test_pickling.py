@@ -27,6 +27,8 @@ EXAMPLES = [
     (errors.ChecksumError("tables/x.nc", "sha256 differs"), ("path", "problem")),
     (errors.UnknownVariantError("tin", ["boron", "phosphorus"], "for ionisation"),
      ("name", "known")),
+    (errors.UnknownDefectError("Fe_s", ["iron-interstitial"], "in the defect catalogue"),
+     ("name", "known")),
     (errors.ReleaseFrozenError("release 2026.1 is final"), ()),
     (errors.SolverError("charge neutrality did not converge at 3 points"), ()),
     (errors.ValidityError("temperature 700 K is outside 0-600 K"), ()),

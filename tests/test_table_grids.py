@@ -64,9 +64,10 @@ def test_every_quantity_of_the_release_can_be_tabulated(si):
                "acceptor_density": [1e15, 1e17], "donor_density": [0.0, 1e16],
                "excess_density": [0.0, 1e15], "electron_density": [1e16],
                "hole_density": [1e16], "carrier": ["electron", "hole"],
-               "plane": ["100", "110", "111"], "field": [0.0, 1e4],
-               "resistivity": [1.0, 10.0], "dopant": ["boron", "phosphorus"],
-               "dopant_density": [1e16, 1e18]}
+               "plane": ["100", "110", "111"], "defect": ["iron-interstitial"],
+               "defect_density": [1e11], "generation": [1e17], "thickness": [0.018],
+               "dopant": ["boron", "phosphorus"], "dopant_density": [1e16, 1e18],
+               "field": [0.0, 1e4], "resistivity": [1.0, 10.0]}
     served = available(si)
     # every quantity with a model in the release, and every derived one, is in the registry
     from matprops.material import DERIVED
@@ -96,7 +97,7 @@ def test_dimensions_are_the_axes_given(si):
 def test_default_selection_follows_the_axes(si):
     names = {v.attrs["quantity"] for v in si.table(T=[300.0]).data_vars.values()}
     assert names == {"band_gap", "intrinsic_density", "densities_of_states",
-                     "lattice_constant", "density", "atomic_density"}
+                     "lattice_constant", "density", "atomic_density", "radiative_coefficient"}
     with_light = {v.attrs["quantity"] for v in
                   si.table(T=[300.0], wavelength=[800.0]).data_vars.values()}
     assert {"absorption", "refractive_index"} <= with_light

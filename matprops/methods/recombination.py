@@ -1,0 +1,560 @@
+"""Recombination: radiative coefficient, intrinsic and SRH lifetimes, effective lifetime,
+implied voltage.
+
+Composition rules (each shown in the provenance of what it returns):
+
+- Equilibrium densities n0, p0 come from the release's equilibrium solver (its
+  ionisation, narrowing and statistics, hence its effective intrinsic density:
+  ``n0 p0 = n_i,eff^2``), solved once per (T, Na, Nd) point and shared by every
+  excess density; or they are given (``n0=``, ``p0=``). The excess density is uniform
+  and the same for electrons and holes (no trapping).
+- An intrinsic-lifetime model keeps the radiative term it was fitted with:
+  ``richter-2012`` its B_low (4.73e-15 cm^3/s), ``kerr-2002`` its 9.5e-15 cm^3/s. Only
+  a model without one (``dziewior-1977``) takes the release's radiative coefficient.
+  The model file's ``[fit]`` section records the intrinsic density and narrowing the
+  model was fitted with; where the release's narrowing is another, a ValidityWarning
+  says so (the minority densities, and with them the lowest-injection lifetimes,
+  differ).
+- SRH: a defect level stays at its distance from the band edge it is quoted against
+  (Nc, Nv of the release), ``n1 p1 = n0 p0``; capture times ``1/(sigma v_th N_t)``
+  with the thermal velocity the cross-sections were extracted with when the defect
+  names it, the release's otherwise. Several defects add their rates.
+- Effective lifetime: ``1/tau_eff = 1/tau_intrinsic + sum 1/tau_SRH`` at the same
+  excess density (no surface recombination).
+- Implied voltage: steady state, uniform generation through the thickness, flat
+  carrier profile (diffusion length well above the thickness, no surface
+  recombination): ``G = J/(q W)`` or ``Phi/W`` equals ``dn / tau_eff(dn)``; then
+  ``V = (kT/q) ln[(n0 + dn)(p0 + dn)/(n0 p0)]`` (Boltzmann statistics, the narrowing
+  of equilibrium).
+
+The numbers are model estimates: for decisions with consequences defer to measured
+lifetimes and voltages.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from collections.abc import Mapping
+
+import numpy as np
+
+from .. import defects as defect_catalogue
+from ..errors import InputError, UnitError, ValidityError, ValidityWarning, warn
+from ..kernels import implied_voltage as voltage_kernel
+from ..kernels import srh_lifetime as srh
+from ..kernels.constants import ELEMENTARY_CHARGE
+from ..results import Result
+from ..units import coerce, quantity, unit
+
+__all__ = ["DERIVED", "ImpliedVoltage", "Lifetimes", "RecombinationMethods"]
+
+_EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
+_SRH = ("srh_lifetime", "thermal_velocity", "band_gap")
+
+DERIVED = {
+    "auger_lifetime": (
+        ("intrinsic_lifetime", *_EQUILIBRIUM),
+        "the Auger part of the intrinsic-lifetime model alone: 1/[(n0 + p0 + dn) A]"),
+    "effective_lifetime": (
+        ("intrinsic_lifetime", *_SRH, *_EQUILIBRIUM),
+        ("1/tau_eff = 1/tau_intrinsic + sum over defects of 1/tau_SRH, at the same excess "
+         "density; no surface recombination")),
+    "implied_voltage": (
+        ("intrinsic_lifetime", *_SRH, *_EQUILIBRIUM),
+        ("steady state G = dn/tau_eff(dn) with G the generation per area over the "
+         "thickness (uniform generation, flat carrier profile), then "
+         "V = (kT/q) ln[(n0 + dn)(p0 + dn)/(n0 p0)]")),
+}
+
+ASSUMPTIONS = ("steady state; generation uniform through the thickness; flat carrier "
+               "profile (diffusion length well above the thickness) and no surface "
+               "recombination; dn = dp (no trapping); Boltzmann statistics for the "
+               "quasi-Fermi-level splitting, with the narrowing of equilibrium")
+
+
+@dataclasses.dataclass(frozen=True, repr=False)
+class Lifetimes(Result):
+    """Lifetimes at one excess density (arrays broadcast to one shape), s.
+
+    ``effective_lifetime`` combines ``intrinsic_lifetime`` (whose parts are
+    ``auger_lifetime`` and ``radiative_lifetime``) and ``srh_lifetime`` (all defects
+    together; None without defects).
+    """
+
+    effective_lifetime: object
+    intrinsic_lifetime: object
+    auger_lifetime: object
+    radiative_lifetime: object
+    srh_lifetime: object
+    excess_density: object
+    equilibrium_electron_density: object
+    equilibrium_hole_density: object
+    provenance: dict = dataclasses.field(compare=False)
+
+
+@dataclasses.dataclass(frozen=True, repr=False)
+class ImpliedVoltage(Result):
+    """Steady-state implied open-circuit voltage of a uniformly illuminated sample."""
+
+    implied_voltage: object
+    excess_density: object
+    generation_rate: object
+    effective_lifetime: object
+    intrinsic_lifetime: object
+    srh_lifetime: object
+    equilibrium_electron_density: object
+    equilibrium_hole_density: object
+    assumptions: str
+    provenance: dict = dataclasses.field(compare=False)
+
+
+def _range(values):
+    """(min, max) of an array; (inf, -inf) for an empty one (no check applies)."""
+    array = np.asarray(values)
+    return (float(array.min()), float(array.max())) if array.size else (np.inf, -np.inf)
+
+
+def _optional(values):
+    """The SRH lifetime as a quantity, or None when there is no defect."""
+    return None if values is None else quantity(values, "s")
+
+
+def _full(values, shape):
+    """A float array of ``shape`` (no copy when the values already have it)."""
+    array = np.asarray(values, dtype=float)
+    return array if array.shape == shape else np.broadcast_to(array, shape).copy()
+
+
+@dataclasses.dataclass
+class _State:
+    """Inputs of the recombination kernels, in internal units (arrays broadcast)."""
+
+    temperature: np.ndarray
+    n0: np.ndarray
+    p0: np.ndarray
+    excess: np.ndarray
+    shape: tuple
+    given: bool  # n0, p0 given by the caller instead of solved
+    ranges: dict  # kernel input -> (min, max), for the validity checks
+
+    def kernel_inputs(self, excess=None):
+        return {"temperature": self.temperature, "equilibrium_electron_density": self.n0,
+                "equilibrium_hole_density": self.p0,
+                "excess_density": self.excess if excess is None else excess}
+
+
+class RecombinationMethods:
+    """Radiative coefficient, intrinsic (Auger + radiative) and SRH lifetimes, the
+    defect catalogue, effective lifetime and implied open-circuit voltage."""
+
+    # ------------------------------------------------------------------ radiative
+    def radiative_coefficient(self, temperature):
+        """Radiative recombination coefficient B, cm^3/s (``U = B (n p - n0 p0)``).
+
+        The release's model says which quantity it is: ``trupke-2003`` is the
+        coefficient of intrinsic silicon at low injection (see its provenance).
+        """
+        return self._quantity("radiative_coefficient", temperature=temperature)
+
+    # ------------------------------------------------------------------ state
+    def _recombination_state(self, temperature, Na, Nd, excess, n0, p0, donor, acceptor,
+                             statistics) -> _State:
+        """Coerce the inputs and get n0, p0 (solved once per (T, Na, Nd) point)."""
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, excess=excess)
+        t = prepared["temperature"][0]
+        dn = prepared["excess_density"][0]
+        if n0 is not None or p0 is not None:
+            if n0 is None or p0 is None:
+                missing = "n0" if n0 is None else "p0"
+                raise InputError(missing, f"given together with {'p0' if n0 is None else 'n0'}"
+                                 " (equilibrium densities in cm^-3), or both omitted", None)
+            if prepared["acceptor_density"][2] > 0 or prepared["donor_density"][2] > 0:
+                raise InputError("Na, Nd", "omitted (zero) when the equilibrium densities "
+                                 "n0 and p0 are given", "dopant densities as well")
+            n0_array, *n0_range = coerce(n0, "n0")
+            p0_array, *p0_range = coerce(p0, "p0")
+            given = True
+        else:
+            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics)
+            n0_array, p0_array = result["electron_density"], result["hole_density"]
+            n0_range, p0_range = _range(n0_array), _range(p0_array)
+            given = False
+        try:
+            shape = np.broadcast_shapes(t.shape, n0_array.shape, p0_array.shape, dn.shape)
+        except ValueError:
+            raise InputError("n0, p0", "arrays whose shapes broadcast with T and excess",
+                             f"shapes {n0_array.shape}, {p0_array.shape}") from None
+        ranges = {"temperature": prepared["temperature"][1:],
+                  "equilibrium_electron_density": tuple(n0_range),
+                  "equilibrium_hole_density": tuple(p0_range),
+                  "excess_density": prepared["excess_density"][1:]}
+        return _State(t, n0_array, p0_array, dn, shape, given, ranges)
+
+    def _check_intrinsic(self, state: _State):
+        """Validity of the intrinsic-lifetime model at these inputs; fit conventions."""
+        model = self.model("intrinsic_lifetime")
+        for argument, (low, high) in state.ranges.items():
+            if low <= high:  # (an empty array has no range)
+                model.check(argument, low, high, self.strict)
+        if model.regions:
+            model.check_regions(state.kernel_inputs(), self.strict)
+        fitted = model.extra["fit"]["gap_narrowing"]
+        used = self.models.get("gap_narrowing")
+        if (not state.given and fitted in self.catalog.model_ids("gap_narrowing")
+                and used != fitted):
+            message = (f"model intrinsic_lifetime/{model.id} was fitted with the effective "
+                       f"intrinsic density of gap_narrowing/{fitted}; the material uses "
+                       f"{used}: the minority densities, and the lifetime where dn is not "
+                       "far above them, differ from the published model's")
+            if self.strict:
+                raise ValidityError(message)
+            warn(message, ValidityWarning)
+        return model
+
+    def _intrinsic(self, state: _State, part="total", excess=None):
+        return self.model("intrinsic_lifetime")(**state.kernel_inputs(excess), part=part)
+
+    # ------------------------------------------------------------------ intrinsic
+    def intrinsic_lifetime(self, temperature, Na=0, Nd=0, excess=0, *, n0=None, p0=None,
+                           donor="phosphorus", acceptor="boron", statistics=None):
+        """Intrinsic (band-to-band: Auger + radiative) lifetime, s.
+
+        Parameters
+        ----------
+        temperature : K (or a pint quantity)
+        Na, Nd : total acceptor and donor densities, cm^-3
+        excess : excess carrier density dn = dp, cm^-3 (>= 0; 0 is the low-injection
+            limit)
+        n0, p0 : equilibrium electron and hole densities, cm^-3, instead of Na and Nd
+            (e.g. from your own solver); by default solved by :meth:`equilibrium`
+        donor, acceptor, statistics : as for :meth:`equilibrium`
+
+        Returns
+        -------
+        pint quantity in s, arrays broadcast. The release's model and its temperature
+        range: ``richter-2012`` (default) and ``kerr-2002`` are 300 K models (a
+        ValidityWarning outside 295-305 K), ``dziewior-1977`` holds only where n0 or
+        p0 reaches 5e18 cm^-3. ``si.provenance("intrinsic_lifetime")`` says what each
+        was fitted with.
+
+        Examples
+        --------
+        >>> si.intrinsic_lifetime(300, Nd=1e16, excess=1e15)        # doctest: +SKIP
+        """
+        state = self._recombination_state(temperature, Na, Nd, excess, n0, p0, donor,
+                                          acceptor, statistics)
+        self._check_intrinsic(state)
+        return quantity(_full(self._intrinsic(state), state.shape), "s")
+
+    def auger_lifetime(self, temperature, Na=0, Nd=0, excess=0, *, n0=None, p0=None,
+                       donor="phosphorus", acceptor="boron", statistics=None):
+        """The Auger part of the intrinsic lifetime alone (the model's own split), s.
+
+        Arguments as for :meth:`intrinsic_lifetime`.
+        """
+        state = self._recombination_state(temperature, Na, Nd, excess, n0, p0, donor,
+                                          acceptor, statistics)
+        self._check_intrinsic(state)
+        return quantity(_full(self._intrinsic(state, "auger"), state.shape), "s")
+
+    # ------------------------------------------------------------------ SRH
+    def defect(self, name):
+        """A defect of the catalogue by name or alias (see :mod:`matprops.defects`)."""
+        return defect_catalogue.defect(name, self.catalog)
+
+    def defects(self) -> list[str]:
+        """Names of the defects in the catalogue."""
+        return defect_catalogue.names(self.catalog)
+
+    def _velocities(self, defect, t):
+        """Thermal velocities (v_n, v_p) in cm/s for a defect's cross-sections, and the
+        id of the model that gave them."""
+        if defect.thermal_velocity:
+            model = self.catalog.model("thermal_velocity", defect.thermal_velocity)
+        else:
+            model = self.model("thermal_velocity")
+        velocities = []
+        low, high = _range(t)
+        for carrier in ("electron", "hole"):
+            bound = model.select(carrier) if model.variant_axis == "carrier" else model
+            if low <= high:
+                bound.check("temperature", low, high, self.strict)
+            arguments = {"temperature": t}
+            if "carrier" in bound.inputs:
+                arguments["carrier"] = carrier
+            velocities.append(np.asarray(bound(**arguments), dtype=float))
+        return velocities[0], velocities[1], model.id
+
+    def _check_level(self, defect, t):
+        """The level must lie inside the (unnarrowed) gap at every temperature."""
+        if np.size(t) == 0:
+            return
+        gap = np.asarray(self.model("band_gap")(temperature=t), dtype=float)
+        energy = defect.energy
+        if defect.reference == "intrinsic":
+            outside = np.abs(energy) >= 0.5 * gap
+            limit = "half the gap"
+        else:
+            outside = (energy <= 0) | (energy >= gap)
+            limit = "the gap"
+        if np.any(outside):
+            bound = float(np.min(gap)) * (0.5 if defect.reference == "intrinsic" else 1.0)
+            edge = {"conduction": "the conduction-band edge", "valence": "the valence-band "
+                    "edge", "intrinsic": "the intrinsic level (either way)"}[defect.reference]
+            raise InputError("defect", f"a level inside the band gap, between 0 and {limit} "
+                             f"({bound:.4g} eV at {float(np.max(t)):g} K) from {edge}, for "
+                             f"{defect.name!r}", defect.level_text())
+        if defect.temperature_range is not None:
+            low, high = defect.temperature_range
+            t_low, t_high = float(np.min(t)), float(np.max(t))
+            if t_low < low or t_high > high:
+                message = (f"defect {defect.name}: temperature {t_low:g}-{t_high:g} K is "
+                           f"outside the range of its data, {low:g}-{high:g} K; the capture "
+                           "parameters are extrapolated")
+                if self.strict:
+                    raise ValidityError(message)
+                warn(message, ValidityWarning)
+
+    def _capture_times(self, defect, t, density, electron_capture_time):
+        """(tau_n0, tau_p0) in s for one defect, and a provenance record."""
+        v_n, v_p, velocity_model = self._velocities(defect, t)
+        record = {**defect.provenance(), "thermal_velocity_model": velocity_model}
+        if electron_capture_time is not None:
+            if density is not None:
+                raise InputError("density", "omitted when electron_capture_time is given "
+                                 "(it already contains the density)", "both")
+            tau_n0, _, _ = coerce(electron_capture_time, "electron_capture_time", "s",
+                                  "positive")
+            tau_p0 = tau_n0 * defect.ratio(t) * v_n / v_p
+            record["electron_capture_time"] = "given"
+            return tau_n0, tau_p0, record
+        if density is None:
+            raise InputError("density", "given: the defect density in cm^-3 (or "
+                             "electron_capture_time in s)", "nothing")
+        if not defect.absolute:
+            raise InputError("electron_capture_time", f"given for {defect.name!r}, whose "
+                             f"entry has only the ratio sigma_n/sigma_p = "
+                             f"{defect.cross_section_ratio:g} (no absolute cross-section):"
+                             " tau_n0 = 1/(sigma_n v_n N_t) in s", "nothing (a density)")
+        n_t, _, _ = coerce(density, "density", "cm^-3", "positive")
+        tau_n0 = srh.capture_time(defect.electron_cross_section(t), v_n, n_t)
+        tau_p0 = srh.capture_time(defect.hole_cross_section(t), v_p, n_t)
+        return tau_n0, tau_p0, record
+
+    def _srh(self, state: _State, items, excess=None):
+        """SRH lifetime of several (defect, density, electron_capture_time) items."""
+        if not items:
+            return None, []
+        model = self.model("srh_lifetime")
+        nc, nv = self.model("densities_of_states")(temperature=state.temperature)
+        product = state.n0 * state.p0
+        rate = 0.0
+        records = []
+        for defect, density, capture in items:
+            self._check_level(defect, state.temperature)
+            tau_n0, tau_p0, record = self._capture_times(defect, state.temperature,
+                                                         density, capture)
+            n1, p1 = srh.emission_densities(state.temperature, defect.energy,
+                                            defect.reference, nc, nv, product)
+            tau = model(excess_density=state.excess if excess is None else excess,
+                        equilibrium_electron_density=state.n0,
+                        equilibrium_hole_density=state.p0, electron_emission_density=n1,
+                        hole_emission_density=p1, electron_capture_time=tau_n0,
+                        hole_capture_time=tau_p0)
+            with np.errstate(divide="ignore"):
+                rate = rate + 1.0 / tau
+            records.append(record)
+        with np.errstate(divide="ignore"):
+            return _full(1.0 / rate, state.shape), records
+
+    def _defect_items(self, defect, density, electron_capture_time, defects):
+        """Normalise the ways of naming defects into (Defect, density, tau_n0) items."""
+        items = []
+        if defect is not None:
+            items.append((defect_catalogue.parse(defect, self.catalog), density,
+                          electron_capture_time))
+        elif density is not None or electron_capture_time is not None:
+            raise InputError("defect", "given with density (or electron_capture_time)",
+                             "nothing")
+        if defects is not None:
+            pairs = defects.items() if isinstance(defects, Mapping) else defects
+            for number, pair in enumerate(pairs):
+                if not (isinstance(pair, (tuple, list)) and len(pair) == 2):
+                    raise InputError(f"defects[{number}]", "a (defect, density) pair",
+                                     repr(pair))
+                items.append((defect_catalogue.parse(pair[0], self.catalog,
+                                                     f"defects[{number}]"), pair[1], None))
+        return items
+
+    def srh_lifetime(self, defect, temperature, Na=0, Nd=0, excess=0, *, density=None,
+                     electron_capture_time=None, n0=None, p0=None, donor="phosphorus",
+                     acceptor="boron", statistics=None):
+        """Shockley-Read-Hall lifetime through one defect level, s.
+
+        Parameters
+        ----------
+        defect : a catalogue name or alias (``si.defects()``: ``"iron-interstitial"``,
+            ``"Fe_i"``, ...), or an inline mapping (see :mod:`matprops.defects`)
+        temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics : as for
+            :meth:`intrinsic_lifetime`
+        density : defect density N_t, cm^-3 (> 0)
+        electron_capture_time : tau_n0 = 1/(sigma_n v_n N_t), s, instead of
+            ``density`` (needed for entries that give only sigma_n/sigma_p)
+
+        Returns
+        -------
+        pint quantity in s. Capture cross-sections are used with the thermal velocity
+        their source extracted them with where the entry names it, else the release's
+        (``si.provenance("srh_lifetime")``).
+
+        Examples
+        --------
+        >>> si.srh_lifetime("Fe_i", 300, Na=1e16, excess=1e14, density=1e11)  # doctest: +SKIP
+        """
+        items = self._defect_items(defect, density, electron_capture_time, None)
+        state = self._recombination_state(temperature, Na, Nd, excess, n0, p0, donor,
+                                          acceptor, statistics)
+        value, _ = self._srh(state, items)
+        return quantity(value, "s")
+
+    # ------------------------------------------------------------------ effective
+    def effective_lifetime(self, temperature, Na=0, Nd=0, excess=0, *, defect=None,
+                           density=None, electron_capture_time=None, defects=None,
+                           n0=None, p0=None, donor="phosphorus", acceptor="boron",
+                           statistics=None) -> Lifetimes:
+        """Effective bulk lifetime, ``1/tau = 1/tau_intrinsic + sum 1/tau_SRH``.
+
+        Parameters
+        ----------
+        temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics : as for
+            :meth:`intrinsic_lifetime`
+        defect, density, electron_capture_time : one defect, as for :meth:`srh_lifetime`
+        defects : further defects, as a mapping name -> density or a sequence of
+            (defect, density) pairs
+
+        Returns
+        -------
+        :class:`Lifetimes` (effective, intrinsic, Auger, radiative and SRH lifetimes,
+        the excess density and the equilibrium densities used, provenance). Surface
+        recombination is not included.
+        """
+        items = self._defect_items(defect, density, electron_capture_time, defects)
+        state = self._recombination_state(temperature, Na, Nd, excess, n0, p0, donor,
+                                          acceptor, statistics)
+        self._check_intrinsic(state)
+        parts = self._lifetime_parts(state, items)
+        provenance = self._recombination_provenance("effective_lifetime", parts["records"],
+                                                    state)
+        return Lifetimes(
+            effective_lifetime=quantity(parts["effective"], "s"),
+            intrinsic_lifetime=quantity(parts["intrinsic"], "s"),
+            auger_lifetime=quantity(parts["auger"], "s"),
+            radiative_lifetime=quantity(parts["radiative"], "s"),
+            srh_lifetime=_optional(parts["srh"]),
+            excess_density=quantity(_full(state.excess, state.shape), "cm^-3"),
+            equilibrium_electron_density=quantity(_full(state.n0, state.shape), "cm^-3"),
+            equilibrium_hole_density=quantity(_full(state.p0, state.shape), "cm^-3"),
+            provenance=provenance)
+
+    def _lifetime_parts(self, state, items, excess=None):
+        auger = _full(self._intrinsic(state, "auger", excess), state.shape)
+        radiative = _full(self._intrinsic(state, "radiative", excess), state.shape)
+        intrinsic = 1.0 / (1.0 / auger + 1.0 / radiative)
+        srh_value, records = self._srh(state, items, excess)
+        effective = intrinsic if srh_value is None else 1.0 / (1.0 / intrinsic
+                                                               + 1.0 / srh_value)
+        return {"effective": effective, "intrinsic": intrinsic, "auger": auger,
+                "radiative": radiative, "srh": srh_value, "records": records}
+
+    def _recombination_provenance(self, name, records, state):
+        provenance = self.provenance(name)
+        provenance["defects"] = records
+        provenance["equilibrium_densities"] = ("given by the caller" if state.given else
+                                               "solved by the equilibrium model")
+        return provenance
+
+    # ------------------------------------------------------------------ implied voltage
+    def implied_voltage(self, temperature, generation, thickness, Na=0, Nd=0, *,
+                        defect=None, density=None, electron_capture_time=None, defects=None,
+                        n0=None, p0=None, donor="phosphorus", acceptor="boron",
+                        statistics=None) -> ImpliedVoltage:
+        """Implied open-circuit voltage of a sample under steady uniform generation.
+
+        Parameters
+        ----------
+        temperature : K (or a pint quantity)
+        generation : photons absorbed per area and time, cm^-2 s^-1 (> 0), or the
+            photogenerated current density as a pint quantity (e.g. ``Q_(40, "mA/cm^2")``)
+        thickness : sample thickness, cm (or a pint length)
+        Na, Nd, n0, p0, donor, acceptor, statistics : as for :meth:`intrinsic_lifetime`
+        defect, density, electron_capture_time, defects : as for :meth:`effective_lifetime`
+
+        Returns
+        -------
+        :class:`ImpliedVoltage`: the implied voltage (V), the steady-state excess
+        density, the generation rate per volume and the lifetimes there. Assumptions
+        (also in the result): steady state; generation uniform through the thickness;
+        flat carrier profile and no surface recombination; dn = dp; Boltzmann
+        statistics for the quasi-Fermi-level splitting.
+
+        Examples
+        --------
+        >>> si.implied_voltage(300, Q_(40, "mA/cm^2"), Q_(180, "um"), Na=1e15)  # doctest: +SKIP
+        """
+        items = self._defect_items(defect, density, electron_capture_time, defects)
+        g_area = self._generation(generation)
+        w, _, _ = coerce(thickness, "thickness")
+        rate = g_area / w  # cm^-3 s^-1
+        state = self._recombination_state(temperature, Na, Nd, 0.0, n0, p0, donor,
+                                          acceptor, statistics)
+        shape = np.broadcast_shapes(state.shape, rate.shape)
+        state.shape = shape
+        state.excess = np.zeros(shape)
+        rate = np.broadcast_to(rate, shape).astype(float)
+
+        def recombination(dn):
+            parts = self._lifetime_parts(state, items, dn)
+            return dn / parts["effective"]
+
+        low_injection = self._lifetime_parts(state, items, np.zeros(shape))["effective"]
+        guess = np.clip(rate * low_injection, 1.0, 1e22)
+        dn = voltage_kernel.steady_state_excess(recombination, rate, guess)
+        state.excess = dn
+        state.ranges["excess_density"] = _range(dn)
+        self._check_intrinsic(state)  # the excess densities reached
+        parts = self._lifetime_parts(state, items)
+        volts = voltage_kernel.implied_voltage(state.temperature, state.n0, state.p0, dn)
+        provenance = self._recombination_provenance("implied_voltage", parts["records"],
+                                                    state)
+        provenance["assumptions"] = ASSUMPTIONS
+        return ImpliedVoltage(
+            implied_voltage=quantity(_full(volts, shape), "V"),
+            excess_density=quantity(_full(dn, shape), "cm^-3"),
+            generation_rate=quantity(_full(rate, shape), "cm^-3/s"),
+            effective_lifetime=quantity(parts["effective"], "s"),
+            intrinsic_lifetime=quantity(parts["intrinsic"], "s"),
+            srh_lifetime=_optional(parts["srh"]),
+            equilibrium_electron_density=quantity(_full(state.n0, shape), "cm^-3"),
+            equilibrium_hole_density=quantity(_full(state.p0, shape), "cm^-3"),
+            assumptions=ASSUMPTIONS, provenance=provenance)
+
+    @staticmethod
+    def _generation(generation):
+        """Generation per area, cm^-2 s^-1, from a photon flux or a current density."""
+        import pint
+
+        if isinstance(generation, pint.Quantity):
+            current = unit("A/cm^2")
+            if generation.dimensionality == current.dimensionality:
+                magnitude = np.asarray(generation.m_as(current), dtype=float)
+                if not np.all(np.isfinite(magnitude)) or np.any(magnitude <= 0):
+                    raise InputError("generation", "> 0 (a photogenerated current density)",
+                                     repr(generation))
+                return magnitude / ELEMENTARY_CHARGE
+        try:
+            return coerce(generation, "generation")[0]
+        except UnitError:
+            raise UnitError("generation", "cm^-2/s (photons absorbed per area and time) or "
+                            "A/cm^2 (photogenerated current density)", generation,
+                            plain="cm^-2/s") from None
+
