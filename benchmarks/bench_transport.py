@@ -90,11 +90,12 @@ def klaassen_part(si, n_points):
                        electron_density=n, hole_density=p)
         inline = inline_klaassen(t, nd, na, n, p, coefficients)
         worst = max(np.max(np.abs(api / inline - 1)), np.max(np.abs(plain / inline - 1)))
-        a = best(lambda: si.mobility(carrier, t, Na=na, Nd=nd, n=n, p=p,
-                                     dopant_densities="ionised"))
-        k = best(lambda: kernel(temperature=t, donor_density=nd, acceptor_density=na,
-                                electron_density=n, hole_density=p))
-        b = best(lambda: inline_klaassen(t, nd, na, n, p, coefficients))
+        a = best(lambda carrier=carrier: si.mobility(carrier, t, Na=na, Nd=nd, n=n, p=p,
+                                                     dopant_densities="ionised"))
+        k = best(lambda kernel=kernel: kernel(temperature=t, donor_density=nd,
+                                              acceptor_density=na, electron_density=n,
+                                              hole_density=p))
+        b = best(lambda c=coefficients: inline_klaassen(t, nd, na, n, p, c))
         print(f"  {carrier:8s} inline numpy {b * 1e3:7.1f} ms | public API {a * 1e3:7.1f} ms "
               f"(x{a / b:.2f}, target 1.5) | bound kernel {k * 1e3:7.1f} ms "
               f"(x{k / b:.2f}, target 1.2) | largest difference {worst:.1e}")
@@ -148,7 +149,7 @@ def loop_part(si, m_points, l_points):
     start = time.perf_counter()
     for i in range(l_points):
         low = np.log(max(4.0 * float(ni(temperature=t[i])), 1.0))
-        looped[i] = np.exp(brentq(lambda x: log_rho(x, t[i]) - np.log(rho[i]), low,
+        looped[i] = np.exp(brentq(lambda x, i=i: log_rho(x, t[i]) - np.log(rho[i]), low,
                                   np.log(1e21), xtol=1e-13))
     slow = (time.perf_counter() - start) * m_points / l_points
     worst = np.max(np.abs(vectorised[:l_points] / looped - 1))

@@ -52,7 +52,14 @@ from .errors import (
 )
 from .kernels import module_for
 from .regions import Region, parse_regions
-from .schema import KINDS, MODEL, RELEASE, THERMAL_VELOCITY_DEFINITIONS, VARIANT_AXES, validate
+from .schema import (
+    KINDS,
+    MODEL,
+    RELEASE,
+    THERMAL_VELOCITY_DEFINITIONS,
+    VARIANT_AXES,
+    validate,
+)
 
 __all__ = [
     "Catalog",

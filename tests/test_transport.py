@@ -112,8 +112,8 @@ def test_g_minimum_is_the_minimum():
     # regression: the minimum read from the table equals a brute-force search
     from matprops.kernels.mobility import g_minimum
 
-    s = dict(s1=0.89233, s2=0.41372, s3=0.19778, s4=0.28227, s5=0.005978, s6=1.80618,
-             s7=0.72169)
+    s = {"s1": 0.89233, "s2": 0.41372, "s3": 0.19778, "s4": 0.28227, "s5": 0.005978,
+         "s6": 1.80618, "s7": 0.72169}
     grid = np.linspace(0.05, 2.0, 400001)
     for t in (77.0, 300.0, 500.0):
         for m in (1.0, 1.258):
@@ -188,7 +188,7 @@ def test_model_gets_the_dopant_densities_its_file_asks_for(si):
 
 
 def test_electrons_take_the_donor_set_and_holes_the_acceptor_set(si):
-    common = dict(Nd=1e18, n=1e18, p=1e2, dopant_densities="ionised")
+    common = {"Nd": 1e18, "n": 1e18, "p": 1e2, "dopant_densities": "ionised"}
     phosphorus = si.mobility("electron", 300, **common).m
     arsenic = si.mobility("electron", 300, donor="As", **common).m
     assert phosphorus == pytest.approx(float(si.kernel("mobility", carrier="electron")(
@@ -355,7 +355,7 @@ def test_fermi_dirac_factor_against_direct_integration():
         return value / gamma(j + 1)
 
     for reduced in (1e-3, 0.5, 3.0, 30.0):
-        eta = brentq(lambda e: fd(0.5, e) - reduced, -20, 40)
+        eta = brentq(lambda e, target=reduced: fd(0.5, e) - target, -20, 40)
         expected = fd(0.5, eta) / fd(-0.5, eta)
         assert einstein_factor(np.log(reduced)) == pytest.approx(expected, rel=1e-6)
 
@@ -365,8 +365,8 @@ def test_degenerate_diffusivity_exceeds_einstein(si):
     kt = 8.617333262e-5 * 300
     mu = si.mobility("electron", 300, Nd=1e20).m_as("cm^2/(V*s)")
     assert si.diffusivity("electron", 300, Nd=1e20).m_as("cm^2/s") > 1.3 * mu * kt
+    apparent = matprops.silicon(models={"gap_narrowing": "klaassen-1992"})
     with pytest.warns(matprops.ValidityWarning, match="degeneracy"):
-        apparent = matprops.silicon(models={"gap_narrowing": "klaassen-1992"})
         apparent.diffusivity("electron", 300, Nd=1e20, statistics="fermi-dirac")
 
 

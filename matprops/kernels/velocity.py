@@ -10,7 +10,7 @@ from ._spec import kernel
 from .band_gap import varshni
 from .constants import BOLTZMANN_J, ELECTRON_MASS_KG
 
-__all__ = ["field_dependent_mobility", "mean_thermal_speed", "mean_speed_mass",
+__all__ = ["field_dependent_mobility", "mean_speed_mass", "mean_thermal_speed",
            "power_of_temperature"]
 
 _MEAN_SPEED_CM = np.sqrt(8.0 * BOLTZMANN_J / (np.pi * ELECTRON_MASS_KG)) * 100.0

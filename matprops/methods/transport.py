@@ -48,25 +48,25 @@ _EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "io
 DERIVED = {
     "diffusivity": (
         ("mobility", *_EQUILIBRIUM),
-        "D = mu kT/q F_1/2(eta)/F_-1/2(eta) (Einstein relation; the factor is 1 with "
-        "Boltzmann statistics), eta = (E_F - E_c')/kT for electrons, (E_v' - E_F)/kT for "
-        "holes: the equilibrium reduced Fermi level, or the quasi-Fermi level of the given "
-        "n or p (n = Nc F_1/2(eta))"),
+        ("D = mu kT/q F_1/2(eta)/F_-1/2(eta) (Einstein relation; the factor is 1 with "
+         "Boltzmann statistics), eta = (E_F - E_c')/kT for electrons, (E_v' - E_F)/kT for "
+         "holes: the equilibrium reduced Fermi level, or the quasi-Fermi level of the given "
+         "n or p (n = Nc F_1/2(eta))")),
     "conductivity": (
         ("mobility", *_EQUILIBRIUM),
-        "sigma = q (n0 mu_n + p0 mu_p): equilibrium n0, p0 and ionised dopants; mu_n with "
-        "the donor species' coefficients, mu_p with the acceptor's; dopant densities total "
-        "or ionised as the mobility model takes them"),
+        ("sigma = q (n0 mu_n + p0 mu_p): equilibrium n0, p0 and ionised dopants; mu_n with "
+         "the donor species' coefficients, mu_p with the acceptor's; dopant densities total "
+         "or ionised as the mobility model takes them")),
     "resistivity": (
         ("mobility", *_EQUILIBRIUM),
         "rho = 1 / (q (n0 mu_n + p0 mu_p)), as for conductivity"),
     "doping_from_resistivity": (
         ("mobility", *_EQUILIBRIUM),
-        "the density N of one dopant species with rho(T, N) equal to the given "
-        "resistivity, rho as for resistivity; solved for all points at once (Illinois "
-        "false position in ln N, to 1e-13 in ln N) on the doping-dominated branch: for "
-        "acceptors above the resistivity maximum at N = ni (sqrt(r) - 1/sqrt(r)), "
-        "r = mu_n/mu_p of intrinsic silicon"),
+        ("the density N of one dopant species with rho(T, N) equal to the given "
+         "resistivity, rho as for resistivity; solved for all points at once (Illinois "
+         "false position in ln N, to 1e-13 in ln N) on the doping-dominated branch: for "
+         "acceptors above the resistivity maximum at N = ni (sqrt(r) - 1/sqrt(r)), "
+         "r = mu_n/mu_p of intrinsic silicon")),
 }
 
 # Quantities whose plain-array kernels this family hands out (see Silicon.kernel).
@@ -482,6 +482,6 @@ class TransportMethods:
         else:
             model = self.model(name).select(carrier)
         if fixed:
-            key = sorted(fixed)[0]
+            key = min(fixed)
             raise InputError(key, f"not an option of the {name} kernel", fixed[key])
         return model
