@@ -391,7 +391,7 @@ def test_standard_conversion_is_self_consistent_within_its_scope(si, dopant, kin
 
 # EMIS 'Properties of Crystalline Silicon' (R. Hull, ed., INSPEC 1999, pp. 413-416),
 # resistivity at 23 degC (ohm cm) as copied into a public MATLAB file; the table equals
-# the F723 equations, so this is a TRANSCRIPTION CHECK of the stored coefficients, not an
+# the F723 equations, so this is a COPYING CHECK of the stored coefficients, not an
 # independent measurement. Below 1e14 cm^-3 the table extends the data as rho ~ 1/N and
 # at 1e21 boron it leaves the equations, so those rows are not compared.
 HANDBOOK = {1e14: (42.9, 131), 1e15: (4.48, 13.3), 1e16: (0.523, 1.44),
