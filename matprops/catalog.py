@@ -182,7 +182,9 @@ class Source:
         """A BibTeX key ``surname-year`` (lower-case ASCII) of the first author."""
         import unicodedata
 
-        surname = self.authors[0].split()[-1]
+        words = self.authors[0].split()
+        # a person is written with initials ("M. A. Green"); an organisation is not
+        surname = words[-1] if "." in self.authors[0] else words[0]
         ascii_name = unicodedata.normalize("NFKD", surname).encode("ascii", "ignore").decode()
         return f"{re.sub(r'[^a-z]', '', ascii_name.lower())}-{self.year}"
 
