@@ -52,7 +52,14 @@ from .errors import (
 )
 from .kernels import module_for
 from .regions import Region, parse_regions
-from .schema import KINDS, MODEL, RELEASE, VARIANT_AXES, validate
+from .schema import (
+    KINDS,
+    MODEL,
+    RELEASE,
+    THERMAL_VELOCITY_DEFINITIONS,
+    VARIANT_AXES,
+    validate,
+)
 
 __all__ = [
     "Catalog",
@@ -175,7 +182,9 @@ class Source:
         """A BibTeX key ``surname-year`` (lower-case ASCII) of the first author."""
         import unicodedata
 
-        surname = self.authors[0].split()[-1]
+        words = self.authors[0].split()
+        # a person is written with initials ("M. A. Green"); an organisation is not
+        surname = words[-1] if "." in self.authors[0] else words[0]
         ascii_name = unicodedata.normalize("NFKD", surname).encode("ascii", "ignore").decode()
         return f"{re.sub(r'[^a-z]', '', ascii_name.lower())}-{self.year}"
 
@@ -938,8 +947,9 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
                   variant_axis=variant_axis, extra=MappingProxyType(extra),
                   regions=parse_regions(path, data, spec))
 
-    def bind(coefficients):
-        _check_complete(path, data["kernel"], spec, set(coefficients) | set(table_arguments))
+    def bind(coefficients, kernel=kernel, kernel_name=data["kernel"]):
+        _check_complete(path, kernel_name, kernel.spec,
+                        set(coefficients) | set(table_arguments))
         bound = {c.name: c.kernel_value for c in coefficients.values()}
         if kind == "table":
             return _TableFunction(catalog, path, kernel, table, table_arguments, bound)
@@ -956,12 +966,23 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
         where = f"variants.{variant}"
         if not isinstance(entry, dict):
             raise DatasetError(path, f"{where} must be a table")
-        unknown = set(entry) - {"coefficients", "validity", "obtained"}
+        unknown = set(entry) - {"coefficients", "validity", "obtained", "kernel"}
         if unknown:
             raise DatasetError(path, f"{where}: unknown field(s) {sorted(unknown)} "
-                               "(allowed: coefficients, validity, obtained)")
-        own = _coefficients(path, entry.get("coefficients", {}), spec,
-                            f"{where}.coefficients", data["kernel"],
+                               "(allowed: coefficients, validity, obtained, kernel)")
+        # a variant may have an equation form of its own (e.g. a standard that gives
+        # boron and phosphorus different forms), with the same inputs and output
+        variant_kernel, kernel_name = kernel, data["kernel"]
+        if "kernel" in entry:
+            kernel_name = _require(path, entry, "kernel", str, where=where + ".")
+            variant_kernel = _resolve_kernel(path, kernel_name)
+            if (dict(variant_kernel.spec.inputs) != dict(spec.inputs)
+                    or variant_kernel.spec.output != spec.output
+                    or variant_kernel.spec.requires != spec.requires):
+                raise DatasetError(path, f"{where}.kernel {kernel_name!r} must take the same "
+                                   f"inputs and give the same output as {data['kernel']!r}")
+        own = _coefficients(path, entry.get("coefficients", {}), variant_kernel.spec,
+                            f"{where}.coefficients", kernel_name,
                             set(shared) | set(table_arguments))
         overlap = sorted(set(own) & set(shared))
         if overlap:
@@ -971,10 +992,11 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
                                           f"{where}.validity")}
         variant_obtained = entry.get("obtained")
         variants[variant] = Model(
-            **{**common, "obtained": obtained + (f"\n{variant}: {variant_obtained}"
-                                                 if variant_obtained else "")},
+            **{**common, "kernel": variant_kernel,
+               "obtained": obtained + (f"\n{variant}: {variant_obtained}"
+                                       if variant_obtained else "")},
             coefficients=MappingProxyType(merged), validity=MappingProxyType(ranges),
-            function=bind(merged), variant=variant)
+            function=bind(merged, variant_kernel, kernel_name), variant=variant)
     parent = Model(**common, coefficients=MappingProxyType(shared),
                    validity=MappingProxyType(validity), function=None)
     frozen = MappingProxyType(variants)
@@ -1110,10 +1132,8 @@ def _velocity_definition(path, value) -> str:
     return value
 
 
-# A thermal velocity is either the mean speed sqrt(8kT/(pi m)) or the root-mean-square
-# speed sqrt(3kT/m); they differ by sqrt(3 pi/8) = 1.085, so every model says which.
-THERMAL_VELOCITY_DEFINITIONS = ("mean speed", "root-mean-square speed")
-
+# (A thermal velocity is either the mean speed sqrt(8kT/(pi m)) or the root-mean-square
+# speed sqrt(3kT/m), sqrt(3 pi/8) = 1.085 apart, so every such model says which.)
 QUANTITY_SECTIONS = {
     "gap_narrowing": {"narrowing": _narrowing_section},
     "intrinsic_lifetime": {"fit": _fit_section},

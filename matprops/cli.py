@@ -551,6 +551,15 @@ def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
         parts.append(region_table)
     data = xr.merge(parts, combine_attrs="override") if parts else xr.Dataset(
         coords={"temperature": ("temperature", temperature.m_as("K"))})
+    if "carrier" in data.dims:  # one variable per carrier keeps the screen table narrow
+        for name in [v for v in data.data_vars if "carrier" in data[v].dims]:
+            for carrier in data["carrier"].values:
+                attrs = dict(data[name].attrs, carrier=str(carrier))
+                attrs["long_name"] = f"{carrier} {attrs.get('long_name', name)}"
+                data[f"{carrier}_{name}"] = data[name].sel(carrier=carrier, drop=True) \
+                    .assign_attrs(attrs)
+            data = data.drop_vars(name)
+        data = data.drop_vars("carrier")
     data = data.assign_coords(operating_point=("temperature", labels,
                                                {"long_name": "invented operating point"}))
     data.attrs.update({

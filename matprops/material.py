@@ -14,6 +14,7 @@ licensed practice.
 
 from __future__ import annotations
 
+from collections import Counter
 from collections.abc import Iterable, Mapping
 
 import numpy as np
@@ -214,7 +215,16 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
                     if identity not in seen:
                         seen.add(identity)
                         found.append((key, source))
-        return found
+        # one key per entry: two papers of one first author and year become -1992a, -1992b
+        counts = Counter(key for key, _ in found)
+        suffixes: dict[str, int] = {}
+        unique = []
+        for key, source in found:
+            if counts[key] > 1:
+                suffixes[key] = suffixes.get(key, 0) + 1
+                key = f"{key}{'abcdefghijklmnopqrstuvwxyz'[suffixes[key] - 1]}"
+            unique.append((key, source))
+        return unique
 
     def cite(self, format: str = "bibtex", quantities: Iterable[str] | None = None) -> str:
         """References of the models in use, as BibTeX (default) or plain text."""

@@ -43,6 +43,8 @@ TEMPERATURES = [50.0, 77.0, 150.0, 200.0, 233.15, 250.0, 273.15, 298.15, 300.0,
 WAVELENGTHS = [260.0, 300.0, 365.0, 400.0, 500.0, 600.0, 700.0, 800.0, 900.0, 1000.0,
                1050.0, 1100.0, 1150.0, 1180.0, 1300.0, 1450.0]
 OPTICAL_TEMPERATURES = [80.0, 250.0, 295.0, 300.0, 350.0, 473.15]
+TRANSPORT_TEMPERATURES = [77.0, 150.0, 250.0, 300.0, 350.0, 400.0, 500.0]
+DOPINGS = [0.0, 1e14, 1e16, 1e18, 1e20]
 
 LIFETIME_TEMPERATURES = [250.0, 298.15, 300.0, 350.0]
 LIFETIME_DOPING = [1e13, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20]
@@ -103,6 +105,29 @@ CASES = [
      {"temperature": [300.0], "Na": [1e15, 1e16], "excess": EXCESS}),
     ("implied_voltage", "implied_voltage", {"thickness": 0.018},
      {"temperature": [298.15, 300.0], "Na": [1e15, 1e16], "generation": [1e15, 1e17, 2.5e17]}),
+    *[(f"saturation_velocity_{c}", "saturation_velocity", {"carrier": c},
+       {"temperature": TEMPERATURES}) for c in ("electron", "hole")],
+    *[(f"mobility_{c}", "mobility", {"carrier": c},
+       {"temperature": TRANSPORT_TEMPERATURES, "Na": DOPINGS, "Nd": DOPINGS})
+      for c in ("electron", "hole")],
+    *[(f"high_field_mobility_{c}", "high_field_mobility", {"carrier": c},
+       {"field": [0.0, 1e3, 1e4, 3e4, 6e4], "temperature": [250.0, 300.0, 400.0],
+        "Nd": [1e15, 1e18]}) for c in ("electron", "hole")],
+    *[(f"diffusivity_{c}", "diffusivity", {"carrier": c},
+       {"temperature": [250.0, 300.0, 400.0], "Na": [0.0, 1e17, 1e20],
+        "Nd": [0.0, 1e15, 1e20]}) for c in ("electron", "hole")],
+    ("resistivity", "resistivity", {},
+     {"temperature": TRANSPORT_TEMPERATURES, "Na": DOPINGS, "Nd": DOPINGS}),
+    *[(f"doping_from_resistivity_{d}", "doping_from_resistivity", {"dopant": d},
+       {"resistivity": [1e-3, 0.1, 1.0, 10.0, 1e3], "temperature": [250.0, 300.0, 400.0]})
+      for d in ("boron", "phosphorus")],
+    *[(f"standard_resistivity_{d}", "resistivity", {"conversion": "standard"},
+       {"temperature": [296.15], kind: [1e12, 1e14, 1e16, 1e18, 1e20]})
+      for d, kind in (("boron", "Na"), ("phosphorus", "Nd"))],
+    *[(f"standard_dopant_density_{d}", "doping_from_resistivity",
+       {"dopant": d, "conversion": "standard"},
+       {"resistivity": [1e-3, 0.1, 1.0, 10.0, 1e3], "temperature": [296.15]})
+      for d in ("boron", "phosphorus")],
 ]
 
 

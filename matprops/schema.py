@@ -32,11 +32,14 @@ from typing import Any
 
 from .errors import DatasetError
 
-__all__ = ["DEFECT", "KINDS", "MODEL", "RELEASE", "SCENARIO", "VARIANT_AXES", "validate"]
+__all__ = ["DEFECT", "KINDS", "MODEL", "RELEASE", "SCENARIO", "THERMAL_VELOCITY_DEFINITIONS",
+           "VARIANT_AXES", "validate"]
 
 REQUIRED, OPTIONAL = True, False
 KINDS = ("closed-form", "table", "composed")  # of model: see matprops.catalog
 VARIANT_AXES = ("dopant", "carrier")  # what a model's coefficient sets are per
+# a thermal velocity is the mean speed sqrt(8kT/(pi m)) or the rms speed sqrt(3kT/m)
+THERMAL_VELOCITY_DEFINITIONS = ("mean speed", "root-mean-square speed")
 
 
 @dataclass(frozen=True)
@@ -134,6 +137,7 @@ VARIANT = {                        # [variants.<name>]: one coefficient set of a
     "coefficients": (table_of(COEFFICIENT), OPTIONAL),
     "validity": (table_of(RANGE), OPTIONAL),
     "obtained": (TEXT, OPTIONAL),
+    "kernel": (TEXT, OPTIONAL),  # an equation form of its own (same inputs and output)
 }
 
 FITTED_DENSITY = {                 # the intrinsic density an apparent narrowing was fitted with
@@ -176,7 +180,7 @@ MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
     "narrowing": (NARROWING, OPTIONAL),                 # gap_narrowing models
     "dopant_densities": (one_of("total", "ionised"), OPTIONAL),  # mobility models
     "fit": (FIT, OPTIONAL),                             # intrinsic_lifetime models
-    "definition": (TEXT, OPTIONAL),                     # thermal_velocity models
+    "definition": (one_of(*THERMAL_VELOCITY_DEFINITIONS), OPTIONAL),  # thermal_velocity
     # -- new fields: one line here
 }
 

@@ -102,6 +102,8 @@ AXES: dict[str, Axis] = {a.name: a for a in (
          log=True),
     Axis("electron_density", "n", "cm^-3", "electron density", "non-negative", log=True),
     Axis("hole_density", "p", "cm^-3", "hole density", "non-negative", log=True),
+    Axis("field", None, "V/cm", "electric field strength", "non-negative", log=True),
+    Axis("resistivity", "rho", "ohm*cm", "resistivity", "positive", log=True),
     Axis("defect_density", None, "cm^-3", "defect density", "non-negative", log=True),
     Axis("generation", None, "cm^-2/s", "photogeneration per area (absorbed photon flux)",
          "positive", log=True),
@@ -148,6 +150,10 @@ class Tabulated:
     fields : for a method that returns a result object (e.g. a frozen dataclass of
         pint quantities), the attribute holding each output, in the order of
         ``outputs``
+    fixed : keyword arguments always passed to the method (e.g. the standard
+        resistivity is ``si.resistivity(..., conversion="standard")``)
+    by_default : False for a quantity tabulated only when named (the standard's 23 degC
+        conversions, which warn at any other temperature)
 
     Example: ``Tabulated("mobility", {"carrier": 0, "temperature": 1,
     "acceptor_density": "Na", "donor_density": "Nd"}, (("mobility", "carrier
@@ -162,6 +168,8 @@ class Tabulated:
     log: bool = False
     needs: tuple[str, ...] = ()
     fields: tuple[str, ...] = ()
+    fixed: Mapping[str, object] = field(default_factory=dict)
+    by_default: bool = True
     _signature: dict = field(default_factory=dict, compare=False, repr=False)
 
     def parameters(self, si) -> dict[str, tuple[str, bool]]:
@@ -193,7 +201,8 @@ class Tabulated:
         """Call the Silicon method with axis values (missing optional axes: defaults)."""
         names = self.parameters(si)
         return getattr(si, self.method or self.name)(
-            **{names[ax][0]: value for ax, value in values.items() if ax in names})
+            **{names[ax][0]: value for ax, value in values.items() if ax in names},
+            **self.fixed)
 
 
 def _registry(*entries: Tabulated) -> dict[str, Tabulated]:
@@ -210,6 +219,11 @@ _T = {"temperature": 0}
 _DOPED = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
           "electron_density": "n", "hole_density": "p"}
 _DOPING = ("acceptor_density", "donor_density", "electron_density", "hole_density")
+_EQUILIBRIUM_AXES = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"}
+_DOPANTS_AND_CARRIERS = {"acceptor_density": "Na", "donor_density": "Nd",
+                         "electron_density": "n", "hole_density": "p"}
+_DOPED_SHIFTED = {"temperature": 1, **_DOPANTS_AND_CARRIERS}  # after a carrier argument
+_FROM_RESISTIVITY = {"resistivity": 0, "temperature": 1, "dopant": "dopant"}
 _LIFETIME = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
              "excess_density": "excess"}
 _INJECTED = ("acceptor_density", "donor_density", "excess_density")
@@ -268,8 +282,36 @@ QUANTITIES: dict[str, Tabulated] = _registry(
         ("localised_share", "share of the dopant's states still localised")),
         method="dopant_level", wants=("dopant_density",)),
     # transport (methods of the transport family)
+    Tabulated("mobility", {"carrier": 0, **_DOPED_SHIFTED}, (
+        ("mobility", "low-field carrier mobility"),), log=True),
+    Tabulated("high_field_mobility", {"carrier": 0, "field": 1, "temperature": 2,
+                                      **_DOPANTS_AND_CARRIERS}, (
+        ("high_field_mobility", "carrier mobility in an electric field"),),
+        needs=("high_field_mobility", "mobility", "saturation_velocity"), log=True),
+    Tabulated("diffusivity", {"carrier": 0, **_DOPED_SHIFTED}, (
+        ("diffusivity", "carrier diffusion coefficient (Einstein relation)"),), log=True),
+    Tabulated("saturation_velocity", {"carrier": 0, "temperature": 1}, (
+        ("saturation_velocity", "saturation drift velocity"),)),
     Tabulated("thermal_velocity", {"carrier": 0, "temperature": 1}, (
         ("thermal_velocity", "thermal velocity (mean thermal speed)"),)),
+    Tabulated("resistivity", _EQUILIBRIUM_AXES, (
+        ("electrical_resistivity", "resistivity of silicon in equilibrium"),),
+        wants=_DOPING[:2], log=True),
+    Tabulated("conductivity", _EQUILIBRIUM_AXES, (
+        ("electrical_conductivity", "conductivity of silicon in equilibrium"),),
+        wants=_DOPING[:2], log=True),
+    Tabulated("doping_from_resistivity", _FROM_RESISTIVITY, (
+        ("doping_from_resistivity",
+         "density of the dopant species that gives the resistivity"),),
+        log=True),
+    Tabulated("standard_resistivity", _EQUILIBRIUM_AXES, (
+        ("standard_resistivity", "resistivity by the standard conversion (23 degC)"),),
+        method="resistivity", fixed={"conversion": "standard"}, wants=_DOPING[:2],
+        log=True, by_default=False),
+    Tabulated("standard_dopant_density", _FROM_RESISTIVITY, (
+        ("standard_dopant_density", "dopant density by the standard conversion (23 degC)"),),
+        method="doping_from_resistivity", fixed={"conversion": "standard"}, log=True,
+        by_default=False),
     # recombination (methods of the recombination family)
     Tabulated("radiative_coefficient", _T, (
         ("radiative_coefficient", "radiative recombination coefficient"),), log=True),
@@ -420,6 +462,8 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
         chosen = []
         for name in available(si):
             entry = QUANTITIES[name]
+            if not entry.by_default:
+                continue
             if not set(entry.takes) & set(grid.values):
                 continue
             if not set(entry.required(si)) <= set(grid.values):

@@ -85,6 +85,9 @@ ARGUMENTS = {
     "p": ("cm^-3", "non-negative"),
     "excess": ("cm^-3", "non-negative"),
     "N": ("cm^-3", "non-negative"),
+    # transport
+    "field": ("V/cm", "non-negative"),
+    "resistivity": ("ohm*cm", "positive"),
     "n0": ("cm^-3", "positive"),
     "p0": ("cm^-3", "positive"),
     "density": ("cm^-3", "non-negative"),

@@ -437,3 +437,12 @@ def test_malformed_release_file_is_named(datasets_copy):
     catalog.write_checksums()
     with pytest.raises(matprops.DatasetError, match=r"2026\.1\.toml: not valid TOML"):
         matprops.Silicon(catalog=catalog)
+
+
+def test_bibtex_keys_are_unique(si):
+    # two parts of one paper (Klaassen 1992 I and II, Altermatt 2006 I and II) must not
+    # share a BibTeX key: a duplicate key silently drops an entry in LaTeX
+    keys = [key for key, _ in si.sources()]
+    assert len(keys) == len(set(keys))
+    assert "klaassen-1992a" in keys and "klaassen-1992b" in keys
+    assert "astm-1999" in keys  # an organisation is keyed by its first word

@@ -81,8 +81,14 @@ KINDS = {
                        (0.01, 0.5, 0.9, 0.999)),
     "photon_energy": Number("eV", ("eV", "J", "meV", "nm"), ("K", "s", "cm^-3"),
                             (0.5, 1.1, 1.5, 3.0, 4.5)),
+    "field": Number("V/cm", ("V/cm", "kV/cm", "V/m", "V/um"), ("V", "K", "ohm*cm"),
+                    (0.0, 1e2, 1e4, 3e4, 6e4, 1e5)),
+    "resistivity": Number("ohm*cm", ("ohm*cm", "ohm*m", "mohm*cm", "kohm*cm"),
+                          ("ohm", "cm", "S/cm", "K"), (1e-4, 1e-3, 0.01, 1.0, 10.0, 1e4)),
     "plane": Choice(("100", "110", "111", "(111)", "{100}", "1 1 0", 111)),
     "carrier": Choice(("electron", "hole", "electrons", "e", "h")),
+    "dopant_densities": Choice(("total", "ionised")),
+    "conversion": Choice(("physics", "standard")),
     "dopant": Choice(("phosphorus", "boron", "arsenic", "P", "B", "As", "gallium")),
     "donor": Choice(("phosphorus", "arsenic", "P", "boron")),
     "acceptor": Choice(("boron", "B", "gallium", "phosphorus")),
@@ -138,6 +144,21 @@ SILICON_METHODS = [
      {"Na": "density", "Nd": "density", "donor": "donor", "acceptor": "acceptor",
       "statistics": "statistics"}),
     ("thermal_velocity", ("carrier", "temperature"), {}),
+    ("saturation_velocity", ("carrier", "temperature"), {}),
+    ("mobility", ("carrier", "temperature"),
+     {"Na": "density", "Nd": "density", "n": "density", "p": "density", "donor": "donor",
+      "acceptor": "acceptor", "dopant_densities": "dopant_densities"}),
+    ("high_field_mobility", ("carrier", "field", "temperature"),
+     {"Na": "density", "Nd": "density", "n": "density", "p": "density"}),
+    ("diffusivity", ("carrier", "temperature"),
+     {"Na": "density", "Nd": "density", "n": "density", "p": "density",
+      "statistics": "statistics"}),
+    ("conductivity", ("temperature",), {"Na": "density", "Nd": "density", "donor": "donor",
+                                        "acceptor": "acceptor"}),
+    ("resistivity", ("temperature",), {"Na": "density", "Nd": "density", "donor": "donor",
+                                       "acceptor": "acceptor", "conversion": "conversion"}),
+    ("doping_from_resistivity", ("resistivity", "temperature", "dopant"),
+     {"conversion": "conversion"}),
     ("radiative_coefficient", ("temperature",), {}),
     ("intrinsic_lifetime", ("temperature",),
      {"Na": "density", "Nd": "density", "excess": "density", "n0": "density",
@@ -183,7 +204,8 @@ OPTICS_FUNCTIONS = [
 FERMI_DIRAC = "matprops.kernels.fermi_dirac"
 NEEDS_FERMI_DIRAC = {"band_edge_shifts", "gap_narrowing", "effective_intrinsic_density",
                      "equilibrium", "intrinsic_lifetime", "auger_lifetime", "srh_lifetime",
-                     "effective_lifetime", "implied_voltage"}
+                     "effective_lifetime", "implied_voltage", "mobility", "high_field_mobility",
+                     "diffusivity", "conductivity", "resistivity", "doping_from_resistivity"}
 
 
 # ------------------------------------------------------------------ value strategies

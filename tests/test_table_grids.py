@@ -66,7 +66,8 @@ def test_every_quantity_of_the_release_can_be_tabulated(si):
                "hole_density": [1e16], "carrier": ["electron", "hole"],
                "plane": ["100", "110", "111"], "defect": ["iron-interstitial"],
                "defect_density": [1e11], "generation": [1e17], "thickness": [0.018],
-               "dopant": ["boron"], "dopant_density": [1e16]}
+               "dopant": ["boron", "phosphorus"], "dopant_density": [1e16, 1e18],
+               "field": [0.0, 1e4], "resistivity": [1.0, 10.0]}
     served = available(si)
     # every quantity with a model in the release, and every derived one, is in the registry
     from matprops.material import DERIVED

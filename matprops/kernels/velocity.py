@@ -11,7 +11,7 @@ from ._xp import asfloat, asin, asinh, errstate, namespace, zeros_like
 from .band_gap import varshni
 from .constants import BOLTZMANN_J, ELECTRON_MASS_KG
 
-__all__ = ["field_dependent_mobility", "mean_thermal_speed", "mean_speed_mass",
+__all__ = ["field_dependent_mobility", "mean_speed_mass", "mean_thermal_speed",
            "power_of_temperature"]
 
 _MEAN_SPEED_CM = float(np.sqrt(8.0 * BOLTZMANN_J / (np.pi * ELECTRON_MASS_KG)) * 100.0)

@@ -1,20 +1,78 @@
-"""Carrier transport: thermal velocity (more to come in this family)."""
+"""Carrier transport: mobility, velocities, diffusivity, resistivity and the doping conversion.
+
+Composition rules (each shown in the provenance of what it returns):
+
+- A mobility model's file says whether it takes the *total* or the *ionised*
+  dopant densities (``dopant_densities``). Users pass totals (``Na``, ``Nd``);
+  for a model that takes ionised densities the material passes the ionised ones
+  of thermal equilibrium at (T, Na, Nd) from the equilibrium solver. A caller
+  that already has ionised densities says ``dopant_densities="ionised"`` and they
+  are passed unchanged (no solve).
+- A model with one coefficient set per dopant species (``variant_axis =
+  "dopant"``) gives electrons the donor species' set and holes the acceptor's.
+- Where a model needs the free-carrier densities and ``n``, ``p`` are omitted,
+  they are the equilibrium densities.
+- Diffusivity is the Einstein relation with the Fermi-Dirac factor
+  ``F_1/2(eta) / F_-1/2(eta)``, eta the reduced Fermi level from the band edge (the
+  equilibrium one, or the quasi-Fermi level of the given n or p); 1 with
+  Boltzmann statistics.
+- Resistivity is ``1 / q (n0 mu_n + p0 mu_p)`` with the equilibrium carriers and the
+  release's mobility; its inverse for one dopant species is solved for all points
+  at once (false position in ln N inside a bracket, no per-point loop).
+- The standard's conversions (ASTM F723, 23 degC) are models of their own,
+  reached with ``conversion="standard"``; asked at another temperature they warn.
+"""
 
 from __future__ import annotations
 
-from ..errors import InputError
-from ..units import coerce, quantity
+import numpy as np
 
-__all__ = ["CARRIERS", "DERIVED", "KERNELS", "TransportMethods", "carrier_name"]
+from ..errors import InputError, SolverError, ValidityError, ValidityWarning, warn
+from ..kernels import resistivity as resistivity_kernels
+from ..kernels.constants import BOLTZMANN_EV
+from ..kernels.diffusivity import einstein_factor
+from ..units import coerce, quantity
+from .carriers import DOPANTS, dopant_species
+
+__all__ = ["CARRIERS", "CONVERSIONS", "DERIVED", "KERNELS", "TransportMethods",
+           "carrier_name"]
 
 CARRIERS = ("electron", "hole")
 _CARRIER_ALIASES = {"electrons": "electron", "holes": "hole", "e": "electron", "h": "hole"}
+CONVERSIONS = ("physics", "standard")
+DOPANT_DENSITIES = ("total", "ionised")
+_EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
 
-# Quantities computed from other quantities' models (no model file of their own).
-DERIVED: dict = {}
+# Quantities computed from other quantities' models (no model file of their own):
+# name -> (quantities it is built from, formula shown in the provenance)
+DERIVED = {
+    "diffusivity": (
+        ("mobility", *_EQUILIBRIUM),
+        ("D = mu kT/q F_1/2(eta)/F_-1/2(eta) (Einstein relation; the factor is 1 with "
+         "Boltzmann statistics), eta = (E_F - E_c')/kT for electrons, (E_v' - E_F)/kT for "
+         "holes: the equilibrium reduced Fermi level, or the quasi-Fermi level of the given "
+         "n or p (n = Nc F_1/2(eta))")),
+    "conductivity": (
+        ("mobility", *_EQUILIBRIUM),
+        ("sigma = q (n0 mu_n + p0 mu_p): equilibrium n0, p0 and ionised dopants; mu_n with "
+         "the donor species' coefficients, mu_p with the acceptor's; dopant densities total "
+         "or ionised as the mobility model takes them")),
+    "resistivity": (
+        ("mobility", *_EQUILIBRIUM),
+        "rho = 1 / (q (n0 mu_n + p0 mu_p)), as for conductivity"),
+    "doping_from_resistivity": (
+        ("mobility", *_EQUILIBRIUM),
+        ("the density N of one dopant species with rho(T, N) equal to the given "
+         "resistivity, rho as for resistivity; solved for all points at once (Illinois "
+         "false position in ln N, to 1e-13 in ln N) on the doping-dominated branch: for "
+         "acceptors above the resistivity maximum at N = ni (sqrt(r) - 1/sqrt(r)), "
+         "r = mu_n/mu_p of intrinsic silicon")),
+}
 
 # Quantities whose plain-array kernels this family hands out (see Silicon.kernel).
-KERNELS = ("thermal_velocity",)
+KERNELS = ("thermal_velocity", "saturation_velocity", "mobility", "high_field_mobility")
+
+_HIGHEST_DENSITY = 1e21  # cm^-3: the top of the bracket for doping from resistivity
 
 
 def carrier_name(value, argument: str = "carrier") -> str:
@@ -26,8 +84,21 @@ def carrier_name(value, argument: str = "carrier") -> str:
     return name
 
 
+def _choice(value, argument, allowed):
+    if value not in allowed:
+        raise InputError(argument, f"one of {', '.join(map(repr, allowed))}", repr(value))
+    return value
+
+
+def _extremes(array):
+    array = np.asarray(array, dtype=float)
+    if array.size == 0:
+        return array, np.inf, -np.inf
+    return array, float(array.min()), float(array.max())
+
+
 class TransportMethods:
-    """Thermal velocity of electrons and holes."""
+    """Mobility, velocities, diffusivity, resistivity and the resistivity-doping conversion."""
 
     # ------------------------------------------------------------------ velocities
     def thermal_velocity(self, carrier, temperature):
@@ -48,16 +119,369 @@ class TransportMethods:
         return quantity(self._call(model, {"temperature": coerce(temperature, "temperature")}),
                         model.output_units)
 
+    def saturation_velocity(self, carrier, temperature):
+        """Saturation drift velocity of electrons or holes at high field, cm/s."""
+        model = self.model("saturation_velocity").select(carrier_name(carrier))
+        return quantity(self._call(model, {"temperature": coerce(temperature, "temperature")}),
+                        model.output_units)
+
+    # ------------------------------------------------------------------ mobility
+    def _mobility_model(self, carrier: str, donor: str, acceptor: str):
+        """The release's mobility model bound to the coefficient set for ``carrier``."""
+        model = self.model("mobility")
+        if model.variant_axis == "dopant":
+            return model.select(donor if carrier == "electron" else acceptor)
+        if model.variant_axis == "carrier":
+            return model.select(carrier)
+        return model
+
+    def _transport_inputs(self, model, temperature, Na, Nd, n, p, donor, acceptor,
+                          dopant_densities="total", statistics=None, carriers=False):
+        """Kernel inputs ``{name: (array, min, max)}`` for a mobility model.
+
+        Solves the equilibrium once if the model wants ionised densities from the
+        totals given, or the carrier densities (``carriers=True`` always wants
+        them) and ``n``, ``p`` were omitted.
+        """
+        _choice(dopant_densities, "dopant_densities", DOPANT_DENSITIES)
+        takes_ionised = model.extra["dopant_densities"] == "ionised"
+        if dopant_densities == "ionised" and not takes_ionised:
+            raise InputError("dopant_densities", f"'total' for model mobility/{model.id}, "
+                             "which takes total dopant densities", "'ionised'")
+        if (n is None) != (p is None):
+            raise InputError("n" if n is None else "p", "given together with "
+                             f"{'p' if n is None else 'n'} (or both omitted)", None)
+        wants_carriers = carriers or "electron_density" in model.inputs
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
+        ionise = takes_ionised and dopant_densities == "total"
+        if ionise or (wants_carriers and n is None):
+            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics)
+            if ionise:
+                prepared["donor_density"] = _extremes(result["ionised_donors"])
+                prepared["acceptor_density"] = _extremes(result["ionised_acceptors"])
+            if wants_carriers and n is None:
+                prepared["electron_density"] = _extremes(result["electron_density"])
+                prepared["hole_density"] = _extremes(result["hole_density"])
+            prepared["temperature"] = _extremes(result["temperature"])
+        return prepared
+
+    def _broadcast_all(self, value, prepared):
+        shape = np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
+        return np.broadcast_to(np.asarray(value, dtype=float), shape)
+
+    def mobility(self, carrier, temperature, Na=0, Nd=0, n=None, p=None, *,
+                 donor="phosphorus", acceptor="boron", dopant_densities="total"):
+        """Low-field mobility of electrons or holes, majority or minority, cm^2/(V s).
+
+        Parameters
+        ----------
+        carrier : ``"electron"`` or ``"hole"``
+        temperature : K (or a pint quantity)
+        Na, Nd : acceptor and donor densities, cm^-3 (total, unless
+            ``dopant_densities="ionised"``)
+        n, p : free electron and hole densities, cm^-3, for a model that uses them
+            (Klaassen's); when omitted, the equilibrium densities
+        donor, acceptor : dopant species; electrons take the donor's coefficient
+            set, holes the acceptor's, where the model has one set per species
+        dopant_densities : ``"total"`` (default): the material passes what the model
+            takes (ionised densities from the equilibrium solver for a model fitted
+            against them); ``"ionised"``: ``Na`` and ``Nd`` are already ionised
+            densities and are passed unchanged (only to a model that takes them)
+
+        Arrays broadcast. ``si.provenance("mobility")["dopant_densities"]`` says what
+        the model in use takes.
+        """
+        carrier = carrier_name(carrier)
+        donor = dopant_species(donor, "donor", "donor")
+        acceptor = dopant_species(acceptor, "acceptor", "acceptor")
+        model = self._mobility_model(carrier, donor, acceptor)
+        prepared = self._transport_inputs(model, temperature, Na, Nd, n, p, donor, acceptor,
+                                          dopant_densities)
+        return quantity(self._broadcast_all(self._call(model, prepared), prepared),
+                        model.output_units)
+
+    def high_field_mobility(self, carrier, field, temperature, Na=0, Nd=0, n=None, p=None, *,
+                            donor="phosphorus", acceptor="boron", dopant_densities="total"):
+        """Mobility in an electric field, cm^2/(V s): the release's low-field
+        :meth:`mobility` carried to high field with the Caughey-Thomas form and the
+        release's :meth:`saturation_velocity`, ``mu = mu_0 / [1 + (mu_0 E / v_sat)^beta]^(1/beta)``
+        with the published ``beta(T)``.
+
+        ``field`` : magnitude of the driving field, V/cm (or a pint quantity, e.g.
+        kV/cm), >= 0. Other arguments as for :meth:`mobility`.
+        """
+        carrier = carrier_name(carrier)
+        model = self.model("high_field_mobility").select(carrier)
+        low = self.mobility(carrier, temperature, Na, Nd, n, p, donor=donor,
+                            acceptor=acceptor, dopant_densities=dopant_densities)
+        velocity = self.saturation_velocity(carrier, temperature)
+        prepared = {"field": coerce(field, "field"),
+                    "temperature": coerce(temperature, "temperature"),
+                    "low_field_mobility": _extremes(low.m_as("cm^2/(V*s)")),
+                    "saturation_velocity": _extremes(velocity.m_as("cm/s"))}
+        return quantity(self._broadcast_all(self._call(model, prepared), prepared),
+                        model.output_units)
+
+    def diffusivity(self, carrier, temperature, Na=0, Nd=0, n=None, p=None, *,
+                    donor="phosphorus", acceptor="boron", statistics=None,
+                    dopant_densities="total"):
+        """Diffusion coefficient of electrons or holes, cm^2/s (Einstein relation).
+
+        ``D = mu kT/q x F_1/2(eta) / F_-1/2(eta)``: the Fermi-Dirac factor (> 1 in
+        degenerate silicon) at the equilibrium reduced Fermi level, or at the
+        quasi-Fermi level of the given ``n`` (electrons) or ``p`` (holes).
+        ``statistics``: ``"fermi-dirac"``, ``"boltzmann"`` (factor 1) or None (the
+        narrowing model's own, as for :meth:`equilibrium`). Other arguments as for
+        :meth:`mobility`.
+        """
+        carrier = carrier_name(carrier)
+        donor = dopant_species(donor, "donor", "donor")
+        acceptor = dopant_species(acceptor, "acceptor", "acceptor")
+        bound = self._carriers()
+        fermi_dirac = self._check_statistics(statistics, bound)
+        statistics = "fermi-dirac" if fermi_dirac else "boltzmann"
+        model = self._mobility_model(carrier, donor, acceptor)
+        prepared = self._transport_inputs(model, temperature, Na, Nd, n, p, donor, acceptor,
+                                          dopant_densities, statistics, carriers=True)
+        mu = self._broadcast_all(self._call(model, prepared), prepared)
+        t = prepared["temperature"][0]
+        factor = 1.0
+        if fermi_dirac:
+            nc, nv = bound.dos(temperature=t)
+            density, states = ((prepared["electron_density"][0], nc) if carrier == "electron"
+                               else (prepared["hole_density"][0], nv))
+            with np.errstate(divide="ignore"):
+                factor = einstein_factor(np.log(density) - np.log(states))
+        return quantity(mu * BOLTZMANN_EV * t * factor, "cm^2/s")
+
+    # ------------------------------------------------------------------ resistivity
+    def _conductivity(self, t, nd, na, donor, acceptor, check=True):
+        """sigma (S/cm) of equilibrium silicon on plain arrays; validity checked if ``check``."""
+        bound = self._carriers()
+        result = bound.equilibrium(t, nd, na, donor, acceptor,
+                                   bound.statistics == "fermi-dirac")
+        n, p = result["electron_density"], result["hole_density"]
+        mobilities = []
+        for carrier in CARRIERS:
+            model = self._mobility_model(carrier, donor, acceptor)
+            ionised = model.extra["dopant_densities"] == "ionised"
+            values = {"temperature": result["temperature"],
+                      "donor_density": result["ionised_donors"] if ionised else nd,
+                      "acceptor_density": result["ionised_acceptors"] if ionised else na,
+                      "electron_density": n, "hole_density": p}
+            if check:
+                for name in model.inputs:
+                    model.check(name, *_extremes(values[name])[1:], self.strict)
+            mobilities.append(model(**{k: values[k] for k in model.inputs}))
+        return resistivity_kernels.conductivity(n, p, *mobilities)
+
+    def _physics_inputs(self, temperature, Na, Nd, donor, acceptor):
+        donor = dopant_species(donor, "donor", "donor")
+        acceptor = dopant_species(acceptor, "acceptor", "acceptor")
+        bound = self._carriers()
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
+        self._check_equilibrium(prepared, donor, acceptor, bound)
+        t, nd, na = np.broadcast_arrays(prepared["temperature"][0],
+                                        prepared["donor_density"][0],
+                                        prepared["acceptor_density"][0])
+        return t, nd, na, donor, acceptor
+
+    def _check_equilibrium(self, prepared, donor, acceptor, bound):
+        """The validity checks the equilibrium solver's models make (as in ``_solve``)."""
+        _, low, high = prepared["temperature"]
+        for name in ("densities_of_states", "intrinsic_density"):
+            self.model(name).check("temperature", low, high, self.strict)
+        for argument in bound.narrowing.inputs:
+            if argument in prepared:
+                bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+        self._check_dopants(prepared, donor, acceptor)
+
+    def conductivity(self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron"):
+        """Electrical conductivity of silicon in equilibrium, S/cm.
+
+        ``sigma = q (n0 mu_n + p0 mu_p)`` with the equilibrium carriers (incomplete
+        ionisation, gap narrowing) and the release's mobility at those carriers.
+        ``Na``, ``Nd``: total acceptor and donor densities, cm^-3.
+        """
+        t, nd, na, donor, acceptor = self._physics_inputs(temperature, Na, Nd, donor, acceptor)
+        return quantity(self._conductivity(t, nd, na, donor, acceptor), "S/cm")
+
+    def resistivity(self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron",
+                    conversion="physics"):
+        """Resistivity of silicon, ohm cm.
+
+        ``conversion="physics"`` (default): ``1 / conductivity`` at the temperature
+        given (equilibrium carriers and the release's mobility).
+        ``conversion="standard"``: the standard's conversion from dopant density
+        (ASTM F723 at 23 degC; boron and phosphorus), for singly doped silicon; any
+        other temperature warns (the conversion holds at 23 degC only).
+        """
+        _choice(conversion, "conversion", CONVERSIONS)
+        if conversion == "standard":
+            return self._standard_resistivity(temperature, Na, Nd, donor, acceptor)
+        t, nd, na, donor, acceptor = self._physics_inputs(temperature, Na, Nd, donor, acceptor)
+        return quantity(1.0 / self._conductivity(t, nd, na, donor, acceptor), "ohm*cm")
+
+    def _standard_resistivity(self, temperature, Na, Nd, donor, acceptor):
+        donor = dopant_species(donor, "donor", "donor")
+        acceptor = dopant_species(acceptor, "acceptor", "acceptor")
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
+        t, nd, na = np.broadcast_arrays(*(prepared[k][0] for k in
+                                          ("temperature", "donor_density", "acceptor_density")))
+        compensated = (nd > 0) & (na > 0)
+        if compensated.any():
+            message = (f"model standard_resistivity/{self.model('standard_resistivity').id}: "
+                       f"the standard conversion covers singly doped silicon; "
+                       f"{np.count_nonzero(compensated)} point(s) with both Na and Nd > 0 "
+                       "are NaN (conversion='physics' handles them)")
+            if self.strict:
+                raise ValidityError(message)
+            warn(message, ValidityWarning)
+        model = self.model("standard_resistivity")
+        out = np.full(t.shape, np.nan)
+        for species, where in ((acceptor, (na > 0) & ~compensated),
+                               (donor, ~(na > 0))):
+            if not where.any():
+                continue
+            chosen = model.select(species)
+            values = {"temperature": _extremes(t[where]),
+                      "dopant_density": _extremes((na if species == acceptor else nd)[where])}
+            with np.errstate(divide="ignore"):
+                out[where] = self._call(chosen, values)
+        return quantity(out, "ohm*cm")
+
+    def doping_from_resistivity(self, resistivity, temperature, dopant, *,
+                                conversion="physics"):
+        """Density of one dopant species that gives silicon a resistivity, cm^-3.
+
+        Parameters
+        ----------
+        resistivity : ohm cm (or a pint quantity of resistivity), > 0
+        temperature : K (or a pint quantity)
+        dopant : the species (``"boron"``, ``"phosphorus"``, ...); the silicon holds
+            that dopant only
+        conversion : ``"physics"`` (default): the inverse of :meth:`resistivity` at the
+            temperature given, solved for every point at once; ``"standard"``: the
+            standard's own conversion (ASTM F723 at 23 degC; boron and phosphorus),
+            which warns at any other temperature
+
+        A resistivity that no density of the dopant gives at that temperature
+        (above that of nearly intrinsic silicon, or below that of 1e21 cm^-3) is an
+        error naming the range; a density outside the models' validity warns.
+        Acceptors first raise the resistivity of intrinsic silicon (they remove its
+        more mobile electrons) up to a maximum near ``N = ni (sqrt(r) - 1/sqrt(r))``,
+        ``r = mu_n / mu_p``; the answer is the density above that maximum.
+        """
+        _choice(conversion, "conversion", CONVERSIONS)
+        species = dopant_species(dopant, "dopant")
+        rho = coerce(resistivity, "resistivity")
+        t = coerce(temperature, "temperature")
+        try:
+            shape = np.broadcast_shapes(rho[0].shape, t[0].shape)
+        except ValueError:
+            raise InputError("resistivity, temperature", "arrays whose shapes broadcast "
+                             "together", f"{rho[0].shape}, {t[0].shape}") from None
+        if conversion == "standard":
+            model = self.model("standard_dopant_density").select(species)
+            value = self._call(model, {"temperature": t, "resistivity": rho})
+            return quantity(np.broadcast_to(value, shape).astype(float), "cm^-3")
+        kind = DOPANTS[species]
+        donor = species if kind == "donor" else "phosphorus"
+        acceptor = species if kind == "acceptor" else "boron"
+        target = np.broadcast_to(rho[0], shape).ravel()
+        temperatures = np.broadcast_to(t[0], shape).ravel()
+        density = self._invert_resistivity(target, temperatures, species, donor, acceptor)
+        # validity of every model on the answer's range (warn, or raise if strict)
+        zeros = np.zeros_like(density)
+        nd, na = (density, zeros) if kind == "donor" else (zeros, density)
+        prepared = {"temperature": t, "donor_density": _extremes(nd),
+                    "acceptor_density": _extremes(na)}
+        self._check_equilibrium(prepared, donor, acceptor, self._carriers())
+        for carrier in CARRIERS:
+            model = self._mobility_model(carrier, donor, acceptor)
+            for name in ("temperature", "donor_density", "acceptor_density"):
+                if name in model.inputs:
+                    model.check(name, *prepared[name][1:], self.strict)
+        return quantity(density.reshape(shape), "cm^-3")
+
+    def _lowest_density(self, temperatures, kind, donor, acceptor):
+        """Where the doping-dominated branch of rho(N) starts (cm^-3, 1-D).
+
+        Donors: rho falls from the intrinsic value for any N, so 1e-3 ni. Acceptors:
+        rho peaks where p = ni sqrt(r), r = mu_n/mu_p of intrinsic silicon, i.e. at
+        N = ni (sqrt(r) - 1/sqrt(r)); the branch above it falls monotonically.
+        """
+        ni = self._carriers().ni(temperature=temperatures)
+        if kind == "donor":
+            return np.maximum(1e-3 * ni, 1e-30)
+        zeros = np.zeros_like(ni)
+        state = {"temperature": temperatures, "donor_density": zeros,
+                 "acceptor_density": zeros, "electron_density": ni, "hole_density": ni}
+        mu = [model(**{k: state[k] for k in model.inputs}) for model in
+              (self._mobility_model(c, donor, acceptor) for c in CARRIERS)]
+        root = np.sqrt(np.maximum(mu[0] / mu[1], 1.0))
+        return np.maximum(ni * (root - 1.0 / root), 1e-3 * ni)
+
+    def _invert_resistivity(self, target, temperatures, species, donor, acceptor):
+        """N (1-D) with rho(T, N) = target on the doping-dominated branch."""
+        kind = DOPANTS[species]
+        if target.size == 0:
+            return np.zeros(0)
+        log_target = np.log(target)
+
+        def log_rho(log_n, index):
+            density = np.exp(log_n)
+            zeros = np.zeros_like(density)
+            nd, na = (density, zeros) if kind == "donor" else (zeros, density)
+            sigma = self._conductivity(temperatures[index], nd, na, donor, acceptor,
+                                       check=False)
+            return -np.log(sigma)
+
+        everything = np.arange(target.size)
+        low = np.log(self._lowest_density(temperatures, kind, donor, acceptor))
+        high = np.full(target.size, np.log(_HIGHEST_DENSITY))
+        rho_low, rho_high = log_rho(low, everything), log_rho(high, everything)
+        for bad, limit, what in ((log_target > rho_low, rho_low, "at most"),
+                                 (log_target < rho_high, rho_high, "at least")):
+            if bad.any():
+                i = np.flatnonzero(bad)[0]
+                raise InputError("resistivity", f"{what} {np.exp(limit[i]):.4g} ohm*cm for "
+                                 f"{species}-doped silicon at {temperatures[i]:g} K (what "
+                                 f"{np.exp(low[i]):.3g}-{_HIGHEST_DENSITY:.0e} cm^-3 give)",
+                                 f"{target[i]:g} ohm*cm at point #{i} "
+                                 f"({np.count_nonzero(bad)} point(s) out of reach)")
+        log_n, converged = resistivity_kernels.solve_decreasing(
+            log_rho, log_target, low, high, f_low=rho_low, f_high=rho_high)
+        if not converged.all():
+            bad = np.flatnonzero(~converged)
+            raise SolverError(f"doping_from_resistivity: {bad.size} point(s) did not "
+                              f"converge, e.g. #{bad[0]}: {target[bad[0]]:g} ohm*cm at "
+                              f"{temperatures[bad[0]]:g} K")
+        return np.exp(log_n)
+
     # ------------------------------------------------------------------ kernels
     def _transport_kernel(self, name: str, fixed: dict):
-        """The plain-array callable of a transport quantity (see ``Silicon.kernel``)."""
+        """The plain-array callable of a transport quantity (see ``Silicon.kernel``).
+
+        ``carrier=`` is required; for ``mobility`` also ``donor=`` / ``acceptor=``
+        (defaults phosphorus, boron) where the model has one set per dopant species.
+        The callable takes the model's inputs (``si.model(name).inputs``) in internal
+        units; a mobility model takes the dopant densities it declares (see its
+        ``dopant_densities``), nothing is converted.
+        """
         fixed = dict(fixed)
         carrier = fixed.pop("carrier", None)
         if carrier is None:
             raise InputError("carrier", f"given for {name} (one of {', '.join(CARRIERS)})",
                              None)
-        model = self.model(name).select(carrier_name(carrier))
+        carrier = carrier_name(carrier)
+        if name == "mobility":
+            donor = dopant_species(fixed.pop("donor", "phosphorus"), "donor", "donor")
+            acceptor = dopant_species(fixed.pop("acceptor", "boron"), "acceptor", "acceptor")
+            model = self._mobility_model(carrier, donor, acceptor)
+        else:
+            model = self.model(name).select(carrier)
         if fixed:
-            key = sorted(fixed)[0]
+            key = min(fixed)
             raise InputError(key, f"not an option of the {name} kernel", fixed[key])
         return model
