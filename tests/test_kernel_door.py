@@ -53,6 +53,14 @@ def _smooth_models():
         si = matprops.silicon(models={"gap_narrowing": narrowing})
         cases.append((f"effective_intrinsic_density with {narrowing}",
                       si.kernel("effective_intrinsic_density")))
+    for model_id in CATALOG.model_ids("mobility"):
+        si = matprops.silicon(models={"mobility": model_id})
+        model = si.model("mobility")
+        carriers = [c for c in ("electron", "hole")
+                    if model.variant_axis != "carrier" or c in model.variants]
+        for carrier in carriers:
+            cases.append((f"mobility/{model_id}/{carrier}",
+                          si.kernel("mobility", carrier=carrier)))
     return cases
 
 
@@ -235,7 +243,7 @@ def test_closed_form_kernels_take_any_array_api_array(label, model):
     values = {"electron_emission_density": (1e9, 1e11), "hole_emission_density": (1e9, 1e11),
               "electron_capture_time": (1e-6, 1e-5), "hole_capture_time": (1e-6, 1e-5),
               "field": (1e3, 1e5), "low_field_mobility": (400.0, 1400.0),
-              "saturation_velocity": (8e6, 1.1e7)}
+              "saturation_velocity": (8e6, 1.1e7), "resistivity": (0.5, 50.0)}
     rng = np.random.default_rng(1)
     plain = {}
     for name in model.inputs:

@@ -18,7 +18,7 @@ import contextlib
 
 import numpy as np
 
-__all__ = ["asfloat", "asin", "asinh", "cbrt", "errstate", "namespace", "power",
+__all__ = ["asfloat", "asin", "asinh", "cbrt", "errstate", "interp", "namespace", "power",
            "zeros_like"]
 
 _NUMPY_TYPES = (np.ndarray, np.generic)
@@ -74,3 +74,18 @@ def asin(xp, x):
 
 def asinh(xp, x):
     return np.arcsinh(x) if xp is np else xp.asinh(x)
+
+
+def interp(xp, x, grid, values):
+    """Piecewise-linear interpolation in a 1-D table (numpy's interp; the same formula
+    with the standard's searchsorted and take elsewhere), clamped at the ends."""
+    if xp is np:
+        return np.interp(x, grid, values)
+    x = asfloat(xp, x)
+    g = xp.asarray(np.asarray(grid, dtype=float))
+    v = xp.asarray(np.asarray(values, dtype=float))
+    flat = xp.reshape(xp.clip(x, float(grid[0]), float(grid[-1])), (-1,))
+    j = xp.clip(xp.searchsorted(g, flat, side="right") - 1, 0, g.shape[0] - 2)
+    g0, g1 = xp.take(g, j), xp.take(g, j + 1)
+    v0, v1 = xp.take(v, j), xp.take(v, j + 1)
+    return xp.reshape((v1 - v0) / (g1 - g0) * (flat - g0) + v0, x.shape)

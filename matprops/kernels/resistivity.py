@@ -18,6 +18,8 @@ mobilities in cm^2/(V s).
 import numpy as np
 
 from ._spec import kernel
+from ._xp import asfloat, namespace
+from .band_gap import horner
 from .constants import ELEMENTARY_CHARGE
 
 __all__ = ["conductivity", "log_rational_density", "log_rational_resistivity",
@@ -33,25 +35,29 @@ def conductivity(electron_density, hole_density, electron_mobility, hole_mobilit
 # --------------------------------------------------------------------------- standard
 
 def _rational(x, constant_term, fall_term, fall_scale, fall_exponent):
-    x = np.asarray(x, dtype=float)
-    return (constant_term + fall_term / (1.0 + np.exp(fall_exponent * np.log(fall_scale * x)))) / x
+    xp = namespace(x)
+    x = asfloat(xp, x)
+    return (constant_term + fall_term / (1.0 + xp.exp(fall_exponent * xp.log(fall_scale * x)))) / x
 
 
 def _log_rational(x, prefactor, reference, numerator, denominator):
-    x = np.asarray(x, dtype=float)
-    y = np.log10(x / reference)
-    top = np.polynomial.polynomial.polyval(y, numerator)
-    bottom = 1.0 + y * np.polynomial.polynomial.polyval(y, denominator)
+    xp = namespace(x)
+    x = asfloat(xp, x)
+    y = xp.log10(x / reference)
+    top = horner(y, numerator)
+    bottom = 1.0 + y * horner(y, denominator)
     return prefactor / x * 10.0 ** (top / bottom)
 
 
 def _broadcast(value, temperature):
-    return np.broadcast_to(value, np.broadcast_shapes(np.shape(value), np.shape(temperature)))
+    xp = namespace(value, temperature)
+    shape = np.broadcast_shapes(tuple(value.shape), tuple(asfloat(xp, temperature).shape))
+    return xp.broadcast_to(value, shape)
 
 
 @kernel(inputs={"temperature": "K", "dopant_density": "cm^-3"}, output="ohm*cm",
         coefficients={"constant_term": "ohm/cm^2", "fall_term": "ohm/cm^2",
-                      "fall_scale": "cm^3", "fall_exponent": "1"})
+                      "fall_scale": "cm^3", "fall_exponent": "1"}, array_api=True)
 def rational_resistivity(temperature, dopant_density, *, constant_term, fall_term, fall_scale,
                          fall_exponent):
     """Resistivity from dopant density, boron's form of the standard conversion.
@@ -70,7 +76,7 @@ def rational_resistivity(temperature, dopant_density, *, constant_term, fall_ter
 
 @kernel(inputs={"temperature": "K", "resistivity": "ohm*cm"}, output="cm^-3",
         coefficients={"constant_term": "ohm/cm^2", "fall_term": "ohm/cm^2",
-                      "fall_scale": "1/(ohm*cm)", "fall_exponent": "1"})
+                      "fall_scale": "1/(ohm*cm)", "fall_exponent": "1"}, array_api=True)
 def rational_density(temperature, resistivity, *, constant_term, fall_term, fall_scale,
                      fall_exponent):
     """Dopant density from resistivity, boron's form of the standard conversion.
@@ -89,7 +95,7 @@ def rational_density(temperature, resistivity, *, constant_term, fall_term, fall
 
 @kernel(inputs={"temperature": "K", "dopant_density": "cm^-3"}, output="ohm*cm",
         coefficients={"prefactor": "1/C", "reference_density": "cm^-3", "numerator": "1",
-                      "denominator": "1"})
+                      "denominator": "1"}, array_api=True)
 def log_rational_resistivity(temperature, dopant_density, *, prefactor, reference_density,
                              numerator, denominator):
     """Resistivity from dopant density, phosphorus's form of the standard conversion.
@@ -110,7 +116,7 @@ def log_rational_resistivity(temperature, dopant_density, *, prefactor, referenc
 
 @kernel(inputs={"temperature": "K", "resistivity": "ohm*cm"}, output="cm^-3",
         coefficients={"prefactor": "1/C", "reference_resistivity": "ohm*cm",
-                      "numerator": "1", "denominator": "1"})
+                      "numerator": "1", "denominator": "1"}, array_api=True)
 def log_rational_density(temperature, resistivity, *, prefactor, reference_resistivity,
                          numerator, denominator):
     """Dopant density from resistivity, phosphorus's form of the standard conversion.
