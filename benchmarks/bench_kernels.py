@@ -16,7 +16,8 @@
 4. Scalar calls: the API against the bound kernel (target: within 3x for closed-form
    quantities).
 5. Derivatives: ``kernel.derivatives`` against the value alone at 1e5 points
-   (target: at most 3x).
+   (target: at most 3x), with fresh result arrays and with arrays kept between calls
+   (``out=``, as a simulation code reuses them every iteration).
 6. Start-up in fresh processes (bytecode cached first): ``import numpy, pint``;
    pint's registry; ``matprops.silicon().band_gap(300)``; the first bound-kernel call.
 7. The rows of issue 12's table, re-measured.
@@ -41,7 +42,9 @@ import warnings
 import numpy as np
 
 import matprops
-from matprops.kernels.constants import BOLTZMANN_EV, PHOTON_ENERGY_NM
+from matprops.kernels.constants import BOLTZMANN_EV
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # bench_transport's expression
 
 warnings.simplefilter("ignore", matprops.ValidityWarning)
 
@@ -321,6 +324,38 @@ def cases(si):
                       lambda a: hand_fca(a["lam"], a["n"], a["p"], c_fca),
                       lambda a: si.free_carrier_absorption(a["lam"], n=a["n"], p=a["p"])))
 
+    # transport (hand versions: the Klaassen expression of benchmarks/bench_transport.py)
+    from bench_transport import inline_klaassen
+
+    for carrier in ("electron", "hole"):
+        mobility = si.kernel("mobility", carrier=carrier)
+        model = si._mobility_model(carrier, "phosphorus", "boron")
+        c_mu = coefficients(model)
+        found.append(Case(f"mobility (klaassen-1992, {carrier}, n, p given)", doped,
+                          lambda a, k=mobility: k(a["T"], a["Nd"], a["Na"], a["n"], a["p"]),
+                          lambda a, c=c_mu: inline_klaassen(a["T"], a["Nd"], a["Na"], a["n"],
+                                                            a["p"], c),
+                          lambda a, carrier=carrier: si.mobility(
+                              carrier, a["T"], Na=a["Na"], Nd=a["Nd"], n=a["n"], p=a["p"],
+                              dopant_densities="ionised")))
+    vsat = si.kernel("saturation_velocity", carrier="electron")
+    c_sat = coefficients(si.model("saturation_velocity").select("electron"))
+    found.append(Case("saturation_velocity (jacoboni-1977, electron)", temperatures,
+                      lambda a: vsat(a["T"]),
+                      lambda a: c_sat["prefactor"] * (a["T"] / c_sat["reference_temperature"])
+                      ** c_sat["exponent"],
+                      lambda a: si.saturation_velocity("electron", a["T"])))
+    rho = si.kernel("standard_resistivity", dopant="boron")
+    c_rho = coefficients(si.model("standard_resistivity").select("boron"))
+
+    def resistivity_inputs(size):
+        return {"T": np.full(size, 296.15), "N": 10 ** rng.uniform(13, 20, size)}
+
+    found.append(Case("standard_resistivity (thurber-1981, boron)", resistivity_inputs,
+                      lambda a: rho(a["T"], a["N"]),
+                      lambda a: c_rho["constant_term"] / a["N"] + c_rho["fall_term"] / (
+                          a["N"] * (1 + (c_rho["fall_scale"] * a["N"]) ** c_rho["fall_exponent"]))))
+
     # optical tables: the combined model's table at the series temperatures (prepared once
     # by the kernel, and given here to the hand versions for free)
     for quantity in ("absorption", "refractive_index"):
@@ -484,6 +519,11 @@ def section_scalars(si):
          lambda: si.dopant_level(1e17, "phosphorus")),
         ("intrinsic_lifetime", {}, (300.0, 1e16, 1e4, 1e15),
          lambda: si.intrinsic_lifetime(300.0, n0=1e16, p0=1e4, excess=1e15)),
+        ("mobility", {"carrier": "electron"}, (300.0, 1e17, 1e15, 1e17, 1e3),
+         lambda: si.mobility("electron", 300.0, Na=1e15, Nd=1e17, n=1e17, p=1e3,
+                             dopant_densities="ionised")),
+        ("saturation_velocity", {"carrier": "electron"}, (300.0,),
+         lambda: si.saturation_velocity("electron", 300.0)),
         ("thermal_velocity", {"carrier": "electron"}, (300.0,),
          lambda: si.thermal_velocity("electron", 300.0)),
         ("free_carrier_absorption", {}, (1500.0, 1e18, 0.0),
@@ -509,7 +549,8 @@ def section_derivatives(si, size):
     rows = [("band_gap", {}, (t,)), ("densities_of_states", {}, (t,)),
             ("intrinsic_density", {}, (t,)), ("radiative_coefficient", {}, (t,)),
             ("gap_narrowing", {}, doped), ("effective_intrinsic_density", {}, doped),
-            ("intrinsic_lifetime", {}, life)]
+            ("intrinsic_lifetime", {}, life), ("mobility", {"carrier": "electron"}, doped),
+            ("mobility", {"carrier": "hole"}, doped)]
     for release_model in (None, "klaassen-1992"):
         material = si if release_model is None else matprops.silicon(
             models={"gap_narrowing": release_model})
@@ -521,11 +562,20 @@ def section_derivatives(si, size):
                 args = tuple(dict(zip(("temperature", "donor_density", "acceptor_density",
                                        "electron_density", "hole_density"), doped))[k]
                              for k in kernel.inputs)
-            value, both = compare(lambda: kernel(*args), lambda: kernel.derivatives(*args))
-            label = f"{name} ({material.model(name).id if name in material.models else 'derived'})"
-            print(f"   {label:48s} value {value / size * 1e9:7.1f} ns/el, value + "
-                  f"{len(kernel.inputs)} partials {both / size * 1e9:7.1f} ns/el, "
-                  f"ratio {both / value:4.2f}")
+            value_out, partial_out = kernel.derivatives(*args)  # buffers to reuse
+            partial_out = {k: tuple(np.empty_like(a) for a in v) if isinstance(v, tuple)
+                           else np.empty_like(v) for k, v in partial_out.items()}
+            value_out = (tuple(np.empty_like(a) for a in value_out)
+                         if isinstance(value_out, tuple) else np.empty_like(value_out))
+            value, both, value_kept, both_kept = compare(
+                lambda: kernel(*args), lambda: kernel.derivatives(*args),
+                lambda: kernel(*args, out=value_out),
+                lambda: kernel.derivatives(*args, out=(value_out, partial_out)))
+            label = (f"{name} ({material.model(name).id if name in material.models else 'derived'}"
+                     f"{', ' + fixed['carrier'] if fixed else ''})")
+            print(f"   {label:46s} value {value / size * 1e9:6.1f}, + {len(partial_out)} "
+                  f"partials {both / size * 1e9:6.1f} ns/el: ratio {both / value:4.2f}; "
+                  f"into kept arrays (out=) {both_kept / value_kept:4.2f}")
 
 
 STARTUP = {

@@ -168,6 +168,9 @@ class BoundKernel:
             derivative of the value (same structure: a tuple of arrays for a kernel
             that returns a tuple), in output units per input unit (eV/K, eV cm^3, ...).
             Analytic, evaluated in the same blocks as the value.
+
+        ``out=(value_out, {input: partial_out})`` writes into arrays the caller keeps
+        (a simulation code reuses them every iteration; fresh arrays cost page faults).
         """
         if self._derivative is None:
             raise TypeError(f"the {self.quantity} kernel ({self.model_id}) has no "
@@ -192,10 +195,20 @@ class BoundKernel:
             if hasattr(derivative, attribute):
                 setattr(flat, attribute, getattr(derivative, attribute))
 
-        if out is not None:
-            raise TypeError("derivatives() has no out= (it returns several arrays)")
-        parts = evaluate(flat, arguments)
         width = len(self.output_units) if isinstance(self.output_units, tuple) else 1
+        flat_out = None
+        if out is not None:
+            try:
+                value_out, partial_out = out
+                flat_out = (value_out if width > 1 else (value_out,))
+                for name in names:
+                    flat_out += (tuple(partial_out[name]) if width > 1
+                                 else (partial_out[name],))
+            except (TypeError, ValueError, KeyError):
+                raise TypeError("out must be (value array(s), {input: partial array(s)}) "
+                                f"with a partial for each input given ({', '.join(names)})"
+                                ) from None
+        parts = evaluate(flat, arguments, out=flat_out)
 
         def pick(k):
             chunk = parts[k * width:(k + 1) * width]

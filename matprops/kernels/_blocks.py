@@ -60,12 +60,16 @@ def evaluate(function: Callable, arguments: Mapping[str, object], out=None,
     kernel = getattr(function, "func", function)  # a kernel bound with functools.partial
     if block is None:
         block = getattr(kernel, "block", BLOCK)
-    if getattr(function, "blocks_itself", False) or getattr(kernel, "unblocked", False):
-        # a prepared table blocks where it helps; a kernel that only fills its output
-        # (a constant) gains nothing from blocks but a copy
+    if getattr(function, "blocks_itself", False):  # a prepared table: blocks where it helps
         if out is None:
             return function(**arguments, **options)
         return function(**arguments, out=out, **options)
+    if getattr(kernel, "unblocked", False):  # it only fills its output (a constant)
+        result = function(**arguments, **options)
+        if out is None:
+            return result
+        shape = np.broadcast_shapes(*(np.shape(v) for v in arguments.values()))
+        return _write(out, result, shape, ())
     shapes = []
     for value in arguments.values():
         if type(value) in _SCALARS:

@@ -147,7 +147,10 @@ def mass_polynomials_derivatives(temperature, *, prefactor, conduction_polynomia
     t = asfloat(xp, temperature)
     root = xp.sqrt(t)
     t32 = prefactor * t * root
-    slopes = tuple(prefactor * root * (1.5 * horner(t, c) + t * horner_derivative(t, c))
-                   for c in (conduction_polynomial, valence_polynomial))
-    return ((t32 * horner(t, conduction_polynomial), t32 * horner(t, valence_polynomial)),
-            {"temperature": slopes})
+    scale = prefactor * root
+    values, slopes = [], []
+    for c in (conduction_polynomial, valence_polynomial):
+        mass = horner(t, c)
+        values.append(t32 * mass)
+        slopes.append(scale * (1.5 * mass + t * horner_derivative(t, c)))
+    return tuple(values), {"temperature": tuple(slopes)}

@@ -20,6 +20,8 @@ dopants, and go with Fermi-Dirac statistics.
 
 import math
 
+import numpy as np
+
 from ._spec import derivatives_of, kernel
 from ._xp import asfloat, cbrt, errstate, namespace, zeros_like
 from .constants import BOLTZMANN_EV
@@ -239,7 +241,8 @@ class _SchenkParts:
         u = dopants * dopants / t3
         screening = xp.sqrt(t * dopants / (2.0 * math.pi))
         root_dopants = xp.sqrt(dopants)
-        log_screening = xp.log1p(root_dopants / t)
+        ratio = root_dopants / t
+        log_screening = xp.log1p(ratio)
         ions_p = self.alpha_e * donors + self.alpha_h * acceptors
         with errstate(xp, divide="ignore"):
             log_ions_p = xp.log(ions_p)
@@ -247,6 +250,22 @@ class _SchenkParts:
         ionic_top = dopants * (1.0 + u)
         present = dopants > 0
         zero = zeros_like(xp, dopants)
+        everywhere = xp is not np or bool(np.all(present))
+        scale = rydberg * self.volume
+        if derivatives:  # shared by both bands (see the derivation in ionic())
+            with errstate(xp, invalid="ignore", divide="ignore"):
+                inverse_t = 1.0 / t
+                inverse_ns = 1.0 / dopants
+                fraction = ratio / (1.0 + ratio)
+                half_ns = 0.5 * screening * inverse_ns
+                half_t = 0.5 * screening * inverse_t
+                log_plus = log_screening + fraction
+                log_minus = log_screening - 2.0 * fraction
+                two_over_ns = 2.0 * inverse_ns
+                minus_three_over_t = -3.0 * inverse_t
+                top_ns = 1.0 + 3.0 * u
+                top_t = dopants * u * minus_three_over_t
+                inverse_np = 1.0 / ions_p
 
         def ionic(parameters):
             _, _, _, _, h, j, k, q = parameters
@@ -259,24 +278,23 @@ class _SchenkParts:
             value = xp.where(present, value, zero)
             if not derivatives:
                 return value, None
-            # I = -top / bottom; dI = -(d top + I d bottom) / bottom, for v = Ns, Np, t
+            # I = -top / bottom: dI = -(d top + I d bottom) / bottom, through Ns, Np, t:
+            # d lattice/dNs = Sc/(2 Ns) [1 + h (Lg + r/(1+r))], d lattice/dt = Sc/(2t)
+            # [1 + h (Lg - 2 r/(1+r))] with r = sqrt(Ns)/t; d impurity/dNs = 2 imp/Ns,
+            # /dt = -3 imp/t, /dNp = imp [3/4 + q k Np^q/(1 + k Np^q)] / Np
             with errstate(xp, invalid="ignore", divide="ignore"):
-                ratio = root_dopants / t
-                d_lattice_ns = (screening / (2.0 * dopants) * (1.0 + h * log_screening)
-                                + screening * h * ratio / (2.0 * dopants * (1.0 + ratio)))
-                d_lattice_t = (screening / (2.0 * t) * (1.0 + h * log_screening)
-                               - screening * h * ratio / (t * (1.0 + ratio)))
-                d_impurity_ns = impurity * 2.0 / dopants
-                d_impurity_np = impurity * (0.75 + k * q * power_q / (1.0 + k * power_q)) \
-                    / ions_p
-                d_impurity_t = -3.0 * impurity / t
-                d_bottom_ns = d_lattice_ns + d_impurity_ns
-                d_ns = -((1.0 + 3.0 * u) + value * d_bottom_ns) / bottom
-                d_np = -(value * d_impurity_np) / bottom
-                d_t = -((-3.0 * dopants * u / t) + value * (d_lattice_t + d_impurity_t)) / bottom
-            d_donor = xp.where(present, d_ns + self.alpha_e * d_np, zero)
-            d_acceptor = xp.where(present, d_ns + self.alpha_h * d_np, zero)
-            return value, (xp.where(present, d_t, zero), d_donor, d_acceptor)
+                inverse = 1.0 / bottom
+                scaled = scale * inverse  # -(Ry a^3) x (-1/bottom): to eV cm^3
+                kq = k * power_q
+                d_ns = (top_ns + value * (half_ns * (1.0 + h * log_plus)
+                                          + impurity * two_over_ns)) * scaled
+                d_np = value * impurity * (0.75 + q * kq / (1.0 + kq)) * inverse_np * scaled
+                d_t = -(top_t + value * (half_t * (1.0 + h * log_minus)
+                                         + impurity * minus_three_over_t)) * inverse
+                partials = (d_t, d_ns + self.alpha_e * d_np, d_ns + self.alpha_h * d_np)
+            if not everywhere:  # no dopants: no ionic part, no slope
+                partials = tuple(xp.where(present, d, zero) for d in partials)
+            return value, partials
 
         (self.ionic_e, self.d_ionic_e), (self.ionic_h, self.d_ionic_h) = (
             ionic(electron_set), ionic(hole_set))
@@ -324,53 +342,59 @@ class _SchenkParts:
         four_pi_cubed_ns2 = (4.0 * math.pi) ** 3 * ns * ns
         common_top = _ROOT_8PI * sqrt_ns * self.t52
         common_bottom = four_pi_cubed_ns2 + self.t3 + 40.0 * ns * sqrt_ns * t
+        # shared pieces: d/dns and d/dt of F = (4 pi)^3 ns^2, of the common top and bottom
         with errstate(xp, divide="ignore", invalid="ignore"):
-            d_f = 2.0 * (4.0 * math.pi) ** 3 * ns                   # dF/dns
-            d_top_ns = _ROOT_8PI * self.t52 / (2.0 * sqrt_ns)       # d common_top/dns
+            inverse_ns = 1.0 / ns
+            d_f = 2.0 * (4.0 * math.pi) ** 3 * ns
+            d_top_ns = 0.5 * common_top * inverse_ns
             d_top_t = 2.5 * common_top / t
-            d_bottom_ns = d_f + 60.0 * sqrt_ns * t
+            root_t = sqrt_ns * t
+            d_bottom_ns = d_f + 60.0 * root_t
             d_bottom_t = 3.0 * t2 + 40.0 * ns * sqrt_ns
-        d_t_dtemperature = BOLTZMANN_EV / rydberg
+            half_t2_root = 0.5 * t2 * sqrt_ns * inverse_ns  # d(sqrt(ns) t^2)/dns
+            two_root_t = 2.0 * root_t                       # d(sqrt(ns) t^2)/dt
+            inverse_m = 1.0 / m
+        scale = rydberg * volume                        # d shift / d density, per -dX
+        to_kelvin = -BOLTZMANN_EV                       # d shift/dT per dX/dt: -Ry k/Ry
 
         def shift(n_a, g_a, alpha_a, parameters, ionic, d_ionic, own):
             b, c, d, pa, *_ = parameters
             with errstate(xp, divide="ignore", invalid="ignore"):
                 cube = cbrt(xp, (48.0 / (math.pi * g_a)) * n_a)
                 w = d * xp.exp(pa * log_np)
-                log_term = xp.log1p(w)
+                log_term = c * xp.log1p(w)
                 k_a = 8.0 * math.pi * alpha_a / g_a
-                top = (four_pi_cubed_ns2 * (cube + c * log_term) + k_a * n_a * t2
-                       + common_top)
+                bracket = cube + log_term
+                top = four_pi_cubed_ns2 * bracket + k_a * n_a * t2 + common_top
                 bottom = common_bottom + b * sqrt_ns * t2
                 exchange = -top / bottom
                 value = -(exchange + ionic) * rydberg
                 # exchange X = -top/bottom: dX = -(d top + X d bottom) / bottom
-                d_cube = cube / (3.0 * n_a)                          # d cube / d n_a
-                d_log_m = c * pa * w / ((1.0 + w) * m)               # c dL/dm
-                mixed = d_f * (cube + c * log_term) + d_top_ns
-                d_bottom = d_bottom_ns + b * t2 / (2.0 * sqrt_ns)
-                partial = []
-                for carrier, alpha in ((0, self.alpha_e), (1, self.alpha_h)):
-                    d_top = mixed + four_pi_cubed_ns2 * alpha * d_log_m
-                    if carrier == own:
-                        d_top = d_top + four_pi_cubed_ns2 * d_cube + k_a * t2
-                    partial.append(-(d_top + exchange * d_bottom) / bottom)
-                d_top_time = 2.0 * k_a * n_a * t + d_top_t
-                d_time = -(d_top_time + exchange * (d_bottom_t + 2.0 * b * sqrt_ns * t)) / bottom
+                inverse = 1.0 / bottom
+                factor = scale * inverse
+                base = d_f * bracket + d_top_ns + exchange * (d_bottom_ns + b * half_t2_root)
+                mixing = four_pi_cubed_ns2 * (c * pa) * w / (1.0 + w) * inverse_m
+                own_term = four_pi_cubed_ns2 * cube / (3.0 * n_a) + k_a * t2
+                partial = [(base + alpha * mixing) for alpha in (self.alpha_e, self.alpha_h)]
+                partial[own] = partial[own] + own_term
+                partial = [d * factor for d in partial]
+                d_time = (2.0 * k_a * n_a * t + d_top_t
+                          + exchange * (d_bottom_t + b * two_root_t)) * inverse
             d_ionic_t, d_ionic_nd, d_ionic_na = d_ionic
-            scale = -rydberg * volume
             return value, {
-                "temperature": -rydberg * d_t_dtemperature * (d_time + d_ionic_t),
-                "donor_density": scale * d_ionic_nd,
-                "acceptor_density": scale * d_ionic_na,
-                "electron_density": scale * partial[0],
-                "hole_density": scale * partial[1]}
+                "temperature": (d_ionic_t - d_time) * to_kelvin,
+                "donor_density": d_ionic_nd,
+                "acceptor_density": d_ionic_na,
+                "electron_density": partial[0],
+                "hole_density": partial[1]}
 
         ec, d_ec = shift(n, self.g_e, self.alpha_e, self.electron_set, self.ionic_e,
                          self.d_ionic_e, 0)
         ev, d_ev = shift(p, self.g_h, self.alpha_h, self.hole_set, self.ionic_h,
                          self.d_ionic_h, 1)
-        return (ec, ev), {name: (d_ec[name], d_ev[name]) for name in d_ec}
+        shape = np.broadcast_shapes(tuple(ec.shape), tuple(ev.shape))
+        return (ec, ev), {name: (xp.broadcast_to(d_ec[name], shape),
+                                 xp.broadcast_to(d_ev[name], shape)) for name in d_ec}
 
 
 _ROOT_8PI = math.sqrt(8.0 * math.pi)

@@ -23,10 +23,12 @@ Every kernel takes ``part="total"`` (Auger + radiative), ``"auger"`` or
 ``"radiative"`` to return the lifetime of one part alone.
 """
 
+import math
+
 import numpy as np
 
 from ._spec import derivatives_of, kernel
-from ._xp import asfloat, errstate, namespace, power
+from ._xp import asfloat, errstate, namespace, power, zeros_like
 
 PARTS = ("total", "auger", "radiative")
 
@@ -89,17 +91,33 @@ def _power(xp, density, exponent):
 def _lifetime_derivatives(xp, shape, n0, p0, dn, auger, radiative, d_auger, d_radiative,
                           part):
     """tau = 1/(S K) with S = n0 + p0 + dn and K the part's coefficient:
-    ``d tau = -tau (dS/S + dK/K)``; ``d_auger``, ``d_radiative``: input -> partial."""
+    ``d tau = -tau (dS/S + dK/K)``; ``d_auger``, ``d_radiative``: input -> partial
+    (absent: zero)."""
     coefficient = _coefficient(auger, radiative, part)
     total = n0 + p0 + dn
     value = 1.0 / (total * coefficient)
     zero = 0.0 * value
-    partials = {}
     with errstate(xp, invalid="ignore", divide="ignore"):
+        through_sum = -value / total           # dS/dx = 1 for the three densities
+        through_k = -value / coefficient
+        partials = {}
         for name in _INPUTS:
-            d_k = _coefficient(d_auger.get(name, zero), d_radiative.get(name, zero), part)
-            d_s = 0.0 if name == "temperature" else 1.0 / total
-            partials[name] = xp.broadcast_to(-value * (d_s + d_k / coefficient), shape)
+            uses = {"total": (d_auger, d_radiative), "auger": (d_auger,),
+                    "radiative": (d_radiative,)}[part]
+            slopes = [d[name] for d in uses if name in d]
+            d_k = slopes[0] if len(slopes) == 1 else (slopes[0] + slopes[1] if slopes
+                                                      else None)
+            if name == "temperature":
+                partial = zero if d_k is None else through_k * d_k
+            elif d_k is None:
+                partial = through_sum
+            else:
+                partial = through_k * d_k
+                if xp is np and partial.shape == shape:
+                    partial += through_sum  # in place: one array fewer
+                else:
+                    partial = partial + through_sum
+            partials[name] = xp.broadcast_to(partial, shape)
     return xp.broadcast_to(value, shape), partials
 
 
@@ -165,16 +183,17 @@ def richter_derivatives(temperature, equilibrium_electron_density, equilibrium_h
     tanh_e, tanh_h = xp.tanh(y_e), xp.tanh(y_h)
     g_eeh = 1.0 + eeh_enhancement * (1.0 - tanh_e)
     g_ehh = 1.0 + ehh_enhancement * (1.0 - tanh_h)
+    injection = _power(xp, dn, injection_exponent)
     auger = (electron_coefficient * g_eeh * n0 + hole_coefficient * g_ehh * p0
-             + injection_coefficient * _power(xp, dn, injection_exponent))
-    with errstate(xp, divide="ignore"):
+             + injection_coefficient * injection)
+    with errstate(xp, divide="ignore", invalid="ignore"):
         d_auger = {
             "equilibrium_electron_density": electron_coefficient * (
                 g_eeh - eeh_enhancement * eeh_exponent * y_e * (1.0 - tanh_e * tanh_e)),
             "equilibrium_hole_density": hole_coefficient * (
                 g_ehh - ehh_enhancement * ehh_exponent * y_h * (1.0 - tanh_h * tanh_h)),
-            "excess_density": injection_coefficient * injection_exponent * _power(
-                xp, dn, injection_exponent - 1.0)}
+            "excess_density": (injection_coefficient * injection_exponent)
+            * xp.where(dn > 0, injection / dn, zeros_like(xp, injection) + math.inf)}
     return _lifetime_derivatives(xp, shape, n0, p0, dn, auger, float(radiative_coefficient),
                                  d_auger, {}, part)
 

@@ -134,6 +134,12 @@ def log_rational_density(temperature, resistivity, *, prefactor, reference_resis
                                     denominator), temperature)
 
 
+# a few operations per point: large blocks
+for _light in (rational_resistivity, rational_density, log_rational_resistivity,
+               log_rational_density):
+    _light.block = 1 << 17
+
+
 # --------------------------------------------------------------------------- inversion
 
 def solve_decreasing(function, target, low, high, *, f_low=None, f_high=None, xtol=1e-13,

@@ -116,6 +116,9 @@ def power_of_temperature(temperature, *, prefactor, exponent, reference_temperat
     return prefactor * xp.exp(exponent * xp.log(t / reference_temperature))
 
 
+power_of_temperature.block = 1 << 17  # a few operations per point: large blocks
+
+
 @kernel(inputs={"field": "V/cm", "temperature": "K", "low_field_mobility": "cm^2/(V*s)",
                 "saturation_velocity": "cm/s"},
         output="cm^2/(V*s)",
