@@ -391,7 +391,7 @@ def cases(si):
                           note="hand: searchsorted + bilinear"))
 
         def grid_inputs(size):
-            m = int(round(np.sqrt(size)))
+            m = round(np.sqrt(size))
             return {"lam": np.linspace(300.0, 1150.0, m)[None, :],
                     "T": np.linspace(250.0, 450.0, max(1, size // m))[:, None]}
 
@@ -445,19 +445,21 @@ def section_kernels(found, sizes):
             inputs = case.make(size)
             points = int(np.prod(np.broadcast_shapes(*(np.shape(v) for v in inputs.values()))))
             copy_source = np.ones(points)
+            call = case.kernel
             if case.hand is None:
-                kernel, copy = (t / points * 1e9 for t in compare(
-                    lambda: case.kernel(inputs), lambda: copy_source.copy()))
+                kernel, copy = [t / points * 1e9 for t in compare(
+                    lambda call=call, inputs=inputs: call(inputs),
+                    lambda copy_source=copy_source: copy_source.copy())]
                 print(f"   {case.name:48s} {size:6.0e} {kernel:8.1f} {'-':>8s} {'-':>6s} "
                       f"{copy:6.2f}  ({case.note})")
                 continue
-            kernel, hand, copy = (t / points * 1e9 for t in compare(
-                lambda: case.kernel(inputs), lambda: case.hand(inputs),
-                lambda: copy_source.copy()))
-            agree = same_numbers(case, inputs) if size <= 1e5 else float("nan")
+            kernel, hand, copy = [t / points * 1e9 for t in compare(
+                lambda call=call, inputs=inputs: call(inputs),
+                lambda hand=case.hand, inputs=inputs: hand(inputs),
+                lambda copy_source=copy_source: copy_source.copy())]
+            agree = f"{same_numbers(case, inputs):.0e}" if size <= 1e5 else ""
             print(f"   {case.name:48s} {size:6.0e} {kernel:8.1f} {hand:8.1f} "
-                  f"{kernel / hand:6.2f} {copy:6.2f}  "
-                  + (f"{agree:.0e}" if agree == agree else ""))
+                  f"{kernel / hand:6.2f} {copy:6.2f}  {agree}")
             del inputs
 
 
@@ -471,8 +473,9 @@ def section_api(found, sizes):
                 continue
             inputs = case.make(size)
             points = int(np.prod(np.broadcast_shapes(*(np.shape(v) for v in inputs.values()))))
-            kernel, api = (t / points * 1e9 for t in compare(lambda: case.kernel(inputs),
-                                                            lambda: case.api(inputs)))
+            kernel, api = [t / points * 1e9 for t in compare(
+                lambda call=case.kernel, inputs=inputs: call(inputs),
+                lambda api=case.api, inputs=inputs: api(inputs))]
             print(f"   {case.name:48s} {size:6.0e}  kernel {kernel:8.1f}  API {api:8.1f} "
                   f"ns/el  ratio {api / kernel:5.2f}")
 
@@ -492,7 +495,7 @@ def section_memory(found, sizes, names):
                 if call is None:
                     continue
                 start = time.perf_counter()
-                peak, result = peak_memory(lambda call=call: call(inputs))
+                peak, result = peak_memory(lambda call=call, inputs=inputs: call(inputs))
                 seconds = time.perf_counter() - start
                 size_bytes = nbytes(result)
                 del result
@@ -534,7 +537,8 @@ def section_scalars(si):
     ]
     for name, fixed, args, api in rows:
         kernel = si.kernel(name.split()[0], **fixed)
-        k, a = (t * 1e6 for t in compare(lambda: kernel(*args), api, budget=0.5))
+        k, a = [t * 1e6 for t in compare(lambda kernel=kernel, args=args: kernel(*args), api,
+                                         budget=0.5)]
         print(f"   {name:30s} kernel {k:6.1f} us   API {a:6.1f} us   ratio {a / k:5.2f}")
 
 
@@ -568,9 +572,9 @@ def section_derivatives(si, size):
             value_out = (tuple(np.empty_like(a) for a in value_out)
                          if isinstance(value_out, tuple) else np.empty_like(value_out))
             value, both, value_kept, both_kept = compare(
-                lambda: kernel(*args), lambda: kernel.derivatives(*args),
-                lambda: kernel(*args, out=value_out),
-                lambda: kernel.derivatives(*args, out=(value_out, partial_out)))
+                lambda k=kernel, a=args: k(*a), lambda k=kernel, a=args: k.derivatives(*a),
+                lambda k=kernel, a=args, o=value_out: k(*a, out=o),
+                lambda k=kernel, a=args, o=(value_out, partial_out): k.derivatives(*a, out=o))
             label = (f"{name} ({material.model(name).id if name in material.models else 'derived'}"
                      f"{', ' + fixed['carrier'] if fixed else ''})")
             print(f"   {label:46s} value {value / size * 1e9:6.1f}, + {len(partial_out)} "
@@ -637,7 +641,7 @@ def section_issue_table(si):
     rng = np.random.default_rng(3)
     for size in (300_000, 10_000_000):
         lam_p, t_p = rng.uniform(300, 1150, size), rng.uniform(250, 450, size)
-        seconds = best_time(lambda: kernel(lam_p, t_p), repeat=3)
+        seconds = best_time(lambda lam_p=lam_p, t_p=t_p: kernel(lam_p, t_p), repeat=3)
         print(f"   absorption on (lambda, T) pairs, {size:.0e}: {seconds / size * 1e9:.0f} "
               "ns/el  [issue: 392 at 1e7, 513 superlinear; target linear]")
     t = np.linspace(250.0, 450.0, 10_000_000)

@@ -4,12 +4,17 @@
 
 1. A ~1e7-point table of three quantities through ``si.table`` against the same three
    bound kernels called on numpy arrays (broadcast grids, one call each): wall time
-   (best of 3) and peak memory traced by tracemalloc (numpy reports its buffers to
-   it), both also as a ratio to the size of the result. Targets: table time within
-   1.5x of the kernels, table peak memory within 2x of the result.
-   Grid: temperature x doping when the registry has doping quantities, otherwise
-   temperature x wavelength (absorption and refractive index span the whole grid;
-   the third quantity, the intrinsic density, depends on temperature alone).
+   (best of 3; one run when the equilibrium is solved) and peak memory traced by
+   tracemalloc (numpy reports its buffers to it), both also as a ratio to the size of
+   the result. Targets: table time within 1.5x of the kernels, table peak memory within
+   2x of the result.
+   Grid: temperature x donor density (1000 x points/1000) for three doping-dependent
+   quantities: the gap narrowing and the effective intrinsic density at given free-
+   carrier densities (n, p scalar coordinates: no equilibrium solve), and the
+   intrinsic lifetime at one excess density, whose n0, p0 the table solves at every
+   (T, Nd) point (the kernels' side: the equilibrium kernel, then the lifetime
+   kernel). Without the doping quantities: temperature x wavelength (absorption,
+   refractive index, intrinsic density).
 2. The same sweep with ``chunks=`` on a two-worker ``dask.distributed.LocalCluster``
    (processes, one thread each) for several chunk sizes, reduced to one number per
    variable on the workers so that nothing large travels: wall time and the peak
@@ -31,7 +36,9 @@ from pathlib import Path
 
 import numpy as np
 
-DOPING_SET = ("gap_narrowing", "mobility", "intrinsic_lifetime")
+DOPING_SET = ("gap_narrowing", "effective_intrinsic_density", "intrinsic_lifetime")
+FREE_CARRIERS = {"electron_density": 1e16, "hole_density": 1e4}  # cm^-3, given
+EXCESS = 1e15  # cm^-3
 
 
 def plan(si, points: int):
@@ -42,9 +49,30 @@ def plan(si, points: int):
     if set(DOPING_SET) <= serves:  # once the doping quantities exist
         n_t = 1000
         t = np.linspace(233.15, 473.15, n_t)
-        na = np.logspace(13, 20, points // n_t)
-        grid = {"temperature": t, "acceptor_density": na, "carrier": "electron"}
-        return list(DOPING_SET), grid, None
+        nd = np.logspace(13, 20, points // n_t)
+        grid = {"temperature": t, "donor_density": nd, **FREE_CARRIERS,
+                "excess_density": EXCESS}
+        tt, dd = t[:, None], nd[None, :]
+        n, p = FREE_CARRIERS["electron_density"], FREE_CARRIERS["hole_density"]
+        narrowing = si.kernel("gap_narrowing")
+        ni_eff = si.kernel("effective_intrinsic_density")
+        solve, lifetime = si.kernel("equilibrium"), si.kernel("intrinsic_lifetime")
+
+        def summed(shifts):
+            total = shifts[0]
+            total += shifts[1]
+            return total
+
+        def intrinsic_lifetime():
+            state = solve(tt, dd, 0.0)
+            return lifetime(tt, state["electron_density"], state["hole_density"], EXCESS)
+
+        calls = [
+            ("gap_narrowing", lambda: summed(narrowing(tt, dd, 0.0, n, p))),
+            ("effective_intrinsic_density", lambda: ni_eff(tt, dd, 0.0, n, p)),
+            ("intrinsic_lifetime", intrinsic_lifetime),
+        ]
+        return list(DOPING_SET), grid, calls
     n_lam = 1000
     lam = np.linspace(400.0, 1100.0, n_lam)
     t = np.linspace(250.0, 400.0, points // n_lam)
@@ -92,22 +120,32 @@ def table_versus_kernels(si, points):
             warnings.simplefilter("ignore")
             return si.table(quantities, **grid)
 
-    through_table()  # load tables, warm caches
-    seconds_table = best_time(through_table)
+    solves = quantities == list(DOPING_SET)  # an equilibrium solve per point: one run
+    repeat = 1 if solves else 3
+    if solves:  # load xarray and the models on a small grid first
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            small = {k: (v[:3] if np.ndim(v) else v) for k, v in grid.items()}
+            si.table(quantities, **small)
+    else:
+        through_table()  # load tables, warm caches
+    seconds_table = best_time(through_table, repeat)
     _, peak_table, data = traced(through_table)
     result_bytes = sum(v.nbytes for v in data.data_vars.values())
     print(f"   si.table:        {seconds_table:7.3f} s   peak {peak_table / 1e6:8.1f} MB   "
           f"result {result_bytes / 1e6:.1f} MB   peak/result {peak_table / result_bytes:.2f}")
-    if calls is None:
-        print("   (kernels baseline for doping quantities: add their kernel calls here)")
-        return
+    for name, variable in data.data_vars.items():
+        print(f"      {name}: {variable.size:.3g} values, dims {variable.dims}")
     del data
 
     def through_kernels():
         return [call() for _, call in calls]
 
-    through_kernels()
-    seconds_kernels = best_time(through_kernels)
+    if not solves:
+        through_kernels()
+    else:
+        plan(si, 3000)[2][-1][1]()  # the kernels on a small grid first
+    seconds_kernels = best_time(through_kernels, repeat)
     _, peak_kernels, _ = traced(through_kernels)
     print(f"   kernels (numpy): {seconds_kernels:7.3f} s   peak {peak_kernels / 1e6:8.1f} MB"
           f"   peak/result {peak_kernels / result_bytes:.2f}")

@@ -285,8 +285,8 @@ class BoundKernel:
     def _document(self) -> str:
         units = self.output_units
         shown = " and ".join(units) if isinstance(units, tuple) else units
-        lines = [f"Bound kernel of {self.quantity}: model {self.model_id} "
-                 f"(release {self._si.release.id}).", "",
+        lines = [(f"Bound kernel of {self.quantity}: model {self.model_id} "
+                  f"(release {self._si.release.id})."), "",
                  f"kernel{self._signature()} -> {self._returns or shown}"]
         if self._description:
             lines += ["", self._description]
@@ -310,9 +310,9 @@ class BoundKernel:
             lines += ["", "Options: " + ", ".join(f"{k}={v!r}" for k, v in
                                                   self._options.items())]
         lines += ["", "Model: " + self.model_id, "    " + self.citation, "",
-                  "No unit handling and no validity check per call: call "
-                  "kernel.check(...) once on your mesh (ranges and validity regions); "
-                  "kernel.provenance holds the full record.",
+                  ("No unit handling and no validity check per call: call "
+                   "kernel.check(...) once on your mesh (ranges and validity regions); "
+                   "kernel.provenance holds the full record."),
                   f"dtype: {_DTYPE_NOTE}.",
                   f"Memory: numpy inputs above {BLOCK} points are evaluated in blocks "
                   "into one output (out= to supply it)."
@@ -403,7 +403,7 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
         return _equilibrium_kernel(si, fixed)
     if name == "effective_intrinsic_density":
         if fixed:
-            key = sorted(fixed)[0]
+            key = min(fixed)
             raise InputError(key, "not an option of the effective_intrinsic_density kernel",
                              fixed[key])
         return _effective_intrinsic_density_kernel(si)
@@ -422,7 +422,7 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
     else:
         chosen = {}
     if fixed:
-        key = sorted(fixed)[0]
+        key = min(fixed)
         raise InputError(key, f"not an option of the {name} kernel", fixed[key])
     return _model_kernel(si, name, model, chosen)
 
@@ -514,8 +514,8 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
 
     unknown = set(fixed) - {"donor", "acceptor", "statistics"}
     if unknown:
-        raise InputError(sorted(unknown)[0], "one of donor, acceptor, statistics",
-                         fixed[sorted(unknown)[0]])
+        raise InputError(min(unknown), "one of donor, acceptor, statistics",
+                         fixed[min(unknown)])
     bound = si._carriers()
     statistics = fixed.get("statistics") or bound.statistics
     donor = dopant_species(fixed.get("donor", "phosphorus"), "donor", "donor")

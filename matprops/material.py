@@ -23,14 +23,13 @@ from .catalog import Catalog, Model, default_catalog
 from .errors import DatasetError, InputError, UnknownQuantityError
 from .kernels._blocks import evaluate
 from .methods.carriers import DERIVED as CARRIER_DERIVED
-from .methods.carriers import CarrierMethods, dopant_species
+from .methods.carriers import CarrierMethods
 from .methods.crystal import DERIVED as CRYSTAL_DERIVED
 from .methods.crystal import CrystalMethods
 from .methods.optical import OpticalMethods
 from .methods.recombination import DERIVED as RECOMBINATION_DERIVED
 from .methods.recombination import RecombinationMethods
 from .methods.transport import DERIVED as TRANSPORT_DERIVED
-from .methods.transport import KERNELS as TRANSPORT_KERNELS
 from .methods.transport import TransportMethods
 from .units import check_broadcast, coerce, quantity
 from .units import name as check_name

@@ -91,10 +91,9 @@ class Region:
             return None
         if ranges is not None and self.clearly_inside(ranges):
             return None
-        if np.ndim(values[self.argument]) == 0 and np.ndim(values[self.by]) == 0:
-            # one point (the scalar fast path): no arrays to broadcast
-            if not self.outside(float(values[self.argument]), float(values[self.by])):
-                return None
+        if (np.ndim(values[self.argument]) == 0 and np.ndim(values[self.by]) == 0
+                and not self.outside(float(values[self.argument]), float(values[self.by]))):
+            return None  # one point inside (the scalar fast path): no arrays
         value, by_value = np.broadcast_arrays(np.asarray(values[self.argument], float),
                                               np.asarray(values[self.by], float))
         outside = self.outside(value, by_value)

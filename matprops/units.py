@@ -27,8 +27,8 @@ import pint
 
 from .errors import InputError, UnitError
 
-__all__ = ["Q_", "check_broadcast", "coerce", "name", "names", "quantity", "to_magnitude", "unit",
-           "ureg"]
+__all__ = ["Q_", "check_broadcast", "coerce", "name", "names", "quantity",  # noqa: F822
+           "to_magnitude", "unit", "ureg"]  # (Q_ comes from the module __getattr__ below)
 
 # pint's application registry, through its wrapper: every use goes to whatever registry
 # the application has set (pint.set_application_registry), even one set after matprops
@@ -43,7 +43,7 @@ def __getattr__(name):
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
-def _Q(value, units=None):  # noqa: N802 - pint's own spelling of the constructor
+def _Q(value, units=None):
     """A quantity of the current application registry (``ureg.Quantity(value, units)``)."""
     return ureg.Quantity(value, units)
 
@@ -317,7 +317,7 @@ def extremes(array: np.ndarray) -> tuple[float, float]:
     for start in range(0, flat.size, _EXTREMES_BLOCK):
         block = flat[start:start + _EXTREMES_BLOCK]
         block_low, block_high = float(block.min()), float(block.max())
-        if block_low != block_low:  # NaN (Python's min would drop it)
+        if math.isnan(block_low):  # NaN (Python's min would drop it)
             return np.nan, np.nan
         low, high = min(low, block_low), max(high, block_high)
     return low, high

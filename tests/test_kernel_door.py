@@ -271,7 +271,7 @@ def test_bound_kernels_take_array_api_arrays_or_refuse_them(si):
     t = xp.asarray([280.0, 300.0, 320.0])
     gap = si.kernel("band_gap")(t)
     assert type(gap).__module__.startswith("array_api_strict")
-    value, partials = si.kernel("band_gap").derivatives(t)
+    _, partials = si.kernel("band_gap").derivatives(t)
     assert type(partials["temperature"]).__module__.startswith("array_api_strict")
     ni_eff = si.kernel("effective_intrinsic_density")(t, xp.asarray([1e16] * 3),
                                                       xp.asarray([0.0] * 3),
@@ -317,7 +317,8 @@ assert (second + mine.Quantity(1.0, "meV")).m_as("eV") > 1.12
 assert matprops.Q_(1.0, "K")._REGISTRY is mine
 print("ok")
 """
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=False)
     assert out.returncode == 0, out.stderr[-2000:]
     assert out.stdout.strip() == "ok"
 

@@ -41,8 +41,8 @@ import numpy as np
 from .. import defects as defect_catalogue
 from ..errors import InputError, UnitError, ValidityError, ValidityWarning, warn
 from ..kernels import implied_voltage as voltage_kernel
-from ..kernels._blocks import evaluate
 from ..kernels import srh_lifetime as srh
+from ..kernels._blocks import evaluate
 from ..kernels.constants import ELEMENTARY_CHARGE
 from ..results import Result
 from ..units import coerce, quantity, unit
