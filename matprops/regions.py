@@ -20,6 +20,7 @@ first and last point. The catalogue parses the table into a :class:`Region`;
 
 from __future__ import annotations
 
+import bisect
 import functools
 from collections.abc import Mapping
 from dataclasses import dataclass
@@ -63,14 +64,28 @@ class Region:
         bound = self.bound_at(by_value)
         return value > bound if self.limit == "max" else value < bound
 
+    def _bound_point(self, by_value: float) -> float:
+        """The bound at one value of ``by`` (np.interp's arithmetic, in Python)."""
+        xs, bounds = self.by_values, self.bounds
+        if by_value <= xs[0]:
+            return bounds[0]
+        if by_value >= xs[-1]:
+            return bounds[-1]
+        j = bisect.bisect_right(xs, by_value) - 1
+        slope = (bounds[j + 1] - bounds[j]) / (xs[j + 1] - xs[j])
+        return slope * (by_value - xs[j]) + bounds[j]
+
+    def _outside_point(self, value: float, by_value: float) -> bool:
+        bound = self._bound_point(by_value)
+        return value > bound if self.limit == "max" else value < bound
+
     def bound_range(self, low: float, high: float) -> tuple[float, float]:
         """The least and greatest bound for ``by`` anywhere in ``[low, high]`` (the bound
         is piecewise linear: its extremes lie at the ends or at the points)."""
-        xs, bounds = self._points
-        inside = bounds[(xs > low) & (xs < high)]
-        ends = np.interp([low, high], xs, bounds)
-        candidates = np.concatenate([ends, inside])
-        return float(candidates.min()), float(candidates.max())
+        candidates = [self._bound_point(low), self._bound_point(high)]
+        candidates += [b for x, b in zip(self.by_values, self.bounds, strict=True)
+                       if low < x < high]
+        return min(candidates), max(candidates)
 
     def clearly_inside(self, ranges: Mapping[str, tuple[float, float]]) -> bool:
         """Whether every point lies inside the region, judged from the inputs' extremes
@@ -89,11 +104,11 @@ class Region:
         over the points."""
         if self.argument not in values or self.by not in values:
             return None
-        if ranges is not None and self.clearly_inside(ranges):
+        if np.ndim(values[self.argument]) == 0 and np.ndim(values[self.by]) == 0:
+            if not self._outside_point(float(values[self.argument]), float(values[self.by])):
+                return None  # one point inside (the scalar fast path): no arrays
+        elif ranges is not None and self.clearly_inside(ranges):
             return None
-        if (np.ndim(values[self.argument]) == 0 and np.ndim(values[self.by]) == 0
-                and not self.outside(float(values[self.argument]), float(values[self.by]))):
-            return None  # one point inside (the scalar fast path): no arrays
         value, by_value = np.broadcast_arrays(np.asarray(values[self.argument], float),
                                               np.asarray(values[self.by], float))
         outside = self.outside(value, by_value)

@@ -70,7 +70,7 @@ def evaluate(function: Callable, arguments: Mapping[str, object], out=None,
             return result
         shape = np.broadcast_shapes(*(np.shape(v) for v in arguments.values()))
         return _write(out, result, shape, ())
-    shapes = []
+    shape, mixed = (), False
     for value in arguments.values():
         if type(value) in _SCALARS:
             continue
@@ -80,8 +80,13 @@ def evaluate(function: Callable, arguments: Mapping[str, object], out=None,
                     raise TypeError("out= is supported for numpy inputs only")
                 return function(**arguments, **options)
             value = np.asarray(value)
-        shapes.append(np.shape(value))
-    shape = np.broadcast_shapes(*shapes) if shapes else ()
+        if value.shape != shape:
+            if shape:
+                mixed = True
+            else:
+                shape = value.shape
+    if mixed:  # (shapes that differ: numpy's broadcasting rules, once)
+        shape = np.broadcast_shapes(*(np.shape(v) for v in arguments.values()))
     size = math.prod(shape)
     if size <= block:
         result = function(**arguments, **options)
