@@ -77,7 +77,7 @@ _HIGHEST_DENSITY = 1e21  # cm^-3: the top of the bracket for doping from resisti
 
 def carrier_name(value, argument: str = "carrier") -> str:
     """``"electron"`` or ``"hole"`` (plural and ``e``/``h`` accepted), else an error."""
-    if value == "electron" or value == "hole":  # noqa: PLR1714 - str only, no array ==
+    if isinstance(value, str) and value in CARRIERS:  # canonical already
         return value
     text = str(value).strip().lower()
     name = _CARRIER_ALIASES.get(text, text)
