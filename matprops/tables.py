@@ -342,9 +342,10 @@ QUANTITIES: dict[str, Tabulated] = _registry(
 
 def available(si) -> list[str]:
     """Registry quantities that ``si`` can evaluate (its release serves their models)."""
+    served = si.models  # (a dict built on each access: once here)
     return [name for name, entry in QUANTITIES.items()
             if hasattr(si, entry.method or name)
-            and all(q in si.models for q in entry.model_quantities())]
+            and all(q in served for q in entry.model_quantities())]
 
 
 # --------------------------------------------------------------------------- units
@@ -762,7 +763,7 @@ def table(si, quantities: Iterable[str] | str | None = None, *, chunks=None,
     grid = _Grid(axes)
     entries = _select(si, grid, quantities)
     total = sum(grid.size_of(e) for e in entries)
-    data = xr.Dataset(coords=grid.coords())
+    variables = {}  # the Dataset is built once at the end: each __setitem__ is a merge
     done = 0
     for entry in entries:
         if chunks is not None and grid.dims_of(entry):
@@ -774,9 +775,10 @@ def table(si, quantities: Iterable[str] | str | None = None, *, chunks=None,
         model = si.models.get(entry.name, "derived")
         for (variable, long_name), values, unit in zip(entry.outputs, outs, units,
                                                        strict=True):
-            data[variable] = (tuple(dims), values, {
+            variables[variable] = (tuple(dims), values, {
                 "units": cf_units(unit), "long_name": long_name, "quantity": entry.name,
                 "model": model, "provenance": provenance})
+    data = xr.Dataset(variables, coords=grid.coords())
     names = [e.name for e in entries]
     data.attrs.update({
         "Conventions": "CF-1.11",
