@@ -140,7 +140,12 @@ class BoundKernel:
         return arguments, options
 
     def __call__(self, *args, out=None, **kwargs):
-        arguments, options = self._arguments(args, kwargs)
+        if not kwargs and len(args) == len(self._names):  # the common call: positional
+            arguments, options = dict(zip(self._names, args)), {}
+            if self._optional and any(v is None for v in args):
+                arguments, options = self._arguments(args, kwargs)
+        else:
+            arguments, options = self._arguments(args, kwargs)
         if not self.array_api:
             self._refuse_foreign(arguments)
         if not self._blocked:
