@@ -93,13 +93,6 @@ CASES = [
      {"temperature": LIFETIME_TEMPERATURES, "Na": LIFETIME_DOPING, "excess": EXCESS}),
     ("auger_lifetime_n_type", "auger_lifetime", {},
      {"temperature": [300.0], "Nd": LIFETIME_DOPING, "excess": EXCESS}),
-    *[(f"srh_lifetime_{d}", "srh_lifetime", {"defect": d, "density": 1e11},
-       {"temperature": LIFETIME_TEMPERATURES, "Na": [1e14, 1e15, 1e16, 1e17],
-        "excess": EXCESS})
-      for d in ("iron-interstitial", "iron-boron-pair", "iron-interstitial-paudyal-2010")],
-    ("srh_lifetime_chromium_interstitial", "srh_lifetime",
-     {"defect": "chromium-interstitial", "electron_capture_time": 1e-5},
-     {"temperature": [300.0], "Nd": [1e14, 1e15, 1e16], "excess": EXCESS}),
     ("effective_lifetime", "effective_lifetime",
      {"defect": "iron-boron-pair", "density": 1e11},
      {"temperature": [300.0], "Na": [1e15, 1e16], "excess": EXCESS}),
@@ -107,6 +100,8 @@ CASES = [
      {"temperature": [298.15, 300.0], "Na": [1e15, 1e16], "generation": [1e15, 1e17, 2.5e17]}),
     *[(f"saturation_velocity_{c}", "saturation_velocity", {"carrier": c},
        {"temperature": TEMPERATURES}) for c in ("electron", "hole")],
+    ("mobility_electron_arsenic", "mobility", {"carrier": "electron", "donor": "arsenic"},
+     {"temperature": [250.0, 300.0, 400.0], "Nd": [1e15, 1e17, 1e19, 1e20]}),
     *[(f"mobility_{c}", "mobility", {"carrier": c},
        {"temperature": TRANSPORT_TEMPERATURES, "Na": DOPINGS, "Nd": DOPINGS})
       for c in ("electron", "hole")],
@@ -135,9 +130,17 @@ CASES = [
 _METHOD_QUANTITIES = {"band_edge_shifts": ("gap_narrowing",), "dopant_level": ("ionisation",)}
 
 
-def _needs(method: str) -> tuple[str, ...]:
+# the standard's conversions are models of their own, reached through these methods
+_STANDARD = {"resistivity": ("standard_resistivity",),
+             "doping_from_resistivity": ("standard_dopant_density",)}
+
+
+def _needs(method: str, fixed: dict | None = None) -> tuple[str, ...]:
+    """The quantities whose models a case evaluates."""
     from .material import DERIVED
 
+    if (fixed or {}).get("conversion") == "standard" and method in _STANDARD:
+        return _STANDARD[method]
     if method in _METHOD_QUANTITIES:
         return _METHOD_QUANTITIES[method]
     return DERIVED[method][0] if method in DERIVED else (method,)
@@ -192,13 +195,40 @@ def _variant_cases(si) -> list:
             for species in si.model("ionisation").variants]
 
 
+def _defect_cases(si) -> list:
+    """Shockley-Read-Hall lifetime of every defect of the catalogue, p- and n-type."""
+    if "srh_lifetime" not in si.models:
+        return []
+    from . import defects
+
+    cases = []
+    for name in defects.names(si.catalog):
+        entry = defects.defect(name, si.catalog)
+        fixed = ({"defect": name, "density": 1e11} if entry.absolute
+                 else {"defect": name, "electron_capture_time": 1e-5})
+        for doping in ("Na", "Nd"):
+            cases.append((f"srh_lifetime_{name}_{doping}", "srh_lifetime", fixed,
+                          {"temperature": [250.0, 300.0, 350.0],
+                           doping: [1e14, 1e15, 1e16, 1e17], "excess": [1e12, 1e14, 1e16]}))
+    return cases
+
+
+def _data_files(si) -> dict:
+    """sha256 of the data a release's numbers depend on besides its model files and
+    tables: the defect catalogue."""
+    root = si.catalog.root
+    return {path.relative_to(root).as_posix(): sha256_of(path)
+            for path in sorted((root / "defects").glob("*.toml"))}
+
+
 def evaluate(si) -> dict:
     """Evaluate every reference case that ``si``'s release serves."""
     from .results import Result
 
     cases = {}
-    for label, method, fixed, grid in CASES + _table_cases(si) + _variant_cases(si):
-        if not all(q in si.models for q in _needs(method)):
+    for label, method, fixed, grid in (CASES + _table_cases(si) + _variant_cases(si)
+                                       + _defect_cases(si)):
+        if not all(q in si.models for q in _needs(method, fixed)):
             continue
         names = list(grid)
         arrays = np.meshgrid(*[np.asarray(grid[n], float) for n in names], indexing="ij")
@@ -234,7 +264,8 @@ def regenerate(release_id: str, catalog: Catalog | None = None) -> Path:
                                  "never change; make a new release instead")
     si = Silicon(release=release_id, catalog=catalog)
     content = {"release": release_id, "model_files": _model_files(si),
-               "table_digests": _table_digests(si), "cases": evaluate(si)}
+               "data_files": _data_files(si), "table_digests": _table_digests(si),
+               "cases": evaluate(si)}
     target = release.reference_path
     _atomic_write_text(target, json.dumps(content, indent=1, ensure_ascii=False) + "\n")
     catalog.write_checksums()
@@ -280,6 +311,11 @@ def compare(release_id: str, catalog: Catalog | None = None, rtol: float = 1e-12
             model = si.model(quantity)
             if model.id != record["model"] or sha256_of(model.path) != record["sha256"]:
                 problems.append(f"{quantity}: model file {model.id} changed in a final release")
+        fresh_files = _data_files(si)
+        for name in sorted(set(frozen.get("data_files", {})) | set(fresh_files)):
+            if frozen.get("data_files", {}).get(name) != fresh_files.get(name):
+                problems.append(f"{name}: data file changed, added or removed in a final "
+                                "release")
     return problems
 
 

@@ -355,12 +355,12 @@ def test_missing_required_field_is_named(datasets_copy):
 
 
 @pytest.mark.parametrize("old, new, message", [
-    ('status = "draft"', 'status = "draft"\nstatuss = "final"',
+    ('status = "final"', 'status = "draft"\nstatuss = "draft"',
      r"unknown field 'statuss' .*did you mean 'status'\?"),
-    ('date = "2026-12-01"\n', "", r"missing required field 'date'"),
-    ('status = "draft"', 'status = "frozen"', r"field 'status' must be one of draft, final, got 'frozen'"),
+    ('date = "2026-12-02"\n', "", r"missing required field 'date'"),
+    ('status = "final"', 'status = "frozen"', r"field 'status' must be one of draft, final, got 'frozen'"),
     ('band_gap = "passler-2002"', "band_gap = 2002", r"field 'models.band_gap' must be text"),
-    ('date = "2026-12-01"', 'date = "1 December"', r"field 'date' must be a date"),
+    ('date = "2026-12-02"', 'date = "1 December"', r"field 'date' must be a date"),
 ])
 def test_release_file_schema(datasets_copy, old, new, message):
     root, catalog = datasets_copy
