@@ -43,6 +43,15 @@ def random_points(count, seed=1):
             10 ** rng.uniform(13, 20, count))
 
 
+def _charge(eta, gap, nc, nv, levels):
+    """Net positive charge density at the reduced Fermi level eta (linear space)."""
+    nd, w_d, b_d, g_d, na, w_a, b_a, g_a = levels
+    eta_v = -eta - gap
+    ionised_d = nd * (1 - b_d / (1 + np.exp(-eta - w_d) / g_d))
+    ionised_a = na * (1 - b_a / (1 + np.exp(-eta_v - w_a) / g_a))
+    return nv * float(fd_half(eta_v)) + ionised_d - nc * float(fd_half(eta)) - ionised_a
+
+
 def brentq_equilibrium(si, T, Nd, Na):
     """The same equations, one point at a time, with scalar root finding."""
     bound = si._carriers()
@@ -69,15 +78,9 @@ def brentq_equilibrium(si, T, Nd, Na):
                 break
             shift = new_shift
             gap = gap0 - shift / kt
-
-            def charge(eta, gap=gap):
-                eta_v = -eta - gap
-                ionised_d = nd * (1 - b_d / (1 + np.exp(-eta - e_d / kt) / g_d))
-                ionised_a = na * (1 - b_a / (1 + np.exp(-eta_v - e_a / kt) / g_a))
-                return (nv * float(fd_half(eta_v)) + ionised_d
-                        - nc * float(fd_half(eta)) - ionised_a)
-
-            eta = brentq(charge, -gap - 60.0, 60.0, xtol=1e-14, rtol=1e-15, maxiter=500)
+            levels = (nd, e_d / kt, b_d, g_d, na, e_a / kt, b_a, g_a)
+            eta = brentq(_charge, -gap - 60.0, 60.0, args=(gap, nc, nv, levels),
+                         xtol=1e-14, rtol=1e-15, maxiter=500)
             n, p = nc * float(fd_half(eta)), nv * float(fd_half(-eta - gap))
         n_out[i], p_out[i] = n, p
     return n_out, p_out

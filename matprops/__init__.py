@@ -15,7 +15,7 @@ practice.
 from importlib import import_module
 
 from . import errors as _errors
-from .errors import *  # noqa: F403  (the Error hierarchy and ValidityWarning)
+from .errors import *
 
 __version__ = "0.1.0"
 

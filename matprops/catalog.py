@@ -42,8 +42,8 @@ from .errors import (
     ChecksumError,
     DatasetError,
     UnknownModelError,
-    UnknownQuantityError,
     UnknownNameError,
+    UnknownQuantityError,
     UnknownReleaseError,
     UnknownVariantError,
     ValidityError,
@@ -687,8 +687,8 @@ class Catalog:
     def write_checksums(self) -> Path:
         """Record the sha256 of every data file (see :meth:`data_files`)."""
         lines = ["# sha256 of every dataset file; loaders refuse files that differ.",
-                 "# Regenerate after a deliberate change: python -m matprops.catalog "
-                 "--update-checksums"]
+                 ("# Regenerate after a deliberate change: python -m matprops.catalog "
+                  "--update-checksums")]
         for relative in self.data_files():
             lines.append(f"{sha256_of(self.root / relative)}  {relative}")
         target = self.root / CHECKSUM_FILE
@@ -863,6 +863,16 @@ def _resolve_kernel(path, reference: str):
     return function
 
 
+def sources_of(path, data) -> tuple[Source, tuple[Source, ...]]:
+    """A data file's ``source`` and ``additional_sources`` records."""
+    source = _source(path, _require(path, data, "source", dict), "source.")
+    additional = data.get("additional_sources", [])
+    if not isinstance(additional, list):
+        raise DatasetError(path, "field 'additional_sources' must be a list of sources")
+    return source, tuple(_source(path, entry, f"additional_sources[{i}].")
+                         for i, entry in enumerate(additional))
+
+
 def _source(path, src, where: str) -> Source:
     if not isinstance(src, dict):
         raise DatasetError(path, f"{where.rstrip('.')} must be a table of source fields")
@@ -906,12 +916,7 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
     kernel = _resolve_kernel(path, _require(path, data, "kernel", str))
     spec = kernel.spec
 
-    source = _source(path, _require(path, data, "source", dict), "source.")
-    additional = data.get("additional_sources", [])
-    if not isinstance(additional, list):
-        raise DatasetError(path, "field 'additional_sources' must be a list of sources")
-    additional_sources = tuple(_source(path, entry, f"additional_sources[{i}].")
-                               for i, entry in enumerate(additional))
+    source, additional_sources = sources_of(path, data)
     fallback = data.get("fallback")
     if fallback is not None and fallback not in catalog.model_ids(quantity):
         raise DatasetError(path, f"field 'fallback': no model {fallback!r} for {quantity!r}")
@@ -938,7 +943,7 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
         raise DatasetError(path, f"kind 'composed' needs a kernel that requires other "
                            f"quantities; {data['kernel']!r} requires none")
     extra = _extra_sections(path, quantity, data)
-    common = dict(quantity=quantity, id=model_id, name=name, kind=kind, kernel=kernel,
+    common = dict(quantity=quantity, id=model_id, name=name, kind=kind, kernel=kernel,  # noqa: C408
                   source=source, obtained=obtained, notes=notes, path=path,
                   sha256=catalog.checksums().get(path.relative_to(catalog.root).as_posix(), ""),
                   requires=requires, additional_sources=additional_sources,

@@ -36,7 +36,7 @@ from pathlib import Path
 
 import numpy as np
 
-from .catalog import Catalog, Source, _convert, _parse_toml, _require, _source, default_catalog
+from .catalog import Catalog, Source, _convert, _parse_toml, _require, default_catalog, sources_of
 from .errors import DatasetError, InputError, UnknownDefectError
 from .kernels import srh_lifetime as srh
 from .schema import DEFECT, validate
@@ -305,12 +305,7 @@ def _build(path: Path, data: Mapping) -> Defect:
     model = velocity.get("model")
     if model is not None and not isinstance(model, str):
         raise DatasetError(path, "thermal_velocity.model must be a model id (string)")
-    source = _source(path, _require(path, data, "source", dict), "source.")
-    additional = data.get("additional_sources", [])
-    if not isinstance(additional, list):
-        raise DatasetError(path, "field 'additional_sources' must be a list of sources")
-    extra = tuple(_source(path, e, f"additional_sources[{i}].")
-                  for i, e in enumerate(additional))
+    source, extra = sources_of(path, data)
     temperature_range = None
     validity = data.get("validity", {})
     if validity:

@@ -13,7 +13,7 @@ from pathlib import Path
 
 from .catalog import Catalog, default_catalog
 
-__all__ = ["render", "main"]
+__all__ = ["main", "render"]
 
 
 def _one_line(text: str) -> str:

@@ -36,9 +36,9 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .errors import InputError, UnknownModelError, UnknownQuantityError, ValidityWarning
+from .units import cf_units, to_magnitude
 from .units import name as check_name
 from .units import names as check_names
-from .units import cf_units, to_magnitude
 
 __all__ = ["AXES", "QUANTITIES", "Axis", "Tabulated", "available", "axis", "cf_units",
            "compare", "table"]

@@ -264,7 +264,7 @@ def test_kernel_door_gives_plain_arrays(si):
     state = si.equilibrium([300.0, 350.0], Nd=[1e16, 1e17], Na=[0.0, 1e15])
     np.testing.assert_allclose(result["electron_density"], state.n.m_as("cm^-3"), rtol=1e-14)
     level = si.kernel("ionisation", dopant="boron")
-    energy, share = level(dopant_density=np.array([1e15]))
+    energy, _ = level(dopant_density=np.array([1e15]))
     assert energy.shape == (1,)
     with pytest.raises(matprops.InputError, match="dopant"):
         si.kernel("ionisation")

@@ -243,10 +243,10 @@ def solve(temperature, donor_density, acceptor_density, *, conduction_states,
     shape = arrays[0].shape
     flat = [a.ravel() for a in arrays]
     out = {key: np.empty(flat[0].size) for key in _OUTPUTS}
-    options = dict(narrowing=narrowing, narrowing_uses_carriers=narrowing_uses_carriers,
-                   g_d=donor_degeneracy, g_a=acceptor_degeneracy, fermi_dirac=fermi_dirac,
-                   rtol=rtol, self_consistency=self_consistency,
-                   max_iterations=max_iterations)
+    options = {"narrowing": narrowing, "narrowing_uses_carriers": narrowing_uses_carriers,
+               "g_d": donor_degeneracy, "g_a": acceptor_degeneracy,
+               "fermi_dirac": fermi_dirac, "rtol": rtol,
+               "self_consistency": self_consistency, "max_iterations": max_iterations}
     for start in range(0, max(flat[0].size, 1), BLOCK):
         block = slice(start, start + BLOCK)
         try:

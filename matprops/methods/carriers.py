@@ -44,12 +44,12 @@ STATISTICS = ("fermi-dirac", "boltzmann")
 DERIVED = {
     "effective_intrinsic_density": (
         ("intrinsic_density", "gap_narrowing"),
-        "ni_eff = ni(T) exp(dEg / 2kT); for an apparent narrowing ni(T) is scaled by "
-        "ni_fit / ni(T_fit), the intrinsic density the narrowing was fitted with"),
+        ("ni_eff = ni(T) exp(dEg / 2kT); for an apparent narrowing ni(T) is scaled by "
+         "ni_fit / ni(T_fit), the intrinsic density the narrowing was fitted with")),
     "equilibrium": (
         ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation"),
-        "charge neutrality p + Nd+ = n + Na- solved for the Fermi level with n = Nc F(eta), "
-        "p = Nv F(-eta - Eg'/kT), Eg' = kT ln(Nc Nv / ni^2) - dEg"),
+        ("charge neutrality p + Nd+ = n + Na- solved for the Fermi level with "
+         "n = Nc F(eta), p = Nv F(-eta - Eg'/kT), Eg' = kT ln(Nc Nv / ni^2) - dEg")),
 }
 
 

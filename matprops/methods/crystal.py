@@ -19,11 +19,11 @@ DERIVED = {
     "density": (("lattice_constant", "molar_mass"), "rho = 8 M / (N_A a(T)^3)"),
     "atomic_density": (("lattice_constant",), "N = 8 / a(T)^3"),
     "surface_atom_density": (("lattice_constant",),
-                             "atoms per area in one atomic layer of the plane, "
-                             "2/a^2 (100), 2 sqrt2/a^2 (110), 4/(sqrt3 a^2) (111)"),
+                             ("atoms per area in one atomic layer of the plane, "
+                              "2/a^2 (100), 2 sqrt2/a^2 (110), 4/(sqrt3 a^2) (111)")),
     "dangling_bond_density": (("lattice_constant",),
-                              "surface atom density x bonds cut per atom of the ideal "
-                              "unreconstructed surface: 2 (100), 1 (110), 1 (111)"),
+                              ("surface atom density x bonds cut per atom of the ideal "
+                               "unreconstructed surface: 2 (100), 1 (110), 1 (111)")),
 }
 
 PLANES = tuple(crystal.PLANES)
