@@ -66,7 +66,7 @@ class BoundKernel:
     Attributes
     ----------
     quantity : str
-    model : the bound :class:`~matprops.catalog.Model` (None for a composition)
+    model : the bound :class:`~matprops.records.Model` (None for a composition)
     model_id : str
     inputs : mapping input name -> internal unit string
     output_units : unit string, or tuple of them for a kernel returning a tuple

@@ -36,9 +36,11 @@ from pathlib import Path
 
 import numpy as np
 
-from .catalog import Catalog, Source, _convert, _parse_toml, _require, default_catalog, sources_of
+from .catalog import Catalog, _parse_toml, default_catalog
 from .errors import DatasetError, InputError, UnknownDefectError
 from .kernels import srh_lifetime as srh
+from .modelfile import _convert, _require, sources_of
+from .records import Source
 from .schema import DEFECT, validate
 
 __all__ = ["CrossSection", "Defect", "defect", "describe", "names", "parse"]

@@ -113,7 +113,7 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
         return {q: m.id for q, m in self._models.items()}
 
     def model(self, name: str) -> Model:
-        """The bound :class:`~matprops.catalog.Model` serving a quantity."""
+        """The bound :class:`~matprops.records.Model` serving a quantity."""
         name = check_name(name)
         if name not in self._models:
             if name in DERIVED:

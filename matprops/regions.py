@@ -15,7 +15,7 @@ model file declares such a limit as ``[[validity_region]]``::
 
 The bound is linear in ``varies_with`` between the points and constant beyond the
 first and last point. The catalogue parses the table into a :class:`Region`;
-:meth:`matprops.catalog.Model.check_regions` applies it to evaluated inputs.
+:meth:`matprops.records.Model.check_regions` applies it to evaluated inputs.
 """
 
 from __future__ import annotations
@@ -139,7 +139,7 @@ class Region:
 
 def parse_regions(path, data: Mapping, spec) -> tuple[Region, ...]:
     """Parse a model file's ``[[validity_region]]`` entries against its kernel spec."""
-    from .catalog import _convert, _require  # the catalogue's field helpers
+    from .modelfile import _convert, _require  # the model files' field helpers
 
     entries = data.get("validity_region", [])
     if not isinstance(entries, list):

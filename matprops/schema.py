@@ -174,7 +174,7 @@ MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
     "validity": (table_of(RANGE), OPTIONAL),
     "validity_region": (list_of(REGION), OPTIONAL),
     "coefficients": (table_of(COEFFICIENT), OPTIONAL),
-    # -- the doping axis (which quantity needs which section: catalog.QUANTITY_SECTIONS)
+    # -- the doping axis (which quantity needs which section: modelfile.QUANTITY_SECTIONS)
     "variant_axis": (one_of(*VARIANT_AXES), OPTIONAL),  # goes with variants
     "variants": (table_of(VARIANT), OPTIONAL),          # one coefficient set per name
     "narrowing": (NARROWING, OPTIONAL),                 # gap_narrowing models

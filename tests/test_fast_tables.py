@@ -13,8 +13,9 @@ import functools
 import numpy as np
 import pytest
 
-from matprops.catalog import _convert, default_catalog, udunits_to_pint
+from matprops.catalog import default_catalog
 from matprops.kernels._tables import Locator
+from matprops.modelfile import _convert, udunits_to_pint
 
 CATALOG = default_catalog()
 TABLE_MODELS = [(q, m) for q in ("absorption", "refractive_index")

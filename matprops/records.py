@@ -1,0 +1,468 @@
+"""Records of the catalogue: sources, coefficients, validity ranges, models, releases.
+
+Immutable definitions, separate from the files they are read from
+(:mod:`matprops.modelfile`) and from the catalogue that finds and checks those files
+(:mod:`matprops.catalog`). A :class:`Model` is a plain-array callable with its
+provenance attached.
+"""
+
+from __future__ import annotations
+
+import functools
+import json
+import re
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+from types import MappingProxyType
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+from .errors import (
+    DatasetError,
+    UnknownNameError,
+    UnknownVariantError,
+    ValidityError,
+    ValidityWarning,
+    warn,
+)
+from .regions import Region
+
+if TYPE_CHECKING:
+    from .catalog import Catalog
+
+SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi")
+# Required fields of each kind of source record (``type`` in the file; default "article").
+SOURCE_TYPES = {
+    "article": SOURCE_FIELDS,
+    "book": ("authors", "year", "title", "publisher", "doi"),
+}
+BOOK_FIELDS = ("publisher", "edition", "address", "pages")
+
+
+# --------------------------------------------------------------------------- records
+
+
+@dataclass(frozen=True)
+class Source:
+    """A bibliographic record of the publication a model comes from.
+
+    ``type`` is ``"article"`` (journal, volume, pages) or ``"book"`` (publisher,
+    optional edition, address and pages); it decides the BibTeX entry type.
+    """
+
+    authors: tuple[str, ...]
+    year: int
+    title: str
+    journal: str
+    volume: str
+    pages: str
+    doi: str
+    type: str = "article"
+    publisher: str = ""
+    edition: str = ""
+    address: str = ""
+
+    def citation(self) -> str:
+        authors = ", ".join(self.authors)
+        doi = f", doi:{self.doi}" if self.doi else ""
+        if self.type == "book":
+            edition = f", {self.edition} edition" if self.edition else ""
+            place = f"{self.publisher}, {self.address}" if self.address else self.publisher
+            pages = f", pp. {self.pages}" if self.pages else ""
+            return f"{authors}, {self.title}{edition} ({place}, {self.year}){pages}{doi}"
+        return (f"{authors}, \"{self.title}\", {self.journal} {self.volume}, "
+                f"{self.pages} ({self.year}){doi}")
+
+    def bibtex(self, key: str) -> str:
+        def esc(text):
+            return str(text).replace("{", "").replace("}", "")
+
+        lines = [f"@{self.type}{{{key},",
+                 f"  author = {{{' and '.join(esc(a) for a in self.authors)}}},",
+                 f"  title = {{{{{esc(self.title)}}}}},"]
+        if self.type == "book":
+            fields = [("edition", self.edition), ("publisher", self.publisher),
+                      ("address", self.address), ("pages", self.pages)]
+        else:
+            fields = [("journal", self.journal), ("volume", self.volume),
+                      ("pages", self.pages)]
+        lines += [f"  {name} = {{{esc(value)}}}," for name, value in fields if value]
+        lines.append(f"  year = {{{self.year}}},")
+        if self.doi:
+            lines.append(f"  doi = {{{esc(self.doi)}}},")
+        lines.append("}")
+        return "\n".join(lines)
+
+    def key(self) -> str:
+        """A BibTeX key ``surname-year`` (lower-case ASCII) of the first author."""
+        import unicodedata
+
+        words = self.authors[0].split()
+        # a person is written with initials ("M. A. Green"); an organisation is not
+        surname = words[-1] if "." in self.authors[0] else words[0]
+        ascii_name = unicodedata.normalize("NFKD", surname).encode("ascii", "ignore").decode()
+        return f"{re.sub(r'[^a-z]', '', ascii_name.lower())}-{self.year}"
+
+    def as_dict(self) -> dict:
+        record = {"type": self.type, "authors": list(self.authors), "year": self.year,
+                  "title": self.title}
+        if self.type == "book":
+            record.update({k: getattr(self, k) for k in BOOK_FIELDS if getattr(self, k)})
+        else:
+            record.update({"journal": self.journal, "volume": self.volume,
+                           "pages": self.pages})
+        record["doi"] = self.doi
+        return record
+
+
+@dataclass(frozen=True)
+class Coefficient:
+    """A coefficient as printed (value, units, uncertainty) and in kernel units."""
+
+    name: str
+    value: float | tuple[float, ...]
+    units: str
+    uncertainty: float | tuple[float, ...] | None
+    kernel_value: Any  # float or ndarray in the kernel's units
+    kernel_units: str
+    obtained: str | None = None  # this number's own origin, where it differs from the model's
+
+    def as_dict(self) -> dict:
+        record = {"value": _plain(self.value), "units": self.units}
+        if self.uncertainty is not None:
+            record["uncertainty"] = _plain(self.uncertainty)
+        if self.obtained:
+            record["obtained"] = self.obtained
+        return record
+
+
+@dataclass(frozen=True)
+class Range:
+    """A model's validity range for one input, in the kernel's units."""
+
+    argument: str
+    low: float
+    high: float
+    units: str
+
+    def __str__(self) -> str:
+        return f"{self.argument} {self.low:g}-{self.high:g} {self.units}"
+
+
+def _plain(value):
+    if isinstance(value, tuple):
+        return list(value)
+    return value
+
+
+# --------------------------------------------------------------------------- model
+
+
+@dataclass(frozen=True, eq=False)
+class Model:
+    """One published model for one quantity, bound to its coefficients.
+
+    Calling the model evaluates it on plain arrays in the kernel's internal units
+    (see :attr:`inputs`) with no unit handling and no validity check: the door for
+    simulation codes. :meth:`check` does the validity check separately.
+    """
+
+    quantity: str
+    id: str
+    name: str
+    kind: str
+    kernel: Callable
+    source: Source
+    obtained: str
+    notes: str
+    coefficients: Mapping[str, Coefficient]
+    validity: Mapping[str, Range]
+    path: Path
+    sha256: str
+    requires: tuple[str, ...] = ()
+    additional_sources: tuple[Source, ...] = ()
+    fallback: str | None = None
+    table: str | None = None
+    table_arguments: Mapping[str, str] = field(default_factory=dict)
+    components: Mapping[str, Model] = field(default_factory=dict)
+    function: Callable | None = None
+    # coefficient sets per dopant species or per carrier: variant name -> bound Model
+    variant_axis: str | None = None
+    variants: Mapping[str, Model] = field(default_factory=dict)
+    variant: str | None = None
+    # quantity-specific sections of the model file (e.g. ``narrowing``), validated
+    extra: Mapping[str, Any] = field(default_factory=dict)
+    # validity limits of one input that depend on another (see matprops.regions)
+    regions: tuple[Region, ...] = ()
+
+    def select(self, variant: str) -> Model:
+        """The model bound to one coefficient set (a dopant species or a carrier)."""
+        if self.variant == variant:
+            return self
+        if variant not in self.variants:
+            if not self.variants:
+                raise UnknownNameError(variant, [], f"for model {self.quantity}/{self.id}, "
+                                       "which has a single coefficient set")
+            raise UnknownVariantError(variant, self.variants,
+                                      f"({self.variant_axis}) for model "
+                                      f"{self.quantity}/{self.id}")
+        return self.variants[variant]
+
+    @property
+    def tables(self) -> list[str]:
+        """Files in ``datasets/tables/`` this model reads (sorted; empty if none)."""
+        if not self.table:
+            return []
+        return sorted({self.table} | {ref.rpartition(":")[0] for ref in
+                                      self.table_arguments.values() if ":" in ref})
+
+    # -- evaluation
+    @property
+    def inputs(self) -> Mapping[str, str]:
+        """Input name -> internal unit string."""
+        return self.kernel.spec.inputs
+
+    @property
+    def output_units(self):
+        return self.kernel.spec.output
+
+    @property
+    def array_api(self) -> bool:
+        """Whether the kernel (and every model it is composed from) accepts arrays of
+        any array-API namespace, not only numpy's."""
+        return self.kernel.spec.array_api and all(c.array_api
+                                                  for c in self.components.values())
+
+    @property
+    def derivative(self):
+        """The kernel's analytic derivatives bound to this model's coefficients:
+        ``(**inputs) -> (value, {input: partial})``; None for a model without them."""
+        function = getattr(self.kernel, "derivatives", None)
+        if function is None or self.kind == "table" or (self.variants and
+                                                         self.variant is None):
+            return None
+        if self.requires and not self.components:
+            return None
+        if any(c.derivative is None for c in self.components.values()):
+            return None
+        own = {c.name: c.kernel_value for c in self.coefficients.values()}
+        return functools.partial(function, **own, **dict(self.components))
+
+    def __call__(self, *args, **kwargs):
+        if self.function is None and self.variants:
+            raise UnknownVariantError("(none)", self.variants,
+                                      f"({self.variant_axis}): model {self.quantity}/"
+                                      f"{self.id} has one coefficient set per "
+                                      f"{self.variant_axis}; choose one with .select()")
+        if self.function is None:
+            missing = [q for q in self.requires if q not in self.components]
+            raise DatasetError(self.path, f"model {self.id!r} is composed from "
+                               f"{', '.join(missing)}; bind them with .compose()")
+        return self.function(*args, **kwargs)
+
+    def compose(self, **components: Model) -> Model:
+        """Bind the models this composed model requires (e.g. band_gap=...)."""
+        missing = [q for q in self.requires if q not in components]
+        if missing:
+            raise DatasetError(self.path, f"composed model {self.id!r} needs "
+                               f"{', '.join(missing)}")
+        chosen = {q: components[q] for q in self.requires}
+        own = {c.name: c.kernel_value for c in self.coefficients.values()}
+        function = functools.partial(self.kernel, **own, **chosen)
+        return _replace(self, components=MappingProxyType(chosen), function=function)
+
+    def check(self, argument: str, low: float, high: float, strict: bool = False) -> None:
+        """Warn (or raise, if strict) when [low, high] leaves the validity range."""
+        rng = self.validity.get(argument)
+        if rng is not None and (low < rng.low or high > rng.high):
+            consequence = ("the value is NaN where its table has no data and "
+                           "unvalidated elsewhere" if self.kind == "table"
+                           else "the value is an extrapolation")
+            message = (f"model {self.quantity}/{self.id}: {argument} "
+                       f"{_span(low, high)} {rng.units} is outside its validity range "
+                       f"{rng.low:g}-{rng.high:g} {rng.units}; {consequence}")
+            if self.fallback:
+                message += (f"; the model {self.fallback!r} covers a wider range "
+                            f"(models={{{self.quantity!r}: {self.fallback!r}}})")
+            if strict:
+                raise ValidityError(message)
+            warn(message, ValidityWarning)
+        for component in self.components.values():
+            component.check(argument, low, high, strict)
+
+    def check_regions(self, values: Mapping[str, Any], strict: bool = False,
+                      ranges: Mapping[str, tuple[float, float]] | None = None) -> None:
+        """Warn (or raise) where inputs leave a validity region of several inputs.
+
+        ``values`` maps input names to arrays in kernel units (broadcast together);
+        ``ranges``, input -> (min, max) where known, spare a pass over the points when
+        the extremes already show every point inside.
+        """
+        for region in self.regions:
+            message = region.violation(values, f"{self.quantity}/{self.id}", ranges)
+            if message is None:
+                continue
+            if strict:
+                raise ValidityError(message)
+            warn(message, ValidityWarning)
+
+    # -- provenance
+    def provenance(self) -> dict:
+        """Everything a modeller needs to trace this model's numbers."""
+        record = {
+            "quantity": self.quantity,
+            "model": self.id,
+            "name": self.name,
+            "kind": self.kind,
+            "citation": self.source.citation(),
+            "doi": self.source.doi,
+            "source": self.source.as_dict(),
+            "validity": {k: {"min": r.low, "max": r.high, "units": r.units}
+                         for k, r in self.validity.items()},
+            "validity_regions": [r.as_dict() for r in self.regions],
+            "obtained": self.obtained,
+            "notes": self.notes,
+            "coefficients": {k: c.as_dict() for k, c in self.coefficients.items()},
+            "file": f"models/{self.quantity}/{self.path.name}",
+            "sha256": self.sha256,
+        }
+        if self.table:
+            record["tables"] = [f"tables/{t}" for t in self.tables]
+        if self.additional_sources:
+            record["additional_sources"] = [s.as_dict() for s in self.additional_sources]
+        if self.fallback:
+            record["fallback"] = self.fallback
+        if self.components:
+            record["components"] = {q: m.provenance() for q, m in self.components.items()}
+        if self.variant_axis:
+            record["variant_axis"] = self.variant_axis
+            if self.variant is not None:
+                record["variant"] = self.variant
+            else:
+                record["variants"] = {name: {k: c.as_dict() for k, c in
+                                             m.coefficients.items()
+                                             if k not in self.coefficients}
+                                      for name, m in self.variants.items()}
+        for key, value in self.extra.items():
+            record[key] = _plain_extra(value)
+        return record
+
+    def sources(self) -> list[tuple[str, Source]]:
+        """(citation key, source) of this model and every model it is composed from."""
+        found = [(self.source.key(), self.source)]
+        found += [(s.key(), s) for s in self.additional_sources]
+        for component in self.components.values():
+            found += component.sources()
+        return found
+
+    def to_dataset(self):
+        """The model's numbers as an xarray.Dataset with provenance attributes."""
+        import xarray as xr
+
+        if self.kind == "table":  # read through the checksum check, like the kernel
+            from .catalog import catalog_at
+
+            data = catalog_at(self.path.parent.parent.parent).table(self.table)
+            data.attrs = {f"table_{k}": v for k, v in data.attrs.items()}
+        else:
+            variables = {}
+            for name, coef in self.coefficients.items():
+                value = np.asarray(coef.value, dtype=float)
+                dims = () if value.ndim == 0 else (f"{name}_index",)
+                attrs = {"units": coef.units, "kernel_units": coef.kernel_units}
+                if coef.uncertainty is not None:
+                    attrs["uncertainty"] = _plain(coef.uncertainty)
+                variables[name] = xr.Variable(dims, value, attrs)
+            data = xr.Dataset(variables)
+        data.attrs.update({
+            "quantity": self.quantity, "model": self.id, "title": self.name,
+            "references": self.source.citation(), "obtained": self.obtained,
+            "provenance": json.dumps(self.provenance(), ensure_ascii=False),
+        })
+        return data
+
+    # -- pickling (process pools, dask workers) and copying
+    def __reduce__(self):
+        # by name, re-bound on load from the catalogue at the same root (or the
+        # receiver's installed data when this came from the default catalogue)
+        from .catalog import catalog_at
+
+        return _rebind_model, (catalog_at(self.path.parent.parent.parent), self.quantity,
+                               self.id, self.sha256, dict(self.components), self.variant)
+
+    def __copy__(self):
+        return self  # immutable
+
+    def __deepcopy__(self, memo):
+        return self
+
+    def __repr__(self) -> str:
+        ranges = ", ".join(str(r) for r in self.validity.values()) or "no limits"
+        inputs = ", ".join(f"{k} [{u}]" for k, u in self.inputs.items()) or "none"
+        return (f"<Model {self.quantity}/{self.id} ({self.kind}): {self.name}; "
+                f"inputs {inputs}; valid {ranges}; {self.source.citation()}>")
+
+
+def _plain_extra(value):
+    if isinstance(value, Coefficient):
+        return value.as_dict()
+    if isinstance(value, Mapping):
+        return {k: _plain_extra(v) for k, v in value.items()}
+    return value
+
+
+def _rebind_model(catalog: Catalog, quantity: str, model_id: str, sha256: str,
+                  components: Mapping[str, Model], variant: str | None = None) -> Model:
+    model = catalog.model(quantity, model_id)
+    if model.sha256 != sha256:
+        raise DatasetError(model.path, f"has sha256 {model.sha256} here but {sha256} where "
+                           "the model was pickled: the two processes read different data")
+    if variant is not None:
+        model = model.select(variant)
+    return model.compose(**components) if components else model
+
+
+def _span(low, high) -> str:
+    return f"{low:g}" if low == high else f"{low:g}-{high:g}"
+
+
+def _replace(model: Model, **changes) -> Model:
+    import dataclasses
+    return dataclasses.replace(model, **changes)
+
+
+@dataclass(frozen=True)
+class Release:
+    """A named bundle: one model per quantity, a status, a date, notes."""
+
+    id: str
+    status: str  # "draft" or "final"
+    date: str
+    notes: str
+    models: Mapping[str, str]
+    path: Path
+
+    @property
+    def final(self) -> bool:
+        return self.status == "final"
+
+    @property
+    def reference_path(self) -> Path:
+        return self.path.with_name(f"{self.id}.reference.json")
+
+    def __reduce__(self):
+        from .catalog import catalog_at
+
+        return _reload_release, (catalog_at(self.path.parent.parent), self.id)
+
+    def __copy__(self):
+        return self  # immutable
+
+    def __deepcopy__(self, memo):
+        return self
+
+
+def _reload_release(catalog: Catalog, release_id: str) -> Release:
+    return catalog.release(release_id)
