@@ -1,0 +1,24 @@
+"""The README's usage example runs as written (placeholders replaced by small arrays)."""
+
+import contextlib
+import io
+import warnings
+from pathlib import Path
+
+import numpy as np
+
+import matprops
+
+README = Path(__file__).resolve().parent.parent / "README.md"
+
+
+def test_the_usage_example_runs():
+    text = README.read_text()
+    block = text.split("\n## Use\n", 1)[1].split("```python", 1)[1].split("```", 1)[0]
+    for placeholder in ("numpy_array_of_kelvin", "mesh_temperatures"):
+        block = block.replace(placeholder, "np.array([250.0, 300.0])")
+    namespace = {"np": np}
+    with warnings.catch_warnings(), contextlib.redirect_stdout(io.StringIO()):
+        warnings.simplefilter("ignore", matprops.ValidityWarning)
+        exec(compile(block, "README.md (Use)", "exec"), namespace)  # noqa: S102
+    assert namespace["si"].release.id == matprops.releases()[-1]
