@@ -4,7 +4,8 @@
 
 Reports ns per element for fd_half, fd_minus_half and fd_half_inverse and their ratio
 to ``np.exp`` on the same eta array (the figure to watch; the inverse runs on
-y = F_1/2(eta), the same size, with ``np.log(y)`` shown beside it).  Inputs: reduced Fermi levels spread at random over -50..100 (every
+y = F_1/2(eta), the same size, with ``np.log(y)`` shown beside it).  Inputs: reduced
+Fermi levels spread at random over -50..100 (every
 block of the array spans all segments: the slow, indexed path), the same range
 sorted (blocks mostly inside one segment, as on a smooth device or parameter grid),
 and the non-degenerate range -40..0 alone.  The inverse gets y = F_1/2(eta) of the
@@ -34,19 +35,24 @@ def main():
         "random -40..0": rng.uniform(-40.0, 0.0, n),
     }
     blas = {k: v for k, v in os.environ.items() if k.startswith("OPENBLAS")}
-    print(f"numpy {np.__version__}, {platform.processor() or platform.machine()}, "
-          f"OPENBLAS variables: {blas or 'not set'}")
+    print(
+        f"numpy {np.__version__}, {platform.processor() or platform.machine()}, "
+        f"OPENBLAS variables: {blas or 'not set'}"
+    )
     print(f"{'input':17s} {'function':16s} {'ns/elt':>7s}  {'x np.exp':>8s}")
     for label, eta in cases.items():
         y = fd_half(eta)
         exp = ns_per_element(np.exp, eta)
         print(f"{label:17s} {'np.exp(eta)':16s} {exp:7.2f}  {1:8.1f}")
         print(f"{label:17s} {'np.log(y)':16s} {ns_per_element(np.log, y):7.2f}")
-        for name, function, x in (("fd_half", fd_half, eta),
-                                  ("fd_minus_half", fd_minus_half, eta),
-                                  ("fd_half_inverse", fd_half_inverse, y)):
+        for name, function, x in (
+            ("fd_half", fd_half, eta),
+            ("fd_minus_half", fd_minus_half, eta),
+            ("fd_half_inverse", fd_half_inverse, y),
+        ):
             t = ns_per_element(function, x)
             print(f"{label:17s} {name:16s} {t:7.2f}  {t / exp:8.1f}")
+
 
 if __name__ == "__main__":
     main()

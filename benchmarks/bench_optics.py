@@ -15,7 +15,7 @@ import numpy as np
 from scipy.interpolate import RegularGridInterpolator, interp1d
 
 import matprops
-from matprops.catalog import default_catalog
+from matprops.catalogue.store import default_catalog
 
 
 def best(stmt, number=5, repeat=7):
@@ -39,32 +39,48 @@ def main():
         return np.exp(rgi(points)).reshape(lam.size, temps.size)
 
     def baseline_scaled():
-        return np.exp(g1(lam)[:, None] + rgi(points).reshape(lam.size, temps.size)
-                      - rgi(ref_points)[:, None])
+        return np.exp(
+            g1(lam)[:, None] + rgi(points).reshape(lam.size, temps.size) - rgi(ref_points)[:, None]
+        )
 
     si_series = matprops.silicon(models={"absorption": "franta-2017"})
     si_default = matprops.silicon()
     with warnings.catch_warnings():
         warnings.simplefilter("error")
-        np.testing.assert_allclose(si_series.absorption(grid_lam, grid_t).m_as("1/cm"),
-                                   baseline_series(), rtol=1e-10)
-        np.testing.assert_allclose(si_default.absorption(grid_lam, grid_t).m_as("1/cm"),
-                                   baseline_scaled(), rtol=1e-10)
+        np.testing.assert_allclose(
+            si_series.absorption(grid_lam, grid_t).m_as("1/cm"), baseline_series(), rtol=1e-10
+        )
+        np.testing.assert_allclose(
+            si_default.absorption(grid_lam, grid_t).m_as("1/cm"), baseline_scaled(), rtol=1e-10
+        )
 
-    print(f"grid {lam.size} wavelengths x {temps.size} temperatures = {lam.size * temps.size:.0e} points")
+    print(
+        f"grid {lam.size} wavelengths x {temps.size} temperatures = "
+        f"{lam.size * temps.size:.0e} points"
+    )
     for label, api, base in (
-            ("franta-2017 (2-D table)", lambda: si_series.absorption(grid_lam, grid_t),
-             baseline_series),
-            ("green-2008-franta-2017 (default)", lambda: si_default.absorption(grid_lam, grid_t),
-             baseline_scaled)):
+        (
+            "franta-2017 (2-D table)",
+            lambda: si_series.absorption(grid_lam, grid_t),
+            baseline_series,
+        ),
+        (
+            "green-2008-franta-2017 (default)",
+            lambda: si_default.absorption(grid_lam, grid_t),
+            baseline_scaled,
+        ),
+    ):
         a, b = best(api), best(base)
-        print(f"  {label:34s} API {a * 1e3:6.2f} ms   RegularGridInterpolator {b * 1e3:6.2f} ms"
-              f"   ratio {a / b:.2f}")
+        print(
+            f"  {label:34s} API {a * 1e3:6.2f} ms   RegularGridInterpolator {b * 1e3:6.2f} ms"
+            f"   ratio {a / b:.2f}"
+        )
     kernel = si_default.kernel("absorption")
     k = best(lambda: kernel(wavelength=grid_lam, temperature=grid_t))
     s = best(lambda: si_default.absorption(800.0, 300.0), number=500)
-    print(f"  bound kernel (no units, no checks) {k * 1e3:6.2f} ms;"
-          f" one scalar call {s * 1e6:.0f} us")
+    print(
+        f"  bound kernel (no units, no checks) {k * 1e3:6.2f} ms; one scalar call {s * 1e6:.0f} us"
+    )
 
 
 if __name__ == "__main__":

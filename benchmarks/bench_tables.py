@@ -43,15 +43,14 @@ EXCESS = 1e15  # cm^-3
 
 def plan(si, points: int):
     """(quantities, grid, kernel calls) for a table of about ``points`` points."""
-    from matprops.tables import available
+    from matprops.material.tables import available
 
     serves = set(available(si))
     if set(DOPING_SET) <= serves:  # once the doping quantities exist
         n_t = 1000
         t = np.linspace(233.15, 473.15, n_t)
         nd = np.logspace(13, 20, points // n_t)
-        grid = {"temperature": t, "donor_density": nd, **FREE_CARRIERS,
-                "excess_density": EXCESS}
+        grid = {"temperature": t, "donor_density": nd, **FREE_CARRIERS, "excess_density": EXCESS}
         tt, dd = t[:, None], nd[None, :]
         n, p = FREE_CARRIERS["electron_density"], FREE_CARRIERS["hole_density"]
         narrowing = si.kernel("gap_narrowing")
@@ -80,8 +79,7 @@ def plan(si, points: int):
     tt, ll = t[:, None], lam[None, :]
     calls = [
         ("absorption", lambda: si.kernel("absorption")(wavelength=ll, temperature=tt)),
-        ("refractive_index",
-         lambda: si.kernel("refractive_index")(wavelength=ll, temperature=tt)),
+        ("refractive_index", lambda: si.kernel("refractive_index")(wavelength=ll, temperature=tt)),
         ("intrinsic_density", lambda: si.kernel("intrinsic_density")(temperature=t)),
     ]
     return ["absorption", "refractive_index", "intrinsic_density"], grid, calls
@@ -112,8 +110,10 @@ def best_time(function, repeat=3):
 def table_versus_kernels(si, points):
     quantities, grid, calls = plan(si, points)
     size = int(np.prod([np.size(v) for v in grid.values() if np.ndim(v)]))
-    print(f"\n1. table of {quantities} on {size:.3g} points "
-          f"({' x '.join(f'{k} {np.size(v)}' for k, v in grid.items() if np.ndim(v))})")
+    print(
+        f"\n1. table of {quantities} on {size:.3g} points "
+        f"({' x '.join(f'{k} {np.size(v)}' for k, v in grid.items() if np.ndim(v))})"
+    )
 
     def through_table():
         with warnings.catch_warnings():
@@ -132,8 +132,10 @@ def table_versus_kernels(si, points):
     seconds_table = best_time(through_table, repeat)
     _, peak_table, data = traced(through_table)
     result_bytes = sum(v.nbytes for v in data.data_vars.values())
-    print(f"   si.table:        {seconds_table:7.3f} s   peak {peak_table / 1e6:8.1f} MB   "
-          f"result {result_bytes / 1e6:.1f} MB   peak/result {peak_table / result_bytes:.2f}")
+    print(
+        f"   si.table:        {seconds_table:7.3f} s   peak {peak_table / 1e6:8.1f} MB   "
+        f"result {result_bytes / 1e6:.1f} MB   peak/result {peak_table / result_bytes:.2f}"
+    )
     for name, variable in data.data_vars.items():
         print(f"      {name}: {variable.size:.3g} values, dims {variable.dims}")
     del data
@@ -147,10 +149,14 @@ def table_versus_kernels(si, points):
         plan(si, 3000)[2][-1][1]()  # the kernels on a small grid first
     seconds_kernels = best_time(through_kernels, repeat)
     _, peak_kernels, _ = traced(through_kernels)
-    print(f"   kernels (numpy): {seconds_kernels:7.3f} s   peak {peak_kernels / 1e6:8.1f} MB"
-          f"   peak/result {peak_kernels / result_bytes:.2f}")
-    print(f"   time table/kernels {seconds_table / seconds_kernels:.2f} (target <= 1.5); "
-          f"table peak/result {peak_table / result_bytes:.2f} (target <= 2)")
+    print(
+        f"   kernels (numpy): {seconds_kernels:7.3f} s   peak {peak_kernels / 1e6:8.1f} MB"
+        f"   peak/result {peak_kernels / result_bytes:.2f}"
+    )
+    print(
+        f"   time table/kernels {seconds_table / seconds_kernels:.2f} (target <= 1.5); "
+        f"table peak/result {peak_table / result_bytes:.2f} (target <= 2)"
+    )
 
 
 def _start_sampler(dask_worker):
@@ -184,8 +190,10 @@ def cluster_sweep(si, points, chunk_sizes):
 
     quantities, grid, _ = plan(si, points)
     first = next(k for k, v in grid.items() if np.ndim(v))
-    print(f"\n2. chunks= sweep of the same {points:.3g}-point table, chunked along {first} "
-          "(reduced to means on the workers)")
+    print(
+        f"\n2. chunks= sweep of the same {points:.3g}-point table, chunked along {first} "
+        "(reduced to means on the workers)"
+    )
 
     def lazy(chunk):
         with warnings.catch_warnings():
@@ -199,31 +207,44 @@ def cluster_sweep(si, points, chunk_sizes):
             [float(v.mean()) for v in data.data_vars.values()]
             seconds = time.perf_counter() - start
         print(f"   threads scheduler, chunk {chunk:5d}: {seconds:6.2f} s")
-    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  host="127.0.0.1", dashboard_address=":0",
-                                  memory_limit="1.5GB") as cluster, \
-            distributed.Client(cluster) as client:
+    with (
+        distributed.LocalCluster(
+            n_workers=2,
+            threads_per_worker=1,
+            processes=True,
+            host="127.0.0.1",
+            dashboard_address=":0",
+            memory_limit="1.5GB",
+        ) as cluster,
+        distributed.Client(cluster) as client,
+    ):
         for chunk in chunk_sizes:
             data = lazy(chunk)
-            blocks = sum(np.prod([len(c) for c in v.chunks]) for v in data.data_vars.values()
-                         if v.chunks)
+            blocks = sum(
+                np.prod([len(c) for c in v.chunks]) for v in data.data_vars.values() if v.chunks
+            )
             client.run(_start_sampler)
             start = time.perf_counter()
             futures = client.compute([v.mean() for v in data.data_vars.values()])
             [float(f.result()) for f in futures]
             seconds = time.perf_counter() - start
             rss = client.run(_stop_sampler)
-            print(f"   2-worker cluster, chunk {chunk:5d} ({blocks:4d} blocks): {seconds:6.2f} s"
-                  "   worker RSS before -> peak " + ", ".join(
-                      f"{b:.0f} -> {p:.0f}" for b, p in rss.values()) + " MB")
+            print(
+                f"   2-worker cluster, chunk {chunk:5d} ({blocks:4d} blocks): {seconds:6.2f} s"
+                "   worker RSS before -> peak "
+                + ", ".join(f"{b:.0f} -> {p:.0f}" for b, p in rss.values())
+                + " MB"
+            )
 
 
 def exports(si, points):
     from matprops import export
 
     n_lam = 100
-    grid = {"temperature": np.linspace(250.0, 400.0, points // n_lam),
-            "wavelength": np.linspace(400.0, 1100.0, n_lam)}
+    grid = {
+        "temperature": np.linspace(250.0, 400.0, points // n_lam),
+        "wavelength": np.linspace(400.0, 1100.0, n_lam),
+    }
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         data = si.table(["absorption", "refractive_index"], **grid)
@@ -236,23 +257,28 @@ def exports(si, points):
             written = export.write(data, path)
             seconds = time.perf_counter() - start
             total = sum(p.stat().st_size for p in written)
-            print(f"   {name[2:]:5s} {seconds:6.2f} s   {total / 1e6:7.1f} MB"
-                  + (f" (incl. {written[1].name})" if len(written) > 1 else ""))
+            print(
+                f"   {name[2:]:5s} {seconds:6.2f} s   {total / 1e6:7.1f} MB"
+                + (f" (incl. {written[1].name})" if len(written) > 1 else "")
+            )
 
 
 def main():
     parser = argparse.ArgumentParser()
     parser.add_argument("--points", type=float, default=1e7)
     parser.add_argument("--export-points", type=float, default=1e6)
-    parser.add_argument("--chunks", default="500,2000,5000",
-                        help="chunk sizes along the first axis for the sweep")
+    parser.add_argument(
+        "--chunks", default="500,2000,5000", help="chunk sizes along the first axis for the sweep"
+    )
     parser.add_argument("--no-cluster", action="store_true")
     args = parser.parse_args()
     import matprops
 
-    print(f"numpy {np.__version__}; {os.cpu_count()} cores; OPENBLAS_CORETYPE="
-          f"{os.environ.get('OPENBLAS_CORETYPE', '(unset)')}, OPENBLAS_L2_SIZE="
-          f"{os.environ.get('OPENBLAS_L2_SIZE', '(unset)')}")
+    print(
+        f"numpy {np.__version__}; {os.cpu_count()} cores; OPENBLAS_CORETYPE="
+        f"{os.environ.get('OPENBLAS_CORETYPE', '(unset)')}, OPENBLAS_L2_SIZE="
+        f"{os.environ.get('OPENBLAS_L2_SIZE', '(unset)')}"
+    )
     si = matprops.silicon()
     table_versus_kernels(si, int(args.points))
     if not args.no_cluster:

@@ -39,16 +39,16 @@ from scipy.linalg import solve_banded
 import matprops
 from matprops.kernels.constants import BOLTZMANN_EV
 
-Q = elementary_charge                     # C
-EPSILON_0 = epsilon_0 * 1e-2              # F/cm
+Q = elementary_charge  # C
+EPSILON_0 = epsilon_0 * 1e-2  # F/cm
 
 # --- the invented device -----------------------------------------------------------------
-LENGTH = 30e-4                            # cm (30 um)
+LENGTH = 30e-4  # cm (30 um)
 NODES = 241
-TEMPERATURE = 330.0                       # K
-SURFACE_DONORS, DEPTH = 1e19, 0.3e-4      # cm^-3, cm (Gaussian phosphorus diffusion)
-BASE_ACCEPTORS = 5e16                     # cm^-3
-SRH_LIFETIME = 10e-6                      # s, invented, electrons and holes alike
+TEMPERATURE = 330.0  # K
+SURFACE_DONORS, DEPTH = 1e19, 0.3e-4  # cm^-3, cm (Gaussian phosphorus diffusion)
+BASE_ACCEPTORS = 5e16  # cm^-3
+SRH_LIFETIME = 10e-6  # s, invented, electrons and holes alike
 
 
 def bernoulli(x):
@@ -67,7 +67,7 @@ class Diode:
         self.x = np.linspace(0.0, LENGTH, NODES)
         self.h = self.x[1] - self.x[0]
         self.t = np.full(NODES, TEMPERATURE)
-        self.nd = SURFACE_DONORS * np.exp(-(self.x / DEPTH) ** 2)
+        self.nd = SURFACE_DONORS * np.exp(-((self.x / DEPTH) ** 2))
         self.na = np.full(NODES, BASE_ACCEPTORS)
         self.vt = BOLTZMANN_EV * TEMPERATURE  # V
         self.epsilon = float(si.permittivity().magnitude) * EPSILON_0
@@ -78,10 +78,11 @@ class Diode:
         # the mesh, validated once, with every carrier density from 1e2 cm^-3 to the
         # largest dopant density; the warnings list what lies outside a model's range
         span = np.array([[1e2], [SURFACE_DONORS]])
-        self.warnings = (self.ni_eff.check(self.t, self.nd, self.na, span, span)
-                         + self.mobility["electron"].check(self.t, self.nd, self.na, span,
-                                                           span)
-                         + self.radiative.check(self.t))
+        self.warnings = (
+            self.ni_eff.check(self.t, self.nd, self.na, span, span)
+            + self.mobility["electron"].check(self.t, self.nd, self.na, span, span)
+            + self.radiative.check(self.t)
+        )
 
     # --- material parameters at the current densities (kernel calls) ---------------------
     def intrinsic(self, n, p):
@@ -90,8 +91,10 @@ class Diode:
         return value, partials["electron_density"] / value, partials["hole_density"] / value
 
     def mobilities(self, n, p):
-        return (self.mobility["electron"](self.t, self.nd, self.na, n, p),
-                self.mobility["hole"](self.t, self.nd, self.na, n, p))
+        return (
+            self.mobility["electron"](self.t, self.nd, self.na, n, p),
+            self.mobility["hole"](self.t, self.nd, self.na, n, p),
+        )
 
     def recombination(self, n, p, nie):
         """SRH (invented lifetime) and radiative: R = a n - b for electrons (p fixed),
@@ -119,8 +122,9 @@ class Diode:
             n = nie * np.exp((psi - phi_n) / self.vt)
             p = nie * np.exp((phi_p - psi) / self.vt)
             residual = np.zeros(NODES)
-            residual[1:-1] = c * (psi[:-2] - 2.0 * psi[1:-1] + psi[2:]) + Q * (
-                p - n + self.nd - self.na)[1:-1]
+            residual[1:-1] = (
+                c * (psi[:-2] - 2.0 * psi[1:-1] + psi[2:]) + Q * (p - n + self.nd - self.na)[1:-1]
+            )
             # dn/dpsi and dp/dpsi with n_ie(n, p): [1 - n a, -n b; -p a, 1 - p b] d = rhs
             det = (1.0 - n * a) * (1.0 - p * b) - n * b * p * a
             dn = (n / self.vt * (1.0 - p * b) - n * b * p / self.vt) / det
@@ -143,23 +147,25 @@ class Diode:
         mu_n, mu_p = self.mobilities(n, p)
         a_n, a_p, b = self.recombination(n, p, nie)
         log_nie = np.log(nie)
-        delta_n = np.diff(psi / self.vt + log_nie)        # electron effective potential
-        delta_p = np.diff(psi / self.vt - log_nie)        # hole effective potential
+        delta_n = np.diff(psi / self.vt + log_nie)  # electron effective potential
+        delta_p = np.diff(psi / self.vt - log_nie)  # hole effective potential
         c_n = Q * self.vt * 0.5 * (mu_n[1:] + mu_n[:-1]) / self.h**2
         c_p = Q * self.vt * 0.5 * (mu_p[1:] + mu_p[:-1]) / self.h**2
         (n0, p0), (nl, pl) = boundary
         solutions = []
-        for carrier, cc, d, a, start, end in (("n", c_n, delta_n, a_n, n0, nl),
-                                              ("p", c_p, delta_p, a_p, p0, pl)):
+        for carrier, cc, d, a, start, end in (
+            ("n", c_n, delta_n, a_n, n0, nl),
+            ("p", c_p, delta_p, a_p, p0, pl),
+        ):
             plus, minus = bernoulli(d), bernoulli(-d)
             bands = np.zeros((3, NODES))
             rhs = np.zeros(NODES)
-            if carrier == "n":   # (J(i+1/2) - J(i-1/2))/h = q R
+            if carrier == "n":  # (J(i+1/2) - J(i-1/2))/h = q R
                 bands[0, 2:] = cc[1:] * plus[1:]
                 bands[2, :-2] = cc[:-1] * minus[:-1]
                 bands[1, 1:-1] = -(cc[1:] * minus[1:] + cc[:-1] * plus[:-1]) - Q * a[1:-1]
                 rhs[1:-1] = -Q * b[1:-1]
-            else:                # (J(i+1/2) - J(i-1/2))/h = -q R
+            else:  # (J(i+1/2) - J(i-1/2))/h = -q R
                 bands[0, 2:] = -cc[1:] * minus[1:]
                 bands[2, :-2] = -cc[:-1] * plus[:-1]
                 bands[1, 1:-1] = cc[1:] * plus[1:] + cc[:-1] * minus[:-1] + Q * a[1:-1]
@@ -193,15 +199,15 @@ class Diode:
                 nie_now = self.ni_eff(self.t, self.nd, self.na, n, p)
                 phi_n = psi - self.vt * np.log(n / nie_now)
                 phi_p = psi + self.vt * np.log(p / nie_now)
-                start, end = self.contact(0, 0.0, nie_now[0]), self.contact(-1, bias,
-                                                                             nie_now[-1])
+                start, end = self.contact(0, 0.0, nie_now[0]), self.contact(-1, bias, nie_now[-1])
                 phi_n[0] = phi_p[0] = 0.0
                 phi_n[-1] = phi_p[-1] = bias
                 psi_new = psi.copy()
                 psi_new[0], psi_new[-1] = start[2], end[2]
                 psi_new, n, p = self.poisson(psi_new, phi_n, phi_p, n, p)
-                n, p, parts = self.continuity(psi_new, n, p, ((start[0], start[1]),
-                                                              (end[0], end[1])))
+                n, p, parts = self.continuity(
+                    psi_new, n, p, ((start[0], start[1]), (end[0], end[1]))
+                )
                 change = np.max(np.abs(psi_new - psi))
                 psi = psi_new
                 if change < tolerance and count > 2:
@@ -209,10 +215,18 @@ class Diode:
             else:
                 raise RuntimeError(f"Gummel iteration did not converge at {bias} V")
             _, _, total = self.current(n, p, parts)
-            states.append({"bias": bias, "iterations": count, "current": float(np.median(total)),
-                           "current_spread": float(np.ptp(total) / max(abs(np.median(total)),
-                                                                       1e-300)),
-                           "psi": psi, "n": n, "p": p, "nie": parts[4]})
+            states.append(
+                {
+                    "bias": bias,
+                    "iterations": count,
+                    "current": float(np.median(total)),
+                    "current_spread": float(np.ptp(total) / max(abs(np.median(total)), 1e-300)),
+                    "psi": psi,
+                    "n": n,
+                    "p": p,
+                    "nie": parts[4],
+                }
+            )
         return states
 
 
@@ -223,9 +237,11 @@ def main():
         print("  validity:", message[:110] + ("..." if len(message) > 110 else ""))
     for state in diode.solve():
         # the current flows from the p contact (x = L) to the n contact: negative x
-        print(f"  V = {state['bias']:.2f} V: {state['iterations']:3d} Gummel iterations, "
-              f"|J| = {abs(state['current']):.3e} A/cm^2 (spread along x "
-              f"{state['current_spread']:.1e}), n_ie at the front {state['nie'][0]:.3e} cm^-3")
+        print(
+            f"  V = {state['bias']:.2f} V: {state['iterations']:3d} Gummel iterations, "
+            f"|J| = {abs(state['current']):.3e} A/cm^2 (spread along x "
+            f"{state['current_spread']:.1e}), n_ie at the front {state['nie'][0]:.3e} cm^-3"
+        )
 
 
 if __name__ == "__main__":

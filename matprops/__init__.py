@@ -15,20 +15,45 @@ practice.
 from importlib import import_module
 
 from . import errors as _errors
+from ._version import __version__
 from .errors import *
 
-__version__ = "0.1.0"
-
-__all__ = ["silicon", "Silicon", "releases", "models", "Q_", "ureg", "optics",
-           "__version__", *_errors.__all__]
+__all__ = [
+    "silicon",
+    "Silicon",
+    "releases",
+    "models",
+    "Q_",
+    "ureg",
+    "optics",
+    "__version__",
+    *_errors.__all__,
+]
 
 # name -> module that defines it; imported on first access (PEP 562)
 _LAZY = {
-    "silicon": "material", "Silicon": "material", "releases": "material",
-    "models": "material", "Q_": "units", "ureg": "units",
+    "silicon": "material.silicon",
+    "Silicon": "material.silicon",
+    "releases": "material.silicon",
+    "models": "material.silicon",
+    "Q_": "units",
+    "ureg": "units",
 }
-_SUBMODULES = {"optics", "tables", "catalog", "units", "material", "kernels", "cli",
-               "reference", "modeldocs", "export", "plotting", "changes"}
+# submodules reachable as attributes (``from matprops import export``): the layers,
+# and the public modules of the outputs and material layers by their short names
+_SUBMODULES = {
+    "optics": "optics",
+    "units": "units",
+    "kernels": "kernels",
+    "catalogue": "catalogue",
+    "material": "material",
+    "outputs": "outputs",
+    "cli": "cli",
+    "tables": "material.tables",
+    "export": "outputs.export",
+    "plotting": "outputs.plotting",
+    "changes": "outputs.changes",
+}
 
 
 def __getattr__(name):
@@ -38,7 +63,7 @@ def __getattr__(name):
             globals()[name] = value
         return value
     if name in _SUBMODULES:
-        return import_module(f".{name}", __name__)
+        return import_module(f".{_SUBMODULES[name]}", __name__)
     raise AttributeError(f"module 'matprops' has no attribute {name!r}")
 
 

@@ -68,12 +68,20 @@ class Error(Exception):
 class UnitError(Error, TypeError):
     """An argument has the wrong physical dimension or an unparseable unit."""
 
-    def __init__(self, argument: str, expected: str, received, plain: str | None = None,
-                 description: str | None = None):
+    def __init__(
+        self,
+        argument: str,
+        expected: str,
+        received,
+        plain: str | None = None,
+        description: str | None = None,
+    ):
         self.argument, self.expected, self.received = argument, expected, received
         shown = description if description is not None else repr(received)
-        super().__init__(f"argument {argument!r} expects a quantity in {expected} "
-                         f"(or a plain number in {plain or expected}); received {shown}")
+        super().__init__(
+            f"argument {argument!r} expects a quantity in {expected} "
+            f"(or a plain number in {plain or expected}); received {shown}"
+        )
 
 
 class InputError(Error, ValueError):
@@ -81,8 +89,7 @@ class InputError(Error, ValueError):
 
     def __init__(self, argument: str, requirement: str, received):
         self.argument, self.requirement, self.received = argument, requirement, received
-        super().__init__(f"argument {argument!r} must be {requirement}; "
-                         f"received {received}")
+        super().__init__(f"argument {argument!r} must be {requirement}; received {received}")
 
 
 class UnknownNameError(Error, KeyError):
@@ -95,8 +102,10 @@ class UnknownNameError(Error, KeyError):
         close = difflib.get_close_matches(str(name), self.known, n=1)
         hint = f" Did you mean {close[0]!r}?" if close else ""
         where = f" {context}" if context else ""
-        self.message = (f"unknown {self.kind} {name!r}{where}; known: "
-                        f"{', '.join(self.known) or '(none)'}.{hint}")
+        self.message = (
+            f"unknown {self.kind} {name!r}{where}; known: "
+            f"{', '.join(self.known) or '(none)'}.{hint}"
+        )
         super().__init__(self.message)
 
     def __str__(self) -> str:  # KeyError would print the repr of the message

@@ -37,8 +37,11 @@ def _finite(values, units, argument, given, given_units):
     """``values`` as a quantity, or an InputError where a reciprocal overflowed (an
     input so close to zero that the result exceeds the floating-point range)."""
     if not np.all(np.isfinite(values)):
-        raise InputError(argument, "large enough that the result is a finite number "
-                         "(its reciprocal overflows)", f"{np.min(given):g} {given_units}")
+        raise InputError(
+            argument,
+            "large enough that the result is a finite number (its reciprocal overflows)",
+            f"{np.min(given):g} {given_units}",
+        )
     return quantity(values, units)
 
 
@@ -68,8 +71,7 @@ def thickness_for_absorbed_fraction(alpha, fraction):
         raise InputError("fraction", "between 0 and 1 (exclusive)", f"{high:g}")
     check_broadcast(alpha=a, fraction=f)
     if np.any(a == 0):
-        raise InputError("alpha", "> 0 1/cm (no thickness absorbs anything at alpha = 0)",
-                         "0 1/cm")
+        raise InputError("alpha", "> 0 1/cm (no thickness absorbs anything at alpha = 0)", "0 1/cm")
     with np.errstate(over="ignore"):  # checked by _finite
         return _finite(-np.log1p(-f) / a * 1e4, "um", "alpha", a, "1/cm")
 

@@ -27,8 +27,17 @@ import pint
 
 from .errors import InputError, UnitError
 
-__all__ = ["Q_", "check_broadcast", "coerce", "name", "names", "quantity",  # noqa: F822
-           "to_magnitude", "unit", "ureg"]  # (Q_ comes from the module __getattr__ below)
+__all__ = [
+    "Q_",
+    "check_broadcast",
+    "coerce",
+    "name",
+    "names",
+    "quantity",
+    "to_magnitude",
+    "unit",
+    "ureg",
+]  # (Q_ comes from the module __getattr__ below)
 
 # pint's application registry, through its wrapper: every use goes to whatever registry
 # the application has set (pint.set_application_registry), even one set after matprops
@@ -125,14 +134,16 @@ def _describe(value) -> str:
     return f"array of shape {array.shape} with min {np.nanmin(array):g}"
 
 
-def to_magnitude(value, argument: str, units: str | None = None,
-                 requirement: str | None = None) -> np.ndarray:
+def to_magnitude(
+    value, argument: str, units: str | None = None, requirement: str | None = None
+) -> np.ndarray:
     """Convert ``value`` to a float array in ``units`` (0-d for a scalar input)."""
     return coerce(value, argument, units, requirement)[0]
 
 
-def coerce(value, argument: str, units: str | None = None,
-           requirement: str | None = None) -> tuple[np.ndarray, float, float]:
+def coerce(
+    value, argument: str, units: str | None = None, requirement: str | None = None
+) -> tuple[np.ndarray, float, float]:
     """Convert ``value`` to a float array in ``units``; also return its min and max.
 
     Checks the dimension (UnitError) and that the values are finite and positive
@@ -161,26 +172,42 @@ def coerce(value, argument: str, units: str | None = None,
     if isinstance(value, pint.Quantity):
         _real_array(value.magnitude, argument, units)
         if target == unit("K") and "delta_" in str(value.units):
-            raise UnitError(argument, "K, degC or degF (an absolute temperature)", value,
-                            plain="K", description=f"{value} (a temperature difference)")
+            raise UnitError(
+                argument,
+                "K, degC or degF (an absolute temperature)",
+                value,
+                plain="K",
+                description=f"{value} (a temperature difference)",
+            )
         spectral = argument in SPECTRAL and value.dimensionality != target.dimensionality
         if spectral and np.any(np.asarray(value.magnitude) <= 0):
-            raise InputError(argument, f"> 0 {units} (or a positive energy, "
-                             "frequency or wavenumber)", _describe(value))
+            raise InputError(
+                argument,
+                f"> 0 {units} (or a positive energy, frequency or wavenumber)",
+                _describe(value),
+            )
         try:
             if spectral:
                 magnitude = np.asarray(value.to(target, "sp").magnitude, dtype=float)
             else:
                 magnitude = np.asarray(value.m_as(target), dtype=float)
         except pint.DimensionalityError as exc:
-            accepted = (f"{units} or as a photon energy, frequency or wavenumber"
-                        if argument in SPECTRAL else units)
-            raise UnitError(argument, accepted, f"{value} ({value.dimensionality})",
-                            plain=units) from exc
+            accepted = (
+                f"{units} or as a photon energy, frequency or wavenumber"
+                if argument in SPECTRAL
+                else units
+            )
+            raise UnitError(
+                argument, accepted, f"{value} ({value.dimensionality})", plain=units
+            ) from exc
         except (pint.PintError, ValueError, TypeError) as exc:
             # e.g. a quantity from another UnitRegistry: say so, with pint's reason
-            raise UnitError(argument, f"{units} (a quantity of matprops.ureg, pint's "
-                            f"application registry)", f"{value!r}: {exc}", plain=units) from exc
+            raise UnitError(
+                argument,
+                f"{units} (a quantity of matprops.ureg, pint's application registry)",
+                f"{value!r}: {exc}",
+                plain=units,
+            ) from exc
     else:
         array = _real_array(value, argument, units)
         try:
@@ -203,11 +230,19 @@ def _real_array(value, argument: str, units: str) -> np.ndarray:
     except (TypeError, ValueError) as exc:  # e.g. a ragged nested list
         raise UnitError(argument, units, value) from exc
     if array.dtype.kind == "b":
-        raise UnitError(argument, units, value, description=f"a boolean {_brief(value)} "
-                        "(True and False are not numbers here)")
+        raise UnitError(
+            argument,
+            units,
+            value,
+            description=f"a boolean {_brief(value)} (True and False are not numbers here)",
+        )
     if array.dtype.kind == "c":
-        raise UnitError(argument, units, value, description=f"a complex {_brief(value)} "
-                        "(only real numbers are accepted)")
+        raise UnitError(
+            argument,
+            units,
+            value,
+            description=f"a complex {_brief(value)} (only real numbers are accepted)",
+        )
     if array.dtype.kind == "O" and any(v is None for v in array.flat):
         raise UnitError(argument, units, value)  # not "received array(nan)"
     return array
@@ -216,21 +251,30 @@ def _real_array(value, argument: str, units: str) -> np.ndarray:
 def _from_sequence(values, argument: str, units: str):
     """A list of quantities -> one quantity in the first one's units."""
     if not all(isinstance(v, pint.Quantity) for v in values):
-        raise UnitError(argument, units, values, description=f"a list that mixes plain "
-                        f"numbers and quantities {_brief(values)}: give every value units, "
-                        "or none")
+        raise UnitError(
+            argument,
+            units,
+            values,
+            description=f"a list that mixes plain "
+            f"numbers and quantities {_brief(values)}: give every value units, "
+            "or none",
+        )
     first = values[0].units
     magnitudes = []
     for item in values:
         try:
             magnitudes.append(item.m_as(first))
         except pint.DimensionalityError as exc:
-            raise UnitError(argument, units, item,
-                            description=f"{item} ({item.dimensionality})") from exc
+            raise UnitError(
+                argument, units, item, description=f"{item} ({item.dimensionality})"
+            ) from exc
         except (pint.PintError, ValueError, TypeError) as exc:
-            raise UnitError(argument, f"{units} (quantities of matprops.ureg, pint's "
-                            "application registry)", values,
-                            description=f"{item!r}: {exc}") from exc
+            raise UnitError(
+                argument,
+                f"{units} (quantities of matprops.ureg, pint's application registry)",
+                values,
+                description=f"{item!r}: {exc}",
+            ) from exc
     return _Q(np.asarray(magnitudes), first)
 
 
@@ -243,12 +287,14 @@ def _brief(value) -> str:
 
 def _refuse_masked(value, argument: str, units: str) -> None:
     if isinstance(value, np.ma.MaskedArray):
-        raise InputError(argument, f"a plain array or quantity in {units}, not a masked "
-                         "array (its masked slots hold arbitrary fill values): evaluate "
-                         "a.compressed() and put the mask back with "
-                         "numpy.ma.masked_array(result, a.mask)",
-                         f"a masked array with {np.ma.count_masked(value)} of "
-                         f"{value.size} values masked")
+        raise InputError(
+            argument,
+            f"a plain array or quantity in {units}, not a masked "
+            "array (its masked slots hold arbitrary fill values): evaluate "
+            "a.compressed() and put the mask back with "
+            "numpy.ma.masked_array(result, a.mask)",
+            f"a masked array with {np.ma.count_masked(value)} of {value.size} values masked",
+        )
 
 
 def names(value, argument: str = "quantities") -> list[str]:
@@ -281,21 +327,24 @@ def check_broadcast(**arrays) -> tuple[int, ...]:
             shape = np.broadcast_shapes(shape, np.shape(array))
         except ValueError:
             others = " and ".join(f"{n!r} of shape {s}" for n, s in seen if s)
-            raise InputError(name, f"an array whose shape broadcasts (numpy rules) with "
-                             f"{others}", f"shape {np.shape(array)}") from None
+            raise InputError(
+                name,
+                f"an array whose shape broadcasts (numpy rules) with {others}",
+                f"shape {np.shape(array)}",
+            ) from None
         seen.append((name, np.shape(array)))
     return shape
 
 
-def check_values(magnitude: np.ndarray, argument: str, units: str,
-                 requirement) -> tuple[float, float]:
+def check_values(
+    magnitude: np.ndarray, argument: str, units: str, requirement
+) -> tuple[float, float]:
     """Raise InputError for NaN, infinities, and values breaking ``requirement``."""
     if magnitude.size == 0:
         return np.inf, -np.inf
     low, high = extremes(magnitude)
     if not (np.isfinite(low) and np.isfinite(high)):  # NaN propagates into min/max
-        raise InputError(argument, f"finite numbers in {units}",
-                         _describe(magnitude))
+        raise InputError(argument, f"finite numbers in {units}", _describe(magnitude))
     if requirement == "positive" and low <= 0:
         raise InputError(argument, f"> 0 {units}", f"{low:g} {units}")
     if requirement == "non-negative" and low < 0:
@@ -315,7 +364,7 @@ def extremes(array: np.ndarray) -> tuple[float, float]:
     flat = array.reshape(-1)
     low, high = np.inf, -np.inf
     for start in range(0, flat.size, _EXTREMES_BLOCK):
-        block = flat[start:start + _EXTREMES_BLOCK]
+        block = flat[start : start + _EXTREMES_BLOCK]
         block_low, block_high = float(block.min()), float(block.max())
         if math.isnan(block_low):  # NaN (Python's min would drop it)
             return np.nan, np.nan
@@ -331,10 +380,15 @@ def quantity(magnitude, units: str):
     return registry.Quantity(magnitude, _unit_of(registry, units)._units)
 
 
-
-_CF_SYMBOLS = {"ohm": "ohm", "degree_Celsius": "degC", "degree_Fahrenheit": "degF",
-               "percent": "%", "micrometer": "um", "microsecond": "us",
-               "dimensionless": "1"}
+_CF_SYMBOLS = {
+    "ohm": "ohm",
+    "degree_Celsius": "degC",
+    "degree_Fahrenheit": "degF",
+    "percent": "%",
+    "micrometer": "um",
+    "microsecond": "us",
+    "dimensionless": "1",
+}
 
 
 @cache

@@ -4,7 +4,7 @@ import warnings
 import pytest
 
 import matprops
-from matprops.catalog import Catalog, datasets_root
+from matprops.catalogue.store import Catalog, datasets_root
 
 
 @pytest.fixture(scope="session")

@@ -5,7 +5,7 @@ import re
 import pytest
 
 import matprops
-from matprops.catalog import Catalog, default_catalog
+from matprops.catalogue.store import Catalog, default_catalog
 
 
 def all_models():
@@ -19,8 +19,9 @@ def test_every_model_file_loads_with_source_and_origin(quantity, model_id):
     record = model.provenance()
     assert record["source"]["authors"] and record["source"]["year"] > 1900
     source = record["source"]
-    assert source["title"] and (source["journal"] if source["type"] == "article"
-                                else source["publisher"])
+    assert source["title"] and (
+        source["journal"] if source["type"] == "article" else source["publisher"]
+    )
     assert len(record["obtained"]) > 40  # says how the numbers were obtained
     assert record["sha256"]
     assert model_id in repr(model)
@@ -70,9 +71,18 @@ def test_obtained_fields_are_traceable():
     for quantity, model_id in all_models():
         obtained = catalog.model(quantity, model_id).obtained.lower()
         assert "public source code" not in obtained
-        assert any(word in obtained for word in ("recalled", "read in", "transcribed",
-                                                 "tabulated values", "no coefficients",
-                                                 "combination", "abstract")), model_id
+        assert any(
+            word in obtained
+            for word in (
+                "recalled",
+                "read in",
+                "transcribed",
+                "tabulated values",
+                "no coefficients",
+                "combination",
+                "abstract",
+            )
+        ), model_id
 
 
 def test_model_as_xarray_dataset(si):
@@ -86,8 +96,9 @@ def test_kernel_door_is_plain_numpy(si):
 
     kernel = si.kernel("intrinsic_density")
     t = np.linspace(250, 350, 5)
-    np.testing.assert_allclose(kernel(temperature=t), si.intrinsic_density(t).m_as("cm^-3"),
-                               rtol=1e-15)
+    np.testing.assert_allclose(
+        kernel(temperature=t), si.intrinsic_density(t).m_as("cm^-3"), rtol=1e-15
+    )
 
 
 def _rewrite(root, relative, old, new):
@@ -99,7 +110,9 @@ def _rewrite(root, relative, old, new):
 def test_tampered_file_is_refused(datasets_copy):
     root, catalog = datasets_copy
     _rewrite(root, "models/band_gap/passler-2002.toml", "446", "447")
-    with pytest.raises(matprops.ChecksumError, match=r"passler-2002\.toml: sha256 .* does not match"):
+    with pytest.raises(
+        matprops.ChecksumError, match=r"passler-2002\.toml: sha256 .* does not match"
+    ):
         catalog.model("band_gap", "passler-2002")
 
 
@@ -111,17 +124,24 @@ def test_unlisted_file_is_refused(datasets_copy):
         catalog.model("band_gap", "extra-2020")
 
 
-@pytest.mark.parametrize("old, new, message", [
-    ('units = "eV/K"', 'units = "nm"', r"coefficients.alpha: units 'nm' have dimension"),
-    ('units = "eV/K"', 'units = "glorbs"', r"coefficients.alpha: units 'glorbs' do not parse"),
-    ('doi = "10.1149/1.2134410"\n', "", r"missing required field 'source.doi'"),
-    ('obtained = """', 'notes2 = """', r"unknown field 'notes2'"),
-    ("beta = { value = 636", "gamma = { value = 636", r"missing \['beta'\], unexpected \['gamma'\]"),
-    ('max = 1000', 'max = -1', r"validity.temperature: min must be below max"),
-    ('kernel = "band_gap.varshni"', 'kernel = "band_gap.nothing"', r"not a declared kernel"),
-    ('id = "thurmond-1975"', 'id = "Thurmond 1975"', r"field 'id' is 'Thurmond 1975'"),
-    ("[source]", "[source", r"not valid TOML"),
-])
+@pytest.mark.parametrize(
+    "old, new, message",
+    [
+        ('units = "eV/K"', 'units = "nm"', r"coefficients.alpha: units 'nm' have dimension"),
+        ('units = "eV/K"', 'units = "glorbs"', r"coefficients.alpha: units 'glorbs' do not parse"),
+        ('doi = "10.1149/1.2134410"\n', "", r"missing required field 'source.doi'"),
+        ('obtained = """', 'notes2 = """', r"unknown field 'notes2'"),
+        (
+            "beta = { value = 636",
+            "gamma = { value = 636",
+            r"missing \['beta'\], unexpected \['gamma'\]",
+        ),
+        ("max = 1000", "max = -1", r"validity.temperature: min must be below max"),
+        ('kernel = "band_gap.varshni"', 'kernel = "band_gap.nothing"', r"not a declared kernel"),
+        ('id = "thurmond-1975"', 'id = "Thurmond 1975"', r"field 'id' is 'Thurmond 1975'"),
+        ("[source]", "[source", r"not valid TOML"),
+    ],
+)
 def test_incomplete_or_wrong_file_names_file_and_field(datasets_copy, old, new, message):
     root, catalog = datasets_copy
     _rewrite(root, "models/band_gap/thurmond-1975.toml", old, new)
@@ -131,11 +151,19 @@ def test_incomplete_or_wrong_file_names_file_and_field(datasets_copy, old, new, 
     assert "thurmond-1975.toml" in str(info.value)
 
 
-@pytest.mark.parametrize("edit, message", [
-    (('[source]\n', '[source]\ntype = "thesis"\n'), r"source.type' must be one of article, book"),
-    (('journal = "Journal of the Electrochemical Society"\n', 'type = "book"\n'),
-     r"missing required field source.'publisher'"),
-])
+@pytest.mark.parametrize(
+    "edit, message",
+    [
+        (
+            ("[source]\n", '[source]\ntype = "thesis"\n'),
+            r"source.type' must be one of article, book",
+        ),
+        (
+            ('journal = "Journal of the Electrochemical Society"\n', 'type = "book"\n'),
+            r"missing required field source.'publisher'",
+        ),
+    ],
+)
 def test_source_type_is_checked(datasets_copy, edit, message):
     root, catalog = datasets_copy
     _rewrite(root, "models/band_gap/thurmond-1975.toml", *edit)
@@ -155,11 +183,14 @@ reason = "a test"
 """
 
 
-@pytest.mark.parametrize("by, points, message", [
-    ("wavelength", "[[900, 300], [800, 400]]", r"the wavelength values must increase"),
-    ("pressure", "[[900, 300], [1000, 400]]", r"the kernel has no input 'pressure'"),
-    ("wavelength", "[[900, 300]]", r"at least two"),
-])
+@pytest.mark.parametrize(
+    "by, points, message",
+    [
+        ("wavelength", "[[900, 300], [800, 400]]", r"the wavelength values must increase"),
+        ("pressure", "[[900, 300], [1000, 400]]", r"the kernel has no input 'pressure'"),
+        ("wavelength", "[[900, 300]]", r"at least two"),
+    ],
+)
 def test_validity_region_is_checked(datasets_copy, by, points, message):
     root, catalog = datasets_copy
     path = root / "models/absorption/rajkanan-1979.toml"
@@ -177,7 +208,7 @@ def test_missing_checksum_list_is_refused(datasets_copy):
 
 
 def test_catalog_command_verifies_everything(capsys):
-    from matprops.catalog import main
+    from matprops.catalogue.__main__ import main
 
     assert main([]) == 0
     out = capsys.readouterr().out
@@ -205,7 +236,7 @@ def test_model_dataset_refuses_a_tampered_table(datasets_copy):
 
 
 def _check(root, capsys):
-    from matprops.catalog import main
+    from matprops.catalogue.__main__ import main
 
     status = main(["--root", str(root)])
     return status, capsys.readouterr().out
@@ -231,15 +262,23 @@ def test_check_command_fails_on_a_missing_table(datasets_copy, capsys):
     assert len(_problems(out)) == 1  # once, though three models read it
 
 
-@pytest.mark.parametrize("relative, change, expected", [
-    ("scenarios/two-site-modules.toml", lambda t: t.replace("dawn = 12.0", "dawn = 13.0"),
-     "two-site-modules.toml: sha256"),
-    ("releases/2026.1.reference.json", lambda t: t.replace("1.", "2.", 1),
-     "2026.1.reference.json: sha256"),
-    ("models/band_gap/alex-1996.toml", lambda t: t + "\n", "alex-1996.toml: sha256"),
-])
-def test_check_command_covers_every_kind_of_file(datasets_copy, capsys, relative, change,
-                                                  expected):
+@pytest.mark.parametrize(
+    "relative, change, expected",
+    [
+        (
+            "scenarios/two-site-modules.toml",
+            lambda t: t.replace("dawn = 12.0", "dawn = 13.0"),
+            "two-site-modules.toml: sha256",
+        ),
+        (
+            "releases/2026.1.reference.json",
+            lambda t: t.replace("1.", "2.", 1),
+            "2026.1.reference.json: sha256",
+        ),
+        ("models/band_gap/alex-1996.toml", lambda t: t + "\n", "alex-1996.toml: sha256"),
+    ],
+)
+def test_check_command_covers_every_kind_of_file(datasets_copy, capsys, relative, change, expected):
     root, _ = datasets_copy
     path = root / relative
     path.write_text(change(path.read_text()))
@@ -249,8 +288,7 @@ def test_check_command_covers_every_kind_of_file(datasets_copy, capsys, relative
 
 def test_check_command_fails_on_unlisted_files_and_bad_references(datasets_copy, capsys):
     root, catalog = datasets_copy
-    _rewrite(root, "releases/2026.1.toml", 'band_gap = "passler-2002"',
-             'band_gap = "passler-2003"')
+    _rewrite(root, "releases/2026.1.toml", 'band_gap = "passler-2002"', 'band_gap = "passler-2003"')
     catalog.write_checksums()
     (root / "scenarios/extra.toml").write_text("name = 'extra'\n")
     status, out = _check(root, capsys)
@@ -289,49 +327,75 @@ def test_scenario_is_read_verified_and_checked(datasets_copy):
     _rewrite(root, "scenarios/two-site-modules.toml", "invented = 1", "invented = true")
     _rewrite(root, "scenarios/two-site-modules.toml", "dawn = 12.0", "dawn = nan")
     catalog.write_checksums()
-    with pytest.raises(matprops.DatasetError, match=r"field 'temperature.sites.hot-site.dawn'"
-                       r" must be a finite number"):
+    with pytest.raises(
+        matprops.DatasetError,
+        match=r"field 'temperature.sites.hot-site.dawn'"
+        r" must be a finite number",
+    ):
         catalog.scenario("two-site-modules")
 
 
 def test_model_catalogue_in_docs_is_generated_from_datasets():
-    # docs/models.md must be exactly what `python -m matprops.modeldocs` writes
+    # docs/models.md must be exactly what `python -m matprops.outputs.modeldocs` writes
     from pathlib import Path
 
-    from matprops.modeldocs import render
+    from matprops.outputs.modeldocs import render
 
     committed = Path(__file__).resolve().parent.parent / "docs" / "models.md"
-    assert committed.read_text() == render(), "regenerate: python -m matprops.modeldocs"
+    assert committed.read_text() == render(), "regenerate: python -m matprops.outputs.modeldocs"
 
 
 # ------------------------------------------------------------------ the strict schema
 
-@pytest.mark.parametrize("old, new, message", [
-    # unknown or misspelt keys, at every level (a misspelt validity section used to
-    # remove range checking without a word)
-    ('notes = "', 'note = "x"\nnotes = "', r"unknown field 'note' .*did you mean 'notes'\?"),
-    ("[validity.temperature]", "[validty.temperature]",
-     r"unknown field 'validty' .*did you mean 'validity'\?"),
-    ("max = 1000", "maks = 1000", r"unknown field 'validity.temperature.maks'"),
-    ('beta = { value = 636, units = "K" }', 'beta = { value = 636, unit = "K" }',
-     r"unknown field 'coefficients.beta.unit' .*did you mean 'units'\?"),
-    ("[source]", "[sauce]", r"unknown field 'sauce'"),
-    ('journal = "', 'jornal = "', r"unknown field 'source.jornal'"),
-    # numbers that are not finite: coefficient, limit, uncertainty, list entry
-    ("value = 636", "value = nan", r"field 'coefficients.beta.value' must be a finite number"),
-    ("max = 1000", "max = inf", r"field 'validity.temperature.max' must be a finite number"),
-    ("min = 0", "min = -inf", r"field 'validity.temperature.min' must be a finite number"),
-    ('value = 4.73e-4, units = "eV/K"', 'value = 4.73e-4, units = "eV/K", uncertainty = nan',
-     r"field 'coefficients.alpha.uncertainty' must be a finite number"),
-    ("value = 1.17,", "value = [1.17, nan],",
-     r"field 'coefficients.gap_at_zero.value\[1\]' must be a finite number"),
-    # wrong kinds of value
-    ("year = 1975", 'year = "1975"', r"field 'source.year' must be an integer"),
-    ('kind = "closed-form"', 'kind = "closed form"', r"field 'kind' must be one of"),
-    ("value = 636", 'value = "636"', r"field 'coefficients.beta.value' must be a finite number"),
-    ('authors = ["C. D. Thurmond"]', 'authors = "C. D. Thurmond"',
-     r"field 'source.authors' must be a list of text"),
-])
+
+@pytest.mark.parametrize(
+    "old, new, message",
+    [
+        # unknown or misspelt keys, at every level (a misspelt validity section used to
+        # remove range checking without a word)
+        ('notes = "', 'note = "x"\nnotes = "', r"unknown field 'note' .*did you mean 'notes'\?"),
+        (
+            "[validity.temperature]",
+            "[validty.temperature]",
+            r"unknown field 'validty' .*did you mean 'validity'\?",
+        ),
+        ("max = 1000", "maks = 1000", r"unknown field 'validity.temperature.maks'"),
+        (
+            'beta = { value = 636, units = "K" }',
+            'beta = { value = 636, unit = "K" }',
+            r"unknown field 'coefficients.beta.unit' .*did you mean 'units'\?",
+        ),
+        ("[source]", "[sauce]", r"unknown field 'sauce'"),
+        ('journal = "', 'jornal = "', r"unknown field 'source.jornal'"),
+        # numbers that are not finite: coefficient, limit, uncertainty, list entry
+        ("value = 636", "value = nan", r"field 'coefficients.beta.value' must be a finite number"),
+        ("max = 1000", "max = inf", r"field 'validity.temperature.max' must be a finite number"),
+        ("min = 0", "min = -inf", r"field 'validity.temperature.min' must be a finite number"),
+        (
+            'value = 4.73e-4, units = "eV/K"',
+            'value = 4.73e-4, units = "eV/K", uncertainty = nan',
+            r"field 'coefficients.alpha.uncertainty' must be a finite number",
+        ),
+        (
+            "value = 1.17,",
+            "value = [1.17, nan],",
+            r"field 'coefficients.gap_at_zero.value\[1\]' must be a finite number",
+        ),
+        # wrong kinds of value
+        ("year = 1975", 'year = "1975"', r"field 'source.year' must be an integer"),
+        ('kind = "closed-form"', 'kind = "closed form"', r"field 'kind' must be one of"),
+        (
+            "value = 636",
+            'value = "636"',
+            r"field 'coefficients.beta.value' must be a finite number",
+        ),
+        (
+            'authors = ["C. D. Thurmond"]',
+            'authors = "C. D. Thurmond"',
+            r"field 'source.authors' must be a list of text",
+        ),
+    ],
+)
 def test_model_file_schema(datasets_copy, old, new, message):
     root, catalog = datasets_copy
     path = _rewrite(root, "models/band_gap/thurmond-1975.toml", old, new)
@@ -349,19 +413,32 @@ def test_missing_required_field_is_named(datasets_copy):
     path = root / "models/band_gap/thurmond-1975.toml"
     path.write_text(re.sub(r'obtained = """.*?"""\n', "", path.read_text(), flags=re.DOTALL))
     catalog.write_checksums()
-    with pytest.raises(matprops.DatasetError, match=r"thurmond-1975.toml: missing required "
-                       r"field 'obtained'"):
+    with pytest.raises(
+        matprops.DatasetError,
+        match=r"thurmond-1975.toml: missing required "
+        r"field 'obtained'",
+    ):
         catalog.model("band_gap", "thurmond-1975")
 
 
-@pytest.mark.parametrize("old, new, message", [
-    ('status = "final"', 'status = "draft"\nstatuss = "draft"',
-     r"unknown field 'statuss' .*did you mean 'status'\?"),
-    ('date = "2026-12-02"\n', "", r"missing required field 'date'"),
-    ('status = "final"', 'status = "frozen"', r"field 'status' must be one of draft, final, got 'frozen'"),
-    ('band_gap = "passler-2002"', "band_gap = 2002", r"field 'models.band_gap' must be text"),
-    ('date = "2026-12-02"', 'date = "1 December"', r"field 'date' must be a date"),
-])
+@pytest.mark.parametrize(
+    "old, new, message",
+    [
+        (
+            'status = "final"',
+            'status = "draft"\nstatuss = "draft"',
+            r"unknown field 'statuss' .*did you mean 'status'\?",
+        ),
+        ('date = "2026-12-02"\n', "", r"missing required field 'date'"),
+        (
+            'status = "final"',
+            'status = "frozen"',
+            r"field 'status' must be one of draft, final, got 'frozen'",
+        ),
+        ('band_gap = "passler-2002"', "band_gap = 2002", r"field 'models.band_gap' must be text"),
+        ('date = "2026-12-02"', 'date = "1 December"', r"field 'date' must be a date"),
+    ],
+)
 def test_release_file_schema(datasets_copy, old, new, message):
     root, catalog = datasets_copy
     path = _rewrite(root, "releases/2026.1.toml", old, new)
@@ -375,7 +452,7 @@ def test_release_file_schema(datasets_copy, old, new, message):
 def test_schema_accepts_every_shipped_file():
     import tomllib
 
-    from matprops.schema import MODEL, RELEASE, validate
+    from matprops.catalogue.schema import MODEL, RELEASE, validate
 
     catalog = default_catalog()
     for path in sorted((catalog.root / "models").rglob("*.toml")):
@@ -386,25 +463,35 @@ def test_schema_accepts_every_shipped_file():
 
 # ------------------------------------------------------------------ where the data are
 
+
 def test_datasets_variable_pointing_nowhere_is_named(tmp_path, monkeypatch):
     # before: a bare IndexError from the empty list of releases
-    from matprops.catalog import datasets_root
+    from matprops.catalogue.store import datasets_root
 
     monkeypatch.setenv("MATPROPS_DATASETS", str(tmp_path / "nowhere"))
-    with pytest.raises(matprops.DatasetError, match=r"nowhere: datasets folder does not "
-                       r"exist; set MATPROPS_DATASETS .*\(MATPROPS_DATASETS='.*nowhere'\)"):
+    with pytest.raises(
+        matprops.DatasetError,
+        match=r"nowhere: datasets folder does not "
+        r"exist; set MATPROPS_DATASETS .*\(MATPROPS_DATASETS='.*nowhere'\)",
+    ):
         datasets_root()
     monkeypatch.chdir(tmp_path)
     monkeypatch.setenv("MATPROPS_DATASETS", "data")
-    with pytest.raises(matprops.DatasetError, match=r"MATPROPS_DATASETS='data', a relative "
-                       r"path resolved against the working folder"):
+    with pytest.raises(
+        matprops.DatasetError,
+        match=r"MATPROPS_DATASETS='data', a relative "
+        r"path resolved against the working folder",
+    ):
         datasets_root()
 
 
 def test_empty_datasets_folder_is_named(tmp_path, monkeypatch):
     monkeypatch.setenv("MATPROPS_DATASETS", str(tmp_path))
-    with pytest.raises(matprops.DatasetError, match=r"releases: folder is missing: .* \(set "
-                       r"by MATPROPS_DATASETS\) is not a matprops datasets folder"):
+    with pytest.raises(
+        matprops.DatasetError,
+        match=r"releases: folder is missing: .* \(set "
+        r"by MATPROPS_DATASETS\) is not a matprops datasets folder",
+    ):
         matprops.Silicon(catalog=Catalog())
     (tmp_path / "releases").mkdir()
     with pytest.raises(matprops.DatasetError, match=r"releases: no release file"):

@@ -11,7 +11,7 @@ import pandas as pd
 import pytest
 import xarray as xr
 
-from matprops.cli import _Progress, main, parse_grid
+from matprops.cli.main import _Progress, main, parse_grid
 
 
 def run(capsys, *argv):
@@ -28,8 +28,9 @@ def test_help(capsys):
 
 
 def test_table_with_celsius_and_a_space_before_a_negative_value(capsys):
-    code, out, err = run(capsys, "table", "band_gap", "intrinsic_density",
-                         "--temperature", "-40,25,85degC")
+    code, out, err = run(
+        capsys, "table", "band_gap", "intrinsic_density", "--temperature", "-40,25,85degC"
+    )
     assert code == 0, err
     assert "298.15" in out and "[degC]" in out and "couderc-2014" in out
     assert "-40" in out.splitlines()[4]  # echoed in the unit asked
@@ -37,15 +38,18 @@ def test_table_with_celsius_and_a_space_before_a_negative_value(capsys):
     assert code == 0 and "232.65" in out
 
 
-@pytest.mark.parametrize("text, kelvin", [
-    ("250:400:50 K", [250, 300, 350, 400]),
-    ("300", [300]),
-    ("1e3", [1000]),
-    ("3e2 K", [300]),
-    ("3E2K", [300]),
-    ("2.5e2,3e2", [250, 300]),
-    ("-40,25degC", [233.15, 298.15]),
-])
+@pytest.mark.parametrize(
+    "text, kelvin",
+    [
+        ("250:400:50 K", [250, 300, 350, 400]),
+        ("300", [300]),
+        ("1e3", [1000]),
+        ("3e2 K", [300]),
+        ("3E2K", [300]),
+        ("2.5e2,3e2", [250, 300]),
+        ("-40,25degC", [233.15, 298.15]),
+    ],
+)
 def test_grid_values(text, kelvin):
     values = parse_grid(text)
     magnitude = values.m_as("K") if hasattr(values, "m_as") else values
@@ -53,10 +57,14 @@ def test_grid_values(text, kelvin):
 
 
 def test_log_ranges_for_doping():
-    np.testing.assert_allclose(parse_grid("1e14:1e18:*10", "--acceptor-density", "cm^-3"),
-                               [1e14, 1e15, 1e16, 1e17, 1e18], rtol=1e-12)
-    np.testing.assert_allclose(parse_grid("1e15:1e16:2/decade", "--Na", "cm^-3"),
-                               [1e15, 10**15.5, 1e16], rtol=1e-12)
+    np.testing.assert_allclose(
+        parse_grid("1e14:1e18:*10", "--acceptor-density", "cm^-3"),
+        [1e14, 1e15, 1e16, 1e17, 1e18],
+        rtol=1e-12,
+    )
+    np.testing.assert_allclose(
+        parse_grid("1e15:1e16:2/decade", "--Na", "cm^-3"), [1e15, 10**15.5, 1e16], rtol=1e-12
+    )
     assert parse_grid("1e21 m^-3", "--Na", "cm^-3").m_as("cm^-3") == pytest.approx(1e15)
 
 
@@ -69,39 +77,44 @@ def one_line_error(code, err, fragment):
     assert fragment in lines[0], lines[0]
 
 
-@pytest.mark.parametrize("argv, fragment", [
-    (["table", "-t", "250:400"], "option --temperature must be numbers separated by commas"),
-    (["table", "-t", "400:250:10"], "stop is not below its start"),
-    (["table", "-t", "250:400:-5"], "step > 0"),
-    (["table", "-t", "1:1e12:1e-3"], "at most 1e+08 values"),
-    (["table", "-t", "abc"], "option --temperature"),
-    (["table", "-t", ""], "option --temperature"),
-    (["table", "-t", "nan"], "finite numbers"),
-    (["table", "-t", "300,inf K"], "finite numbers"),
-    (["table", "-t", "-inf"], "finite numbers"),
-    (["table", "-t", "300 m"], "option --temperature expects a quantity in K"),
-    (["table", "-t", "300 glorbs"], "option --temperature expects"),
-    (["table", "-t", "-400degC"], "option --temperature must be > 0 K"),
-    (["table", "absorption", "-t", "300", "-w", "300 K"], "option --wavelength expects"),
-    (["table", "-t", "300", "--Na", "-1e15"], "option --acceptor-density must be >= 0"),
-    (["table", "-t", "300", "--carrier", "positron"], "option --carrier must be one of"),
-    (["table", "bandgap", "-t", "300"], "Did you mean 'band_gap'"),
-    (["table", "absorption", "-t", "300"], "option --wavelength must be given for absorption"),
-    (["table", "-t", "300", "--model", "band_gap=passler-2003"], "Did you mean 'passler-2002'"),
-    (["table", "-t", "300", "--model", "band_gap"], "QUANTITY=MODEL_ID"),
-    (["table", "-t", "300", "--release", "2030.1"], "known: 2026.1"),
-    (["table", "-t", "300", "--format", "netcdf"], "option -o/--output must be a file name"),
-    (["compare", "band_gap", "-t", "300", "--models", "passler-2002,nobody-1900"],
-     "unknown model 'nobody-1900'"),
-    (["compare", "density", "-t", "300"], "with models to compare"),
-    (["plot", "band_gap", "-t", "250:300:10"], "option -o/--output must be a file name"),
-    (["describe", "band_gap", "passler-1900"], "unknown model 'passler-1900'"),
-    (["provenance", "bandgap"], "unknown quantity 'bandgap'"),
-    (["release-diff", "2026.1", "2031.1"], "unknown release '2031.1'"),
-    (["demo", "--scenario", "nowhere"], "option --scenario must be one of two-site-modules"),
-    (["table", "-t", "300", "--bogus"], "unrecognized arguments: --bogus"),
-    (["frobnicate"], "invalid choice: 'frobnicate'"),
-])
+@pytest.mark.parametrize(
+    "argv, fragment",
+    [
+        (["table", "-t", "250:400"], "option --temperature must be numbers separated by commas"),
+        (["table", "-t", "400:250:10"], "stop is not below its start"),
+        (["table", "-t", "250:400:-5"], "step > 0"),
+        (["table", "-t", "1:1e12:1e-3"], "at most 1e+08 values"),
+        (["table", "-t", "abc"], "option --temperature"),
+        (["table", "-t", ""], "option --temperature"),
+        (["table", "-t", "nan"], "finite numbers"),
+        (["table", "-t", "300,inf K"], "finite numbers"),
+        (["table", "-t", "-inf"], "finite numbers"),
+        (["table", "-t", "300 m"], "option --temperature expects a quantity in K"),
+        (["table", "-t", "300 glorbs"], "option --temperature expects"),
+        (["table", "-t", "-400degC"], "option --temperature must be > 0 K"),
+        (["table", "absorption", "-t", "300", "-w", "300 K"], "option --wavelength expects"),
+        (["table", "-t", "300", "--Na", "-1e15"], "option --acceptor-density must be >= 0"),
+        (["table", "-t", "300", "--carrier", "positron"], "option --carrier must be one of"),
+        (["table", "bandgap", "-t", "300"], "Did you mean 'band_gap'"),
+        (["table", "absorption", "-t", "300"], "option --wavelength must be given for absorption"),
+        (["table", "-t", "300", "--model", "band_gap=passler-2003"], "Did you mean 'passler-2002'"),
+        (["table", "-t", "300", "--model", "band_gap"], "QUANTITY=MODEL_ID"),
+        (["table", "-t", "300", "--release", "2030.1"], "known: 2026.1"),
+        (["table", "-t", "300", "--format", "netcdf"], "option -o/--output must be a file name"),
+        (
+            ["compare", "band_gap", "-t", "300", "--models", "passler-2002,nobody-1900"],
+            "unknown model 'nobody-1900'",
+        ),
+        (["compare", "density", "-t", "300"], "with models to compare"),
+        (["plot", "band_gap", "-t", "250:300:10"], "option -o/--output must be a file name"),
+        (["describe", "band_gap", "passler-1900"], "unknown model 'passler-1900'"),
+        (["provenance", "bandgap"], "unknown quantity 'bandgap'"),
+        (["release-diff", "2026.1", "2031.1"], "unknown release '2031.1'"),
+        (["demo", "--scenario", "nowhere"], "option --scenario must be one of two-site-modules"),
+        (["table", "-t", "300", "--bogus"], "unrecognized arguments: --bogus"),
+        (["frobnicate"], "invalid choice: 'frobnicate'"),
+    ],
+)
 def test_bad_input_is_one_line_with_exit_2(capsys, tmp_path, monkeypatch, argv, fragment):
     monkeypatch.chdir(tmp_path)
     try:
@@ -113,13 +126,16 @@ def test_bad_input_is_one_line_with_exit_2(capsys, tmp_path, monkeypatch, argv, 
     assert list(tmp_path.iterdir()) == []
 
 
-@pytest.mark.parametrize("output, extra, fragment", [
-    ("missing/t.csv", [], "must be a file in an existing folder"),
-    ("/sys/matprops-test.csv", [], "must be a file in a writable folder"),
-    ("t.csv", ["--format", "json"], "option --format must be csv for a file named *.csv"),
-    ("t.txt", [], "implied by the file extension"),
-    ("t.csv", ["--chunks", "10"], "option --chunks must be used with a netCDF output"),
-])
+@pytest.mark.parametrize(
+    "output, extra, fragment",
+    [
+        ("missing/t.csv", [], "must be a file in an existing folder"),
+        ("/sys/matprops-test.csv", [], "must be a file in a writable folder"),
+        ("t.csv", ["--format", "json"], "option --format must be csv for a file named *.csv"),
+        ("t.txt", [], "implied by the file extension"),
+        ("t.csv", ["--chunks", "10"], "option --chunks must be used with a netCDF output"),
+    ],
+)
 def test_bad_outputs_write_nothing(capsys, tmp_path, monkeypatch, output, extra, fragment):
     monkeypatch.chdir(tmp_path)
     code, _, err = run(capsys, "table", "band_gap", "-t", "300", "-o", output, *extra)
@@ -143,8 +159,9 @@ def test_existing_file_needs_force(capsys, tmp_path):
 
 def test_closed_pipe_is_one_line_without_traceback():
     code = "from matprops.cli import main; raise SystemExit(main(['models']))"
-    proc = subprocess.Popen([sys.executable, "-c", code], stdout=subprocess.PIPE,
-                            stderr=subprocess.PIPE)
+    proc = subprocess.Popen(
+        [sys.executable, "-c", code], stdout=subprocess.PIPE, stderr=subprocess.PIPE
+    )
     proc.stdout.read(10)
     proc.stdout.close()  # the reader goes away, like `matprops models | head -c 10`
     err = proc.stderr.read().decode()
@@ -157,8 +174,9 @@ def test_validity_warning_names_the_command_option(capsys):
     code, _, err = run(capsys, "table", "absorption", "-t", "300", "-w", "200,300")
     assert code == 0
     assert "(--model absorption=franta-2017)" in err and "models={" not in err
-    assert all(len(line) <= 100 or line.startswith("matprops: warning")
-               for line in err.splitlines())
+    assert all(
+        len(line) <= 100 or line.startswith("matprops: warning") for line in err.splitlines()
+    )
     code, _, err = run(capsys, "table", "band_gap", "-t", "700", "--strict")
     one_line_error(code, err, "outside its validity range 0-600 K")
 
@@ -195,8 +213,19 @@ def test_csv_and_json_on_stdout(capsys):
 
 
 def test_doping_and_carrier_axes_on_the_command_line(capsys):
-    code, out, err = run(capsys, "table", "free_carrier_absorption", "-w", "1550",
-                         "--n", "1e14:1e16:*10", "--p", "0", "--format", "csv")
+    code, out, err = run(
+        capsys,
+        "table",
+        "free_carrier_absorption",
+        "-w",
+        "1550",
+        "--n",
+        "1e14:1e16:*10",
+        "--p",
+        "0",
+        "--format",
+        "csv",
+    )
     assert code == 0, err
     frame = pd.read_csv(io.StringIO(out))
     assert list(frame["electron_density [cm-3]"]) == [1e14, 1e15, 1e16]
@@ -217,8 +246,14 @@ def test_provenance_is_readable_by_default_and_json_on_request(capsys):
 def test_describe_one_model(capsys):
     code, out, _ = run(capsys, "describe", "band_gap", "thurmond-1975")
     assert code == 0
-    for part in ("equation:", "coefficients", "validity:", "source:",
-                 "how the numbers were obtained:", "sha256:"):
+    for part in (
+        "equation:",
+        "coefficients",
+        "validity:",
+        "source:",
+        "how the numbers were obtained:",
+        "sha256:",
+    ):
         assert part in out
     assert "eV" in out and max(map(len, out.splitlines())) <= 100
     code, out, _ = run(capsys, "describe", "intrinsic_density")
@@ -226,12 +261,13 @@ def test_describe_one_model(capsys):
 
 
 def test_release_diff_command(capsys, datasets_copy, monkeypatch):
-    from matprops.catalog import default_catalog
+    from matprops.catalogue.store import default_catalog
 
     root, catalog = datasets_copy
     text = (root / "releases/2026.1.toml").read_text().replace('"2026.1"', '"2026.2"')
     (root / "releases/2026.2.toml").write_text(
-        text.replace('band_gap = "passler-2002"', 'band_gap = "alex-1996"'))
+        text.replace('band_gap = "passler-2002"', 'band_gap = "alex-1996"')
+    )
     catalog.write_checksums()
     monkeypatch.setenv("MATPROPS_DATASETS", str(root))
     default_catalog.cache_clear()
@@ -266,18 +302,29 @@ def test_demo_uses_the_invented_two_site_scenario(capsys, tmp_path):
 
 def test_demo_shows_doping_quantities_once_they_exist(capsys, monkeypatch):
     import matprops
-    from matprops.tables import QUANTITIES, Tabulated
+    from matprops.material.tables import QUANTITIES, Tabulated
 
     def fake(self, T, Na=0, Nd=0):  # a stand-in, NOT physics
         from matprops.units import quantity, to_magnitude
+
         t = to_magnitude(T, "temperature")
-        return quantity(t * 0 + 1e-20 * (to_magnitude(Na, "acceptor_density")
-                                         + to_magnitude(Nd, "donor_density")), "eV")
+        return quantity(
+            t * 0
+            + 1e-20 * (to_magnitude(Na, "acceptor_density") + to_magnitude(Nd, "donor_density")),
+            "eV",
+        )
 
     monkeypatch.setattr(matprops.Silicon, "gap_narrowing", fake, raising=False)
-    monkeypatch.setitem(QUANTITIES, "gap_narrowing", Tabulated(
-        "gap_narrowing", {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"},
-        (("gap_narrowing", "stand-in"),), needs=("band_gap",)))
+    monkeypatch.setitem(
+        QUANTITIES,
+        "gap_narrowing",
+        Tabulated(
+            "gap_narrowing",
+            {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"},
+            (("gap_narrowing", "stand-in"),),
+            needs=("band_gap",),
+        ),
+    )
     code, out, err = run(capsys, "demo", "--format", "csv")
     assert code == 0, err
     frame = pd.read_csv(io.StringIO(out))
@@ -309,18 +356,29 @@ def test_progress_bar_only_on_a_terminal():
 
 
 def test_modeldocs_help_writes_no_file(tmp_path):
-    out = subprocess.run([sys.executable, "-m", "matprops.modeldocs", "--help"],
-                         cwd=tmp_path, capture_output=True, text=True, check=False,
-                         env={**__import__("os").environ,
-                              "PYTHONPATH": str(__import__("pathlib").Path(__file__)
-                                                .resolve().parent.parent)})
+    out = subprocess.run(
+        [sys.executable, "-m", "matprops.outputs.modeldocs", "--help"],
+        cwd=tmp_path,
+        capture_output=True,
+        text=True,
+        check=False,
+        env={
+            **__import__("os").environ,
+            "PYTHONPATH": str(__import__("pathlib").Path(__file__).resolve().parent.parent),
+        },
+    )
     assert out.returncode == 0 and "docs/models.md" in out.stdout
     assert list(tmp_path.iterdir()) == []
 
 
 def test_listing_commands(capsys):
-    for argv in (["models"], ["models", "band_gap"], ["releases"], ["cite"],
-                 ["provenance", "density"]):
+    for argv in (
+        ["models"],
+        ["models", "band_gap"],
+        ["releases"],
+        ["cite"],
+        ["provenance", "density"],
+    ):
         assert main(argv) == 0
     out = capsys.readouterr().out
     assert "thurmond-1975" in out and "@article{passler-2002" in out
@@ -328,22 +386,31 @@ def test_listing_commands(capsys):
 
 def test_import_is_light():
     # xarray, netCDF4, dask, matplotlib and pint load on first use, not on import
-    code = ("import sys, matprops; heavy = [m for m in ('xarray', 'netCDF4', 'dask', "
-            "'matplotlib', 'pint', 'scipy') if m in sys.modules]; print(heavy)")
+    code = (
+        "import sys, matprops; heavy = [m for m in ('xarray', 'netCDF4', 'dask', "
+        "'matplotlib', 'pint', 'scipy') if m in sys.modules]; print(heavy)"
+    )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"
     # the analyst's modules too: plots, dask arrays and netCDF only when used (pint itself
     # imports the dask core package when it is installed)
-    code = ("import sys, matprops.tables, matprops.export, matprops.plotting, matprops.cli; "
-            "print([m for m in ('netCDF4', 'dask.array', 'distributed', 'matplotlib') "
-            "if m in sys.modules])")
+    code = (
+        "import sys, matprops.material.tables, matprops.outputs.export, "
+        "matprops.outputs.plotting, matprops.cli; "
+        "print([m for m in ('netCDF4', 'dask.array', 'distributed', 'matplotlib') "
+        "if m in sys.modules])"
+    )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"
 
 
 def test_optical_table(tmp_path, capsys):
-    assert main(["table", "absorption", "refractive_index", "-t", "25,85degC",
-                 "-w", "800:1100:100 nm"]) == 0
+    assert (
+        main(
+            ["table", "absorption", "refractive_index", "-t", "25,85degC", "-w", "800:1100:100 nm"]
+        )
+        == 0
+    )
     out = capsys.readouterr().out
     assert "absorption_" in out and "coefficient" in out and "green-2008-franta-2017" in out
     path = tmp_path / "optics.nc"
@@ -356,7 +423,7 @@ def test_optical_table(tmp_path, capsys):
 @pytest.fixture
 def datasets_env(datasets_copy, monkeypatch):
     """Point the command line at a private datasets folder (and back afterwards)."""
-    from matprops.catalog import default_catalog
+    from matprops.catalogue.store import default_catalog
 
     root, catalog = datasets_copy
     default_catalog.cache_clear()
@@ -365,11 +432,14 @@ def datasets_env(datasets_copy, monkeypatch):
     default_catalog.cache_clear()
 
 
-@pytest.mark.parametrize("case, fragment", [
-    ("missing", "datasets folder does not exist; set MATPROPS_DATASETS"),
-    ("no releases", "no release files"),
-    ("malformed release", "not valid TOML"),
-])
+@pytest.mark.parametrize(
+    "case, fragment",
+    [
+        ("missing", "datasets folder does not exist; set MATPROPS_DATASETS"),
+        ("no releases", "no release files"),
+        ("malformed release", "not valid TOML"),
+    ],
+)
 def test_unusable_datasets_folder_is_one_line(capsys, tmp_path, datasets_env, case, fragment):
     root, catalog, monkeypatch = datasets_env
     if case == "missing":

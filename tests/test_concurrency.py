@@ -14,7 +14,7 @@ import pytest
 COLD_THREADS = textwrap.dedent("""
     import sys, threading, warnings
     import matprops
-    from matprops.catalog import Catalog, datasets_root
+    from matprops.catalogue.store import Catalog, datasets_root
 
     rounds, count = int(sys.argv[1]), 16
     root = datasets_root()
@@ -55,8 +55,13 @@ COLD_THREADS = textwrap.dedent("""
 def test_sixteen_cold_threads_first_optical_call(process):
     # 2 processes x 16 rounds x 16 threads; unlocked, 9 of 10 such processes died
     # (segmentation fault, bus error) or returned wrong results before the fix
-    run = subprocess.run([sys.executable, "-c", COLD_THREADS, "16"], capture_output=True,
-                         text=True, timeout=120, check=False)
+    run = subprocess.run(
+        [sys.executable, "-c", COLD_THREADS, "16"],
+        capture_output=True,
+        text=True,
+        timeout=120,
+        check=False,
+    )
     assert run.returncode == 0, f"exit {run.returncode}: {run.stderr[-2000:]}"
     assert run.stdout.strip() == "rounds 16"
 

@@ -46,12 +46,15 @@ def test_atomic_density(si):
     assert si.atomic_density(300).m_as("cm^-3") == pytest.approx(4.99e22, rel=2e-3)
 
 
-@pytest.mark.parametrize("plane, atoms, bonds", [
-    # textbook areal densities of the unreconstructed surfaces: common practice
-    ("100", 6.78e14, 1.36e15),
-    ("110", 9.59e14, 9.59e14),
-    ("111", 7.83e14, 7.83e14),
-])
+@pytest.mark.parametrize(
+    "plane, atoms, bonds",
+    [
+        # textbook areal densities of the unreconstructed surfaces: common practice
+        ("100", 6.78e14, 1.36e15),
+        ("110", 9.59e14, 9.59e14),
+        ("111", 7.83e14, 7.83e14),
+    ],
+)
 def test_surface_densities(si, plane, atoms, bonds):
     assert si.surface_atom_density(plane, 300).m_as("cm^-2") == pytest.approx(atoms, rel=3e-3)
     assert si.dangling_bond_density(plane, 300).m_as("cm^-2") == pytest.approx(bonds, rel=3e-3)

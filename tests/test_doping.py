@@ -23,6 +23,7 @@ def with_narrowing(model_id):
 
 # ----------------------------------------------------------------- narrowing
 
+
 @pytest.mark.parametrize("model_id", APPARENT + ("schenk-1998",))
 def test_narrowing_is_about_a_tenth_of_an_ev_at_1e20(model_id):
     # common practice: heavily doped emitters (1e20 cm^-3) narrow the gap by roughly
@@ -101,11 +102,13 @@ def test_narrowing_outside_validity_warns_and_strict_raises():
     with pytest.warns(matprops.ValidityWarning, match=r"acceptor_density .*1e\+17"):
         si.gap_narrowing(300, Na=1e19)
     with pytest.raises(matprops.ValidityError):
-        matprops.silicon(models={"gap_narrowing": "delalamo-1985"},
-                         strict=True).gap_narrowing(300, Na=1e19)
+        matprops.silicon(models={"gap_narrowing": "delalamo-1985"}, strict=True).gap_narrowing(
+            300, Na=1e19
+        )
 
 
 # ----------------------------------------------------------------- ionisation
+
 
 def test_textbook_ionisation_energies():
     # Solymar & Walsh, Electrical Properties of Materials, Table 8.1, and Ahmed,
@@ -127,8 +130,7 @@ def test_altermatt_level_falls_with_density_and_merges(si):
 
 def minimum_ionised_fraction(si, species):
     N = np.logspace(16, 20, 161)
-    kwargs = ({"Nd": N, "donor": species} if species != "boron"
-              else {"Na": N, "acceptor": species})
+    kwargs = {"Nd": N, "donor": species} if species != "boron" else {"Na": N, "acceptor": species}
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         state = si.equilibrium(300, **kwargs)
@@ -154,8 +156,11 @@ def test_minimum_ionised_fraction_at_300K(species, published):
     assert minimum_ionised_fraction(si, species) == pytest.approx(published, abs=0.02)
 
 
-@pytest.mark.xfail(strict=True, reason="the recalled arsenic parameters of altermatt-2006 "
-                   "give 0.69 against the published 0.66: they are doubtful (see the file)")
+@pytest.mark.xfail(
+    strict=True,
+    reason="the recalled arsenic parameters of altermatt-2006 "
+    "give 0.69 against the published 0.66: they are doubtful (see the file)",
+)
 def test_minimum_ionised_fraction_arsenic():
     # Altermatt et al. 2006, J. Appl. Phys. 100, 113715, Fig. 5 (via the nextnano3 tutorial)
     si = matprops.silicon(models=GREEN_DOS)
@@ -173,6 +178,7 @@ def test_unknown_or_wrong_kind_of_dopant_lists_the_valid_ones(si):
 
 # ----------------------------------------------------------------- equilibrium
 
+
 def test_boltzmann_low_doping_limits(si):
     # common practice (textbook, Boltzmann statistics, complete ionisation): n0 = Nd,
     # p0 = ni^2/Nd, and the Fermi level lies kT ln(Nd/ni) above the intrinsic level.
@@ -187,12 +193,10 @@ def test_boltzmann_low_doping_limits(si):
     assert state.p.m_as("cm^-3") == pytest.approx(ni_eff**2 / N, rel=2e-4)
     shift = state.conduction_edge_shift.m_as("eV")
     assert 0 <= shift < 1e-3
-    assert state.fermi_level.m_as("eV") == pytest.approx(K_B * T * np.log(N / ni) - shift,
-                                                         abs=1e-5)
+    assert state.fermi_level.m_as("eV") == pytest.approx(K_B * T * np.log(N / ni) - shift, abs=1e-5)
     p_type = si.equilibrium(T, Na=N, statistics="boltzmann")
     assert p_type.p.m_as("cm^-3") == pytest.approx(N, rel=1e-4)
-    assert p_type.fermi_level.m_as("eV") == pytest.approx(-K_B * T * np.log(N / ni),
-                                                          abs=1e-3)
+    assert p_type.fermi_level.m_as("eV") == pytest.approx(-K_B * T * np.log(N / ni), abs=1e-3)
 
 
 def test_undoped_equilibrium_reproduces_the_release_intrinsic_density(si):
@@ -214,7 +218,8 @@ def test_compensated_and_undoped_material_are_solved(si):
     n, p = state.n.m_as("cm^-3"), state.p.m_as("cm^-3")
     assert 0.5 < n / p < 2  # fully compensated: close to intrinsic
     assert si.equilibrium(300).n.m_as("cm^-3") == pytest.approx(
-        si.intrinsic_density(300).m_as("cm^-3"), rel=0.02)
+        si.intrinsic_density(300).m_as("cm^-3"), rel=0.02
+    )
 
 
 def test_freeze_out_at_cryogenic_temperature():
@@ -303,8 +308,7 @@ def test_narrowing_non_decreasing_and_ni_eff_at_least_ni(T, N):
 
 
 @settings(max_examples=30, deadline=None)
-@given(temperatures, st.floats(min_value=1e13, max_value=1e17),
-       st.sampled_from(APPARENT))
+@given(temperatures, st.floats(min_value=1e13, max_value=1e17), st.sampled_from(APPARENT))
 def test_mass_action_in_the_boltzmann_limit(T, N, model_id):
     # n0 p0 = ni_eff^2 under Boltzmann statistics (any doping, incomplete ionisation or not)
     si = with_narrowing(model_id)
@@ -312,5 +316,4 @@ def test_mass_action_in_the_boltzmann_limit(T, N, model_id):
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         state = si.equilibrium(T, Nd=N, statistics="boltzmann")
     product = (state.n * state.p).m_as("cm^-6")
-    assert product == pytest.approx(state.effective_intrinsic_density.m_as("cm^-3") ** 2,
-                                    rel=1e-9)
+    assert product == pytest.approx(state.effective_intrinsic_density.m_as("cm^-3") ** 2, rel=1e-9)

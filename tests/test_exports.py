@@ -29,8 +29,25 @@ from matprops import export
 # UDUNITS units: space-separated products of symbols with optional integer powers
 # ("cm-3", "cm2 V-1 s-1", "g cm-3"); "1" for dimensionless. "^", "*", "/" and "**"
 # are pint's grammar, not UDUNITS' canonical form.
-UDUNITS_SYMBOLS = {"K", "degC", "eV", "cm", "nm", "um", "m", "g", "kg", "mol", "s", "V",
-                   "A", "ohm", "W", "J", "%"}
+UDUNITS_SYMBOLS = {
+    "K",
+    "degC",
+    "eV",
+    "cm",
+    "nm",
+    "um",
+    "m",
+    "g",
+    "kg",
+    "mol",
+    "s",
+    "V",
+    "A",
+    "ohm",
+    "W",
+    "J",
+    "%",
+}
 UDUNITS_TOKEN = re.compile(r"^([A-Za-z%]+)(-?\d+)?$")
 
 
@@ -39,7 +56,8 @@ def udunits_ok(text):
         return True
     tokens = text.split()
     return bool(tokens) and all(
-        (m := UDUNITS_TOKEN.match(t)) and m.group(1) in UDUNITS_SYMBOLS for t in tokens)
+        (m := UDUNITS_TOKEN.match(t)) and m.group(1) in UDUNITS_SYMBOLS for t in tokens
+    )
 
 
 def cf_problems(path):
@@ -62,8 +80,10 @@ def cf_problems(path):
                 units = vattrs.get("units")
                 if units is None or not udunits_ok(str(units)):
                     problems.append(f"{name}: units {units!r} not UDUNITS")
-            if units_of_temperature(vattrs) and vattrs.get("units_metadata") != \
-                    "temperature: on_scale":
+            if (
+                units_of_temperature(vattrs)
+                and vattrs.get("units_metadata") != "temperature: on_scale"
+            ):
                 problems.append(f"{name}: temperature without units_metadata on_scale")
             for forbidden in ("valid_min", "valid_max", "valid_range"):
                 if forbidden in vattrs:
@@ -81,8 +101,10 @@ def units_of_temperature(vattrs):
 
 
 def test_cf_checker_catches_what_it_should(tmp_path):
-    bad = xr.Dataset({"x": ("t", [1.0, 2.0], {"units": "cm^-3", "valid_min": 0.0})},
-                     coords={"t": ("t", [1.0, 2.0], {"units": "K"})})
+    bad = xr.Dataset(
+        {"x": ("t", [1.0, 2.0], {"units": "cm^-3", "valid_min": 0.0})},
+        coords={"t": ("t", [1.0, 2.0], {"units": "K"})},
+    )
     bad.to_netcdf(tmp_path / "bad.nc")
     problems = cf_problems(tmp_path / "bad.nc")
     assert any("Conventions" in p for p in problems)
@@ -93,9 +115,11 @@ def test_cf_checker_catches_what_it_should(tmp_path):
 
 
 def test_netcdf_passes_the_cf_check(si, tmp_path):
-    data = si.table(["band_gap", "intrinsic_density", "absorption", "permittivity",
-                     "density"], T=matprops.Q_([-40, 25, 85], "degC"),
-                    wavelength=[500.0, 1000.0])
+    data = si.table(
+        ["band_gap", "intrinsic_density", "absorption", "permittivity", "density"],
+        T=matprops.Q_([-40, 25, 85], "degC"),
+        wavelength=[500.0, 1000.0],
+    )
     path = tmp_path / "t.nc"
     export.write(data, path, command="matprops table -t -40,25,85degC")
     assert cf_problems(path) == []
@@ -115,19 +139,29 @@ def test_comparison_netcdf_passes_the_cf_check(si, tmp_path):
 
 
 def test_csv_opens_in_pandas_with_default_arguments(si, tmp_path):
-    data = si.table(["band_gap", "absorption"], T=matprops.Q_([25, 85], "degC"),
-                    wavelength=[500.0, 800.0, 1000.0])
+    data = si.table(
+        ["band_gap", "absorption"],
+        T=matprops.Q_([25, 85], "degC"),
+        wavelength=[500.0, 800.0, 1000.0],
+    )
     path = tmp_path / "t.csv"
     written = export.write(data, path)
     assert written == [path, tmp_path / "t.provenance.json"]
     frame = pd.read_csv(path)
-    assert list(frame.columns) == ["temperature [degC]", "temperature [K]",
-                                   "wavelength [nm]", "band_gap [eV]",
-                                   "absorption_coefficient [cm-1]"]
+    assert list(frame.columns) == [
+        "temperature [degC]",
+        "temperature [K]",
+        "wavelength [nm]",
+        "band_gap [eV]",
+        "absorption_coefficient [cm-1]",
+    ]
     assert len(frame) == 6
     np.testing.assert_allclose(frame["temperature [degC]"], [25, 25, 25, 85, 85, 85])
-    np.testing.assert_allclose(frame["absorption_coefficient [cm-1]"],
-                               data.absorption_coefficient.values.ravel(), rtol=1e-9)
+    np.testing.assert_allclose(
+        frame["absorption_coefficient [cm-1]"],
+        data.absorption_coefficient.values.ravel(),
+        rtol=1e-9,
+    )
     provenance = json.loads((tmp_path / "t.provenance.json").read_text())
     assert provenance["describes"] == "t.csv"
     record = provenance["data_vars"]["absorption_coefficient"]["attrs"]["provenance"]
@@ -141,8 +175,11 @@ def test_wide_csv_has_one_row_per_temperature(si, tmp_path):
     frame = pd.read_csv(path)
     assert len(frame) == 2
     assert "absorption_coefficient [cm-1] at wavelength=800 nm" in frame.columns
-    np.testing.assert_allclose(frame["absorption_coefficient [cm-1] at wavelength=800 nm"],
-                               data.absorption_coefficient.values[:, 1], rtol=1e-9)
+    np.testing.assert_allclose(
+        frame["absorption_coefficient [cm-1] at wavelength=800 nm"],
+        data.absorption_coefficient.values[:, 1],
+        rtol=1e-9,
+    )
     np.testing.assert_allclose(frame["band_gap [eV]"], data.band_gap.values, rtol=1e-9)
 
 
@@ -167,7 +204,8 @@ def test_json_provenance_is_an_object_and_nan_is_null(si, tmp_path):
     assert variable["data"][0][0] is None
     back = xr.Dataset.from_dict(document)
     assert back.absorption_coefficient.values[0, 1] == pytest.approx(
-        data.absorption_coefficient.values[0, 1])
+        data.absorption_coefficient.values[0, 1]
+    )
 
 
 def test_existing_files_are_refused_unless_overwrite(si, tmp_path):
@@ -185,19 +223,27 @@ def test_existing_files_are_refused_unless_overwrite(si, tmp_path):
     assert not (tmp_path / "c.csv").exists()
 
 
-@pytest.mark.parametrize("name, format, expected", [
-    ("T.CSV", None, "csv"), ("T.Nc", None, "netcdf"), ("t.json", "JSON", "json"),
-    ("t.dat", "csv", "csv"),
-])
+@pytest.mark.parametrize(
+    "name, format, expected",
+    [
+        ("T.CSV", None, "csv"),
+        ("T.Nc", None, "netcdf"),
+        ("t.json", "JSON", "json"),
+        ("t.dat", "csv", "csv"),
+    ],
+)
 def test_formats_from_extensions(name, format, expected):
     assert export.format_for(name, format) == expected
 
 
-@pytest.mark.parametrize("name, format, pattern", [
-    ("t.csv", "json", "'format' must be csv for a file named"),
-    ("t.txt", None, "implied by the file extension"),
-    ("t.nc", "xlsx", "one of netcdf, csv, json"),
-])
+@pytest.mark.parametrize(
+    "name, format, pattern",
+    [
+        ("t.csv", "json", "'format' must be csv for a file named"),
+        ("t.txt", None, "implied by the file extension"),
+        ("t.nc", "xlsx", "one of netcdf, csv, json"),
+    ],
+)
 def test_bad_formats(name, format, pattern):
     with pytest.raises(matprops.InputError, match=pattern):
         export.format_for(name, format)

@@ -13,13 +13,18 @@ import functools
 import numpy as np
 import pytest
 
-from matprops.catalog import default_catalog
+from matprops.catalogue.fields import convert as _convert
+from matprops.catalogue.fields import udunits_to_pint
+from matprops.catalogue.store import default_catalog
 from matprops.kernels._tables import Locator
-from matprops.modelfile import _convert, udunits_to_pint
 
 CATALOG = default_catalog()
-TABLE_MODELS = [(q, m) for q in ("absorption", "refractive_index")
-                for m in CATALOG.model_ids(q) if CATALOG.model(q, m).kind == "table"]
+TABLE_MODELS = [
+    (q, m)
+    for q in ("absorption", "refractive_index")
+    for m in CATALOG.model_ids(q)
+    if CATALOG.model(q, m).kind == "table"
+]
 
 
 def _definition(model):
@@ -30,8 +35,9 @@ def _definition(model):
     for argument, reference in function._arguments.items():
         table, _, variable = reference.rpartition(":")
         values, units = CATALOG.table_arrays(table or function._table)[variable]
-        arrays[argument] = _convert(model.path, argument, values, udunits_to_pint(units),
-                                    spec.coefficients[argument])
+        arrays[argument] = _convert(
+            model.path, argument, values, udunits_to_pint(units), spec.coefficients[argument]
+        )
     return functools.partial(model.kernel, **function._bound, **arrays), arrays
 
 
@@ -44,9 +50,17 @@ def test_prepared_table_equals_its_definition(quantity, model_id):
     lam = rng.uniform(200.0, 1500.0, 70_000)  # beyond both ends of every table
     t = rng.uniform(0.0, 520.0, 70_000)
     grid = arrays["wavelength_grid"]
-    cases = [(lam, t), (lam[:300, None], t[None, :250]), (lam[None, :300], t[:250, None]),
-             (lam, 300.0), (lam, np.array([412.3])), (800.0, 300.0), (grid, 300.0),
-             (grid[:, None], np.array([10.0, 300.0, 500.0])), (lam[:40], t[:30, None, None])]
+    cases = [
+        (lam, t),
+        (lam[:300, None], t[None, :250]),
+        (lam[None, :300], t[:250, None]),
+        (lam, 300.0),
+        (lam, np.array([412.3])),
+        (800.0, 300.0),
+        (grid, 300.0),
+        (grid[:, None], np.array([10.0, 300.0, 500.0])),
+        (lam[:40], t[:30, None, None]),
+    ]
     series = arrays.get("temperature_grid", arrays.get("series_temperature_grid"))
     if series is not None:  # every node of both grids, at every tabulated temperature
         cases += [(grid[:, None], series[None, :]), (grid, series[:, None])]
@@ -64,26 +78,35 @@ def test_large_inputs_take_the_blocked_paths(si):
     definition, _ = _definition(model)
     rng = np.random.default_rng(3)
     lam, t = rng.uniform(300.0, 1150.0, 200_000), rng.uniform(250.0, 450.0, 200_000)
-    np.testing.assert_allclose(model(wavelength=lam, temperature=t), definition(lam, t),
-                               rtol=1e-12)
+    np.testing.assert_allclose(model(wavelength=lam, temperature=t), definition(lam, t), rtol=1e-12)
     lam, t = np.linspace(300.0, 1150.0, 400), np.linspace(250.0, 450.0, 400)
-    np.testing.assert_allclose(model(wavelength=lam[:, None], temperature=t),
-                               definition(lam[:, None], t), rtol=1e-12)
+    np.testing.assert_allclose(
+        model(wavelength=lam[:, None], temperature=t), definition(lam[:, None], t), rtol=1e-12
+    )
     out = np.empty((400, 400), dtype=np.float32)
     assert si.kernel("absorption")(lam[:, None], t, out=out) is out
     np.testing.assert_allclose(out, definition(lam[:, None], t), rtol=1e-6)
 
 
-@pytest.mark.parametrize("grid", [
-    np.linspace(250.0, 1450.0, 121),
-    np.array([1.0, 1.0 + 1e-10, 2.0, 2.0 + 1e-7, 5.0]),  # nearly coincident nodes
-    np.sort(np.random.default_rng(5).uniform(0.0, 1.0, 1000)),
-    np.array([0.0, 1.0]),
-])
+@pytest.mark.parametrize(
+    "grid",
+    [
+        np.linspace(250.0, 1450.0, 121),
+        np.array([1.0, 1.0 + 1e-10, 2.0, 2.0 + 1e-7, 5.0]),  # nearly coincident nodes
+        np.sort(np.random.default_rng(5).uniform(0.0, 1.0, 1000)),
+        np.array([0.0, 1.0]),
+    ],
+)
 def test_locator_is_searchsorted(grid):
     # the cell index without a binary search is exactly numpy's (common practice:
     # searchsorted(grid, x, "right") - 1, clipped to the grid's cells)
-    x = np.concatenate([np.random.default_rng(1).uniform(grid[0] - 1, grid[-1] + 1, 50_000),
-                        grid, np.nextafter(grid, np.inf), np.nextafter(grid, -np.inf)])
+    x = np.concatenate(
+        [
+            np.random.default_rng(1).uniform(grid[0] - 1, grid[-1] + 1, 50_000),
+            grid,
+            np.nextafter(grid, np.inf),
+            np.nextafter(grid, -np.inf),
+        ]
+    )
     expected = np.clip(np.searchsorted(grid, x, side="right") - 1, 0, grid.size - 2)
     np.testing.assert_array_equal(Locator(grid).locate(x), expected)

@@ -37,7 +37,7 @@ GSL = [  # eta, F_1/2, F_-1/2
 ]
 
 # Values from mpmath 1.4.1 (-Li_{j+1}(-e^eta), 32 digits), printed by
-# `python -m matprops.kernels._make_fermi_dirac --reference-table`: an independent
+# `python tools/make_fermi_dirac.py --reference-table`: an independent
 # arbitrary-precision library, at the segment edges of the module and far out.
 MPMATH = [  # eta, F_1/2, F_-1/2
     (-700.0, 9.8596765437597708567e-305, 9.8596765437597708567e-305),
@@ -88,8 +88,8 @@ def test_against_reference_values(table):
 def test_value_at_zero_is_dirichlet_eta():
     # F_j(0) = -Li_{j+1}(-1) = sum_k (-1)^(k+1) k^-(j+1) = (1 - 2^-j) zeta(j+1) (the
     # alternating zeta series; common practice); zeta from scipy.special.
-    assert fd_half(0.0) == pytest.approx((1 - 2 ** -0.5) * zeta(1.5), rel=CLAIM)
-    assert fd_minus_half(0.0) == pytest.approx((1 - 2 ** 0.5) * zeta(0.5), rel=CLAIM)
+    assert fd_half(0.0) == pytest.approx((1 - 2**-0.5) * zeta(1.5), rel=CLAIM)
+    assert fd_minus_half(0.0) == pytest.approx((1 - 2**0.5) * zeta(0.5), rel=CLAIM)
 
 
 def test_nondegenerate_side_equals_the_defining_series():
@@ -98,9 +98,8 @@ def test_nondegenerate_side_equals_the_defining_series():
     eta = np.linspace(-30.0, -0.7, 301)
     k = np.arange(1, 61)[:, None]
     terms = (-1.0) ** (k + 1) * np.exp(k * eta)
-    np.testing.assert_allclose(fd_half(eta), (terms / k ** 1.5).sum(axis=0), rtol=2 * CLAIM)
-    np.testing.assert_allclose(fd_minus_half(eta), (terms / k ** 0.5).sum(axis=0),
-                               rtol=2 * CLAIM)
+    np.testing.assert_allclose(fd_half(eta), (terms / k**1.5).sum(axis=0), rtol=2 * CLAIM)
+    np.testing.assert_allclose(fd_minus_half(eta), (terms / k**0.5).sum(axis=0), rtol=2 * CLAIM)
 
 
 def test_boltzmann_limit():
@@ -110,7 +109,7 @@ def test_boltzmann_limit():
     np.testing.assert_allclose(fd_half(eta), np.exp(eta), rtol=4e-16, atol=0)
     np.testing.assert_allclose(fd_minus_half(eta), np.exp(eta), rtol=4e-16, atol=0)
     assert fd_half(-np.inf) == 0.0 and fd_minus_half(-np.inf) == 0.0
-    assert fd_half(-800.0) == 0.0                  # below the smallest subnormal, like exp
+    assert fd_half(-800.0) == 0.0  # below the smallest subnormal, like exp
 
 
 def test_degenerate_limit():
@@ -118,27 +117,39 @@ def test_degenerate_limit():
     # with the Sommerfeld corrections 1 + pi^2/(8 eta^2) + 7 pi^4/(640 eta^4) and
     # 1 - pi^2/(24 eta^2) - 7 pi^4/(384 eta^4) (next terms < 1e-17 relative at eta >= 1e3).
     eta = np.geomspace(1e3, 1e200, 60)
-    s = eta ** -2.0
+    s = eta**-2.0
     leading_half = 4 / (3 * np.sqrt(np.pi)) * eta * np.sqrt(eta)
     leading_minus = 2 / np.sqrt(np.pi) * np.sqrt(eta)
-    np.testing.assert_allclose(fd_half(eta) / leading_half,
-                               1 + np.pi ** 2 / 8 * s + 7 * np.pi ** 4 / 640 * s ** 2,
-                               rtol=CLAIM, atol=0)
-    np.testing.assert_allclose(fd_minus_half(eta) / leading_minus,
-                               1 - np.pi ** 2 / 24 * s - 7 * np.pi ** 4 / 384 * s ** 2,
-                               rtol=CLAIM, atol=0)
+    np.testing.assert_allclose(
+        fd_half(eta) / leading_half,
+        1 + np.pi**2 / 8 * s + 7 * np.pi**4 / 640 * s**2,
+        rtol=CLAIM,
+        atol=0,
+    )
+    np.testing.assert_allclose(
+        fd_minus_half(eta) / leading_minus,
+        1 - np.pi**2 / 24 * s - 7 * np.pi**4 / 384 * s**2,
+        rtol=CLAIM,
+        atol=0,
+    )
     assert fd_half(np.inf) == np.inf and fd_minus_half(np.inf) == np.inf
-    assert np.isfinite(fd_half(1e205)) and fd_half(1e206) == np.inf   # overflows with the value
+    assert np.isfinite(fd_half(1e205)) and fd_half(1e206) == np.inf  # overflows with the value
 
 
 def test_minus_half_is_the_derivative_of_half():
     # dF_1/2/deta = F_-1/2 (differentiating under the integral; common practice).  Fourth-
     # order central differences, step 1e-3: truncation and rounding both below 1e-11.
-    eta = np.concatenate([np.linspace(-40.0, 40.0, 801), np.array([0, 2, 5, 10, 20]) + 0.0003,
-                          np.geomspace(40.0, 1e5, 50)])
-    h = 1e-3 * np.maximum(1.0, eta)       # the scale on which F varies
-    derivative = (8 * (fd_half(eta + h) - fd_half(eta - h))
-                  - (fd_half(eta + 2 * h) - fd_half(eta - 2 * h))) / (12 * h)
+    eta = np.concatenate(
+        [
+            np.linspace(-40.0, 40.0, 801),
+            np.array([0, 2, 5, 10, 20]) + 0.0003,
+            np.geomspace(40.0, 1e5, 50),
+        ]
+    )
+    h = 1e-3 * np.maximum(1.0, eta)  # the scale on which F varies
+    derivative = (
+        8 * (fd_half(eta + h) - fd_half(eta - h)) - (fd_half(eta + 2 * h) - fd_half(eta - 2 * h))
+    ) / (12 * h)
     np.testing.assert_allclose(derivative, fd_minus_half(eta), rtol=1e-11)
 
 
@@ -170,7 +181,7 @@ def test_inverse_edges_and_bad_input():
         warnings.simplefilter("error")
         out = fd_half_inverse(np.array([0.0, -1.0, np.nan, np.inf, 5e-324, 1e308]))
     assert out[0] == -np.inf and np.isnan(out[1]) and np.isnan(out[2]) and out[3] == np.inf
-    assert out[4] == pytest.approx(np.log(5e-324), rel=1e-15)     # subnormal y: log y
+    assert out[4] == pytest.approx(np.log(5e-324), rel=1e-15)  # subnormal y: log y
     assert fd_half(out[5]) == pytest.approx(1e308, rel=1e-13)
 
 
@@ -198,10 +209,10 @@ def test_shapes_and_types():
     assert fd_half([[0.0, 1.0, 2.0]]).shape == (1, 3)
     assert fd_half(np.empty((0, 4))).shape == (0, 4)
     x32 = np.linspace(-5, 30, 7, dtype=np.float32)
-    assert fd_half(x32).dtype == np.float64                   # documented: float64 out
+    assert fd_half(x32).dtype == np.float64  # documented: float64 out
     np.testing.assert_array_equal(fd_half(x32), fd_half(x32.astype(np.float64)))
     grid = np.linspace(-50.0, 60.0, 120).reshape(10, 12)
-    np.testing.assert_array_equal(fd_half(grid.T), fd_half(grid).T)   # non-contiguous input
+    np.testing.assert_array_equal(fd_half(grid.T), fd_half(grid).T)  # non-contiguous input
 
 
 @pytest.mark.parametrize("function", [fd_half, fd_minus_half, fd_half_inverse])

@@ -7,7 +7,9 @@ import matprops
 
 
 def ni(model_id, t):
-    return matprops.silicon(models={"intrinsic_density": model_id}).intrinsic_density(t).m_as("cm^-3")
+    return (
+        matprops.silicon(models={"intrinsic_density": model_id}).intrinsic_density(t).m_as("cm^-3")
+    )
 
 
 def test_default_matches_altermatt_2003(si):

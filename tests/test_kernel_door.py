@@ -15,17 +15,24 @@ import numpy as np
 import pytest
 
 import matprops
-from matprops.catalog import default_catalog
+from matprops.catalogue.store import default_catalog
 from matprops.kernels._blocks import BLOCK
 
 CATALOG = default_catalog()
 
 # internal-unit values of every kernel input, inside the models' ranges
-POINTS = {"temperature": (250.0, 450.0), "donor_density": (1e15, 1e19),
-          "acceptor_density": (1e14, 1e18), "electron_density": (1e10, 1e19),
-          "hole_density": (1e3, 1e18), "equilibrium_electron_density": (1e14, 1e19),
-          "equilibrium_hole_density": (1e2, 1e18), "excess_density": (1e12, 1e17),
-          "wavelength": (1400.0, 2000.0), "dopant_density": (1e14, 1e19)}
+POINTS = {
+    "temperature": (250.0, 450.0),
+    "donor_density": (1e15, 1e19),
+    "acceptor_density": (1e14, 1e18),
+    "electron_density": (1e10, 1e19),
+    "hole_density": (1e3, 1e18),
+    "equilibrium_electron_density": (1e14, 1e19),
+    "equilibrium_hole_density": (1e2, 1e18),
+    "excess_density": (1e12, 1e17),
+    "wavelength": (1400.0, 2000.0),
+    "dopant_density": (1e14, 1e19),
+}
 
 
 def _grid(inputs, size=400, seed=0):
@@ -44,23 +51,35 @@ def _grid(inputs, size=400, seed=0):
 def _smooth_models():
     """Every model (and composition) with derivatives: (label, bound callable, inputs)."""
     cases = []
-    for quantity in ("band_gap", "densities_of_states", "intrinsic_density", "gap_narrowing",
-                     "radiative_coefficient", "intrinsic_lifetime"):
+    for quantity in (
+        "band_gap",
+        "densities_of_states",
+        "intrinsic_density",
+        "gap_narrowing",
+        "radiative_coefficient",
+        "intrinsic_lifetime",
+    ):
         for model_id in CATALOG.model_ids(quantity):
             si = matprops.silicon(models={quantity: model_id})
             cases.append((f"{quantity}/{model_id}", si.kernel(quantity)))
     for narrowing in CATALOG.model_ids("gap_narrowing"):
         si = matprops.silicon(models={"gap_narrowing": narrowing})
-        cases.append((f"effective_intrinsic_density with {narrowing}",
-                      si.kernel("effective_intrinsic_density")))
+        cases.append(
+            (
+                f"effective_intrinsic_density with {narrowing}",
+                si.kernel("effective_intrinsic_density"),
+            )
+        )
     for model_id in CATALOG.model_ids("mobility"):
         si = matprops.silicon(models={"mobility": model_id})
         model = si.model("mobility")
-        carriers = [c for c in ("electron", "hole")
-                    if model.variant_axis != "carrier" or c in model.variants]
+        carriers = [
+            c
+            for c in ("electron", "hole")
+            if model.variant_axis != "carrier" or c in model.variants
+        ]
         for carrier in carriers:
-            cases.append((f"mobility/{model_id}/{carrier}",
-                          si.kernel("mobility", carrier=carrier)))
+            cases.append((f"mobility/{model_id}/{carrier}", si.kernel("mobility", carrier=carrier)))
     return cases
 
 
@@ -68,6 +87,7 @@ SMOOTH = _smooth_models()
 
 
 # ----------------------------------------------------------------- self-description
+
 
 def test_kernels_describe_themselves(si):
     kernel = si.kernel("band_gap")
@@ -86,8 +106,7 @@ def test_units_that_differ_from_the_api_are_said_loudly(si):
     assert lattice.output_units == "cm" and lattice.api_units == "nm"
     assert "NOTE" in lattice.__doc__ and "NOTE" in repr(lattice)
     # regression check: the same number, 1e7 apart
-    assert lattice(300.0) * 1e7 == pytest.approx(si.lattice_constant(300.0).m_as("nm"),
-                                                 rel=1e-15)
+    assert lattice(300.0) * 1e7 == pytest.approx(si.lattice_constant(300.0).m_as("nm"), rel=1e-15)
     assert si.lattice_constant(300.0).units == matprops.ureg.nanometer
     # every other single-model kernel returns the units of its public method
     for name in ("band_gap", "intrinsic_density", "absorption", "radiative_coefficient"):
@@ -135,6 +154,7 @@ def test_check_validates_a_whole_mesh_once(si):
 
 # ----------------------------------------------------------------- blocks and dtype
 
+
 def test_large_inputs_are_blocked_into_one_output(si):
     # regression check: blocked and unblocked evaluation give the same numbers
     kernel = si.kernel("gap_narrowing")
@@ -172,6 +192,7 @@ def test_public_api_agrees_with_the_kernels_above_the_block_size(si):
 
 # ----------------------------------------------------------------- derivatives
 
+
 @pytest.mark.parametrize("label, kernel", SMOOTH, ids=[c[0] for c in SMOOTH])
 def test_derivatives_match_central_differences(label, kernel):
     # common practice: a central difference with relative step 1e-6 predicts the same
@@ -186,8 +207,9 @@ def test_derivatives_match_central_differences(label, kernel):
         step = 1e-6 * x
         up = kernel(**{**inputs, name: x + step})
         down = kernel(**{**inputs, name: x - step})
-        for analytic, high, low, v in zip(_parts(partials[name]), _parts(up), _parts(down),
-                                          _parts(value), strict=True):
+        for analytic, high, low, v in zip(
+            _parts(partials[name]), _parts(up), _parts(down), _parts(value), strict=True
+        ):
             central = (high - low) / (2.0 * step)
             scale = np.maximum(np.abs(v), 1e-6 if "eV" in str(kernel.output_units) else 0.0)
             error = np.abs(np.broadcast_to(analytic, central.shape) - central) * x / scale
@@ -206,11 +228,14 @@ def test_derivatives_of_the_lifetime_parts(si):
         np.testing.assert_array_equal(value, kernel(**inputs, part=part))
         x = inputs["equilibrium_electron_density"]
         up = kernel(**{**inputs, "equilibrium_electron_density": x * (1 + 1e-6)}, part=part)
-        down = kernel(**{**inputs, "equilibrium_electron_density": x * (1 - 1e-6)},
-                      part=part)
+        down = kernel(**{**inputs, "equilibrium_electron_density": x * (1 - 1e-6)}, part=part)
         central = (up - down) / (2e-6 * x)
-        np.testing.assert_allclose(partials["equilibrium_electron_density"] * x,
-                                   central * x, rtol=1e-6, atol=1e-7 * np.max(value))
+        np.testing.assert_allclose(
+            partials["equilibrium_electron_density"] * x,
+            central * x,
+            rtol=1e-6,
+            atol=1e-7 * np.max(value),
+        )
 
 
 def test_kernels_without_derivatives_say_so(si):
@@ -220,6 +245,7 @@ def test_kernels_without_derivatives_say_so(si):
 
 # ----------------------------------------------------------------- array API
 
+
 def _array_api_kernels():
     found = []
     for quantity in CATALOG.quantities():
@@ -227,8 +253,13 @@ def _array_api_kernels():
             model = CATALOG.model(quantity, model_id)
             if model.requires or model.kind == "table" or not model.inputs:
                 continue
-            found += [(f"{quantity}/{model_id}/{v}" if v else f"{quantity}/{model_id}",
-                       model.select(v) if v else model) for v in (model.variants or [None])]
+            found += [
+                (
+                    f"{quantity}/{model_id}/{v}" if v else f"{quantity}/{model_id}",
+                    model.select(v) if v else model,
+                )
+                for v in (model.variants or [None])
+            ]
     return found
 
 
@@ -240,10 +271,16 @@ def test_closed_form_kernels_take_any_array_api_array(label, model):
     # regression check: array_api_strict (the standard's reference namespace) gives the
     # numpy numbers, in its own array type; numpy-only kernels refuse it clearly
     xp = pytest.importorskip("array_api_strict")
-    values = {"electron_emission_density": (1e9, 1e11), "hole_emission_density": (1e9, 1e11),
-              "electron_capture_time": (1e-6, 1e-5), "hole_capture_time": (1e-6, 1e-5),
-              "field": (1e3, 1e5), "low_field_mobility": (400.0, 1400.0),
-              "saturation_velocity": (8e6, 1.1e7), "resistivity": (0.5, 50.0)}
+    values = {
+        "electron_emission_density": (1e9, 1e11),
+        "hole_emission_density": (1e9, 1e11),
+        "electron_capture_time": (1e-6, 1e-5),
+        "hole_capture_time": (1e-6, 1e-5),
+        "field": (1e3, 1e5),
+        "low_field_mobility": (400.0, 1400.0),
+        "saturation_velocity": (8e6, 1.1e7),
+        "resistivity": (0.5, 50.0),
+    }
     rng = np.random.default_rng(1)
     plain = {}
     for name in model.inputs:
@@ -273,10 +310,13 @@ def test_bound_kernels_take_array_api_arrays_or_refuse_them(si):
     assert type(gap).__module__.startswith("array_api_strict")
     _, partials = si.kernel("band_gap").derivatives(t)
     assert type(partials["temperature"]).__module__.startswith("array_api_strict")
-    ni_eff = si.kernel("effective_intrinsic_density")(t, xp.asarray([1e16] * 3),
-                                                      xp.asarray([0.0] * 3),
-                                                      xp.asarray([1e16] * 3),
-                                                      xp.asarray([1e4] * 3))
+    ni_eff = si.kernel("effective_intrinsic_density")(
+        t,
+        xp.asarray([1e16] * 3),
+        xp.asarray([0.0] * 3),
+        xp.asarray([1e16] * 3),
+        xp.asarray([1e4] * 3),
+    )
     assert type(ni_eff).__module__.startswith("array_api_strict")
     with pytest.raises(TypeError, match="numpy arrays only.*interpolates"):
         si.kernel("absorption")(xp.asarray([800.0]), t)
@@ -288,16 +328,20 @@ def test_bound_kernels_take_array_api_arrays_or_refuse_them(si):
 
 # ----------------------------------------------------------------- start-up
 
+
 def test_import_builds_no_registry_and_loads_nothing_heavy():
-    code = ("import sys, matprops, matprops.units as u, pint;"
-            "print(type(u.ureg.get()).__name__, [m for m in ('matplotlib', 'dask', "
-            "'netCDF4', 'xarray') if m in sys.modules])")
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                         check=True)
+    code = (
+        "import sys, matprops, matprops.units as u, pint;"
+        "print(type(u.ureg.get()).__name__, [m for m in ('matplotlib', 'dask', "
+        "'netCDF4', 'xarray') if m in sys.modules])"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.split()[0] == "LazyRegistry"  # pint has not parsed its definitions
-    code = "import sys, matprops; print([m for m in ('matplotlib', 'dask', 'netCDF4') if m in sys.modules])"
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                         check=True)
+    code = (
+        "import sys, matprops; "
+        "print([m for m in ('matplotlib', 'dask', 'netCDF4') if m in sys.modules])"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"
 
 
@@ -317,8 +361,7 @@ assert (second + mine.Quantity(1.0, "meV")).m_as("eV") > 1.12
 assert matprops.Q_(1.0, "K")._REGISTRY is mine
 print("ok")
 """
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                         check=False)
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=False)
     assert out.returncode == 0, out.stderr[-2000:]
     assert out.stdout.strip() == "ok"
 

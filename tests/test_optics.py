@@ -26,6 +26,7 @@ def quiet(function, *args):
 
 # ---------------------------------------------------------------- external checks
 
+
 def test_green_2008_against_schinke_2015():
     # Two independent measurements: Green 2008 (Sol. Energ. Mater. Sol. Cells 92, 1305;
     # 300 K) and Schinke et al. 2015 (AIP Advances 5, 067168; 295 K). Schinke et al.
@@ -67,7 +68,7 @@ def test_green_2008_table_matches_an_independent_copy():
     # printed alpha has three significant figures, so the two may differ by half a unit
     # of the third figure (0.5 %); n is printed to three decimals (half a unit: 0.0005).
     lam, alpha, n, _, _ = green_2008_copy()
-    table = matprops.catalog.default_catalog().table("green-2008.nc")
+    table = matprops.catalogue.store.default_catalog().table("green-2008.nc")
     np.testing.assert_array_equal(table.wavelength.values, lam)
     np.testing.assert_allclose(table.absorption_coefficient.values, alpha, rtol=0.005)
     np.testing.assert_allclose(table.refractive_index.values, n, rtol=0, atol=0.0005)
@@ -104,8 +105,11 @@ def test_refractive_index():
     # Schinke et al. 2015 (independent, 295 K): within 0.5 % of Green at 500-1400 nm
     lam = np.arange(500.0, 1401.0, 50.0)
     sch = matprops.silicon(models={"refractive_index": "schinke-2015"})
-    np.testing.assert_allclose(quiet(sch.refractive_index, lam, 300.0).m_as(""),
-                               si.refractive_index(lam, 300.0).m_as(""), rtol=0.005)
+    np.testing.assert_allclose(
+        quiet(sch.refractive_index, lam, 300.0).m_as(""),
+        si.refractive_index(lam, 300.0).m_as(""),
+        rtol=0.005,
+    )
     # thermo-optic coefficient near 1.4 um about 1.8e-4 /K at room temperature
     # (Frey, Leviton & Madison 2006, Proc. SPIE 6273, 62732J; from memory)
     dn = (si.refractive_index(1400, 310) - si.refractive_index(1400, 290)).m_as("") / 20
@@ -122,12 +126,16 @@ def test_free_carrier_default_coefficients_against_an_independent_copy():
     si = matprops.silicon()
     assert si.provenance("free_carrier_absorption")["model"] == "nedeljkovic-2011"
     density = np.array([1e17, 1e18, 1e19, 1e20])
-    for lam, a, b, c, d in ((1300, 3.48e-22, 1.229, 1.02e-19, 1.089),
-                            (1550, 8.88e-21, 1.167, 5.84e-20, 1.109)):
-        np.testing.assert_allclose(si.free_carrier_absorption(lam, n=density).m_as("1/cm"),
-                                   a * density**b, rtol=1e-10)
-        np.testing.assert_allclose(si.free_carrier_absorption(lam, p=density).m_as("1/cm"),
-                                   c * density**d, rtol=1e-10)
+    for lam, a, b, c, d in (
+        (1300, 3.48e-22, 1.229, 1.02e-19, 1.089),
+        (1550, 8.88e-21, 1.167, 5.84e-20, 1.109),
+    ):
+        np.testing.assert_allclose(
+            si.free_carrier_absorption(lam, n=density).m_as("1/cm"), a * density**b, rtol=1e-10
+        )
+        np.testing.assert_allclose(
+            si.free_carrier_absorption(lam, p=density).m_as("1/cm"), c * density**d, rtol=1e-10
+        )
 
 
 def test_free_carrier_default_is_superlinear_in_heavily_doped_silicon():
@@ -141,8 +149,9 @@ def test_free_carrier_default_is_superlinear_in_heavily_doped_silicon():
     linear = matprops.silicon(models={"free_carrier_absorption": "soref-1987"})
     for lam in (1300.0, 1550.0):
         for n in (1e19, 1e20):
-            assert si.free_carrier_absorption(lam, n=n) > \
-                quiet(linear.free_carrier_absorption, lam, n)
+            assert si.free_carrier_absorption(lam, n=n) > quiet(
+                linear.free_carrier_absorption, lam, n
+            )
     density = np.array([1e18, 1e19, 1e20])
     for kw in ("n", "p"):
         per_carrier = si.free_carrier_absorption(1550, **{kw: density}).m_as("1/cm") / density
@@ -171,9 +180,11 @@ def test_low_temperature_band_edge_is_a_validity_region():
     # At 10-200 K band-to-band absorption ends at shorter wavelengths than at 300 K; the
     # default's temperature series keeps a floor there. Those points must warn.
     si = matprops.silicon()
-    with pytest.warns(matprops.ValidityWarning,
-                      match=r"outside its validity region .* wavelength 1100 nm at "
-                            r"temperature 100 K, where the limit is 1045 nm"):
+    with pytest.warns(
+        matprops.ValidityWarning,
+        match=r"outside its validity region .* wavelength 1100 nm at "
+        r"temperature 100 K, where the limit is 1045 nm",
+    ):
         si.absorption(1100, 100)
     with pytest.raises(matprops.ValidityError, match="validity region"):
         matprops.silicon(strict=True).absorption([1000.0, 1150.0], [[10.0], [300.0]])
@@ -189,7 +200,7 @@ def test_region_limit_at_low_temperature_respects_the_phonon_threshold():
     # can be absorbed, so band-to-band absorption needs hv >= Eg(0) + the energy of the
     # weakest assisting phonon, the transverse acoustic one (about 18 meV in silicon);
     # with Eg(0) = 1.17 eV that is at most hc/(1.188 eV) = 1044 nm.
-    model = matprops.catalog.default_catalog().model("absorption", "green-2008-franta-2017")
+    model = matprops.catalogue.store.default_catalog().model("absorption", "green-2008-franta-2017")
     (region,) = model.regions
     limit_at_10K = float(region.bound_at(10.0))
     threshold = optics.wavelength(matprops.Q_(1.17 + 0.018, "eV")).m_as("nm")
@@ -201,11 +212,14 @@ def test_region_limit_at_low_temperature_respects_the_phonon_threshold():
 
 # ---------------------------------------------------------------- validity and errors
 
+
 def test_wavelength_outside_table_warns_names_fallback_and_gives_nan():
     si = matprops.silicon(models={"absorption": "green-2008"})
-    with pytest.warns(matprops.ValidityWarning,
-                      match=r"absorption/green-2008: wavelength 200 nm .* 250-1450 nm.*"
-                            r"NaN.*'franta-2017'"):
+    with pytest.warns(
+        matprops.ValidityWarning,
+        match=r"absorption/green-2008: wavelength 200 nm .* 250-1450 nm.*"
+        r"NaN.*'franta-2017'",
+    ):
         value = si.absorption(200, 300)
     assert np.isnan(value.m_as("1/cm"))
     with pytest.raises(matprops.ValidityError):
@@ -230,13 +244,20 @@ def test_energy_and_frequency_are_converted(si):
     np.testing.assert_allclose([by_ev, by_um, by_thz], by_nm, rtol=1e-6)
 
 
-@pytest.mark.parametrize("bad, error, pattern", [
-    (0, matprops.InputError, r"'wavelength' must be > 0 nm"),
-    (-5, matprops.InputError, r"'wavelength' must be > 0 nm"),
-    (matprops.Q_(-1, "eV"), matprops.InputError, r"'wavelength' must be > 0"),
-    (matprops.Q_(3, "s"), matprops.UnitError, r"'wavelength' expects a quantity in nm or as a photon energy"),
-    (matprops.Q_(3, "kg"), matprops.UnitError, r"'wavelength'"),
-])
+@pytest.mark.parametrize(
+    "bad, error, pattern",
+    [
+        (0, matprops.InputError, r"'wavelength' must be > 0 nm"),
+        (-5, matprops.InputError, r"'wavelength' must be > 0 nm"),
+        (matprops.Q_(-1, "eV"), matprops.InputError, r"'wavelength' must be > 0"),
+        (
+            matprops.Q_(3, "s"),
+            matprops.UnitError,
+            r"'wavelength' expects a quantity in nm or as a photon energy",
+        ),
+        (matprops.Q_(3, "kg"), matprops.UnitError, r"'wavelength'"),
+    ],
+)
 def test_bad_wavelengths(si, bad, error, pattern):
     with pytest.raises(error, match=pattern):
         si.absorption(bad, 300)
@@ -245,8 +266,9 @@ def test_bad_wavelengths(si, bad, error, pattern):
 def test_beer_lambert_tools():
     alpha = matprops.Q_(1e3, "1/cm")
     assert optics.absorption_depth(alpha).m_as("um") == pytest.approx(10.0)
-    assert optics.transmitted_fraction(alpha, matprops.Q_(10, "um")).m_as("") == \
-        pytest.approx(np.exp(-1))
+    assert optics.transmitted_fraction(alpha, matprops.Q_(10, "um")).m_as("") == pytest.approx(
+        np.exp(-1)
+    )
     assert optics.absorbed_fraction(1e3, 10e-4).m_as("") == pytest.approx(1 - np.exp(-1))
     d = optics.thickness_for_absorbed_fraction(alpha, [0.5, 0.9, 0.99])
     np.testing.assert_allclose(d.m_as("um"), 10 * np.log([2, 10, 100]))
@@ -254,22 +276,29 @@ def test_beer_lambert_tools():
     si = matprops.silicon()
     lam = np.array([500.0, 800.0, 1000.0])[:, None]
     alpha, fraction = optics.absorbed_fraction_spectrum(
-        si, lam, matprops.Q_([10, 100, 180], "um")[None, :], 300)
+        si, lam, matprops.Q_([10, 100, 180], "um")[None, :], 300
+    )
     assert fraction.shape == (3, 3)
     f = fraction.m_as("")
     assert np.all(np.diff(f, axis=1) >= 0) and np.all(np.diff(f[2]) > 0)  # thicker absorbs more
 
 
-@pytest.mark.parametrize("call, pattern", [
-    (lambda: optics.thickness_for_absorbed_fraction(1e3, 1.0), "'fraction' must be between 0 and 1"),
-    (lambda: optics.thickness_for_absorbed_fraction(1e3, 0.0), "'fraction' must be > 0"),
-    (lambda: optics.thickness_for_absorbed_fraction(1e3, 1.5), "'fraction'"),
-    (lambda: optics.absorbed_fraction(1e3, -1e-4), "'thickness' must be > 0 cm"),
-    (lambda: optics.absorbed_fraction(1e3, 0), "'thickness' must be > 0 cm"),
-    (lambda: optics.absorbed_fraction(-1.0, 1e-4), "'absorption_coefficient' must be >= 0"),
-    (lambda: optics.absorption_depth(0.0), "'alpha'"),
-    (lambda: optics.photon_energy(matprops.Q_(1, "kg")), "'wavelength'"),
-])
+@pytest.mark.parametrize(
+    "call, pattern",
+    [
+        (
+            lambda: optics.thickness_for_absorbed_fraction(1e3, 1.0),
+            "'fraction' must be between 0 and 1",
+        ),
+        (lambda: optics.thickness_for_absorbed_fraction(1e3, 0.0), "'fraction' must be > 0"),
+        (lambda: optics.thickness_for_absorbed_fraction(1e3, 1.5), "'fraction'"),
+        (lambda: optics.absorbed_fraction(1e3, -1e-4), "'thickness' must be > 0 cm"),
+        (lambda: optics.absorbed_fraction(1e3, 0), "'thickness' must be > 0 cm"),
+        (lambda: optics.absorbed_fraction(-1.0, 1e-4), "'absorption_coefficient' must be >= 0"),
+        (lambda: optics.absorption_depth(0.0), "'alpha'"),
+        (lambda: optics.photon_energy(matprops.Q_(1, "kg")), "'wavelength'"),
+    ],
+)
 def test_beer_lambert_bad_input(call, pattern):
     with pytest.raises(matprops.Error, match=pattern):
         call()
@@ -281,6 +310,7 @@ def test_thickness_must_be_a_length():
 
 
 # ---------------------------------------------------------------- properties
+
 
 def band_edge_limit(temperature):
     """The default's validity-region wavelength limit (nm) at a temperature (K)."""

@@ -29,8 +29,11 @@ def _on_disk(*folders):
     for folder in folders:
         for path in (ROOT / folder).rglob("*"):
             parts = path.relative_to(ROOT).parts
-            if path.is_file() and "__pycache__" not in parts and not any(
-                    p.startswith(".") for p in parts):
+            if (
+                path.is_file()
+                and "__pycache__" not in parts
+                and not any(p.startswith(".") for p in parts)
+            ):
                 found.add(path.relative_to(ROOT).as_posix())
     return found
 
@@ -50,15 +53,16 @@ def wheel(tmp_path_factory):
     path = _build("wheel", tmp_path_factory.mktemp("wheel"))
     with zipfile.ZipFile(path) as archive:
         names = set(archive.namelist())
-        metadata = next(archive.read(n).decode() for n in names
-                        if n.endswith(".dist-info/METADATA"))
+        metadata = next(
+            archive.read(n).decode() for n in names if n.endswith(".dist-info/METADATA")
+        )
     return names, metadata
 
 
 def test_licence_is_mit_for_matprops_developers():
     text = (ROOT / "LICENSE").read_text()
     assert text.startswith("MIT License") and "matprops developers" in text
-    assert "THE SOFTWARE IS PROVIDED \"AS IS\"" in text
+    assert 'THE SOFTWARE IS PROVIDED "AS IS"' in text
 
 
 def test_sdist_ships_licence_docs_and_everything_the_tests_read(sdist):
@@ -76,6 +80,9 @@ def test_wheel_ships_licence_and_data(wheel):
     assert any(n.endswith(".dist-info/licenses/LICENSE") for n in names)
     assert "License-Expression: MIT" in metadata
     listed = (ROOT / "datasets" / "checksums.sha256").read_text().splitlines()
-    data = {f"matprops/datasets/{line.split(maxsplit=1)[1]}" for line in listed
-            if line.strip() and not line.startswith("#")}
+    data = {
+        f"matprops/datasets/{line.split(maxsplit=1)[1]}"
+        for line in listed
+        if line.strip() and not line.startswith("#")
+    }
     assert data <= names and "matprops/datasets/checksums.sha256" in names

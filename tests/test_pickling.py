@@ -19,16 +19,19 @@ EXAMPLES = [
     (errors.UnitError("temperature", "K", Q_(3.0, "m")), ("argument", "expected", "received")),
     (errors.InputError("temperature", "> 0 K", "-5 K"), ("argument", "requirement", "received")),
     (errors.UnknownNameError("x", ["a", "b"], "in a test"), ("name", "known")),
-    (errors.UnknownModelError("passler-2003", ["passler-2002"], "for band_gap"),
-     ("name", "known")),
+    (errors.UnknownModelError("passler-2003", ["passler-2002"], "for band_gap"), ("name", "known")),
     (errors.UnknownQuantityError("bandgap", ["band_gap"]), ("name", "known")),
     (errors.UnknownReleaseError("2025.9", ["2026.1"]), ("name", "known")),
     (errors.DatasetError(Path("models/a/b.toml"), "missing field 'id'"), ("path", "problem")),
     (errors.ChecksumError("tables/x.nc", "sha256 differs"), ("path", "problem")),
-    (errors.UnknownVariantError("tin", ["boron", "phosphorus"], "for ionisation"),
-     ("name", "known")),
-    (errors.UnknownDefectError("Fe_s", ["iron-interstitial"], "in the defect catalogue"),
-     ("name", "known")),
+    (
+        errors.UnknownVariantError("tin", ["boron", "phosphorus"], "for ionisation"),
+        ("name", "known"),
+    ),
+    (
+        errors.UnknownDefectError("Fe_s", ["iron-interstitial"], "in the defect catalogue"),
+        ("name", "known"),
+    ),
     (errors.ReleaseFrozenError("release 2026.1 is final"), ()),
     (errors.SolverError("charge neutrality did not converge at 3 points"), ()),
     (errors.ValidityError("temperature 700 K is outside 0-600 K"), ()),
@@ -51,8 +54,7 @@ def test_every_exported_error_and_warning_has_an_example():
     assert {type(instance) for instance, _ in EXAMPLES} == exported
 
 
-@pytest.mark.parametrize("instance, fields", EXAMPLES,
-                         ids=[type(i).__name__ for i, _ in EXAMPLES])
+@pytest.mark.parametrize("instance, fields", EXAMPLES, ids=[type(i).__name__ for i, _ in EXAMPLES])
 def test_error_round_trips_through_pickle(instance, fields):
     clone = round_trip(instance)
     assert type(clone) is type(instance)
@@ -76,6 +78,7 @@ def test_error_raised_in_a_spawned_worker_reaches_the_parent(spawn_pool):
 
 
 # ------------------------------------------------------------------ materials and kernels
+
 
 def test_silicon_pickles_with_release_overrides_and_strict_flag():
     si = matprops.silicon(models={"band_gap": "thurmond-1975"}, strict=True)
@@ -111,7 +114,7 @@ def test_pickle_keeps_the_catalogue_root(datasets_copy):
 
 
 def test_unpickling_against_different_data_is_refused(datasets_copy):
-    from matprops import catalog as catalog_module
+    from matprops.catalogue import store as catalog_module
 
     root, catalog = datasets_copy
     data = pickle.dumps(matprops.Silicon(catalog=catalog))
@@ -136,8 +139,7 @@ def test_spawn_pool_gives_the_serial_numbers(spawn_pool, si):
     pending = [spawn_pool.apply_async(f, args, kwargs) for f, args, kwargs in jobs]
     for (function, args, kwargs), result in zip(jobs, pending, strict=True):
         expected = function(*args, **kwargs)
-        np.testing.assert_array_equal(_magnitudes(result.get(timeout=60)),
-                                      _magnitudes(expected))
+        np.testing.assert_array_equal(_magnitudes(result.get(timeout=60)), _magnitudes(expected))
 
 
 def _magnitudes(value):
@@ -152,13 +154,29 @@ def test_dask_local_cluster_gives_the_serial_numbers(si):
     temperature = np.linspace(250.0, 450.0, 40)
     wavelength = np.linspace(400.0, 1100.0, 30)
     kernel = si.kernel("absorption")
-    with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, host="127.0.0.1",
-                      dashboard_address=None) as cluster, Client(cluster) as client:
+    with (
+        LocalCluster(
+            n_workers=2,
+            threads_per_worker=1,
+            processes=True,
+            host="127.0.0.1",
+            dashboard_address=None,
+        ) as cluster,
+        Client(cluster) as client,
+    ):
         gaps = client.gather(client.map(si.band_gap, np.split(temperature, 4)))
-        alpha = da.from_array(wavelength[:, None], chunks=(10, 1)).map_blocks(
-            lambda block: kernel(wavelength=block, temperature=temperature[None, :]),
-            chunks=(10, temperature.size), dtype=float).compute()
-    np.testing.assert_array_equal(np.concatenate([g.m_as("eV") for g in gaps]),
-                                  si.band_gap(temperature).m_as("eV"))
-    np.testing.assert_array_equal(alpha, kernel(wavelength=wavelength[:, None],
-                                                temperature=temperature[None, :]))
+        alpha = (
+            da.from_array(wavelength[:, None], chunks=(10, 1))
+            .map_blocks(
+                lambda block: kernel(wavelength=block, temperature=temperature[None, :]),
+                chunks=(10, temperature.size),
+                dtype=float,
+            )
+            .compute()
+        )
+    np.testing.assert_array_equal(
+        np.concatenate([g.m_as("eV") for g in gaps]), si.band_gap(temperature).m_as("eV")
+    )
+    np.testing.assert_array_equal(
+        alpha, kernel(wavelength=wavelength[:, None], temperature=temperature[None, :])
+    )

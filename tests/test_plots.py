@@ -49,8 +49,9 @@ def test_svg_in_celsius_with_log_doping_axis(si, tmp_path):
     path = tmp_path / "fca.SVG"  # upper-case extension
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
-        data = si.table(["free_carrier_absorption"], wavelength=[1300.0, 1550.0],
-                        n=np.logspace(14, 18, 9), p=0)
+        data = si.table(
+            ["free_carrier_absorption"], wavelength=[1300.0, 1550.0], n=np.logspace(14, 18, 9), p=0
+        )
     figure = plotting.plot(data, path)
     root = ET.parse(path).getroot()
     assert root.tag.endswith("svg")
@@ -73,13 +74,40 @@ def test_plot_refuses_what_it_cannot_draw(si, tmp_path):
 
 def test_plot_command(tmp_path, capsys):
     path = tmp_path / "gaps.png"
-    assert main(["plot", "band_gap", "--models", "passler-2002,thurmond-1975",
-                 "-t", "50:500:10", "-o", str(path)]) == 0
+    assert (
+        main(
+            [
+                "plot",
+                "band_gap",
+                "--models",
+                "passler-2002,thurmond-1975",
+                "-t",
+                "50:500:10",
+                "-o",
+                str(path),
+            ]
+        )
+        == 0
+    )
     with Image.open(path) as image:
         image.verify()
-    assert main(["plot", "absorption", "-t", "-40,25,85degC", "-w", "400:1100:20",
-                 "-o", str(tmp_path / "a.svg")]) == 0
+    assert (
+        main(
+            [
+                "plot",
+                "absorption",
+                "-t",
+                "-40,25,85degC",
+                "-w",
+                "400:1100:20",
+                "-o",
+                str(tmp_path / "a.svg"),
+            ]
+        )
+        == 0
+    )
     assert ET.parse(tmp_path / "a.svg").getroot().tag.endswith("svg")
-    assert main(["plot", "absorption", "-t", "25", "-w", "400:1100:20",
-                 "-o", str(path)]) == 2  # exists, no --force
+    assert (
+        main(["plot", "absorption", "-t", "25", "-w", "400:1100:20", "-o", str(path)]) == 2
+    )  # exists, no --force
     assert "--force" in capsys.readouterr().err

@@ -20,5 +20,5 @@ def test_the_usage_example_runs():
     namespace = {"np": np}
     with warnings.catch_warnings(), contextlib.redirect_stdout(io.StringIO()):
         warnings.simplefilter("ignore", matprops.ValidityWarning)
-        exec(compile(block, "README.md (Use)", "exec"), namespace)  # noqa: S102
+        exec(compile(block, "README.md (Use)", "exec"), namespace)
     assert namespace["si"].release.id == matprops.releases()[-1]

@@ -40,10 +40,11 @@ def auger_coefficient_low_injection(si, n0, p0):
 def ambipolar_coefficient(si, excess):
     """U_Auger / dn^3 at high injection in nearly intrinsic silicon (cm^6/s)."""
     tau = quiet(si.auger_lifetime, 300, n0=1e10, p0=1e10, excess=excess).m_as("s")
-    return 1.0 / (tau * excess ** 2)
+    return 1.0 / (tau * excess**2)
 
 
 # ----------------------------------------------------------------- radiative
+
 
 def test_radiative_coefficient_of_intrinsic_silicon_at_300K(si):
     # from memory (recalled with high confidence, not checked): Trupke et al. 2003,
@@ -71,19 +72,32 @@ def test_each_lifetime_model_keeps_the_radiative_term_it_was_fitted_with(si):
     # the two 300 K values in circulation are not interchangeable (doping-models.md §6.1):
     # Richter's B_low = 4.73e-15 (Trupke's value, from memory), Kerr & Cuevas's constant
     # 9.5e-15 (from memory); a model without one takes the release's coefficient
-    expected = {"richter-2012": 4.73e-15, "kerr-2002": 9.5e-15,
-                "dziewior-1977": si.radiative_coefficient(300).m_as("cm^3/s")}
+    expected = {
+        "richter-2012": 4.73e-15,
+        "kerr-2002": 9.5e-15,
+        "dziewior-1977": si.radiative_coefficient(300).m_as("cm^3/s"),
+    }
     for model_id, b in expected.items():
         material = with_model("intrinsic_lifetime", model_id)
         model = material.model("intrinsic_lifetime")
-        tau = model(temperature=300.0, equilibrium_electron_density=1e15,
-                    equilibrium_hole_density=1e5, excess_density=1e14, part="radiative")
+        tau = model(
+            temperature=300.0,
+            equilibrium_electron_density=1e15,
+            equilibrium_hole_density=1e5,
+            excess_density=1e14,
+            part="radiative",
+        )
         assert 1.0 / (tau * (1e15 + 1e5 + 1e14)) == pytest.approx(b, rel=1e-12)
-    assert "own" in with_model("intrinsic_lifetime", "kerr-2002").model(
-        "intrinsic_lifetime").extra["fit"]["radiative"]
+    assert (
+        "own"
+        in with_model("intrinsic_lifetime", "kerr-2002")
+        .model("intrinsic_lifetime")
+        .extra["fit"]["radiative"]
+    )
 
 
 # ----------------------------------------------------------------- Auger coefficients
+
 
 def test_dziewior_schmid_coefficients():
     # COMSOL Semiconductor Module user guide and Genius TCAD Open (Si_band_schenk.cc),
@@ -139,8 +153,9 @@ def test_kerr_cuevas_enhancement_above_the_free_particle_rate():
     kc = with_model("intrinsic_lifetime", "kerr-2002")
     free = with_model("intrinsic_lifetime", "dziewior-1977")
     density = 1e16
-    low_injection = (auger_coefficient_low_injection(kc, density, 1e4)
-                     / auger_coefficient_low_injection(free, density, 1e4))
+    low_injection = auger_coefficient_low_injection(
+        kc, density, 1e4
+    ) / auger_coefficient_low_injection(free, density, 1e4)
     high_injection = ambipolar_coefficient(kc, density) / ambipolar_coefficient(free, density)
     assert low_injection > 1 and high_injection > 1
     assert high_injection < low_injection
@@ -154,8 +169,10 @@ def test_richter_exceeds_the_kerr_cuevas_limit(kwargs):
     excess = np.array([1e14, 1e15, 1e16])
     richter = with_model("intrinsic_lifetime", "richter-2012")
     kc = with_model("intrinsic_lifetime", "kerr-2002")
-    ratio = (richter.intrinsic_lifetime(300, excess=excess, **kwargs)
-             / kc.intrinsic_lifetime(300, excess=excess, **kwargs)).m_as("")
+    ratio = (
+        richter.intrinsic_lifetime(300, excess=excess, **kwargs)
+        / kc.intrinsic_lifetime(300, excess=excess, **kwargs)
+    ).m_as("")
     assert np.all(ratio > 1.2)
 
 
@@ -169,10 +186,14 @@ def test_auger_dominates_heavily_doped_silicon(si):
 
 # ----------------------------------------------------------------- validity and composition
 
+
 def test_richter_is_a_300K_model(si):
     # Richter et al. 2012 (Energy Procedia abstract, read): a parameterisation at 300 K
-    with pytest.warns(matprops.ValidityWarning, match="intrinsic_lifetime/richter-2012: "
-                      "temperature 350 K is outside its validity range 295-305 K"):
+    with pytest.warns(
+        matprops.ValidityWarning,
+        match="intrinsic_lifetime/richter-2012: "
+        "temperature 350 K is outside its validity range 295-305 K",
+    ):
         si.intrinsic_lifetime(350, Nd=1e16)
     with pytest.raises(matprops.ValidityError):
         matprops.silicon(strict=True).intrinsic_lifetime(350, Nd=1e16)
@@ -197,8 +218,10 @@ def test_mixing_a_lifetime_model_with_another_narrowing_warns():
     # Richter et al. fitted with Schenk's narrowing (from memory); composing the model with
     # another narrowing mixes conventions and must say so
     si = matprops.silicon(models={"gap_narrowing": "klaassen-1992"})
-    with pytest.warns(matprops.ValidityWarning, match="fitted with the effective intrinsic "
-                      "density of gap_narrowing/schenk-1998"):
+    with pytest.warns(
+        matprops.ValidityWarning,
+        match="fitted with the effective intrinsic density of gap_narrowing/schenk-1998",
+    ):
         si.intrinsic_lifetime(300, Nd=1e16)
 
 
@@ -214,8 +237,13 @@ def test_intrinsic_lifetime_uses_the_equilibrium_densities(si):
 
 # ----------------------------------------------------------------- SRH: textbook limits
 
-MIDGAP = {"level": 0.0, "reference": "intrinsic", "electron_cross_section": 1e-15,
-          "hole_cross_section": 1e-15, "name": "mid-gap test level"}
+MIDGAP = {
+    "level": 0.0,
+    "reference": "intrinsic",
+    "electron_cross_section": 1e-15,
+    "hole_cross_section": 1e-15,
+    "name": "mid-gap test level",
+}
 
 
 def test_srh_low_injection_is_one_over_sigma_v_n(si):
@@ -242,10 +270,21 @@ def test_srh_high_injection_is_the_sum_of_capture_times(si):
 def test_shallow_levels_recombine_less(si):
     # common practice: SRH recombination is most effective through levels near mid-gap
     levels = [0.05, 0.15, 0.3, 0.56]
-    taus = [si.srh_lifetime({"level": e, "reference": "conduction",
-                             "electron_cross_section": 1e-15, "hole_cross_section": 1e-15},
-                            300, Na=1e15, excess=1e12, density=1e12).m_as("s")
-            for e in levels]
+    taus = [
+        si.srh_lifetime(
+            {
+                "level": e,
+                "reference": "conduction",
+                "electron_cross_section": 1e-15,
+                "hole_cross_section": 1e-15,
+            },
+            300,
+            Na=1e15,
+            excess=1e12,
+            density=1e12,
+        ).m_as("s")
+        for e in levels
+    ]
     assert np.all(np.diff(taus) < 0)
 
 
@@ -255,8 +294,9 @@ def test_ratio_only_entry_with_the_electron_capture_time(si):
     defect = si.defect("chromium-interstitial")
     v_ratio = (si.thermal_velocity("electron", 300) / si.thermal_velocity("hole", 300)).m_as("")
     tau = si.srh_lifetime("Cr_i", 300, Nd=1e14, excess=1e22, electron_capture_time=1e-5)
-    assert tau.m_as("s") == pytest.approx(1e-5 * (1 + defect.cross_section_ratio * v_ratio),
-                                          rel=1e-5)
+    assert tau.m_as("s") == pytest.approx(
+        1e-5 * (1 + defect.cross_section_ratio * v_ratio), rel=1e-5
+    )
 
 
 # ----------------------------------------------------------------- catalogue against sources
@@ -281,13 +321,22 @@ def test_catalogue_constants_against_the_research_program(si, name):
     assert defect.hole_cross_section(300.0) == pytest.approx(sigma_p, rel=1e-12)
 
 
-@pytest.mark.parametrize("name, law_n, law_p", [
-    # the program's Sn/Sp (ThermallyPower A0 T^p, ThermallyActivated A0 exp(-E/kT); A0 in m^2)
-    ("iron-interstitial-paudyal-2010", lambda t: 3.47e-15 * 1e4 * t ** -1.48,
-     lambda t: 4.54e-20 * 1e4 * np.exp(-0.05 / (K_B * t))),
-    ("iron-boron-pair-paudyal-2010", lambda t: 5.1e-13 * 1e4 * t ** -2.5,
-     lambda t: 3.32e-14 * 1e4 * np.exp(-0.262 / (K_B * t))),
-])
+@pytest.mark.parametrize(
+    "name, law_n, law_p",
+    [
+        # the program's Sn/Sp (ThermallyPower A0 T^p, ThermallyActivated A0 exp(-E/kT); A0 in m^2)
+        (
+            "iron-interstitial-paudyal-2010",
+            lambda t: 3.47e-15 * 1e4 * t**-1.48,
+            lambda t: 4.54e-20 * 1e4 * np.exp(-0.05 / (K_B * t)),
+        ),
+        (
+            "iron-boron-pair-paudyal-2010",
+            lambda t: 5.1e-13 * 1e4 * t**-2.5,
+            lambda t: 3.32e-14 * 1e4 * np.exp(-0.262 / (K_B * t)),
+        ),
+    ],
+)
 def test_catalogue_temperature_laws_against_the_research_program(si, name, law_n, law_p):
     defect = si.defect(name)
     t = np.array([250.0, 300.0, 400.0, 500.0])
@@ -303,7 +352,9 @@ def test_iron_entries_against_memory(si):
     assert (fe.reference, fe.energy) == ("valence", pytest.approx(0.38))
     assert fe.electron_cross_section(300.0) == pytest.approx(5e-14)
     assert fe.hole_cross_section(300.0) == pytest.approx(7e-17)
-    assert float(si.defect("iron-interstitial-rein-2005").ratio(300.0)) == pytest.approx(51, abs=0.5)
+    assert float(si.defect("iron-interstitial-rein-2005").ratio(300.0)) == pytest.approx(
+        51, abs=0.5
+    )
 
 
 def test_chromium_level_against_hall_measurements(si):
@@ -326,25 +377,31 @@ def test_every_entry_states_its_source_origin_and_velocity_convention(si):
 
 # ----------------------------------------------------------------- properties
 
-_DOPING = st.floats(13, 19).map(lambda x: 10.0 ** x)
+_DOPING = st.floats(13, 19).map(lambda x: 10.0**x)
 
 
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(low=st.floats(13, 18).map(lambda x: 10.0 ** x), factor=st.floats(1.5, 100),
-       kind=st.sampled_from(["Nd", "Na"]), excess=st.sampled_from([0.0, 1e12, 1e14]))
+@given(
+    low=st.floats(13, 18).map(lambda x: 10.0**x),
+    factor=st.floats(1.5, 100),
+    kind=st.sampled_from(["Nd", "Na"]),
+    excess=st.sampled_from([0.0, 1e12, 1e14]),
+)
 def test_intrinsic_lifetime_falls_with_doping(si, low, factor, kind, excess):
     # common practice: more carriers, faster Auger and radiative recombination (doping up
     # to 1e20 cm^-3, the limit of the lifetime models)
-    tau = quiet(si.intrinsic_lifetime, 300, excess=excess,
-                **{kind: [low, low * factor]}).m_as("s")
+    tau = quiet(si.intrinsic_lifetime, 300, excess=excess, **{kind: [low, low * factor]}).m_as("s")
     assert tau[1] < tau[0]
 
 
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(doping=_DOPING, kind=st.sampled_from(["Nd", "Na"]), start=st.floats(1.0, 10.0),
-       factor=st.floats(1.5, 100))
-def test_intrinsic_lifetime_falls_with_injection_at_high_injection(si, doping, kind, start,
-                                                                   factor):
+@given(
+    doping=_DOPING,
+    kind=st.sampled_from(["Nd", "Na"]),
+    start=st.floats(1.0, 10.0),
+    factor=st.floats(1.5, 100),
+)
+def test_intrinsic_lifetime_falls_with_injection_at_high_injection(si, doping, kind, start, factor):
     # common practice: above the doping, Auger recombination grows faster than dn
     excess = doping * start * np.array([1.0, factor])
     excess = np.minimum(excess, 1e18)
@@ -355,32 +412,61 @@ def test_intrinsic_lifetime_falls_with_injection_at_high_injection(si, doping, k
 
 
 @settings(max_examples=30, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(t=st.floats(250, 400), na=st.sampled_from([0.0, 1e14, 1e16, 1e18]),
-       nd=st.sampled_from([0.0, 1e15, 1e17, 1e19]), excess=st.floats(0, 1e18),
-       level=st.floats(0.01, 1.0), reference=st.sampled_from(["conduction", "valence"]),
-       sigma_n=st.floats(-18, -12), sigma_p=st.floats(-18, -12),
-       density=st.floats(8, 14), defect_name=st.sampled_from(
-           ["iron-interstitial", "iron-boron-pair", "iron-interstitial-paudyal-2010"]))
-def test_every_lifetime_is_positive(si, t, na, nd, excess, level, reference, sigma_n,
-                                    sigma_p, density, defect_name):
-    inline = {"level": level, "reference": reference,
-              "electron_cross_section": 10 ** sigma_n, "hole_cross_section": 10 ** sigma_p}
-    result = quiet(si.effective_lifetime, t, Na=na, Nd=nd, excess=excess,
-                   defects=[(inline, 10 ** density), (defect_name, 10 ** density)])
+@given(
+    t=st.floats(250, 400),
+    na=st.sampled_from([0.0, 1e14, 1e16, 1e18]),
+    nd=st.sampled_from([0.0, 1e15, 1e17, 1e19]),
+    excess=st.floats(0, 1e18),
+    level=st.floats(0.01, 1.0),
+    reference=st.sampled_from(["conduction", "valence"]),
+    sigma_n=st.floats(-18, -12),
+    sigma_p=st.floats(-18, -12),
+    density=st.floats(8, 14),
+    defect_name=st.sampled_from(
+        ["iron-interstitial", "iron-boron-pair", "iron-interstitial-paudyal-2010"]
+    ),
+)
+def test_every_lifetime_is_positive(
+    si, t, na, nd, excess, level, reference, sigma_n, sigma_p, density, defect_name
+):
+    inline = {
+        "level": level,
+        "reference": reference,
+        "electron_cross_section": 10**sigma_n,
+        "hole_cross_section": 10**sigma_p,
+    }
+    result = quiet(
+        si.effective_lifetime,
+        t,
+        Na=na,
+        Nd=nd,
+        excess=excess,
+        defects=[(inline, 10**density), (defect_name, 10**density)],
+    )
     for name, value in result:
         if name.endswith("lifetime"):
             assert np.all(value.m_as("s") > 0), name
 
 
 @settings(max_examples=15, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(doping=st.floats(14, 17).map(lambda x: 10.0 ** x), kind=st.sampled_from(["Nd", "Na"]),
-       flux=st.floats(13, 18).map(lambda x: 10.0 ** x), factor=st.floats(1.2, 50),
-       density=st.sampled_from([None, 1e10, 1e12]))
+@given(
+    doping=st.floats(14, 17).map(lambda x: 10.0**x),
+    kind=st.sampled_from(["Nd", "Na"]),
+    flux=st.floats(13, 18).map(lambda x: 10.0**x),
+    factor=st.floats(1.2, 50),
+    density=st.sampled_from([None, 1e10, 1e12]),
+)
 def test_implied_voltage_rises_with_generation(si, doping, kind, flux, factor, density):
     # common practice: more light, larger quasi-Fermi-level splitting
     kwargs = {"defect": "Fe_i", "density": density} if density else {}
-    result = quiet(si.implied_voltage, 300, generation=[flux, flux * factor],
-                   thickness=0.018, **{kind: doping}, **kwargs)
+    result = quiet(
+        si.implied_voltage,
+        300,
+        generation=[flux, flux * factor],
+        thickness=0.018,
+        **{kind: doping},
+        **kwargs,
+    )
     volts = result.implied_voltage.m_as("V")
     assert volts[1] > volts[0] > 0
 
@@ -390,17 +476,30 @@ def test_implied_voltage_per_decade_of_generation(si):
     # so the implied voltage rises by (kT/q) ln 10 per decade at low injection and by
     # 2 (kT/q) ln 10 at high injection; a strong mid-gap SRH centre fixes the lifetime
     kt = K_B * 300.0
-    low = quiet(si.implied_voltage, 300, Na=1e16, generation=[1e13, 1e14], thickness=0.018,
-                defect=MIDGAP, density=1e14).implied_voltage.m_as("V")
+    low = quiet(
+        si.implied_voltage,
+        300,
+        Na=1e16,
+        generation=[1e13, 1e14],
+        thickness=0.018,
+        defect=MIDGAP,
+        density=1e14,
+    ).implied_voltage.m_as("V")
     assert low[1] - low[0] == pytest.approx(kt * math.log(10), rel=2e-3)
-    high = quiet(si.implied_voltage, 300, Na=1e10, generation=[1e20, 1e21], thickness=0.018,
-                 defect=MIDGAP, density=1e14).implied_voltage.m_as("V")
+    high = quiet(
+        si.implied_voltage,
+        300,
+        Na=1e10,
+        generation=[1e20, 1e21],
+        thickness=0.018,
+        defect=MIDGAP,
+        density=1e14,
+    ).implied_voltage.m_as("V")
     assert high[1] - high[0] == pytest.approx(2 * kt * math.log(10), rel=2e-2)
 
 
 def test_implied_voltage_states_its_assumptions(si):
-    result = si.implied_voltage(300, Na=1e15, generation=Q_(40, "mA/cm^2"),
-                                thickness=Q_(180, "um"))
+    result = si.implied_voltage(300, Na=1e15, generation=Q_(40, "mA/cm^2"), thickness=Q_(180, "um"))
     for word in ("steady state", "uniform", "flat carrier profile", "surface"):
         assert word in result.assumptions
     assert result.provenance["assumptions"] == result.assumptions
@@ -411,32 +510,92 @@ def test_implied_voltage_states_its_assumptions(si):
 
 # ----------------------------------------------------------------- bad input
 
+
 def test_negative_excess_density_is_refused(si):
-    with pytest.raises(matprops.InputError, match=r"'excess' must be >= 0 cm\^-3; "
-                       r"received -1e\+14"):
+    with pytest.raises(
+        matprops.InputError,
+        match=r"'excess' must be >= 0 cm\^-3; "
+        r"received -1e\+14",
+    ):
         si.intrinsic_lifetime(300, Nd=1e16, excess=-1e14)
 
 
-@pytest.mark.parametrize("defect, pattern", [
-    ({"level": 1.3, "reference": "valence", "electron_cross_section": 1e-15,
-      "hole_cross_section": 1e-15},
-     (r"'defect' must be a level inside the band gap, between 0 and the gap \(1.12\d+ eV at "
-      r"300 K\) from the valence-band edge, for 'inline defect'; received E_v \+ 1.3 eV")),
-    ({"level": -0.1, "reference": "conduction", "electron_cross_section": 1e-15,
-      "hole_cross_section": 1e-15}, r"> 0 eV into the gap from the conduction band edge"),
-    ({"level": 0.7, "reference": "intrinsic", "electron_cross_section": 1e-15,
-      "hole_cross_section": 1e-15}, r"half the gap"),
-    ({"level": 0.3, "reference": "valence", "electron_cross_section": 0.0,
-      "hole_cross_section": 1e-15}, r"electron_cross_section' must be > 0 cm\^2"),
-    ({"level": 0.3, "reference": "valence", "electron_cross_section": 1e-15,
-      "hole_cross_section": -1e-15}, r"hole_cross_section' must be > 0 cm\^2"),
-    ({"level": 0.3, "reference": "middle", "electron_cross_section": 1e-15,
-      "hole_cross_section": 1e-15}, r"reference' must be one of conduction, valence"),
-    ({"level": 0.3, "reference": "valence", "electron_cross_section": 1e-15},
-     r"both electron_cross_section and hole_cross_section"),
-    ({"level": 0.3, "reference": "valence", "electron_cross_section": Q_(1e-15, "V"),
-      "hole_cross_section": 1e-15}, r"electron_cross_section' expects a quantity in cm\^2"),
-])
+@pytest.mark.parametrize(
+    "defect, pattern",
+    [
+        (
+            {
+                "level": 1.3,
+                "reference": "valence",
+                "electron_cross_section": 1e-15,
+                "hole_cross_section": 1e-15,
+            },
+            (
+                r"'defect' must be a level inside the band gap, between 0 and the gap "
+                r"\(1.12\d+ eV at "
+                r"300 K\) from the valence-band edge, for 'inline defect'; received E_v \+ 1.3 eV"
+            ),
+        ),
+        (
+            {
+                "level": -0.1,
+                "reference": "conduction",
+                "electron_cross_section": 1e-15,
+                "hole_cross_section": 1e-15,
+            },
+            r"> 0 eV into the gap from the conduction band edge",
+        ),
+        (
+            {
+                "level": 0.7,
+                "reference": "intrinsic",
+                "electron_cross_section": 1e-15,
+                "hole_cross_section": 1e-15,
+            },
+            r"half the gap",
+        ),
+        (
+            {
+                "level": 0.3,
+                "reference": "valence",
+                "electron_cross_section": 0.0,
+                "hole_cross_section": 1e-15,
+            },
+            r"electron_cross_section' must be > 0 cm\^2",
+        ),
+        (
+            {
+                "level": 0.3,
+                "reference": "valence",
+                "electron_cross_section": 1e-15,
+                "hole_cross_section": -1e-15,
+            },
+            r"hole_cross_section' must be > 0 cm\^2",
+        ),
+        (
+            {
+                "level": 0.3,
+                "reference": "middle",
+                "electron_cross_section": 1e-15,
+                "hole_cross_section": 1e-15,
+            },
+            r"reference' must be one of conduction, valence",
+        ),
+        (
+            {"level": 0.3, "reference": "valence", "electron_cross_section": 1e-15},
+            r"both electron_cross_section and hole_cross_section",
+        ),
+        (
+            {
+                "level": 0.3,
+                "reference": "valence",
+                "electron_cross_section": Q_(1e-15, "V"),
+                "hole_cross_section": 1e-15,
+            },
+            r"electron_cross_section' expects a quantity in cm\^2",
+        ),
+    ],
+)
 def test_defect_parameters_out_of_physical_range(si, defect, pattern):
     with pytest.raises((matprops.InputError, matprops.UnitError), match=pattern):
         si.srh_lifetime(defect, 300, Na=1e16, density=1e12)
@@ -453,14 +612,20 @@ def test_unknown_defect_lists_the_catalogue(si):
     assert isinstance(info.value, KeyError)
 
 
-@pytest.mark.parametrize("kwargs, argument, pattern", [
-    ({"defect": "Fe_i"}, "density", "defect density in cm"),
-    ({"defect": "Cr_i", "density": 1e12}, "electron_capture_time", "only the ratio"),
-    ({"defect": "Fe_i", "density": 1e12, "electron_capture_time": 1e-6}, "density",
-     "omitted when electron_capture_time"),
-    ({"defect": "Fe_i", "density": -1.0}, "density", "> 0"),
-    ({"defect": "Fe_i", "density": 0.0}, "density", "> 0"),
-])
+@pytest.mark.parametrize(
+    "kwargs, argument, pattern",
+    [
+        ({"defect": "Fe_i"}, "density", "defect density in cm"),
+        ({"defect": "Cr_i", "density": 1e12}, "electron_capture_time", "only the ratio"),
+        (
+            {"defect": "Fe_i", "density": 1e12, "electron_capture_time": 1e-6},
+            "density",
+            "omitted when electron_capture_time",
+        ),
+        ({"defect": "Fe_i", "density": -1.0}, "density", "> 0"),
+        ({"defect": "Fe_i", "density": 0.0}, "density", "> 0"),
+    ],
+)
 def test_incomplete_defect_arguments(si, kwargs, argument, pattern):
     with pytest.raises(matprops.InputError, match=pattern) as info:
         si.srh_lifetime(temperature=300, Na=1e16, **kwargs)
@@ -476,14 +641,22 @@ def test_equilibrium_densities_given_incompletely_or_twice(si):
         si.intrinsic_lifetime(300, n0=0, p0=1e4)
 
 
-@pytest.mark.parametrize("kwargs, pattern", [
-    ({"generation": -1e17, "thickness": 0.018}, r"'generation' must be > 0"),
-    ({"generation": 1e17, "thickness": 0}, r"'thickness' must be > 0 cm"),
-    ({"generation": Q_(1, "V"), "thickness": 0.018},
-     (r"'generation' expects a quantity in cm\^-2/s \(photons absorbed per area and time\) "
-      r"or A/cm\^2")),
-    ({"generation": Q_(-40, "mA/cm^2"), "thickness": 0.018}, r"'generation' must be > 0"),
-])
+@pytest.mark.parametrize(
+    "kwargs, pattern",
+    [
+        ({"generation": -1e17, "thickness": 0.018}, r"'generation' must be > 0"),
+        ({"generation": 1e17, "thickness": 0}, r"'thickness' must be > 0 cm"),
+        (
+            {"generation": Q_(1, "V"), "thickness": 0.018},
+            (
+                r"'generation' expects a quantity in cm\^-2/s "
+                r"\(photons absorbed per area and time\) "
+                r"or A/cm\^2"
+            ),
+        ),
+        ({"generation": Q_(-40, "mA/cm^2"), "thickness": 0.018}, r"'generation' must be > 0"),
+    ],
+)
 def test_bad_generation_or_thickness(si, kwargs, pattern):
     with pytest.raises((matprops.InputError, matprops.UnitError), match=pattern):
         si.implied_voltage(300, Na=1e15, **kwargs)
@@ -492,12 +665,16 @@ def test_bad_generation_or_thickness(si, kwargs, pattern):
 def test_defect_outside_its_temperature_range_warns(datasets_copy):
     root, catalog = datasets_copy
     path = root / "defects" / "iron-interstitial.toml"
-    path.write_text(path.read_text() + '\n[validity.temperature]\nmin = 250\nmax = 350\n'
-                    'units = "K"\n')
+    path.write_text(
+        path.read_text() + '\n[validity.temperature]\nmin = 250\nmax = 350\nunits = "K"\n'
+    )
     catalog.write_checksums()
     si = matprops.Silicon(catalog=catalog)
-    with pytest.warns(matprops.ValidityWarning, match="iron-interstitial: temperature 300-400 "
-                      "K is outside the range of its data, 250-350 K"):
+    with pytest.warns(
+        matprops.ValidityWarning,
+        match="iron-interstitial: temperature 300-400 "
+        "K is outside the range of its data, 250-350 K",
+    ):
         si.srh_lifetime("Fe_i", [300, 400], Na=1e16, density=1e12)
 
 

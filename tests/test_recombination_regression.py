@@ -15,7 +15,7 @@ import numpy as np
 import pytest
 
 import matprops
-from matprops.catalog import datasets_root
+from matprops.catalogue.store import datasets_root
 
 K_B = 8.617333262e-5  # eV/K
 
@@ -29,30 +29,38 @@ def quiet(function, *args, **kwargs):
 def test_kernel_door_equals_the_public_method(si):
     kernel = si.kernel("intrinsic_lifetime")
     n0 = np.array([1e15, 1e16, 1e17])
-    p0 = 9.67e9 ** 2 / n0
+    p0 = 9.67e9**2 / n0
     dn = np.array([1e13, 1e15, 1e16])
-    plain = kernel(temperature=np.full(3, 300.0), equilibrium_electron_density=n0,
-                   equilibrium_hole_density=p0, excess_density=dn)
+    plain = kernel(
+        temperature=np.full(3, 300.0),
+        equilibrium_electron_density=n0,
+        equilibrium_hole_density=p0,
+        excess_density=dn,
+    )
     public = si.intrinsic_lifetime(300, n0=n0, p0=p0, excess=dn).m_as("s")
     np.testing.assert_allclose(plain, public, rtol=1e-15)
     assert isinstance(plain, np.ndarray)
 
 
 def test_lifetimes_compose(si):
-    result = si.effective_lifetime(300, Na=[1e15, 1e16], excess=1e14,
-                                   defects={"Fe_i": 1e11, "FeB": 1e11})
+    result = si.effective_lifetime(
+        300, Na=[1e15, 1e16], excess=1e14, defects={"Fe_i": 1e11, "FeB": 1e11}
+    )
     intrinsic = 1 / (1 / result.auger_lifetime + 1 / result.radiative_lifetime)
-    np.testing.assert_allclose(intrinsic.m_as("s"), result.intrinsic_lifetime.m_as("s"),
-                               rtol=1e-13)
+    np.testing.assert_allclose(intrinsic.m_as("s"), result.intrinsic_lifetime.m_as("s"), rtol=1e-13)
     effective = 1 / (1 / result.intrinsic_lifetime + 1 / result.srh_lifetime)
-    np.testing.assert_allclose(effective.m_as("s"), result.effective_lifetime.m_as("s"),
-                               rtol=1e-13)
-    single = [si.srh_lifetime(d, 300, Na=[1e15, 1e16], excess=1e14, density=1e11)
-              for d in ("Fe_i", "FeB")]
-    np.testing.assert_allclose((1 / (1 / single[0] + 1 / single[1])).m_as("s"),
-                               result.srh_lifetime.m_as("s"), rtol=1e-13)
-    np.testing.assert_allclose(si.intrinsic_lifetime(300, Na=[1e15, 1e16], excess=1e14)
-                               .m_as("s"), result.intrinsic_lifetime.m_as("s"), rtol=1e-13)
+    np.testing.assert_allclose(effective.m_as("s"), result.effective_lifetime.m_as("s"), rtol=1e-13)
+    single = [
+        si.srh_lifetime(d, 300, Na=[1e15, 1e16], excess=1e14, density=1e11) for d in ("Fe_i", "FeB")
+    ]
+    np.testing.assert_allclose(
+        (1 / (1 / single[0] + 1 / single[1])).m_as("s"), result.srh_lifetime.m_as("s"), rtol=1e-13
+    )
+    np.testing.assert_allclose(
+        si.intrinsic_lifetime(300, Na=[1e15, 1e16], excess=1e14).m_as("s"),
+        result.intrinsic_lifetime.m_as("s"),
+        rtol=1e-13,
+    )
     names = [record["defect"] for record in result.provenance["defects"]]
     assert names == ["iron-interstitial", "iron-boron-pair"]
     assert result.provenance["defects"][0]["thermal_velocity_model"] == "green-1990"
@@ -60,61 +68,81 @@ def test_lifetimes_compose(si):
 
 
 def test_steady_state_and_implied_voltage(si):
-    result = si.implied_voltage(300, Nd=[1e15, 1e16], generation=[1e15, 2.5e17],
-                                thickness=0.018, defect="Fe_i", density=1e11)
+    result = si.implied_voltage(
+        300,
+        Nd=[1e15, 1e16],
+        generation=[1e15, 2.5e17],
+        thickness=0.018,
+        defect="Fe_i",
+        density=1e11,
+    )
     dn = result.excess_density.m_as("cm^-3")
     generation = result.generation_rate.m_as("cm^-3/s")
     np.testing.assert_allclose(generation, np.array([1e15, 2.5e17]) / 0.018, rtol=1e-15)
-    np.testing.assert_allclose(dn / result.effective_lifetime.m_as("s"), generation,
-                               rtol=1e-10)
+    np.testing.assert_allclose(dn / result.effective_lifetime.m_as("s"), generation, rtol=1e-10)
     n0 = result.equilibrium_electron_density.m_as("cm^-3")
     p0 = result.equilibrium_hole_density.m_as("cm^-3")
     expected = K_B * 300 * np.log((n0 + dn) * (p0 + dn) / (n0 * p0))
     np.testing.assert_allclose(result.implied_voltage.m_as("V"), expected, rtol=1e-9)
     # the same point through the lifetime methods
-    again = si.effective_lifetime(300, Nd=[1e15, 1e16], excess=dn, defect="Fe_i",
-                                  density=1e11)
-    np.testing.assert_allclose(again.effective_lifetime.m_as("s"),
-                               result.effective_lifetime.m_as("s"), rtol=1e-13)
+    again = si.effective_lifetime(300, Nd=[1e15, 1e16], excess=dn, defect="Fe_i", density=1e11)
+    np.testing.assert_allclose(
+        again.effective_lifetime.m_as("s"), result.effective_lifetime.m_as("s"), rtol=1e-13
+    )
 
 
 def test_current_density_is_a_photon_flux_times_q(si):
-    a = si.implied_voltage(300, Na=1e15, generation=matprops.Q_(40, "mA/cm^2"),
-                           thickness=matprops.Q_(180, "um"))
+    a = si.implied_voltage(
+        300, Na=1e15, generation=matprops.Q_(40, "mA/cm^2"), thickness=matprops.Q_(180, "um")
+    )
     b = si.implied_voltage(300, Na=1e15, generation=0.040 / 1.602176634e-19, thickness=0.018)
     assert a.implied_voltage.m_as("V") == pytest.approx(b.implied_voltage.m_as("V"), rel=1e-12)
 
 
 def test_inline_defect_may_name_its_thermal_velocity_model(si):
-    defect = {"level": 0.38, "reference": "valence", "electron_cross_section": 5e-14,
-              "hole_cross_section": 7e-17, "thermal_velocity": "green-1990"}
+    defect = {
+        "level": 0.38,
+        "reference": "valence",
+        "electron_cross_section": 5e-14,
+        "hole_cross_section": 7e-17,
+        "thermal_velocity": "green-1990",
+    }
     named = si.srh_lifetime(defect, 300, Na=1e16, excess=1e13, density=1e11)
     plain = si.srh_lifetime("Fe_i", 300, Na=1e16, excess=1e13, density=1e11)
     assert named.m_as("s") == pytest.approx(plain.m_as("s"), rel=1e-14)
     with pytest.raises(matprops.UnknownModelError, match="green-1990"):
-        si.srh_lifetime({**defect, "thermal_velocity": "sze-1981"}, 300, Na=1e16,
-                        density=1e11)
+        si.srh_lifetime({**defect, "thermal_velocity": "sze-1981"}, 300, Na=1e16, density=1e11)
 
 
 def test_tables_equal_single_calls(si):
-    data = si.table(["intrinsic_lifetime", "srh_lifetime", "implied_voltage"], T=300,
-                    Na=[1e15, 1e16], excess=[0.0, 1e15], defect=["iron-interstitial",
-                                                                 "iron-boron-pair"],
-                    defect_density=1e11, generation=[1e16, 1e17], thickness=0.018)
+    data = si.table(
+        ["intrinsic_lifetime", "srh_lifetime", "implied_voltage"],
+        T=300,
+        Na=[1e15, 1e16],
+        excess=[0.0, 1e15],
+        defect=["iron-interstitial", "iron-boron-pair"],
+        defect_density=1e11,
+        generation=[1e16, 1e17],
+        thickness=0.018,
+    )
     for i, na in enumerate([1e15, 1e16]):
         for j, dn in enumerate([0.0, 1e15]):
             assert data.intrinsic_lifetime.values[i, j] == pytest.approx(
-                si.intrinsic_lifetime(300, Na=na, excess=dn).m_as("s"), rel=1e-13)
+                si.intrinsic_lifetime(300, Na=na, excess=dn).m_as("s"), rel=1e-13
+            )
             for k, defect in enumerate(["iron-interstitial", "iron-boron-pair"]):
                 assert data.srh_lifetime.values[k, i, j] == pytest.approx(
-                    si.srh_lifetime(defect, 300, Na=na, excess=dn,
-                                    density=1e11).m_as("s"), rel=1e-13)
+                    si.srh_lifetime(defect, 300, Na=na, excess=dn, density=1e11).m_as("s"),
+                    rel=1e-13,
+                )
         for k, defect in enumerate(["iron-interstitial", "iron-boron-pair"]):
             for j, g in enumerate([1e16, 1e17]):
-                single = si.implied_voltage(300, Na=na, generation=g, thickness=0.018,
-                                            defect=defect, density=1e11)
+                single = si.implied_voltage(
+                    300, Na=na, generation=g, thickness=0.018, defect=defect, density=1e11
+                )
                 assert data.implied_voltage.values[k, i, j] == pytest.approx(
-                    single.implied_voltage.m_as("V"), rel=1e-10)
+                    single.implied_voltage.m_as("V"), rel=1e-10
+                )
     assert data.srh_lifetime.dims == ("defect", "acceptor_density", "excess_density")
     assert data.implied_voltage.dims == ("defect", "acceptor_density", "generation")
     record = json.loads(data.implied_voltage.attrs["provenance"])
@@ -122,8 +150,7 @@ def test_tables_equal_single_calls(si):
 
 
 def test_results_become_datasets(si):
-    result = si.effective_lifetime(300, Na=[1e15, 1e16], excess=1e14, defect="FeB",
-                                   density=1e11)
+    result = si.effective_lifetime(300, Na=[1e15, 1e16], excess=1e14, defect="FeB", density=1e11)
     data = result.to_dataset(dims=("acceptor_density",))
     assert data.effective_lifetime.attrs["units"] == "s"
     assert json.loads(data.attrs["provenance"])["quantity"] == "effective_lifetime"
@@ -157,41 +184,62 @@ def _radiative_shares():
 
 
 def _kerr_over_richter():
-    richter, kc = matprops.silicon(), matprops.silicon(models={"intrinsic_lifetime":
-                                                               "kerr-2002"})
+    richter, kc = matprops.silicon(), matprops.silicon(models={"intrinsic_lifetime": "kerr-2002"})
     ratios = []
     for kind in ("Nd", "Na"):
-        ratio = (kc.intrinsic_lifetime(300, excess=1e15, **{kind: 1e15})
-                 / richter.intrinsic_lifetime(300, excess=1e15, **{kind: 1e15})).m_as("")
+        ratio = (
+            kc.intrinsic_lifetime(300, excess=1e15, **{kind: 1e15})
+            / richter.intrinsic_lifetime(300, excess=1e15, **{kind: 1e15})
+        ).m_as("")
         ratios.append(f"{ratio:.2f}")
     return ratios
 
 
 def _paudyal(name):
     defect = matprops.silicon().defect(name)
-    return (f"{defect.electron_cross_section(300.0):.2g}",
-            f"{defect.hole_cross_section(300.0):.2g}")
+    return (
+        f"{defect.electron_cross_section(300.0):.2g}",
+        f"{defect.hole_cross_section(300.0):.2g}",
+    )
 
 
 QUOTED = [
-    (MODELS / "intrinsic_lifetime/richter-2012.toml",
-     ("C_a = 3.0e-29 dn^-0.08: {}e-30 at 1e15, {}e-30 at 5e15, {}e-30 at 1e16, {}e-30 "
-      "cm^6/s at 5e16 cm^-3"), _richter_ambipolar),
-    (MODELS / "intrinsic_lifetime/richter-2012.toml",
-     ("Radiative recombination makes up {} % (n-type) and {} % (p-type) of the "
-      "low-injection intrinsic rate at 1e15 cm^-3, and {} % and {} % at 1e16 cm^-3"),
-     _radiative_shares),
-    (MODELS / "intrinsic_lifetime/kerr-2002.toml",
-     "of 1e15 cm^-3 it gives {} (n-type) and {} (p-type) of richter-2012's lifetime",
-     _kerr_over_richter),
-    (DEFECTS / "iron-interstitial-paudyal-2010.toml",
-     "At 300 K: sigma_n = {} cm^2 and sigma_p = {} cm^2",
-     lambda: _paudyal("iron-interstitial-paudyal-2010")),
-    (DEFECTS / "iron-boron-pair-paudyal-2010.toml",
-     "At 300 K: sigma_n = {} cm^2 and sigma_p = {} cm^2",
-     lambda: _paudyal("iron-boron-pair-paudyal-2010")),
-    (DEFECTS / "iron-boron-pair.toml", "give {} and {} cm^2 at 300 K",
-     lambda: _paudyal("iron-boron-pair-paudyal-2010")),
+    (
+        MODELS / "intrinsic_lifetime/richter-2012.toml",
+        (
+            "C_a = 3.0e-29 dn^-0.08: {}e-30 at 1e15, {}e-30 at 5e15, {}e-30 at 1e16, {}e-30 "
+            "cm^6/s at 5e16 cm^-3"
+        ),
+        _richter_ambipolar,
+    ),
+    (
+        MODELS / "intrinsic_lifetime/richter-2012.toml",
+        (
+            "Radiative recombination makes up {} % (n-type) and {} % (p-type) of the "
+            "low-injection intrinsic rate at 1e15 cm^-3, and {} % and {} % at 1e16 cm^-3"
+        ),
+        _radiative_shares,
+    ),
+    (
+        MODELS / "intrinsic_lifetime/kerr-2002.toml",
+        "of 1e15 cm^-3 it gives {} (n-type) and {} (p-type) of richter-2012's lifetime",
+        _kerr_over_richter,
+    ),
+    (
+        DEFECTS / "iron-interstitial-paudyal-2010.toml",
+        "At 300 K: sigma_n = {} cm^2 and sigma_p = {} cm^2",
+        lambda: _paudyal("iron-interstitial-paudyal-2010"),
+    ),
+    (
+        DEFECTS / "iron-boron-pair-paudyal-2010.toml",
+        "At 300 K: sigma_n = {} cm^2 and sigma_p = {} cm^2",
+        lambda: _paudyal("iron-boron-pair-paudyal-2010"),
+    ),
+    (
+        DEFECTS / "iron-boron-pair.toml",
+        "give {} and {} cm^2 at 300 K",
+        lambda: _paudyal("iron-boron-pair-paudyal-2010"),
+    ),
 ]
 
 
@@ -199,9 +247,11 @@ def _normalise(text):
     return re.sub(r"\s+", " ", text)
 
 
-@pytest.mark.parametrize("path, template, compute", QUOTED,
-                         ids=[f"{Path(p).name}:{t[:30]}" for p, t, _ in QUOTED])
+@pytest.mark.parametrize(
+    "path, template, compute", QUOTED, ids=[f"{Path(p).name}:{t[:30]}" for p, t, _ in QUOTED]
+)
 def test_quoted_figures_are_what_the_code_gives(path, template, compute):
     expected = _normalise(template.format(*compute()))
-    assert expected in _normalise(Path(path).read_text()), \
+    assert expected in _normalise(Path(path).read_text()), (
         f"{Path(path).name} should say: {expected!r}"
+    )

@@ -21,7 +21,7 @@ from outside_data import green_temperature_ratio
 
 import matprops
 from matprops import optics
-from matprops.catalog import datasets_root, default_catalog
+from matprops.catalogue.store import datasets_root, default_catalog
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -37,11 +37,13 @@ def with_model(quantity, model_id, **more):
 
 
 def absorption(model_id, wavelength, temperature=300.0):
-    return quiet(with_model("absorption", model_id).absorption, wavelength,
-                 temperature).m_as("1/cm")
+    return quiet(with_model("absorption", model_id).absorption, wavelength, temperature).m_as(
+        "1/cm"
+    )
 
 
 # ------------------------------------------------------------------------- identities
+
 
 @pytest.mark.parametrize("model_id", matprops.models("band_gap"))
 def test_gap_tends_to_its_own_zero_kelvin_coefficient(model_id):
@@ -69,8 +71,9 @@ def test_boltzmann_follows_the_chosen_gap():
 def test_default_absorption_equals_green_at_its_reference_temperature(si):
     # identity: the default scales Green's table by a ratio that is 1 at 300 K
     lam = np.arange(250.0, 1181.0, 10.0)
-    np.testing.assert_allclose(si.absorption(lam, 300.0).m_as("1/cm"),
-                               absorption("green-2008", lam), rtol=1e-12)
+    np.testing.assert_allclose(
+        si.absorption(lam, 300.0).m_as("1/cm"), absorption("green-2008", lam), rtol=1e-12
+    )
 
 
 def test_density_is_the_formula_of_the_lattice_constant_and_atomic_weight(si):
@@ -88,8 +91,7 @@ def test_lattice_constant_integrates_the_expansion_coefficient_of_its_file():
     for t in (150.0, 300.0, 600.0, 1200.0):
         a = si.lattice_constant(np.array([t - 0.01, t + 0.01])).m_as("nm")
         slope = np.log(a[1] / a[0]) / 0.02
-        formula = (c["c1"] * (1 - np.exp(-c["c2"] * (t - c["onset_temperature"])))
-                   + c["c3"] * t)
+        formula = c["c1"] * (1 - np.exp(-c["c2"] * (t - c["onset_temperature"]))) + c["c3"] * t
         assert slope == pytest.approx(formula, rel=1e-6)
 
 
@@ -105,13 +107,18 @@ def test_linear_free_carrier_forms_follow_their_own_equations():
     soref = with_model("free_carrier_absorption", "soref-1987")
     model = default_catalog().model("free_carrier_absorption", "soref-1987")
     coefficients = model.provenance()["coefficients"]
-    for lam, sn, sp in zip(coefficients["wavelengths"]["value"],
-                           coefficients["electron_cross_sections"]["value"],
-                           coefficients["hole_cross_sections"]["value"], strict=True):
-        assert soref.free_carrier_absorption(lam, n=1e18).m_as("1/cm") == \
-            pytest.approx(sn * 1e18, rel=1e-12)
-        assert soref.free_carrier_absorption(lam, p=1e18).m_as("1/cm") == \
-            pytest.approx(sp * 1e18, rel=1e-12)
+    for lam, sn, sp in zip(
+        coefficients["wavelengths"]["value"],
+        coefficients["electron_cross_sections"]["value"],
+        coefficients["hole_cross_sections"]["value"],
+        strict=True,
+    ):
+        assert soref.free_carrier_absorption(lam, n=1e18).m_as("1/cm") == pytest.approx(
+            sn * 1e18, rel=1e-12
+        )
+        assert soref.free_carrier_absorption(lam, p=1e18).m_as("1/cm") == pytest.approx(
+            sp * 1e18, rel=1e-12
+        )
 
 
 # ------------------------------------------------- numbers derived here by a stated rule
@@ -145,8 +152,9 @@ def band_to_band_limits(cap):
     return points
 
 
-@pytest.mark.parametrize("model_id, cap", [("green-2008-franta-2017", 1180.0),
-                                           ("franta-2017", 1200.0)])
+@pytest.mark.parametrize(
+    "model_id, cap", [("green-2008-franta-2017", 1180.0), ("franta-2017", 1200.0)]
+)
 def test_validity_region_limits_follow_the_stated_rule(model_id, cap):
     # regression: the region's numbers are derived from the committed table by the rule
     # written in the model file; re-derive them and compare
@@ -159,9 +167,10 @@ def test_validity_region_limits_follow_the_stated_rule(model_id, cap):
 
 # ------------------------------------------------ figures quoted in notes and the README
 
+
 def up(value, decimals):
     """Round up: a figure quoted as 'within x' must not be below the true value."""
-    scale = 10 ** decimals
+    scale = 10**decimals
     return f"{math.ceil(value * scale - 1e-9) / scale:.{decimals}f}"
 
 
@@ -190,17 +199,24 @@ def _green_temperature_coefficients():
     ours, theirs = [], []
     for t in temperatures:
         green = green_temperature_ratio(lam, t)
-        ours.append(quiet(si.absorption, lam, t).m_as("1/cm")
-                    / si.absorption(lam, 300.0).m_as("1/cm") / green - 1)
-        theirs.append(quiet(raj.absorption, lam, t).m_as("1/cm")
-                      / raj.absorption(lam, 300.0).m_as("1/cm") / green - 1)
+        ours.append(
+            quiet(si.absorption, lam, t).m_as("1/cm")
+            / si.absorption(lam, 300.0).m_as("1/cm")
+            / green
+            - 1
+        )
+        theirs.append(
+            quiet(raj.absorption, lam, t).m_as("1/cm")
+            / raj.absorption(lam, 300.0).m_as("1/cm")
+            / green
+            - 1
+        )
     return up(100 * np.abs(ours).max(), 0), up(100 * np.abs(theirs).max(), 0)
 
 
 def _region_text(model_id, last):
     (region,) = default_catalog().model("absorption", model_id).regions
-    parts = [f"{b:g} nm at {t:g} K" for t, b in zip(region.by_values, region.bounds,
-                                                      strict=True)]
+    parts = [f"{b:g} nm at {t:g} K" for t, b in zip(region.by_values, region.bounds, strict=True)]
     parts[-1] = parts[-1].replace(" at ", " from ")
     return ", ".join(parts[:-1]) + f"{last} " + parts[-1]
 
@@ -231,20 +247,23 @@ def _nedeljkovic():
     model = default_catalog().model("free_carrier_absorption", "nedeljkovic-2011")
     c = model.provenance()["coefficients"]
     si = with_model("free_carrier_absorption", "nedeljkovic-2011")
-    low = max(si.free_carrier_absorption(1550, n=1e17).m_as("1/cm"),
-              si.free_carrier_absorption(1550, p=1e17).m_as("1/cm"))
+    low = max(
+        si.free_carrier_absorption(1550, n=1e17).m_as("1/cm"),
+        si.free_carrier_absorption(1550, p=1e17).m_as("1/cm"),
+    )
     e, h = c["electron_exponents"]["value"], c["hole_exponents"]["value"]
-    return (near(min(e), 2), near(max(e), 2), near(min(h), 2), near(max(h), 2),
-            up(low, 1))
+    return (near(min(e), 2), near(max(e), 2), near(min(h), 2), near(max(h), 2), up(low, 1))
 
 
 def _schroder_against_soref():
     schroder = with_model("free_carrier_absorption", "schroder-1978")
     soref = with_model("free_carrier_absorption", "soref-1987")
-    e = (soref.free_carrier_absorption(1550, n=1e16)
-         / schroder.free_carrier_absorption(1550, n=1e16)).m_as("")
-    h = (schroder.free_carrier_absorption(1550, p=1e16)
-         / soref.free_carrier_absorption(1550, p=1e16)).m_as("") - 1
+    e = (
+        soref.free_carrier_absorption(1550, n=1e16) / schroder.free_carrier_absorption(1550, n=1e16)
+    ).m_as("")
+    h = (
+        schroder.free_carrier_absorption(1550, p=1e16) / soref.free_carrier_absorption(1550, p=1e16)
+    ).m_as("") - 1
     return near(e, 1), near(100 * h)
 
 
@@ -264,10 +283,14 @@ def _ni(model_id=None):
 
 
 def _gap_spread_473():
-    g = {m: with_model("band_gap", m).band_gap(473.15).m_as("eV")
-         for m in ("thurmond-1975", "alex-1996", "passler-2002")}
-    return (near(1e3 * (g["passler-2002"] - g["thurmond-1975"]), 1),
-            near(1e3 * (g["passler-2002"] - g["alex-1996"]), 1))
+    g = {
+        m: with_model("band_gap", m).band_gap(473.15).m_as("eV")
+        for m in ("thurmond-1975", "alex-1996", "passler-2002")
+    }
+    return (
+        near(1e3 * (g["passler-2002"] - g["thurmond-1975"]), 1),
+        near(1e3 * (g["passler-2002"] - g["alex-1996"]), 1),
+    )
 
 
 def _passler_bludau():
@@ -300,91 +323,180 @@ def _okada():
 
 
 def _bludau_switch():
-    low, high = [default_catalog().model("band_gap", "bludau-1974").provenance()
-                 ["coefficients"][k]["value"] for k in ("low_coefficients", "high_coefficients")]
+    low, high = [
+        default_catalog().model("band_gap", "bludau-1974").provenance()["coefficients"][k]["value"]
+        for k in ("low_coefficients", "high_coefficients")
+    ]
     t = 170.0
     return (near(1e3 * abs(np.polyval(low[::-1], t) - np.polyval(high[::-1], t)), 2),)
 
 
 def _thickness_800():
     si = matprops.silicon()
-    return (near(optics.thickness_for_absorbed_fraction(si.absorption(800, 300), 0.9)
-                 .m_as("um")),)
+    return (near(optics.thickness_for_absorbed_fraction(si.absorption(800, 300), 0.9).m_as("um")),)
 
 
 MODELS = datasets_root() / "models"
 # (file, text with {} placeholders, function returning the values that fill them)
 QUOTED = [
-    (MODELS / "absorption/green-2008-franta-2017.toml",
-     ("within {} % of the independent Schinke et al. 2015 data at 400-1150 nm; the largest "
-     "gap at {} nm"), _schinke),
-    (MODELS / "absorption/green-2008-franta-2017.toml",
-     ("T^(300 K x C)) within {} %, while the independent Rajkanan et al. 1979 model differs "
-     "from those coefficients by up to {} %"), _green_temperature_coefficients),
-    (MODELS / "absorption/green-2008-franta-2017.toml", "wavelength by temperature: {}",
-     lambda: (_region_text("green-2008-franta-2017", " and"),)),
-    (MODELS / "absorption/franta-2017.toml", "wavelength by temperature: {}",
-     lambda: (_region_text("franta-2017", " and"),)),
-    (MODELS / "absorption/franta-2017.toml", ("differs from Green 2008 by {} % to +{} % at "
-     "450-900 nm"), lambda: percent_span(_green_ratio("franta-2017", 450, 900)[0])),
-    (MODELS / "absorption/rajkanan-1979.toml", ("it lies {}-{} % above Green 2008 at "
-     "450-1050 nm ({}-{} % at 550-1050 nm)"),
-     lambda: percent_span(_green_ratio("rajkanan-1979", 450, 1050)[0])
-     + percent_span(_green_ratio("rajkanan-1979", 550, 1050)[0])),
-    (MODELS / "absorption/rajkanan-1979.toml", "phonon-assisted edge ({} nm at 300 K)",
-     lambda: (_rajkanan_edge(),)),
-    (MODELS / "free_carrier_absorption/schroder-1978.toml", ("electron term is {} times below "
-     "Soref & Bennett's 1987 value and its hole term {} % above"), _schroder_against_soref),
-    (MODELS / "free_carrier_absorption/nedeljkovic-2011.toml", ("(exponents {}-{} for "
-     "electrons, {}-{} for holes)"), lambda: _nedeljkovic()[:4]),
-    (MODELS / "free_carrier_absorption/nedeljkovic-2011.toml", ("below about {} /cm at "
-     "1550 nm"), lambda: _nedeljkovic()[4:]),
+    (
+        MODELS / "absorption/green-2008-franta-2017.toml",
+        (
+            "within {} % of the independent Schinke et al. 2015 data at 400-1150 nm; the largest "
+            "gap at {} nm"
+        ),
+        _schinke,
+    ),
+    (
+        MODELS / "absorption/green-2008-franta-2017.toml",
+        (
+            "T^(300 K x C)) within {} %, while the independent Rajkanan et al. 1979 model differs "
+            "from those coefficients by up to {} %"
+        ),
+        _green_temperature_coefficients,
+    ),
+    (
+        MODELS / "absorption/green-2008-franta-2017.toml",
+        "wavelength by temperature: {}",
+        lambda: (_region_text("green-2008-franta-2017", " and"),),
+    ),
+    (
+        MODELS / "absorption/franta-2017.toml",
+        "wavelength by temperature: {}",
+        lambda: (_region_text("franta-2017", " and"),),
+    ),
+    (
+        MODELS / "absorption/franta-2017.toml",
+        ("differs from Green 2008 by {} % to +{} % at 450-900 nm"),
+        lambda: percent_span(_green_ratio("franta-2017", 450, 900)[0]),
+    ),
+    (
+        MODELS / "absorption/rajkanan-1979.toml",
+        ("it lies {}-{} % above Green 2008 at 450-1050 nm ({}-{} % at 550-1050 nm)"),
+        lambda: (
+            percent_span(_green_ratio("rajkanan-1979", 450, 1050)[0])
+            + percent_span(_green_ratio("rajkanan-1979", 550, 1050)[0])
+        ),
+    ),
+    (
+        MODELS / "absorption/rajkanan-1979.toml",
+        "phonon-assisted edge ({} nm at 300 K)",
+        lambda: (_rajkanan_edge(),),
+    ),
+    (
+        MODELS / "free_carrier_absorption/schroder-1978.toml",
+        (
+            "electron term is {} times below "
+            "Soref & Bennett's 1987 value and its hole term {} % above"
+        ),
+        _schroder_against_soref,
+    ),
+    (
+        MODELS / "free_carrier_absorption/nedeljkovic-2011.toml",
+        ("(exponents {}-{} for electrons, {}-{} for holes)"),
+        lambda: _nedeljkovic()[:4],
+    ),
+    (
+        MODELS / "free_carrier_absorption/nedeljkovic-2011.toml",
+        ("below about {} /cm at 1550 nm"),
+        lambda: _nedeljkovic()[4:],
+    ),
     (MODELS / "band_gap/alex-1996.toml", "Eg(300 K) = {} eV", lambda: (_gap("alex-1996"),)),
-    (MODELS / "band_gap/passler-1999.toml", "Eg(300 K) = {} eV",
-     lambda: (_gap("passler-1999"),)),
-    (MODELS / "band_gap/passler-2002.toml", "Eg(300 K) = {} eV",
-     lambda: (_gap("passler-2002"),)),
-    (MODELS / "band_gap/passler-2002.toml", ("within {} meV of Bludau et al.'s two fits over "
-     "4-300 K"), _passler_bludau),
-    (MODELS / "band_gap/passler-2002.toml", ("At 473 K it lies {} meV above thurmond-1975 "
-     "and {} meV above alex-1996"), _gap_spread_473),
-    (MODELS / "band_gap/thurmond-1975.toml", "Eg(300 K) = {} eV",
-     lambda: (_gap("thurmond-1975"),)),
-    (MODELS / "band_gap/bludau-1974.toml", "switches at 170 K, where they differ by {} meV",
-     _bludau_switch),
+    (MODELS / "band_gap/passler-1999.toml", "Eg(300 K) = {} eV", lambda: (_gap("passler-1999"),)),
+    (MODELS / "band_gap/passler-2002.toml", "Eg(300 K) = {} eV", lambda: (_gap("passler-2002"),)),
+    (
+        MODELS / "band_gap/passler-2002.toml",
+        ("within {} meV of Bludau et al.'s two fits over 4-300 K"),
+        _passler_bludau,
+    ),
+    (
+        MODELS / "band_gap/passler-2002.toml",
+        ("At 473 K it lies {} meV above thurmond-1975 and {} meV above alex-1996"),
+        _gap_spread_473,
+    ),
+    (MODELS / "band_gap/thurmond-1975.toml", "Eg(300 K) = {} eV", lambda: (_gap("thurmond-1975"),)),
+    (
+        MODELS / "band_gap/bludau-1974.toml",
+        "switches at 170 K, where they differ by {} meV",
+        _bludau_switch,
+    ),
     (MODELS / "densities_of_states/green-1990.toml", "at 300 K to {} %", _green_1990),
-    (MODELS / "densities_of_states/green-1990.toml", ("by at most {} % at 0-300 K ({} % at "
-     "300 K)"), _gap_ratio_thurmond_bludau),
-    (MODELS / "densities_of_states/couderc-2014.toml", ("(within {} % at 300 K and {} % at "
-     "200-500 K)"), _couderc_consistency),
-    (MODELS / "densities_of_states/couderc-2014.toml", "Nv(300 K) = {} cm^-3", lambda: (
-        sci(matprops.silicon().densities_of_states(300)[1].m_as("cm^-3")),)),
-    (MODELS / "intrinsic_density/couderc-2014.toml", "ni(300 K) = {} cm^-3",
-     lambda: (_ni(),)),
-    (MODELS / "intrinsic_density/boltzmann.toml", ("within {} % at\n300 K and {} % over "
-     "77-500 K"), _boltzmann),
-    (MODELS / "intrinsic_density/sproul-1991.toml", "Gives ni(300 K) = {} cm^-3",
-     lambda: (_ni("sproul-1991"),)),
-    (MODELS / "intrinsic_density/sproul-1993.toml", "Gives ni(300 K) = {} cm^-3",
-     lambda: (_ni("sproul-1993"),)),
-    (MODELS / "lattice_constant/okada-1984.toml", ("Gives {} nm at 22.5 C, within {} "
-     "(relative)"), _okada),
+    (
+        MODELS / "densities_of_states/green-1990.toml",
+        ("by at most {} % at 0-300 K ({} % at 300 K)"),
+        _gap_ratio_thurmond_bludau,
+    ),
+    (
+        MODELS / "densities_of_states/couderc-2014.toml",
+        ("(within {} % at 300 K and {} % at 200-500 K)"),
+        _couderc_consistency,
+    ),
+    (
+        MODELS / "densities_of_states/couderc-2014.toml",
+        "Nv(300 K) = {} cm^-3",
+        lambda: (sci(matprops.silicon().densities_of_states(300)[1].m_as("cm^-3")),),
+    ),
+    (MODELS / "intrinsic_density/couderc-2014.toml", "ni(300 K) = {} cm^-3", lambda: (_ni(),)),
+    (
+        MODELS / "intrinsic_density/boltzmann.toml",
+        ("within {} % at\n300 K and {} % over 77-500 K"),
+        _boltzmann,
+    ),
+    (
+        MODELS / "intrinsic_density/sproul-1991.toml",
+        "Gives ni(300 K) = {} cm^-3",
+        lambda: (_ni("sproul-1991"),),
+    ),
+    (
+        MODELS / "intrinsic_density/sproul-1993.toml",
+        "Gives ni(300 K) = {} cm^-3",
+        lambda: (_ni("sproul-1993"),),
+    ),
+    (
+        MODELS / "lattice_constant/okada-1984.toml",
+        ("Gives {} nm at 22.5 C, within {} (relative)"),
+        _okada,
+    ),
     (datasets_root() / "releases/2026.1.toml", "{} cm^-3 at 300 K", lambda: (_ni(),)),
-    (ROOT / "README.md", "si.band_gap(300)                              # {} eV",
-     lambda: (_gap("passler-2002"),)),
-    (ROOT / "README.md", "si.intrinsic_density(300)                     # {} cm^-3",
-     lambda: (_ni(),)),
+    (
+        ROOT / "README.md",
+        "si.band_gap(300)                              # {} eV",
+        lambda: (_gap("passler-2002"),),
+    ),
+    (
+        ROOT / "README.md",
+        "si.intrinsic_density(300)                     # {} cm^-3",
+        lambda: (_ni(),),
+    ),
     (ROOT / "README.md", "0.9)   # ~{} um", _thickness_800),
     (ROOT / "README.md", "`couderc-2014`, gives {} cm^-3 at 300 K", lambda: (_ni(),)),
-    (ROOT / "README.md", ("within {} % of the independent Schinke et al. 2015 data at "
-     "400-1150 nm, largest at {} nm"), _schinke),
-    (ROOT / "README.md", ("coefficients within {} % at 500-1050 nm and 250-350 K, closer "
-     "than the independent Rajkanan et al. 1979 model ({} %)"),
-     _green_temperature_coefficients),
-    (ROOT / "README.md", ("Franta's own values run {} % to +{} % off Green's at 300 K "
-     "(450-900 nm) and Rajkanan's {}-{} % above them (450-1050 nm)"),
-     lambda: percent_span(_green_ratio("franta-2017", 450, 900)[0])
-     + percent_span(_green_ratio("rajkanan-1979", 450, 1050)[0])),
+    (
+        ROOT / "README.md",
+        (
+            "within {} % of the independent Schinke et al. 2015 data at "
+            "400-1150 nm, largest at {} nm"
+        ),
+        _schinke,
+    ),
+    (
+        ROOT / "README.md",
+        (
+            "coefficients within {} % at 500-1050 nm and 250-350 K, closer "
+            "than the independent Rajkanan et al. 1979 model ({} %)"
+        ),
+        _green_temperature_coefficients,
+    ),
+    (
+        ROOT / "README.md",
+        (
+            "Franta's own values run {} % to +{} % off Green's at 300 K "
+            "(450-900 nm) and Rajkanan's {}-{} % above them (450-1050 nm)"
+        ),
+        lambda: (
+            percent_span(_green_ratio("franta-2017", 450, 900)[0])
+            + percent_span(_green_ratio("rajkanan-1979", 450, 1050)[0])
+        ),
+    ),
 ]
 
 
@@ -392,11 +504,11 @@ def _normalise(text):
     return re.sub(r"\s+", " ", text)
 
 
-@pytest.mark.parametrize("path, template, compute", QUOTED,
-                         ids=[f"{p.name}:{t[:30]}" for p, t, _ in QUOTED])
+@pytest.mark.parametrize(
+    "path, template, compute", QUOTED, ids=[f"{p.name}:{t[:30]}" for p, t, _ in QUOTED]
+)
 def test_quoted_figures_are_what_the_code_gives(path, template, compute):
     # regression of the text: recompute each quoted figure from the code; if the code or
     # data change, the note must change with them
     expected = _normalise(template.format(*compute()))
-    assert expected in _normalise(path.read_text()), \
-        f"{path.name} should say: {expected!r}"
+    assert expected in _normalise(path.read_text()), f"{path.name} should say: {expected!r}"

@@ -5,7 +5,7 @@ import json
 import pytest
 
 import matprops
-from matprops.reference import compare, regenerate
+from matprops.outputs.reference import compare, regenerate
 
 
 @pytest.mark.parametrize("release_id", matprops.releases())
@@ -31,7 +31,7 @@ def test_a_change_is_detected(datasets_copy):
 
 
 def test_the_release_is_final_and_says_so(capsys):
-    from matprops.catalog import default_catalog
+    from matprops.catalogue.store import default_catalog
     from matprops.cli import main
 
     assert default_catalog().release("2026.1").final
@@ -42,23 +42,30 @@ def test_the_release_is_final_and_says_so(capsys):
 def test_final_reference_covers_every_pinned_quantity_and_data_file():
     # every model the release pins is evaluated by some case of its frozen reference,
     # every dopant species of its ionisation model and every defect of the catalogue
-    from matprops.catalog import default_catalog
-    from matprops.reference import _needs
+    from matprops.catalogue.store import default_catalog
+    from matprops.outputs.reference import _needs
 
     catalog = default_catalog()
     release = catalog.release("2026.1")
     frozen = json.loads(catalog.verified_bytes(release.reference_path))
-    covered = {q for case in frozen["cases"].values()
-               for q in _needs(case["method"], case["fixed"])}
+    covered = {
+        q for case in frozen["cases"].values() for q in _needs(case["method"], case["fixed"])
+    }
     assert set(release.models) <= covered
     assert set(frozen["model_files"]) == set(release.models)
-    species = {case["fixed"]["dopant"] for case in frozen["cases"].values()
-               if case["method"] == "dopant_level"}
+    species = {
+        case["fixed"]["dopant"]
+        for case in frozen["cases"].values()
+        if case["method"] == "dopant_level"
+    }
     assert species == set(catalog.model("ionisation", release.models["ionisation"]).variants)
-    from matprops import defects
+    from matprops.catalogue import defects
 
-    defects_covered = {case["fixed"]["defect"] for case in frozen["cases"].values()
-                       if case["method"] == "srh_lifetime"}
+    defects_covered = {
+        case["fixed"]["defect"]
+        for case in frozen["cases"].values()
+        if case["method"] == "srh_lifetime"
+    }
     assert defects_covered == set(defects.names(catalog))
     assert {f"defects/{n}.toml" for n in defects_covered} == set(frozen["data_files"])
 
@@ -106,15 +113,19 @@ def _scale_table(root, name, variable, wavelength, factor, temperature=None):
     data.to_netcdf(path)
 
 
-@pytest.mark.parametrize("name, variable, wavelength, temperature", [
-    # 810 nm lies between the fixed grid's 800 and 900 nm
-    ("green-2008.nc", "absorption_coefficient", 810.0, None),
-    ("green-2008.nc", "refractive_index", 1230.0, None),
-    # a point of the temperature series on no wavelength of Green's grid
-    ("franta-2017.nc", "absorption_coefficient", None, 150.0),
-])
-def test_an_edit_anywhere_in_a_table_is_detected(datasets_copy, name, variable, wavelength,
-                                                 temperature):
+@pytest.mark.parametrize(
+    "name, variable, wavelength, temperature",
+    [
+        # 810 nm lies between the fixed grid's 800 and 900 nm
+        ("green-2008.nc", "absorption_coefficient", 810.0, None),
+        ("green-2008.nc", "refractive_index", 1230.0, None),
+        # a point of the temperature series on no wavelength of Green's grid
+        ("franta-2017.nc", "absorption_coefficient", None, 150.0),
+    ],
+)
+def test_an_edit_anywhere_in_a_table_is_detected(
+    datasets_copy, name, variable, wavelength, temperature
+):
     root, catalog = datasets_copy
     if wavelength is None:  # pick a Franta wavelength between two of Green's
         table = catalog.table("franta-2017.nc")
@@ -129,6 +140,7 @@ def test_an_edit_anywhere_in_a_table_is_detected(datasets_copy, name, variable, 
 
 
 # ------------------------------------------------------------------ read-only installs
+
 
 @pytest.fixture
 def read_only(monkeypatch):
@@ -152,7 +164,7 @@ def read_only(monkeypatch):
 
 def test_update_checksums_on_a_read_only_install_says_so(datasets_copy, read_only, capsys):
     # before: an OSError traceback
-    from matprops.catalog import main
+    from matprops.catalogue.__main__ import main
 
     root, _ = datasets_copy
     read_only(root)
@@ -166,10 +178,11 @@ def test_update_checksums_on_a_read_only_install_says_so(datasets_copy, read_onl
     assert not list(root.glob(".*tmp*"))
 
 
-def test_reference_regenerate_on_a_read_only_install_says_so(datasets_copy, read_only,
-                                                             capsys, monkeypatch):
-    from matprops import catalog as catalog_module
-    from matprops.reference import main
+def test_reference_regenerate_on_a_read_only_install_says_so(
+    datasets_copy, read_only, capsys, monkeypatch
+):
+    from matprops.catalogue import store as catalog_module
+    from matprops.outputs.reference import main
 
     root, catalog = datasets_copy
     toml = root / "releases/2026.1.toml"  # a draft (a final release refuses first)

@@ -38,12 +38,17 @@ import matprops
 from matprops import optics
 
 EXAMPLES = int(os.environ.get("MATPROPS_SWEEP_EXAMPLES", "20"))
-SWEEP = settings(deadline=None, max_examples=EXAMPLES, database=None,
-                 derandomize=not os.environ.get("MATPROPS_SWEEP_RANDOM"),
-                 suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
+SWEEP = settings(
+    deadline=None,
+    max_examples=EXAMPLES,
+    database=None,
+    derandomize=not os.environ.get("MATPROPS_SWEEP_RANDOM"),
+    suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large],
+)
 
 
 # ------------------------------------------------------------------ kinds of argument
+
 
 @dataclass(frozen=True)
 class Number:
@@ -65,26 +70,48 @@ class Choice:
 
 
 KINDS = {
-    "temperature": Number("K", ("K", "degC", "degF", "degR", "mK"),
-                          ("m", "eV", "s", "delta_degC", "cm^-3"),
-                          (4.0, 77.0, 250.0, 300.0, 350.0, 500.0, 1200.0)),
-    "wavelength": Number("nm", ("nm", "um", "m", "eV", "THz", "1/cm"),
-                         ("K", "s", "cm^-3", "dimensionless"),
-                         (250.0, 400.0, 800.0, 1000.0, 1100.0, 1550.0, 3000.0)),
-    "density": Number("cm^-3", ("cm^-3", "m^-3", "1/um^3"), ("cm^-2", "K", "nm"),
-                      (0.0, 1e10, 1e15, 1e17, 1e19, 1e20, 1e21)),
-    "absorption_coefficient": Number("1/cm", ("1/cm", "1/m", "1/um"), ("cm", "K", "eV"),
-                                     (1e-3, 1.0, 64.0, 1e3, 1e4, 1e6)),
-    "thickness": Number("cm", ("cm", "um", "m", "nm"), ("1/cm", "K", "s"),
-                        (1e-7, 1e-4, 0.018, 0.02, 1.0)),
-    "fraction": Number("dimensionless", ("dimensionless", "percent"), ("m", "K"),
-                       (0.01, 0.5, 0.9, 0.999)),
-    "photon_energy": Number("eV", ("eV", "J", "meV", "nm"), ("K", "s", "cm^-3"),
-                            (0.5, 1.1, 1.5, 3.0, 4.5)),
-    "field": Number("V/cm", ("V/cm", "kV/cm", "V/m", "V/um"), ("V", "K", "ohm*cm"),
-                    (0.0, 1e2, 1e4, 3e4, 6e4, 1e5)),
-    "resistivity": Number("ohm*cm", ("ohm*cm", "ohm*m", "mohm*cm", "kohm*cm"),
-                          ("ohm", "cm", "S/cm", "K"), (1e-4, 1e-3, 0.01, 1.0, 10.0, 1e4)),
+    "temperature": Number(
+        "K",
+        ("K", "degC", "degF", "degR", "mK"),
+        ("m", "eV", "s", "delta_degC", "cm^-3"),
+        (4.0, 77.0, 250.0, 300.0, 350.0, 500.0, 1200.0),
+    ),
+    "wavelength": Number(
+        "nm",
+        ("nm", "um", "m", "eV", "THz", "1/cm"),
+        ("K", "s", "cm^-3", "dimensionless"),
+        (250.0, 400.0, 800.0, 1000.0, 1100.0, 1550.0, 3000.0),
+    ),
+    "density": Number(
+        "cm^-3",
+        ("cm^-3", "m^-3", "1/um^3"),
+        ("cm^-2", "K", "nm"),
+        (0.0, 1e10, 1e15, 1e17, 1e19, 1e20, 1e21),
+    ),
+    "absorption_coefficient": Number(
+        "1/cm", ("1/cm", "1/m", "1/um"), ("cm", "K", "eV"), (1e-3, 1.0, 64.0, 1e3, 1e4, 1e6)
+    ),
+    "thickness": Number(
+        "cm", ("cm", "um", "m", "nm"), ("1/cm", "K", "s"), (1e-7, 1e-4, 0.018, 0.02, 1.0)
+    ),
+    "fraction": Number(
+        "dimensionless", ("dimensionless", "percent"), ("m", "K"), (0.01, 0.5, 0.9, 0.999)
+    ),
+    "photon_energy": Number(
+        "eV", ("eV", "J", "meV", "nm"), ("K", "s", "cm^-3"), (0.5, 1.1, 1.5, 3.0, 4.5)
+    ),
+    "field": Number(
+        "V/cm",
+        ("V/cm", "kV/cm", "V/m", "V/um"),
+        ("V", "K", "ohm*cm"),
+        (0.0, 1e2, 1e4, 3e4, 6e4, 1e5),
+    ),
+    "resistivity": Number(
+        "ohm*cm",
+        ("ohm*cm", "ohm*m", "mohm*cm", "kohm*cm"),
+        ("ohm", "cm", "S/cm", "K"),
+        (1e-4, 1e-3, 0.01, 1.0, 10.0, 1e4),
+    ),
     "plane": Choice(("100", "110", "111", "(111)", "{100}", "1 1 0", 111)),
     "carrier": Choice(("electron", "hole", "electrons", "e", "h")),
     "dopant_densities": Choice(("total", "ionised")),
@@ -93,26 +120,78 @@ KINDS = {
     "donor": Choice(("phosphorus", "arsenic", "P", "boron")),
     "acceptor": Choice(("boron", "B", "gallium", "phosphorus")),
     "statistics": Choice((None, "fermi-dirac", "boltzmann")),
-    "generation": Number("cm^-2/s", ("cm^-2/s", "1/(m^2*s)", "mA/cm^2"), ("K", "cm", "V"),
-                         (1e12, 1e16, 2.5e17, 1e20)),
-    "capture_time": Number("s", ("s", "us", "ms"), ("m", "K", "cm^-3"),
-                           (1e-9, 1e-6, 1e-3, 1.0)),
-    "defect": Choice(("Fe_i", "iron-boron-pair", "boron-oxygen", "FeB",
-                      {"level": 0.3, "reference": "valence", "electron_cross_section": 1e-15,
-                       "hole_cross_section": 1e-16},
-                      {"level": 0.0, "reference": "intrinsic", "cross_section_ratio": 2.0}),
-                     ("", "nonsense", None, 3, 1.5, ("a",), ["x"], b"bytes",
-                      {"level": 5.0, "reference": "valence", "electron_cross_section": 1e-15,
-                       "hole_cross_section": 1e-15},
-                      {"level": 0.3, "reference": "valence"}, {"level": float("nan")})),
+    "generation": Number(
+        "cm^-2/s", ("cm^-2/s", "1/(m^2*s)", "mA/cm^2"), ("K", "cm", "V"), (1e12, 1e16, 2.5e17, 1e20)
+    ),
+    "capture_time": Number("s", ("s", "us", "ms"), ("m", "K", "cm^-3"), (1e-9, 1e-6, 1e-3, 1.0)),
+    "defect": Choice(
+        (
+            "Fe_i",
+            "iron-boron-pair",
+            "boron-oxygen",
+            "FeB",
+            {
+                "level": 0.3,
+                "reference": "valence",
+                "electron_cross_section": 1e-15,
+                "hole_cross_section": 1e-16,
+            },
+            {"level": 0.0, "reference": "intrinsic", "cross_section_ratio": 2.0},
+        ),
+        (
+            "",
+            "nonsense",
+            None,
+            3,
+            1.5,
+            ("a",),
+            ["x"],
+            b"bytes",
+            {
+                "level": 5.0,
+                "reference": "valence",
+                "electron_cross_section": 1e-15,
+                "hole_cross_section": 1e-15,
+            },
+            {"level": 0.3, "reference": "valence"},
+            {"level": float("nan")},
+        ),
+    ),
     "boltzmann_statistics": Choice((None, "boltzmann")),  # see FERMI_DIRAC below
-    "quantity": Choice(("band_gap", "intrinsic_density", "absorption", "density",
-                        "effective_intrinsic_density", "ionisation", "bandgap")),
-    "quantities": Choice((None, ["band_gap"], ["band_gap", "density"], ("absorption",),
-                          "band_gap", ["no_such_quantity"], [])),
+    "quantity": Choice(
+        (
+            "band_gap",
+            "intrinsic_density",
+            "absorption",
+            "density",
+            "effective_intrinsic_density",
+            "ionisation",
+            "bandgap",
+        )
+    ),
+    "quantities": Choice(
+        (
+            None,
+            ["band_gap"],
+            ["band_gap", "density"],
+            ("absorption",),
+            "band_gap",
+            ["no_such_quantity"],
+            [],
+        )
+    ),
     "format": Choice(("bibtex", "text", "BibTeX", "json")),
-    "model_ids": Choice((None, ["passler-2002", "thurmond-1975"], ("alex-1996",),
-                         "passler-2002", ["no-such-model"], [3], [])),
+    "model_ids": Choice(
+        (
+            None,
+            ["passler-2002", "thurmond-1975"],
+            ("alex-1996",),
+            "passler-2002",
+            ["no-such-model"],
+            [3],
+            [],
+        )
+    ),
 }
 
 # Silicon methods: (name, positional argument kinds, keyword argument kinds). Keyword
@@ -133,48 +212,153 @@ SILICON_METHODS = [
     ("free_carrier_absorption", ("wavelength",), {"n": "density", "p": "density"}),
     ("dopant_level", ("density",), {"dopant": "dopant"}),
     ("ionisation_energy", ("density",), {"dopant": "dopant"}),
-    ("band_edge_shifts", ("temperature",),
-     {"Na": "density", "Nd": "density", "n": "density", "p": "density",
-      "donor": "donor", "acceptor": "acceptor"}),
-    ("gap_narrowing", ("temperature",),
-     {"Na": "density", "Nd": "density", "n": "density", "p": "density"}),
-    ("effective_intrinsic_density", ("temperature",),
-     {"Na": "density", "Nd": "density", "n": "density", "p": "density"}),
-    ("equilibrium", ("temperature",),
-     {"Na": "density", "Nd": "density", "donor": "donor", "acceptor": "acceptor",
-      "statistics": "statistics"}),
+    (
+        "band_edge_shifts",
+        ("temperature",),
+        {
+            "Na": "density",
+            "Nd": "density",
+            "n": "density",
+            "p": "density",
+            "donor": "donor",
+            "acceptor": "acceptor",
+        },
+    ),
+    (
+        "gap_narrowing",
+        ("temperature",),
+        {"Na": "density", "Nd": "density", "n": "density", "p": "density"},
+    ),
+    (
+        "effective_intrinsic_density",
+        ("temperature",),
+        {"Na": "density", "Nd": "density", "n": "density", "p": "density"},
+    ),
+    (
+        "equilibrium",
+        ("temperature",),
+        {
+            "Na": "density",
+            "Nd": "density",
+            "donor": "donor",
+            "acceptor": "acceptor",
+            "statistics": "statistics",
+        },
+    ),
     ("thermal_velocity", ("carrier", "temperature"), {}),
     ("saturation_velocity", ("carrier", "temperature"), {}),
-    ("mobility", ("carrier", "temperature"),
-     {"Na": "density", "Nd": "density", "n": "density", "p": "density", "donor": "donor",
-      "acceptor": "acceptor", "dopant_densities": "dopant_densities"}),
-    ("high_field_mobility", ("carrier", "field", "temperature"),
-     {"Na": "density", "Nd": "density", "n": "density", "p": "density"}),
-    ("diffusivity", ("carrier", "temperature"),
-     {"Na": "density", "Nd": "density", "n": "density", "p": "density",
-      "statistics": "statistics"}),
-    ("conductivity", ("temperature",), {"Na": "density", "Nd": "density", "donor": "donor",
-                                        "acceptor": "acceptor"}),
-    ("resistivity", ("temperature",), {"Na": "density", "Nd": "density", "donor": "donor",
-                                       "acceptor": "acceptor", "conversion": "conversion"}),
-    ("doping_from_resistivity", ("resistivity", "temperature", "dopant"),
-     {"conversion": "conversion"}),
+    (
+        "mobility",
+        ("carrier", "temperature"),
+        {
+            "Na": "density",
+            "Nd": "density",
+            "n": "density",
+            "p": "density",
+            "donor": "donor",
+            "acceptor": "acceptor",
+            "dopant_densities": "dopant_densities",
+        },
+    ),
+    (
+        "high_field_mobility",
+        ("carrier", "field", "temperature"),
+        {"Na": "density", "Nd": "density", "n": "density", "p": "density"},
+    ),
+    (
+        "diffusivity",
+        ("carrier", "temperature"),
+        {
+            "Na": "density",
+            "Nd": "density",
+            "n": "density",
+            "p": "density",
+            "statistics": "statistics",
+        },
+    ),
+    (
+        "conductivity",
+        ("temperature",),
+        {"Na": "density", "Nd": "density", "donor": "donor", "acceptor": "acceptor"},
+    ),
+    (
+        "resistivity",
+        ("temperature",),
+        {
+            "Na": "density",
+            "Nd": "density",
+            "donor": "donor",
+            "acceptor": "acceptor",
+            "conversion": "conversion",
+        },
+    ),
+    (
+        "doping_from_resistivity",
+        ("resistivity", "temperature", "dopant"),
+        {"conversion": "conversion"},
+    ),
     ("radiative_coefficient", ("temperature",), {}),
-    ("intrinsic_lifetime", ("temperature",),
-     {"Na": "density", "Nd": "density", "excess": "density", "n0": "density",
-      "p0": "density", "donor": "donor", "acceptor": "acceptor", "statistics": "statistics"}),
-    ("auger_lifetime", ("temperature",),
-     {"Na": "density", "Nd": "density", "excess": "density", "n0": "density",
-      "p0": "density", "statistics": "statistics"}),
-    ("srh_lifetime", ("defect", "temperature"),
-     {"Na": "density", "Nd": "density", "excess": "density", "density": "density",
-      "electron_capture_time": "capture_time", "statistics": "statistics"}),
-    ("effective_lifetime", ("temperature",),
-     {"Na": "density", "Nd": "density", "excess": "density", "defect": "defect",
-      "density": "density", "statistics": "statistics"}),
-    ("implied_voltage", ("temperature", "generation", "thickness"),
-     {"Na": "density", "Nd": "density", "defect": "defect", "density": "density",
-      "statistics": "statistics"}),
+    (
+        "intrinsic_lifetime",
+        ("temperature",),
+        {
+            "Na": "density",
+            "Nd": "density",
+            "excess": "density",
+            "n0": "density",
+            "p0": "density",
+            "donor": "donor",
+            "acceptor": "acceptor",
+            "statistics": "statistics",
+        },
+    ),
+    (
+        "auger_lifetime",
+        ("temperature",),
+        {
+            "Na": "density",
+            "Nd": "density",
+            "excess": "density",
+            "n0": "density",
+            "p0": "density",
+            "statistics": "statistics",
+        },
+    ),
+    (
+        "srh_lifetime",
+        ("defect", "temperature"),
+        {
+            "Na": "density",
+            "Nd": "density",
+            "excess": "density",
+            "density": "density",
+            "electron_capture_time": "capture_time",
+            "statistics": "statistics",
+        },
+    ),
+    (
+        "effective_lifetime",
+        ("temperature",),
+        {
+            "Na": "density",
+            "Nd": "density",
+            "excess": "density",
+            "defect": "defect",
+            "density": "density",
+            "statistics": "statistics",
+        },
+    ),
+    (
+        "implied_voltage",
+        ("temperature", "generation", "thickness"),
+        {
+            "Na": "density",
+            "Nd": "density",
+            "defect": "defect",
+            "density": "density",
+            "statistics": "statistics",
+        },
+    ),
     ("defect", ("defect",), {}),
     ("defects", (), {}),
     ("provenance", ("quantity",), {}),
@@ -194,39 +378,66 @@ OPTICS_FUNCTIONS = [
     ("absorption_depth", ("absorption_coefficient",), {}),
     ("photon_energy", ("wavelength",), {}),
     ("wavelength", ("photon_energy",), {}),
-    ("absorbed_fraction_spectrum", ("silicon", "wavelength", "thickness", "temperature"),
-     {}),
+    ("absorbed_fraction_spectrum", ("silicon", "wavelength", "thickness", "temperature"), {}),
 ]
 
 # Fermi-Dirac statistics (the default narrowing's) need a kernel module that is not
 # on this branch yet: until it lands these rows are swept with an apparent narrowing
 # (Boltzmann statistics) only.
 FERMI_DIRAC = "matprops.kernels.fermi_dirac"
-NEEDS_FERMI_DIRAC = {"band_edge_shifts", "gap_narrowing", "effective_intrinsic_density",
-                     "equilibrium", "intrinsic_lifetime", "auger_lifetime", "srh_lifetime",
-                     "effective_lifetime", "implied_voltage", "mobility", "high_field_mobility",
-                     "diffusivity", "conductivity", "resistivity", "doping_from_resistivity"}
+NEEDS_FERMI_DIRAC = {
+    "band_edge_shifts",
+    "gap_narrowing",
+    "effective_intrinsic_density",
+    "equilibrium",
+    "intrinsic_lifetime",
+    "auger_lifetime",
+    "srh_lifetime",
+    "effective_lifetime",
+    "implied_voltage",
+    "mobility",
+    "high_field_mobility",
+    "diffusivity",
+    "conductivity",
+    "resistivity",
+    "doping_from_resistivity",
+}
 
 
 # ------------------------------------------------------------------ value strategies
 
-SPECIAL = (0.0, -0.0, -1.0, -300.0, 1e-300, 5e-324, 1e300, -1e300, float("nan"),
-           float("inf"), float("-inf"))
+SPECIAL = (
+    0.0,
+    -0.0,
+    -1.0,
+    -300.0,
+    1e-300,
+    5e-324,
+    1e300,
+    -1e300,
+    float("nan"),
+    float("inf"),
+    float("-inf"),
+)
 SHAPES = ((), (1,), (3,), (2, 1), (1, 3), (2, 3), (0,))
 DTYPES = ("float64", "float32", "int64", "bool", "complex128")
 
 
 def _elements(kind: Number):
-    return st.one_of(st.sampled_from(kind.typical), st.sampled_from(SPECIAL),
-                     st.floats(allow_nan=True, allow_infinity=True))
+    return st.one_of(
+        st.sampled_from(kind.typical),
+        st.sampled_from(SPECIAL),
+        st.floats(allow_nan=True, allow_infinity=True),
+    )
 
 
 @st.composite
 def _array(draw, kind: Number):
     shape = draw(st.sampled_from(SHAPES))
     dtype = draw(st.sampled_from(DTYPES))
-    values = draw(st.lists(_elements(kind), min_size=int(np.prod(shape)),
-                           max_size=int(np.prod(shape))))
+    values = draw(
+        st.lists(_elements(kind), min_size=int(np.prod(shape)), max_size=int(np.prod(shape)))
+    )
     with warnings.catch_warnings(), np.errstate(all="ignore"):
         warnings.simplefilter("ignore")  # casting NaN to int is the point here
         return np.array(values, dtype=float).astype(dtype).reshape(shape)
@@ -238,14 +449,15 @@ def _numbers(kind: Number):
     magnitude = st.one_of(_elements(kind), _array(kind))
     units = st.one_of(st.sampled_from(kind.compatible), st.sampled_from(kind.incompatible))
     return st.one_of(
-        _elements(kind),                                               # a plain float
-        st.sampled_from(kind.typical).map(int),                        # a plain int
-        _array(kind),                                                  # an array
-        st.lists(_elements(kind), max_size=4),                         # a list
-        st.builds(lambda m, u: Q_(m, u), magnitude, units),            # a quantity
+        _elements(kind),  # a plain float
+        st.sampled_from(kind.typical).map(int),  # a plain int
+        _array(kind),  # an array
+        st.lists(_elements(kind), max_size=4),  # a list
+        st.builds(lambda m, u: Q_(m, u), magnitude, units),  # a quantity
         st.builds(lambda m, u: f"{m} {u}", st.sampled_from(kind.typical), units),  # text
-        st.builds(lambda a: np.ma.masked_array(a, mask=np.zeros(a.shape, bool)),
-                  _array(kind)),                                       # masked
+        st.builds(
+            lambda a: np.ma.masked_array(a, mask=np.zeros(a.shape, bool)), _array(kind)
+        ),  # masked
         st.sampled_from([None, "warm", [[1.0, 2.0], [3.0]], object()]),  # not numbers
     )
 
@@ -262,12 +474,14 @@ def strategy(kind: str, si):
 @st.composite
 def calls(draw, positional, keywords, si):
     args = [draw(strategy(kind, si)) for kind in positional]
-    kwargs = {name: draw(strategy(kind, si)) for name, kind in keywords.items()
-              if draw(st.booleans())}
+    kwargs = {
+        name: draw(strategy(kind, si)) for name, kind in keywords.items() if draw(st.booleans())
+    }
     return args, kwargs
 
 
 # ------------------------------------------------------------------ the property
+
 
 def numbers_in(result):
     """Every numeric array inside a result (quantities, tuples, result objects ...)."""
@@ -282,8 +496,12 @@ def numbers_in(result):
     if isinstance(result, (tuple, list)):
         return [a for value in result for a in numbers_in(value)]
     if dataclasses.is_dataclass(result):
-        return [a for f in dataclasses.fields(result) if f.name != "provenance"
-                for a in numbers_in(getattr(result, f.name))]
+        return [
+            a
+            for f in dataclasses.fields(result)
+            if f.name != "provenance"
+            for a in numbers_in(getattr(result, f.name))
+        ]
     if hasattr(result, "data_vars"):  # an xarray.Dataset
         return [np.asarray(v.values) for v in result.data_vars.values()]
     return []  # a Model, a callable: nothing evaluated
@@ -302,24 +520,31 @@ def check_outcome(function, args, kwargs):
         if array.dtype.kind in "fc":
             assert np.all(np.isfinite(array)), (
                 f"non-finite result without a ValidityWarning: {function.__name__}"
-                f"(*{args!r}, **{kwargs!r}) -> {result!r}")
+                f"(*{args!r}, **{kwargs!r}) -> {result!r}"
+            )
 
 
 @pytest.fixture(scope="module")
 def materials():
     """The release as it is, strict, and with an apparent (Boltzmann) narrowing."""
-    return (matprops.silicon(), matprops.silicon(strict=True),
-            matprops.silicon(models={"gap_narrowing": "klaassen-1992"}))
+    return (
+        matprops.silicon(),
+        matprops.silicon(strict=True),
+        matprops.silicon(models={"gap_narrowing": "klaassen-1992"}),
+    )
 
 
-@pytest.mark.parametrize("name, positional, keywords", SILICON_METHODS,
-                         ids=[row[0] for row in SILICON_METHODS])
+@pytest.mark.parametrize(
+    "name, positional, keywords", SILICON_METHODS, ids=[row[0] for row in SILICON_METHODS]
+)
 def test_silicon_method_sweep(materials, name, positional, keywords):
     si = materials[0]
     if name in NEEDS_FERMI_DIRAC and importlib.util.find_spec(FERMI_DIRAC) is None:
         materials = materials[2:]
-        keywords = {k: "boltzmann_statistics" if kind == "statistics" else kind
-                    for k, kind in keywords.items()}
+        keywords = {
+            k: "boltzmann_statistics" if kind == "statistics" else kind
+            for k, kind in keywords.items()
+        }
 
     @SWEEP
     @given(st.data())
@@ -331,8 +556,9 @@ def test_silicon_method_sweep(materials, name, positional, keywords):
     sweep()
 
 
-@pytest.mark.parametrize("name, positional, keywords", OPTICS_FUNCTIONS,
-                         ids=[row[0] for row in OPTICS_FUNCTIONS])
+@pytest.mark.parametrize(
+    "name, positional, keywords", OPTICS_FUNCTIONS, ids=[row[0] for row in OPTICS_FUNCTIONS]
+)
 def test_optics_function_sweep(materials, name, positional, keywords):
     si = materials[0]
 
@@ -358,7 +584,7 @@ def test_sweep_catches_what_it_should():
         return matprops.Q_(np.nan, "K")
 
     def warned_nan(x):
-        warnings.warn("outside", matprops.ValidityWarning)
+        warnings.warn("outside", matprops.ValidityWarning, stacklevel=2)
         return matprops.Q_(np.nan, "K")
 
     def numpy_error(x):

@@ -14,15 +14,25 @@ import numpy as np
 import pytest
 
 import matprops
-from matprops import tables
-from matprops.tables import QUANTITIES, Tabulated, available
+from matprops.material import tables
+from matprops.material.tables import QUANTITIES, Tabulated, available
 
 
 def test_table_values_equal_single_calls(si):
     temperatures = matprops.Q_([-40.0, 25.0, 85.0], "degC")
-    data = si.table(["band_gap", "intrinsic_density", "densities_of_states", "density",
-                     "absorption", "surface_atom_density"],
-                    T=temperatures, wavelength=[400.0, 800.0, 1100.0], plane=["100", "111"])
+    data = si.table(
+        [
+            "band_gap",
+            "intrinsic_density",
+            "densities_of_states",
+            "density",
+            "absorption",
+            "surface_atom_density",
+        ],
+        T=temperatures,
+        wavelength=[400.0, 800.0, 1100.0],
+        plane=["100", "111"],
+    )
     kelvin = temperatures.m_as("K")
     for i, t in enumerate(kelvin):
         assert data.band_gap.values[i] == si.band_gap(t).m_as("eV")
@@ -33,26 +43,33 @@ def test_table_values_equal_single_calls(si):
         assert data.density.values[i] == si.density(t).m_as("g/cm^3")
         for j, lam in enumerate(data.wavelength.values):
             expected = si.absorption(lam, t).m_as("1/cm")
-            assert data.absorption_coefficient.values[i, j] == pytest.approx(expected,
-                                                                             rel=1e-14)
+            assert data.absorption_coefficient.values[i, j] == pytest.approx(expected, rel=1e-14)
         for k, plane in enumerate(["100", "111"]):
             assert data.surface_atom_density.values[k, i] == pytest.approx(
-                si.surface_atom_density(plane, t).m_as("cm^-2"), rel=1e-14)
+                si.surface_atom_density(plane, t).m_as("cm^-2"), rel=1e-14
+            )
     assert data.temperature.attrs["requested_units"] == "degC"
     np.testing.assert_allclose(data.temperature.values, kelvin)
 
 
 def test_free_carrier_absorption_and_permittivity_are_tabulable(si):
-    data = si.table(["free_carrier_absorption", "permittivity", "molar_mass"],
-                    wavelength=[1300.0, 1550.0], n=[1e15, 1e16], p=[0.0, 1e16])
+    data = si.table(
+        ["free_carrier_absorption", "permittivity", "molar_mass"],
+        wavelength=[1300.0, 1550.0],
+        n=[1e15, 1e16],
+        p=[0.0, 1e16],
+    )
     assert data.free_carrier_absorption_coefficient.dims == (
-        "electron_density", "hole_density", "wavelength")
+        "electron_density",
+        "hole_density",
+        "wavelength",
+    )
     for a, n in enumerate([1e15, 1e16]):
         for b, p in enumerate([0.0, 1e16]):
             for c, lam in enumerate([1300.0, 1550.0]):
-                assert data.free_carrier_absorption_coefficient.values[a, b, c] == \
-                    pytest.approx(si.free_carrier_absorption(lam, n=n, p=p).m_as("1/cm"),
-                                  rel=1e-14)
+                assert data.free_carrier_absorption_coefficient.values[a, b, c] == pytest.approx(
+                    si.free_carrier_absorption(lam, n=n, p=p).m_as("1/cm"), rel=1e-14
+                )
     assert data.relative_permittivity.dims == ()
     assert data.relative_permittivity.item() == si.permittivity().m_as("")
     assert data.relative_permittivity.attrs["units"] == "1"
@@ -60,17 +77,29 @@ def test_free_carrier_absorption_and_permittivity_are_tabulable(si):
 
 
 def test_every_quantity_of_the_release_can_be_tabulated(si):
-    samples = {"temperature": [250.0, 300.0], "wavelength": [1100.0, 1200.0],
-               "acceptor_density": [1e15, 1e17], "donor_density": [0.0, 1e16],
-               "excess_density": [0.0, 1e15], "electron_density": [1e16],
-               "hole_density": [1e16], "carrier": ["electron", "hole"],
-               "plane": ["100", "110", "111"], "defect": ["iron-interstitial"],
-               "defect_density": [1e11], "generation": [1e17], "thickness": [0.018],
-               "dopant": ["boron", "phosphorus"], "dopant_density": [1e16, 1e18],
-               "field": [0.0, 1e4], "resistivity": [1.0, 10.0]}
+    samples = {
+        "temperature": [250.0, 300.0],
+        "wavelength": [1100.0, 1200.0],
+        "acceptor_density": [1e15, 1e17],
+        "donor_density": [0.0, 1e16],
+        "excess_density": [0.0, 1e15],
+        "electron_density": [1e16],
+        "hole_density": [1e16],
+        "carrier": ["electron", "hole"],
+        "plane": ["100", "110", "111"],
+        "defect": ["iron-interstitial"],
+        "defect_density": [1e11],
+        "generation": [1e17],
+        "thickness": [0.018],
+        "dopant": ["boron", "phosphorus"],
+        "dopant_density": [1e16, 1e18],
+        "field": [0.0, 1e4],
+        "resistivity": [1.0, 10.0],
+    }
     served = available(si)
     # every quantity with a model in the release, and every derived one, is in the registry
-    from matprops.material import DERIVED
+    from matprops.material.derived import DERIVED
+
     assert set(si.models) | set(DERIVED) <= set(QUANTITIES)
     for name in served:
         grid = {axis: samples[axis] for axis in QUANTITIES[name].takes}
@@ -96,10 +125,18 @@ def test_dimensions_are_the_axes_given(si):
 
 def test_default_selection_follows_the_axes(si):
     names = {v.attrs["quantity"] for v in si.table(T=[300.0]).data_vars.values()}
-    assert names == {"band_gap", "intrinsic_density", "densities_of_states",
-                     "lattice_constant", "density", "atomic_density", "radiative_coefficient"}
-    with_light = {v.attrs["quantity"] for v in
-                  si.table(T=[300.0], wavelength=[800.0]).data_vars.values()}
+    assert names == {
+        "band_gap",
+        "intrinsic_density",
+        "densities_of_states",
+        "lattice_constant",
+        "density",
+        "atomic_density",
+        "radiative_coefficient",
+    }
+    with_light = {
+        v.attrs["quantity"] for v in si.table(T=[300.0], wavelength=[800.0]).data_vars.values()
+    }
     assert {"absorption", "refractive_index"} <= with_light
     assert "free_carrier_absorption" not in with_light  # zero without carriers
     with warnings.catch_warnings():
@@ -108,16 +145,19 @@ def test_default_selection_follows_the_axes(si):
     assert "free_carrier_absorption_coefficient" in with_carriers
 
 
-@pytest.mark.parametrize("kwargs, pattern", [
-    ({"T": [300], "temperature": [300]}, r"'temperature' must be given once"),
-    ({"T": [300], "Tx": [1]}, r"'Tx' must be a grid axis: one of .*acceptor_density"),
-    ({"T": [300], "plane": ["101"]}, r"'plane' must be one of 100, 110, 111"),
-    ({"T": [[300, 310]]}, r"'temperature' must be a scalar or a 1-D list"),
-    ({"T": []}, r"'temperature' must be at least one value"),
-    ({"T": [300, -5]}, r"'temperature' must be > 0 K"),
-    ({"T": matprops.Q_([1], "m")}, r"'temperature' expects a quantity in K"),
-    ({"temperature": ["intrinsic_density"]}, r"quantity names go in the first argument"),
-])
+@pytest.mark.parametrize(
+    "kwargs, pattern",
+    [
+        ({"T": [300], "temperature": [300]}, r"'temperature' must be given once"),
+        ({"T": [300], "Tx": [1]}, r"'Tx' must be a grid axis: one of .*acceptor_density"),
+        ({"T": [300], "plane": ["101"]}, r"'plane' must be one of 100, 110, 111"),
+        ({"T": [[300, 310]]}, r"'temperature' must be a scalar or a 1-D list"),
+        ({"T": []}, r"'temperature' must be at least one value"),
+        ({"T": [300, -5]}, r"'temperature' must be > 0 K"),
+        ({"T": matprops.Q_([1], "m")}, r"'temperature' expects a quantity in K"),
+        ({"temperature": ["intrinsic_density"]}, r"quantity names go in the first argument"),
+    ],
+)
 def test_bad_grids(si, kwargs, pattern):
     with pytest.raises(matprops.Error, match=pattern):
         si.table(["band_gap"], **kwargs)
@@ -140,8 +180,12 @@ def test_large_grids_are_evaluated_in_blocks(si, monkeypatch):
     whole = si.table(["absorption", "band_gap"], T=t, wavelength=lam)
     monkeypatch.setattr(tables, "BLOCK", 128)  # force many blocks
     calls = []
-    blocked = si.table(["absorption", "band_gap"], T=t, wavelength=lam,
-                       progress=lambda done, total: calls.append((done, total)))
+    blocked = si.table(
+        ["absorption", "band_gap"],
+        T=t,
+        wavelength=lam,
+        progress=lambda done, total: calls.append((done, total)),
+    )
     np.testing.assert_array_equal(blocked.absorption_coefficient, whole.absorption_coefficient)
     np.testing.assert_array_equal(blocked.band_gap, whole.band_gap)
     assert len(calls) > 10 and calls[-1] == (2040, 2040)
@@ -159,8 +203,12 @@ def test_lazy_table_matches_eager(si):
     t = np.linspace(250.0, 400.0, 30)
     lam = np.linspace(400.0, 1100.0, 20)
     eager = si.table(["absorption", "densities_of_states", "band_gap"], T=t, wavelength=lam)
-    lazy = si.table(["absorption", "densities_of_states", "band_gap"], T=t, wavelength=lam,
-                    chunks={"T": 7, "wavelength": 8})
+    lazy = si.table(
+        ["absorption", "densities_of_states", "band_gap"],
+        T=t,
+        wavelength=lam,
+        chunks={"T": 7, "wavelength": 8},
+    )
     assert lazy.absorption_coefficient.chunks == ((7, 7, 7, 7, 2), (8, 8, 4))
     computed = lazy.compute(scheduler="synchronous")
     for name in eager.data_vars:
@@ -172,12 +220,20 @@ def test_lazy_table_matches_eager(si):
     other = si.table(["absorption"], T=t, wavelength=lam, chunks=7)
     assert other.absorption_coefficient.data.name != lazy.absorption_coefficient.data.name
     # blocks larger than the evaluation block are evaluated in pieces, same numbers
-    big = si.table(["absorption"], T=np.linspace(250.0, 400.0, 600),
-                   wavelength=np.linspace(400.0, 1100.0, 500), chunks=600)
+    big = si.table(
+        ["absorption"],
+        T=np.linspace(250.0, 400.0, 600),
+        wavelength=np.linspace(400.0, 1100.0, 500),
+        chunks=600,
+    )
     np.testing.assert_array_equal(
         big.absorption_coefficient.compute(scheduler="synchronous"),
-        si.table(["absorption"], T=np.linspace(250.0, 400.0, 600),
-                 wavelength=np.linspace(400.0, 1100.0, 500)).absorption_coefficient)
+        si.table(
+            ["absorption"],
+            T=np.linspace(250.0, 400.0, 600),
+            wavelength=np.linspace(400.0, 1100.0, 500),
+        ).absorption_coefficient,
+    )
     with pytest.warns(matprops.ValidityWarning, match="200-1100 nm"):  # warned at build time
         si.table(["absorption"], T=t, wavelength=np.linspace(200.0, 1100.0, 10), chunks=5)
     with pytest.raises(matprops.InputError, match="'chunks'"):
@@ -190,9 +246,16 @@ def test_lazy_table_on_a_two_worker_cluster(si):
     lam = np.linspace(400.0, 1100.0, 32)
     eager = si.table(["absorption", "intrinsic_density"], T=t, wavelength=lam)
     lazy = si.table(["absorption", "intrinsic_density"], T=t, wavelength=lam, chunks=16)
-    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  host="127.0.0.1", dashboard_address=":0") as cluster, \
-            distributed.Client(cluster) as client:
+    with (
+        distributed.LocalCluster(
+            n_workers=2,
+            threads_per_worker=1,
+            processes=True,
+            host="127.0.0.1",
+            dashboard_address=":0",
+        ) as cluster,
+        distributed.Client(cluster) as client,
+    ):
         computed = client.compute(lazy).result()
     np.testing.assert_array_equal(computed.absorption_coefficient, eager.absorption_coefficient)
     np.testing.assert_array_equal(computed.intrinsic_density, eager.intrinsic_density)
@@ -214,8 +277,11 @@ def test_compare_puts_models_side_by_side(si):
         assert "doi" in data.citation.values[k]
     spread = data.band_gap.values.max(axis=0) - data.band_gap.values.min(axis=0)
     np.testing.assert_allclose(data.band_gap_spread.values, spread, rtol=1e-14)
-    np.testing.assert_allclose(data.band_gap_relative_spread.values,
-                               spread / np.abs(data.band_gap.values).mean(axis=0), rtol=1e-14)
+    np.testing.assert_allclose(
+        data.band_gap_relative_spread.values,
+        spread / np.abs(data.band_gap.values).mean(axis=0),
+        rtol=1e-14,
+    )
     assert data.band_gap_spread.attrs["units"] == "eV"
     assert set(json.loads(data.band_gap.attrs["provenance"])) == set(ids)
 
@@ -227,9 +293,11 @@ def test_compare_choices_and_errors(si):
     thurmond = matprops.silicon(models={"band_gap": "thurmond-1975"})
     other = thurmond.compare("intrinsic_density", ["boltzmann"], T=[300.0])
     assert other.intrinsic_density.item() == pytest.approx(
-        matprops.silicon(models={"band_gap": "thurmond-1975",
-                                 "intrinsic_density": "boltzmann"})
-        .intrinsic_density(300.0).m_as("cm^-3"), rel=1e-14)
+        matprops.silicon(models={"band_gap": "thurmond-1975", "intrinsic_density": "boltzmann"})
+        .intrinsic_density(300.0)
+        .m_as("cm^-3"),
+        rel=1e-14,
+    )
     with pytest.raises(matprops.UnknownModelError, match="Did you mean 'passler-2002'"):
         si.compare("band_gap", ["passler-2003"], T=[300.0])
     with pytest.raises(matprops.UnknownQuantityError, match="with models to compare"):
@@ -249,9 +317,15 @@ def _second_release(root, catalog, changes):
 
 def test_release_difference_with_a_temporary_second_release(datasets_copy):
     root, catalog = datasets_copy
-    _second_release(root, catalog, {"band_gap": ("passler-2002", "thurmond-1975"),
-                                    "intrinsic_density": ("couderc-2014", "boltzmann")})
-    from matprops.changes import release_difference
+    _second_release(
+        root,
+        catalog,
+        {
+            "band_gap": ("passler-2002", "thurmond-1975"),
+            "intrinsic_density": ("couderc-2014", "boltzmann"),
+        },
+    )
+    from matprops.outputs.changes import release_difference
 
     diff = release_difference("2026.1", "2026.2", catalog)
     changed = {r["quantity"] for r in diff["models"] if r["changed"]}
@@ -262,7 +336,8 @@ def test_release_difference_with_a_temporary_second_release(datasets_copy):
     assert deviations["lattice_constant"]["largest_relative"] == 0.0
     assert deviations["absorption"]["largest_relative"] == 0.0
     # the band-gap deviation, recomputed here point by point from the two models
-    from matprops.reference import TEMPERATURES
+    from matprops.outputs.reference import TEMPERATURES
+
     old = matprops.Silicon(release="2026.1", catalog=catalog)
     new = matprops.Silicon(release="2026.2", catalog=catalog)
     with warnings.catch_warnings():
@@ -288,10 +363,17 @@ def _fake_narrowing(self, T, Na=0, Nd=0):
 def plugged(monkeypatch):
     """A doping quantity added the way the new ones will be: one registry entry."""
     monkeypatch.setattr(matprops.Silicon, "gap_narrowing", _fake_narrowing, raising=False)
-    monkeypatch.setitem(QUANTITIES, "gap_narrowing", Tabulated(
-        "gap_narrowing", {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"},
-        (("gap_narrowing", "band-gap narrowing (test stand-in)"),),
-        wants=("acceptor_density", "donor_density"), needs=("band_gap",)))
+    monkeypatch.setitem(
+        QUANTITIES,
+        "gap_narrowing",
+        Tabulated(
+            "gap_narrowing",
+            {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"},
+            (("gap_narrowing", "band-gap narrowing (test stand-in)"),),
+            wants=("acceptor_density", "donor_density"),
+            needs=("band_gap",),
+        ),
+    )
     return matprops.silicon()
 
 
@@ -301,10 +383,12 @@ def test_a_registry_entry_is_all_a_new_quantity_needs(plugged):
     assert data.gap_narrowing.dims == ("temperature", "acceptor_density")
     for j, na in enumerate(data.acceptor_density.values):
         assert data.gap_narrowing.values[0, j] == si.gap_narrowing(300.0, Na=na).m_as("eV")
-    assert "gap_narrowing" in {v.attrs["quantity"] for v in
-                               si.table(T=[300.0], Nd=[1e18]).data_vars.values()}
-    assert "gap_narrowing" not in {v.attrs["quantity"] for v in
-                                   si.table(T=[300.0]).data_vars.values()}
+    assert "gap_narrowing" in {
+        v.attrs["quantity"] for v in si.table(T=[300.0], Nd=[1e18]).data_vars.values()
+    }
+    assert "gap_narrowing" not in {
+        v.attrs["quantity"] for v in si.table(T=[300.0]).data_vars.values()
+    }
 
 
 def test_methods_returning_a_result_object(monkeypatch):
@@ -322,9 +406,17 @@ def test_methods_returning_a_result_object(monkeypatch):
         return Pair(self.band_gap(T), nc)
 
     monkeypatch.setattr(matprops.Silicon, "pair_probe", pair, raising=False)
-    monkeypatch.setitem(QUANTITIES, "pair_probe", Tabulated(
-        "pair_probe", {"temperature": 0}, (("gap", "gap"), ("states", "states")),
-        needs=("band_gap", "densities_of_states"), fields=("gap", "states")))
+    monkeypatch.setitem(
+        QUANTITIES,
+        "pair_probe",
+        Tabulated(
+            "pair_probe",
+            {"temperature": 0},
+            (("gap", "gap"), ("states", "states")),
+            needs=("band_gap", "densities_of_states"),
+            fields=("gap", "states"),
+        ),
+    )
     si = matprops.silicon()
     data = si.table(["pair_probe"], T=[250.0, 300.0])
     np.testing.assert_array_equal(data.gap, si.band_gap([250.0, 300.0]).m_as("eV"))

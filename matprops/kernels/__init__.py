@@ -3,7 +3,7 @@
 Kernels take plain floats or numpy arrays in fixed internal units — kelvin,
 centimetre, electron-volt, second, volt; densities in cm^-3 — and return the same.
 They know nothing of pint, xarray or files: coefficients arrive as keyword
-arguments, bound by :mod:`matprops.catalog` from the model files in ``datasets/``.
+arguments, bound by :mod:`matprops.catalogue.store` from the model files in ``datasets/``.
 Each kernel declares its units with :func:`matprops.kernels._spec.kernel`.
 
 Simulation codes that want no per-call overhead take a bound kernel from

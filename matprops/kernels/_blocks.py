@@ -35,8 +35,13 @@ BLOCK = 1 << 14
 _SCALARS = (float, int)
 
 
-def evaluate(function: Callable, arguments: Mapping[str, object], out=None,
-             block: int | None = None, **options):
+def evaluate(
+    function: Callable,
+    arguments: Mapping[str, object],
+    out=None,
+    block: int | None = None,
+    **options,
+):
     """``function(**arguments, **options)`` evaluated in blocks of ~``block`` points.
 
     Parameters
@@ -108,20 +113,20 @@ def evaluate(function: Callable, arguments: Mapping[str, object], out=None,
     for outer in np.ndindex(*shape[:axis]):
         for start in range(0, shape[axis], step):
             stop = min(start + step, shape[axis])
-            values = {name: a[_index(a, outer, start, stop, axis)]
-                      for name, a in padded.items()}
+            values = {name: a[_index(a, outer, start, stop, axis)] for name, a in padded.items()}
             result = function(**values, **options)
             if isinstance(result, dict):  # several named fields (the equilibrium solver)
                 if outputs is None:
-                    outputs = {key: np.empty(shape, dtype=np.result_type(part, np.float64))
-                               for key, part in result.items()}
+                    outputs = {
+                        key: np.empty(shape, dtype=np.result_type(part, np.float64))
+                        for key, part in result.items()
+                    }
                 for key, part in result.items():
                     outputs[key][outer + (slice(start, stop),)] = part
                 continue
             if outputs is None:
                 parts = result if isinstance(result, tuple) else (result,)
-                outputs = tuple(np.empty(shape, dtype=np.result_type(p, np.float64))
-                                for p in parts)
+                outputs = tuple(np.empty(shape, dtype=np.result_type(p, np.float64)) for p in parts)
                 outputs = outputs if isinstance(result, tuple) else outputs[0]
             _write(outputs, result, shape, outer + (slice(start, stop),))
     return outputs
@@ -130,9 +135,11 @@ def evaluate(function: Callable, arguments: Mapping[str, object], out=None,
 def _check_out(out, shape):
     for target in out if isinstance(out, tuple) else (out,):
         if not isinstance(target, np.ndarray) or target.shape != shape:
-            raise ValueError(f"out must be a numpy array (or a tuple of them, one per "
-                             f"output) of the inputs' broadcast shape {shape}; received "
-                             f"{type(target).__name__} of shape {np.shape(target)}")
+            raise ValueError(
+                f"out must be a numpy array (or a tuple of them, one per "
+                f"output) of the inputs' broadcast shape {shape}; received "
+                f"{type(target).__name__} of shape {np.shape(target)}"
+            )
 
 
 def _write(out, result, shape, index):
@@ -140,10 +147,10 @@ def _write(out, result, shape, index):
     if index == ():
         _check_out(out, shape)
     if isinstance(out, tuple) != isinstance(result, tuple):
-        raise ValueError("out must be a tuple of arrays exactly when the kernel returns "
-                         "a tuple")
-    for target, part in zip(*((out, result) if isinstance(out, tuple) else ((out,), (result,))),
-                            strict=True):
+        raise ValueError("out must be a tuple of arrays exactly when the kernel returns a tuple")
+    for target, part in zip(
+        *((out, result) if isinstance(out, tuple) else ((out,), (result,))), strict=True
+    ):
         target[index] = part
     return out
 

@@ -1,6 +1,6 @@
 """Coefficients of matprops.kernels.fermi_dirac (generated: do not edit).
 
-Written by matprops/kernels/_make_fermi_dirac.py with mpmath 1.4.1.
+Written by tools/make_fermi_dirac.py (then matprops/kernels/_make_fermi_dirac.py) with mpmath 1.4.1.
 Mathematical constants of a special function (minimax rational approximations),
 not material data.  Each segment is a pair (numerator, denominator) of
 coefficients from degree 0 upwards; the variable of each segment is given in

@@ -30,13 +30,21 @@ class KernelSpec:
         self.array_api = bool(array_api)
 
     def __repr__(self) -> str:
-        return (f"KernelSpec(inputs={dict(self.inputs)}, "
-                f"coefficients={dict(self.coefficients)}, output={self.output!r}, "
-                f"requires={self.requires}, array_api={self.array_api})")
+        return (
+            f"KernelSpec(inputs={dict(self.inputs)}, "
+            f"coefficients={dict(self.coefficients)}, output={self.output!r}, "
+            f"requires={self.requires}, array_api={self.array_api})"
+        )
 
 
-def kernel(*, inputs: Mapping[str, str], output, coefficients: Mapping[str, str] = (),
-           requires: tuple[str, ...] = (), array_api: bool = False) -> Callable:
+def kernel(
+    *,
+    inputs: Mapping[str, str],
+    output,
+    coefficients: Mapping[str, str] = (),
+    requires: tuple[str, ...] = (),
+    array_api: bool = False,
+) -> Callable:
     """Declare a function's units for the catalogue.
 
     Parameters

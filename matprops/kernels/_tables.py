@@ -44,8 +44,9 @@ def bilinear(y, x, y_grid, x_grid, values):
     i, u = bracket(np.asarray(y, dtype=float), y_grid)
     j, v = bracket(np.asarray(x, dtype=float), x_grid)
     i, u, j, v = np.broadcast_arrays(i, u, j, v)
-    return ((1.0 - u) * ((1.0 - v) * values[i, j] + v * values[i, j + 1])
-            + u * ((1.0 - v) * values[i + 1, j] + v * values[i + 1, j + 1]))
+    return (1.0 - u) * ((1.0 - v) * values[i, j] + v * values[i, j + 1]) + u * (
+        (1.0 - v) * values[i + 1, j] + v * values[i + 1, j + 1]
+    )
 
 
 def broadcast_to_inputs(result, *inputs):
@@ -81,12 +82,10 @@ class GridTable:
     def __init__(self, temperature_grid, wavelength_grid, values, exponentiate=False):
         self.wavelength_grid = _frozen(wavelength_grid)
         self.values = _frozen(np.atleast_2d(values))
-        self.temperature_grid = (None if temperature_grid is None
-                                 else _frozen(temperature_grid))
+        self.temperature_grid = None if temperature_grid is None else _frozen(temperature_grid)
         self.exponentiate = exponentiate
         self._locator = Locator(self.wavelength_grid)
-        self._t_locator = (None if temperature_grid is None
-                           else Locator(self.temperature_grid))
+        self._t_locator = None if temperature_grid is None else Locator(self.temperature_grid)
         self._flat = self.values.reshape(-1)
         self._rows: dict[float, np.ndarray] = {}
 
@@ -108,8 +107,9 @@ class GridTable:
             t = t.reshape((1,) * (len(shape) - t.ndim) + t.shape)
         if self.temperature_grid is None or t.size == 1:
             # one np.interp: no temporaries, nothing to gain from blocks
-            row = (self.values[0] if self.temperature_grid is None
-                   else self._row(float(t.reshape(()))))
+            row = (
+                self.values[0] if self.temperature_grid is None else self._row(float(t.reshape(())))
+            )
             result = np.interp(lam, self.wavelength_grid, row, left=np.nan, right=np.nan)
             return self._finish(result, shape, out)
         if out is not None or math.prod(shape) > BLOCK:
@@ -127,15 +127,17 @@ class GridTable:
         """exp where the table holds logarithms, the broadcast shape, into ``out``."""
         if out is not None:
             if out.shape != shape:
-                raise ValueError(f"out has shape {out.shape}; the inputs broadcast to "
-                                 f"{shape}")
+                raise ValueError(f"out has shape {out.shape}; the inputs broadcast to {shape}")
             if self.exponentiate:
                 return np.exp(np.broadcast_to(result, shape), out=out)
             np.copyto(out, np.broadcast_to(result, shape))
             return out
         if self.exponentiate:
-            result = (np.exp(result, out=result) if isinstance(result, np.ndarray)
-                      and result.ndim else np.exp(result))
+            result = (
+                np.exp(result, out=result)
+                if isinstance(result, np.ndarray) and result.ndim
+                else np.exp(result)
+            )
         if np.shape(result) != shape:
             result = np.broadcast_to(result, shape).copy()
         return result
@@ -149,8 +151,9 @@ class GridTable:
             if not grid[0] <= temperature <= grid[-1]:
                 row = np.full(self.wavelength_grid.size, np.nan)
             else:
-                i = min(max(int(np.searchsorted(grid, temperature, side="right")) - 1, 0),
-                        grid.size - 2)
+                i = min(
+                    max(int(np.searchsorted(grid, temperature, side="right")) - 1, 0), grid.size - 2
+                )
                 u = (temperature - grid[i]) / (grid[i + 1] - grid[i])
                 row = self.values[i] * (1.0 - u) + self.values[i + 1] * u
             row.flags.writeable = False
@@ -182,10 +185,10 @@ class GridTable:
         j, v = self._bracket(lam.reshape(-1), self._locator)
         rows = self.values[:, j]
         rows *= 1.0 - v
-        rows += self.values[:, j + 1] * v                   # (table rows, wavelengths)
+        rows += self.values[:, j + 1] * v  # (table rows, wavelengths)
         i, u = self._temperature_bracket(t.reshape(-1))
         low = rows[i]
-        high = rows[i + 1]                                  # (temperatures, wavelengths)
+        high = rows[i + 1]  # (temperatures, wavelengths)
         low *= (1.0 - u)[:, None]
         high *= u[:, None]
         low += high
@@ -209,7 +212,7 @@ class GridTable:
         near += np.take(flat[1:], corner) * v
         far = np.take(flat[width:], corner)
         far *= 1.0 - v
-        far += np.take(flat[width + 1:], corner) * v
+        far += np.take(flat[width + 1 :], corner) * v
         near *= 1.0 - u
         far *= u
         near += far

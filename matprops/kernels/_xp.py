@@ -8,7 +8,7 @@ another library that implements the standard (``array_api_strict``, CuPy, JAX,
 PyTorch through array-api-compat ...) is computed in its own namespace. Arrays of two
 libraries in one call are not mixed: convert one first.
 
-Kernels compute in float64 (see :mod:`matprops.bound` for why); the helpers here
+Kernels compute in float64 (see :mod:`matprops.material.bound` for why); the helpers here
 convert inputs accordingly.
 """
 
@@ -18,8 +18,17 @@ import contextlib
 
 import numpy as np
 
-__all__ = ["asfloat", "asin", "asinh", "cbrt", "errstate", "interp", "namespace", "power",
-           "zeros_like"]
+__all__ = [
+    "asfloat",
+    "asin",
+    "asinh",
+    "cbrt",
+    "errstate",
+    "interp",
+    "namespace",
+    "power",
+    "zeros_like",
+]
 
 _NUMPY_TYPES = (np.ndarray, np.generic)
 

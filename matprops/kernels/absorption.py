@@ -29,8 +29,11 @@ from ._xp import asfloat, namespace, zeros_like
 from .constants import BOLTZMANN_EV, PHOTON_ENERGY_NM
 
 
-@kernel(inputs={"wavelength": "nm", "temperature": "K"}, output="1/cm",
-        coefficients={"wavelength_grid": "nm", "values": "1/cm"})
+@kernel(
+    inputs={"wavelength": "nm", "temperature": "K"},
+    output="1/cm",
+    coefficients={"wavelength_grid": "nm", "values": "1/cm"},
+)
 def table_at_reference(wavelength, temperature, *, wavelength_grid, values):
     """Measured alpha at one reference temperature, log-linear in wavelength.
 
@@ -41,21 +44,41 @@ def table_at_reference(wavelength, temperature, *, wavelength_grid, values):
     return broadcast_to_inputs(np.exp(log_alpha), wavelength, temperature)
 
 
-@kernel(inputs={"wavelength": "nm", "temperature": "K"}, output="1/cm",
-        coefficients={"wavelength_grid": "nm", "temperature_grid": "K", "values": "1/cm"})
+@kernel(
+    inputs={"wavelength": "nm", "temperature": "K"},
+    output="1/cm",
+    coefficients={"wavelength_grid": "nm", "temperature_grid": "K", "values": "1/cm"},
+)
 def table_series(wavelength, temperature, *, wavelength_grid, temperature_grid, values):
     """A table ``values[temperature, wavelength]``, bilinear in (T, lambda) on log(alpha)."""
-    return np.exp(bilinear(temperature, wavelength, temperature_grid, wavelength_grid,
-                           cached_log(values)))
+    return np.exp(
+        bilinear(temperature, wavelength, temperature_grid, wavelength_grid, cached_log(values))
+    )
 
 
-@kernel(inputs={"wavelength": "nm", "temperature": "K"}, output="1/cm",
-        coefficients={"wavelength_grid": "nm", "values": "1/cm",
-                      "reference_temperature": "K", "series_wavelength_grid": "nm",
-                      "series_temperature_grid": "K", "series_values": "1/cm"})
-def table_scaled_by_series(wavelength, temperature, *, wavelength_grid, values,
-                           reference_temperature, series_wavelength_grid,
-                           series_temperature_grid, series_values):
+@kernel(
+    inputs={"wavelength": "nm", "temperature": "K"},
+    output="1/cm",
+    coefficients={
+        "wavelength_grid": "nm",
+        "values": "1/cm",
+        "reference_temperature": "K",
+        "series_wavelength_grid": "nm",
+        "series_temperature_grid": "K",
+        "series_values": "1/cm",
+    },
+)
+def table_scaled_by_series(
+    wavelength,
+    temperature,
+    *,
+    wavelength_grid,
+    values,
+    reference_temperature,
+    series_wavelength_grid,
+    series_temperature_grid,
+    series_values,
+):
     """A reference-temperature table scaled by a temperature series' ratio.
 
     ``alpha(lambda, T) = alpha_ref(lambda) * alpha_s(lambda, T) / alpha_s(lambda, T_ref)``
@@ -66,10 +89,15 @@ def table_scaled_by_series(wavelength, temperature, *, wavelength_grid, values,
     """
     log_reference = linear_1d(wavelength, wavelength_grid, cached_log(values))
     log_series = cached_log(series_values)
-    log_ratio = (bilinear(temperature, wavelength, series_temperature_grid,
-                          series_wavelength_grid, log_series)
-                 - bilinear(reference_temperature, wavelength, series_temperature_grid,
-                            series_wavelength_grid, log_series))
+    log_ratio = bilinear(
+        temperature, wavelength, series_temperature_grid, series_wavelength_grid, log_series
+    ) - bilinear(
+        reference_temperature,
+        wavelength,
+        series_temperature_grid,
+        series_wavelength_grid,
+        log_series,
+    )
     return np.exp(log_reference + log_ratio)
 
 
@@ -86,15 +114,23 @@ def _prepare_series(*, wavelength_grid, temperature_grid, values):
     return GridTable(temperature_grid, wavelength_grid, _log(values), exponentiate=True)
 
 
-def _prepare_scaled(*, wavelength_grid, values, reference_temperature,
-                    series_wavelength_grid, series_temperature_grid, series_values):
+def _prepare_scaled(
+    *,
+    wavelength_grid,
+    values,
+    reference_temperature,
+    series_wavelength_grid,
+    series_temperature_grid,
+    series_values,
+):
     """log alpha at every series temperature on the union of both wavelength grids:
     ``log alpha_ref(u) + log alpha_s(T_k, u) - log alpha_s(T_ref, u)``."""
     union = union_grid(wavelength_grid, series_wavelength_grid)
     log_series = _log(series_values)
     rows = np.array([linear_1d(union, series_wavelength_grid, row) for row in log_series])
-    reference = bilinear(reference_temperature, union, series_temperature_grid,
-                         series_wavelength_grid, log_series)
+    reference = bilinear(
+        reference_temperature, union, series_temperature_grid, series_wavelength_grid, log_series
+    )
     combined = linear_1d(union, wavelength_grid, _log(values)) + (rows - reference)
     return GridTable(series_temperature_grid, union, combined, exponentiate=True)
 
@@ -104,15 +140,34 @@ table_series.prepare = _prepare_series
 table_scaled_by_series.prepare = _prepare_scaled
 
 
-@kernel(inputs={"wavelength": "nm", "temperature": "K"}, output="1/cm",
-        coefficients={"indirect_gaps_at_zero": "eV", "direct_gap_at_zero": "eV",
-                      "phonon_energies": "eV", "phonon_weights": "1",
-                      "indirect_strengths": "1/(cm*eV^2)",
-                      "direct_strength": "1/(cm*eV^0.5)", "beta": "eV/K", "gamma": "K"},
-        array_api=True)
-def rajkanan(wavelength, temperature, *, indirect_gaps_at_zero, direct_gap_at_zero,
-             phonon_energies, phonon_weights, indirect_strengths, direct_strength,
-             beta, gamma):
+@kernel(
+    inputs={"wavelength": "nm", "temperature": "K"},
+    output="1/cm",
+    coefficients={
+        "indirect_gaps_at_zero": "eV",
+        "direct_gap_at_zero": "eV",
+        "phonon_energies": "eV",
+        "phonon_weights": "1",
+        "indirect_strengths": "1/(cm*eV^2)",
+        "direct_strength": "1/(cm*eV^0.5)",
+        "beta": "eV/K",
+        "gamma": "K",
+    },
+    array_api=True,
+)
+def rajkanan(
+    wavelength,
+    temperature,
+    *,
+    indirect_gaps_at_zero,
+    direct_gap_at_zero,
+    phonon_energies,
+    phonon_weights,
+    indirect_strengths,
+    direct_strength,
+    beta,
+    gamma,
+):
     """Rajkanan, Singh and Shewchun's phonon-assisted absorption model.
 
     With photon energy E = hc/lambda and all gaps shifted in Varshni's form,
@@ -146,13 +201,14 @@ def rajkanan(wavelength, temperature, *, indirect_gaps_at_zero, direct_gap_at_ze
     alpha = zeros_like(xp, energy)
     for ep, c in zip(phonon_energies, phonon_weights, strict=True):  # the two phonons
         ep, c = float(ep), float(c)
-        absorbed = 1.0 / xp.expm1(ep / kt)                         # occupation n
-        emitted = -1.0 / xp.expm1(-ep / kt)                        # n + 1
+        absorbed = 1.0 / xp.expm1(ep / kt)  # occupation n
+        emitted = -1.0 / xp.expm1(-ep / kt)  # n + 1
         for gap0, a in zip(indirect_gaps_at_zero, indirect_strengths, strict=True):
             above = energy - (float(gap0) - shift)
             up = xp.maximum(above + ep, 0.0)
             down = xp.maximum(above - ep, 0.0)
             alpha = alpha + c * float(a) * (up * up * absorbed + down * down * emitted)
-    alpha = alpha + direct_strength * xp.sqrt(xp.maximum(
-        energy - (direct_gap_at_zero - shift), 0.0))
+    alpha = alpha + direct_strength * xp.sqrt(
+        xp.maximum(energy - (direct_gap_at_zero - shift), 0.0)
+    )
     return alpha

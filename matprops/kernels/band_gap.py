@@ -26,8 +26,12 @@ def horner_derivative(x, coefficients):
     return horner(x, [k * float(coefficients[k]) for k in range(1, n)])
 
 
-@kernel(inputs={"temperature": "K"}, output="eV",
-        coefficients={"gap_at_zero": "eV", "alpha": "eV/K", "beta": "K"}, array_api=True)
+@kernel(
+    inputs={"temperature": "K"},
+    output="eV",
+    coefficients={"gap_at_zero": "eV", "alpha": "eV/K", "beta": "K"},
+    array_api=True,
+)
 def varshni(temperature, *, gap_at_zero, alpha, beta):
     """Varshni's empirical form.
 
@@ -52,13 +56,18 @@ def varshni_derivatives(temperature, *, gap_at_zero, alpha, beta):
     t = asfloat(namespace(temperature), temperature)
     denominator = t + beta
     ratio = t / denominator
-    return (gap_at_zero - alpha * t * t / denominator,
-            {"temperature": -alpha * ratio * (1.0 + beta / denominator)})
+    return (
+        gap_at_zero - alpha * t * t / denominator,
+        {"temperature": -alpha * ratio * (1.0 + beta / denominator)},
+    )
 
 
-@kernel(inputs={"temperature": "K"}, output="eV",
-        coefficients={"gap_at_zero": "eV", "alpha": "eV/K", "theta": "K", "p": "1"},
-        array_api=True)
+@kernel(
+    inputs={"temperature": "K"},
+    output="eV",
+    coefficients={"gap_at_zero": "eV", "alpha": "eV/K", "theta": "K", "p": "1"},
+    array_api=True,
+)
 def passler_power(temperature, *, gap_at_zero, alpha, theta, p):
     """Pässler's power-law ("p") form for the phonon-induced gap shrinkage.
 
@@ -100,9 +109,12 @@ def passler_power_derivatives(temperature, *, gap_at_zero, alpha, theta, p):
     return value, {"temperature": slope}
 
 
-@kernel(inputs={"temperature": "K"}, output="eV",
-        coefficients={"gap_at_zero": "eV", "alpha": "eV/K", "theta": "K",
-                      "delta": "1"}, array_api=True)
+@kernel(
+    inputs={"temperature": "K"},
+    output="eV",
+    coefficients={"gap_at_zero": "eV", "alpha": "eV/K", "theta": "K", "delta": "1"},
+    array_api=True,
+)
 def passler_dispersion(temperature, *, gap_at_zero, alpha, theta, delta):
     """Pässler's form with a phonon-dispersion parameter Delta.
 
@@ -130,9 +142,16 @@ def passler_dispersion(temperature, *, gap_at_zero, alpha, theta, delta):
     x = 2.0 * t / theta
     x2 = x * x
     x3 = x2 * x
-    root = cbrt(xp, xp.sqrt(1.0 + math.pi**2 * x2 / (3.0 * (1.0 + d2))
-                            + (3.0 * d2 - 1.0) * x3 / 4.0 + 8.0 * x2 * x2 / 3.0
-                            + x3 * x3))
+    root = cbrt(
+        xp,
+        xp.sqrt(
+            1.0
+            + math.pi**2 * x2 / (3.0 * (1.0 + d2))
+            + (3.0 * d2 - 1.0) * x3 / 4.0
+            + 8.0 * x2 * x2 / 3.0
+            + x3 * x3
+        ),
+    )
     with errstate(xp, over="ignore", divide="ignore"):
         bose = (1.0 - 3.0 * d2) / xp.expm1(theta / t)
     return gap_at_zero - alpha * theta * (bose + 1.5 * d2 * (root - 1.0))
@@ -155,8 +174,13 @@ def passler_dispersion_derivatives(temperature, *, gap_at_zero, alpha, theta, de
     c2 = math.pi**2 / (3.0 * (1.0 + d2))
     c3 = (3.0 * d2 - 1.0) / 4.0
     # the value exactly as the kernel computes it
-    polynomial = (1.0 + math.pi**2 * x2 / (3.0 * (1.0 + d2)) + (3.0 * d2 - 1.0) * x3 / 4.0
-                  + 8.0 * x2 * x2 / 3.0 + x3 * x3)
+    polynomial = (
+        1.0
+        + math.pi**2 * x2 / (3.0 * (1.0 + d2))
+        + (3.0 * d2 - 1.0) * x3 / 4.0
+        + 8.0 * x2 * x2 / 3.0
+        + x3 * x3
+    )
     root = cbrt(xp, xp.sqrt(polynomial))
     with errstate(xp, over="ignore", divide="ignore"):
         excess = xp.expm1(theta / t)
@@ -165,16 +189,21 @@ def passler_dispersion_derivatives(temperature, *, gap_at_zero, alpha, theta, de
     value = gap_at_zero - alpha * theta * (bose + 1.5 * d2 * (root - 1.0))
     d_polynomial = x * (2.0 * c2 + x * (3.0 * c3 + x * (32.0 / 3.0 + 6.0 * x2)))
     d_occupation = occupation * (occupation + 1.0) * (theta / (t * t))
-    slope = -alpha * theta * ((1.0 - 3.0 * d2) * d_occupation
-                              + 0.5 * d2 * root / polynomial * d_polynomial / theta)
+    slope = (
+        -alpha
+        * theta
+        * ((1.0 - 3.0 * d2) * d_occupation + 0.5 * d2 * root / polynomial * d_polynomial / theta)
+    )
     return value, {"temperature": slope}
 
 
-@kernel(inputs={"temperature": "K"}, output="eV",
-        coefficients={"low_coefficients": "1", "high_coefficients": "1",
-                      "switch_temperature": "K"}, array_api=True)
-def piecewise_quadratic(temperature, *, low_coefficients, high_coefficients,
-                        switch_temperature):
+@kernel(
+    inputs={"temperature": "K"},
+    output="eV",
+    coefficients={"low_coefficients": "1", "high_coefficients": "1", "switch_temperature": "K"},
+    array_api=True,
+)
+def piecewise_quadratic(temperature, *, low_coefficients, high_coefficients, switch_temperature):
     """Two quadratics in T (kelvin), joined at ``switch_temperature``.
 
     ``Eg = c0 + c1 T + c2 T^2`` (eV, T in K) with the low set below the switch
@@ -198,12 +227,20 @@ def piecewise_quadratic(temperature, *, low_coefficients, high_coefficients,
 
 
 @derivatives_of(piecewise_quadratic)
-def piecewise_quadratic_derivatives(temperature, *, low_coefficients, high_coefficients,
-                                    switch_temperature):
+def piecewise_quadratic_derivatives(
+    temperature, *, low_coefficients, high_coefficients, switch_temperature
+):
     """The two quadratics and their slopes ``c1 + 2 c2 T`` (one-sided at the switch)."""
     xp = namespace(temperature)
     t = asfloat(xp, temperature)
     below = t < switch_temperature
-    return (xp.where(below, horner(t, low_coefficients), horner(t, high_coefficients)),
-            {"temperature": xp.where(below, horner_derivative(t, low_coefficients),
-                                     horner_derivative(t, high_coefficients))})
+    return (
+        xp.where(below, horner(t, low_coefficients), horner(t, high_coefficients)),
+        {
+            "temperature": xp.where(
+                below,
+                horner_derivative(t, low_coefficients),
+                horner_derivative(t, high_coefficients),
+            )
+        },
+    )

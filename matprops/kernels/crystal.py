@@ -17,18 +17,28 @@ ATOMS_PER_CUBIC_CELL = 8  # diamond structure: fcc lattice with a two-atom basis
 # atoms per a^2 in one atomic layer, and dangling bonds per surface atom of the
 # ideal, unreconstructed surface (each atom has four bonds; the cut breaks these).
 PLANES = {
-    "100": (2.0, 2),                     # square net 2/a^2; two bonds cut per atom
-    "110": (2.0 * np.sqrt(2.0), 1),      # 4 atoms per (a x a sqrt2) rectangle; one cut
-    "111": (4.0 / np.sqrt(3.0), 1),      # hexagonal net of side a/sqrt2; one cut
+    "100": (2.0, 2),  # square net 2/a^2; two bonds cut per atom
+    "110": (2.0 * np.sqrt(2.0), 1),  # 4 atoms per (a x a sqrt2) rectangle; one cut
+    "111": (4.0 / np.sqrt(3.0), 1),  # hexagonal net of side a/sqrt2; one cut
 }
 
 
-@kernel(inputs={"temperature": "K"}, output="cm",
-        coefficients={"reference_lattice_constant": "cm", "reference_temperature": "K",
-                      "c1": "1/K", "c2": "1/K", "c3": "1/K^2", "onset_temperature": "K"},
-        array_api=True)
-def okada_tokumaru(temperature, *, reference_lattice_constant, reference_temperature,
-                   c1, c2, c3, onset_temperature):
+@kernel(
+    inputs={"temperature": "K"},
+    output="cm",
+    coefficients={
+        "reference_lattice_constant": "cm",
+        "reference_temperature": "K",
+        "c1": "1/K",
+        "c2": "1/K",
+        "c3": "1/K^2",
+        "onset_temperature": "K",
+    },
+    array_api=True,
+)
+def okada_tokumaru(
+    temperature, *, reference_lattice_constant, reference_temperature, c1, c2, c3, onset_temperature
+):
     """Lattice constant from the integrated linear thermal-expansion coefficient.
 
     ``alpha(T) = c1 [1 - exp(-c2 (T - T1))] + c3 T`` and
@@ -63,7 +73,8 @@ def okada_tokumaru(temperature, *, reference_lattice_constant, reference_tempera
         power *= reference_lattice_constant
         return power
     return reference_lattice_constant * xp.exp(
-        _okada_integral(t, c1, c2, c3, onset_temperature, xp.exp) - reference)
+        _okada_integral(t, c1, c2, c3, onset_temperature, xp.exp) - reference
+    )
 
 
 okada_tokumaru.block = 1 << 17  # a few operations per point: large blocks

@@ -19,13 +19,33 @@ def states_from_mass(temperature, mass_ratio, xp=None):
     return STATES_PREFACTOR * mt * xp.sqrt(mt)
 
 
-@kernel(inputs={"temperature": "K"}, output=("cm^-3", "cm^-3"),
-        coefficients={"transverse_mass_at_zero": "1", "longitudinal_mass": "1",
-                      "valleys": "1", "gap_at_zero": "eV", "gap_alpha": "eV/K",
-                      "gap_beta": "K", "hole_numerator": "1",
-                      "hole_denominator": "1"}, array_api=True)
-def green(temperature, *, transverse_mass_at_zero, longitudinal_mass, valleys,
-          gap_at_zero, gap_alpha, gap_beta, hole_numerator, hole_denominator):
+@kernel(
+    inputs={"temperature": "K"},
+    output=("cm^-3", "cm^-3"),
+    coefficients={
+        "transverse_mass_at_zero": "1",
+        "longitudinal_mass": "1",
+        "valleys": "1",
+        "gap_at_zero": "eV",
+        "gap_alpha": "eV/K",
+        "gap_beta": "K",
+        "hole_numerator": "1",
+        "hole_denominator": "1",
+    },
+    array_api=True,
+)
+def green(
+    temperature,
+    *,
+    transverse_mass_at_zero,
+    longitudinal_mass,
+    valleys,
+    gap_at_zero,
+    gap_alpha,
+    gap_beta,
+    hole_numerator,
+    hole_denominator,
+):
     """Temperature-dependent density-of-states masses after Green (1990).
 
     Electrons: the transverse mass scales with the gap,
@@ -63,18 +83,34 @@ def green(temperature, *, transverse_mass_at_zero, longitudinal_mass, valleys,
 
 
 @derivatives_of(green)
-def green_derivatives(temperature, *, transverse_mass_at_zero, longitudinal_mass, valleys,
-                      gap_at_zero, gap_alpha, gap_beta, hole_numerator, hole_denominator):
+def green_derivatives(
+    temperature,
+    *,
+    transverse_mass_at_zero,
+    longitudinal_mass,
+    valleys,
+    gap_at_zero,
+    gap_alpha,
+    gap_beta,
+    hole_numerator,
+    hole_denominator,
+):
     """``N = S (m T)^(3/2)`` gives ``dN/dT = 1.5 N (1/T + m'/m)``, with
     ``m_e'/m_e = -(2/3) Eg'/Eg`` and ``m_h'/m_h = (2/3) (P'/P - Q'/Q)``."""
     xp = namespace(temperature)
     t = asfloat(xp, temperature)
-    gap, slopes = varshni_derivatives(t, gap_at_zero=gap_at_zero, alpha=gap_alpha,
-                                      beta=gap_beta)
-    nc, nv = green(t, transverse_mass_at_zero=transverse_mass_at_zero,
-                   longitudinal_mass=longitudinal_mass, valleys=valleys,
-                   gap_at_zero=gap_at_zero, gap_alpha=gap_alpha, gap_beta=gap_beta,
-                   hole_numerator=hole_numerator, hole_denominator=hole_denominator)
+    gap, slopes = varshni_derivatives(t, gap_at_zero=gap_at_zero, alpha=gap_alpha, beta=gap_beta)
+    nc, nv = green(
+        t,
+        transverse_mass_at_zero=transverse_mass_at_zero,
+        longitudinal_mass=longitudinal_mass,
+        valleys=valleys,
+        gap_at_zero=gap_at_zero,
+        gap_alpha=gap_alpha,
+        gap_beta=gap_beta,
+        hole_numerator=hole_numerator,
+        hole_denominator=hole_denominator,
+    )
     num = horner(t, hole_numerator)
     d_num = horner_derivative(t, hole_numerator)
     series = horner(t, hole_denominator)
@@ -83,17 +119,32 @@ def green_derivatives(temperature, *, transverse_mass_at_zero, longitudinal_mass
     electron = -(2.0 / 3.0) * slopes["temperature"] / gap
     hole = (2.0 / 3.0) * (d_num / num - d_den / den)
     inverse_t = 1.0 / t
-    return (nc, nv), {"temperature": (1.5 * nc * (inverse_t + electron),
-                                      1.5 * nv * (inverse_t + hole))}
+    return (nc, nv), {
+        "temperature": (1.5 * nc * (inverse_t + electron), 1.5 * nv * (inverse_t + hole))
+    }
 
 
-@kernel(inputs={"temperature": "K"}, output=("cm^-3", "cm^-3"),
-        coefficients={"conduction_at_reference": "cm^-3",
-                      "valence_at_reference": "cm^-3",
-                      "conduction_exponent": "1", "valence_exponent": "1",
-                      "reference_temperature": "K"}, array_api=True)
-def power_law(temperature, *, conduction_at_reference, valence_at_reference,
-              conduction_exponent, valence_exponent, reference_temperature):
+@kernel(
+    inputs={"temperature": "K"},
+    output=("cm^-3", "cm^-3"),
+    coefficients={
+        "conduction_at_reference": "cm^-3",
+        "valence_at_reference": "cm^-3",
+        "conduction_exponent": "1",
+        "valence_exponent": "1",
+        "reference_temperature": "K",
+    },
+    array_api=True,
+)
+def power_law(
+    temperature,
+    *,
+    conduction_at_reference,
+    valence_at_reference,
+    conduction_exponent,
+    valence_exponent,
+    reference_temperature,
+):
     """``Nc = Nc(Tr) (T/Tr)^xc``, ``Nv = Nv(Tr) (T/Tr)^xv``.
 
     Parameters
@@ -105,8 +156,10 @@ def power_law(temperature, *, conduction_at_reference, valence_at_reference,
     """
     xp = namespace(temperature)
     log_t = xp.log(asfloat(xp, temperature) / reference_temperature)
-    return (conduction_at_reference * xp.exp(conduction_exponent * log_t),
-            valence_at_reference * xp.exp(valence_exponent * log_t))
+    return (
+        conduction_at_reference * xp.exp(conduction_exponent * log_t),
+        valence_at_reference * xp.exp(valence_exponent * log_t),
+    )
 
 
 @derivatives_of(power_law)
@@ -115,15 +168,21 @@ def power_law_derivatives(temperature, **coefficients):
     xp = namespace(temperature)
     t = asfloat(xp, temperature)
     nc, nv = power_law(t, **coefficients)
-    return (nc, nv), {"temperature": (coefficients["conduction_exponent"] * nc / t,
-                                      coefficients["valence_exponent"] * nv / t)}
+    return (nc, nv), {
+        "temperature": (
+            coefficients["conduction_exponent"] * nc / t,
+            coefficients["valence_exponent"] * nv / t,
+        )
+    }
 
 
-@kernel(inputs={"temperature": "K"}, output=("cm^-3", "cm^-3"),
-        coefficients={"prefactor": "cm^-3", "conduction_polynomial": "1",
-                      "valence_polynomial": "1"}, array_api=True)
-def mass_polynomials(temperature, *, prefactor, conduction_polynomial,
-                     valence_polynomial):
+@kernel(
+    inputs={"temperature": "K"},
+    output=("cm^-3", "cm^-3"),
+    coefficients={"prefactor": "cm^-3", "conduction_polynomial": "1", "valence_polynomial": "1"},
+    array_api=True,
+)
+def mass_polynomials(temperature, *, prefactor, conduction_polynomial, valence_polynomial):
     """``N = A (m_d/m0)^(3/2) T^(3/2)`` with ``(m_d/m0)^(3/2)`` a polynomial in T.
 
     Parameters
@@ -140,8 +199,9 @@ def mass_polynomials(temperature, *, prefactor, conduction_polynomial,
 
 
 @derivatives_of(mass_polynomials)
-def mass_polynomials_derivatives(temperature, *, prefactor, conduction_polynomial,
-                                 valence_polynomial):
+def mass_polynomials_derivatives(
+    temperature, *, prefactor, conduction_polynomial, valence_polynomial
+):
     """``dN/dT = A T^(1/2) [1.5 P(T) + T P'(T)]``."""
     xp = namespace(temperature)
     t = asfloat(xp, temperature)

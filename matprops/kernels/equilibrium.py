@@ -88,8 +88,7 @@ def _log_ionised(log_density, x, share):
 class _Neutrality:
     """The log residual r(eta) and its derivative at fixed narrowing."""
 
-    def __init__(self, log_nc, log_nv, log_nd, log_na, gap, w_d, b_d, w_a, b_a,
-                 fermi_dirac):
+    def __init__(self, log_nc, log_nv, log_nd, log_na, gap, w_d, b_d, w_a, b_a, fermi_dirac):
         self.log_nc, self.log_nv = log_nc, log_nv
         self.log_nd, self.log_na = log_nd, log_na
         self.gap, self.w_d, self.b_d, self.w_a, self.b_a = gap, w_d, b_d, w_a, b_a
@@ -97,9 +96,23 @@ class _Neutrality:
 
     def subset(self, index):
         """The same equation on a subset of the points."""
-        return _Neutrality(*(a[index] for a in (
-            self.log_nc, self.log_nv, self.log_nd, self.log_na, self.gap, self.w_d,
-            self.b_d, self.w_a, self.b_a)), self.fermi_dirac)
+        return _Neutrality(
+            *(
+                a[index]
+                for a in (
+                    self.log_nc,
+                    self.log_nv,
+                    self.log_nd,
+                    self.log_na,
+                    self.gap,
+                    self.w_d,
+                    self.b_d,
+                    self.w_a,
+                    self.b_a,
+                )
+            ),
+            self.fermi_dirac,
+        )
 
     def parts(self, eta):
         eta_v = -eta - self.gap
@@ -116,8 +129,12 @@ class _Neutrality:
         log_positive = np.logaddexp(log_p, log_d)
         log_negative = np.logaddexp(log_n, log_a)
         residual = log_positive - log_negative
-        slope = -(rho_v * np.exp(log_p - log_positive) + q_d * np.exp(log_d - log_positive)
-                  + rho_c * np.exp(log_n - log_negative) + q_a * np.exp(log_a - log_negative))
+        slope = -(
+            rho_v * np.exp(log_p - log_positive)
+            + q_d * np.exp(log_d - log_positive)
+            + rho_c * np.exp(log_n - log_negative)
+            + q_a * np.exp(log_a - log_negative)
+        )
         return residual, slope
 
 
@@ -153,6 +170,7 @@ def _first_guess(nd, na, ni, log_nc, log_nv, reduced_gap, w_d, b_d, w_a, b_a):
 
     For n-type (Nd > Na) with y = n: ``y + Na = Nd [(1 - b) + b / (1 + K y)]``,
     ``K = g e^(E_dop/kT) / Nc``, a quadratic in y; p-type likewise. Then n p = ni'^2."""
+
     def majority(n_major, n_minor, log_states, w, b):
         k = np.exp(w - log_states)
         a = n_minor - n_major * (1.0 - b)
@@ -190,8 +208,9 @@ def _polish(neutrality, eta, rtol, max_iterations):
         pending, slope = pending[keep], slope[keep]
     if pending.size:
         start = eta[pending]
-        fixed, fixed_residual, _ = _newton(neutrality.subset(pending), start, start - 2.0,
-                                           start + 2.0, rtol, max_iterations)
+        fixed, fixed_residual, _ = _newton(
+            neutrality.subset(pending), start, start - 2.0, start + 2.0, rtol, max_iterations
+        )
         eta[pending], residual[pending] = fixed, fixed_residual
     return eta, residual, bool((np.abs(residual) <= rtol).all())
 
@@ -199,11 +218,26 @@ def _polish(neutrality, eta, rtol, max_iterations):
 BLOCK = 1 << 16  # points solved together: the temporaries stay in cache
 
 
-def solve(temperature, donor_density, acceptor_density, *, conduction_states,
-          valence_states, intrinsic_density, narrowing, narrowing_uses_carriers,
-          donor_level, acceptor_level, donor_degeneracy, acceptor_degeneracy,
-          gap_offset=0.0, fermi_dirac=True, rtol=1e-12, self_consistency=1e-10,
-          max_iterations=200):
+def solve(
+    temperature,
+    donor_density,
+    acceptor_density,
+    *,
+    conduction_states,
+    valence_states,
+    intrinsic_density,
+    narrowing,
+    narrowing_uses_carriers,
+    donor_level,
+    acceptor_level,
+    donor_degeneracy,
+    acceptor_degeneracy,
+    gap_offset=0.0,
+    fermi_dirac=True,
+    rtol=1e-12,
+    self_consistency=1e-10,
+    max_iterations=200,
+):
     """Solve charge neutrality for broadcast arrays of temperature and dopant densities.
 
     Parameters
@@ -237,37 +271,87 @@ def solve(temperature, donor_density, acceptor_density, *, conduction_states,
     Large inputs are solved in blocks of :data:`BLOCK` points into preallocated
     outputs, so time and memory grow linearly with the number of points.
     """
-    arrays = np.broadcast_arrays(*(np.asarray(a, dtype=float) for a in (
-        temperature, donor_density, acceptor_density, conduction_states, valence_states,
-        intrinsic_density, gap_offset, *donor_level, *acceptor_level)))
+    arrays = np.broadcast_arrays(
+        *(
+            np.asarray(a, dtype=float)
+            for a in (
+                temperature,
+                donor_density,
+                acceptor_density,
+                conduction_states,
+                valence_states,
+                intrinsic_density,
+                gap_offset,
+                *donor_level,
+                *acceptor_level,
+            )
+        )
+    )
     shape = arrays[0].shape
     flat = [a.ravel() for a in arrays]
     out = {key: np.empty(flat[0].size) for key in _OUTPUTS}
-    options = {"narrowing": narrowing, "narrowing_uses_carriers": narrowing_uses_carriers,
-               "g_d": donor_degeneracy, "g_a": acceptor_degeneracy,
-               "fermi_dirac": fermi_dirac, "rtol": rtol,
-               "self_consistency": self_consistency, "max_iterations": max_iterations}
+    options = {
+        "narrowing": narrowing,
+        "narrowing_uses_carriers": narrowing_uses_carriers,
+        "g_d": donor_degeneracy,
+        "g_a": acceptor_degeneracy,
+        "fermi_dirac": fermi_dirac,
+        "rtol": rtol,
+        "self_consistency": self_consistency,
+        "max_iterations": max_iterations,
+    }
     for start in range(0, max(flat[0].size, 1), BLOCK):
         block = slice(start, start + BLOCK)
         try:
             result = _solve_block(*(a[block] for a in flat), **options)
         except SolverError as error:
-            raise SolverError(f"{error} (block starting at flat index {start} of "
-                              f"shape {shape})") if start else error
+            if not start:
+                raise
+            raise SolverError(
+                f"{error} (block starting at flat index {start} of shape {shape})"
+            ) from None
         for key in _OUTPUTS:
             out[key][block] = result[key]
     return {key: value.reshape(shape) for key, value in out.items()}
 
 
-_OUTPUTS = ("reduced_fermi_level", "electron_density", "hole_density", "ionised_donors",
-            "ionised_acceptors", "conduction_edge_shift", "valence_edge_shift",
-            "fermi_from_conduction_edge", "fermi_from_valence_edge", "fermi_from_intrinsic",
-            "residual")
+_OUTPUTS = (
+    "reduced_fermi_level",
+    "electron_density",
+    "hole_density",
+    "ionised_donors",
+    "ionised_acceptors",
+    "conduction_edge_shift",
+    "valence_edge_shift",
+    "fermi_from_conduction_edge",
+    "fermi_from_valence_edge",
+    "fermi_from_intrinsic",
+    "residual",
+)
 
 
-def _solve_block(t, nd, na, nc, nv, ni, offset, e_d, b_d, e_a, b_a, *, narrowing,
-                 narrowing_uses_carriers, g_d, g_a, fermi_dirac, rtol, self_consistency,
-                 max_iterations):
+def _solve_block(
+    t,
+    nd,
+    na,
+    nc,
+    nv,
+    ni,
+    offset,
+    e_d,
+    b_d,
+    e_a,
+    b_a,
+    *,
+    narrowing,
+    narrowing_uses_carriers,
+    g_d,
+    g_a,
+    fermi_dirac,
+    rtol,
+    self_consistency,
+    max_iterations,
+):
     shape = t.shape
     kt = BOLTZMANN_EV * t
     with np.errstate(divide="ignore"):
@@ -281,13 +365,16 @@ def _solve_block(t, nd, na, nc, nv, ni, offset, e_d, b_d, e_a, b_a, *, narrowing
 
     def shifts(n, p):
         dec, dev = narrowing_at(n, p)
-        return (np.broadcast_to(dec, shape).astype(float),
-                np.broadcast_to(dev, shape).astype(float))
+        return (
+            np.broadcast_to(dec, shape).astype(float),
+            np.broadcast_to(dev, shape).astype(float),
+        )
 
     def equation(dec, dev):
         gap = reduced_gap - (dec + dev) / kt
-        return _Neutrality(log_nc, log_nv, log_nd, log_na, gap, w_d, b_d, w_a, b_a,
-                           fermi_dirac), gap
+        return _Neutrality(
+            log_nc, log_nv, log_nd, log_na, gap, w_d, b_d, w_a, b_a, fermi_dirac
+        ), gap
 
     # start from Boltzmann statistics with the majority dopant's ionisation solved
     # exactly (a quadratic) and the minority dopant fully ionised
@@ -313,8 +400,7 @@ def _solve_block(t, nd, na, nc, nv, ni, offset, e_d, b_d, e_a, b_a, *, narrowing
             neutrality, gap = equation(dec, dev)
             eta, residual, converged = _polish(neutrality, eta, rtol, max_iterations)
             if not converged:
-                _fail(np.abs(residual) > rtol, t, nd, na, residual,
-                      "the neutrality equation")
+                _fail(np.abs(residual) > rtol, t, nd, na, residual, "the neutrality equation")
             previous.append(eta)
             if len(previous) == 3:
                 e0, e1, e2 = previous
@@ -326,8 +412,14 @@ def _solve_block(t, nd, na, nc, nv, ni, offset, e_d, b_d, e_a, b_a, *, narrowing
                 eta = e2 - jump
                 previous = []
         else:
-            _fail(change > self_consistency, t, nd, na, change,
-                  "the self-consistent narrowing (it keeps moving)")
+            _fail(
+                change > self_consistency,
+                t,
+                nd,
+                na,
+                change,
+                "the self-consistent narrowing (it keeps moving)",
+            )
         # the state reported is the one solved with the narrowing (dec, dev)
         eta, residual, converged = _polish(neutrality, eta, rtol, max_iterations)
     log_n, log_p, log_d, log_a, *_ = neutrality.parts(eta)
@@ -349,8 +441,11 @@ def _solve_block(t, nd, na, nc, nv, ni, offset, e_d, b_d, e_a, b_a, *, narrowing
 
 def _fail(bad, t, nd, na, residual, what):
     index = np.flatnonzero(bad)
-    shown = ", ".join(f"#{i}: T={t[i]:g} K, Nd={nd[i]:g}, Na={na[i]:g} cm^-3 "
-                      f"(residual {residual[i]:.2g})" for i in index[:5])
+    shown = ", ".join(
+        f"#{i}: T={t[i]:g} K, Nd={nd[i]:g}, Na={na[i]:g} cm^-3 (residual {residual[i]:.2g})"
+        for i in index[:5]
+    )
     more = f" and {index.size - 5} more" if index.size > 5 else ""
-    raise SolverError(f"equilibrium: {index.size} point(s) did not converge in {what}: "
-                      f"{shown}{more}")
+    raise SolverError(
+        f"equilibrium: {index.size} point(s) did not converge in {what}: {shown}{more}"
+    )

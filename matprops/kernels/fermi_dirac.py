@@ -9,7 +9,7 @@ so ``F_j(eta) -> exp(eta)`` for ``eta -> -inf`` (Boltzmann limit) and
 ``dF_j/deta = F_{j-1}``: ``fd_minus_half`` is the derivative of ``fd_half``.
 
 Method: piecewise minimax rational approximations ``P/Q`` whose coefficients live in
-``_fermi_dirac_coefficients.py``, generated offline by ``_make_fermi_dirac.py``
+``_fermi_dirac_coefficients.py``, generated offline by ``tools/make_fermi_dirac.py``
 (mpmath, Remez exchange, reference ``-Li_{j+1}(-e^eta)``; re-run it to reproduce them)::
 
     eta <= 0                    F = z P(z)/Q(z),   z = exp(eta)
@@ -35,7 +35,7 @@ The inverse ``eta = F_1/2^-1(y)`` is fitted the same way, on segments cut at
 is already at the rounding level, so no Newton step follows (one on ``fd_half`` and
 ``fd_minus_half`` would cost 3.2 times as much).
 
-Accuracy, measured by ``_make_fermi_dirac.py`` against mpmath on 3.1e4 values of eta from
+Accuracy, measured by ``tools/make_fermi_dirac.py`` against mpmath on 3.1e4 values of eta from
 -700 to 1e6 (for the inverse 1.4e4 values of y from 1e-30 to 1.3e6, error of eta times
 F_-1/2/F_1/2), worst relative error (kept in ``ACCURACY``)::
 
@@ -68,10 +68,10 @@ from . import _fermi_dirac_coefficients as _coefficients
 
 __all__ = ["ACCURACY", "fd_half", "fd_half_inverse", "fd_minus_half"]
 
-#: Worst relative error measured by ``_make_fermi_dirac.py``, and the eta where it occurred.
+#: Worst relative error measured by ``tools/make_fermi_dirac.py``, and the eta where it occurred.
 ACCURACY = _coefficients.ACCURACY
 
-_BLOCK = 32768                   # elements per block: temporaries stay in cache
+_BLOCK = 32768  # elements per block: temporaries stay in cache
 _FORWARD_EDGES = (-inf,) + _coefficients.BREAKS
 _INVERSE_EDGES = (0.0,) + _coefficients.INVERSE_BREAKS
 _GAMMA_5_2 = gamma(2.5)
@@ -165,7 +165,7 @@ def _forward(segment, eta, table, power, out=None):
     series *= s
     series += 1.0
     if power == 1.5:
-        series *= eta                   # eta/Gamma(5/2) before the root: no early overflow
+        series *= eta  # eta/Gamma(5/2) before the root: no early overflow
         series *= 1.0 / _GAMMA_5_2
     else:
         series *= 1.0 / _GAMMA_3_2
@@ -204,20 +204,20 @@ def _piecewise(x, edges, evaluate, table, power):
     inner = edges[1:]
 
     def segment_of(value):
-        if not value >= edges[0]:           # NaN or below the domain
+        if not value >= edges[0]:  # NaN or below the domain
             return None
         return bisect_left(inner, value)
 
     with np.errstate(all="ignore"):
         for start in range(0, flat_x.size, _BLOCK):
-            block = flat_x[start:start + _BLOCK]
-            block_out = flat_out[start:start + _BLOCK]
+            block = flat_x[start : start + _BLOCK]
+            block_out = flat_out[start : start + _BLOCK]
             first, last = segment_of(block.min()), segment_of(block.max())
             if first is not None and first == last:
                 evaluate(first, block, table, power, block_out)
                 continue
             block_out.fill(np.nan)
-            segment = (block >= edges[0]).view(np.int8) - np.int8(1)   # -1: NaN, out of domain
+            segment = (block >= edges[0]).view(np.int8) - np.int8(1)  # -1: NaN, out of domain
             for edge in inner:
                 segment += (block > edge).view(np.int8)
             for i in range(len(edges)):

@@ -37,10 +37,12 @@ def _by_total(xp, value, derivative):
     return (half, half), {"donor_density": (slope, slope), "acceptor_density": (slope, slope)}
 
 
-@kernel(inputs={"donor_density": "cm^-3", "acceptor_density": "cm^-3"},
-        output=("eV", "eV"),
-        coefficients={"energy": "eV", "reference_density": "cm^-3", "constant": "1"},
-        array_api=True)
+@kernel(
+    inputs={"donor_density": "cm^-3", "acceptor_density": "cm^-3"},
+    output=("eV", "eV"),
+    coefficients={"energy": "eV", "reference_density": "cm^-3", "constant": "1"},
+    array_api=True,
+)
 def slotboom(donor_density, acceptor_density, *, energy, reference_density, constant):
     """Slotboom's form of the apparent narrowing, split in equal halves.
 
@@ -70,8 +72,7 @@ def slotboom(donor_density, acceptor_density, *, energy, reference_density, cons
 
 
 @derivatives_of(slotboom)
-def slotboom_derivatives(donor_density, acceptor_density, *, energy, reference_density,
-                         constant):
+def slotboom_derivatives(donor_density, acceptor_density, *, energy, reference_density, constant):
     """``d dEg/dN = E (1 + x / sqrt(x^2 + C)) / N = dEg / (N sqrt(x^2 + C))``
     (infinite at N = 0), the same for Nd and Na, halved for each edge."""
     xp = namespace(donor_density, acceptor_density)
@@ -84,9 +85,12 @@ def slotboom_derivatives(donor_density, acceptor_density, *, energy, reference_d
     return _by_total(xp, narrowing, slope)
 
 
-@kernel(inputs={"donor_density": "cm^-3", "acceptor_density": "cm^-3"},
-        output=("eV", "eV"),
-        coefficients={"energy": "eV", "onset_density": "cm^-3"}, array_api=True)
+@kernel(
+    inputs={"donor_density": "cm^-3", "acceptor_density": "cm^-3"},
+    output=("eV", "eV"),
+    coefficients={"energy": "eV", "onset_density": "cm^-3"},
+    array_api=True,
+)
 def logarithmic(donor_density, acceptor_density, *, energy, onset_density):
     """A narrowing logarithmic in the dopant density above an onset, in equal halves.
 
@@ -117,20 +121,71 @@ def logarithmic_derivatives(donor_density, acceptor_density, *, energy, onset_de
     return _by_total(xp, narrowing, slope)
 
 
-@kernel(inputs={"temperature": "K", "donor_density": "cm^-3", "acceptor_density": "cm^-3",
-                "electron_density": "cm^-3", "hole_density": "cm^-3"},
-        output=("eV", "eV"),
-        coefficients={"electron_mass": "1", "hole_mass": "1",
-                      "electron_degeneracy": "1", "hole_degeneracy": "1",
-                      "exciton_rydberg": "eV", "exciton_radius": "cm",
-                      "b_e": "1", "b_h": "1", "c_e": "1", "c_h": "1",
-                      "d_e": "1", "d_h": "1", "p_e": "1", "p_h": "1",
-                      "h_e": "1", "h_h": "1", "j_e": "1", "j_h": "1",
-                      "k_e": "1", "k_h": "1", "q_e": "1", "q_h": "1"}, array_api=True)
-def schenk(temperature, donor_density, acceptor_density, electron_density, hole_density, *,
-           electron_mass, hole_mass, electron_degeneracy, hole_degeneracy,
-           exciton_rydberg, exciton_radius, b_e, b_h, c_e, c_h, d_e, d_h, p_e, p_h,
-           h_e, h_h, j_e, j_h, k_e, k_h, q_e, q_h):
+@kernel(
+    inputs={
+        "temperature": "K",
+        "donor_density": "cm^-3",
+        "acceptor_density": "cm^-3",
+        "electron_density": "cm^-3",
+        "hole_density": "cm^-3",
+    },
+    output=("eV", "eV"),
+    coefficients={
+        "electron_mass": "1",
+        "hole_mass": "1",
+        "electron_degeneracy": "1",
+        "hole_degeneracy": "1",
+        "exciton_rydberg": "eV",
+        "exciton_radius": "cm",
+        "b_e": "1",
+        "b_h": "1",
+        "c_e": "1",
+        "c_h": "1",
+        "d_e": "1",
+        "d_h": "1",
+        "p_e": "1",
+        "p_h": "1",
+        "h_e": "1",
+        "h_h": "1",
+        "j_e": "1",
+        "j_h": "1",
+        "k_e": "1",
+        "k_h": "1",
+        "q_e": "1",
+        "q_h": "1",
+    },
+    array_api=True,
+)
+def schenk(
+    temperature,
+    donor_density,
+    acceptor_density,
+    electron_density,
+    hole_density,
+    *,
+    electron_mass,
+    hole_mass,
+    electron_degeneracy,
+    hole_degeneracy,
+    exciton_rydberg,
+    exciton_radius,
+    b_e,
+    b_h,
+    c_e,
+    c_h,
+    d_e,
+    d_h,
+    p_e,
+    p_h,
+    h_e,
+    h_h,
+    j_e,
+    j_h,
+    k_e,
+    k_h,
+    q_e,
+    q_h,
+):
     """Schenk's physical narrowing: each band's exchange-correlation and ionic shift.
 
     Energies are in units of the excitonic Rydberg ``Ry``, densities in units of
@@ -173,33 +228,101 @@ def schenk(temperature, donor_density, acceptor_density, electron_density, hole_
     ----------
     A. Schenk, J. Appl. Phys. 84, 3684 (1998), doi:10.1063/1.368545.
     """
-    parts = _SchenkParts(temperature, donor_density, acceptor_density, electron_mass,
-                         hole_mass, electron_degeneracy, hole_degeneracy, exciton_rydberg,
-                         exciton_radius, (b_e, c_e, d_e, p_e, h_e, j_e, k_e, q_e),
-                         (b_h, c_h, d_h, p_h, h_h, j_h, k_h, q_h))
+    parts = _SchenkParts(
+        temperature,
+        donor_density,
+        acceptor_density,
+        electron_mass,
+        hole_mass,
+        electron_degeneracy,
+        hole_degeneracy,
+        exciton_rydberg,
+        exciton_radius,
+        (b_e, c_e, d_e, p_e, h_e, j_e, k_e, q_e),
+        (b_h, c_h, d_h, p_h, h_h, j_h, k_h, q_h),
+    )
     return parts(electron_density, hole_density)
 
 
-def _fixed_dopants(temperature, donor_density, acceptor_density, *, electron_mass,
-                   hole_mass, electron_degeneracy, hole_degeneracy, exciton_rydberg,
-                   exciton_radius, b_e, b_h, c_e, c_h, d_e, d_h, p_e, p_h, h_e, h_h, j_e, j_h,
-                   k_e, k_h, q_e, q_h):
+def _fixed_dopants(
+    temperature,
+    donor_density,
+    acceptor_density,
+    *,
+    electron_mass,
+    hole_mass,
+    electron_degeneracy,
+    hole_degeneracy,
+    exciton_rydberg,
+    exciton_radius,
+    b_e,
+    b_h,
+    c_e,
+    c_h,
+    d_e,
+    d_h,
+    p_e,
+    p_h,
+    h_e,
+    h_h,
+    j_e,
+    j_h,
+    k_e,
+    k_h,
+    q_e,
+    q_h,
+):
     """Schenk's shifts as a function of ``(n, p)`` alone, the ionic part computed once
     (for solvers that iterate on the carrier densities at fixed T, Nd, Na)."""
-    return _SchenkParts(temperature, donor_density, acceptor_density, electron_mass,
-                        hole_mass, electron_degeneracy, hole_degeneracy, exciton_rydberg,
-                        exciton_radius, (b_e, c_e, d_e, p_e, h_e, j_e, k_e, q_e),
-                        (b_h, c_h, d_h, p_h, h_h, j_h, k_h, q_h))
+    return _SchenkParts(
+        temperature,
+        donor_density,
+        acceptor_density,
+        electron_mass,
+        hole_mass,
+        electron_degeneracy,
+        hole_degeneracy,
+        exciton_rydberg,
+        exciton_radius,
+        (b_e, c_e, d_e, p_e, h_e, j_e, k_e, q_e),
+        (b_h, c_h, d_h, p_h, h_h, j_h, k_h, q_h),
+    )
 
 
 schenk.with_fixed_dopants = _fixed_dopants
 
 
 @derivatives_of(schenk)
-def schenk_derivatives(temperature, donor_density, acceptor_density, electron_density,
-                       hole_density, *, electron_mass, hole_mass, electron_degeneracy,
-                       hole_degeneracy, exciton_rydberg, exciton_radius, b_e, b_h, c_e, c_h,
-                       d_e, d_h, p_e, p_h, h_e, h_h, j_e, j_h, k_e, k_h, q_e, q_h):
+def schenk_derivatives(
+    temperature,
+    donor_density,
+    acceptor_density,
+    electron_density,
+    hole_density,
+    *,
+    electron_mass,
+    hole_mass,
+    electron_degeneracy,
+    hole_degeneracy,
+    exciton_rydberg,
+    exciton_radius,
+    b_e,
+    b_h,
+    c_e,
+    c_h,
+    d_e,
+    d_h,
+    p_e,
+    p_h,
+    h_e,
+    h_h,
+    j_e,
+    j_h,
+    k_e,
+    k_h,
+    q_e,
+    q_h,
+):
     """Schenk's shifts and their partial derivatives with respect to T (eV/K) and Nd,
     Na, n, p (eV cm^3), analytic.
 
@@ -208,10 +331,20 @@ def schenk_derivatives(temperature, donor_density, acceptor_density, electron_de
     ``Ns = Nd + Na``, ``alpha_e Nd + alpha_h Na`` and ``t = kT / Ry``. A zero carrier
     density gives a NaN partial (the cube root's slope is infinite there).
     """
-    parts = _SchenkParts(temperature, donor_density, acceptor_density, electron_mass,
-                         hole_mass, electron_degeneracy, hole_degeneracy, exciton_rydberg,
-                         exciton_radius, (b_e, c_e, d_e, p_e, h_e, j_e, k_e, q_e),
-                         (b_h, c_h, d_h, p_h, h_h, j_h, k_h, q_h), derivatives=True)
+    parts = _SchenkParts(
+        temperature,
+        donor_density,
+        acceptor_density,
+        electron_mass,
+        hole_mass,
+        electron_degeneracy,
+        hole_degeneracy,
+        exciton_rydberg,
+        exciton_radius,
+        (b_e, c_e, d_e, p_e, h_e, j_e, k_e, q_e),
+        (b_h, c_h, d_h, p_h, h_h, j_h, k_h, q_h),
+        derivatives=True,
+    )
     return parts.with_derivatives(electron_density, hole_density)
 
 
@@ -223,11 +356,23 @@ class _SchenkParts:
     shifts (see :func:`schenk_derivatives` for the formulas).
     """
 
-    def __init__(self, temperature, donor_density, acceptor_density, electron_mass,
-                 hole_mass, electron_degeneracy, hole_degeneracy, rydberg, radius,
-                 electron_set, hole_set, derivatives=False):
+    def __init__(
+        self,
+        temperature,
+        donor_density,
+        acceptor_density,
+        electron_mass,
+        hole_mass,
+        electron_degeneracy,
+        hole_degeneracy,
+        rydberg,
+        radius,
+        electron_set,
+        hole_set,
+        derivatives=False,
+    ):
         xp = self.xp = namespace(temperature, donor_density, acceptor_density)
-        self.rydberg, self.volume = rydberg, radius ** 3
+        self.rydberg, self.volume = rydberg, radius**3
         t = BOLTZMANN_EV * asfloat(xp, temperature) / rydberg
         self.t = t
         self.alpha_e = hole_mass / (electron_mass + hole_mass)
@@ -286,18 +431,26 @@ class _SchenkParts:
                 inverse = 1.0 / bottom
                 scaled = scale * inverse  # -(Ry a^3) x (-1/bottom): to eV cm^3
                 kq = k * power_q
-                d_ns = (top_ns + value * (half_ns * (1.0 + h * log_plus)
-                                          + impurity * two_over_ns)) * scaled
+                d_ns = (
+                    top_ns + value * (half_ns * (1.0 + h * log_plus) + impurity * two_over_ns)
+                ) * scaled
                 d_np = value * impurity * (0.75 + q * kq / (1.0 + kq)) * inverse_np * scaled
-                d_t = -(top_t + value * (half_t * (1.0 + h * log_minus)
-                                         + impurity * minus_three_over_t)) * inverse
+                d_t = (
+                    -(
+                        top_t
+                        + value * (half_t * (1.0 + h * log_minus) + impurity * minus_three_over_t)
+                    )
+                    * inverse
+                )
                 partials = (d_t, d_ns + self.alpha_e * d_np, d_ns + self.alpha_h * d_np)
             if not everywhere:  # no dopants: no ionic part, no slope
                 partials = tuple(xp.where(present, d, zero) for d in partials)
             return value, partials
 
         (self.ionic_e, self.d_ionic_e), (self.ionic_h, self.d_ionic_h) = (
-            ionic(electron_set), ionic(hole_set))
+            ionic(electron_set),
+            ionic(hole_set),
+        )
         t2 = t * t
         self.t2, self.t3 = t2, t3
         self.t52 = t2 * xp.sqrt(t)
@@ -317,14 +470,18 @@ class _SchenkParts:
 
         def shift(n_a, g_a, alpha_a, parameters, ionic):
             b, c, d, pa, *_ = parameters
-            exchange = -(four_pi_cubed_ns2 * (cbrt(xp, (48.0 / (math.pi * g_a)) * n_a)
-                                              + c * xp.log1p(d * xp.exp(pa * log_np)))
-                         + (8.0 * math.pi * alpha_a / g_a) * n_a * t2 + common_top) \
-                / (common_bottom + b * sqrt_ns * t2)
+            exchange = -(
+                four_pi_cubed_ns2
+                * (cbrt(xp, (48.0 / (math.pi * g_a)) * n_a) + c * xp.log1p(d * xp.exp(pa * log_np)))
+                + (8.0 * math.pi * alpha_a / g_a) * n_a * t2
+                + common_top
+            ) / (common_bottom + b * sqrt_ns * t2)
             return -(exchange + ionic) * self.rydberg
 
-        return (shift(n, self.g_e, self.alpha_e, self.electron_set, self.ionic_e),
-                shift(p, self.g_h, self.alpha_h, self.hole_set, self.ionic_h))
+        return (
+            shift(n, self.g_e, self.alpha_e, self.electron_set, self.ionic_e),
+            shift(p, self.g_h, self.alpha_h, self.hole_set, self.ionic_h),
+        )
 
     def with_derivatives(self, electron_density, hole_density):
         """The shifts (as :meth:`__call__`) and their partial derivatives with respect to
@@ -352,10 +509,10 @@ class _SchenkParts:
             d_bottom_ns = d_f + 60.0 * root_t
             d_bottom_t = 3.0 * t2 + 40.0 * ns * sqrt_ns
             half_t2_root = 0.5 * t2 * sqrt_ns * inverse_ns  # d(sqrt(ns) t^2)/dns
-            two_root_t = 2.0 * root_t                       # d(sqrt(ns) t^2)/dt
+            two_root_t = 2.0 * root_t  # d(sqrt(ns) t^2)/dt
             inverse_m = 1.0 / m
-        scale = rydberg * volume                        # d shift / d density, per -dX
-        to_kelvin = -BOLTZMANN_EV                       # d shift/dT per dX/dt: -Ry k/Ry
+        scale = rydberg * volume  # d shift / d density, per -dX
+        to_kelvin = -BOLTZMANN_EV  # d shift/dT per dX/dt: -Ry k/Ry
 
         def shift(n_a, g_a, alpha_a, parameters, ionic, d_ionic, own):
             b, c, d, pa, *_ = parameters
@@ -378,23 +535,27 @@ class _SchenkParts:
                 partial = [(base + alpha * mixing) for alpha in (self.alpha_e, self.alpha_h)]
                 partial[own] = partial[own] + own_term
                 partial = [d * factor for d in partial]
-                d_time = (2.0 * k_a * n_a * t + d_top_t
-                          + exchange * (d_bottom_t + b * two_root_t)) * inverse
+                d_time = (
+                    2.0 * k_a * n_a * t + d_top_t + exchange * (d_bottom_t + b * two_root_t)
+                ) * inverse
             d_ionic_t, d_ionic_nd, d_ionic_na = d_ionic
             return value, {
                 "temperature": (d_ionic_t - d_time) * to_kelvin,
                 "donor_density": d_ionic_nd,
                 "acceptor_density": d_ionic_na,
                 "electron_density": partial[0],
-                "hole_density": partial[1]}
+                "hole_density": partial[1],
+            }
 
-        ec, d_ec = shift(n, self.g_e, self.alpha_e, self.electron_set, self.ionic_e,
-                         self.d_ionic_e, 0)
-        ev, d_ev = shift(p, self.g_h, self.alpha_h, self.hole_set, self.ionic_h,
-                         self.d_ionic_h, 1)
+        ec, d_ec = shift(
+            n, self.g_e, self.alpha_e, self.electron_set, self.ionic_e, self.d_ionic_e, 0
+        )
+        ev, d_ev = shift(p, self.g_h, self.alpha_h, self.hole_set, self.ionic_h, self.d_ionic_h, 1)
         shape = np.broadcast_shapes(tuple(ec.shape), tuple(ev.shape))
-        return (ec, ev), {name: (xp.broadcast_to(d_ec[name], shape),
-                                 xp.broadcast_to(d_ev[name], shape)) for name in d_ec}
+        return (ec, ev), {
+            name: (xp.broadcast_to(d_ec[name], shape), xp.broadcast_to(d_ev[name], shape))
+            for name in d_ec
+        }
 
 
 _ROOT_8PI = math.sqrt(8.0 * math.pi)

@@ -24,8 +24,9 @@ from ..errors import SolverError
 from .constants import BOLTZMANN_EV
 
 
-def implied_voltage(temperature, equilibrium_electron_density, equilibrium_hole_density,
-                    excess_density):
+def implied_voltage(
+    temperature, equilibrium_electron_density, equilibrium_hole_density, excess_density
+):
     """Quasi-Fermi-level splitting over q, V, of uniform excess density ``dn`` (cm^-3).
 
     ``(kT/q) ln(1 + dn (n0 + p0 + dn) / (n0 p0))`` evaluated with ``log1p`` so that
@@ -116,7 +117,9 @@ def steady_state_excess(rate, generation, guess, rtol=1e-12, max_iterations=200)
 
 def _fail(bad, shape, generation, what):
     index = np.flatnonzero(bad)
-    shown = ", ".join(f"#{np.unravel_index(i, shape) if len(shape) > 1 else i}: "
-                      f"G={generation[i]:g} cm^-3 s^-1" for i in index[:5])
+    shown = ", ".join(
+        f"#{np.unravel_index(i, shape) if len(shape) > 1 else i}: G={generation[i]:g} cm^-3 s^-1"
+        for i in index[:5]
+    )
     more = f" and {index.size - 5} more" if index.size > 5 else ""
     raise SolverError(f"steady state: {index.size} point(s) failed ({what}): {shown}{more}")

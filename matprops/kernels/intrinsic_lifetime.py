@@ -32,8 +32,12 @@ from ._xp import asfloat, errstate, namespace, power, zeros_like
 
 PARTS = ("total", "auger", "radiative")
 
-_INPUTS = {"temperature": "K", "equilibrium_electron_density": "cm^-3",
-           "equilibrium_hole_density": "cm^-3", "excess_density": "cm^-3"}
+_INPUTS = {
+    "temperature": "K",
+    "equilibrium_electron_density": "cm^-3",
+    "equilibrium_hole_density": "cm^-3",
+    "excess_density": "cm^-3",
+}
 
 
 def _coefficient(auger, radiative, part):
@@ -88,8 +92,7 @@ def _power(xp, density, exponent):
     return power(xp, density, exponent)
 
 
-def _lifetime_derivatives(xp, shape, n0, p0, dn, auger, radiative, d_auger, d_radiative,
-                          part):
+def _lifetime_derivatives(xp, shape, n0, p0, dn, auger, radiative, d_auger, d_radiative, part):
     """tau = 1/(S K) with S = n0 + p0 + dn and K the part's coefficient:
     ``d tau = -tau (dS/S + dK/K)``; ``d_auger``, ``d_radiative``: input -> partial
     (absent: zero)."""
@@ -98,15 +101,17 @@ def _lifetime_derivatives(xp, shape, n0, p0, dn, auger, radiative, d_auger, d_ra
     value = 1.0 / (total * coefficient)
     zero = 0.0 * value
     with errstate(xp, invalid="ignore", divide="ignore"):
-        through_sum = -value / total           # dS/dx = 1 for the three densities
+        through_sum = -value / total  # dS/dx = 1 for the three densities
         through_k = -value / coefficient
         partials = {}
         for name in _INPUTS:
-            uses = {"total": (d_auger, d_radiative), "auger": (d_auger,),
-                    "radiative": (d_radiative,)}[part]
+            uses = {
+                "total": (d_auger, d_radiative),
+                "auger": (d_auger,),
+                "radiative": (d_radiative,),
+            }[part]
             slopes = [d[name] for d in uses if name in d]
-            d_k = slopes[0] if len(slopes) == 1 else (slopes[0] + slopes[1] if slopes
-                                                      else None)
+            d_k = slopes[0] if len(slopes) == 1 else (slopes[0] + slopes[1] if slopes else None)
             if name == "temperature":
                 partial = zero if d_k is None else through_k * d_k
             elif d_k is None:
@@ -121,17 +126,43 @@ def _lifetime_derivatives(xp, shape, n0, p0, dn, auger, radiative, d_auger, d_ra
     return xp.broadcast_to(value, shape), partials
 
 
-@kernel(inputs=_INPUTS, output="s",
-        coefficients={"electron_coefficient": "cm^6/s", "hole_coefficient": "cm^6/s",
-                      "injection_coefficient": "cm^3/s", "injection_exponent": "1",
-                      "eeh_enhancement": "1", "eeh_density": "cm^-3", "eeh_exponent": "1",
-                      "ehh_enhancement": "1", "ehh_density": "cm^-3", "ehh_exponent": "1",
-                      "radiative_coefficient": "cm^3/s"}, array_api=True)
-def richter(temperature, equilibrium_electron_density, equilibrium_hole_density,
-            excess_density, *, electron_coefficient, hole_coefficient,
-            injection_coefficient, injection_exponent, eeh_enhancement, eeh_density,
-            eeh_exponent, ehh_enhancement, ehh_density, ehh_exponent,
-            radiative_coefficient, part="total"):
+@kernel(
+    inputs=_INPUTS,
+    output="s",
+    coefficients={
+        "electron_coefficient": "cm^6/s",
+        "hole_coefficient": "cm^6/s",
+        "injection_coefficient": "cm^3/s",
+        "injection_exponent": "1",
+        "eeh_enhancement": "1",
+        "eeh_density": "cm^-3",
+        "eeh_exponent": "1",
+        "ehh_enhancement": "1",
+        "ehh_density": "cm^-3",
+        "ehh_exponent": "1",
+        "radiative_coefficient": "cm^3/s",
+    },
+    array_api=True,
+)
+def richter(
+    temperature,
+    equilibrium_electron_density,
+    equilibrium_hole_density,
+    excess_density,
+    *,
+    electron_coefficient,
+    hole_coefficient,
+    injection_coefficient,
+    injection_exponent,
+    eeh_enhancement,
+    eeh_density,
+    eeh_exponent,
+    ehh_enhancement,
+    ehh_density,
+    ehh_exponent,
+    radiative_coefficient,
+    part="total",
+):
     """Richter et al. (2012): Coulomb-enhanced Auger terms, an injection term, radiative.
 
     ``A = C_n g_eeh n0 + C_p g_ehh p0 + C_dn dn^gamma``,
@@ -154,29 +185,46 @@ def richter(temperature, equilibrium_electron_density, equilibrium_hole_density,
     -------
     lifetime, s
     """
-    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
-                                equilibrium_hole_density, excess_density)
+    xp, t, n0, p0, dn = _arrays(
+        temperature, equilibrium_electron_density, equilibrium_hole_density, excess_density
+    )
     shape = _shape(t, n0, p0, dn)
-    g_eeh = 1.0 + eeh_enhancement * (1.0 - xp.tanh(_power(xp, n0 / eeh_density,
-                                                          eeh_exponent)))
-    g_ehh = 1.0 + ehh_enhancement * (1.0 - xp.tanh(_power(xp, p0 / ehh_density,
-                                                          ehh_exponent)))
-    auger = (electron_coefficient * g_eeh * n0 + hole_coefficient * g_ehh * p0
-             + injection_coefficient * _power(xp, dn, injection_exponent))
+    g_eeh = 1.0 + eeh_enhancement * (1.0 - xp.tanh(_power(xp, n0 / eeh_density, eeh_exponent)))
+    g_ehh = 1.0 + ehh_enhancement * (1.0 - xp.tanh(_power(xp, p0 / ehh_density, ehh_exponent)))
+    auger = (
+        electron_coefficient * g_eeh * n0
+        + hole_coefficient * g_ehh * p0
+        + injection_coefficient * _power(xp, dn, injection_exponent)
+    )
     return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part, xp)
 
 
 @derivatives_of(richter)
-def richter_derivatives(temperature, equilibrium_electron_density, equilibrium_hole_density,
-                        excess_density, *, electron_coefficient, hole_coefficient,
-                        injection_coefficient, injection_exponent, eeh_enhancement,
-                        eeh_density, eeh_exponent, ehh_enhancement, ehh_density,
-                        ehh_exponent, radiative_coefficient, part="total"):
+def richter_derivatives(
+    temperature,
+    equilibrium_electron_density,
+    equilibrium_hole_density,
+    excess_density,
+    *,
+    electron_coefficient,
+    hole_coefficient,
+    injection_coefficient,
+    injection_exponent,
+    eeh_enhancement,
+    eeh_density,
+    eeh_exponent,
+    ehh_enhancement,
+    ehh_density,
+    ehh_exponent,
+    radiative_coefficient,
+    part="total",
+):
     """The lifetime and its partials: with ``y = (n0/N_eeh)^x``,
     ``dA/dn0 = C_n [g_eeh - a_eeh x y (1 - tanh^2 y)]`` (likewise p0),
     ``dA/ddn = C_dn gamma dn^(gamma - 1)`` (infinite at dn = 0); T does not enter."""
-    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
-                                equilibrium_hole_density, excess_density)
+    xp, t, n0, p0, dn = _arrays(
+        temperature, equilibrium_electron_density, equilibrium_hole_density, excess_density
+    )
     shape = _shape(t, n0, p0, dn)
     y_e = _power(xp, n0 / eeh_density, eeh_exponent)
     y_h = _power(xp, p0 / ehh_density, ehh_exponent)
@@ -184,29 +232,54 @@ def richter_derivatives(temperature, equilibrium_electron_density, equilibrium_h
     g_eeh = 1.0 + eeh_enhancement * (1.0 - tanh_e)
     g_ehh = 1.0 + ehh_enhancement * (1.0 - tanh_h)
     injection = _power(xp, dn, injection_exponent)
-    auger = (electron_coefficient * g_eeh * n0 + hole_coefficient * g_ehh * p0
-             + injection_coefficient * injection)
+    auger = (
+        electron_coefficient * g_eeh * n0
+        + hole_coefficient * g_ehh * p0
+        + injection_coefficient * injection
+    )
     with errstate(xp, divide="ignore", invalid="ignore"):
         d_auger = {
-            "equilibrium_electron_density": electron_coefficient * (
-                g_eeh - eeh_enhancement * eeh_exponent * y_e * (1.0 - tanh_e * tanh_e)),
-            "equilibrium_hole_density": hole_coefficient * (
-                g_ehh - ehh_enhancement * ehh_exponent * y_h * (1.0 - tanh_h * tanh_h)),
+            "equilibrium_electron_density": electron_coefficient
+            * (g_eeh - eeh_enhancement * eeh_exponent * y_e * (1.0 - tanh_e * tanh_e)),
+            "equilibrium_hole_density": hole_coefficient
+            * (g_ehh - ehh_enhancement * ehh_exponent * y_h * (1.0 - tanh_h * tanh_h)),
             "excess_density": (injection_coefficient * injection_exponent)
-            * xp.where(dn > 0, injection / dn, zeros_like(xp, injection) + math.inf)}
-    return _lifetime_derivatives(xp, shape, n0, p0, dn, auger, float(radiative_coefficient),
-                                 d_auger, {}, part)
+            * xp.where(dn > 0, injection / dn, zeros_like(xp, injection) + math.inf),
+        }
+    return _lifetime_derivatives(
+        xp, shape, n0, p0, dn, auger, float(radiative_coefficient), d_auger, {}, part
+    )
 
 
-@kernel(inputs=_INPUTS, output="s",
-        coefficients={"electron_coefficient": "cm^3/s", "electron_exponent": "1",
-                      "hole_coefficient": "cm^3/s", "hole_exponent": "1",
-                      "injection_coefficient": "cm^3/s", "injection_exponent": "1",
-                      "radiative_coefficient": "cm^3/s"}, array_api=True)
-def kerr_cuevas(temperature, equilibrium_electron_density, equilibrium_hole_density,
-                excess_density, *, electron_coefficient, electron_exponent,
-                hole_coefficient, hole_exponent, injection_coefficient,
-                injection_exponent, radiative_coefficient, part="total"):
+@kernel(
+    inputs=_INPUTS,
+    output="s",
+    coefficients={
+        "electron_coefficient": "cm^3/s",
+        "electron_exponent": "1",
+        "hole_coefficient": "cm^3/s",
+        "hole_exponent": "1",
+        "injection_coefficient": "cm^3/s",
+        "injection_exponent": "1",
+        "radiative_coefficient": "cm^3/s",
+    },
+    array_api=True,
+)
+def kerr_cuevas(
+    temperature,
+    equilibrium_electron_density,
+    equilibrium_hole_density,
+    excess_density,
+    *,
+    electron_coefficient,
+    electron_exponent,
+    hole_coefficient,
+    hole_exponent,
+    injection_coefficient,
+    injection_exponent,
+    radiative_coefficient,
+    part="total",
+):
     """Kerr and Cuevas (2002): power laws in n0, p0 and dn plus a constant radiative term.
 
     ``A = c_n n0^a_n + c_p p0^a_p + c_dn dn^a_dn`` and ``R`` the constant the
@@ -225,8 +298,9 @@ def kerr_cuevas(temperature, equilibrium_electron_density, equilibrium_hole_dens
     -------
     lifetime, s
     """
-    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
-                                equilibrium_hole_density, excess_density)
+    xp, t, n0, p0, dn = _arrays(
+        temperature, equilibrium_electron_density, equilibrium_hole_density, excess_density
+    )
     shape = _shape(t, n0, p0, dn)
     auger = electron_coefficient * _power(xp, n0, electron_exponent)
     auger = auger + hole_coefficient * _power(xp, p0, hole_exponent)
@@ -235,37 +309,65 @@ def kerr_cuevas(temperature, equilibrium_electron_density, equilibrium_hole_dens
 
 
 @derivatives_of(kerr_cuevas)
-def kerr_cuevas_derivatives(temperature, equilibrium_electron_density,
-                            equilibrium_hole_density, excess_density, *, electron_coefficient,
-                            electron_exponent, hole_coefficient, hole_exponent,
-                            injection_coefficient, injection_exponent,
-                            radiative_coefficient, part="total"):
+def kerr_cuevas_derivatives(
+    temperature,
+    equilibrium_electron_density,
+    equilibrium_hole_density,
+    excess_density,
+    *,
+    electron_coefficient,
+    electron_exponent,
+    hole_coefficient,
+    hole_exponent,
+    injection_coefficient,
+    injection_exponent,
+    radiative_coefficient,
+    part="total",
+):
     """The lifetime and its partials (``dA/dn0 = c_n a_n n0^(a_n - 1)`` ...; T does not
     enter)."""
-    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
-                                equilibrium_hole_density, excess_density)
+    xp, t, n0, p0, dn = _arrays(
+        temperature, equilibrium_electron_density, equilibrium_hole_density, excess_density
+    )
     shape = _shape(t, n0, p0, dn)
     auger = electron_coefficient * _power(xp, n0, electron_exponent)
     auger = auger + hole_coefficient * _power(xp, p0, hole_exponent)
     auger = auger + injection_coefficient * _power(xp, dn, injection_exponent)
     with errstate(xp, divide="ignore"):
-        d_auger = {"equilibrium_electron_density": electron_coefficient * electron_exponent
-                   * _power(xp, n0, electron_exponent - 1.0),
-                   "equilibrium_hole_density": hole_coefficient * hole_exponent
-                   * _power(xp, p0, hole_exponent - 1.0),
-                   "excess_density": injection_coefficient * injection_exponent
-                   * _power(xp, dn, injection_exponent - 1.0)}
-    return _lifetime_derivatives(xp, shape, n0, p0, dn, auger, float(radiative_coefficient),
-                                 d_auger, {}, part)
+        d_auger = {
+            "equilibrium_electron_density": electron_coefficient
+            * electron_exponent
+            * _power(xp, n0, electron_exponent - 1.0),
+            "equilibrium_hole_density": hole_coefficient
+            * hole_exponent
+            * _power(xp, p0, hole_exponent - 1.0),
+            "excess_density": injection_coefficient
+            * injection_exponent
+            * _power(xp, dn, injection_exponent - 1.0),
+        }
+    return _lifetime_derivatives(
+        xp, shape, n0, p0, dn, auger, float(radiative_coefficient), d_auger, {}, part
+    )
 
 
-@kernel(inputs=_INPUTS, output="s",
-        coefficients={"electron_coefficient": "cm^6/s", "hole_coefficient": "cm^6/s"},
-        requires=("radiative_coefficient",), array_api=True)
-def constant_coefficients(temperature, equilibrium_electron_density,
-                          equilibrium_hole_density, excess_density, *,
-                          electron_coefficient, hole_coefficient, radiative_coefficient,
-                          part="total"):
+@kernel(
+    inputs=_INPUTS,
+    output="s",
+    coefficients={"electron_coefficient": "cm^6/s", "hole_coefficient": "cm^6/s"},
+    requires=("radiative_coefficient",),
+    array_api=True,
+)
+def constant_coefficients(
+    temperature,
+    equilibrium_electron_density,
+    equilibrium_hole_density,
+    excess_density,
+    *,
+    electron_coefficient,
+    hole_coefficient,
+    radiative_coefficient,
+    part="total",
+):
     """Free-particle Auger recombination with constant coefficients, plus radiative.
 
     ``U_Auger = (C_n n + C_p p)(n p - n0 p0)`` with ``n = n0 + dn``, ``p = p0 + dn``
@@ -284,8 +386,9 @@ def constant_coefficients(temperature, equilibrium_electron_density,
     -------
     lifetime, s
     """
-    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
-                                equilibrium_hole_density, excess_density)
+    xp, t, n0, p0, dn = _arrays(
+        temperature, equilibrium_electron_density, equilibrium_hole_density, excess_density
+    )
     shape = _shape(t, n0, p0, dn)
     auger = electron_coefficient * (n0 + dn) + hole_coefficient * (p0 + dn)
     radiative = asfloat(xp, radiative_coefficient(temperature=t))
@@ -293,20 +396,40 @@ def constant_coefficients(temperature, equilibrium_electron_density,
 
 
 @derivatives_of(constant_coefficients)
-def constant_coefficients_derivatives(temperature, equilibrium_electron_density,
-                                      equilibrium_hole_density, excess_density, *,
-                                      electron_coefficient, hole_coefficient,
-                                      radiative_coefficient, part="total"):
+def constant_coefficients_derivatives(
+    temperature,
+    equilibrium_electron_density,
+    equilibrium_hole_density,
+    excess_density,
+    *,
+    electron_coefficient,
+    hole_coefficient,
+    radiative_coefficient,
+    part="total",
+):
     """The lifetime and its partials: ``dA/dn0 = C_n``, ``dA/dp0 = C_p``,
     ``dA/ddn = C_n + C_p`` and ``dR/dT = dB/dT`` from the radiative model."""
-    xp, t, n0, p0, dn = _arrays(temperature, equilibrium_electron_density,
-                                equilibrium_hole_density, excess_density)
+    xp, t, n0, p0, dn = _arrays(
+        temperature, equilibrium_electron_density, equilibrium_hole_density, excess_density
+    )
     shape = _shape(t, n0, p0, dn)
     auger = electron_coefficient * (n0 + dn) + hole_coefficient * (p0 + dn)
     radiative, slopes = radiative_coefficient.derivative(temperature=t)
     radiative = asfloat(xp, radiative)
-    d_auger = {"equilibrium_electron_density": electron_coefficient + 0.0 * auger,
-               "equilibrium_hole_density": hole_coefficient + 0.0 * auger,
-               "excess_density": (electron_coefficient + hole_coefficient) + 0.0 * auger}
-    return _lifetime_derivatives(xp, shape, n0, p0, dn, auger, radiative, d_auger,
-                                 {"temperature": asfloat(xp, slopes["temperature"])}, part)
+    d_auger = {
+        "equilibrium_electron_density": electron_coefficient + 0.0 * auger,
+        "equilibrium_hole_density": hole_coefficient + 0.0 * auger,
+        "excess_density": (electron_coefficient + hole_coefficient) + 0.0 * auger,
+    }
+    return _lifetime_derivatives(
+        xp,
+        shape,
+        n0,
+        p0,
+        dn,
+        auger,
+        radiative,
+        d_auger,
+        {"temperature": asfloat(xp, slopes["temperature"])},
+        part,
+    )

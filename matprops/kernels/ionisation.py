@@ -23,12 +23,29 @@ from ._xp import asfloat, errstate, namespace, zeros_like
 from .constants import BOLTZMANN_EV
 
 
-@kernel(inputs={"dopant_density": "cm^-3"}, output=("eV", "1"),
-        coefficients={"energy_at_low_density": "eV", "energy_density": "cm^-3",
-                      "energy_exponent": "1", "merging_density": "cm^-3",
-                      "merging_exponent": "1", "degeneracy": "1"}, array_api=True)
-def lowered_level(dopant_density, *, energy_at_low_density, energy_density,
-                  energy_exponent, merging_density, merging_exponent, degeneracy):
+@kernel(
+    inputs={"dopant_density": "cm^-3"},
+    output=("eV", "1"),
+    coefficients={
+        "energy_at_low_density": "eV",
+        "energy_density": "cm^-3",
+        "energy_exponent": "1",
+        "merging_density": "cm^-3",
+        "merging_exponent": "1",
+        "degeneracy": "1",
+    },
+    array_api=True,
+)
+def lowered_level(
+    dopant_density,
+    *,
+    energy_at_low_density,
+    energy_density,
+    energy_exponent,
+    merging_density,
+    merging_exponent,
+    degeneracy,
+):
     """A level whose energy falls with density and whose states merge into the band.
 
     ``E_dop(N) = E_0 / (1 + (N / N_r)^c)`` and ``b(N) = 1 / (1 + (N / N_b)^d)``
@@ -50,10 +67,13 @@ def lowered_level(dopant_density, *, energy_at_low_density, energy_density,
     with errstate(xp, divide="ignore"):  # N = 0: log -> -inf, power -> 0
         log_n = xp.log(n)
     if xp is np and log_n.ndim:  # the same operations, in place (no temporaries)
-        return (_fraction(log_n, _log(energy_density), energy_exponent, energy_at_low_density),
-                _fraction(log_n, _log(merging_density), merging_exponent, 1.0))
-    energy = energy_at_low_density / (1.0 + xp.exp(energy_exponent
-                                                   * (log_n - _log(energy_density))))
+        return (
+            _fraction(log_n, _log(energy_density), energy_exponent, energy_at_low_density),
+            _fraction(log_n, _log(merging_density), merging_exponent, 1.0),
+        )
+    energy = energy_at_low_density / (
+        1.0 + xp.exp(energy_exponent * (log_n - _log(energy_density)))
+    )
     share = 1.0 / (1.0 + xp.exp(merging_exponent * (log_n - _log(merging_density))))
     return energy, share
 
@@ -70,8 +90,12 @@ def _fraction(log_n, log_reference, exponent, numerator):
 lowered_level.block = 1 << 17  # a few operations per point: large blocks
 
 
-@kernel(inputs={"dopant_density": "cm^-3"}, output=("eV", "1"),
-        coefficients={"energy": "eV", "degeneracy": "1"}, array_api=True)
+@kernel(
+    inputs={"dopant_density": "cm^-3"},
+    output=("eV", "1"),
+    coefficients={"energy": "eV", "degeneracy": "1"},
+    array_api=True,
+)
 def fixed_level(dopant_density, *, energy, degeneracy):
     """A level at a fixed ionisation energy whose states all stay localised (``b = 1``).
 
@@ -111,9 +135,11 @@ def ionised_fraction(reduced_fermi_level, temperature, energy, share, degeneracy
     energy : array_like, eV (ionisation energy);  share : array_like, 1 (``b``)
     degeneracy : float, 1
     """
-    x = (np.asarray(reduced_fermi_level, dtype=float)
-         + energy / (BOLTZMANN_EV * np.asarray(temperature, dtype=float))
-         + np.log(degeneracy))
+    x = (
+        np.asarray(reduced_fermi_level, dtype=float)
+        + energy / (BOLTZMANN_EV * np.asarray(temperature, dtype=float))
+        + np.log(degeneracy)
+    )
     return 1.0 - share * _logistic(x)
 
 

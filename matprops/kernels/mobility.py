@@ -21,8 +21,14 @@ import numpy as np
 from ._spec import derivatives_of, kernel
 from ._xp import asfloat, errstate, interp, namespace, zeros_like
 
-__all__ = ["arora", "caughey_thomas", "g_minimum", "klaassen", "masetti",
-           "masetti_lattice_temperature"]
+__all__ = [
+    "arora",
+    "caughey_thomas",
+    "g_minimum",
+    "klaassen",
+    "masetti",
+    "masetti_lattice_temperature",
+]
 
 _DOPING = {"temperature": "K", "donor_density": "cm^-3", "acceptor_density": "cm^-3"}
 _MOBILITY = "cm^2/(V*s)"
@@ -50,16 +56,28 @@ def _same_for_both(slope):
 
 # --------------------------------------------------------------------------- Masetti
 
-def _masetti(n, lattice, *, min_mobility_1, min_mobility_2, drop_mobility, reference_density,
-             alpha, drop_density, beta, cutoff_density, xp=np, slopes=False):
+
+def _masetti(
+    n,
+    lattice,
+    *,
+    min_mobility_1,
+    min_mobility_2,
+    drop_mobility,
+    reference_density,
+    alpha,
+    drop_density,
+    beta,
+    cutoff_density,
+    xp=np,
+    slopes=False,
+):
     log_n = _log(n, xp)
     with errstate(xp, divide="ignore", invalid="ignore"):
-        cutoff = (xp.exp(-cutoff_density / n) if cutoff_density > 0
-                  else zeros_like(xp, n) + 1.0)
+        cutoff = xp.exp(-cutoff_density / n) if cutoff_density > 0 else zeros_like(xp, n) + 1.0
     fall = 1.0 + xp.exp(alpha * (log_n - _flog(reference_density)))
     drop = 1.0 + xp.exp(beta * (_flog(drop_density) - log_n))
-    value = (min_mobility_1 * cutoff + (lattice - min_mobility_2) / fall
-             - drop_mobility / drop)
+    value = min_mobility_1 * cutoff + (lattice - min_mobility_2) / fall - drop_mobility / drop
     if not slopes:
         return value
     # d/dN of each term; d/dlattice = 1/fall
@@ -67,21 +85,43 @@ def _masetti(n, lattice, *, min_mobility_1, min_mobility_2, drop_mobility, refer
         d_cutoff = cutoff * cutoff_density / (n * n) if cutoff_density > 0 else 0.0
         d_fall = alpha * (fall - 1.0) / n
         d_drop = -beta * (drop - 1.0) / n
-        d_n = (min_mobility_1 * d_cutoff - (lattice - min_mobility_2) * d_fall / (fall * fall)
-               + drop_mobility * d_drop / (drop * drop))
+        d_n = (
+            min_mobility_1 * d_cutoff
+            - (lattice - min_mobility_2) * d_fall / (fall * fall)
+            + drop_mobility * d_drop / (drop * drop)
+        )
     return value, d_n, 1.0 / fall
 
 
-_MASETTI = {"min_mobility_1": _MOBILITY, "min_mobility_2": _MOBILITY,
-            "drop_mobility": _MOBILITY, "max_mobility": _MOBILITY,
-            "reference_density": "cm^-3", "alpha": "1", "drop_density": "cm^-3",
-            "beta": "1", "cutoff_density": "cm^-3"}
+_MASETTI = {
+    "min_mobility_1": _MOBILITY,
+    "min_mobility_2": _MOBILITY,
+    "drop_mobility": _MOBILITY,
+    "max_mobility": _MOBILITY,
+    "reference_density": "cm^-3",
+    "alpha": "1",
+    "drop_density": "cm^-3",
+    "beta": "1",
+    "cutoff_density": "cm^-3",
+}
 
 
 @kernel(inputs=_DOPING, output=_MOBILITY, coefficients=_MASETTI, array_api=True)
-def masetti(temperature, donor_density, acceptor_density, *, min_mobility_1, min_mobility_2,
-            drop_mobility, max_mobility, reference_density, alpha, drop_density, beta,
-            cutoff_density):
+def masetti(
+    temperature,
+    donor_density,
+    acceptor_density,
+    *,
+    min_mobility_1,
+    min_mobility_2,
+    drop_mobility,
+    max_mobility,
+    reference_density,
+    alpha,
+    drop_density,
+    beta,
+    cutoff_density,
+):
     """Masetti, Severi and Solmi's room-temperature fit (eq. 1 electrons, eq. 4 holes).
 
     ``mu = mu_min1 exp(-P_c/N) + (mu_max - mu_min2) / (1 + (N/C_r)^alpha)
@@ -107,38 +147,89 @@ def masetti(temperature, donor_density, acceptor_density, *, min_mobility_1, min
     xp = namespace(temperature, donor_density, acceptor_density)
     n = _total(donor_density, acceptor_density, xp)
     shape = np.broadcast_shapes(tuple(asfloat(xp, temperature).shape), tuple(n.shape))
-    return xp.broadcast_to(_masetti(
-        n, max_mobility, min_mobility_1=min_mobility_1, min_mobility_2=min_mobility_2,
-        drop_mobility=drop_mobility, reference_density=reference_density, alpha=alpha,
-        drop_density=drop_density, beta=beta, cutoff_density=cutoff_density, xp=xp), shape)
+    return xp.broadcast_to(
+        _masetti(
+            n,
+            max_mobility,
+            min_mobility_1=min_mobility_1,
+            min_mobility_2=min_mobility_2,
+            drop_mobility=drop_mobility,
+            reference_density=reference_density,
+            alpha=alpha,
+            drop_density=drop_density,
+            beta=beta,
+            cutoff_density=cutoff_density,
+            xp=xp,
+        ),
+        shape,
+    )
 
 
 @derivatives_of(masetti)
-def masetti_derivatives(temperature, donor_density, acceptor_density, *, min_mobility_1,
-                        min_mobility_2, drop_mobility, max_mobility, reference_density, alpha,
-                        drop_density, beta, cutoff_density):
+def masetti_derivatives(
+    temperature,
+    donor_density,
+    acceptor_density,
+    *,
+    min_mobility_1,
+    min_mobility_2,
+    drop_mobility,
+    max_mobility,
+    reference_density,
+    alpha,
+    drop_density,
+    beta,
+    cutoff_density,
+):
     """The mobility and ``dmu/dN`` (the same for Nd and Na); T does not enter."""
     xp = namespace(temperature, donor_density, acceptor_density)
     t = asfloat(xp, temperature)
     n = _total(donor_density, acceptor_density, xp)
     shape = np.broadcast_shapes(tuple(t.shape), tuple(n.shape))
     value, d_n, _ = _masetti(
-        n, max_mobility, min_mobility_1=min_mobility_1, min_mobility_2=min_mobility_2,
-        drop_mobility=drop_mobility, reference_density=reference_density, alpha=alpha,
-        drop_density=drop_density, beta=beta, cutoff_density=cutoff_density, xp=xp,
-        slopes=True)
+        n,
+        max_mobility,
+        min_mobility_1=min_mobility_1,
+        min_mobility_2=min_mobility_2,
+        drop_mobility=drop_mobility,
+        reference_density=reference_density,
+        alpha=alpha,
+        drop_density=drop_density,
+        beta=beta,
+        cutoff_density=cutoff_density,
+        xp=xp,
+        slopes=True,
+    )
     d_n = xp.broadcast_to(d_n, shape)
-    return (xp.broadcast_to(value, shape),
-            {"temperature": zeros_like(xp, d_n), **_same_for_both(d_n)})
+    return (
+        xp.broadcast_to(value, shape),
+        {"temperature": zeros_like(xp, d_n), **_same_for_both(d_n)},
+    )
 
 
-@kernel(inputs=_DOPING, output=_MOBILITY,
-        coefficients={**_MASETTI, "lattice_exponent": "1", "reference_temperature": "K"},
-        array_api=True)
-def masetti_lattice_temperature(temperature, donor_density, acceptor_density, *,
-                                min_mobility_1, min_mobility_2, drop_mobility, max_mobility,
-                                reference_density, alpha, drop_density, beta, cutoff_density,
-                                lattice_exponent, reference_temperature):
+@kernel(
+    inputs=_DOPING,
+    output=_MOBILITY,
+    coefficients={**_MASETTI, "lattice_exponent": "1", "reference_temperature": "K"},
+    array_api=True,
+)
+def masetti_lattice_temperature(
+    temperature,
+    donor_density,
+    acceptor_density,
+    *,
+    min_mobility_1,
+    min_mobility_2,
+    drop_mobility,
+    max_mobility,
+    reference_density,
+    alpha,
+    drop_density,
+    beta,
+    cutoff_density,
+    lattice_exponent,
+    reference_temperature,
+):
     """Masetti's form with a temperature-dependent lattice term (Lombardi et al.'s bulk term).
 
     As :func:`masetti` with ``mu_max`` replaced by ``mu_max (T/T_ref)^(-gamma)``;
@@ -157,18 +248,39 @@ def masetti_lattice_temperature(temperature, donor_density, acceptor_density, *,
     n = _total(donor_density, acceptor_density, xp)
     t = asfloat(xp, temperature)
     lattice = max_mobility * xp.exp(-lattice_exponent * xp.log(t / reference_temperature))
-    return _masetti(n, lattice, min_mobility_1=min_mobility_1, min_mobility_2=min_mobility_2,
-                    drop_mobility=drop_mobility, reference_density=reference_density,
-                    alpha=alpha, drop_density=drop_density, beta=beta,
-                    cutoff_density=cutoff_density, xp=xp)
+    return _masetti(
+        n,
+        lattice,
+        min_mobility_1=min_mobility_1,
+        min_mobility_2=min_mobility_2,
+        drop_mobility=drop_mobility,
+        reference_density=reference_density,
+        alpha=alpha,
+        drop_density=drop_density,
+        beta=beta,
+        cutoff_density=cutoff_density,
+        xp=xp,
+    )
 
 
 @derivatives_of(masetti_lattice_temperature)
-def masetti_lattice_temperature_derivatives(temperature, donor_density, acceptor_density, *,
-                                            min_mobility_1, min_mobility_2, drop_mobility,
-                                            max_mobility, reference_density, alpha,
-                                            drop_density, beta, cutoff_density,
-                                            lattice_exponent, reference_temperature):
+def masetti_lattice_temperature_derivatives(
+    temperature,
+    donor_density,
+    acceptor_density,
+    *,
+    min_mobility_1,
+    min_mobility_2,
+    drop_mobility,
+    max_mobility,
+    reference_density,
+    alpha,
+    drop_density,
+    beta,
+    cutoff_density,
+    lattice_exponent,
+    reference_temperature,
+):
     """The mobility, ``dmu/dN`` and ``dmu/dT = (d mu_L/dT) / (1 + (N/C_r)^alpha)`` with
     ``d mu_L/dT = -gamma mu_L / T``."""
     xp = namespace(temperature, donor_density, acceptor_density)
@@ -176,10 +288,19 @@ def masetti_lattice_temperature_derivatives(temperature, donor_density, acceptor
     t = asfloat(xp, temperature)
     lattice = max_mobility * xp.exp(-lattice_exponent * xp.log(t / reference_temperature))
     value, d_n, d_lattice = _masetti(
-        n, lattice, min_mobility_1=min_mobility_1, min_mobility_2=min_mobility_2,
-        drop_mobility=drop_mobility, reference_density=reference_density, alpha=alpha,
-        drop_density=drop_density, beta=beta, cutoff_density=cutoff_density, xp=xp,
-        slopes=True)
+        n,
+        lattice,
+        min_mobility_1=min_mobility_1,
+        min_mobility_2=min_mobility_2,
+        drop_mobility=drop_mobility,
+        reference_density=reference_density,
+        alpha=alpha,
+        drop_density=drop_density,
+        beta=beta,
+        cutoff_density=cutoff_density,
+        xp=xp,
+        slopes=True,
+    )
     shape = tuple(value.shape)
     d_t = xp.broadcast_to(-lattice_exponent * lattice / t * d_lattice, shape)
     return value, {"temperature": d_t, **_same_for_both(xp.broadcast_to(d_n, shape))}
@@ -187,15 +308,40 @@ def masetti_lattice_temperature_derivatives(temperature, donor_density, acceptor
 
 # --------------------------------------------------------------------------- Arora
 
-@kernel(inputs=_DOPING, output=_MOBILITY,
-        coefficients={"min_mobility": _MOBILITY, "min_exponent": "1",
-                      "doping_mobility": _MOBILITY, "doping_exponent": "1",
-                      "reference_density": "cm^-3", "reference_exponent": "1",
-                      "alpha": "1", "alpha_exponent": "1", "reference_temperature": "K",
-                      "doping_reference_temperature": "K"}, array_api=True)
-def arora(temperature, donor_density, acceptor_density, *, min_mobility, min_exponent,
-          doping_mobility, doping_exponent, reference_density, reference_exponent, alpha,
-          alpha_exponent, reference_temperature, doping_reference_temperature):
+
+@kernel(
+    inputs=_DOPING,
+    output=_MOBILITY,
+    coefficients={
+        "min_mobility": _MOBILITY,
+        "min_exponent": "1",
+        "doping_mobility": _MOBILITY,
+        "doping_exponent": "1",
+        "reference_density": "cm^-3",
+        "reference_exponent": "1",
+        "alpha": "1",
+        "alpha_exponent": "1",
+        "reference_temperature": "K",
+        "doping_reference_temperature": "K",
+    },
+    array_api=True,
+)
+def arora(
+    temperature,
+    donor_density,
+    acceptor_density,
+    *,
+    min_mobility,
+    min_exponent,
+    doping_mobility,
+    doping_exponent,
+    reference_density,
+    reference_exponent,
+    alpha,
+    alpha_exponent,
+    reference_temperature,
+    doping_reference_temperature,
+):
     """Arora, Hauser and Roulston's mobility versus doping and temperature (eqs 8, 13).
 
     ``mu = mu_min Tn^a1 + mu_0 (T/T0)^a2 / (1 + (N / (N_ref Tn^a3))^(alpha Tn^a4))``,
@@ -215,14 +361,39 @@ def arora(temperature, donor_density, acceptor_density, *, min_mobility, min_exp
     N. D. Arora, J. R. Hauser and D. J. Roulston, IEEE Trans. Electron Devices 29,
     292 (1982), doi:10.1109/T-ED.1982.20698.
     """
-    return _arora(temperature, donor_density, acceptor_density, min_mobility, min_exponent,
-                  doping_mobility, doping_exponent, reference_density, reference_exponent,
-                  alpha, alpha_exponent, reference_temperature, doping_reference_temperature)
+    return _arora(
+        temperature,
+        donor_density,
+        acceptor_density,
+        min_mobility,
+        min_exponent,
+        doping_mobility,
+        doping_exponent,
+        reference_density,
+        reference_exponent,
+        alpha,
+        alpha_exponent,
+        reference_temperature,
+        doping_reference_temperature,
+    )
 
 
-def _arora(temperature, donor_density, acceptor_density, min_mobility, min_exponent,
-           doping_mobility, doping_exponent, reference_density, reference_exponent, alpha,
-           alpha_exponent, reference_temperature, doping_reference_temperature, slopes=False):
+def _arora(
+    temperature,
+    donor_density,
+    acceptor_density,
+    min_mobility,
+    min_exponent,
+    doping_mobility,
+    doping_exponent,
+    reference_density,
+    reference_exponent,
+    alpha,
+    alpha_exponent,
+    reference_temperature,
+    doping_reference_temperature,
+    slopes=False,
+):
     xp = namespace(temperature, donor_density, acceptor_density)
     t = asfloat(xp, temperature)
     log_t = xp.log(t / reference_temperature)
@@ -230,8 +401,7 @@ def _arora(temperature, donor_density, acceptor_density, min_mobility, min_expon
     log_n = _log(total, xp)
     power = alpha * xp.exp(alpha_exponent * log_t)
     ratio = xp.exp(power * (log_n - _flog(reference_density) - reference_exponent * log_t))
-    amplitude = doping_mobility * xp.exp(doping_exponent
-                                         * xp.log(t / doping_reference_temperature))
+    amplitude = doping_mobility * xp.exp(doping_exponent * xp.log(t / doping_reference_temperature))
     lattice = min_mobility * xp.exp(min_exponent * log_t)
     value = lattice + amplitude / (1.0 + ratio)
     if not slopes:
@@ -239,36 +409,87 @@ def _arora(temperature, donor_density, acceptor_density, min_mobility, min_expon
     with errstate(xp, divide="ignore", invalid="ignore"):
         fraction = 1.0 / (1.0 + ratio)
         d_n = -amplitude * ratio * power * fraction * fraction / total
-        d_ratio = ratio * (alpha_exponent * power * (log_n - _flog(reference_density)
-                                                    - reference_exponent * log_t)
-                           - power * reference_exponent) / t
-        d_t = (min_exponent * lattice + doping_exponent * amplitude * fraction) / t \
-            - amplitude * d_ratio * fraction * fraction
+        d_ratio = (
+            ratio
+            * (
+                alpha_exponent
+                * power
+                * (log_n - _flog(reference_density) - reference_exponent * log_t)
+                - power * reference_exponent
+            )
+            / t
+        )
+        d_t = (
+            min_exponent * lattice + doping_exponent * amplitude * fraction
+        ) / t - amplitude * d_ratio * fraction * fraction
     shape = tuple(value.shape)
-    return value, {"temperature": xp.broadcast_to(d_t, shape),
-                   **_same_for_both(xp.broadcast_to(d_n, shape))}
+    return value, {
+        "temperature": xp.broadcast_to(d_t, shape),
+        **_same_for_both(xp.broadcast_to(d_n, shape)),
+    }
 
 
 @derivatives_of(arora)
-def arora_derivatives(temperature, donor_density, acceptor_density, *, min_mobility,
-                      min_exponent, doping_mobility, doping_exponent, reference_density,
-                      reference_exponent, alpha, alpha_exponent, reference_temperature,
-                      doping_reference_temperature):
+def arora_derivatives(
+    temperature,
+    donor_density,
+    acceptor_density,
+    *,
+    min_mobility,
+    min_exponent,
+    doping_mobility,
+    doping_exponent,
+    reference_density,
+    reference_exponent,
+    alpha,
+    alpha_exponent,
+    reference_temperature,
+    doping_reference_temperature,
+):
     """The mobility and its partials (chain rule through ``Tn^a1``, ``(T/T0)^a2``, the
     exponent ``alpha Tn^a4`` and ``N / (N_ref Tn^a3)``)."""
-    return _arora(temperature, donor_density, acceptor_density, min_mobility, min_exponent,
-                  doping_mobility, doping_exponent, reference_density, reference_exponent,
-                  alpha, alpha_exponent, reference_temperature, doping_reference_temperature,
-                  slopes=True)
+    return _arora(
+        temperature,
+        donor_density,
+        acceptor_density,
+        min_mobility,
+        min_exponent,
+        doping_mobility,
+        doping_exponent,
+        reference_density,
+        reference_exponent,
+        alpha,
+        alpha_exponent,
+        reference_temperature,
+        doping_reference_temperature,
+        slopes=True,
+    )
 
 
 # --------------------------------------------------------------------------- Caughey-Thomas
 
-@kernel(inputs=_DOPING, output=_MOBILITY,
-        coefficients={"min_mobility": _MOBILITY, "max_mobility": _MOBILITY,
-                      "reference_density": "cm^-3", "alpha": "1"}, array_api=True)
-def caughey_thomas(temperature, donor_density, acceptor_density, *, min_mobility,
-                   max_mobility, reference_density, alpha):
+
+@kernel(
+    inputs=_DOPING,
+    output=_MOBILITY,
+    coefficients={
+        "min_mobility": _MOBILITY,
+        "max_mobility": _MOBILITY,
+        "reference_density": "cm^-3",
+        "alpha": "1",
+    },
+    array_api=True,
+)
+def caughey_thomas(
+    temperature,
+    donor_density,
+    acceptor_density,
+    *,
+    min_mobility,
+    max_mobility,
+    reference_density,
+    alpha,
+):
     """Caughey and Thomas's room-temperature form.
 
     ``mu = mu_min + (mu_max - mu_min) / (1 + (N/N_ref)^alpha)``, ``N = Nd + Na``.
@@ -288,13 +509,20 @@ def caughey_thomas(temperature, donor_density, acceptor_density, *, min_mobility
     n = _total(donor_density, acceptor_density, xp)
     shape = np.broadcast_shapes(tuple(asfloat(xp, temperature).shape), tuple(n.shape))
     ratio = xp.exp(alpha * (_log(n, xp) - _flog(reference_density)))
-    return xp.broadcast_to(min_mobility + (max_mobility - min_mobility) / (1.0 + ratio),
-                           shape)
+    return xp.broadcast_to(min_mobility + (max_mobility - min_mobility) / (1.0 + ratio), shape)
 
 
 @derivatives_of(caughey_thomas)
-def caughey_thomas_derivatives(temperature, donor_density, acceptor_density, *, min_mobility,
-                               max_mobility, reference_density, alpha):
+def caughey_thomas_derivatives(
+    temperature,
+    donor_density,
+    acceptor_density,
+    *,
+    min_mobility,
+    max_mobility,
+    reference_density,
+    alpha,
+):
     """The mobility and ``dmu/dN = -(mu_max - mu_min) alpha r / (N (1 + r)^2)``,
     ``r = (N/N_ref)^alpha`` (the same for Nd and Na); T does not enter."""
     xp = namespace(temperature, donor_density, acceptor_density)
@@ -303,14 +531,17 @@ def caughey_thomas_derivatives(temperature, donor_density, acceptor_density, *, 
     ratio = xp.exp(alpha * (_log(n, xp) - _flog(reference_density)))
     fraction = 1.0 / (1.0 + ratio)
     with errstate(xp, divide="ignore", invalid="ignore"):
-        d_n = xp.broadcast_to(-(max_mobility - min_mobility) * alpha * ratio * fraction
-                              * fraction / n, shape)
-    return (xp.broadcast_to(min_mobility + (max_mobility - min_mobility) / (1.0 + ratio),
-                            shape),
-            {"temperature": zeros_like(xp, d_n), **_same_for_both(d_n)})
+        d_n = xp.broadcast_to(
+            -(max_mobility - min_mobility) * alpha * ratio * fraction * fraction / n, shape
+        )
+    return (
+        xp.broadcast_to(min_mobility + (max_mobility - min_mobility) / (1.0 + ratio), shape),
+        {"temperature": zeros_like(xp, d_n), **_same_for_both(d_n)},
+    )
 
 
 # --------------------------------------------------------------------------- Klaassen
+
 
 @functools.lru_cache(maxsize=16)
 def _g_minimum_table(s1, s2, s3, s5, s6):
@@ -349,8 +580,7 @@ def _log_u_minimum_slope(log_k, s1, s2, s3, s5, s6, xp=np):
         return np.where(inside, slopes[index.astype(np.intp)], 0.0)
     flat = xp.reshape(xp.astype(index, xp.int64), (-1,))
     table = xp.asarray(slopes)
-    return xp.where(inside, xp.reshape(xp.take(table, flat), index.shape),
-                    zeros_like(xp, x))
+    return xp.where(inside, xp.reshape(xp.take(table, flat), index.shape), zeros_like(xp, x))
 
 
 def g_minimum(temperature, carrier_mass, *, s1, s2, s3, s4, s5, s6, s7):
@@ -364,24 +594,79 @@ def g_minimum(temperature, carrier_mass, *, s1, s2, s3, s4, s5, s6, s7):
     return np.exp(log_u - s4 * log_tm)
 
 
-@kernel(inputs={**_DOPING, "electron_density": "cm^-3", "hole_density": "cm^-3"},
-        output=_MOBILITY,
-        coefficients={"charge": "1", "max_mobility": _MOBILITY, "min_mobility": _MOBILITY,
-                      "reference_density": "cm^-3", "alpha": "1", "lattice_exponent": "1",
-                      "carrier_mass": "1", "other_carrier_mass": "1",
-                      "donor_clustering": "1", "donor_clustering_density": "cm^-3",
-                      "acceptor_clustering": "1", "acceptor_clustering_density": "cm^-3",
-                      "coulomb_weight": "1", "coulomb_density": "cm^-2",
-                      "screening_weight": "1", "screening_density": "cm^-3",
-                      "r1": "1", "r2": "1", "r3": "1", "r4": "1", "r5": "1", "r6": "1",
-                      "s1": "1", "s2": "1", "s3": "1", "s4": "1", "s5": "1", "s6": "1",
-                      "s7": "1"}, array_api=True)
-def klaassen(temperature, donor_density, acceptor_density, electron_density, hole_density, *,
-             charge, max_mobility, min_mobility, reference_density, alpha, lattice_exponent,
-             carrier_mass, other_carrier_mass, donor_clustering, donor_clustering_density,
-             acceptor_clustering, acceptor_clustering_density, coulomb_weight, coulomb_density,
-             screening_weight, screening_density, r1, r2, r3, r4, r5, r6, s1, s2, s3, s4, s5,
-             s6, s7):
+@kernel(
+    inputs={**_DOPING, "electron_density": "cm^-3", "hole_density": "cm^-3"},
+    output=_MOBILITY,
+    coefficients={
+        "charge": "1",
+        "max_mobility": _MOBILITY,
+        "min_mobility": _MOBILITY,
+        "reference_density": "cm^-3",
+        "alpha": "1",
+        "lattice_exponent": "1",
+        "carrier_mass": "1",
+        "other_carrier_mass": "1",
+        "donor_clustering": "1",
+        "donor_clustering_density": "cm^-3",
+        "acceptor_clustering": "1",
+        "acceptor_clustering_density": "cm^-3",
+        "coulomb_weight": "1",
+        "coulomb_density": "cm^-2",
+        "screening_weight": "1",
+        "screening_density": "cm^-3",
+        "r1": "1",
+        "r2": "1",
+        "r3": "1",
+        "r4": "1",
+        "r5": "1",
+        "r6": "1",
+        "s1": "1",
+        "s2": "1",
+        "s3": "1",
+        "s4": "1",
+        "s5": "1",
+        "s6": "1",
+        "s7": "1",
+    },
+    array_api=True,
+)
+def klaassen(
+    temperature,
+    donor_density,
+    acceptor_density,
+    electron_density,
+    hole_density,
+    *,
+    charge,
+    max_mobility,
+    min_mobility,
+    reference_density,
+    alpha,
+    lattice_exponent,
+    carrier_mass,
+    other_carrier_mass,
+    donor_clustering,
+    donor_clustering_density,
+    acceptor_clustering,
+    acceptor_clustering_density,
+    coulomb_weight,
+    coulomb_density,
+    screening_weight,
+    screening_density,
+    r1,
+    r2,
+    r3,
+    r4,
+    r5,
+    r6,
+    s1,
+    s2,
+    s3,
+    s4,
+    s5,
+    s6,
+    s7,
+):
     """Klaassen's unified mobility of majority and minority carriers.
 
     For carrier i (``charge`` -1: electrons, scattered by "like" donors; +1:
@@ -411,31 +696,65 @@ def klaassen(temperature, donor_density, acceptor_density, electron_density, hol
     D. B. M. Klaassen, Solid-State Electron. 35, 953 and 961 (1992),
     doi:10.1016/0038-1101(92)90325-7, doi:10.1016/0038-1101(92)90326-8.
     """
-    return _klaassen(temperature, donor_density, acceptor_density, electron_density,
-                     hole_density, charge=charge, max_mobility=max_mobility,
-                     min_mobility=min_mobility, reference_density=reference_density,
-                     alpha=alpha, lattice_exponent=lattice_exponent,
-                     carrier_mass=carrier_mass, other_carrier_mass=other_carrier_mass,
-                     donor_clustering=donor_clustering,
-                     donor_clustering_density=donor_clustering_density,
-                     acceptor_clustering=acceptor_clustering,
-                     acceptor_clustering_density=acceptor_clustering_density,
-                     coulomb_weight=coulomb_weight, coulomb_density=coulomb_density,
-                     screening_weight=screening_weight, screening_density=screening_density,
-                     r=(r1, r2, r3, r4, r5, r6), s=(s1, s2, s3, s4, s5, s6, s7))
+    return _klaassen(
+        temperature,
+        donor_density,
+        acceptor_density,
+        electron_density,
+        hole_density,
+        charge=charge,
+        max_mobility=max_mobility,
+        min_mobility=min_mobility,
+        reference_density=reference_density,
+        alpha=alpha,
+        lattice_exponent=lattice_exponent,
+        carrier_mass=carrier_mass,
+        other_carrier_mass=other_carrier_mass,
+        donor_clustering=donor_clustering,
+        donor_clustering_density=donor_clustering_density,
+        acceptor_clustering=acceptor_clustering,
+        acceptor_clustering_density=acceptor_clustering_density,
+        coulomb_weight=coulomb_weight,
+        coulomb_density=coulomb_density,
+        screening_weight=screening_weight,
+        screening_density=screening_density,
+        r=(r1, r2, r3, r4, r5, r6),
+        s=(s1, s2, s3, s4, s5, s6, s7),
+    )
 
 
-def _klaassen(temperature, donor_density, acceptor_density, electron_density, hole_density, *,
-              charge, max_mobility, min_mobility, reference_density, alpha, lattice_exponent,
-              carrier_mass, other_carrier_mass, donor_clustering, donor_clustering_density,
-              acceptor_clustering, acceptor_clustering_density, coulomb_weight,
-              coulomb_density, screening_weight, screening_density, r, s, slopes=False):
+def _klaassen(
+    temperature,
+    donor_density,
+    acceptor_density,
+    electron_density,
+    hole_density,
+    *,
+    charge,
+    max_mobility,
+    min_mobility,
+    reference_density,
+    alpha,
+    lattice_exponent,
+    carrier_mass,
+    other_carrier_mass,
+    donor_clustering,
+    donor_clustering_density,
+    acceptor_clustering,
+    acceptor_clustering_density,
+    coulomb_weight,
+    coulomb_density,
+    screening_weight,
+    screening_density,
+    r,
+    s,
+    slopes=False,
+):
     """Klaassen's mobility; with ``slopes`` also its partials (see
     :func:`klaassen_derivatives`)."""
     r1, r2, r3, r4, r5, r6 = r
     s1, s2, s3, s4, s5, s6, s7 = s
-    xp = namespace(temperature, donor_density, acceptor_density, electron_density,
-                   hole_density)
+    xp = namespace(temperature, donor_density, acceptor_density, electron_density, hole_density)
     t = asfloat(xp, temperature)
     nd0 = asfloat(xp, donor_density)
     na0 = asfloat(xp, acceptor_density)
@@ -444,8 +763,8 @@ def _klaassen(temperature, donor_density, acceptor_density, electron_density, ho
     log_t = xp.log(t / 300.0)
     # clustering: N [1 + N^2 / (c N^2 + N_ref^2)], finite at N = 0
     nd2, na2 = nd0 * nd0, na0 * na0
-    nd_bottom = donor_clustering * nd2 + donor_clustering_density ** 2
-    na_bottom = acceptor_clustering * na2 + acceptor_clustering_density ** 2
+    nd_bottom = donor_clustering * nd2 + donor_clustering_density**2
+    na_bottom = acceptor_clustering * na2 + acceptor_clustering_density**2
     nd = nd0 + nd0 * nd2 / nd_bottom
     na = na0 + na0 * na2 / na_bottom
     like, unlike, other = (nd, na, p) if charge < 0 else (na, nd, n)
@@ -460,10 +779,10 @@ def _klaassen(temperature, donor_density, acceptor_density, electron_density, ho
     n_sc = like + unlike + other
     log_sc = _log(n_sc, xp)
     with errstate(xp, divide="ignore"):
-        coulomb = coulomb_weight / coulomb_density * xp.exp((2.0 / 3.0)
-                                                            * (log_sc - 3.0 * log_t))
-        screening = screening_weight * carriers / (screening_density * carrier_mass) \
-            * xp.exp(-2.0 * log_t)
+        coulomb = coulomb_weight / coulomb_density * xp.exp((2.0 / 3.0) * (log_sc - 3.0 * log_t))
+        screening = (
+            screening_weight * carriers / (screening_density * carrier_mass) * xp.exp(-2.0 * log_t)
+        )
         inverse_p = coulomb + screening
         log_p = -xp.log(inverse_p)  # ln P; +inf with no scatterers and no carriers
     x = xp.exp(-r6 * log_p)  # P^-r6
@@ -480,17 +799,19 @@ def _klaassen(temperature, donor_density, acceptor_density, electron_density, ho
         g = 1.0 - hump + tail
     n_eff = like + g * unlike + other / f
     # 1/mu_DAj, written so that no scatterers and no carriers give 0 (not 0/0)
-    impurity_term = impurity * xp.exp((1.0 - alpha) * log_sc
-                                      + alpha * _flog(reference_density))
+    impurity_term = impurity * xp.exp((1.0 - alpha) * log_sc + alpha * _flog(reference_density))
     scale = impurity_term + carrier * carriers
     if xp is np:
-        inverse_da = np.divide(n_eff, scale, out=np.zeros(np.broadcast(n_eff, scale).shape),
-                               where=scale > 0)
+        inverse_da = np.divide(
+            n_eff, scale, out=np.zeros(np.broadcast(n_eff, scale).shape), where=scale > 0
+        )
     else:
         positive = scale > 0
-        inverse_da = xp.where(positive, n_eff / xp.where(positive, scale,
-                                                         zeros_like(xp, scale) + 1.0),
-                              zeros_like(xp, scale))
+        inverse_da = xp.where(
+            positive,
+            n_eff / xp.where(positive, scale, zeros_like(xp, scale) + 1.0),
+            zeros_like(xp, scale),
+        )
     mu = 1.0 / (1.0 / lattice + inverse_da)
     if not slopes:
         return mu
@@ -500,16 +821,16 @@ def _klaassen(temperature, donor_density, acceptor_density, electron_density, ho
     with errstate(xp, divide="ignore", invalid="ignore"):
         mu2 = mu * mu
         rising = r4 + r5 * ratio
-        d_f_log_p = ((r2 + r3 * ratio) - rising * r1) / ((1.0 + rising * x) ** 2) \
-            * (-r6 * x)
+        d_f_log_p = ((r2 + r3 * ratio) - rising * r1) / ((1.0 + rising * x) ** 2) * (-r6 * x)
         d_g_log_u = s3 * hump * u / (s2 + u) - s6 * tail
         free = unclamped >= minimum  # the clamp passes ln P through
         other_f2 = other / (f * f)
-        d_neff_log_p = xp.where(free, unlike * d_g_log_u, zeros_like(xp, mu)) \
-            - other_f2 * d_f_log_p
+        d_neff_log_p = xp.where(free, unlike * d_g_log_u, zeros_like(xp, mu)) - other_f2 * d_f_log_p
         d_log_p_sc = -(2.0 / 3.0) * coulomb / (n_sc * inverse_p)
-        d_log_p_carriers = -(screening_weight / (screening_density * carrier_mass)
-                             * xp.exp(-2.0 * log_t)) / inverse_p
+        d_log_p_carriers = (
+            -(screening_weight / (screening_density * carrier_mass) * xp.exp(-2.0 * log_t))
+            / inverse_p
+        )
         d_scale_sc = (1.0 - alpha) * impurity_term / n_sc
         e_sc = (d_neff_log_p * d_log_p_sc - inverse_da * d_scale_sc) / scale
         d_like = -mu2 * (1.0 / scale + e_sc)
@@ -521,34 +842,76 @@ def _klaassen(temperature, donor_density, acceptor_density, electron_density, ho
         d_log_k_t = (s4 + s7) * s6 / t
         slope = _log_u_minimum_slope(log_k, s1, s2, s3, s5, s6, xp)
         d_log_u_t = xp.where(free, s4 / t + d_log_p_t, slope * d_log_k_t)
-        d_neff_t = unlike * (d_g_log_u * d_log_u_t + tail * d_log_k_t) \
-            - other_f2 * d_f_log_p * d_log_p_t
+        d_neff_t = (
+            unlike * (d_g_log_u * d_log_u_t + tail * d_log_k_t) - other_f2 * d_f_log_p * d_log_p_t
+        )
         d_scale_t = (impurity_term * (3.0 * alpha - 1.5) - 0.5 * carrier * carriers) / t
-        d_t = -mu2 * (lattice_exponent / (t * lattice)
-                      + (d_neff_t - inverse_da * d_scale_t) / scale)
-        d_nd = 1.0 + nd2 * (donor_clustering * nd2 + 3.0 * donor_clustering_density ** 2) \
-            / (nd_bottom * nd_bottom)
-        d_na = 1.0 + na2 * (acceptor_clustering * na2
-                            + 3.0 * acceptor_clustering_density ** 2) / (na_bottom * na_bottom)
+        d_t = -mu2 * (
+            lattice_exponent / (t * lattice) + (d_neff_t - inverse_da * d_scale_t) / scale
+        )
+        d_nd = 1.0 + nd2 * (donor_clustering * nd2 + 3.0 * donor_clustering_density**2) / (
+            nd_bottom * nd_bottom
+        )
+        d_na = 1.0 + na2 * (acceptor_clustering * na2 + 3.0 * acceptor_clustering_density**2) / (
+            na_bottom * na_bottom
+        )
     if charge < 0:
-        partials = {"donor_density": d_like * d_nd, "acceptor_density": d_unlike * d_na,
-                    "electron_density": d_carriers, "hole_density": d_carriers + d_other}
+        partials = {
+            "donor_density": d_like * d_nd,
+            "acceptor_density": d_unlike * d_na,
+            "electron_density": d_carriers,
+            "hole_density": d_carriers + d_other,
+        }
     else:
-        partials = {"donor_density": d_unlike * d_nd, "acceptor_density": d_like * d_na,
-                    "electron_density": d_carriers + d_other, "hole_density": d_carriers}
+        partials = {
+            "donor_density": d_unlike * d_nd,
+            "acceptor_density": d_like * d_na,
+            "electron_density": d_carriers + d_other,
+            "hole_density": d_carriers,
+        }
     shape = tuple(mu.shape)
     partials["temperature"] = d_t
     return mu, {k: xp.broadcast_to(v, shape) for k, v in partials.items()}
 
 
 @derivatives_of(klaassen)
-def klaassen_derivatives(temperature, donor_density, acceptor_density, electron_density,
-                         hole_density, *, charge, max_mobility, min_mobility, reference_density,
-                         alpha, lattice_exponent, carrier_mass, other_carrier_mass,
-                         donor_clustering, donor_clustering_density, acceptor_clustering,
-                         acceptor_clustering_density, coulomb_weight, coulomb_density,
-                         screening_weight, screening_density, r1, r2, r3, r4, r5, r6, s1, s2,
-                         s3, s4, s5, s6, s7):
+def klaassen_derivatives(
+    temperature,
+    donor_density,
+    acceptor_density,
+    electron_density,
+    hole_density,
+    *,
+    charge,
+    max_mobility,
+    min_mobility,
+    reference_density,
+    alpha,
+    lattice_exponent,
+    carrier_mass,
+    other_carrier_mass,
+    donor_clustering,
+    donor_clustering_density,
+    acceptor_clustering,
+    acceptor_clustering_density,
+    coulomb_weight,
+    coulomb_density,
+    screening_weight,
+    screening_density,
+    r1,
+    r2,
+    r3,
+    r4,
+    r5,
+    r6,
+    s1,
+    s2,
+    s3,
+    s4,
+    s5,
+    s6,
+    s7,
+):
     """Klaassen's mobility and its partials with respect to T, Nd, Na, n and p.
 
     ``1/mu = 1/mu_L + N_sc,eff / scale`` is differentiated through the scatterer sum,
@@ -556,15 +919,29 @@ def klaassen_derivatives(temperature, donor_density, acceptor_density, electron_
     minimum, and in F), the temperature powers, and the clustering factors. Where no
     scatterer and no carrier is present the partials are not defined (NaN).
     """
-    return _klaassen(temperature, donor_density, acceptor_density, electron_density,
-                     hole_density, charge=charge, max_mobility=max_mobility,
-                     min_mobility=min_mobility, reference_density=reference_density,
-                     alpha=alpha, lattice_exponent=lattice_exponent,
-                     carrier_mass=carrier_mass, other_carrier_mass=other_carrier_mass,
-                     donor_clustering=donor_clustering,
-                     donor_clustering_density=donor_clustering_density,
-                     acceptor_clustering=acceptor_clustering,
-                     acceptor_clustering_density=acceptor_clustering_density,
-                     coulomb_weight=coulomb_weight, coulomb_density=coulomb_density,
-                     screening_weight=screening_weight, screening_density=screening_density,
-                     r=(r1, r2, r3, r4, r5, r6), s=(s1, s2, s3, s4, s5, s6, s7), slopes=True)
+    return _klaassen(
+        temperature,
+        donor_density,
+        acceptor_density,
+        electron_density,
+        hole_density,
+        charge=charge,
+        max_mobility=max_mobility,
+        min_mobility=min_mobility,
+        reference_density=reference_density,
+        alpha=alpha,
+        lattice_exponent=lattice_exponent,
+        carrier_mass=carrier_mass,
+        other_carrier_mass=other_carrier_mass,
+        donor_clustering=donor_clustering,
+        donor_clustering_density=donor_clustering_density,
+        acceptor_clustering=acceptor_clustering,
+        acceptor_clustering_density=acceptor_clustering_density,
+        coulomb_weight=coulomb_weight,
+        coulomb_density=coulomb_density,
+        screening_weight=screening_weight,
+        screening_density=screening_density,
+        r=(r1, r2, r3, r4, r5, r6),
+        s=(s1, s2, s3, s4, s5, s6, s7),
+        slopes=True,
+    )

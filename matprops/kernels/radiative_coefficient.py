@@ -14,8 +14,12 @@ from ._spec import derivatives_of, kernel
 from ._xp import asfloat, namespace, zeros_like
 
 
-@kernel(inputs={"temperature": "K"}, output="cm^3/s", coefficients={"coefficient": "cm^3/s"},
-        array_api=True)
+@kernel(
+    inputs={"temperature": "K"},
+    output="cm^3/s",
+    coefficients={"coefficient": "cm^3/s"},
+    array_api=True,
+)
 def constant(temperature, *, coefficient):
     """A coefficient that does not vary inside the model's temperature range.
 

@@ -22,17 +22,25 @@ from ._xp import asfloat, namespace
 from .band_gap import horner
 from .constants import ELEMENTARY_CHARGE
 
-__all__ = ["conductivity", "log_rational_density", "log_rational_resistivity",
-           "rational_density", "rational_resistivity", "solve_decreasing"]
+__all__ = [
+    "conductivity",
+    "log_rational_density",
+    "log_rational_resistivity",
+    "rational_density",
+    "rational_resistivity",
+    "solve_decreasing",
+]
 
 
 def conductivity(electron_density, hole_density, electron_mobility, hole_mobility):
     """``sigma = q (n mu_n + p mu_p)`` in S/cm (densities cm^-3, mobilities cm^2/(V s))."""
-    return ELEMENTARY_CHARGE * (np.asarray(electron_density) * electron_mobility
-                                + np.asarray(hole_density) * hole_mobility)
+    return ELEMENTARY_CHARGE * (
+        np.asarray(electron_density) * electron_mobility + np.asarray(hole_density) * hole_mobility
+    )
 
 
 # --------------------------------------------------------------------------- standard
+
 
 def _rational(x, constant_term, fall_term, fall_scale, fall_exponent):
     xp = namespace(x)
@@ -55,11 +63,20 @@ def _broadcast(value, temperature):
     return xp.broadcast_to(value, shape)
 
 
-@kernel(inputs={"temperature": "K", "dopant_density": "cm^-3"}, output="ohm*cm",
-        coefficients={"constant_term": "ohm/cm^2", "fall_term": "ohm/cm^2",
-                      "fall_scale": "cm^3", "fall_exponent": "1"}, array_api=True)
-def rational_resistivity(temperature, dopant_density, *, constant_term, fall_term, fall_scale,
-                         fall_exponent):
+@kernel(
+    inputs={"temperature": "K", "dopant_density": "cm^-3"},
+    output="ohm*cm",
+    coefficients={
+        "constant_term": "ohm/cm^2",
+        "fall_term": "ohm/cm^2",
+        "fall_scale": "cm^3",
+        "fall_exponent": "1",
+    },
+    array_api=True,
+)
+def rational_resistivity(
+    temperature, dopant_density, *, constant_term, fall_term, fall_scale, fall_exponent
+):
     """Resistivity from dopant density, boron's form of the standard conversion.
 
     ``rho = a / N + b / (N [1 + (s N)^c])``; the value does not depend on
@@ -70,15 +87,25 @@ def rational_resistivity(temperature, dopant_density, *, constant_term, fall_ter
     temperature : K (validity only);  dopant_density : cm^-3
     constant_term (a), fall_term (b) : ohm/cm^2;  fall_scale (s) : cm^3;  fall_exponent (c)
     """
-    return _broadcast(_rational(dopant_density, constant_term, fall_term, fall_scale,
-                                fall_exponent), temperature)
+    return _broadcast(
+        _rational(dopant_density, constant_term, fall_term, fall_scale, fall_exponent), temperature
+    )
 
 
-@kernel(inputs={"temperature": "K", "resistivity": "ohm*cm"}, output="cm^-3",
-        coefficients={"constant_term": "ohm/cm^2", "fall_term": "ohm/cm^2",
-                      "fall_scale": "1/(ohm*cm)", "fall_exponent": "1"}, array_api=True)
-def rational_density(temperature, resistivity, *, constant_term, fall_term, fall_scale,
-                     fall_exponent):
+@kernel(
+    inputs={"temperature": "K", "resistivity": "ohm*cm"},
+    output="cm^-3",
+    coefficients={
+        "constant_term": "ohm/cm^2",
+        "fall_term": "ohm/cm^2",
+        "fall_scale": "1/(ohm*cm)",
+        "fall_exponent": "1",
+    },
+    array_api=True,
+)
+def rational_density(
+    temperature, resistivity, *, constant_term, fall_term, fall_scale, fall_exponent
+):
     """Dopant density from resistivity, boron's form of the standard conversion.
 
     ``N = a / rho + b / (rho [1 + (s rho)^c])`` (23 degC).
@@ -89,15 +116,25 @@ def rational_density(temperature, resistivity, *, constant_term, fall_term, fall
     constant_term (a), fall_term (b) : ohm/cm^2;  fall_scale (s) : 1/(ohm cm);
     fall_exponent (c) : dimensionless
     """
-    return _broadcast(_rational(resistivity, constant_term, fall_term, fall_scale,
-                                fall_exponent), temperature)
+    return _broadcast(
+        _rational(resistivity, constant_term, fall_term, fall_scale, fall_exponent), temperature
+    )
 
 
-@kernel(inputs={"temperature": "K", "dopant_density": "cm^-3"}, output="ohm*cm",
-        coefficients={"prefactor": "1/C", "reference_density": "cm^-3", "numerator": "1",
-                      "denominator": "1"}, array_api=True)
-def log_rational_resistivity(temperature, dopant_density, *, prefactor, reference_density,
-                             numerator, denominator):
+@kernel(
+    inputs={"temperature": "K", "dopant_density": "cm^-3"},
+    output="ohm*cm",
+    coefficients={
+        "prefactor": "1/C",
+        "reference_density": "cm^-3",
+        "numerator": "1",
+        "denominator": "1",
+    },
+    array_api=True,
+)
+def log_rational_resistivity(
+    temperature, dopant_density, *, prefactor, reference_density, numerator, denominator
+):
     """Resistivity from dopant density, phosphorus's form of the standard conversion.
 
     ``rho = (A / N) 10^Z``, ``Z = (A0 + A1 y + A2 y^2 + A3 y^3) / (1 + B1 y + B2 y^2
@@ -110,15 +147,26 @@ def log_rational_resistivity(temperature, dopant_density, *, prefactor, referenc
     prefactor (A) : 1/C;  reference_density : cm^-3
     numerator : A0..A3;  denominator : B1..B3 (dimensionless)
     """
-    return _broadcast(_log_rational(dopant_density, prefactor, reference_density, numerator,
-                                    denominator), temperature)
+    return _broadcast(
+        _log_rational(dopant_density, prefactor, reference_density, numerator, denominator),
+        temperature,
+    )
 
 
-@kernel(inputs={"temperature": "K", "resistivity": "ohm*cm"}, output="cm^-3",
-        coefficients={"prefactor": "1/C", "reference_resistivity": "ohm*cm",
-                      "numerator": "1", "denominator": "1"}, array_api=True)
-def log_rational_density(temperature, resistivity, *, prefactor, reference_resistivity,
-                         numerator, denominator):
+@kernel(
+    inputs={"temperature": "K", "resistivity": "ohm*cm"},
+    output="cm^-3",
+    coefficients={
+        "prefactor": "1/C",
+        "reference_resistivity": "ohm*cm",
+        "numerator": "1",
+        "denominator": "1",
+    },
+    array_api=True,
+)
+def log_rational_density(
+    temperature, resistivity, *, prefactor, reference_resistivity, numerator, denominator
+):
     """Dopant density from resistivity, phosphorus's form of the standard conversion.
 
     ``N = (A / rho) 10^Z`` with Z the same ratio of cubics in
@@ -130,20 +178,28 @@ def log_rational_density(temperature, resistivity, *, prefactor, reference_resis
     prefactor (A) : 1/C;  reference_resistivity : ohm cm
     numerator : A0..A3;  denominator : B1..B3 (dimensionless)
     """
-    return _broadcast(_log_rational(resistivity, prefactor, reference_resistivity, numerator,
-                                    denominator), temperature)
+    return _broadcast(
+        _log_rational(resistivity, prefactor, reference_resistivity, numerator, denominator),
+        temperature,
+    )
 
 
 # a few operations per point: large blocks
-for _light in (rational_resistivity, rational_density, log_rational_resistivity,
-               log_rational_density):
+for _light in (
+    rational_resistivity,
+    rational_density,
+    log_rational_resistivity,
+    log_rational_density,
+):
     _light.block = 1 << 17
 
 
 # --------------------------------------------------------------------------- inversion
 
-def solve_decreasing(function, target, low, high, *, f_low=None, f_high=None, xtol=1e-13,
-                     max_iterations=100):
+
+def solve_decreasing(
+    function, target, low, high, *, f_low=None, f_high=None, xtol=1e-13, max_iterations=100
+):
     """Solve ``function(x) = target`` where ``function`` falls strictly with x, vectorised.
 
     Illinois false position inside a bracket ``[low, high]`` that holds every

@@ -27,13 +27,28 @@ REFERENCES = ("conduction", "valence", "intrinsic")
 LAWS = ("constant", "power", "activated")
 
 
-@kernel(inputs={"excess_density": "cm^-3", "equilibrium_electron_density": "cm^-3",
-                "equilibrium_hole_density": "cm^-3", "electron_emission_density": "cm^-3",
-                "hole_emission_density": "cm^-3", "electron_capture_time": "s",
-                "hole_capture_time": "s"}, output="s", array_api=True)
-def single_level(excess_density, equilibrium_electron_density, equilibrium_hole_density,
-                 electron_emission_density, hole_emission_density, electron_capture_time,
-                 hole_capture_time):
+@kernel(
+    inputs={
+        "excess_density": "cm^-3",
+        "equilibrium_electron_density": "cm^-3",
+        "equilibrium_hole_density": "cm^-3",
+        "electron_emission_density": "cm^-3",
+        "hole_emission_density": "cm^-3",
+        "electron_capture_time": "s",
+        "hole_capture_time": "s",
+    },
+    output="s",
+    array_api=True,
+)
+def single_level(
+    excess_density,
+    equilibrium_electron_density,
+    equilibrium_hole_density,
+    electron_emission_density,
+    hole_emission_density,
+    electron_capture_time,
+    hole_capture_time,
+):
     """SRH lifetime of one level (the second equation of the module notes).
 
     Parameters
@@ -48,15 +63,32 @@ def single_level(excess_density, equilibrium_electron_density, equilibrium_hole_
     -------
     lifetime, s
     """
-    xp = namespace(excess_density, equilibrium_electron_density, equilibrium_hole_density,
-                   electron_emission_density, hole_emission_density, electron_capture_time,
-                   hole_capture_time)
+    xp = namespace(
+        excess_density,
+        equilibrium_electron_density,
+        equilibrium_hole_density,
+        electron_emission_density,
+        hole_emission_density,
+        electron_capture_time,
+        hole_capture_time,
+    )
     dn = asfloat(xp, excess_density)
     n0 = asfloat(xp, equilibrium_electron_density)
     p0 = asfloat(xp, equilibrium_hole_density)
-    shape = np.broadcast_shapes(*(np.shape(a) for a in (
-        dn, n0, p0, electron_emission_density, hole_emission_density,
-        electron_capture_time, hole_capture_time)))
+    shape = np.broadcast_shapes(
+        *(
+            np.shape(a)
+            for a in (
+                dn,
+                n0,
+                p0,
+                electron_emission_density,
+                hole_emission_density,
+                electron_capture_time,
+                hole_capture_time,
+            )
+        )
+    )
     if xp is np and shape:  # the same operations, in place (three arrays, no more)
         electrons = np.add(n0, electron_emission_density, out=np.empty(shape))
         electrons += dn
@@ -69,16 +101,18 @@ def single_level(excess_density, equilibrium_electron_density, equilibrium_hole_
         total += dn
         electrons /= total
         return electrons
-    return ((hole_capture_time * (n0 + electron_emission_density + dn)
-             + electron_capture_time * (p0 + hole_emission_density + dn))
-            / (n0 + p0 + dn))
+    return (
+        hole_capture_time * (n0 + electron_emission_density + dn)
+        + electron_capture_time * (p0 + hole_emission_density + dn)
+    ) / (n0 + p0 + dn)
 
 
 single_level.block = 1 << 17  # a few operations per point: large blocks
 
 
-def emission_densities(temperature, energy, reference, conduction_states, valence_states,
-                       equilibrium_product):
+def emission_densities(
+    temperature, energy, reference, conduction_states, valence_states, equilibrium_product
+):
     """``(n1, p1)`` of a level, cm^-3, with ``n1 p1`` equal to ``equilibrium_product``.
 
     The level stays at a fixed distance ``energy`` (eV, >= 0 into the gap) from the
@@ -107,8 +141,15 @@ def emission_densities(temperature, energy, reference, conduction_states, valenc
     raise ValueError(f"reference must be one of {', '.join(REFERENCES)}, got {reference!r}")
 
 
-def cross_section(temperature, *, value, law="constant", reference_temperature=300.0,
-                  exponent=0.0, activation_energy=0.0):
+def cross_section(
+    temperature,
+    *,
+    value,
+    law="constant",
+    reference_temperature=300.0,
+    exponent=0.0,
+    activation_energy=0.0,
+):
     """A capture cross-section, cm^2, constant or varying with temperature.
 
     - ``"constant"``: ``sigma = value``;

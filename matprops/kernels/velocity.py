@@ -11,8 +11,12 @@ from ._xp import asfloat, asin, asinh, errstate, namespace, zeros_like
 from .band_gap import varshni
 from .constants import BOLTZMANN_J, ELECTRON_MASS_KG
 
-__all__ = ["field_dependent_mobility", "mean_speed_mass", "mean_thermal_speed",
-           "power_of_temperature"]
+__all__ = [
+    "field_dependent_mobility",
+    "mean_speed_mass",
+    "mean_thermal_speed",
+    "power_of_temperature",
+]
 
 _MEAN_SPEED_CM = float(np.sqrt(8.0 * BOLTZMANN_J / (np.pi * ELECTRON_MASS_KG)) * 100.0)
 
@@ -42,18 +46,37 @@ def mean_speed_mass(longitudinal_mass, transverse_mass):
     oblate = xp.sqrt(xp.maximum(ratio - 1.0, 0.0))
     with errstate(xp, invalid="ignore", divide="ignore"):
         one = zeros_like(xp, oblate) + 1.0
-        g = xp.where(prolate > 1e-8, asin(xp, prolate) / xp.where(prolate > 1e-8, prolate, one),
-                     xp.where(oblate > 1e-8, asinh(xp, oblate) / xp.where(oblate > 1e-8, oblate,
-                                                                         one), one))
+        g = xp.where(
+            prolate > 1e-8,
+            asin(xp, prolate) / xp.where(prolate > 1e-8, prolate, one),
+            xp.where(oblate > 1e-8, asinh(xp, oblate) / xp.where(oblate > 1e-8, oblate, one), one),
+        )
     return 4.0 * m_l / (1.0 + xp.sqrt(m_l / m_t) * g) ** 2
 
 
-@kernel(inputs={"temperature": "K"}, output="cm/s",
-        coefficients={"longitudinal_mass": "1", "transverse_mass_at_zero": "1",
-                      "transverse_mass_gap_scaling": "1", "gap_at_zero": "eV",
-                      "gap_alpha": "eV/K", "gap_beta": "K"}, array_api=True)
-def mean_thermal_speed(temperature, *, longitudinal_mass, transverse_mass_at_zero,
-                       transverse_mass_gap_scaling, gap_at_zero, gap_alpha, gap_beta):
+@kernel(
+    inputs={"temperature": "K"},
+    output="cm/s",
+    coefficients={
+        "longitudinal_mass": "1",
+        "transverse_mass_at_zero": "1",
+        "transverse_mass_gap_scaling": "1",
+        "gap_at_zero": "eV",
+        "gap_alpha": "eV/K",
+        "gap_beta": "K",
+    },
+    array_api=True,
+)
+def mean_thermal_speed(
+    temperature,
+    *,
+    longitudinal_mass,
+    transverse_mass_at_zero,
+    transverse_mass_gap_scaling,
+    gap_at_zero,
+    gap_alpha,
+    gap_beta,
+):
     """Mean thermal speed ``v_th = sqrt(8 k T / (pi m_th))`` of carriers in one valley.
 
     The valley is an ellipsoid with longitudinal mass ``m_l`` and transverse mass
@@ -96,9 +119,12 @@ def mean_thermal_speed(temperature, *, longitudinal_mass, transverse_mass_at_zer
     return _MEAN_SPEED_CM * xp.sqrt(t / mass)
 
 
-@kernel(inputs={"temperature": "K"}, output="cm/s",
-        coefficients={"prefactor": "cm/s", "exponent": "1", "reference_temperature": "K"},
-        array_api=True)
+@kernel(
+    inputs={"temperature": "K"},
+    output="cm/s",
+    coefficients={"prefactor": "cm/s", "exponent": "1", "reference_temperature": "K"},
+    array_api=True,
+)
 def power_of_temperature(temperature, *, prefactor, exponent, reference_temperature):
     """``v = A (T / T_ref)^gamma`` (Jacoboni et al. write ``A T^gamma``, T in K: T_ref = 1 K).
 
@@ -119,13 +145,27 @@ def power_of_temperature(temperature, *, prefactor, exponent, reference_temperat
 power_of_temperature.block = 1 << 17  # a few operations per point: large blocks
 
 
-@kernel(inputs={"field": "V/cm", "temperature": "K", "low_field_mobility": "cm^2/(V*s)",
-                "saturation_velocity": "cm/s"},
-        output="cm^2/(V*s)",
-        coefficients={"beta_prefactor": "1", "beta_exponent": "1",
-                      "reference_temperature": "K"}, array_api=True)
-def field_dependent_mobility(field, temperature, low_field_mobility, saturation_velocity, *,
-                             beta_prefactor, beta_exponent, reference_temperature):
+@kernel(
+    inputs={
+        "field": "V/cm",
+        "temperature": "K",
+        "low_field_mobility": "cm^2/(V*s)",
+        "saturation_velocity": "cm/s",
+    },
+    output="cm^2/(V*s)",
+    coefficients={"beta_prefactor": "1", "beta_exponent": "1", "reference_temperature": "K"},
+    array_api=True,
+)
+def field_dependent_mobility(
+    field,
+    temperature,
+    low_field_mobility,
+    saturation_velocity,
+    *,
+    beta_prefactor,
+    beta_exponent,
+    reference_temperature,
+):
     """Mobility in a field of the Caughey-Thomas form, with a temperature-dependent beta.
 
     ``mu(E) = mu_0 / [1 + (mu_0 E / v_sat)^beta]^(1/beta)``,

@@ -1,6 +1,6 @@
 """Generate the model catalogue (docs/models.md) from datasets/ — never by hand.
 
-    python -m matprops.modeldocs            # rewrites docs/models.md
+    python -m matprops.outputs.modeldocs            # rewrites docs/models.md
 
 A test checks that the committed file matches what this produces.
 """
@@ -11,7 +11,7 @@ import os
 import sys
 from pathlib import Path
 
-from .catalog import Catalog, default_catalog
+from ..catalogue.store import Catalog, default_catalog
 
 __all__ = ["main", "render"]
 
@@ -24,9 +24,13 @@ def render(catalog: Catalog | None = None) -> str:
     """The catalogue as Markdown: every quantity, model, source, validity, origin."""
     catalog = catalog or default_catalog()
     releases = {r: catalog.release(r) for r in catalog.release_ids()}
-    lines = ["# Model catalogue", "",
-             "Generated from `datasets/` by `python -m matprops.modeldocs`; do not edit.",
-             "Each model's `obtained` field says how its numbers were obtained.", ""]
+    lines = [
+        "# Model catalogue",
+        "",
+        "Generated from `datasets/` by `python -m matprops.outputs.modeldocs`; do not edit.",
+        "Each model's `obtained` field says how its numbers were obtained.",
+        "",
+    ]
     lines += ["| release | status | date |", "|---|---|---|"]
     lines += [f"| {r.id} | {r.status} | {r.date} |" for r in releases.values()]
     for quantity in catalog.quantities():
@@ -36,9 +40,11 @@ def render(catalog: Catalog | None = None) -> str:
             chosen = [r for r, rel in releases.items() if rel.models.get(quantity) == model_id]
             default = f" — default in {', '.join(chosen)}" if chosen else ""
             lines += [f"### `{model_id}`{default}", "", _one_line(model.name), ""]
-            lines.append(f"- kind: {model.kind}; kernel: "
-                         f"`{model.kernel.__module__.removeprefix('matprops.')}."
-                         f"{model.kernel.__name__}`")
+            lines.append(
+                f"- kind: {model.kind}; kernel: "
+                f"`{model.kernel.__module__.removeprefix('matprops.')}."
+                f"{model.kernel.__name__}`"
+            )
             lines.append(f"- source: {model.source.citation()}")
             for extra in model.additional_sources:
                 lines.append(f"- also: {extra.citation()}")
@@ -47,7 +53,9 @@ def render(catalog: Catalog | None = None) -> str:
             for region in model.regions:
                 lines.append(f"- validity region: {region} ({region.reason})")
             if model.requires:
-                lines.append(f"- composed from: {', '.join(model.requires)} (the material's choice)")
+                lines.append(
+                    f"- composed from: {', '.join(model.requires)} (the material's choice)"
+                )
             if model.table:
                 lines.append(f"- tables: {', '.join(model.provenance()['tables'])}")
             for name, coef in model.coefficients.items():
@@ -57,10 +65,16 @@ def render(catalog: Catalog | None = None) -> str:
             fit = model.extra.get("fit")
             if fit:
                 density = fit.get("intrinsic_density")
-                density = (f"; intrinsic density {density.value:g} {density.units} at "
-                           f"{fit['intrinsic_density_temperature']:g} K" if density else "")
-                lines.append(f"- fitted with: radiative term {_one_line(fit['radiative'])}"
-                             f"{density}; narrowing {fit['gap_narrowing']}")
+                density = (
+                    f"; intrinsic density {density.value:g} {density.units} at "
+                    f"{fit['intrinsic_density_temperature']:g} K"
+                    if density
+                    else ""
+                )
+                lines.append(
+                    f"- fitted with: radiative term {_one_line(fit['radiative'])}"
+                    f"{density}; narrowing {fit['gap_narrowing']}"
+                )
             lines.append(f"- obtained: {_one_line(model.obtained)}")
             if model.notes:
                 lines.append(f"- notes: {_one_line(model.notes)}")
@@ -71,26 +85,32 @@ def render(catalog: Catalog | None = None) -> str:
 
 def _defect_lines(catalog: Catalog) -> list[str]:
     """The defect catalogue (``datasets/defects/``), one entry per defect."""
-    from .defects import describe
+    from ..catalogue.defects import describe
 
     entries = describe(catalog)
     if not entries:
         return []
-    lines = ["", "## Defect catalogue (Shockley-Read-Hall centres)", "",
-             "Used by `si.srh_lifetime`, `si.effective_lifetime` and `si.implied_voltage`.",
-             ""]
+    lines = [
+        "",
+        "## Defect catalogue (Shockley-Read-Hall centres)",
+        "",
+        "Used by `si.srh_lifetime`, `si.effective_lifetime` and `si.implied_voltage`.",
+        "",
+    ]
     for defect in entries:
         aliases = f" (also {', '.join(defect.aliases)})" if defect.aliases else ""
         lines += [f"### `{defect.name}`{aliases}", "", _one_line(defect.description), ""]
         lines.append(f"- level: {defect.level_text()}")
         if defect.absolute:
-            lines.append(f"- electron capture cross-section: "
-                         f"{defect.electron_cross_section.describe()}")
-            lines.append(f"- hole capture cross-section: "
-                         f"{defect.hole_cross_section.describe()}")
+            lines.append(
+                f"- electron capture cross-section: {defect.electron_cross_section.describe()}"
+            )
+            lines.append(f"- hole capture cross-section: {defect.hole_cross_section.describe()}")
         else:
-            lines.append(f"- sigma_n / sigma_p = {defect.cross_section_ratio:g} "
-                         "(ratio only: give the electron capture time)")
+            lines.append(
+                f"- sigma_n / sigma_p = {defect.cross_section_ratio:g} "
+                "(ratio only: give the electron capture time)"
+            )
         lines.append(f"- thermal velocity: {_one_line(defect.thermal_velocity_note)}")
         lines.append(f"- source: {defect.source.citation()}")
         for extra in defect.additional_sources:
@@ -105,12 +125,18 @@ def _defect_lines(catalog: Catalog) -> list[str]:
 def main(argv=None) -> int:
     import argparse
 
-    default = Path(__file__).resolve().parent.parent / "docs" / "models.md"
+    default = Path(__file__).resolve().parents[2] / "docs" / "models.md"
     parser = argparse.ArgumentParser(
-        prog="python -m matprops.modeldocs",
-        description="Regenerate the model catalogue (docs/models.md) from datasets/.")
-    parser.add_argument("output", nargs="?", type=Path, default=default,
-                        help="where to write it (default: %(default)s)")
+        prog="python -m matprops.outputs.modeldocs",
+        description="Regenerate the model catalogue (docs/models.md) from datasets/.",
+    )
+    parser.add_argument(
+        "output",
+        nargs="?",
+        type=Path,
+        default=default,
+        help="where to write it (default: %(default)s)",
+    )
     target = parser.parse_args(argv).output
     target.parent.mkdir(parents=True, exist_ok=True)
     tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")

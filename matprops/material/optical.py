@@ -24,13 +24,13 @@ class OpticalMethods:
 
     def refractive_index(self, wavelength, temperature):
         """Real part of the complex refractive index (dimensionless)."""
-        return self._quantity("refractive_index", wavelength=wavelength,
-                              temperature=temperature)
+        return self._quantity("refractive_index", wavelength=wavelength, temperature=temperature)
 
     def free_carrier_absorption(self, wavelength, n=0, p=0):
         """Free-carrier absorption coefficient, 1/cm, for electron and hole densities
         ``n`` and ``p`` (cm^-3); add it to :meth:`absorption` for doped or injected
         silicon. The release default is valid for doped layers (up to 1e20 cm^-3) at
         1300-14000 nm; see ``si.provenance("free_carrier_absorption")``."""
-        return self._quantity("free_carrier_absorption", wavelength=wavelength,
-                              electron_density=n, hole_density=p)
+        return self._quantity(
+            "free_carrier_absorption", wavelength=wavelength, electron_density=n, hole_density=p
+        )

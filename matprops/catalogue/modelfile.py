@@ -1,7 +1,7 @@
-"""Model files -> :class:`~matprops.records.Model`: field checks, unit conversion, binding.
+"""Model files -> :class:`~.records.Model`: field checks, unit conversion, binding.
 
 A model file (``datasets/models/<quantity>/<model-id>.toml``) is checked against
-the strict schema (:mod:`matprops.schema`) and against the units its kernel
+the strict schema (:mod:`matprops.catalogue.schema`) and against the units its kernel
 declares; its coefficients are converted to the kernel's internal units and bound to
 the kernel (per variant where the file has coefficient sets per dopant or carrier),
 and quantity-specific sections (a narrowing's fitting assumptions, a mobility's
@@ -16,16 +16,15 @@ import threading
 from collections.abc import Mapping
 from pathlib import Path
 from types import MappingProxyType
-from typing import TYPE_CHECKING
 
-import numpy as np
-
-from .errors import (
+from ..errors import (
     DatasetError,
 )
-from .kernels import module_for
+from ..kernels import module_for
+from .fields import convert, number_or_list, require, udunits_to_pint
 from .records import (
     SOURCE_TYPES,
+    CatalogueLike,
     Coefficient,
     Model,
     Range,
@@ -38,84 +37,13 @@ from .schema import (
     VARIANT_AXES,
 )
 
-if TYPE_CHECKING:
-    from .catalog import Catalog
-
 MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
-
-
-def _read_only(value):
-    """Freeze an array that a bound model shares between threads."""
-    if isinstance(value, np.ndarray):
-        value.flags.writeable = False
-    return value
-
-
-_UDUNITS_POWER = re.compile(r"([A-Za-z]+)(-?\d+)")
-
-
-def udunits_to_pint(text: str) -> str:
-    """Translate a UDUNITS string (``cm-3``, ``cm2 V-1 s-1``) to pint's grammar."""
-    text = text.strip()
-    if text in ("", "1"):
-        return "dimensionless"
-    return "*".join(_UDUNITS_POWER.sub(r"\1^\2", part) for part in text.split())
-
-
-
-
-# --------------------------------------------------------------------------- validation
-
-
-def _require(path, data: Mapping, name: str, kind=None, where: str = ""):
-    if name not in data:
-        raise DatasetError(path, f"missing required field {where}{name!r}")
-    value = data[name]
-    if kind is not None and not isinstance(value, kind):
-        raise DatasetError(path, f"field {where}{name!r} must be {kind.__name__ if isinstance(kind, type) else kind}, "
-                           f"got {value!r}")
-    return value
-
-
-def _convert(path, where: str, value, units: str, target: str):
-    """Convert value (float or list) from ``units`` to ``target`` with pint."""
-    import pint
-
-    from .units import Q_, unit
-
-    try:
-        source_unit = unit(units)
-    except Exception as exc:
-        raise DatasetError(path, f"{where}: units {units!r} do not parse") from exc
-    target_unit = unit(target)
-    if source_unit.dimensionality != target_unit.dimensionality:
-        raise DatasetError(path, f"{where}: units {units!r} have dimension "
-                           f"{source_unit.dimensionality}, expected {target!r} "
-                           f"({target_unit.dimensionality})")
-    array = np.asarray(value, dtype=float)
-    try:
-        converted = Q_(array, source_unit).m_as(target_unit)
-    except pint.PintError as exc:  # pragma: no cover - dimension checked above
-        raise DatasetError(path, f"{where}: cannot convert {units!r} to {target!r}") from exc
-    return float(converted) if np.ndim(converted) == 0 else _read_only(np.array(converted))
-
-
-def _number_or_list(path, where, value):
-    if isinstance(value, bool):
-        raise DatasetError(path, f"{where} must be a number or list of numbers, got {value!r}")
-    if isinstance(value, (int, float)):
-        return float(value)
-    if isinstance(value, list) and value and all(
-            isinstance(v, (int, float)) and not isinstance(v, bool) for v in value):
-        return tuple(float(v) for v in value)
-    raise DatasetError(path, f"{where} must be a number or list of numbers, got {value!r}")
 
 
 def _resolve_kernel(path, reference: str):
     module_name, _, function_name = reference.rpartition(".")
     if not module_name:
-        raise DatasetError(path, f"field 'kernel' must be '<module>.<function>', "
-                           f"got {reference!r}")
+        raise DatasetError(path, f"field 'kernel' must be '<module>.<function>', got {reference!r}")
     try:
         module = module_for(module_name)
     except ModuleNotFoundError as exc:
@@ -128,12 +56,13 @@ def _resolve_kernel(path, reference: str):
 
 def sources_of(path, data) -> tuple[Source, tuple[Source, ...]]:
     """A data file's ``source`` and ``additional_sources`` records."""
-    source = _source(path, _require(path, data, "source", dict), "source.")
+    source = _source(path, require(path, data, "source", dict), "source.")
     additional = data.get("additional_sources", [])
     if not isinstance(additional, list):
         raise DatasetError(path, "field 'additional_sources' must be a list of sources")
-    return source, tuple(_source(path, entry, f"additional_sources[{i}].")
-                         for i, entry in enumerate(additional))
+    return source, tuple(
+        _source(path, entry, f"additional_sources[{i}].") for i, entry in enumerate(additional)
+    )
 
 
 def _source(path, src, where: str) -> Source:
@@ -141,42 +70,61 @@ def _source(path, src, where: str) -> Source:
         raise DatasetError(path, f"{where.rstrip('.')} must be a table of source fields")
     kind = src.get("type", "article")
     if kind not in SOURCE_TYPES:
-        raise DatasetError(path, f"field '{where}type' must be one of "
-                           f"{', '.join(SOURCE_TYPES)}, got {kind!r}")
+        raise DatasetError(
+            path, f"field '{where}type' must be one of {', '.join(SOURCE_TYPES)}, got {kind!r}"
+        )
     for f in SOURCE_TYPES[kind]:
-        _require(path, src, f, where=where)
+        require(path, src, f, where=where)
     authors = src["authors"]
     if not isinstance(authors, list) or not authors:
         raise DatasetError(path, f"field '{where}authors' must be a non-empty list")
     if kind == "book":
-        return Source(tuple(authors), int(src["year"]), str(src["title"]), "", "",
-                      str(src.get("pages", "")), str(src["doi"]), type="book",
-                      publisher=str(src["publisher"]), edition=str(src.get("edition", "")),
-                      address=str(src.get("address", "")))
-    return Source(tuple(authors), int(src["year"]), str(src["title"]), str(src["journal"]),
-                  str(src["volume"]), str(src["pages"]), str(src["doi"]))
+        return Source(
+            tuple(authors),
+            int(src["year"]),
+            str(src["title"]),
+            "",
+            "",
+            str(src.get("pages", "")),
+            str(src["doi"]),
+            type="book",
+            publisher=str(src["publisher"]),
+            edition=str(src.get("edition", "")),
+            address=str(src.get("address", "")),
+        )
+    return Source(
+        tuple(authors),
+        int(src["year"]),
+        str(src["title"]),
+        str(src["journal"]),
+        str(src["volume"]),
+        str(src["pages"]),
+        str(src["doi"]),
+    )
 
 
-def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
+def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
     quantity = path.parent.name
-    model_id = _require(path, data, "id", str)
+    model_id = require(path, data, "id", str)
     if model_id != path.stem:
         raise DatasetError(path, f"field 'id' is {model_id!r}, the file name says {path.stem!r}")
     if not MODEL_ID.match(model_id):
-        raise DatasetError(path, f"field 'id' {model_id!r} is not lower-case "
-                           "'firstauthor-year' form")
-    if _require(path, data, "quantity", str) != quantity:
-        raise DatasetError(path, f"field 'quantity' is {data['quantity']!r}, "
-                           f"the folder says {quantity!r}")
-    name = _require(path, data, "name", str)
-    kind = _require(path, data, "kind", str)
+        raise DatasetError(
+            path, f"field 'id' {model_id!r} is not lower-case 'firstauthor-year' form"
+        )
+    if require(path, data, "quantity", str) != quantity:
+        raise DatasetError(
+            path, f"field 'quantity' is {data['quantity']!r}, the folder says {quantity!r}"
+        )
+    name = require(path, data, "name", str)
+    kind = require(path, data, "kind", str)
     if kind not in KINDS:
         raise DatasetError(path, f"field 'kind' must be one of {', '.join(KINDS)}, got {kind!r}")
-    obtained = _require(path, data, "obtained", str)
+    obtained = require(path, data, "obtained", str)
     if not obtained.strip():
         raise DatasetError(path, "field 'obtained' must say how the numbers were obtained")
     notes = data.get("notes", "")
-    kernel = _resolve_kernel(path, _require(path, data, "kernel", str))
+    kernel = _resolve_kernel(path, require(path, data, "kernel", str))
     spec = kernel.spec
 
     source, additional_sources = sources_of(path, data)
@@ -189,43 +137,65 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
     table = None
     table_arguments: dict[str, str] = {}
     if kind == "table":
-        table = _require(path, data, "table", str)
-        table_arguments = dict(_require(path, data, "table_arguments", dict))
-    shared = _coefficients(path, data.get("coefficients", {}), spec, "coefficients",
-                           data["kernel"], table_arguments)
+        table = require(path, data, "table", str)
+        table_arguments = dict(require(path, data, "table_arguments", dict))
+    shared = _coefficients(
+        path, data.get("coefficients", {}), spec, "coefficients", data["kernel"], table_arguments
+    )
     raw_variants = data.get("variants")
     variant_axis = data.get("variant_axis")
     if (raw_variants is None) != (variant_axis is None):
         raise DatasetError(path, "fields 'variant_axis' and 'variants' go together")
     if variant_axis is not None and variant_axis not in VARIANT_AXES:
-        raise DatasetError(path, f"field 'variant_axis' must be one of "
-                           f"{', '.join(VARIANT_AXES)}, got {variant_axis!r}")
+        raise DatasetError(
+            path,
+            f"field 'variant_axis' must be one of {', '.join(VARIANT_AXES)}, got {variant_axis!r}",
+        )
 
     requires = tuple(spec.requires)
     if kind == "composed" and not requires:
-        raise DatasetError(path, f"kind 'composed' needs a kernel that requires other "
-                           f"quantities; {data['kernel']!r} requires none")
+        raise DatasetError(
+            path,
+            f"kind 'composed' needs a kernel that requires other "
+            f"quantities; {data['kernel']!r} requires none",
+        )
     extra = _extra_sections(path, quantity, data)
-    common = dict(quantity=quantity, id=model_id, name=name, kind=kind, kernel=kernel,  # noqa: C408
-                  source=source, obtained=obtained, notes=notes, path=path,
-                  sha256=catalog.checksums().get(path.relative_to(catalog.root).as_posix(), ""),
-                  requires=requires, additional_sources=additional_sources,
-                  fallback=fallback, table=table,
-                  table_arguments=MappingProxyType(table_arguments),
-                  variant_axis=variant_axis, extra=MappingProxyType(extra),
-                  regions=parse_regions(path, data, spec))
+    common = {
+        "quantity": quantity,
+        "id": model_id,
+        "name": name,
+        "kind": kind,
+        "kernel": kernel,
+        "catalogue": catalog,
+        "source": source,
+        "obtained": obtained,
+        "notes": notes,
+        "path": path,
+        "sha256": catalog.checksums().get(path.relative_to(catalog.root).as_posix(), ""),
+        "requires": requires,
+        "additional_sources": additional_sources,
+        "fallback": fallback,
+        "table": table,
+        "table_arguments": MappingProxyType(table_arguments),
+        "variant_axis": variant_axis,
+        "extra": MappingProxyType(extra),
+        "regions": parse_regions(path, data, spec),
+    }
 
     def bind(coefficients, kernel=kernel, kernel_name=data["kernel"]):
-        _check_complete(path, kernel_name, kernel.spec,
-                        set(coefficients) | set(table_arguments))
+        _check_complete(path, kernel_name, kernel.spec, set(coefficients) | set(table_arguments))
         bound = {c.name: c.kernel_value for c in coefficients.values()}
         if kind == "table":
             return _TableFunction(catalog, path, kernel, table, table_arguments, bound)
         return None if requires else functools.partial(kernel, **bound)
 
     if raw_variants is None:
-        return Model(**common, coefficients=MappingProxyType(shared),
-                     validity=MappingProxyType(validity), function=bind(shared))
+        return Model(
+            **common,
+            coefficients=MappingProxyType(shared),
+            validity=MappingProxyType(validity),
+            function=bind(shared),
+        )
 
     if not isinstance(raw_variants, dict) or not raw_variants:
         raise DatasetError(path, "field 'variants' must hold one table per variant")
@@ -236,37 +206,62 @@ def _build_model(path: Path, data: Mapping, catalog: Catalog) -> Model:
             raise DatasetError(path, f"{where} must be a table")
         unknown = set(entry) - {"coefficients", "validity", "obtained", "kernel"}
         if unknown:
-            raise DatasetError(path, f"{where}: unknown field(s) {sorted(unknown)} "
-                               "(allowed: coefficients, validity, obtained, kernel)")
+            raise DatasetError(
+                path,
+                f"{where}: unknown field(s) {sorted(unknown)} "
+                "(allowed: coefficients, validity, obtained, kernel)",
+            )
         # a variant may have an equation form of its own (e.g. a standard that gives
         # boron and phosphorus different forms), with the same inputs and output
         variant_kernel, kernel_name = kernel, data["kernel"]
         if "kernel" in entry:
-            kernel_name = _require(path, entry, "kernel", str, where=where + ".")
+            kernel_name = require(path, entry, "kernel", str, where=where + ".")
             variant_kernel = _resolve_kernel(path, kernel_name)
-            if (dict(variant_kernel.spec.inputs) != dict(spec.inputs)
-                    or variant_kernel.spec.output != spec.output
-                    or variant_kernel.spec.requires != spec.requires):
-                raise DatasetError(path, f"{where}.kernel {kernel_name!r} must take the same "
-                                   f"inputs and give the same output as {data['kernel']!r}")
-        own = _coefficients(path, entry.get("coefficients", {}), variant_kernel.spec,
-                            f"{where}.coefficients", kernel_name,
-                            set(shared) | set(table_arguments))
+            if (
+                dict(variant_kernel.spec.inputs) != dict(spec.inputs)
+                or variant_kernel.spec.output != spec.output
+                or variant_kernel.spec.requires != spec.requires
+            ):
+                raise DatasetError(
+                    path,
+                    f"{where}.kernel {kernel_name!r} must take the same "
+                    f"inputs and give the same output as {data['kernel']!r}",
+                )
+        own = _coefficients(
+            path,
+            entry.get("coefficients", {}),
+            variant_kernel.spec,
+            f"{where}.coefficients",
+            kernel_name,
+            set(shared) | set(table_arguments),
+        )
         overlap = sorted(set(own) & set(shared))
         if overlap:
             raise DatasetError(path, f"{where}: {overlap} also given in [coefficients]")
         merged = {**shared, **own}
-        ranges = {**validity, **_validity(path, entry.get("validity", {}), spec,
-                                          f"{where}.validity")}
+        ranges = {
+            **validity,
+            **_validity(path, entry.get("validity", {}), spec, f"{where}.validity"),
+        }
         variant_obtained = entry.get("obtained")
         variants[variant] = Model(
-            **{**common, "kernel": variant_kernel,
-               "obtained": obtained + (f"\n{variant}: {variant_obtained}"
-                                       if variant_obtained else "")},
-            coefficients=MappingProxyType(merged), validity=MappingProxyType(ranges),
-            function=bind(merged, variant_kernel, kernel_name), variant=variant)
-    parent = Model(**common, coefficients=MappingProxyType(shared),
-                   validity=MappingProxyType(validity), function=None)
+            **{
+                **common,
+                "kernel": variant_kernel,
+                "obtained": obtained
+                + (f"\n{variant}: {variant_obtained}" if variant_obtained else ""),
+            },
+            coefficients=MappingProxyType(merged),
+            validity=MappingProxyType(ranges),
+            function=bind(merged, variant_kernel, kernel_name),
+            variant=variant,
+        )
+    parent = Model(
+        **common,
+        coefficients=MappingProxyType(shared),
+        validity=MappingProxyType(validity),
+        function=None,
+    )
     frozen = MappingProxyType(variants)
     object.__setattr__(parent, "variants", frozen)
     for model in variants.values():
@@ -281,12 +276,15 @@ def _validity(path, raw, spec, prefix) -> dict[str, Range]:
     for argument, entry in raw.items():
         where = f"{prefix}.{argument}"
         if argument not in spec.inputs:
-            raise DatasetError(path, f"{where}: the kernel has no input {argument!r} "
-                               f"(inputs: {', '.join(spec.inputs) or 'none'})")
+            raise DatasetError(
+                path,
+                f"{where}: the kernel has no input {argument!r} "
+                f"(inputs: {', '.join(spec.inputs) or 'none'})",
+            )
         for f in ("min", "max", "units"):
-            _require(path, entry, f, where=where + ".")
-        low = _convert(path, where, entry["min"], entry["units"], spec.inputs[argument])
-        high = _convert(path, where, entry["max"], entry["units"], spec.inputs[argument])
+            require(path, entry, f, where=where + ".")
+        low = convert(path, where, entry["min"], entry["units"], spec.inputs[argument])
+        high = convert(path, where, entry["max"], entry["units"], spec.inputs[argument])
         if not low < high:
             raise DatasetError(path, f"{where}: min must be below max")
         validity[argument] = Range(argument, low, high, spec.inputs[argument])
@@ -296,18 +294,18 @@ def _validity(path, raw, spec, prefix) -> dict[str, Range]:
 def _coefficient(path, where: str, entry, target_units: str) -> Coefficient:
     if not isinstance(entry, dict):
         raise DatasetError(path, f"{where} must be a table with value and units")
-    value = _number_or_list(path, where + ".value",
-                            _require(path, entry, "value", where=where + "."))
-    units = _require(path, entry, "units", str, where=where + ".")
+    value = number_or_list(path, where + ".value", require(path, entry, "value", where=where + "."))
+    units = require(path, entry, "units", str, where=where + ".")
     uncertainty = entry.get("uncertainty")
     if uncertainty is not None:
-        uncertainty = _number_or_list(path, where + ".uncertainty", uncertainty)
+        uncertainty = number_or_list(path, where + ".uncertainty", uncertainty)
     origin = entry.get("obtained")
     if origin is not None and not (isinstance(origin, str) and origin.strip()):
         raise DatasetError(path, f"{where}.obtained must be a non-empty string")
-    kernel_value = _convert(path, where, value, units, target_units)
-    return Coefficient(where.rpartition(".")[2], value, units, uncertainty, kernel_value,
-                       target_units, origin)
+    kernel_value = convert(path, where, value, units, target_units)
+    return Coefficient(
+        where.rpartition(".")[2], value, units, uncertainty, kernel_value, target_units, origin
+    )
 
 
 def _coefficients(path, raw, spec, prefix, kernel_name, also=()) -> dict[str, Coefficient]:
@@ -316,17 +314,22 @@ def _coefficients(path, raw, spec, prefix, kernel_name, also=()) -> dict[str, Co
         raise DatasetError(path, f"{prefix} must be a table of coefficients")
     if set(raw) - set(spec.coefficients):
         _check_complete(path, kernel_name, spec, set(raw) | set(also))
-    return {name: _coefficient(path, f"{prefix}.{name}", entry, spec.coefficients[name])
-            for name, entry in raw.items()}
+    return {
+        name: _coefficient(path, f"{prefix}.{name}", entry, spec.coefficients[name])
+        for name, entry in raw.items()
+    }
 
 
 def _check_complete(path, kernel_name, spec, supplied) -> None:
     expected = set(spec.coefficients)
     if supplied != expected:
         missing, extra = sorted(expected - supplied), sorted(supplied - expected)
-        raise DatasetError(path, "coefficients do not match kernel "
-                           f"{kernel_name!r}: missing {missing or 'none'}, "
-                           f"unexpected {extra or 'none'}")
+        raise DatasetError(
+            path,
+            "coefficients do not match kernel "
+            f"{kernel_name!r}: missing {missing or 'none'}, "
+            f"unexpected {extra or 'none'}",
+        )
 
 
 # Sections a model file may carry for its quantity only, each checked by a function.
@@ -337,23 +340,30 @@ def _narrowing_section(path, entry) -> dict:
     unknown = set(entry) - {"type", "statistics", "intrinsic_density", "split"}
     if unknown:
         raise DatasetError(path, f"{where}: unknown field(s) {sorted(unknown)}")
-    kind = _require(path, entry, "type", str, where=where + ".")
+    kind = require(path, entry, "type", str, where=where + ".")
     if kind not in ("apparent", "physical"):
         raise DatasetError(path, f"{where}.type must be 'apparent' or 'physical', got {kind!r}")
-    statistics = _require(path, entry, "statistics", str, where=where + ".")
+    statistics = require(path, entry, "statistics", str, where=where + ".")
     if statistics not in ("boltzmann", "fermi-dirac"):
         raise DatasetError(path, f"{where}.statistics must be 'boltzmann' or 'fermi-dirac'")
-    record = {"type": kind, "statistics": statistics,
-              "split": _require(path, entry, "split", str, where=where + ".")}
+    record = {
+        "type": kind,
+        "statistics": statistics,
+        "split": require(path, entry, "split", str, where=where + "."),
+    }
     if kind == "apparent":
-        density = _require(path, entry, "intrinsic_density", dict, where=where + ".")
-        temperature = _require(path, density, "temperature", where=where + ".intrinsic_density.")
-        coefficient = _coefficient(path, f"{where}.intrinsic_density",
-                                   {k: v for k, v in density.items() if k != "temperature"},
-                                   "cm^-3")
+        density = require(path, entry, "intrinsic_density", dict, where=where + ".")
+        temperature = require(path, density, "temperature", where=where + ".intrinsic_density.")
+        coefficient = _coefficient(
+            path,
+            f"{where}.intrinsic_density",
+            {k: v for k, v in density.items() if k != "temperature"},
+            "cm^-3",
+        )
         record["intrinsic_density"] = coefficient
-        record["intrinsic_density_temperature"] = _convert(
-            path, f"{where}.intrinsic_density.temperature", temperature, "K", "K")
+        record["intrinsic_density_temperature"] = convert(
+            path, f"{where}.intrinsic_density.temperature", temperature, "K", "K"
+        )
     elif "intrinsic_density" in entry:
         raise DatasetError(path, f"{where}.intrinsic_density belongs to apparent narrowings")
     return record
@@ -361,8 +371,9 @@ def _narrowing_section(path, entry) -> dict:
 
 def _dopant_densities(path, value) -> str:
     if value not in ("total", "ionised"):
-        raise DatasetError(path, f"field 'dopant_densities' must be 'total' or 'ionised', "
-                           f"got {value!r}")
+        raise DatasetError(
+            path, f"field 'dopant_densities' must be 'total' or 'ionised', got {value!r}"
+        )
     return value
 
 
@@ -375,28 +386,35 @@ def _fit_section(path, entry) -> dict:
     unknown = set(entry) - {"radiative", "intrinsic_density", "gap_narrowing"}
     if unknown:
         raise DatasetError(path, f"{where}: unknown field(s) {sorted(unknown)}")
-    record = {"radiative": _require(path, entry, "radiative", str, where=where + "."),
-              "gap_narrowing": _require(path, entry, "gap_narrowing", str,
-                                        where=where + ".")}
+    record = {
+        "radiative": require(path, entry, "radiative", str, where=where + "."),
+        "gap_narrowing": require(path, entry, "gap_narrowing", str, where=where + "."),
+    }
     density = entry.get("intrinsic_density")
     if density is not None:
         if not isinstance(density, dict):
             raise DatasetError(path, f"{where}.intrinsic_density must be a table")
-        temperature = _require(path, density, "temperature",
-                               where=where + ".intrinsic_density.")
+        temperature = require(path, density, "temperature", where=where + ".intrinsic_density.")
         record["intrinsic_density"] = _coefficient(
-            path, f"{where}.intrinsic_density",
-            {k: v for k, v in density.items() if k != "temperature"}, "cm^-3")
-        record["intrinsic_density_temperature"] = _convert(
-            path, f"{where}.intrinsic_density.temperature", temperature, "K", "K")
+            path,
+            f"{where}.intrinsic_density",
+            {k: v for k, v in density.items() if k != "temperature"},
+            "cm^-3",
+        )
+        record["intrinsic_density_temperature"] = convert(
+            path, f"{where}.intrinsic_density.temperature", temperature, "K", "K"
+        )
     return record
 
 
 def _velocity_definition(path, value) -> str:
     if value not in THERMAL_VELOCITY_DEFINITIONS:
-        raise DatasetError(path, "field 'definition' must be one of "
-                           f"{', '.join(map(repr, THERMAL_VELOCITY_DEFINITIONS))}, "
-                           f"got {value!r}")
+        raise DatasetError(
+            path,
+            "field 'definition' must be one of "
+            f"{', '.join(map(repr, THERMAL_VELOCITY_DEFINITIONS))}, "
+            f"got {value!r}",
+        )
     return value
 
 
@@ -415,8 +433,7 @@ def _extra_sections(path, quantity, data) -> dict:
     found = {}
     for key, check in allowed.items():
         if key not in data:
-            raise DatasetError(path, f"missing required field {key!r} for a "
-                               f"{quantity} model")
+            raise DatasetError(path, f"missing required field {key!r} for a {quantity} model")
         found[key] = check(path, data[key])
     return found
 
@@ -452,11 +469,11 @@ class _TableFunction:
             data = opened[table]
             where = f"table {table}, variable {variable!r}"
             if variable not in data:
-                raise DatasetError(self._path, f"{where} does not exist "
-                                   f"(has: {', '.join(data)})")
+                raise DatasetError(self._path, f"{where} does not exist (has: {', '.join(data)})")
             values, units = data[variable]
-            arrays[argument] = _convert(self._path, where, values, udunits_to_pint(units),
-                                        spec.coefficients[argument])
+            arrays[argument] = convert(
+                self._path, where, values, udunits_to_pint(units), spec.coefficients[argument]
+            )
         prepare = getattr(self._kernel, "prepare", None)
         if prepare is not None:  # the same function, prepared once for fast evaluation
             return prepare(**self._bound, **arrays)
@@ -470,4 +487,3 @@ class _TableFunction:
     def __call__(self, *args, **kwargs):
         function = self._function or self._load()
         return function(*args, **kwargs)
-

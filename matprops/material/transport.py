@@ -27,15 +27,20 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import InputError, SolverError, ValidityError, ValidityWarning, warn
+from ..errors import (
+    InputError,
+    SolverError,
+    ValidityError,
+    ValidityWarning,
+    warn,
+)
 from ..kernels import resistivity as resistivity_kernels
 from ..kernels.constants import BOLTZMANN_EV
 from ..kernels.diffusivity import einstein_factor
 from ..units import coerce, quantity
 from .carriers import DOPANTS, dopant_species
 
-__all__ = ["CARRIERS", "CONVERSIONS", "DERIVED", "KERNELS", "TransportMethods",
-           "carrier_name"]
+__all__ = ["CARRIERS", "CONVERSIONS", "DERIVED", "KERNELS", "TransportMethods", "carrier_name"]
 
 CARRIERS = ("electron", "hole")
 _CARRIER_ALIASES = {"electrons": "electron", "holes": "hole", "e": "electron", "h": "hole"}
@@ -48,25 +53,35 @@ _EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "io
 DERIVED = {
     "diffusivity": (
         ("mobility", *_EQUILIBRIUM),
-        ("D = mu kT/q F_1/2(eta)/F_-1/2(eta) (Einstein relation; the factor is 1 with "
-         "Boltzmann statistics), eta = (E_F - E_c')/kT for electrons, (E_v' - E_F)/kT for "
-         "holes: the equilibrium reduced Fermi level, or the quasi-Fermi level of the given "
-         "n or p (n = Nc F_1/2(eta))")),
+        (
+            "D = mu kT/q F_1/2(eta)/F_-1/2(eta) (Einstein relation; the factor is 1 with "
+            "Boltzmann statistics), eta = (E_F - E_c')/kT for electrons, (E_v' - E_F)/kT for "
+            "holes: the equilibrium reduced Fermi level, or the quasi-Fermi level of the given "
+            "n or p (n = Nc F_1/2(eta))"
+        ),
+    ),
     "conductivity": (
         ("mobility", *_EQUILIBRIUM),
-        ("sigma = q (n0 mu_n + p0 mu_p): equilibrium n0, p0 and ionised dopants; mu_n with "
-         "the donor species' coefficients, mu_p with the acceptor's; dopant densities total "
-         "or ionised as the mobility model takes them")),
+        (
+            "sigma = q (n0 mu_n + p0 mu_p): equilibrium n0, p0 and ionised dopants; mu_n with "
+            "the donor species' coefficients, mu_p with the acceptor's; dopant densities total "
+            "or ionised as the mobility model takes them"
+        ),
+    ),
     "resistivity": (
         ("mobility", *_EQUILIBRIUM),
-        "rho = 1 / (q (n0 mu_n + p0 mu_p)), as for conductivity"),
+        "rho = 1 / (q (n0 mu_n + p0 mu_p)), as for conductivity",
+    ),
     "doping_from_resistivity": (
         ("mobility", *_EQUILIBRIUM),
-        ("the density N of one dopant species with rho(T, N) equal to the given "
-         "resistivity, rho as for resistivity; solved for all points at once (Illinois "
-         "false position in ln N, to 1e-13 in ln N) on the doping-dominated branch: for "
-         "acceptors above the resistivity maximum at N = ni (sqrt(r) - 1/sqrt(r)), "
-         "r = mu_n/mu_p of intrinsic silicon")),
+        (
+            "the density N of one dopant species with rho(T, N) equal to the given "
+            "resistivity, rho as for resistivity; solved for all points at once (Illinois "
+            "false position in ln N, to 1e-13 in ln N) on the doping-dominated branch: for "
+            "acceptors above the resistivity maximum at N = ni (sqrt(r) - 1/sqrt(r)), "
+            "r = mu_n/mu_p of intrinsic silicon"
+        ),
+    ),
 }
 
 # Quantities whose plain-array kernels this family hands out (see Silicon.kernel).
@@ -118,14 +133,18 @@ class TransportMethods:
         temperature : K (or a pint quantity); arrays broadcast
         """
         model = self.model("thermal_velocity").select(carrier_name(carrier))
-        return quantity(self._call(model, {"temperature": coerce(temperature, "temperature")}),
-                        model.output_units)
+        return quantity(
+            self._call(model, {"temperature": coerce(temperature, "temperature")}),
+            model.output_units,
+        )
 
     def saturation_velocity(self, carrier, temperature):
         """Saturation drift velocity of electrons or holes at high field, cm/s."""
         model = self.model("saturation_velocity").select(carrier_name(carrier))
-        return quantity(self._call(model, {"temperature": coerce(temperature, "temperature")}),
-                        model.output_units)
+        return quantity(
+            self._call(model, {"temperature": coerce(temperature, "temperature")}),
+            model.output_units,
+        )
 
     # ------------------------------------------------------------------ mobility
     def _mobility_model(self, carrier: str, donor: str, acceptor: str):
@@ -137,8 +156,20 @@ class TransportMethods:
             return model.select(carrier)
         return model
 
-    def _transport_inputs(self, model, temperature, Na, Nd, n, p, donor, acceptor,
-                          dopant_densities="total", statistics=None, carriers=False):
+    def _transport_inputs(
+        self,
+        model,
+        temperature,
+        Na,
+        Nd,
+        n,
+        p,
+        donor,
+        acceptor,
+        dopant_densities="total",
+        statistics=None,
+        carriers=False,
+    ):
         """Kernel inputs ``{name: (array, min, max)}`` for a mobility model.
 
         Solves the equilibrium once if the model wants ionised densities from the
@@ -148,11 +179,17 @@ class TransportMethods:
         _choice(dopant_densities, "dopant_densities", DOPANT_DENSITIES)
         takes_ionised = model.extra["dopant_densities"] == "ionised"
         if dopant_densities == "ionised" and not takes_ionised:
-            raise InputError("dopant_densities", f"'total' for model mobility/{model.id}, "
-                             "which takes total dopant densities", "'ionised'")
+            raise InputError(
+                "dopant_densities",
+                f"'total' for model mobility/{model.id}, which takes total dopant densities",
+                "'ionised'",
+            )
         if (n is None) != (p is None):
-            raise InputError("n" if n is None else "p", "given together with "
-                             f"{'p' if n is None else 'n'} (or both omitted)", None)
+            raise InputError(
+                "n" if n is None else "p",
+                f"given together with {'p' if n is None else 'n'} (or both omitted)",
+                None,
+            )
         wants_carriers = carriers or "electron_density" in model.inputs
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
         ionise = takes_ionised and dopant_densities == "total"
@@ -171,8 +208,19 @@ class TransportMethods:
         shape = np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
         return np.broadcast_to(np.asarray(value, dtype=float), shape)
 
-    def mobility(self, carrier, temperature, Na=0, Nd=0, n=None, p=None, *,
-                 donor="phosphorus", acceptor="boron", dopant_densities="total"):
+    def mobility(
+        self,
+        carrier,
+        temperature,
+        Na=0,
+        Nd=0,
+        n=None,
+        p=None,
+        *,
+        donor="phosphorus",
+        acceptor="boron",
+        dopant_densities="total",
+    ):
         """Low-field mobility of electrons or holes, majority or minority, cm^2/(V s).
 
         Parameters
@@ -197,13 +245,27 @@ class TransportMethods:
         donor = dopant_species(donor, "donor", "donor")
         acceptor = dopant_species(acceptor, "acceptor", "acceptor")
         model = self._mobility_model(carrier, donor, acceptor)
-        prepared = self._transport_inputs(model, temperature, Na, Nd, n, p, donor, acceptor,
-                                          dopant_densities)
-        return quantity(self._broadcast_all(self._call(model, prepared), prepared),
-                        model.output_units)
+        prepared = self._transport_inputs(
+            model, temperature, Na, Nd, n, p, donor, acceptor, dopant_densities
+        )
+        return quantity(
+            self._broadcast_all(self._call(model, prepared), prepared), model.output_units
+        )
 
-    def high_field_mobility(self, carrier, field, temperature, Na=0, Nd=0, n=None, p=None, *,
-                            donor="phosphorus", acceptor="boron", dopant_densities="total"):
+    def high_field_mobility(
+        self,
+        carrier,
+        field,
+        temperature,
+        Na=0,
+        Nd=0,
+        n=None,
+        p=None,
+        *,
+        donor="phosphorus",
+        acceptor="boron",
+        dopant_densities="total",
+    ):
         """Mobility in an electric field, cm^2/(V s): the release's low-field
         :meth:`mobility` carried to high field with the Caughey-Thomas form and the
         release's :meth:`saturation_velocity`, ``mu = mu_0 / [1 + (mu_0 E / v_sat)^beta]^(1/beta)``
@@ -214,19 +276,42 @@ class TransportMethods:
         """
         carrier = carrier_name(carrier)
         model = self.model("high_field_mobility").select(carrier)
-        low = self.mobility(carrier, temperature, Na, Nd, n, p, donor=donor,
-                            acceptor=acceptor, dopant_densities=dopant_densities)
+        low = self.mobility(
+            carrier,
+            temperature,
+            Na,
+            Nd,
+            n,
+            p,
+            donor=donor,
+            acceptor=acceptor,
+            dopant_densities=dopant_densities,
+        )
         velocity = self.saturation_velocity(carrier, temperature)
-        prepared = {"field": coerce(field, "field"),
-                    "temperature": coerce(temperature, "temperature"),
-                    "low_field_mobility": _extremes(low.m_as("cm^2/(V*s)")),
-                    "saturation_velocity": _extremes(velocity.m_as("cm/s"))}
-        return quantity(self._broadcast_all(self._call(model, prepared), prepared),
-                        model.output_units)
+        prepared = {
+            "field": coerce(field, "field"),
+            "temperature": coerce(temperature, "temperature"),
+            "low_field_mobility": _extremes(low.m_as("cm^2/(V*s)")),
+            "saturation_velocity": _extremes(velocity.m_as("cm/s")),
+        }
+        return quantity(
+            self._broadcast_all(self._call(model, prepared), prepared), model.output_units
+        )
 
-    def diffusivity(self, carrier, temperature, Na=0, Nd=0, n=None, p=None, *,
-                    donor="phosphorus", acceptor="boron", statistics=None,
-                    dopant_densities="total"):
+    def diffusivity(
+        self,
+        carrier,
+        temperature,
+        Na=0,
+        Nd=0,
+        n=None,
+        p=None,
+        *,
+        donor="phosphorus",
+        acceptor="boron",
+        statistics=None,
+        dopant_densities="total",
+    ):
         """Diffusion coefficient of electrons or holes, cm^2/s (Einstein relation).
 
         ``D = mu kT/q x F_1/2(eta) / F_-1/2(eta)``: the Fermi-Dirac factor (> 1 in
@@ -243,15 +328,29 @@ class TransportMethods:
         fermi_dirac = self._check_statistics(statistics, bound)
         statistics = "fermi-dirac" if fermi_dirac else "boltzmann"
         model = self._mobility_model(carrier, donor, acceptor)
-        prepared = self._transport_inputs(model, temperature, Na, Nd, n, p, donor, acceptor,
-                                          dopant_densities, statistics, carriers=True)
+        prepared = self._transport_inputs(
+            model,
+            temperature,
+            Na,
+            Nd,
+            n,
+            p,
+            donor,
+            acceptor,
+            dopant_densities,
+            statistics,
+            carriers=True,
+        )
         mu = self._broadcast_all(self._call(model, prepared), prepared)
         t = prepared["temperature"][0]
         factor = 1.0
         if fermi_dirac:
             nc, nv = bound.dos(temperature=t)
-            density, states = ((prepared["electron_density"][0], nc) if carrier == "electron"
-                               else (prepared["hole_density"][0], nv))
+            density, states = (
+                (prepared["electron_density"][0], nc)
+                if carrier == "electron"
+                else (prepared["hole_density"][0], nv)
+            )
             with np.errstate(divide="ignore"):
                 factor = einstein_factor(np.log(density) - np.log(states))
         return quantity(mu * BOLTZMANN_EV * t * factor, "cm^2/s")
@@ -260,17 +359,19 @@ class TransportMethods:
     def _conductivity(self, t, nd, na, donor, acceptor, check=True):
         """sigma (S/cm) of equilibrium silicon on plain arrays; validity checked if ``check``."""
         bound = self._carriers()
-        result = bound.equilibrium(t, nd, na, donor, acceptor,
-                                   bound.statistics == "fermi-dirac")
+        result = bound.equilibrium(t, nd, na, donor, acceptor, bound.statistics == "fermi-dirac")
         n, p = result["electron_density"], result["hole_density"]
         mobilities = []
         for carrier in CARRIERS:
             model = self._mobility_model(carrier, donor, acceptor)
             ionised = model.extra["dopant_densities"] == "ionised"
-            values = {"temperature": result["temperature"],
-                      "donor_density": result["ionised_donors"] if ionised else nd,
-                      "acceptor_density": result["ionised_acceptors"] if ionised else na,
-                      "electron_density": n, "hole_density": p}
+            values = {
+                "temperature": result["temperature"],
+                "donor_density": result["ionised_donors"] if ionised else nd,
+                "acceptor_density": result["ionised_acceptors"] if ionised else na,
+                "electron_density": n,
+                "hole_density": p,
+            }
             if check:
                 for name in model.inputs:
                     model.check(name, *_extremes(values[name])[1:], self.strict)
@@ -283,9 +384,11 @@ class TransportMethods:
         bound = self._carriers()
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
         self._check_equilibrium(prepared, donor, acceptor, bound)
-        t, nd, na = np.broadcast_arrays(prepared["temperature"][0],
-                                        prepared["donor_density"][0],
-                                        prepared["acceptor_density"][0])
+        t, nd, na = np.broadcast_arrays(
+            prepared["temperature"][0],
+            prepared["donor_density"][0],
+            prepared["acceptor_density"][0],
+        )
         return t, nd, na, donor, acceptor
 
     def _check_equilibrium(self, prepared, donor, acceptor, bound):
@@ -308,8 +411,9 @@ class TransportMethods:
         t, nd, na, donor, acceptor = self._physics_inputs(temperature, Na, Nd, donor, acceptor)
         return quantity(self._conductivity(t, nd, na, donor, acceptor), "S/cm")
 
-    def resistivity(self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron",
-                    conversion="physics"):
+    def resistivity(
+        self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron", conversion="physics"
+    ):
         """Resistivity of silicon, ohm cm.
 
         ``conversion="physics"`` (default): ``1 / conductivity`` at the temperature
@@ -328,32 +432,35 @@ class TransportMethods:
         donor = dopant_species(donor, "donor", "donor")
         acceptor = dopant_species(acceptor, "acceptor", "acceptor")
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
-        t, nd, na = np.broadcast_arrays(*(prepared[k][0] for k in
-                                          ("temperature", "donor_density", "acceptor_density")))
+        t, nd, na = np.broadcast_arrays(
+            *(prepared[k][0] for k in ("temperature", "donor_density", "acceptor_density"))
+        )
         compensated = (nd > 0) & (na > 0)
         if compensated.any():
-            message = (f"model standard_resistivity/{self.model('standard_resistivity').id}: "
-                       f"the standard conversion covers singly doped silicon; "
-                       f"{np.count_nonzero(compensated)} point(s) with both Na and Nd > 0 "
-                       "are NaN (conversion='physics' handles them)")
+            message = (
+                f"model standard_resistivity/{self.model('standard_resistivity').id}: "
+                f"the standard conversion covers singly doped silicon; "
+                f"{np.count_nonzero(compensated)} point(s) with both Na and Nd > 0 "
+                "are NaN (conversion='physics' handles them)"
+            )
             if self.strict:
                 raise ValidityError(message)
             warn(message, ValidityWarning)
         model = self.model("standard_resistivity")
         out = np.full(t.shape, np.nan)
-        for species, where in ((acceptor, (na > 0) & ~compensated),
-                               (donor, ~(na > 0))):
+        for species, where in ((acceptor, (na > 0) & ~compensated), (donor, ~(na > 0))):
             if not where.any():
                 continue
             chosen = model.select(species)
-            values = {"temperature": _extremes(t[where]),
-                      "dopant_density": _extremes((na if species == acceptor else nd)[where])}
+            values = {
+                "temperature": _extremes(t[where]),
+                "dopant_density": _extremes((na if species == acceptor else nd)[where]),
+            }
             with np.errstate(divide="ignore"):
                 out[where] = self._call(chosen, values)
         return quantity(out, "ohm*cm")
 
-    def doping_from_resistivity(self, resistivity, temperature, dopant, *,
-                                conversion="physics"):
+    def doping_from_resistivity(self, resistivity, temperature, dopant, *, conversion="physics"):
         """Density of one dopant species that gives silicon a resistivity, cm^-3.
 
         Parameters
@@ -381,8 +488,11 @@ class TransportMethods:
         try:
             shape = np.broadcast_shapes(rho[0].shape, t[0].shape)
         except ValueError:
-            raise InputError("resistivity, temperature", "arrays whose shapes broadcast "
-                             "together", f"{rho[0].shape}, {t[0].shape}") from None
+            raise InputError(
+                "resistivity, temperature",
+                "arrays whose shapes broadcast together",
+                f"{rho[0].shape}, {t[0].shape}",
+            ) from None
         if conversion == "standard":
             model = self.model("standard_dopant_density").select(species)
             value = self._call(model, {"temperature": t, "resistivity": rho})
@@ -396,8 +506,11 @@ class TransportMethods:
         # validity of every model on the answer's range (warn, or raise if strict)
         zeros = np.zeros_like(density)
         nd, na = (density, zeros) if kind == "donor" else (zeros, density)
-        prepared = {"temperature": t, "donor_density": _extremes(nd),
-                    "acceptor_density": _extremes(na)}
+        prepared = {
+            "temperature": t,
+            "donor_density": _extremes(nd),
+            "acceptor_density": _extremes(na),
+        }
         self._check_equilibrium(prepared, donor, acceptor, self._carriers())
         for carrier in CARRIERS:
             model = self._mobility_model(carrier, donor, acceptor)
@@ -417,10 +530,17 @@ class TransportMethods:
         if kind == "donor":
             return np.maximum(1e-3 * ni, 1e-30)
         zeros = np.zeros_like(ni)
-        state = {"temperature": temperatures, "donor_density": zeros,
-                 "acceptor_density": zeros, "electron_density": ni, "hole_density": ni}
-        mu = [model(**{k: state[k] for k in model.inputs}) for model in
-              (self._mobility_model(c, donor, acceptor) for c in CARRIERS)]
+        state = {
+            "temperature": temperatures,
+            "donor_density": zeros,
+            "acceptor_density": zeros,
+            "electron_density": ni,
+            "hole_density": ni,
+        }
+        mu = [
+            model(**{k: state[k] for k in model.inputs})
+            for model in (self._mobility_model(c, donor, acceptor) for c in CARRIERS)
+        ]
         root = np.sqrt(np.maximum(mu[0] / mu[1], 1.0))
         return np.maximum(ni * (root - 1.0 / root), 1e-3 * ni)
 
@@ -435,30 +555,37 @@ class TransportMethods:
             density = np.exp(log_n)
             zeros = np.zeros_like(density)
             nd, na = (density, zeros) if kind == "donor" else (zeros, density)
-            sigma = self._conductivity(temperatures[index], nd, na, donor, acceptor,
-                                       check=False)
+            sigma = self._conductivity(temperatures[index], nd, na, donor, acceptor, check=False)
             return -np.log(sigma)
 
         everything = np.arange(target.size)
         low = np.log(self._lowest_density(temperatures, kind, donor, acceptor))
         high = np.full(target.size, np.log(_HIGHEST_DENSITY))
         rho_low, rho_high = log_rho(low, everything), log_rho(high, everything)
-        for bad, limit, what in ((log_target > rho_low, rho_low, "at most"),
-                                 (log_target < rho_high, rho_high, "at least")):
+        for bad, limit, what in (
+            (log_target > rho_low, rho_low, "at most"),
+            (log_target < rho_high, rho_high, "at least"),
+        ):
             if bad.any():
                 i = np.flatnonzero(bad)[0]
-                raise InputError("resistivity", f"{what} {np.exp(limit[i]):.4g} ohm*cm for "
-                                 f"{species}-doped silicon at {temperatures[i]:g} K (what "
-                                 f"{np.exp(low[i]):.3g}-{_HIGHEST_DENSITY:.0e} cm^-3 give)",
-                                 f"{target[i]:g} ohm*cm at point #{i} "
-                                 f"({np.count_nonzero(bad)} point(s) out of reach)")
+                raise InputError(
+                    "resistivity",
+                    f"{what} {np.exp(limit[i]):.4g} ohm*cm for "
+                    f"{species}-doped silicon at {temperatures[i]:g} K (what "
+                    f"{np.exp(low[i]):.3g}-{_HIGHEST_DENSITY:.0e} cm^-3 give)",
+                    f"{target[i]:g} ohm*cm at point #{i} "
+                    f"({np.count_nonzero(bad)} point(s) out of reach)",
+                )
         log_n, converged = resistivity_kernels.solve_decreasing(
-            log_rho, log_target, low, high, f_low=rho_low, f_high=rho_high)
+            log_rho, log_target, low, high, f_low=rho_low, f_high=rho_high
+        )
         if not converged.all():
             bad = np.flatnonzero(~converged)
-            raise SolverError(f"doping_from_resistivity: {bad.size} point(s) did not "
-                              f"converge, e.g. #{bad[0]}: {target[bad[0]]:g} ohm*cm at "
-                              f"{temperatures[bad[0]]:g} K")
+            raise SolverError(
+                f"doping_from_resistivity: {bad.size} point(s) did not "
+                f"converge, e.g. #{bad[0]}: {target[bad[0]]:g} ohm*cm at "
+                f"{temperatures[bad[0]]:g} K"
+            )
         return np.exp(log_n)
 
     # ------------------------------------------------------------------ kernels
@@ -474,8 +601,7 @@ class TransportMethods:
         fixed = dict(fixed)
         carrier = fixed.pop("carrier", None)
         if carrier is None:
-            raise InputError("carrier", f"given for {name} (one of {', '.join(CARRIERS)})",
-                             None)
+            raise InputError("carrier", f"given for {name} (one of {', '.join(CARRIERS)})", None)
         carrier = carrier_name(carrier)
         if name == "mobility":
             donor = dopant_species(fixed.pop("donor", "phosphorus"), "donor", "donor")

@@ -19,32 +19,25 @@ from collections.abc import Iterable, Mapping
 
 import numpy as np
 
-from .catalog import Catalog, Model, default_catalog
-from .errors import DatasetError, InputError, UnknownQuantityError
-from .kernels._blocks import evaluate
-from .methods.carriers import DERIVED as CARRIER_DERIVED
-from .methods.carriers import CarrierMethods
-from .methods.crystal import DERIVED as CRYSTAL_DERIVED
-from .methods.crystal import CrystalMethods
-from .methods.optical import OpticalMethods
-from .methods.recombination import DERIVED as RECOMBINATION_DERIVED
-from .methods.recombination import RecombinationMethods
-from .methods.transport import DERIVED as TRANSPORT_DERIVED
-from .methods.transport import TransportMethods
-from .units import check_broadcast, coerce, quantity
-from .units import name as check_name
-from .units import names as check_names
+from ..catalogue.store import Catalog, Model, default_catalog
+from ..errors import DatasetError, InputError, UnknownQuantityError
+from ..kernels._blocks import evaluate
+from ..units import check_broadcast, coerce, quantity
+from ..units import name as check_name
+from ..units import names as check_names
+from .carriers import CarrierMethods
+from .crystal import CrystalMethods
+from .derived import DERIVED
+from .optical import OpticalMethods
+from .recombination import RecombinationMethods
+from .transport import TransportMethods
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
-# Quantities computed from other quantities' models (no model file of their own):
-# name -> (quantities it is built from, formula shown in the provenance)
-DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED, **TRANSPORT_DERIVED,
-           **RECOMBINATION_DERIVED}
 
-
-class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
-              RecombinationMethods):
+class Silicon(
+    CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods, RecombinationMethods
+):
     """Crystalline silicon as described by one release of matprops.
 
     Parameters
@@ -64,11 +57,17 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
     gives a scalar output. Outputs are pint quantities.
     """
 
-    def __init__(self, release: str | None = None, models: Mapping[str, str] | None = None,
-                 strict: bool = False, catalog: Catalog | None = None):
+    def __init__(
+        self,
+        release: str | None = None,
+        models: Mapping[str, str] | None = None,
+        strict: bool = False,
+        catalog: Catalog | None = None,
+    ):
         self.catalog = catalog or default_catalog()
-        self.release = self.catalog.release(release if release is not None
-                                            else self.catalog.newest_release_id())
+        self.release = self.catalog.release(
+            release if release is not None else self.catalog.newest_release_id()
+        )
         if not isinstance(strict, (bool, np.bool_)):  # strict="no" is not False
             raise InputError("strict", "True or False", repr(strict))
         self.strict = bool(strict)
@@ -78,8 +77,9 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
             if name not in known:
                 raise UnknownQuantityError(name, known, "in models=")
         self._overrides = overrides
-        self.overridden = frozenset(q for q, m in overrides.items()
-                                    if self.release.models.get(q) != m)
+        self.overridden = frozenset(
+            q for q, m in overrides.items() if self.release.models.get(q) != m
+        )
         choice = {**self.release.models, **overrides}
         self._models: dict[str, Model] = {}
         for name in choice:
@@ -97,12 +97,14 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
         if name not in choice:
             raise UnknownQuantityError(name, choice, f"in release {self.release.id}")
         if name in chain:
-            raise InputError("models", "free of circular compositions",
-                             " -> ".join(chain + (name,)))
+            raise InputError(
+                "models", "free of circular compositions", " -> ".join(chain + (name,))
+            )
         model = self.catalog.model(name, choice[name])
         if model.requires:
-            model = model.compose(**{q: self._bind(q, choice, chain + (name,))
-                                     for q in model.requires})
+            model = model.compose(
+                **{q: self._bind(q, choice, chain + (name,)) for q in model.requires}
+            )
         self._models[name] = model
         return model
 
@@ -113,20 +115,23 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
         return {q: m.id for q, m in self._models.items()}
 
     def model(self, name: str) -> Model:
-        """The bound :class:`~matprops.records.Model` serving a quantity."""
+        """The bound :class:`~matprops.catalogue.records.Model` serving a quantity."""
         name = check_name(name)
         if name not in self._models:
             if name in DERIVED:
                 raise UnknownQuantityError(
-                    name, self._models, f"with a model of its own: it is derived from "
-                    f"{' and '.join(DERIVED[name][0])} (see si.provenance({name!r}))")
+                    name,
+                    self._models,
+                    f"with a model of its own: it is derived from "
+                    f"{' and '.join(DERIVED[name][0])} (see si.provenance({name!r}))",
+                )
             raise UnknownQuantityError(name, list(self._models) + list(DERIVED))
         return self._models[name]
 
     def kernel(self, name: str, **fixed):
         """A plain-array callable for a quantity: the door for simulation codes.
 
-        Returns a :class:`~matprops.bound.BoundKernel`: inputs and outputs in the
+        Returns a :class:`~matprops.material.bound.BoundKernel`: inputs and outputs in the
         internal units its docstring and repr list (K, cm^-3, eV, ...), no unit
         handling and no validity check per call (``kernel.check(...)`` validates a
         mesh once), large arrays evaluated in blocks into one output,
@@ -188,8 +193,12 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
         name = check_name(name)
         if name in DERIVED:
             parts, formula = DERIVED[name]
-            record = {"quantity": name, "model": "derived", "formula": formula,
-                      "components": {q: self.provenance(q) for q in parts}}
+            record = {
+                "quantity": name,
+                "model": "derived",
+                "formula": formula,
+                "components": {q: self.provenance(q) for q in parts},
+            }
             note = self._composition_note(name)
             if note:
                 record["composition"] = note
@@ -255,24 +264,31 @@ class Silicon(CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods,
         return compare(self, quantity, models, **grid)
 
     def __repr__(self) -> str:
-        chosen = ", ".join(f"{q}={m.id}{'*' if q in self.overridden else ''}"
-                           for q, m in self._models.items())
-        return (f"<Silicon release {self.release.id} ({self.release.status}); {chosen}"
-                f"{'; * overridden' if self.overridden else ''}>")
+        chosen = ", ".join(
+            f"{q}={m.id}{'*' if q in self.overridden else ''}" for q, m in self._models.items()
+        )
+        return (
+            f"<Silicon release {self.release.id} ({self.release.status}); {chosen}"
+            f"{'; * overridden' if self.overridden else ''}>"
+        )
 
 
 def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
     si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog)
     for name, model in si._models.items():
         if model.sha256 != hashes.get(name):
-            raise DatasetError(model.path, f"has sha256 {model.sha256} here but "
-                               f"{hashes.get(name)} where the material was pickled: "
-                               "the two processes read different data")
+            raise DatasetError(
+                model.path,
+                f"has sha256 {model.sha256} here but "
+                f"{hashes.get(name)} where the material was pickled: "
+                "the two processes read different data",
+            )
     return si
 
 
-def silicon(release: str | None = None, models: Mapping[str, str] | None = None,
-            strict: bool = False) -> Silicon:
+def silicon(
+    release: str | None = None, models: Mapping[str, str] | None = None, strict: bool = False
+) -> Silicon:
     """Silicon as described by a release (newest by default); see :class:`Silicon`."""
     return Silicon(release=release, models=models, strict=strict)
 
@@ -288,4 +304,3 @@ def models(quantity: str | None = None):
     if quantity is None:
         return {q: catalog.model_ids(q) for q in catalog.quantities()}
     return catalog.model_ids(quantity)
-

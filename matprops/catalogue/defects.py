@@ -36,12 +36,13 @@ from pathlib import Path
 
 import numpy as np
 
-from .catalog import Catalog, _parse_toml, default_catalog
-from .errors import DatasetError, InputError, UnknownDefectError
-from .kernels import srh_lifetime as srh
-from .modelfile import _convert, _require, sources_of
+from ..errors import DatasetError, InputError, UnknownDefectError
+from ..kernels import srh_lifetime as srh
+from .fields import convert, require
+from .modelfile import sources_of
 from .records import Source
 from .schema import DEFECT, validate
+from .store import Catalog, _parse_toml, default_catalog
 
 __all__ = ["CrossSection", "Defect", "defect", "describe", "names", "parse"]
 
@@ -67,15 +68,18 @@ class CrossSection:
 
     def __call__(self, temperature):
         """sigma(T) in cm^2."""
-        return srh.cross_section(temperature, value=self.value, law=self.law,
-                                 reference_temperature=self.reference_temperature,
-                                 exponent=self.exponent,
-                                 activation_energy=self.activation_energy)
+        return srh.cross_section(
+            temperature,
+            value=self.value,
+            law=self.law,
+            reference_temperature=self.reference_temperature,
+            exponent=self.exponent,
+            activation_energy=self.activation_energy,
+        )
 
     def describe(self) -> str:
         if self.law == "power":
-            return (f"{self.value:g} cm^2 x (T / {self.reference_temperature:g} K)^"
-                    f"{self.exponent:g}")
+            return f"{self.value:g} cm^2 x (T / {self.reference_temperature:g} K)^{self.exponent:g}"
         if self.law == "activated":
             return f"{self.value:g} cm^2 x exp(-{self.activation_energy:g} eV / kT)"
         return f"{self.value:g} cm^2"
@@ -121,8 +125,7 @@ class Defect:
     def ratio(self, temperature):
         """``k = sigma_n / sigma_p`` at the temperature(s)."""
         if self.absolute:
-            return self.electron_cross_section(temperature) / self.hole_cross_section(
-                temperature)
+            return self.electron_cross_section(temperature) / self.hole_cross_section(temperature)
         return np.full(np.shape(temperature), float(self.cross_section_ratio))
 
     def level_text(self) -> str:
@@ -133,12 +136,14 @@ class Defect:
         return f"E_i {'+' if self.energy >= 0 else '-'} {abs(self.energy):g} eV"
 
     def provenance(self) -> dict:
-        record = {"defect": self.name, "level": self.level_text(),
-                  "level_energy": {"value": self.energy, "units": "eV",
-                                   "measured_from": self.reference},
-                  "thermal_velocity": self.thermal_velocity or "the release's",
-                  "thermal_velocity_convention": self.thermal_velocity_note,
-                  "obtained": self.obtained}
+        record = {
+            "defect": self.name,
+            "level": self.level_text(),
+            "level_energy": {"value": self.energy, "units": "eV", "measured_from": self.reference},
+            "thermal_velocity": self.thermal_velocity or "the release's",
+            "thermal_velocity_convention": self.thermal_velocity_note,
+            "obtained": self.obtained,
+        }
         if self.absolute:
             record["electron_cross_section"] = self.electron_cross_section.describe()
             record["hole_cross_section"] = self.hole_cross_section.describe()
@@ -153,9 +158,13 @@ class Defect:
         if self.additional_sources:
             record["additional_sources"] = [s.as_dict() for s in self.additional_sources]
         if self.temperature_range:
-            record["validity"] = {"temperature": {"min": self.temperature_range[0],
-                                                  "max": self.temperature_range[1],
-                                                  "units": "K"}}
+            record["validity"] = {
+                "temperature": {
+                    "min": self.temperature_range[0],
+                    "max": self.temperature_range[1],
+                    "units": "K",
+                }
+            }
         if self.notes:
             record["notes"] = self.notes
         if self.path is not None:
@@ -168,8 +177,10 @@ class Defect:
 
     def __repr__(self) -> str:
         if self.absolute:
-            capture = (f"sigma_n {self.electron_cross_section.describe()}, "
-                       f"sigma_p {self.hole_cross_section.describe()}")
+            capture = (
+                f"sigma_n {self.electron_cross_section.describe()}, "
+                f"sigma_p {self.hole_cross_section.describe()}"
+            )
         else:
             capture = f"sigma_n/sigma_p = {self.cross_section_ratio:g} (ratio only)"
         cited = f"; {self.source.citation()}" if self.source else "; inline"
@@ -241,29 +252,36 @@ def _number(path, where, value):
 def _quantity(path, where, entry, units):
     if not isinstance(entry, dict):
         raise DatasetError(path, f"{where} must be a table with value and units")
-    _require(path, entry, "value", where=where + ".")
-    _require(path, entry, "units", str, where=where + ".")
-    return _convert(path, where, _number(path, where + ".value", entry["value"]),
-                    entry["units"], units)
+    require(path, entry, "value", where=where + ".")
+    require(path, entry, "units", str, where=where + ".")
+    return convert(
+        path, where, _number(path, where + ".value", entry["value"]), entry["units"], units
+    )
 
 
 def _cross_section_file(path, where, entry) -> CrossSection:
     sigma = _quantity(path, where, entry, "cm^2")
     law = entry.get("law", "constant")
     if law not in srh.LAWS:
-        raise DatasetError(path, f"{where}.law must be one of {', '.join(srh.LAWS)}, "
-                           f"got {law!r}")
+        raise DatasetError(path, f"{where}.law must be one of {', '.join(srh.LAWS)}, got {law!r}")
     kwargs = {}
     if law == "power":
-        kwargs["exponent"] = _number(path, f"{where}.exponent",
-                                     _require(path, entry, "exponent", where=where + "."))
+        kwargs["exponent"] = _number(
+            path, f"{where}.exponent", require(path, entry, "exponent", where=where + ".")
+        )
         kwargs["reference_temperature"] = _quantity(
-            path, f"{where}.reference_temperature",
-            _require(path, entry, "reference_temperature", where=where + "."), "K")
+            path,
+            f"{where}.reference_temperature",
+            require(path, entry, "reference_temperature", where=where + "."),
+            "K",
+        )
     elif law == "activated":
         kwargs["activation_energy"] = _quantity(
-            path, f"{where}.activation_energy",
-            _require(path, entry, "activation_energy", where=where + "."), "eV")
+            path,
+            f"{where}.activation_energy",
+            require(path, entry, "activation_energy", where=where + "."),
+            "eV",
+        )
     if not sigma > 0:
         raise DatasetError(path, f"{where}: a cross-section must be > 0 cm^2")
     return CrossSection(sigma, law, printed=dict(entry), **kwargs)
@@ -271,39 +289,47 @@ def _cross_section_file(path, where, entry) -> CrossSection:
 
 def _build(path: Path, data: Mapping) -> Defect:
     validate(path, data, DEFECT)
-    name = _require(path, data, "name", str)
+    name = require(path, data, "name", str)
     if name != path.stem or not NAME.match(name):
-        raise DatasetError(path, f"field 'name' is {name!r}; it must equal the file name "
-                           "and be lower-case words joined by hyphens")
-    obtained = _require(path, data, "obtained", str)
+        raise DatasetError(
+            path,
+            f"field 'name' is {name!r}; it must equal the file name "
+            "and be lower-case words joined by hyphens",
+        )
+    obtained = require(path, data, "obtained", str)
     if not obtained.strip():
         raise DatasetError(path, "field 'obtained' must say how the numbers were obtained")
-    level = _require(path, data, "level", dict)
-    energy = _quantity(path, "level.energy", _require(path, level, "energy", where="level."),
-                       "eV")
-    reference = _require(path, level, "reference", str, where="level.")
+    level = require(path, data, "level", dict)
+    energy = _quantity(path, "level.energy", require(path, level, "energy", where="level."), "eV")
+    reference = require(path, level, "reference", str, where="level.")
     if reference not in srh.REFERENCES:
-        raise DatasetError(path, f"level.reference must be one of "
-                           f"{', '.join(srh.REFERENCES)}, got {reference!r}")
+        raise DatasetError(
+            path, f"level.reference must be one of {', '.join(srh.REFERENCES)}, got {reference!r}"
+        )
     if reference != "intrinsic" and not 0 < energy < 1.2:
-        raise DatasetError(path, "level.energy must lie inside the gap (0 to about 1.2 eV "
-                           "from its reference edge)")
+        raise DatasetError(
+            path, "level.energy must lie inside the gap (0 to about 1.2 eV from its reference edge)"
+        )
     has_n, has_p = "electron_cross_section" in data, "hole_cross_section" in data
     ratio = data.get("cross_section_ratio")
     if has_n != has_p or (has_n and ratio is not None) or (not has_n and ratio is None):
-        raise DatasetError(path, "give both electron_cross_section and hole_cross_section, "
-                           "or only cross_section_ratio (sigma_n / sigma_p)")
+        raise DatasetError(
+            path,
+            "give both electron_cross_section and hole_cross_section, "
+            "or only cross_section_ratio (sigma_n / sigma_p)",
+        )
     sigma_n = sigma_p = None
     if has_n:
-        sigma_n = _cross_section_file(path, "electron_cross_section",
-                                      data["electron_cross_section"])
+        sigma_n = _cross_section_file(
+            path, "electron_cross_section", data["electron_cross_section"]
+        )
         sigma_p = _cross_section_file(path, "hole_cross_section", data["hole_cross_section"])
     else:
         ratio = _quantity(path, "cross_section_ratio", ratio, "dimensionless")
         if not ratio > 0:
             raise DatasetError(path, "cross_section_ratio must be > 0")
-    velocity = _require(path, data, "thermal_velocity", dict)
-    convention = _require(path, velocity, "convention", str, where="thermal_velocity.")
+    velocity = require(path, data, "thermal_velocity", dict)
+    convention = require(path, velocity, "convention", str, where="thermal_velocity.")
     model = velocity.get("model")
     if model is not None and not isinstance(model, str):
         raise DatasetError(path, "thermal_velocity.model must be a model id (string)")
@@ -311,35 +337,52 @@ def _build(path: Path, data: Mapping) -> Defect:
     temperature_range = None
     validity = data.get("validity", {})
     if validity:
-        entry = _require(path, validity, "temperature", dict, where="validity.")
+        entry = require(path, validity, "temperature", dict, where="validity.")
         for f in ("min", "max", "units"):
-            _require(path, entry, f, where="validity.temperature.")
-        low = _convert(path, "validity.temperature", entry["min"], entry["units"], "K")
-        high = _convert(path, "validity.temperature", entry["max"], entry["units"], "K")
+            require(path, entry, f, where="validity.temperature.")
+        low = convert(path, "validity.temperature", entry["min"], entry["units"], "K")
+        high = convert(path, "validity.temperature", entry["max"], entry["units"], "K")
         if not 0 < low < high:
             raise DatasetError(path, "validity.temperature: need 0 < min < max")
         temperature_range = (low, high)
     aliases = data.get("aliases", [])
     if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
         raise DatasetError(path, "field 'aliases' must be a list of strings")
-    return Defect(name=name, energy=energy, reference=reference,
-                  electron_cross_section=sigma_n, hole_cross_section=sigma_p,
-                  cross_section_ratio=ratio, thermal_velocity=model,
-                  thermal_velocity_note=convention,
-                  description=str(data.get("description", "")), aliases=tuple(aliases),
-                  source=source, additional_sources=extra, obtained=obtained,
-                  notes=str(data.get("notes", "")), temperature_range=temperature_range,
-                  path=path)
+    return Defect(
+        name=name,
+        energy=energy,
+        reference=reference,
+        electron_cross_section=sigma_n,
+        hole_cross_section=sigma_p,
+        cross_section_ratio=ratio,
+        thermal_velocity=model,
+        thermal_velocity_note=convention,
+        description=str(data.get("description", "")),
+        aliases=tuple(aliases),
+        source=source,
+        additional_sources=extra,
+        obtained=obtained,
+        notes=str(data.get("notes", "")),
+        temperature_range=temperature_range,
+        path=path,
+    )
 
 
 # --------------------------------------------------------------------------- inline
 
-_INLINE = {"level", "reference", "electron_cross_section", "hole_cross_section",
-           "cross_section_ratio", "name", "thermal_velocity"}
+_INLINE = {
+    "level",
+    "reference",
+    "electron_cross_section",
+    "hole_cross_section",
+    "cross_section_ratio",
+    "name",
+    "thermal_velocity",
+}
 
 
 def _inline_number(value, argument, units, requirement=None):
-    from .units import coerce
+    from ..units import coerce
 
     array, _, _ = coerce(value, argument, units, requirement)
     if array.ndim:
@@ -349,11 +392,19 @@ def _inline_number(value, argument, units, requirement=None):
 
 def _inline_cross_section(value, argument) -> CrossSection:
     if isinstance(value, Mapping):
-        unknown = set(value) - {"value", "law", "exponent", "reference_temperature",
-                                "activation_energy"}
+        unknown = set(value) - {
+            "value",
+            "law",
+            "exponent",
+            "reference_temperature",
+            "activation_energy",
+        }
         if unknown:
-            raise InputError(argument, "a mapping with value, law and its parameters",
-                             f"unknown key(s) {sorted(unknown)}")
+            raise InputError(
+                argument,
+                "a mapping with value, law and its parameters",
+                f"unknown key(s) {sorted(unknown)}",
+            )
         if "value" not in value:
             raise InputError(argument, "a mapping with a 'value'", repr(dict(value)))
         law = value.get("law", "constant")
@@ -361,14 +412,19 @@ def _inline_cross_section(value, argument) -> CrossSection:
             raise InputError(f"{argument}.law", f"one of {', '.join(srh.LAWS)}", repr(law))
         kwargs = {}
         if law == "power":
-            kwargs["exponent"] = _inline_number(value.get("exponent"), f"{argument}.exponent",
-                                                "dimensionless")
+            kwargs["exponent"] = _inline_number(
+                value.get("exponent"), f"{argument}.exponent", "dimensionless"
+            )
             kwargs["reference_temperature"] = _inline_number(
                 value.get("reference_temperature", 300.0),
-                f"{argument}.reference_temperature", "K", "positive")
+                f"{argument}.reference_temperature",
+                "K",
+                "positive",
+            )
         elif law == "activated":
             kwargs["activation_energy"] = _inline_number(
-                value.get("activation_energy"), f"{argument}.activation_energy", "eV")
+                value.get("activation_energy"), f"{argument}.activation_energy", "eV"
+            )
         sigma = _inline_number(value["value"], argument, "cm^2")
         if not sigma > 0:
             raise InputError(argument, "> 0 cm^2 (a capture cross-section)", f"{sigma:g} cm^2")
@@ -386,50 +442,77 @@ def parse(value, catalog: Catalog | None = None, argument: str = "defect") -> De
     if isinstance(value, str):
         return defect(value, catalog)
     if not isinstance(value, Mapping):
-        raise InputError(argument, "a catalogue name (matprops.defects.names()) or a "
-                         "mapping with level, reference and cross-sections", repr(value))
+        raise InputError(
+            argument,
+            "a catalogue name (matprops.catalogue.defects.names()) or a "
+            "mapping with level, reference and cross-sections",
+            repr(value),
+        )
     unknown = set(value) - _INLINE
     if unknown:
-        raise InputError(argument, f"a mapping with keys among {', '.join(sorted(_INLINE))}",
-                         f"unknown key(s) {sorted(unknown)}")
+        raise InputError(
+            argument,
+            f"a mapping with keys among {', '.join(sorted(_INLINE))}",
+            f"unknown key(s) {sorted(unknown)}",
+        )
     for key in ("level", "reference"):
         if key not in value:
-            raise InputError(f"{argument}.{key}", "given (level in eV; reference one of "
-                             f"{', '.join(srh.REFERENCES)})", "nothing")
+            raise InputError(
+                f"{argument}.{key}",
+                f"given (level in eV; reference one of {', '.join(srh.REFERENCES)})",
+                "nothing",
+            )
     reference = value["reference"]
     if reference not in srh.REFERENCES:
-        raise InputError(f"{argument}.reference", f"one of {', '.join(srh.REFERENCES)}",
-                         repr(reference))
+        raise InputError(
+            f"{argument}.reference", f"one of {', '.join(srh.REFERENCES)}", repr(reference)
+        )
     energy = _inline_number(value["level"], f"{argument}.level", "eV")
     if reference != "intrinsic" and energy <= 0:
-        raise InputError(f"{argument}.level", f"> 0 eV into the gap from the {reference} "
-                         "band edge (a level outside the gap is no recombination centre)",
-                         f"{energy:g} eV")
+        raise InputError(
+            f"{argument}.level",
+            f"> 0 eV into the gap from the {reference} "
+            "band edge (a level outside the gap is no recombination centre)",
+            f"{energy:g} eV",
+        )
     has_n = "electron_cross_section" in value
     has_p = "hole_cross_section" in value
     has_k = "cross_section_ratio" in value
     if not ((has_n and has_p and not has_k) or (has_k and not has_n and not has_p)):
-        raise InputError(argument, "both electron_cross_section and hole_cross_section "
-                         "(cm^2), or only cross_section_ratio (sigma_n / sigma_p)",
-                         f"keys {sorted(value)}")
+        raise InputError(
+            argument,
+            "both electron_cross_section and hole_cross_section "
+            "(cm^2), or only cross_section_ratio (sigma_n / sigma_p)",
+            f"keys {sorted(value)}",
+        )
     sigma_n = sigma_p = ratio = None
     if has_n:
-        sigma_n = _inline_cross_section(value["electron_cross_section"],
-                                        f"{argument}.electron_cross_section")
-        sigma_p = _inline_cross_section(value["hole_cross_section"],
-                                        f"{argument}.hole_cross_section")
+        sigma_n = _inline_cross_section(
+            value["electron_cross_section"], f"{argument}.electron_cross_section"
+        )
+        sigma_p = _inline_cross_section(
+            value["hole_cross_section"], f"{argument}.hole_cross_section"
+        )
     else:
-        ratio = _inline_number(value["cross_section_ratio"], f"{argument}.cross_section_ratio",
-                               "dimensionless")
+        ratio = _inline_number(
+            value["cross_section_ratio"], f"{argument}.cross_section_ratio", "dimensionless"
+        )
         if not ratio > 0:
             raise InputError(f"{argument}.cross_section_ratio", "> 0", f"{ratio:g}")
     model = value.get("thermal_velocity")
     if model is not None and not isinstance(model, str):
-        raise InputError(f"{argument}.thermal_velocity", "a thermal_velocity model id",
-                         repr(model))
-    return Defect(name=str(value.get("name", "inline defect")), energy=energy,
-                  reference=reference, electron_cross_section=sigma_n,
-                  hole_cross_section=sigma_p, cross_section_ratio=ratio,
-                  thermal_velocity=model,
-                  thermal_velocity_note=("the model named by the user" if model else
-                                         "not stated; the release's thermal velocity is used"))
+        raise InputError(f"{argument}.thermal_velocity", "a thermal_velocity model id", repr(model))
+    return Defect(
+        name=str(value.get("name", "inline defect")),
+        energy=energy,
+        reference=reference,
+        electron_cross_section=sigma_n,
+        hole_cross_section=sigma_p,
+        cross_section_ratio=ratio,
+        thermal_velocity=model,
+        thermal_velocity_note=(
+            "the model named by the user"
+            if model
+            else "not stated; the release's thermal velocity is used"
+        ),
+    )

@@ -23,33 +23,58 @@ import dataclasses
 
 import numpy as np
 
-from ..errors import InputError, ValidityError, ValidityWarning, warn
+from ..errors import (
+    InputError,
+    ValidityError,
+    ValidityWarning,
+    warn,
+)
 from ..kernels import equilibrium as equilibrium_kernel
 from ..kernels._blocks import evaluate
 from ..kernels._xp import asfloat, namespace
 from ..kernels.constants import BOLTZMANN_EV
-from ..results import Result
 from ..units import coerce, quantity
+from .results import Result
 
 __all__ = ["DERIVED", "DOPANTS", "CarrierMethods", "Equilibrium", "dopant_species"]
 
 # Dopant species of silicon and which kind each is (a classification, not a coefficient).
-DOPANTS = {"phosphorus": "donor", "arsenic": "donor", "antimony": "donor",
-           "boron": "acceptor", "aluminium": "acceptor", "gallium": "acceptor",
-           "indium": "acceptor"}
-_SYMBOLS = {"p": "phosphorus", "as": "arsenic", "sb": "antimony", "b": "boron",
-            "al": "aluminium", "aluminum": "aluminium", "ga": "gallium", "in": "indium"}
+DOPANTS = {
+    "phosphorus": "donor",
+    "arsenic": "donor",
+    "antimony": "donor",
+    "boron": "acceptor",
+    "aluminium": "acceptor",
+    "gallium": "acceptor",
+    "indium": "acceptor",
+}
+_SYMBOLS = {
+    "p": "phosphorus",
+    "as": "arsenic",
+    "sb": "antimony",
+    "b": "boron",
+    "al": "aluminium",
+    "aluminum": "aluminium",
+    "ga": "gallium",
+    "in": "indium",
+}
 STATISTICS = ("fermi-dirac", "boltzmann")
 
 DERIVED = {
     "effective_intrinsic_density": (
         ("intrinsic_density", "gap_narrowing"),
-        ("ni_eff = ni(T) exp(dEg / 2kT); for an apparent narrowing ni(T) is scaled by "
-         "ni_fit / ni(T_fit), the intrinsic density the narrowing was fitted with")),
+        (
+            "ni_eff = ni(T) exp(dEg / 2kT); for an apparent narrowing ni(T) is scaled by "
+            "ni_fit / ni(T_fit), the intrinsic density the narrowing was fitted with"
+        ),
+    ),
     "equilibrium": (
         ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation"),
-        ("charge neutrality p + Nd+ = n + Na- solved for the Fermi level with "
-         "n = Nc F(eta), p = Nv F(-eta - Eg'/kT), Eg' = kT ln(Nc Nv / ni^2) - dEg")),
+        (
+            "charge neutrality p + Nd+ = n + Na- solved for the Fermi level with "
+            "n = Nc F(eta), p = Nv F(-eta - Eg'/kT), Eg' = kT ln(Nc Nv / ni^2) - dEg"
+        ),
+    ),
 }
 
 
@@ -117,14 +142,19 @@ class _Bound:
         self.uses_carriers = "electron_density" in self.narrowing.inputs
 
     def narrowing_args(self, temperature, donor_density, acceptor_density, n, p):
-        values = {"temperature": temperature, "donor_density": donor_density,
-                  "acceptor_density": acceptor_density, "electron_density": n,
-                  "hole_density": p}
+        values = {
+            "temperature": temperature,
+            "donor_density": donor_density,
+            "acceptor_density": acceptor_density,
+            "electron_density": n,
+            "hole_density": p,
+        }
         return {k: values[k] for k in self.narrowing.inputs}
 
     def shifts(self, temperature, donor_density, acceptor_density, n=None, p=None):
-        return self.narrowing(**self.narrowing_args(temperature, donor_density,
-                                                    acceptor_density, n, p))
+        return self.narrowing(
+            **self.narrowing_args(temperature, donor_density, acceptor_density, n, p)
+        )
 
     def reference_ratio(self):
         """ni_fit / ni(T_fit) for an apparent narrowing, 1 for a physical one."""
@@ -143,10 +173,18 @@ class _Bound:
         energy, share = model(dopant_density=density)
         return (energy, share), model.coefficients["degeneracy"].kernel_value
 
-    def equilibrium(self, temperature, donor_density, acceptor_density, donor="phosphorus",
-                    acceptor="boron", fermi_dirac=True):
-        t, nd, na = np.broadcast_arrays(*(np.asarray(a, dtype=float) for a in
-                                          (temperature, donor_density, acceptor_density)))
+    def equilibrium(
+        self,
+        temperature,
+        donor_density,
+        acceptor_density,
+        donor="phosphorus",
+        acceptor="boron",
+        fermi_dirac=True,
+    ):
+        t, nd, na = np.broadcast_arrays(
+            *(np.asarray(a, dtype=float) for a in (temperature, donor_density, acceptor_density))
+        )
         nc, nv = self.dos(temperature=t)
         donor_level, g_d = self.level(donor, nd)
         acceptor_level, g_a = self.level(acceptor, na)
@@ -160,37 +198,55 @@ class _Bound:
             return lambda n, p: self.shifts(t, nd, na, n, p)
 
         result = equilibrium_kernel.solve(
-            t, nd, na, conduction_states=nc, valence_states=nv,
-            intrinsic_density=self.ni(temperature=t), narrowing=narrowing,
-            narrowing_uses_carriers=self.uses_carriers, donor_level=donor_level,
-            acceptor_level=acceptor_level, donor_degeneracy=g_d, acceptor_degeneracy=g_a,
-            gap_offset=self.gap_offset(t), fermi_dirac=fermi_dirac)
+            t,
+            nd,
+            na,
+            conduction_states=nc,
+            valence_states=nv,
+            intrinsic_density=self.ni(temperature=t),
+            narrowing=narrowing,
+            narrowing_uses_carriers=self.uses_carriers,
+            donor_level=donor_level,
+            acceptor_level=acceptor_level,
+            donor_degeneracy=g_d,
+            acceptor_degeneracy=g_a,
+            gap_offset=self.gap_offset(t),
+            fermi_dirac=fermi_dirac,
+        )
         result["temperature"] = t
         return result
 
-    def effective_intrinsic_density(self, temperature, donor_density, acceptor_density,
-                                    electron_density=None, hole_density=None):
-        xp = namespace(temperature, donor_density, acceptor_density, electron_density,
-                       hole_density)
-        dec, dev = self.shifts(temperature, donor_density, acceptor_density,
-                               electron_density, hole_density)
+    def effective_intrinsic_density(
+        self, temperature, donor_density, acceptor_density, electron_density=None, hole_density=None
+    ):
+        xp = namespace(temperature, donor_density, acceptor_density, electron_density, hole_density)
+        dec, dev = self.shifts(
+            temperature, donor_density, acceptor_density, electron_density, hole_density
+        )
         kt = BOLTZMANN_EV * asfloat(xp, temperature)
-        return (self.ni(temperature=temperature) * float(self.reference_ratio())
-                * xp.exp((dec + dev) / (2.0 * kt)))
+        return (
+            self.ni(temperature=temperature)
+            * float(self.reference_ratio())
+            * xp.exp((dec + dev) / (2.0 * kt))
+        )
 
-    def effective_intrinsic_density_derivatives(self, temperature, donor_density,
-                                                acceptor_density, electron_density=None,
-                                                hole_density=None):
+    def effective_intrinsic_density_derivatives(
+        self, temperature, donor_density, acceptor_density, electron_density=None, hole_density=None
+    ):
         """ni_eff and its partials: ``d ln ni_eff = d ln ni + d(dEc + dEv)/2kT`` with
         ``d/dT`` also taking ``-(dEc + dEv)/2kT^2``."""
-        xp = namespace(temperature, donor_density, acceptor_density, electron_density,
-                       hole_density)
+        xp = namespace(temperature, donor_density, acceptor_density, electron_density, hole_density)
         t = asfloat(xp, temperature)
-        values = {"temperature": temperature, "donor_density": donor_density,
-                  "acceptor_density": acceptor_density, "electron_density": electron_density,
-                  "hole_density": hole_density}
+        values = {
+            "temperature": temperature,
+            "donor_density": donor_density,
+            "acceptor_density": acceptor_density,
+            "electron_density": electron_density,
+            "hole_density": hole_density,
+        }
         (dec, dev), shifts = self.narrowing.derivative(
-            **{k: values[k] for k in self.narrowing.inputs})
+            **{k: values[k] for k in self.narrowing.inputs}
+        )
         ni, slopes = self.ni.derivative(temperature=temperature)
         kt = BOLTZMANN_EV * t
         two_kt = 2.0 * kt
@@ -235,9 +291,14 @@ class CarrierMethods:
     def _inputs(self, **named):
         """Coerce user arguments (``T``, ``Na``, ``Nd``, ``n``, ``p`` ...) and check that
         they broadcast; returns ``{kernel input name: (array, min, max)}``."""
-        kernel_names = {"temperature": "temperature", "Na": "acceptor_density",
-                        "Nd": "donor_density", "n": "electron_density",
-                        "p": "hole_density", "excess": "excess_density"}
+        kernel_names = {
+            "temperature": "temperature",
+            "Na": "acceptor_density",
+            "Nd": "donor_density",
+            "n": "electron_density",
+            "p": "hole_density",
+            "excess": "excess_density",
+        }
         # None means "not given" only for the optional carrier densities n and p;
         # elsewhere coerce says what was received
         named = {k: v for k, v in named.items() if v is not None or k not in ("n", "p")}
@@ -245,10 +306,16 @@ class CarrierMethods:
         try:
             np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
         except ValueError:
-            shapes = ", ".join(f"{name} {np.shape(coerce(value, name)[0])}"
-                               for name, value in named.items() if value is not None)
-            raise InputError(", ".join(n for n, v in named.items() if v is not None),
-                             "arrays whose shapes broadcast together", shapes) from None
+            shapes = ", ".join(
+                f"{name} {np.shape(coerce(value, name)[0])}"
+                for name, value in named.items()
+                if value is not None
+            )
+            raise InputError(
+                ", ".join(n for n, v in named.items() if v is not None),
+                "arrays whose shapes broadcast together",
+                shapes,
+            ) from None
         return prepared
 
     def _check_statistics(self, statistics, bound: _Bound) -> bool:
@@ -256,12 +323,17 @@ class CarrierMethods:
         if statistics is None:
             statistics = bound.statistics
         if statistics not in STATISTICS:
-            raise InputError("statistics", f"one of {', '.join(STATISTICS)} or None "
-                             "(the narrowing model's own)", repr(statistics))
+            raise InputError(
+                "statistics",
+                f"one of {', '.join(STATISTICS)} or None (the narrowing model's own)",
+                repr(statistics),
+            )
         if bound.apparent and statistics != bound.statistics:
-            message = (f"model gap_narrowing/{bound.narrowing.id} is an apparent narrowing "
-                       f"fitted with {bound.statistics} statistics; combined with "
-                       f"{statistics} statistics it counts degeneracy twice")
+            message = (
+                f"model gap_narrowing/{bound.narrowing.id} is an apparent narrowing "
+                f"fitted with {bound.statistics} statistics; combined with "
+                f"{statistics} statistics it counts degeneracy twice"
+            )
             if self.strict:
                 raise ValidityError(message)
             warn(message, ValidityWarning)
@@ -287,14 +359,20 @@ class CarrierMethods:
             if argument in prepared:
                 bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
         self._check_dopants(prepared, donor, acceptor)
-        result = bound.equilibrium(t, prepared["donor_density"][0],
-                                   prepared["acceptor_density"][0], donor, acceptor,
-                                   fermi_dirac)
+        result = bound.equilibrium(
+            t,
+            prepared["donor_density"][0],
+            prepared["acceptor_density"][0],
+            donor,
+            acceptor,
+            fermi_dirac,
+        )
         return result, donor, acceptor, fermi_dirac
 
     # ------------------------------------------------------------------ narrowing
-    def band_edge_shifts(self, temperature, Na=0, Nd=0, n=None, p=None, *,
-                         donor="phosphorus", acceptor="boron"):
+    def band_edge_shifts(
+        self, temperature, Na=0, Nd=0, n=None, p=None, *, donor="phosphorus", acceptor="boron"
+    ):
         """Shifts ``(dEc, dEv)`` of the conduction- and valence-band edges, eV (>= 0).
 
         ``Na``, ``Nd``: total acceptor and donor densities, cm^-3. ``n``, ``p``: free
@@ -310,8 +388,11 @@ class CarrierMethods:
         bound = self._carriers()
         if bound.uses_carriers and (n is None or p is None):
             if n is not None or p is not None:
-                raise InputError("n" if n is None else "p", "given together with "
-                                 f"{'p' if n is None else 'n'} (or both omitted)", None)
+                raise InputError(
+                    "n" if n is None else "p",
+                    f"given together with {'p' if n is None else 'n'} (or both omitted)",
+                    None,
+                )
             result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
             return result["conduction_edge_shift"], result["valence_edge_shift"]
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
@@ -321,8 +402,9 @@ class CarrierMethods:
             dec, dev = np.broadcast_to(dec, shape), np.broadcast_to(dev, shape)
         return dec, dev
 
-    def gap_narrowing(self, temperature, Na=0, Nd=0, n=None, p=None, *,
-                      donor="phosphorus", acceptor="boron"):
+    def gap_narrowing(
+        self, temperature, Na=0, Nd=0, n=None, p=None, *, donor="phosphorus", acceptor="boron"
+    ):
         """Band-gap narrowing, eV (>= 0): the sum of :meth:`band_edge_shifts`.
 
         For an apparent narrowing this is the published dEg (to be used with the
@@ -331,8 +413,9 @@ class CarrierMethods:
         dec, dev = self._edge_shifts(temperature, Na, Nd, n, p, donor, acceptor)
         return quantity(np.add(dec, dev, dtype=float), "eV")
 
-    def effective_intrinsic_density(self, temperature, Na=0, Nd=0, n=None, p=None, *,
-                                    donor="phosphorus", acceptor="boron"):
+    def effective_intrinsic_density(
+        self, temperature, Na=0, Nd=0, n=None, p=None, *, donor="phosphorus", acceptor="boron"
+    ):
         """Effective intrinsic density ``ni_eff = ni exp(dEg / 2kT)``, cm^-3.
 
         Composed from the release's intrinsic density and gap narrowing (its
@@ -342,13 +425,17 @@ class CarrierMethods:
         bound = self._carriers()
         if bound.uses_carriers and (n is None or p is None):
             if n is not None or p is not None:
-                raise InputError("n" if n is None else "p", "given together with "
-                                 f"{'p' if n is None else 'n'} (or both omitted)", None)
+                raise InputError(
+                    "n" if n is None else "p",
+                    f"given together with {'p' if n is None else 'n'} (or both omitted)",
+                    None,
+                )
             result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
             n, p = result["electron_density"], result["hole_density"]
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
-        self.model("intrinsic_density").check("temperature", *prepared["temperature"][1:],
-                                              self.strict)
+        self.model("intrinsic_density").check(
+            "temperature", *prepared["temperature"][1:], self.strict
+        )
         for argument in bound.narrowing.inputs:
             bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
         arrays = {k: v[0] for k, v in prepared.items()}
@@ -369,16 +456,18 @@ class CarrierMethods:
         array, low, high = coerce(N, "N")
         model.check("dopant_density", low, high, self.strict)
         energy, share = model(dopant_density=array)
-        return quantity(np.asarray(energy, float), "eV"), quantity(np.asarray(share, float),
-                                                                    "dimensionless")
+        return quantity(np.asarray(energy, float), "eV"), quantity(
+            np.asarray(share, float), "dimensionless"
+        )
 
     def ionisation_energy(self, N, dopant="phosphorus"):
         """Ionisation energy of a dopant at total density ``N`` (cm^-3), eV."""
         return self.dopant_level(N, dopant)[0]
 
     # ------------------------------------------------------------------ equilibrium
-    def equilibrium(self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron",
-                    statistics=None) -> Equilibrium:
+    def equilibrium(
+        self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron", statistics=None
+    ) -> Equilibrium:
         """Thermal-equilibrium carriers of doped silicon, with incomplete ionisation.
 
         Parameters
@@ -398,14 +487,16 @@ class CarrierMethods:
         Every point meets charge neutrality to 1e-12 relative, or
         :class:`matprops.SolverError` names the points that did not converge.
         """
-        result, donor, acceptor, fermi_dirac = self._solve(temperature, Na, Nd, donor,
-                                                           acceptor, statistics)
+        result, donor, acceptor, fermi_dirac = self._solve(
+            temperature, Na, Nd, donor, acceptor, statistics
+        )
         bound = self._carriers()
         t = result["temperature"]
         kt = BOLTZMANN_EV * t
         dec, dev = result["conduction_edge_shift"], result["valence_edge_shift"]
-        ni_eff = (bound.ni(temperature=t) * bound.reference_ratio()
-                  * np.exp((dec + dev) / (2.0 * kt)))
+        ni_eff = (
+            bound.ni(temperature=t) * bound.reference_ratio() * np.exp((dec + dev) / (2.0 * kt))
+        )
         statistics = "fermi-dirac" if fermi_dirac else "boltzmann"
         provenance = self.provenance("equilibrium")
         provenance["statistics"] = statistics
@@ -413,8 +504,7 @@ class CarrierMethods:
         return Equilibrium(
             temperature=quantity(t, "K"),
             fermi_level=quantity(result["fermi_from_intrinsic"], "eV"),
-            fermi_level_from_conduction_edge=quantity(result["fermi_from_conduction_edge"],
-                                                      "eV"),
+            fermi_level_from_conduction_edge=quantity(result["fermi_from_conduction_edge"], "eV"),
             fermi_level_from_valence_edge=quantity(result["fermi_from_valence_edge"], "eV"),
             electron_density=quantity(result["electron_density"], "cm^-3"),
             hole_density=quantity(result["hole_density"], "cm^-3"),
@@ -424,7 +514,11 @@ class CarrierMethods:
             conduction_edge_shift=quantity(dec, "eV"),
             valence_edge_shift=quantity(dev, "eV"),
             effective_intrinsic_density=quantity(ni_eff, "cm^-3"),
-            statistics=statistics, donor=donor, acceptor=acceptor, provenance=provenance)
+            statistics=statistics,
+            donor=donor,
+            acceptor=acceptor,
+            provenance=provenance,
+        )
 
     def _composition_note(self, name: str) -> str | None:
         """How the narrowing was composed with the intrinsic density (for provenance)."""
@@ -434,11 +528,15 @@ class CarrierMethods:
         if bound.apparent:
             section = bound.narrowing.extra["narrowing"]
             fitted = section["intrinsic_density"]
-            return (f"apparent narrowing {bound.narrowing.id} composed with the intrinsic "
-                    f"density it was fitted with: ni(T) x [{fitted.value:g} cm^-3 / "
-                    f"ni({section['intrinsic_density_temperature']:g} K) = "
-                    f"{bound.reference_ratio():.6g}] x exp(dEg/2kT), ni from "
-                    f"{bound.ni.id}; default statistics {bound.statistics}")
-        return (f"physical narrowing {bound.narrowing.id} composed with the release's "
-                f"intrinsic density {bound.ni.id} as it is; default statistics "
-                f"{bound.statistics}")
+            return (
+                f"apparent narrowing {bound.narrowing.id} composed with the intrinsic "
+                f"density it was fitted with: ni(T) x [{fitted.value:g} cm^-3 / "
+                f"ni({section['intrinsic_density_temperature']:g} K) = "
+                f"{bound.reference_ratio():.6g}] x exp(dEg/2kT), ni from "
+                f"{bound.ni.id}; default statistics {bound.statistics}"
+            )
+        return (
+            f"physical narrowing {bound.narrowing.id} composed with the release's "
+            f"intrinsic density {bound.ni.id} as it is; default statistics "
+            f"{bound.statistics}"
+        )

@@ -39,20 +39,21 @@ from collections.abc import Callable, Mapping
 
 import numpy as np
 
-from .errors import InputError, ValidityWarning
-from .kernels._blocks import BLOCK, evaluate
+from ..errors import InputError, ValidityWarning
+from ..kernels._blocks import BLOCK, evaluate
 
 __all__ = ["BoundKernel"]
 
-_DTYPE_NOTE = ("computes in float64 and returns float64 whatever the input dtype "
-               "(densities squared overflow float32, Auger coefficients underflow it); "
-               "pass out=<float32 array> to store the result in float32")
+_DTYPE_NOTE = (
+    "computes in float64 and returns float64 whatever the input dtype "
+    "(densities squared overflow float32, Auger coefficients underflow it); "
+    "pass out=<float32 array> to store the result in float32"
+)
 
 
 def _foreign(value) -> bool:
     """Whether ``value`` is an array of another array library (not numpy)."""
-    return (hasattr(value, "__array_namespace__")
-            and not isinstance(value, (np.ndarray, np.generic)))
+    return hasattr(value, "__array_namespace__") and not isinstance(value, (np.ndarray, np.generic))
 
 
 class BoundKernel:
@@ -66,7 +67,7 @@ class BoundKernel:
     Attributes
     ----------
     quantity : str
-    model : the bound :class:`~matprops.records.Model` (None for a composition)
+    model : the bound :class:`~matprops.catalogue.records.Model` (None for a composition)
     model_id : str
     inputs : mapping input name -> internal unit string
     output_units : unit string, or tuple of them for a kernel returning a tuple
@@ -75,14 +76,32 @@ class BoundKernel:
     array_api : whether the kernel accepts arrays of any array-API namespace
     """
 
-    def __init__(self, si, quantity: str, function: Callable, inputs: Mapping[str, str],
-                 output_units, *, model=None, model_id: str, citation: str,
-                 validity: Mapping[str, tuple] | None = None, regions=(),
-                 checker: Callable | None = None, derivative: Callable | None = None,
-                 array_api: bool = True, blocked: bool = True, api_units=None,
-                 api_method: str | None = None, numpy_only_reason: str = "",
-                 options: Mapping[str, object] | None = None, optional=(), fixed=None,
-                 description: str = "", returns: str = ""):
+    def __init__(
+        self,
+        si,
+        quantity: str,
+        function: Callable,
+        inputs: Mapping[str, str],
+        output_units,
+        *,
+        model=None,
+        model_id: str,
+        citation: str,
+        validity: Mapping[str, tuple] | None = None,
+        regions=(),
+        checker: Callable | None = None,
+        derivative: Callable | None = None,
+        array_api: bool = True,
+        blocked: bool = True,
+        api_units=None,
+        api_method: str | None = None,
+        numpy_only_reason: str = "",
+        options: Mapping[str, object] | None = None,
+        optional=(),
+        fixed=None,
+        description: str = "",
+        returns: str = "",
+    ):
         self._si = si
         self.quantity = quantity
         self.model = model
@@ -112,36 +131,42 @@ class BoundKernel:
     def _arguments(self, args, kwargs, what="kernel"):
         """Positional and keyword inputs -> (inputs by name, options)."""
         if len(args) > len(self._names):
-            raise TypeError(f"the {self.quantity} {what} takes at most {len(self._names)} "
-                            f"positional inputs ({', '.join(self._names)}); "
-                            f"received {len(args)}")
-        arguments = dict(zip(self._names, args))
+            raise TypeError(
+                f"the {self.quantity} {what} takes at most {len(self._names)} "
+                f"positional inputs ({', '.join(self._names)}); "
+                f"received {len(args)}"
+            )
+        arguments = dict(zip(self._names, args, strict=False))
         options = {}
         for name, value in kwargs.items():
             if name in self.inputs:
                 if name in arguments:
-                    raise TypeError(f"input {name!r} of the {self.quantity} {what} given "
-                                    "twice (by position and by name)")
+                    raise TypeError(
+                        f"input {name!r} of the {self.quantity} {what} given "
+                        "twice (by position and by name)"
+                    )
                 arguments[name] = value
             elif name in self._options:
                 options[name] = value
             else:
-                raise TypeError(f"the {self.quantity} {what} has no input or option "
-                                f"{name!r}; inputs: {', '.join(self._names) or 'none'}"
-                                + (f"; options: {', '.join(self._options)}"
-                                   if self._options else ""))
+                raise TypeError(
+                    f"the {self.quantity} {what} has no input or option "
+                    f"{name!r}; inputs: {', '.join(self._names) or 'none'}"
+                    + (f"; options: {', '.join(self._options)}" if self._options else "")
+                )
         for name in self._names:
             if name not in arguments or arguments[name] is None:
                 if name in self._optional:
                     arguments.pop(name, None)
                     continue
-                raise TypeError(f"the {self.quantity} {what} needs input {name!r} "
-                                f"[{self.inputs[name]}]")
+                raise TypeError(
+                    f"the {self.quantity} {what} needs input {name!r} [{self.inputs[name]}]"
+                )
         return arguments, options
 
     def __call__(self, *args, out=None, **kwargs):
         if not kwargs and len(args) == len(self._names):  # the common call: positional
-            arguments, options = dict(zip(self._names, args)), {}
+            arguments, options = dict(zip(self._names, args, strict=False)), {}
             if self._optional and any(v is None for v in args):
                 arguments, options = self._arguments(args, kwargs)
         else:
@@ -150,8 +175,9 @@ class BoundKernel:
             self._refuse_foreign(arguments)
         if not self._blocked:
             if out is not None:
-                raise TypeError(f"the {self.quantity} kernel returns several fields; "
-                                "out= is not supported")
+                raise TypeError(
+                    f"the {self.quantity} kernel returns several fields; out= is not supported"
+                )
             return self._function(**arguments, **options)
         return evaluate(self._function, arguments, out=out, **options)
 
@@ -162,7 +188,8 @@ class BoundKernel:
                     f"the {self.quantity} kernel ({self.model_id}) takes numpy arrays "
                     f"only: {self._numpy_only_reason}; input {name!r} is a "
                     f"{type(value).__module__}.{type(value).__name__}. Convert it with "
-                    "numpy.asarray (or the library's own to-numpy function) first")
+                    "numpy.asarray (or the library's own to-numpy function) first"
+                )
 
     def derivatives(self, *args, out=None, **kwargs):
         """Value and partial derivatives with respect to every input.
@@ -178,11 +205,13 @@ class BoundKernel:
         (a simulation code reuses them every iteration; fresh arrays cost page faults).
         """
         if self._derivative is None:
-            raise TypeError(f"the {self.quantity} kernel ({self.model_id}) has no "
-                            "derivatives: they are provided for the smooth closed-form "
-                            "models (band gap, narrowing, intrinsic and effective "
-                            "intrinsic density, radiative coefficient, intrinsic "
-                            "lifetime, mobility)")
+            raise TypeError(
+                f"the {self.quantity} kernel ({self.model_id}) has no "
+                "derivatives: they are provided for the smooth closed-form "
+                "models (band gap, narrowing, intrinsic and effective "
+                "intrinsic density, radiative coefficient, intrinsic "
+                "lifetime, mobility)"
+            )
         arguments, options = self._arguments(args, kwargs, "derivatives")
         names = tuple(arguments)
         function = self._derivative
@@ -205,18 +234,18 @@ class BoundKernel:
         if out is not None:
             try:
                 value_out, partial_out = out
-                flat_out = (value_out if width > 1 else (value_out,))
+                flat_out = value_out if width > 1 else (value_out,)
                 for name in names:
-                    flat_out += (tuple(partial_out[name]) if width > 1
-                                 else (partial_out[name],))
+                    flat_out += tuple(partial_out[name]) if width > 1 else (partial_out[name],)
             except (TypeError, ValueError, KeyError):
-                raise TypeError("out must be (value array(s), {input: partial array(s)}) "
-                                f"with a partial for each input given ({', '.join(names)})"
-                                ) from None
+                raise TypeError(
+                    "out must be (value array(s), {input: partial array(s)}) "
+                    f"with a partial for each input given ({', '.join(names)})"
+                ) from None
         parts = evaluate(flat, arguments, out=flat_out)
 
         def pick(k):
-            chunk = parts[k * width:(k + 1) * width]
+            chunk = parts[k * width : (k + 1) * width]
             return chunk if width > 1 else chunk[0]
 
         return pick(0), {name: pick(k + 1) for k, name in enumerate(names)}
@@ -242,7 +271,7 @@ class BoundKernel:
         -------
         list of str : the validity messages (empty when the whole mesh is inside).
         """
-        from .units import ARGUMENTS, check_values
+        from ..units import ARGUMENTS, check_values
 
         arguments, _ = self._arguments(args, kwargs, "check")
         arrays, ranges = {}, {}
@@ -257,8 +286,11 @@ class BoundKernel:
         try:
             np.broadcast_shapes(*shapes)
         except ValueError:
-            raise InputError(", ".join(arrays), "arrays whose shapes broadcast together",
-                             ", ".join(f"{n} {a.shape}" for n, a in arrays.items())) from None
+            raise InputError(
+                ", ".join(arrays),
+                "arrays whose shapes broadcast together",
+                ", ".join(f"{n} {a.shape}" for n, a in arrays.items()),
+            ) from None
         strict = self._si.strict if strict is None else bool(strict)
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always", ValidityWarning)
@@ -290,9 +322,14 @@ class BoundKernel:
     def _document(self) -> str:
         units = self.output_units
         shown = " and ".join(units) if isinstance(units, tuple) else units
-        lines = [(f"Bound kernel of {self.quantity}: model {self.model_id} "
-                  f"(release {self._si.release.id})."), "",
-                 f"kernel{self._signature()} -> {self._returns or shown}"]
+        lines = [
+            (
+                f"Bound kernel of {self.quantity}: model {self.model_id} "
+                f"(release {self._si.release.id})."
+            ),
+            "",
+            f"kernel{self._signature()} -> {self._returns or shown}",
+        ]
         if self._description:
             lines += ["", self._description]
         lines += ["", "Inputs (internal units; floats or arrays that broadcast)"]
@@ -305,48 +342,71 @@ class BoundKernel:
             lines.append(f"    validity region: {region}")
         lines += ["", f"Output: {shown}"]
         if self.api_units != self.output_units:
-            api = (" and ".join(self.api_units) if isinstance(self.api_units, tuple)
-                   else self.api_units)
-            lines.append(f"    NOTE: units differ from the public method: this kernel "
-                         f"returns {shown}, si.{self.api_method}() returns {api}.")
+            api = (
+                " and ".join(self.api_units)
+                if isinstance(self.api_units, tuple)
+                else self.api_units
+            )
+            lines.append(
+                f"    NOTE: units differ from the public method: this kernel "
+                f"returns {shown}, si.{self.api_method}() returns {api}."
+            )
         else:
             lines.append(f"    (the same units as si.{self.api_method}())")
         if self._options:
-            lines += ["", "Options: " + ", ".join(f"{k}={v!r}" for k, v in
-                                                  self._options.items())]
-        lines += ["", "Model: " + self.model_id, "    " + self.citation, "",
-                  ("No unit handling and no validity check per call: call "
-                   "kernel.check(...) once on your mesh (ranges and validity regions); "
-                   "kernel.provenance holds the full record."),
-                  f"dtype: {_DTYPE_NOTE}.",
-                  f"Memory: numpy inputs above {BLOCK} points are evaluated in blocks "
-                  "into one output (out= to supply it)."
-                  if self._blocked else
-                  "Memory: the solver works in blocks of its own; out= is not supported.",
-                  ("Array API: accepts any array-API-standard array (computed in its "
-                   "namespace, unblocked)." if self.array_api else
-                   f"Array API: numpy arrays only ({self._numpy_only_reason}); other "
-                   "arrays raise TypeError."),
-                  ("Derivatives: kernel.derivatives(...) -> (value, {input: partial})."
-                   if self._derivative is not None else "Derivatives: none.")]
+            lines += ["", "Options: " + ", ".join(f"{k}={v!r}" for k, v in self._options.items())]
+        lines += [
+            "",
+            "Model: " + self.model_id,
+            "    " + self.citation,
+            "",
+            (
+                "No unit handling and no validity check per call: call "
+                "kernel.check(...) once on your mesh (ranges and validity regions); "
+                "kernel.provenance holds the full record."
+            ),
+            f"dtype: {_DTYPE_NOTE}.",
+            f"Memory: numpy inputs above {BLOCK} points are evaluated in blocks "
+            "into one output (out= to supply it)."
+            if self._blocked
+            else "Memory: the solver works in blocks of its own; out= is not supported.",
+            (
+                "Array API: accepts any array-API-standard array (computed in its "
+                "namespace, unblocked)."
+                if self.array_api
+                else f"Array API: numpy arrays only ({self._numpy_only_reason}); other "
+                "arrays raise TypeError."
+            ),
+            (
+                "Derivatives: kernel.derivatives(...) -> (value, {input: partial})."
+                if self._derivative is not None
+                else "Derivatives: none."
+            ),
+        ]
         if self.model is not None and self.model.kernel.__doc__:
-            lines += ["", "The model's kernel:", "",
-                      inspect.cleandoc(self.model.kernel.__doc__)]
+            lines += ["", "The model's kernel:", "", inspect.cleandoc(self.model.kernel.__doc__)]
         return "\n".join(lines)
 
     def __repr__(self) -> str:
         units = self.output_units
         shown = ", ".join(units) if isinstance(units, tuple) else units
         inputs = ", ".join(f"{n} [{u}]" for n, u in self.inputs.items())
-        valid = "; ".join(f"{n} {lo:g}-{hi:g} {self.inputs.get(n, '')}".rstrip()
-                          for n, (lo, hi) in self._validity.items()) or "no limits"
+        valid = (
+            "; ".join(
+                f"{n} {lo:g}-{hi:g} {self.inputs.get(n, '')}".rstrip()
+                for n, (lo, hi) in self._validity.items()
+            )
+            or "no limits"
+        )
         note = ""
         if self.api_units != self.output_units:
             note = f" (NOTE: si.{self.api_method}() returns {self.api_units})"
         fixed = "".join(f", {k}={v!r}" for k, v in self._fixed.items())
-        return (f"<BoundKernel {self.quantity}/{self.model_id}{fixed}: ({inputs}) -> "
-                f"[{shown}]{note}; valid {valid}; release {self._si.release.id}; "
-                f"{self.citation}>")
+        return (
+            f"<BoundKernel {self.quantity}/{self.model_id}{fixed}: ({inputs}) -> "
+            f"[{shown}]{note}; valid {valid}; release {self._si.release.id}; "
+            f"{self.citation}>"
+        )
 
     # ------------------------------------------------------------------ compatibility
     def __getattr__(self, name):
@@ -375,7 +435,7 @@ def _to_numpy(value):
     """An array of another array library as a numpy array (for checks only)."""
     try:
         return np.asarray(value)
-    except Exception:  # noqa: BLE001 - e.g. array_api_strict refuses __array__
+    except Exception:
         return np.from_dlpack(value)
 
 
@@ -385,13 +445,17 @@ def _to_numpy(value):
 _API_UNITS = {"lattice_constant": "nm"}
 _API_METHOD = {"gap_narrowing": "band_edge_shifts", "ionisation": "dopant_level"}
 _DESCRIPTIONS = {
-    "gap_narrowing": ("Returns the pair (conduction-edge shift, valence-edge shift), each "
-                      ">= 0; si.gap_narrowing() returns their sum, si.band_edge_shifts() "
-                      "the pair."),
+    "gap_narrowing": (
+        "Returns the pair (conduction-edge shift, valence-edge shift), each "
+        ">= 0; si.gap_narrowing() returns their sum, si.band_edge_shifts() "
+        "the pair."
+    ),
     "ionisation": "Returns (ionisation energy [eV], share of states still localised [1]).",
     "densities_of_states": "Returns (Nc, Nv).",
-    "intrinsic_lifetime": ("Option part='total' (Auger + radiative), 'auger' or "
-                           "'radiative': the lifetime of that part alone."),
+    "intrinsic_lifetime": (
+        "Option part='total' (Auger + radiative), 'auger' or "
+        "'radiative': the lifetime of that part alone."
+    ),
 }
 _TABLE_REASON = "it interpolates measured tables with numpy's searchsorted and interp"
 _SOLVER_REASON = "an iterative Newton solver working on numpy blocks"
@@ -399,9 +463,9 @@ _SOLVER_REASON = "an iterative Newton solver working on numpy blocks"
 
 def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
     """The :class:`BoundKernel` of quantity ``name`` for ``si`` (see ``Silicon.kernel``)."""
-    from .errors import InputError
-    from .methods.carriers import dopant_species
-    from .methods.transport import KERNELS as TRANSPORT_KERNELS
+    from ..errors import InputError
+    from .carriers import dopant_species
+    from .transport import KERNELS as TRANSPORT_KERNELS
 
     fixed = dict(fixed)
     if name == "equilibrium":
@@ -409,8 +473,9 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
     if name == "effective_intrinsic_density":
         if fixed:
             key = min(fixed)
-            raise InputError(key, "not an option of the effective_intrinsic_density kernel",
-                             fixed[key])
+            raise InputError(
+                key, "not an option of the effective_intrinsic_density kernel", fixed[key]
+            )
         return _effective_intrinsic_density_kernel(si)
     if name in TRANSPORT_KERNELS:
         model = si._transport_kernel(name, fixed)
@@ -419,8 +484,9 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
     if model.variant_axis == "dopant":
         species = fixed.pop("dopant", None)
         if species is None:
-            raise InputError("dopant", f"given for {name} (one of "
-                             f"{', '.join(model.variants)})", None)
+            raise InputError(
+                "dopant", f"given for {name} (one of {', '.join(model.variants)})", None
+            )
         species = dopant_species(species, "dopant")
         model = model.select(species)
         chosen = {"dopant": species}
@@ -441,8 +507,9 @@ def _model_checker(models, strict_default=None):
                 if argument in ranges and ranges[argument][0] <= ranges[argument][1]:
                     model.check(argument, *ranges[argument], strict)
             if model.regions:
-                model.check_regions({k: arrays[k] for k in model.inputs if k in arrays},
-                                    strict, ranges)
+                model.check_regions(
+                    {k: arrays[k] for k in model.inputs if k in arrays}, strict, ranges
+                )
 
     return check
 
@@ -465,10 +532,12 @@ def _options(model) -> dict:
     spec = model.kernel.spec
     options = {}
     for parameter in inspect.signature(model.kernel).parameters.values():
-        if (parameter.kind is parameter.KEYWORD_ONLY
-                and parameter.default is not parameter.empty
-                and parameter.name not in spec.coefficients
-                and parameter.name not in spec.requires):
+        if (
+            parameter.kind is parameter.KEYWORD_ONLY
+            and parameter.default is not parameter.empty
+            and parameter.name not in spec.coefficients
+            and parameter.name not in spec.requires
+        ):
             options[parameter.name] = parameter.default
     return options
 
@@ -476,58 +545,92 @@ def _options(model) -> dict:
 def _model_kernel(si, name, model, fixed) -> BoundKernel:
     table = model.kind == "table"
     return BoundKernel(
-        si, name, model.function or model, model.inputs, model.output_units, model=model,
+        si,
+        name,
+        model.function or model,
+        model.inputs,
+        model.output_units,
+        model=model,
         model_id=model.id,
-        citation=model.source.citation(), validity=_validity([model]),
-        regions=model.regions, checker=_model_checker([model]),
-        derivative=model.derivative, array_api=model.array_api,
-        api_units=_API_UNITS.get(name), api_method=_API_METHOD.get(name),
-        numpy_only_reason=(_TABLE_REASON if table else
-                           "it interpolates coefficients published at a few wavelengths "
-                           "with numpy indexing"),
-        options=_options(model), fixed=fixed, description=_DESCRIPTIONS.get(name, ""))
+        citation=model.source.citation(),
+        validity=_validity([model]),
+        regions=model.regions,
+        checker=_model_checker([model]),
+        derivative=model.derivative,
+        array_api=model.array_api,
+        api_units=_API_UNITS.get(name),
+        api_method=_API_METHOD.get(name),
+        numpy_only_reason=(
+            _TABLE_REASON
+            if table
+            else "it interpolates coefficients published at a few wavelengths with numpy indexing"
+        ),
+        options=_options(model),
+        fixed=fixed,
+        description=_DESCRIPTIONS.get(name, ""),
+    )
 
 
 def _effective_intrinsic_density_kernel(si) -> BoundKernel:
     bound = si._carriers()
-    inputs = {"temperature": "K", "donor_density": "cm^-3", "acceptor_density": "cm^-3",
-              "electron_density": "cm^-3", "hole_density": "cm^-3"}
+    inputs = {
+        "temperature": "K",
+        "donor_density": "cm^-3",
+        "acceptor_density": "cm^-3",
+        "electron_density": "cm^-3",
+        "hole_density": "cm^-3",
+    }
     optional = () if bound.uses_carriers else ("electron_density", "hole_density")
     models = [bound.ni, bound.narrowing]
     citation = "; ".join(dict.fromkeys(m.source.citation() for m in models))
-    carriers = ("the free-carrier densities n and p are required (the narrowing "
-                f"{bound.narrowing.id} depends on them)" if bound.uses_carriers else
-                f"electron_density and hole_density are ignored (the narrowing "
-                f"{bound.narrowing.id} does not depend on them)")
+    carriers = (
+        "the free-carrier densities n and p are required (the narrowing "
+        f"{bound.narrowing.id} depends on them)"
+        if bound.uses_carriers
+        else f"electron_density and hole_density are ignored (the narrowing "
+        f"{bound.narrowing.id} does not depend on them)"
+    )
     return BoundKernel(
-        si, "effective_intrinsic_density", bound.effective_intrinsic_density, inputs,
-        "cm^-3", model=None, model_id=f"derived ({bound.ni.id} x {bound.narrowing.id})",
-        citation=citation, validity=_validity(models), checker=_model_checker(models),
-        derivative=(bound.effective_intrinsic_density_derivatives
-                    if bound.ni.derivative is not None
-                    and bound.narrowing.derivative is not None else None),
+        si,
+        "effective_intrinsic_density",
+        bound.effective_intrinsic_density,
+        inputs,
+        "cm^-3",
+        model=None,
+        model_id=f"derived ({bound.ni.id} x {bound.narrowing.id})",
+        citation=citation,
+        validity=_validity(models),
+        checker=_model_checker(models),
+        derivative=(
+            bound.effective_intrinsic_density_derivatives
+            if bound.ni.derivative is not None and bound.narrowing.derivative is not None
+            else None
+        ),
         array_api=bound.ni.array_api and bound.narrowing.array_api,
-        numpy_only_reason="one of its models takes numpy arrays only", optional=optional,
-        description=("ni_eff = ni(T) x ratio x exp((dEc + dEv) / 2kT), composed as "
-                     "si.effective_intrinsic_density() does (see its provenance); "
-                     + carriers + "."))
+        numpy_only_reason="one of its models takes numpy arrays only",
+        optional=optional,
+        description=(
+            "ni_eff = ni(T) x ratio x exp((dEc + dEv) / 2kT), composed as "
+            "si.effective_intrinsic_density() does (see its provenance); " + carriers + "."
+        ),
+    )
 
 
 def _equilibrium_kernel(si, fixed) -> BoundKernel:
-    from .errors import InputError
-    from .methods.carriers import dopant_species
+    from ..errors import InputError
+    from .carriers import dopant_species
 
     unknown = set(fixed) - {"donor", "acceptor", "statistics"}
     if unknown:
-        raise InputError(min(unknown), "one of donor, acceptor, statistics",
-                         fixed[min(unknown)])
+        raise InputError(min(unknown), "one of donor, acceptor, statistics", fixed[min(unknown)])
     bound = si._carriers()
     statistics = fixed.get("statistics") or bound.statistics
     donor = dopant_species(fixed.get("donor", "phosphorus"), "donor", "donor")
     acceptor = dopant_species(fixed.get("acceptor", "boron"), "acceptor", "acceptor")
     fermi_dirac = si._check_statistics(statistics, bound)
-    function = functools.partial(bound.equilibrium, donor=donor, acceptor=acceptor,
-                                 fermi_dirac=fermi_dirac)
+    function = functools.partial(
+        bound.equilibrium, donor=donor, acceptor=acceptor, fermi_dirac=fermi_dirac
+    )
     models = [bound.dos, bound.ni, bound.narrowing]
     donor_model = bound.ionisation.select(donor)
     acceptor_model = bound.ionisation.select(acceptor)
@@ -535,8 +638,7 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
 
     def check(arrays, ranges, strict):
         base(arrays, ranges, strict)
-        for model, key in ((donor_model, "donor_density"), (acceptor_model,
-                                                            "acceptor_density")):
+        for model, key in ((donor_model, "donor_density"), (acceptor_model, "acceptor_density")):
             low, high = ranges[key]
             if low <= high:
                 model.check("dopant_density", low, high, strict)
@@ -546,21 +648,35 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
     validity.pop("hole_density", None)
     ids = ", ".join(f"{m.quantity} {m.id}" for m in (*models, bound.ionisation))
     return BoundKernel(
-        si, "equilibrium", function,
+        si,
+        "equilibrium",
+        function,
         {"temperature": "K", "donor_density": "cm^-3", "acceptor_density": "cm^-3"},
-        "dict", model=None, model_id=f"derived ({ids})",
-        citation="; ".join(dict.fromkeys(m.source.citation()
-                                         for m in (*models, bound.ionisation))),
-        validity=validity, checker=check, array_api=False, blocked=True,
+        "dict",
+        model=None,
+        model_id=f"derived ({ids})",
+        citation="; ".join(dict.fromkeys(m.source.citation() for m in (*models, bound.ionisation))),
+        validity=validity,
+        checker=check,
+        array_api=False,
+        blocked=True,
         numpy_only_reason=_SOLVER_REASON,
-        fixed={"donor": donor, "acceptor": acceptor,
-               "statistics": "fermi-dirac" if fermi_dirac else "boltzmann"},
-        returns=("dict of arrays: electron_density, hole_density, ionised_donors, "
-                 "ionised_acceptors [cm^-3]; conduction_edge_shift, valence_edge_shift, "
-                 "fermi_from_conduction_edge, fermi_from_valence_edge, "
-                 "fermi_from_intrinsic [eV]; reduced_fermi_level, residual [1]; "
-                 "temperature [K]"),
-        description=(f"Charge neutrality with {'Fermi-Dirac' if fermi_dirac else 'Boltzmann'}"
-                     f" statistics, donor {donor}, acceptor {acceptor}: the solver of "
-                     "si.equilibrium() on plain arrays; every point converges to 1e-12 "
-                     "relative neutrality or SolverError names those that did not."))
+        fixed={
+            "donor": donor,
+            "acceptor": acceptor,
+            "statistics": "fermi-dirac" if fermi_dirac else "boltzmann",
+        },
+        returns=(
+            "dict of arrays: electron_density, hole_density, ionised_donors, "
+            "ionised_acceptors [cm^-3]; conduction_edge_shift, valence_edge_shift, "
+            "fermi_from_conduction_edge, fermi_from_valence_edge, "
+            "fermi_from_intrinsic [eV]; reduced_fermi_level, residual [1]; "
+            "temperature [K]"
+        ),
+        description=(
+            f"Charge neutrality with {'Fermi-Dirac' if fermi_dirac else 'Boltzmann'}"
+            f" statistics, donor {donor}, acceptor {acceptor}: the solver of "
+            "si.equilibrium() on plain arrays; every point converges to 1e-12 "
+            "relative neutrality or SolverError names those that did not."
+        ),
+    )

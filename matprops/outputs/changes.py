@@ -1,6 +1,6 @@
 """What changed between two releases: their model choices, and the largest deviation
 of each quantity on the releases' standard reference grid
-(:data:`matprops.reference.CASES`).
+(:data:`matprops.outputs.reference.CASES`).
 
     matprops release-diff 2026.1 2026.2
 """
@@ -11,7 +11,7 @@ import warnings
 
 import numpy as np
 
-from .errors import ValidityWarning
+from ..errors import ValidityWarning
 
 __all__ = ["release_difference"]
 
@@ -22,12 +22,12 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
     Returns a dict with ``models``: one record per quantity (the model in each
     release, ``changed`` when the model id or its file differs), and
     ``deviations``: for every case of the standard reference grid
-    (:data:`matprops.reference.CASES`) that both releases evaluate, the largest
+    (:data:`matprops.outputs.reference.CASES`) that both releases evaluate, the largest
     relative deviation ``|new/old - 1|``, the largest absolute deviation with units,
     and the grid point where the relative one occurs.
     """
-    from .catalog import default_catalog, sha256_of
-    from .material import Silicon
+    from ..catalogue.store import default_catalog, sha256_of
+    from ..material.silicon import Silicon
     from .reference import evaluate
 
     catalog = catalog or default_catalog()
@@ -37,8 +37,10 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
     for quantity in sorted(set(releases[old].models) | set(releases[new].models)):
         before, after = releases[old].models.get(quantity), releases[new].models.get(quantity)
         record = {"quantity": quantity, "old": before, "new": after}
-        files = [sha256_of(silicon[r].model(quantity).path) if m else None
-                 for r, m in ((old, before), (new, after))]
+        files = [
+            sha256_of(silicon[r].model(quantity).path) if m else None
+            for r, m in ((old, before), (new, after))
+        ]
         record["changed"] = before != after or files[0] != files[1]
         models.append(record)
     with warnings.catch_warnings():
@@ -50,12 +52,19 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
         for index, (va, vb) in enumerate(zip(a["values"], b["values"], strict=False)):
             va, vb = np.asarray(va, float), np.asarray(vb, float)
             both = np.isfinite(va) & np.isfinite(vb)
-            record = {"case": label if len(a["values"]) == 1 else f"{label}[{index}]",
-                      "units": a["units"][index], "points": int(va.size),
-                      "compared": int(both.sum())}
+            record = {
+                "case": label if len(a["values"]) == 1 else f"{label}[{index}]",
+                "units": a["units"][index],
+                "points": int(va.size),
+                "compared": int(both.sum()),
+            }
             if a["units"][index] != b["units"][index] or va.shape != vb.shape:
-                record.update(largest_relative=None, largest_absolute=None, at=None,
-                              note="units or grid differ between the releases")
+                record.update(
+                    largest_relative=None,
+                    largest_absolute=None,
+                    at=None,
+                    note="units or grid differ between the releases",
+                )
             elif not both.any():
                 record.update(largest_relative=None, largest_absolute=None, at=None)
             else:
@@ -70,7 +79,10 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
                     for n, i in zip(names, np.unravel_index(worst, shape), strict=True):
                         point[n] = a["grid"][n][i]
                 point.update(a["fixed"])
-                record.update(largest_relative=float(rel.max()),
-                              largest_absolute=float(absolute.max()), at=point)
+                record.update(
+                    largest_relative=float(rel.max()),
+                    largest_absolute=float(absolute.max()),
+                    at=point,
+                )
             deviations.append(record)
     return {"old": old, "new": new, "models": models, "deviations": deviations}

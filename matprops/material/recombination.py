@@ -38,14 +38,20 @@ from collections.abc import Mapping
 
 import numpy as np
 
-from .. import defects as defect_catalogue
-from ..errors import InputError, UnitError, ValidityError, ValidityWarning, warn
+from ..catalogue import defects as defect_catalogue
+from ..errors import (
+    InputError,
+    UnitError,
+    ValidityError,
+    ValidityWarning,
+    warn,
+)
 from ..kernels import implied_voltage as voltage_kernel
 from ..kernels import srh_lifetime as srh
 from ..kernels._blocks import evaluate
 from ..kernels.constants import ELEMENTARY_CHARGE
-from ..results import Result
 from ..units import coerce, quantity, unit
+from .results import Result
 
 __all__ = ["DERIVED", "ImpliedVoltage", "Lifetimes", "RecombinationMethods"]
 
@@ -55,22 +61,31 @@ _SRH = ("srh_lifetime", "thermal_velocity", "band_gap")
 DERIVED = {
     "auger_lifetime": (
         ("intrinsic_lifetime", *_EQUILIBRIUM),
-        "the Auger part of the intrinsic-lifetime model alone: 1/[(n0 + p0 + dn) A]"),
+        "the Auger part of the intrinsic-lifetime model alone: 1/[(n0 + p0 + dn) A]",
+    ),
     "effective_lifetime": (
         ("intrinsic_lifetime", *_SRH, *_EQUILIBRIUM),
-        ("1/tau_eff = 1/tau_intrinsic + sum over defects of 1/tau_SRH, at the same excess "
-         "density; no surface recombination")),
+        (
+            "1/tau_eff = 1/tau_intrinsic + sum over defects of 1/tau_SRH, at the same excess "
+            "density; no surface recombination"
+        ),
+    ),
     "implied_voltage": (
         ("intrinsic_lifetime", *_SRH, *_EQUILIBRIUM),
-        ("steady state G = dn/tau_eff(dn) with G the generation per area over the "
-         "thickness (uniform generation, flat carrier profile), then "
-         "V = (kT/q) ln[(n0 + dn)(p0 + dn)/(n0 p0)]")),
+        (
+            "steady state G = dn/tau_eff(dn) with G the generation per area over the "
+            "thickness (uniform generation, flat carrier profile), then "
+            "V = (kT/q) ln[(n0 + dn)(p0 + dn)/(n0 p0)]"
+        ),
+    ),
 }
 
-ASSUMPTIONS = ("steady state; generation uniform through the thickness; flat carrier "
-               "profile (diffusion length well above the thickness) and no surface "
-               "recombination; dn = dp (no trapping); Boltzmann statistics for the "
-               "quasi-Fermi-level splitting, with the narrowing of equilibrium")
+ASSUMPTIONS = (
+    "steady state; generation uniform through the thickness; flat carrier "
+    "profile (diffusion length well above the thickness) and no surface "
+    "recombination; dn = dp (no trapping); Boltzmann statistics for the "
+    "quasi-Fermi-level splitting, with the narrowing of equilibrium"
+)
 
 
 @dataclasses.dataclass(frozen=True, repr=False)
@@ -139,9 +154,12 @@ class _State:
     ranges: dict  # kernel input -> (min, max), for the validity checks
 
     def kernel_inputs(self, excess=None):
-        return {"temperature": self.temperature, "equilibrium_electron_density": self.n0,
-                "equilibrium_hole_density": self.p0,
-                "excess_density": self.excess if excess is None else excess}
+        return {
+            "temperature": self.temperature,
+            "equilibrium_electron_density": self.n0,
+            "equilibrium_hole_density": self.p0,
+            "excess_density": self.excess if excess is None else excess,
+        }
 
 
 class RecombinationMethods:
@@ -158,8 +176,9 @@ class RecombinationMethods:
         return self._quantity("radiative_coefficient", temperature=temperature)
 
     # ------------------------------------------------------------------ state
-    def _recombination_state(self, temperature, Na, Nd, excess, n0, p0, donor, acceptor,
-                             statistics) -> _State:
+    def _recombination_state(
+        self, temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+    ) -> _State:
         """Coerce the inputs and get n0, p0 (solved once per (T, Na, Nd) point)."""
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, excess=excess)
         t = prepared["temperature"][0]
@@ -167,11 +186,18 @@ class RecombinationMethods:
         if n0 is not None or p0 is not None:
             if n0 is None or p0 is None:
                 missing = "n0" if n0 is None else "p0"
-                raise InputError(missing, f"given together with {'p0' if n0 is None else 'n0'}"
-                                 " (equilibrium densities in cm^-3), or both omitted", None)
+                raise InputError(
+                    missing,
+                    f"given together with {'p0' if n0 is None else 'n0'}"
+                    " (equilibrium densities in cm^-3), or both omitted",
+                    None,
+                )
             if prepared["acceptor_density"][2] > 0 or prepared["donor_density"][2] > 0:
-                raise InputError("Na, Nd", "omitted (zero) when the equilibrium densities "
-                                 "n0 and p0 are given", "dopant densities as well")
+                raise InputError(
+                    "Na, Nd",
+                    "omitted (zero) when the equilibrium densities n0 and p0 are given",
+                    "dopant densities as well",
+                )
             n0_array, *n0_range = coerce(n0, "n0")
             p0_array, *p0_range = coerce(p0, "p0")
             given = True
@@ -183,12 +209,17 @@ class RecombinationMethods:
         try:
             shape = np.broadcast_shapes(t.shape, n0_array.shape, p0_array.shape, dn.shape)
         except ValueError:
-            raise InputError("n0, p0", "arrays whose shapes broadcast with T and excess",
-                             f"shapes {n0_array.shape}, {p0_array.shape}") from None
-        ranges = {"temperature": prepared["temperature"][1:],
-                  "equilibrium_electron_density": tuple(n0_range),
-                  "equilibrium_hole_density": tuple(p0_range),
-                  "excess_density": prepared["excess_density"][1:]}
+            raise InputError(
+                "n0, p0",
+                "arrays whose shapes broadcast with T and excess",
+                f"shapes {n0_array.shape}, {p0_array.shape}",
+            ) from None
+        ranges = {
+            "temperature": prepared["temperature"][1:],
+            "equilibrium_electron_density": tuple(n0_range),
+            "equilibrium_hole_density": tuple(p0_range),
+            "excess_density": prepared["excess_density"][1:],
+        }
         return _State(t, n0_array, p0_array, dn, shape, given, ranges)
 
     def _check_intrinsic(self, state: _State):
@@ -201,12 +232,13 @@ class RecombinationMethods:
             model.check_regions(state.kernel_inputs(), self.strict)
         fitted = model.extra["fit"]["gap_narrowing"]
         used = self.models.get("gap_narrowing")
-        if (not state.given and fitted in self.catalog.model_ids("gap_narrowing")
-                and used != fitted):
-            message = (f"model intrinsic_lifetime/{model.id} was fitted with the effective "
-                       f"intrinsic density of gap_narrowing/{fitted}; the material uses "
-                       f"{used}: the minority densities, and the lifetime where dn is not "
-                       "far above them, differ from the published model's")
+        if not state.given and fitted in self.catalog.model_ids("gap_narrowing") and used != fitted:
+            message = (
+                f"model intrinsic_lifetime/{model.id} was fitted with the effective "
+                f"intrinsic density of gap_narrowing/{fitted}; the material uses "
+                f"{used}: the minority densities, and the lifetime where dn is not "
+                "far above them, differ from the published model's"
+            )
             if self.strict:
                 raise ValidityError(message)
             warn(message, ValidityWarning)
@@ -217,8 +249,19 @@ class RecombinationMethods:
         return evaluate(model.function or model, state.kernel_inputs(excess), part=part)
 
     # ------------------------------------------------------------------ intrinsic
-    def intrinsic_lifetime(self, temperature, Na=0, Nd=0, excess=0, *, n0=None, p0=None,
-                           donor="phosphorus", acceptor="boron", statistics=None):
+    def intrinsic_lifetime(
+        self,
+        temperature,
+        Na=0,
+        Nd=0,
+        excess=0,
+        *,
+        n0=None,
+        p0=None,
+        donor="phosphorus",
+        acceptor="boron",
+        statistics=None,
+    ):
         """Intrinsic (band-to-band: Auger + radiative) lifetime, s.
 
         Parameters
@@ -243,25 +286,38 @@ class RecombinationMethods:
         --------
         >>> si.intrinsic_lifetime(300, Nd=1e16, excess=1e15)        # doctest: +SKIP
         """
-        state = self._recombination_state(temperature, Na, Nd, excess, n0, p0, donor,
-                                          acceptor, statistics)
+        state = self._recombination_state(
+            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+        )
         self._check_intrinsic(state)
         return quantity(_full(self._intrinsic(state), state.shape), "s")
 
-    def auger_lifetime(self, temperature, Na=0, Nd=0, excess=0, *, n0=None, p0=None,
-                       donor="phosphorus", acceptor="boron", statistics=None):
+    def auger_lifetime(
+        self,
+        temperature,
+        Na=0,
+        Nd=0,
+        excess=0,
+        *,
+        n0=None,
+        p0=None,
+        donor="phosphorus",
+        acceptor="boron",
+        statistics=None,
+    ):
         """The Auger part of the intrinsic lifetime alone (the model's own split), s.
 
         Arguments as for :meth:`intrinsic_lifetime`.
         """
-        state = self._recombination_state(temperature, Na, Nd, excess, n0, p0, donor,
-                                          acceptor, statistics)
+        state = self._recombination_state(
+            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+        )
         self._check_intrinsic(state)
         return quantity(_full(self._intrinsic(state, "auger"), state.shape), "s")
 
     # ------------------------------------------------------------------ SRH
     def defect(self, name):
-        """A defect of the catalogue by name or alias (see :mod:`matprops.defects`)."""
+        """A defect of the catalogue by name or alias (see :mod:`matprops.catalogue.defects`)."""
         return defect_catalogue.defect(name, self.catalog)
 
     def defects(self) -> list[str]:
@@ -301,18 +357,27 @@ class RecombinationMethods:
             limit = "the gap"
         if np.any(outside):
             bound = float(np.min(gap)) * (0.5 if defect.reference == "intrinsic" else 1.0)
-            edge = {"conduction": "the conduction-band edge", "valence": "the valence-band "
-                    "edge", "intrinsic": "the intrinsic level (either way)"}[defect.reference]
-            raise InputError("defect", f"a level inside the band gap, between 0 and {limit} "
-                             f"({bound:.4g} eV at {float(np.max(t)):g} K) from {edge}, for "
-                             f"{defect.name!r}", defect.level_text())
+            edge = {
+                "conduction": "the conduction-band edge",
+                "valence": "the valence-band edge",
+                "intrinsic": "the intrinsic level (either way)",
+            }[defect.reference]
+            raise InputError(
+                "defect",
+                f"a level inside the band gap, between 0 and {limit} "
+                f"({bound:.4g} eV at {float(np.max(t)):g} K) from {edge}, for "
+                f"{defect.name!r}",
+                defect.level_text(),
+            )
         if defect.temperature_range is not None:
             low, high = defect.temperature_range
             t_low, t_high = float(np.min(t)), float(np.max(t))
             if t_low < low or t_high > high:
-                message = (f"defect {defect.name}: temperature {t_low:g}-{t_high:g} K is "
-                           f"outside the range of its data, {low:g}-{high:g} K; the capture "
-                           "parameters are extrapolated")
+                message = (
+                    f"defect {defect.name}: temperature {t_low:g}-{t_high:g} K is "
+                    f"outside the range of its data, {low:g}-{high:g} K; the capture "
+                    "parameters are extrapolated"
+                )
                 if self.strict:
                     raise ValidityError(message)
                 warn(message, ValidityWarning)
@@ -323,21 +388,30 @@ class RecombinationMethods:
         record = {**defect.provenance(), "thermal_velocity_model": velocity_model}
         if electron_capture_time is not None:
             if density is not None:
-                raise InputError("density", "omitted when electron_capture_time is given "
-                                 "(it already contains the density)", "both")
-            tau_n0, _, _ = coerce(electron_capture_time, "electron_capture_time", "s",
-                                  "positive")
+                raise InputError(
+                    "density",
+                    "omitted when electron_capture_time is given (it already contains the density)",
+                    "both",
+                )
+            tau_n0, _, _ = coerce(electron_capture_time, "electron_capture_time", "s", "positive")
             tau_p0 = tau_n0 * defect.ratio(t) * v_n / v_p
             record["electron_capture_time"] = "given"
             return tau_n0, tau_p0, record
         if density is None:
-            raise InputError("density", "given: the defect density in cm^-3 (or "
-                             "electron_capture_time in s)", "nothing")
+            raise InputError(
+                "density",
+                "given: the defect density in cm^-3 (or electron_capture_time in s)",
+                "nothing",
+            )
         if not defect.absolute:
-            raise InputError("electron_capture_time", f"given for {defect.name!r}, whose "
-                             f"entry has only the ratio sigma_n/sigma_p = "
-                             f"{defect.cross_section_ratio:g} (no absolute cross-section):"
-                             " tau_n0 = 1/(sigma_n v_n N_t) in s", "nothing (a density)")
+            raise InputError(
+                "electron_capture_time",
+                f"given for {defect.name!r}, whose "
+                f"entry has only the ratio sigma_n/sigma_p = "
+                f"{defect.cross_section_ratio:g} (no absolute cross-section):"
+                " tau_n0 = 1/(sigma_n v_n N_t) in s",
+                "nothing (a density)",
+            )
         n_t, _, _ = coerce(density, "density", "cm^-3", "positive")
         tau_n0 = srh.capture_time(defect.electron_cross_section(t), v_n, n_t)
         tau_p0 = srh.capture_time(defect.hole_cross_section(t), v_p, n_t)
@@ -354,15 +428,21 @@ class RecombinationMethods:
         records = []
         for defect, density, capture in items:
             self._check_level(defect, state.temperature)
-            tau_n0, tau_p0, record = self._capture_times(defect, state.temperature,
-                                                         density, capture)
-            n1, p1 = srh.emission_densities(state.temperature, defect.energy,
-                                            defect.reference, nc, nv, product)
-            tau = model(excess_density=state.excess if excess is None else excess,
-                        equilibrium_electron_density=state.n0,
-                        equilibrium_hole_density=state.p0, electron_emission_density=n1,
-                        hole_emission_density=p1, electron_capture_time=tau_n0,
-                        hole_capture_time=tau_p0)
+            tau_n0, tau_p0, record = self._capture_times(
+                defect, state.temperature, density, capture
+            )
+            n1, p1 = srh.emission_densities(
+                state.temperature, defect.energy, defect.reference, nc, nv, product
+            )
+            tau = model(
+                excess_density=state.excess if excess is None else excess,
+                equilibrium_electron_density=state.n0,
+                equilibrium_hole_density=state.p0,
+                electron_emission_density=n1,
+                hole_emission_density=p1,
+                electron_capture_time=tau_n0,
+                hole_capture_time=tau_p0,
+            )
             with np.errstate(divide="ignore"):
                 rate = rate + 1.0 / tau
             records.append(record)
@@ -373,30 +453,47 @@ class RecombinationMethods:
         """Normalise the ways of naming defects into (Defect, density, tau_n0) items."""
         items = []
         if defect is not None:
-            items.append((defect_catalogue.parse(defect, self.catalog), density,
-                          electron_capture_time))
+            items.append(
+                (defect_catalogue.parse(defect, self.catalog), density, electron_capture_time)
+            )
         elif density is not None or electron_capture_time is not None:
-            raise InputError("defect", "given with density (or electron_capture_time)",
-                             "nothing")
+            raise InputError("defect", "given with density (or electron_capture_time)", "nothing")
         if defects is not None:
             pairs = defects.items() if isinstance(defects, Mapping) else defects
             for number, pair in enumerate(pairs):
                 if not (isinstance(pair, (tuple, list)) and len(pair) == 2):
-                    raise InputError(f"defects[{number}]", "a (defect, density) pair",
-                                     repr(pair))
-                items.append((defect_catalogue.parse(pair[0], self.catalog,
-                                                     f"defects[{number}]"), pair[1], None))
+                    raise InputError(f"defects[{number}]", "a (defect, density) pair", repr(pair))
+                items.append(
+                    (
+                        defect_catalogue.parse(pair[0], self.catalog, f"defects[{number}]"),
+                        pair[1],
+                        None,
+                    )
+                )
         return items
 
-    def srh_lifetime(self, defect, temperature, Na=0, Nd=0, excess=0, *, density=None,
-                     electron_capture_time=None, n0=None, p0=None, donor="phosphorus",
-                     acceptor="boron", statistics=None):
+    def srh_lifetime(
+        self,
+        defect,
+        temperature,
+        Na=0,
+        Nd=0,
+        excess=0,
+        *,
+        density=None,
+        electron_capture_time=None,
+        n0=None,
+        p0=None,
+        donor="phosphorus",
+        acceptor="boron",
+        statistics=None,
+    ):
         """Shockley-Read-Hall lifetime through one defect level, s.
 
         Parameters
         ----------
         defect : a catalogue name or alias (``si.defects()``: ``"iron-interstitial"``,
-            ``"Fe_i"``, ...), or an inline mapping (see :mod:`matprops.defects`)
+            ``"Fe_i"``, ...), or an inline mapping (see :mod:`matprops.catalogue.defects`)
         temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics : as for
             :meth:`intrinsic_lifetime`
         density : defect density N_t, cm^-3 (> 0)
@@ -414,16 +511,30 @@ class RecombinationMethods:
         >>> si.srh_lifetime("Fe_i", 300, Na=1e16, excess=1e14, density=1e11)  # doctest: +SKIP
         """
         items = self._defect_items(defect, density, electron_capture_time, None)
-        state = self._recombination_state(temperature, Na, Nd, excess, n0, p0, donor,
-                                          acceptor, statistics)
+        state = self._recombination_state(
+            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+        )
         value, _ = self._srh(state, items)
         return quantity(value, "s")
 
     # ------------------------------------------------------------------ effective
-    def effective_lifetime(self, temperature, Na=0, Nd=0, excess=0, *, defect=None,
-                           density=None, electron_capture_time=None, defects=None,
-                           n0=None, p0=None, donor="phosphorus", acceptor="boron",
-                           statistics=None) -> Lifetimes:
+    def effective_lifetime(
+        self,
+        temperature,
+        Na=0,
+        Nd=0,
+        excess=0,
+        *,
+        defect=None,
+        density=None,
+        electron_capture_time=None,
+        defects=None,
+        n0=None,
+        p0=None,
+        donor="phosphorus",
+        acceptor="boron",
+        statistics=None,
+    ) -> Lifetimes:
         """Effective bulk lifetime, ``1/tau = 1/tau_intrinsic + sum 1/tau_SRH``.
 
         Parameters
@@ -441,12 +552,12 @@ class RecombinationMethods:
         recombination is not included.
         """
         items = self._defect_items(defect, density, electron_capture_time, defects)
-        state = self._recombination_state(temperature, Na, Nd, excess, n0, p0, donor,
-                                          acceptor, statistics)
+        state = self._recombination_state(
+            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+        )
         self._check_intrinsic(state)
         parts = self._lifetime_parts(state, items)
-        provenance = self._recombination_provenance("effective_lifetime", parts["records"],
-                                                    state)
+        provenance = self._recombination_provenance("effective_lifetime", parts["records"], state)
         return Lifetimes(
             effective_lifetime=quantity(parts["effective"], "s"),
             intrinsic_lifetime=quantity(parts["intrinsic"], "s"),
@@ -456,30 +567,51 @@ class RecombinationMethods:
             excess_density=quantity(_full(state.excess, state.shape), "cm^-3"),
             equilibrium_electron_density=quantity(_full(state.n0, state.shape), "cm^-3"),
             equilibrium_hole_density=quantity(_full(state.p0, state.shape), "cm^-3"),
-            provenance=provenance)
+            provenance=provenance,
+        )
 
     def _lifetime_parts(self, state, items, excess=None):
         auger = _full(self._intrinsic(state, "auger", excess), state.shape)
         radiative = _full(self._intrinsic(state, "radiative", excess), state.shape)
         intrinsic = 1.0 / (1.0 / auger + 1.0 / radiative)
         srh_value, records = self._srh(state, items, excess)
-        effective = intrinsic if srh_value is None else 1.0 / (1.0 / intrinsic
-                                                               + 1.0 / srh_value)
-        return {"effective": effective, "intrinsic": intrinsic, "auger": auger,
-                "radiative": radiative, "srh": srh_value, "records": records}
+        effective = intrinsic if srh_value is None else 1.0 / (1.0 / intrinsic + 1.0 / srh_value)
+        return {
+            "effective": effective,
+            "intrinsic": intrinsic,
+            "auger": auger,
+            "radiative": radiative,
+            "srh": srh_value,
+            "records": records,
+        }
 
     def _recombination_provenance(self, name, records, state):
         provenance = self.provenance(name)
         provenance["defects"] = records
-        provenance["equilibrium_densities"] = ("given by the caller" if state.given else
-                                               "solved by the equilibrium model")
+        provenance["equilibrium_densities"] = (
+            "given by the caller" if state.given else "solved by the equilibrium model"
+        )
         return provenance
 
     # ------------------------------------------------------------------ implied voltage
-    def implied_voltage(self, temperature, generation, thickness, Na=0, Nd=0, *,
-                        defect=None, density=None, electron_capture_time=None, defects=None,
-                        n0=None, p0=None, donor="phosphorus", acceptor="boron",
-                        statistics=None) -> ImpliedVoltage:
+    def implied_voltage(
+        self,
+        temperature,
+        generation,
+        thickness,
+        Na=0,
+        Nd=0,
+        *,
+        defect=None,
+        density=None,
+        electron_capture_time=None,
+        defects=None,
+        n0=None,
+        p0=None,
+        donor="phosphorus",
+        acceptor="boron",
+        statistics=None,
+    ) -> ImpliedVoltage:
         """Implied open-circuit voltage of a sample under steady uniform generation.
 
         Parameters
@@ -507,8 +639,9 @@ class RecombinationMethods:
         g_area = self._generation(generation)
         w, _, _ = coerce(thickness, "thickness")
         rate = g_area / w  # cm^-3 s^-1
-        state = self._recombination_state(temperature, Na, Nd, 0.0, n0, p0, donor,
-                                          acceptor, statistics)
+        state = self._recombination_state(
+            temperature, Na, Nd, 0.0, n0, p0, donor, acceptor, statistics
+        )
         shape = np.broadcast_shapes(state.shape, rate.shape)
         state.shape = shape
         state.excess = np.zeros(shape)
@@ -526,8 +659,7 @@ class RecombinationMethods:
         self._check_intrinsic(state)  # the excess densities reached
         parts = self._lifetime_parts(state, items)
         volts = voltage_kernel.implied_voltage(state.temperature, state.n0, state.p0, dn)
-        provenance = self._recombination_provenance("implied_voltage", parts["records"],
-                                                    state)
+        provenance = self._recombination_provenance("implied_voltage", parts["records"], state)
         provenance["assumptions"] = ASSUMPTIONS
         return ImpliedVoltage(
             implied_voltage=quantity(_full(volts, shape), "V"),
@@ -538,7 +670,9 @@ class RecombinationMethods:
             srh_lifetime=_optional(parts["srh"]),
             equilibrium_electron_density=quantity(_full(state.n0, shape), "cm^-3"),
             equilibrium_hole_density=quantity(_full(state.p0, shape), "cm^-3"),
-            assumptions=ASSUMPTIONS, provenance=provenance)
+            assumptions=ASSUMPTIONS,
+            provenance=provenance,
+        )
 
     @staticmethod
     def _generation(generation):
@@ -550,13 +684,17 @@ class RecombinationMethods:
             if generation.dimensionality == current.dimensionality:
                 magnitude = np.asarray(generation.m_as(current), dtype=float)
                 if not np.all(np.isfinite(magnitude)) or np.any(magnitude <= 0):
-                    raise InputError("generation", "> 0 (a photogenerated current density)",
-                                     repr(generation))
+                    raise InputError(
+                        "generation", "> 0 (a photogenerated current density)", repr(generation)
+                    )
                 return magnitude / ELEMENTARY_CHARGE
         try:
             return coerce(generation, "generation")[0]
         except UnitError:
-            raise UnitError("generation", "cm^-2/s (photons absorbed per area and time) or "
-                            "A/cm^2 (photogenerated current density)", generation,
-                            plain="cm^-2/s") from None
-
+            raise UnitError(
+                "generation",
+                "cm^-2/s (photons absorbed per area and time) or "
+                "A/cm^2 (photogenerated current density)",
+                generation,
+                plain="cm^-2/s",
+            ) from None

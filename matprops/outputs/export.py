@@ -29,10 +29,18 @@ from pathlib import Path
 
 import numpy as np
 
-from .errors import InputError
+from ..errors import InputError
 
-__all__ = ["FORMATS", "format_for", "json_document", "provenance_document", "to_csv",
-           "to_json", "to_text", "write"]
+__all__ = [
+    "FORMATS",
+    "format_for",
+    "json_document",
+    "provenance_document",
+    "to_csv",
+    "to_json",
+    "to_text",
+    "write",
+]
 
 FORMATS = ("netcdf", "csv", "json")
 _SUFFIXES = {".nc": "netcdf", ".nc4": "netcdf", ".csv": "csv", ".json": "json"}
@@ -50,14 +58,20 @@ def format_for(path, format: str | None = None, suffixes=None, kinds=FORMATS) ->
         if format not in kinds:
             raise InputError("format", f"one of {', '.join(kinds)}", repr(format))
         if implied is not None and implied != format:
-            raise InputError("format", f"{implied} for a file named *{Path(path).suffix} "
-                             f"(or name the file *{_suffix_of(format, suffixes)})",
-                             repr(format))
+            raise InputError(
+                "format",
+                f"{implied} for a file named *{Path(path).suffix} "
+                f"(or name the file *{_suffix_of(format, suffixes)})",
+                repr(format),
+            )
         return format
     if implied is None:
         known = ", ".join(sorted(suffixes))
-        raise InputError("format", f"given, or implied by the file extension "
-                         f"({known})", f"{str(path)!r} with no such extension")
+        raise InputError(
+            "format",
+            f"given, or implied by the file extension ({known})",
+            f"{str(path)!r} with no such extension",
+        )
     return implied
 
 
@@ -74,13 +88,17 @@ def check_target(path, overwrite: bool = False) -> Path:
     path = Path(path)
     folder = path.parent if str(path.parent) else Path(".")
     if not folder.is_dir():
-        raise InputError("path", "a file in an existing folder",
-                         f"{str(path)!r} (no folder {str(folder)!r})")
+        raise InputError(
+            "path", "a file in an existing folder", f"{str(path)!r} (no folder {str(folder)!r})"
+        )
     if path.is_dir():
         raise InputError("path", "a file name, not a folder", repr(str(path)))
     if path.exists() and not overwrite:
-        raise InputError("path", "a new file (--force, or overwrite=True, replaces it)",
-                         f"{str(path)!r}, which exists")
+        raise InputError(
+            "path",
+            "a new file (--force, or overwrite=True, replaces it)",
+            f"{str(path)!r}, which exists",
+        )
     return path
 
 
@@ -97,8 +115,9 @@ def atomic_write(targets: list[tuple[Path, object]], overwrite: bool = False) ->
             try:
                 writer(tmp)
             except OSError as exc:
-                raise InputError("path", "a file in a writable folder",
-                                 f"{str(path)!r} ({exc.strerror or exc})") from exc
+                raise InputError(
+                    "path", "a file in a writable folder", f"{str(path)!r} ({exc.strerror or exc})"
+                ) from exc
         for (path, _), tmp in zip(targets, temporaries, strict=True):
             _commit(tmp, path, overwrite)
     finally:
@@ -115,21 +134,34 @@ def _commit(tmp: Path, path: Path, overwrite: bool) -> None:
     try:
         os.link(tmp, path)  # fails if the name exists: no race with another writer
     except FileExistsError as exc:
-        raise InputError("path", "a new file (--force, or overwrite=True, replaces it)",
-                         f"{str(path)!r}, which exists") from exc
+        raise InputError(
+            "path",
+            "a new file (--force, or overwrite=True, replaces it)",
+            f"{str(path)!r}, which exists",
+        ) from exc
     except OSError:  # a file system without hard links
         if path.exists():
-            raise InputError("path", "a new file (--force, or overwrite=True, replaces "
-                             "it)", f"{str(path)!r}, which exists") from None
+            raise InputError(
+                "path",
+                "a new file (--force, or overwrite=True, replaces it)",
+                f"{str(path)!r}, which exists",
+            ) from None
         os.replace(tmp, path)
 
 
 # --------------------------------------------------------------------------- write
 
 
-def write(data, path, format: str | None = None, *, layout: str = "long",
-          provenance: str = "companion", overwrite: bool = False,
-          command: str | None = None) -> list[Path]:
+def write(
+    data,
+    path,
+    format: str | None = None,
+    *,
+    layout: str = "long",
+    provenance: str = "companion",
+    overwrite: bool = False,
+    command: str | None = None,
+) -> list[Path]:
     """Write a table (from :func:`matprops.tables.table`) atomically.
 
     Parameters
@@ -157,21 +189,36 @@ def write(data, path, format: str | None = None, *, layout: str = "long",
     data = stamp(data, command)
     if format == "netcdf":
         _check_netcdf_attributes(data)
-        encoding = {name: {"_FillValue": None} for name, v in data.variables.items()
-                    if v.dtype.kind == "f"}
-        return atomic_write([(path, lambda tmp: data.to_netcdf(
-            tmp, encoding=encoding, engine="netcdf4"))], overwrite)
+        encoding = {
+            name: {"_FillValue": None} for name, v in data.variables.items() if v.dtype.kind == "f"
+        }
+        return atomic_write(
+            [(path, lambda tmp: data.to_netcdf(tmp, encoding=encoding, engine="netcdf4"))],
+            overwrite,
+        )
     if format == "json":
-        return atomic_write([(path, lambda tmp: tmp.write_text(to_json(data),
-                                                               encoding="utf-8"))],
-                            overwrite)
-    targets = [(path, lambda tmp: tmp.write_text(
-        to_csv(data, layout=layout, header=provenance == "header"), encoding="utf-8"))]
+        return atomic_write(
+            [(path, lambda tmp: tmp.write_text(to_json(data), encoding="utf-8"))], overwrite
+        )
+    targets = [
+        (
+            path,
+            lambda tmp: tmp.write_text(
+                to_csv(data, layout=layout, header=provenance == "header"), encoding="utf-8"
+            ),
+        )
+    ]
     if provenance == "companion":
         companion = path.with_name(path.stem + ".provenance.json")
         document = provenance_document(data, describes=path.name)
-        targets.append((companion, lambda tmp: tmp.write_text(
-            json.dumps(document, indent=1, ensure_ascii=False) + "\n", encoding="utf-8")))
+        targets.append(
+            (
+                companion,
+                lambda tmp: tmp.write_text(
+                    json.dumps(document, indent=1, ensure_ascii=False) + "\n", encoding="utf-8"
+                ),
+            )
+        )
     return atomic_write(targets, overwrite)
 
 
@@ -195,24 +242,29 @@ def _check_netcdf_attributes(data) -> None:
         if isinstance(value, (str, int, float, np.number)) and not isinstance(value, bool):
             return True
         if isinstance(value, (list, tuple, np.ndarray)):
-            return all(isinstance(v, (int, float, np.number)) and not isinstance(v, bool)
-                       for v in np.asarray(value).ravel().tolist())
+            return all(
+                isinstance(v, (int, float, np.number)) and not isinstance(v, bool)
+                for v in np.asarray(value).ravel().tolist()
+            )
         return False
 
-    for where, attrs in [("dataset", data.attrs)] + [(f"variable {n!r}", v.attrs)
-                                                     for n, v in data.variables.items()]:
+    for where, attrs in [("dataset", data.attrs)] + [
+        (f"variable {n!r}", v.attrs) for n, v in data.variables.items()
+    ]:
         for key, value in attrs.items():
             if not ok(value):
-                raise InputError(f"attribute {key!r} of the {where}",
-                                 "a string, a number or a list of numbers for netCDF",
-                                 f"{type(value).__name__} {value!r}")
+                raise InputError(
+                    f"attribute {key!r} of the {where}",
+                    "a string, a number or a list of numbers for netCDF",
+                    f"{type(value).__name__} {value!r}",
+                )
 
 
 # --------------------------------------------------------------------------- frames
 
 
 def _dims_in_order(data) -> list[str]:
-    from .tables import AXES
+    from ..material.tables import AXES
 
     order = ["model"] + list(AXES)
     dims = [d for d in order if d in data.dims]
@@ -226,7 +278,7 @@ def _heading(data, name: str) -> str:
 
 def _temperature_columns(data, values):
     """[(heading, values)] for temperature: the asked unit first, then kelvin."""
-    from .units import Q_
+    from ..units import Q_
 
     asked = data["temperature"].attrs.get("requested_units")
     columns = []
@@ -320,15 +372,15 @@ def _is_lazy(data) -> bool:
 
 def to_csv(data, layout: str = "long", header: bool = False) -> str:
     """CSV text with one header row; ``header=True`` adds ``#`` provenance lines."""
-    text = frame(data, layout).to_csv(index=False, float_format="%.10g",
-                                      lineterminator="\n")
+    text = frame(data, layout).to_csv(index=False, float_format="%.10g", lineterminator="\n")
     if not header:
         return text
-    lines = [f"# {key}: {' | '.join(str(value).splitlines())}"
-             for key, value in data.attrs.items()]
+    lines = [f"# {key}: {' | '.join(str(value).splitlines())}" for key, value in data.attrs.items()]
     for name, variable in data.data_vars.items():
-        lines.append(f"# {name}: {variable.attrs.get('long_name')}; model "
-                     f"{variable.attrs.get('model')}; {variable.attrs.get('units')}")
+        lines.append(
+            f"# {name}: {variable.attrs.get('long_name')}; model "
+            f"{variable.attrs.get('model')}; {variable.attrs.get('units')}"
+        )
     lines.append("# (read with pandas.read_csv(path, comment='#'))")
     return "\n".join(lines) + "\n" + text
 
@@ -364,31 +416,43 @@ def json_document(data) -> dict:
     return {
         "attrs": _attrs(data.attrs),
         "dims": {d: int(n) for d, n in data.sizes.items()},
-        "coords": {n: {"dims": list(c.dims), "attrs": _attrs(c.attrs),
-                       "data": _json_values(c.values)} for n, c in data.coords.items()},
-        "data_vars": {n: {"dims": list(v.dims), "attrs": _attrs(v.attrs),
-                          "data": _json_values(v.values)}
-                      for n, v in data.data_vars.items()},
+        "coords": {
+            n: {"dims": list(c.dims), "attrs": _attrs(c.attrs), "data": _json_values(c.values)}
+            for n, c in data.coords.items()
+        },
+        "data_vars": {
+            n: {"dims": list(v.dims), "attrs": _attrs(v.attrs), "data": _json_values(v.values)}
+            for n, v in data.data_vars.items()
+        },
     }
 
 
 def to_json(data) -> str:
-    return json.dumps(json_document(data), indent=1, ensure_ascii=False,
-                      allow_nan=False) + "\n"
+    return json.dumps(json_document(data), indent=1, ensure_ascii=False, allow_nan=False) + "\n"
 
 
 def provenance_document(data, describes: str | None = None) -> dict:
     """Everything but the numbers: attributes, axes, and each variable's provenance."""
     document = {"describes": describes} if describes else {}
-    document.update({
-        "attrs": _attrs(data.attrs),
-        "coords": {n: {"dims": list(c.dims), "attrs": _attrs(c.attrs),
-                       **({"data": _json_values(c.values)} if c.size <= 100 else
-                          {"size": int(c.size)})}
-                   for n, c in data.coords.items()},
-        "data_vars": {n: {"dims": list(v.dims), "attrs": _attrs(v.attrs)}
-                      for n, v in data.data_vars.items()},
-    })
+    document.update(
+        {
+            "attrs": _attrs(data.attrs),
+            "coords": {
+                n: {
+                    "dims": list(c.dims),
+                    "attrs": _attrs(c.attrs),
+                    **(
+                        {"data": _json_values(c.values)} if c.size <= 100 else {"size": int(c.size)}
+                    ),
+                }
+                for n, c in data.coords.items()
+            },
+            "data_vars": {
+                n: {"dims": list(v.dims), "attrs": _attrs(v.attrs)}
+                for n, v in data.data_vars.items()
+            },
+        }
+    )
     return document
 
 
@@ -450,9 +514,16 @@ def to_text(data, width: int | None = None, layout: str = "long") -> str:
         columns = axes_cols + block
         depth = max(len(heads[i]) for i in columns)
         for level in range(depth):
-            out.append("  ".join(
-                (heads[i][level - depth + len(heads[i])] if level >= depth - len(heads[i])
-                 else "").rjust(widths[i]) for i in columns).rstrip())
+            out.append(
+                "  ".join(
+                    (
+                        heads[i][level - depth + len(heads[i])]
+                        if level >= depth - len(heads[i])
+                        else ""
+                    ).rjust(widths[i])
+                    for i in columns
+                ).rstrip()
+            )
         out.append("  ".join("-" * widths[i] for i in columns))
         for r in range(len(table)):
             out.append("  ".join(cells[i][r].rjust(widths[i]) for i in columns))

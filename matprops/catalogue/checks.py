@@ -1,18 +1,19 @@
-"""Integrity check of a whole ``datasets/`` folder: ``python -m matprops.catalog``.
+"""Integrity check of a whole ``datasets/`` folder: ``python -m matprops.catalogue``.
 
 Every file the checksum list names must exist and match; every data file on disk
 must be listed; every model file must load (schema, kernel, units) and every table it
 reads must open and hold the variables it names; every release must load, name
 models that exist and have a readable frozen reference; every scenario must pass its
-schema, and every defect of the catalogue must load. A folder with no models or no releases is a failure, not an empty success.
+schema, and every defect of the catalogue must load. A folder with no models or no
+releases is a failure, not an empty success.
 """
 
 from __future__ import annotations
 
 import json
 
-from .catalog import CHECKSUM_FILE, Catalog
-from .errors import Error
+from ..errors import Error
+from .store import CHECKSUM_FILE, Catalog
 
 __all__ = ["check"]
 
@@ -40,8 +41,10 @@ def check(catalog: Catalog) -> tuple[list[str], int]:
     for relative in sorted(set(recorded) - on_disk):
         problems.append(f"{root / relative}: listed in {CHECKSUM_FILE} but missing")
     for relative in sorted(on_disk - set(recorded)):
-        problems.append(f"{root / relative}: not listed in {CHECKSUM_FILE} (run python -m "
-                        "matprops.catalog --update-checksums after a deliberate change)")
+        problems.append(
+            f"{root / relative}: not listed in {CHECKSUM_FILE} (run python -m "
+            "matprops.catalogue --update-checksums after a deliberate change)"
+        )
     for relative in sorted(on_disk & set(recorded)):
         attempt(catalog.verified_bytes, root / relative)
 
@@ -64,8 +67,10 @@ def check(catalog: Catalog) -> tuple[list[str], int]:
         for quantity, model_id in release.models.items():
             known = catalog.model_ids(quantity) if quantity in (quantities or []) else []
             if model_id not in known:
-                problems.append(f"{release.path}: models.{quantity} = {model_id!r} does not "
-                                f"exist (models of {quantity!r}: {', '.join(known) or 'none'})")
+                problems.append(
+                    f"{release.path}: models.{quantity} = {model_id!r} does not "
+                    f"exist (models of {quantity!r}: {', '.join(known) or 'none'})"
+                )
         reference = attempt(catalog.verified_bytes, release.reference_path)
         if reference is not None:
             try:

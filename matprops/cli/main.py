@@ -31,23 +31,33 @@ import warnings
 
 import numpy as np
 
-from .errors import Error, InputError, UnitError, ValidityWarning
+from ..errors import (
+    Error,
+    InputError,
+    UnitError,
+    ValidityWarning,
+)
 
 __all__ = ["main", "parse_grid"]
 
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
-_ITEM = re.compile(rf"^\s*(?P<start>{_NUMBER})(?:\s*:\s*(?P<stop>{_NUMBER})\s*:\s*"
-                   rf"(?P<step>\*\s*{_NUMBER}|{_NUMBER}\s*/\s*decade|{_NUMBER}))?\s*"
-                   rf"(?P<rest>.*?)\s*$")
+_ITEM = re.compile(
+    rf"^\s*(?P<start>{_NUMBER})(?:\s*:\s*(?P<stop>{_NUMBER})\s*:\s*"
+    rf"(?P<step>\*\s*{_NUMBER}|{_NUMBER}\s*/\s*decade|{_NUMBER}))?\s*"
+    rf"(?P<rest>.*?)\s*$"
+)
 _NONFINITE = re.compile(r"(?i)(^|[\s,:*/+-])(nan|inf|infinity)\b")
 MAX_VALUES = 10**8
-_GRID_HELP = ("numbers separated by commas, or ranges start:stop:step, start:stop:*factor "
-              "or start:stop:N/decade, then an optional unit (e.g. -40,25,85degC, "
-              "'250:400:50 K', 1e15:1e19:*10)")
+_GRID_HELP = (
+    "numbers separated by commas, or ranges start:stop:step, start:stop:*factor "
+    "or start:stop:N/decade, then an optional unit (e.g. -40,25,85degC, "
+    "'250:400:50 K', 1e15:1e19:*10)"
+)
 
 
 def _expand(start: float, stop: float, step: str, option: str, text: str) -> np.ndarray:
     """The values of one range item."""
+
     def bad(requirement):
         return InputError(option, requirement, repr(text))
 
@@ -72,7 +82,7 @@ def _expand(start: float, stop: float, step: str, option: str, text: str) -> np.
         raise bad(f"a range of at most {MAX_VALUES:.0e} values (this one has {count:.3g})")
     steps = np.arange(int(count))
     if step.startswith("*"):
-        values = start * factor ** steps
+        values = start * factor**steps
     elif step.endswith("decade"):
         values = 10 ** (np.log10(start) + steps / per_decade)
     else:
@@ -88,7 +98,7 @@ def parse_grid(text: str, option: str = "--temperature", default_units: str = "K
     float array in ``default_units``; a category option (``default_units=None``)
     returns a list of strings.
     """
-    from .units import Q_
+    from ..units import Q_
 
     text = str(text).strip()
     if default_units is None:  # a category such as --carrier electron,hole
@@ -97,8 +107,7 @@ def parse_grid(text: str, option: str = "--temperature", default_units: str = "K
             raise InputError(option, "one or more names separated by commas", repr(text))
         return items
     if _NONFINITE.search(text):
-        raise InputError(option, "finite numbers (nan and inf are not grid values)",
-                         repr(text))
+        raise InputError(option, "finite numbers (nan and inf are not grid values)", repr(text))
     pieces = text.split(",")
     values, units = [], ""
     for number, piece in enumerate(pieces):
@@ -108,8 +117,15 @@ def parse_grid(text: str, option: str = "--temperature", default_units: str = "K
         if match["stop"] is None:
             values.append(np.array([float(match["start"])]))
         else:
-            values.append(_expand(float(match["start"]), float(match["stop"]),
-                                  match["step"].replace(" ", ""), option, text))
+            values.append(
+                _expand(
+                    float(match["start"]),
+                    float(match["stop"]),
+                    match["step"].replace(" ", ""),
+                    option,
+                    text,
+                )
+            )
         units = match["rest"]
     array = np.concatenate(values)
     if array.size > MAX_VALUES:
@@ -119,12 +135,11 @@ def parse_grid(text: str, option: str = "--temperature", default_units: str = "K
     if re.match(r"^[:*/]", units):
         raise InputError(option, _GRID_HELP, repr(text))
     try:
-        from .units import unit
+        from ..units import unit
 
         return Q_(array, unit(units))
     except Exception as exc:  # pint raises several unrelated types for a bad unit
-        raise UnitError(option, f"{default_units} or another unit of the same kind",
-                        text) from exc
+        raise UnitError(option, f"{default_units} or another unit of the same kind", text) from exc
 
 
 # --------------------------------------------------------------------------- messages
@@ -133,16 +148,21 @@ def parse_grid(text: str, option: str = "--temperature", default_units: str = "K
 def _cli_message(text: str) -> str:
     """Library wording -> the command line's: options instead of argument names and
     Python syntax; one line."""
-    from .tables import AXES
+    from ..material.tables import AXES
 
     for ax in AXES.values():
         text = text.replace(f"argument {ax.name!r}", f"option {ax.option}")
         if ax.alias:
             text = text.replace(f"argument {ax.alias!r}", f"option {ax.option}")
     text = re.sub(r"argument '(-[\w/-]+)'", r"option \1", text)
-    for argument, option in (("path", "-o/--output"), ("format", "--format"),
-                             ("models", "--models"), ("x", "--x"), ("chunks", "--chunks"),
-                             ("layout", "--layout")):
+    for argument, option in (
+        ("path", "-o/--output"),
+        ("format", "--format"),
+        ("models", "--models"),
+        ("x", "--x"),
+        ("chunks", "--chunks"),
+        ("layout", "--layout"),
+    ):
         text = text.replace(f"argument {argument!r}", f"option {option}")
     text = text.replace("argument 'quantities'", "the QUANTITY arguments")
     text = text.replace("(--force, or overwrite=True, replaces it)", "(--force replaces it)")
@@ -178,8 +198,10 @@ class _Progress:
             return
         width = 30
         filled = int(width * done / total)
-        self.stream.write(f"\r[{'#' * filled}{'.' * (width - filled)}] "
-                          f"{100 * done / total:5.1f} % of {total:.3g} points")
+        self.stream.write(
+            f"\r[{'#' * filled}{'.' * (width - filled)}] "
+            f"{100 * done / total:5.1f} % of {total:.3g} points"
+        )
         self.stream.flush()
         self.drawn = True
 
@@ -191,13 +213,15 @@ class _Progress:
 
 def _catalog():
     """The installed catalogue, or a one-line error when its folder is unusable."""
-    from .catalog import default_catalog
-    from .errors import DatasetError
+    from ..catalogue.store import default_catalog
+    from ..errors import DatasetError
 
     catalog = default_catalog()
     root = catalog.root
-    hint = ("set MATPROPS_DATASETS to a matprops datasets folder (absolute path), or unset "
-            "it to use the installed data")
+    hint = (
+        "set MATPROPS_DATASETS to a matprops datasets folder (absolute path), or unset "
+        "it to use the installed data"
+    )
     if not root.is_dir():
         raise DatasetError(root, f"datasets folder does not exist; {hint}")
     if not catalog.release_ids():
@@ -206,7 +230,7 @@ def _catalog():
 
 
 def _silicon(args):
-    from .material import Silicon
+    from ..material.silicon import Silicon
 
     _catalog()
     overrides = {}
@@ -219,7 +243,7 @@ def _silicon(args):
 
 
 def _grid(args) -> dict:
-    from .tables import AXES
+    from ..material.tables import AXES
 
     grid = {}
     for ax in AXES.values():
@@ -230,10 +254,14 @@ def _grid(args) -> dict:
 
 
 def _wrap(text: str, indent: str = "", width: int | None = None) -> str:
-    from .export import terminal_width
+    from ..outputs.export import terminal_width
 
-    return textwrap.fill(" ".join(str(text).split()), width or terminal_width(),
-                         initial_indent=indent, subsequent_indent=indent + "  ")
+    return textwrap.fill(
+        " ".join(str(text).split()),
+        width or terminal_width(),
+        initial_indent=indent,
+        subsequent_indent=indent + "  ",
+    )
 
 
 def _command_line(argv) -> str:
@@ -242,13 +270,18 @@ def _command_line(argv) -> str:
 
 def _emit(args, data, footer: str = ""):
     """Write a table to -o, or print it in --format (text by default)."""
-    from . import export
+    from ..outputs import export
 
     if args.output:
         written = export.write(
-            data, args.output, None if args.format in (None, "text") else args.format,
-            layout=args.layout, provenance="header" if args.csv_header else "companion",
-            overwrite=args.force, command=args.command_line)
+            data,
+            args.output,
+            None if args.format in (None, "text") else args.format,
+            layout=args.layout,
+            provenance="header" if args.csv_header else "companion",
+            overwrite=args.force,
+            command=args.command_line,
+        )
         print("wrote " + " and ".join(str(p) for p in written))
         return
     if args.format == "csv":
@@ -263,9 +296,14 @@ def _emit(args, data, footer: str = ""):
 
 def _footer(si, names) -> str:
     names = list(dict.fromkeys(names))
-    lines = [_wrap(f"release {si.release.id} ({si.release.status}); models: "
-                   + "; ".join(f"{q} {si.models[q]}" if q in si.models else f"{q} (derived)"
-                               for q in names))]
+    lines = [
+        _wrap(
+            f"release {si.release.id} ({si.release.status}); models: "
+            + "; ".join(
+                f"{q} {si.models[q]}" if q in si.models else f"{q} (derived)" for q in names
+            )
+        )
+    ]
     lines.append(_wrap("sources: matprops provenance QUANTITY; references: matprops cite"))
     return "\n".join(lines)
 
@@ -284,13 +322,17 @@ def _cmd_table(args):
     si = _silicon(args)
     progress = _Progress()
     chunks = args.chunks
-    if chunks is not None and (args.format not in (None, "netcdf")
-                               or not (args.output or "").lower().endswith((".nc", ".nc4"))):
-        raise InputError("--chunks", "used with a netCDF output (-o FILE.nc), which is "
-                         "written chunk by chunk", repr(args.chunks))
+    if chunks is not None and (
+        args.format not in (None, "netcdf")
+        or not (args.output or "").lower().endswith((".nc", ".nc4"))
+    ):
+        raise InputError(
+            "--chunks",
+            "used with a netCDF output (-o FILE.nc), which is written chunk by chunk",
+            repr(args.chunks),
+        )
     try:
-        data = si.table(args.quantities or None, progress=progress, chunks=chunks,
-                        **_grid(args))
+        data = si.table(args.quantities or None, progress=progress, chunks=chunks, **_grid(args))
     finally:
         progress.close()
     _note_unused_axes(data)
@@ -298,13 +340,15 @@ def _cmd_table(args):
 
 
 def _note_unused_axes(data):
-    from .tables import AXES
+    from ..material.tables import AXES
 
     used = set().union(*(data[v].dims for v in data.data_vars)) if data.data_vars else set()
     for dim in data.dims:
         if dim in AXES and dim not in used:
-            print(f"matprops: note: no quantity in this table depends on {AXES[dim].option}",
-                  file=sys.stderr)
+            print(
+                f"matprops: note: no quantity in this table depends on {AXES[dim].option}",
+                file=sys.stderr,
+            )
 
 
 def _cmd_compare(args):
@@ -317,23 +361,27 @@ def _cmd_compare(args):
         data = si.compare(args.quantity, models, progress=progress, **_grid(args))
     finally:
         progress.close()
-    footer = "\n".join(_wrap(f"[{m}] {c}") for m, c in
-                       zip(data.model.values, data.citation.values, strict=True))
-    footer += "\n" + _wrap("spread = largest minus smallest model value; relative_spread "
-                           "= spread / mean absolute value")
+    footer = "\n".join(
+        _wrap(f"[{m}] {c}") for m, c in zip(data.model.values, data.citation.values, strict=True)
+    )
+    footer += "\n" + _wrap(
+        "spread = largest minus smallest model value; relative_spread "
+        "= spread / mean absolute value"
+    )
     _emit(args, data, footer)
 
 
 def _cmd_plot(args):
-    from .plotting import plot
+    from ..outputs.plotting import plot
 
     _needs_output(args, "the plot (.png or .svg)")
     si = _silicon(args)
     grid = _grid(args)
     if args.models:
         if len(args.quantities) != 1:
-            raise InputError("--models", "used with exactly one QUANTITY",
-                             f"{len(args.quantities)} quantities")
+            raise InputError(
+                "--models", "used with exactly one QUANTITY", f"{len(args.quantities)} quantities"
+            )
         models = [m.strip() for m in args.models.split(",")]
         if models == ["all"]:
             models = None
@@ -358,14 +406,14 @@ def _describe(si, quantity, model_id=None) -> str:
     else:
         catalog.model_ids(quantity)  # unknown quantity -> error listing what exists
         model = catalog.model(quantity, model_id)
-    releases = [r for r in catalog.release_ids()
-                if catalog.release(r).models.get(quantity) == model.id]
+    releases = [
+        r for r in catalog.release_ids() if catalog.release(r).models.get(quantity) == model.id
+    ]
     out = [f"{quantity} / {model.id}", _wrap(model.name, "  ")]
     if releases:
         out.append(f"  default in release {', '.join(releases)}")
     out += ["", "equation:"]
-    out += [_wrap(line, "  ") if line.strip() else "" for line in
-            _equation(model).splitlines()]
+    out += [_wrap(line, "  ") if line.strip() else "" for line in _equation(model).splitlines()]
     kernel = f"{model.kernel.__module__.removeprefix('matprops.')}.{model.kernel.__name__}"
     out.append(f"  (kernel {kernel}; kind {model.kind})")
     if model.requires:
@@ -375,11 +423,18 @@ def _describe(si, quantity, model_id=None) -> str:
         out += ["", "coefficients (as published; value ± uncertainty, units):"]
         width = max(len(n) for n in model.coefficients)
         for name, coef in model.coefficients.items():
-            value = (", ".join(f"{v:g}" for v in coef.value) if isinstance(coef.value, tuple)
-                     else f"{coef.value:g}")
+            value = (
+                ", ".join(f"{v:g}" for v in coef.value)
+                if isinstance(coef.value, tuple)
+                else f"{coef.value:g}"
+            )
             unc = coef.uncertainty
-            unc = ("" if unc is None else " ± " + (", ".join(f"{u:g}" for u in unc)
-                                                    if isinstance(unc, tuple) else f"{unc:g}"))
+            unc = (
+                ""
+                if unc is None
+                else " ± "
+                + (", ".join(f"{u:g}" for u in unc) if isinstance(unc, tuple) else f"{unc:g}")
+            )
             units = "" if coef.units in ("1", "dimensionless") else f" {coef.units}"
             out.append(_wrap(f"{name.ljust(width)} = {value}{unc}{units}", "  "))
     if model.tables:
@@ -408,30 +463,45 @@ def _provenance_text(record: dict, indent: str = "") -> list[str]:
         for part in record.get("components", {}).values():
             lines += _provenance_text(part, indent + "  ")
         return lines
-    lines.append(f"{indent}{record['quantity']}: model {record['model']} "
-                 f"({record.get('kind', '?')})")
+    lines.append(
+        f"{indent}{record['quantity']}: model {record['model']} ({record.get('kind', '?')})"
+    )
     lines.append(_wrap(record.get("name", ""), indent + "  "))
     lines.append(_wrap(f"source: {record.get('citation', '?')}", indent + "  "))
     for extra in record.get("additional_sources", []):
-        authors = ", ".join(extra["authors"][:3]) + (" et al." if len(extra["authors"]) > 3
-                                                     else "")
-        lines.append(_wrap(f"also: {authors} ({extra['year']}), {extra['journal']} "
-                           f"{extra['volume']}, {extra['pages']}, doi:{extra['doi']}",
-                           indent + "  "))
+        authors = ", ".join(extra["authors"][:3]) + (" et al." if len(extra["authors"]) > 3 else "")
+        lines.append(
+            _wrap(
+                f"also: {authors} ({extra['year']}), {extra['journal']} "
+                f"{extra['volume']}, {extra['pages']}, doi:{extra['doi']}",
+                indent + "  ",
+            )
+        )
     validity = record.get("validity") or {}
     if validity:
-        lines.append(_wrap("validity: " + "; ".join(
-            f"{k} {v['min']:g}-{v['max']:g} {v['units']}" for k, v in validity.items()),
-            indent + "  "))
+        lines.append(
+            _wrap(
+                "validity: "
+                + "; ".join(
+                    f"{k} {v['min']:g}-{v['max']:g} {v['units']}" for k, v in validity.items()
+                ),
+                indent + "  ",
+            )
+        )
     coefficients = record.get("coefficients") or {}
     if coefficients:
-        lines.append(_wrap("coefficients: " + "; ".join(
-            f"{k} = {v['value']} {v['units']}" for k, v in coefficients.items()),
-            indent + "  "))
+        lines.append(
+            _wrap(
+                "coefficients: "
+                + "; ".join(f"{k} = {v['value']} {v['units']}" for k, v in coefficients.items()),
+                indent + "  ",
+            )
+        )
     lines.append(_wrap(f"obtained: {record.get('obtained', '?')}", indent + "  "))
     if "file" in record:
-        lines.append(f"{indent}  file: datasets/{record['file']} "
-                     f"(sha256 {record.get('sha256', '')[:12]}...)")
+        lines.append(
+            f"{indent}  file: datasets/{record['file']} (sha256 {record.get('sha256', '')[:12]}...)"
+        )
     for part in record.get("components", {}).values():
         lines += _provenance_text(part, indent + "  ")
     return lines
@@ -447,13 +517,17 @@ def _cmd_provenance(args):
     if record.get("overridden"):
         status += f"; overridden with --model (the release chose {record['release_choice']})"
     lines.append(status)
-    lines.append(_wrap(f"(all fields: matprops provenance {args.quantity} --json; the "
-                       f"model in full: matprops describe {args.quantity})"))
+    lines.append(
+        _wrap(
+            f"(all fields: matprops provenance {args.quantity} --json; the "
+            f"model in full: matprops describe {args.quantity})"
+        )
+    )
     print("\n".join(lines))
 
 
 def _cmd_release_diff(args):
-    from .changes import release_difference
+    from ..outputs.changes import release_difference
 
     _catalog()
     diff = release_difference(args.old, args.new)
@@ -464,23 +538,26 @@ def _cmd_release_diff(args):
     print(f"models: release {old} -> {new}")
     for record in diff["models"]:
         mark = "changed" if record["changed"] else "same"
-        print(f"  {record['quantity']:24s} {record['old']!s:24s} -> "
-              f"{record['new']!s:24s} {mark}")
+        print(f"  {record['quantity']:24s} {record['old']!s:24s} -> {record['new']!s:24s} {mark}")
     print(f"\nlargest deviation on the standard reference grid ({new} against {old}):")
     for record in diff["deviations"]:
         if record["largest_relative"] is None:
             detail = record.get("note", "no finite values to compare")
         else:
-            at = ", ".join(f"{k}={v:g}" if isinstance(v, float) else f"{k}={v}"
-                           for k, v in (record["at"] or {}).items())
-            detail = (f"{100 * record['largest_relative']:.3g} % "
-                      f"({record['largest_absolute']:.3g} {record['units']})"
-                      + (f" at {at}" if at else ""))
+            at = ", ".join(
+                f"{k}={v:g}" if isinstance(v, float) else f"{k}={v}"
+                for k, v in (record["at"] or {}).items()
+            )
+            detail = (
+                f"{100 * record['largest_relative']:.3g} % "
+                f"({record['largest_absolute']:.3g} {record['units']})"
+                + (f" at {at}" if at else "")
+            )
         print(_wrap(f"{record['case']:28s} {detail}", "  "))
 
 
 def _scenario(name: str):
-    from .catalog import datasets_root
+    from ..catalogue.store import datasets_root
 
     folder = datasets_root() / "scenarios"
     path = folder / f"{name}.toml"
@@ -490,8 +567,7 @@ def _scenario(name: str):
     try:
         return path, tomllib.loads(path.read_text(encoding="utf-8"))
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-        raise InputError("--scenario", "a valid TOML scenario file",
-                         f"{path.name}: {exc}") from exc
+        raise InputError("--scenario", "a valid TOML scenario file", f"{path.name}: {exc}") from exc
 
 
 def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
@@ -502,8 +578,8 @@ def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
     """
     import xarray as xr
 
-    from .tables import AXES, QUANTITIES, available
-    from .units import Q_
+    from ..material.tables import AXES, QUANTITIES, available
+    from ..units import Q_
 
     units = scenario["temperature"]["units"]
     points = []
@@ -526,58 +602,81 @@ def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
     parts = []
     if plain:
         takes = set().union(*(QUANTITIES[q].takes for q in plain))
-        parts.append(si.table(plain, temperature=temperature,
-                              **{k: v for k, v in extra.items() if k in takes}))
+        parts.append(
+            si.table(
+                plain, temperature=temperature, **{k: v for k, v in extra.items() if k in takes}
+            )
+        )
     if doped:
         takes = set().union(*(QUANTITIES[q].takes for q in doped))
         regions, per_region = list(scenario["regions"]), []
         for region in regions:
             spec = scenario["regions"][region]
-            grid = {k: Q_(float(spec[k]), spec["units"]) for k in
-                    ("acceptor_density", "donor_density", "excess_density")
-                    if k in spec and k in takes}
+            grid = {
+                k: Q_(float(spec[k]), spec["units"])
+                for k in ("acceptor_density", "donor_density", "excess_density")
+                if k in spec and k in takes
+            }
             grid.update({k: v for k, v in extra.items() if k in takes})
             table = si.table(doped, temperature=temperature, **grid)
-            per_region.append(table.reset_coords([c for c in grid if c in AXES
-                                                  and c in table.coords
-                                                  and not table[c].dims], drop=False))
-        region_table = xr.concat(per_region, dim="region", data_vars="all",
-                                 coords="minimal", compat="override",
-                                 combine_attrs="override")
+            per_region.append(
+                table.reset_coords(
+                    [c for c in grid if c in AXES and c in table.coords and not table[c].dims],
+                    drop=False,
+                )
+            )
+        region_table = xr.concat(
+            per_region,
+            dim="region",
+            data_vars="all",
+            coords="minimal",
+            compat="override",
+            combine_attrs="override",
+        )
         region_table = region_table.assign_coords(region=("region", np.array(regions)))
         for name in ("acceptor_density", "donor_density", "excess_density"):
             if name in region_table.data_vars:
                 region_table = region_table.set_coords(name)
         parts.append(region_table)
-    data = xr.merge(parts, combine_attrs="override") if parts else xr.Dataset(
-        coords={"temperature": ("temperature", temperature.m_as("K"))})
+    data = (
+        xr.merge(parts, combine_attrs="override")
+        if parts
+        else xr.Dataset(coords={"temperature": ("temperature", temperature.m_as("K"))})
+    )
     if "carrier" in data.dims:  # one variable per carrier keeps the screen table narrow
         for name in [v for v in data.data_vars if "carrier" in data[v].dims]:
             for carrier in data["carrier"].values:
                 attrs = dict(data[name].attrs, carrier=str(carrier))
                 attrs["long_name"] = f"{carrier} {attrs.get('long_name', name)}"
-                data[f"{carrier}_{name}"] = data[name].sel(carrier=carrier, drop=True) \
-                    .assign_attrs(attrs)
+                data[f"{carrier}_{name}"] = (
+                    data[name].sel(carrier=carrier, drop=True).assign_attrs(attrs)
+                )
             data = data.drop_vars(name)
         data = data.drop_vars("carrier")
-    data = data.assign_coords(operating_point=("temperature", labels,
-                                               {"long_name": "invented operating point"}))
-    data.attrs.update({
-        "title": scenario["title"],
-        "scenario": f"{scenario['name']} ({path_name}); INVENTED data for demonstration",
-        "scenario_note": "INVENTED scenario - not measured data, not a real product "
-                         "or site.",
-    })
+    data = data.assign_coords(
+        operating_point=("temperature", labels, {"long_name": "invented operating point"})
+    )
+    data.attrs.update(
+        {
+            "title": scenario["title"],
+            "scenario": f"{scenario['name']} ({path_name}); INVENTED data for demonstration",
+            "scenario_note": "INVENTED scenario - not measured data, not a real product or site.",
+        }
+    )
     if data.attrs.get("references"):
-        data.attrs["references"] = si.cite(format="text", quantities=list(dict.fromkeys(
-            q for name in shown for q in QUANTITIES[name].model_quantities())))
+        data.attrs["references"] = si.cite(
+            format="text",
+            quantities=list(
+                dict.fromkeys(q for name in shown for q in QUANTITIES[name].model_quantities())
+            ),
+        )
     return data, skipped
 
 
 def _scenario_text(data, scenario: dict) -> str:
     """A scenario's table for the screen, one block per site: operating points across
     (at most ~80 columns), quantities down; doping-dependent rows per region."""
-    from .units import Q_
+    from ..units import Q_
 
     units = scenario["temperature"]["units"]
     labels = [str(v) for v in data["operating_point"].values]
@@ -585,8 +684,7 @@ def _scenario_text(data, scenario: dict) -> str:
     regions = list(data["region"].values) if "region" in data.dims else []
 
     def row(name, values):
-        cells = "".join(f" {v:>11.4g}" if isinstance(v, float) else f" {v:>11}"
-                        for v in values)
+        cells = "".join(f" {v:>11.4g}" if isinstance(v, float) else f" {v:>11}" for v in values)
         return f"{name[:36]:<36}{cells}"
 
     def rows_for(columns, region=None):
@@ -599,8 +697,7 @@ def _scenario_text(data, scenario: dict) -> str:
                 array = array.sel(region=region)
             unit = array.attrs.get("units", "")
             extra = [d for d in array.dims if d != "temperature"]
-            picks = ([{}] if not extra else
-                     [{extra[0]: value} for value in data[extra[0]].values])
+            picks = [{}] if not extra else [{extra[0]: value} for value in data[extra[0]].values]
             for pick in picks:
                 selected = array.sel(pick) if pick else array
                 suffix = f" ({next(iter(pick.values()))})" if pick else ""
@@ -618,8 +715,10 @@ def _scenario_text(data, scenario: dict) -> str:
         out.extend(rows_for(columns))
         for region in regions:
             spec = scenario["regions"][str(region)]
-            out.append(f"-- {region}: {spec.get('note', '')} (Na {spec['acceptor_density']:g},"
-                       f" Nd {spec['donor_density']:g} {spec['units']})")
+            out.append(
+                f"-- {region}: {spec.get('note', '')} (Na {spec['acceptor_density']:g},"
+                f" Nd {spec['donor_density']:g} {spec['units']})"
+            )
             out.extend(rows_for(columns, region))
         out.append("")
     return "\n".join(out)
@@ -638,14 +737,15 @@ def _cmd_demo(args):
         print(_wrap(scenario.get("description", "")))
         print()
     if args.output and args.output.lower().endswith((".png", ".svg")):
-        from .plotting import plot
+        from ..outputs.plotting import plot
 
-        plot(data, args.output, x="temperature", overwrite=args.force,
-             title=scenario["title"])
+        plot(data, args.output, x="temperature", overwrite=args.force, title=scenario["title"])
         print(f"wrote {args.output}")
         if skipped:
-            print(_wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
-                  file=sys.stderr)
+            print(
+                _wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
+                file=sys.stderr,
+            )
         return
     names = [data[v].attrs["quantity"] for v in data.data_vars]
     footer = _footer(si, list(dict.fromkeys(names)))
@@ -657,13 +757,14 @@ def _cmd_demo(args):
         return
     _emit(args, data, footer)
     if not on_screen and skipped:
-        print(_wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
-              file=sys.stderr)
+        print(
+            _wrap("note: not yet in this release, skipped: " + ", ".join(skipped)), file=sys.stderr
+        )
 
 
 def _cmd_models(args):
-    from .catalog import default_catalog
-    from .material import models
+    from ..catalogue.store import default_catalog
+    from ..material.silicon import models
 
     _catalog()
     catalog = models(args.quantity) if args.quantity else models()
@@ -694,25 +795,35 @@ def _cmd_cite(args):
 
 
 def build_parser() -> argparse.ArgumentParser:
-    from . import __version__
-    from .tables import AXES
+    from .._version import __version__
+    from ..material.tables import AXES
 
     parser = _Parser(
-        prog="matprops", allow_abbrev=False,
+        prog="matprops",
+        allow_abbrev=False,
         description="Temperature- and doping-dependent parameters of crystalline silicon, "
-                    "with units and sources. Values are model estimates: for decisions "
-                    "with consequences defer to measured data, local codes and licensed "
-                    "practice.")
+        "with units and sources. Values are model estimates: for decisions "
+        "with consequences defer to measured data, local codes and licensed "
+        "practice.",
+    )
     parser.add_argument("--version", action="version", version=f"matprops {__version__}")
-    commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND",
-                                     parser_class=_Parser)
+    commands = parser.add_subparsers(
+        dest="command", required=True, metavar="COMMAND", parser_class=_Parser
+    )
 
     material = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
     material.add_argument("--release", help="release id (default: newest)")
-    material.add_argument("--model", action="append", metavar="QUANTITY=ID",
-                          help="override the release's model for a quantity (repeatable)")
-    material.add_argument("--strict", action="store_true",
-                          help="fail instead of warning outside a model's validity range")
+    material.add_argument(
+        "--model",
+        action="append",
+        metavar="QUANTITY=ID",
+        help="override the release's model for a quantity (repeatable)",
+    )
+    material.add_argument(
+        "--strict",
+        action="store_true",
+        help="fail instead of warning outside a model's validity range",
+    )
 
     grid = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
     group = grid.add_argument_group("grid (" + _GRID_HELP + ")")
@@ -732,73 +843,115 @@ def build_parser() -> argparse.ArgumentParser:
 
     output = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
     out = output.add_argument_group("output")
-    out.add_argument("-o", "--output", metavar="FILE",
-                     help="write a file: .nc (netCDF), .csv (+ FILE.provenance.json), "
-                          ".json; refused if it exists unless --force")
-    out.add_argument("--format", choices=["text", "csv", "json", "netcdf"], default=None,
-                     help="output format (default: text on screen, or from -o's extension)")
-    out.add_argument("--layout", choices=["long", "wide"], default="long",
-                     help="long: one row per grid point; wide: one row per temperature")
-    out.add_argument("--csv-header", action="store_true",
-                     help="CSV: provenance as '#' lines above the header instead of a "
-                          "companion .provenance.json file")
+    out.add_argument(
+        "-o",
+        "--output",
+        metavar="FILE",
+        help="write a file: .nc (netCDF), .csv (+ FILE.provenance.json), "
+        ".json; refused if it exists unless --force",
+    )
+    out.add_argument(
+        "--format",
+        choices=["text", "csv", "json", "netcdf"],
+        default=None,
+        help="output format (default: text on screen, or from -o's extension)",
+    )
+    out.add_argument(
+        "--layout",
+        choices=["long", "wide"],
+        default="long",
+        help="long: one row per grid point; wide: one row per temperature",
+    )
+    out.add_argument(
+        "--csv-header",
+        action="store_true",
+        help="CSV: provenance as '#' lines above the header instead of a "
+        "companion .provenance.json file",
+    )
     out.add_argument("--force", action="store_true", help="replace an existing file")
 
-    table = commands.add_parser("table", parents=[material, grid, output],
-                                help="a table of quantities on a grid")
-    table.add_argument("quantities", nargs="*", metavar="QUANTITY",
-                       help="quantities (default: every one the given axes allow)")
-    table.add_argument("--chunks", type=int, metavar="N",
-                       help="with -o FILE.nc: evaluate lazily in chunks of N values per "
-                            "axis (grids larger than memory)")
+    table = commands.add_parser(
+        "table", parents=[material, grid, output], help="a table of quantities on a grid"
+    )
+    table.add_argument(
+        "quantities",
+        nargs="*",
+        metavar="QUANTITY",
+        help="quantities (default: every one the given axes allow)",
+    )
+    table.add_argument(
+        "--chunks",
+        type=int,
+        metavar="N",
+        help="with -o FILE.nc: evaluate lazily in chunks of N values per "
+        "axis (grids larger than memory)",
+    )
     table.set_defaults(run=_cmd_table)
 
-    compare = commands.add_parser("compare", parents=[material, grid, output],
-                                  help="models of one quantity side by side, with spread")
+    compare = commands.add_parser(
+        "compare",
+        parents=[material, grid, output],
+        help="models of one quantity side by side, with spread",
+    )
     compare.add_argument("quantity")
-    compare.add_argument("--models", metavar="ID,ID,...",
-                         help="model ids (default: every model of the quantity)")
+    compare.add_argument(
+        "--models", metavar="ID,ID,...", help="model ids (default: every model of the quantity)"
+    )
     compare.set_defaults(run=_cmd_compare)
 
-    plot = commands.add_parser("plot", parents=[material, grid],
-                               help="plot quantities (or models of one) to PNG or SVG")
+    plot = commands.add_parser(
+        "plot", parents=[material, grid], help="plot quantities (or models of one) to PNG or SVG"
+    )
     plot.add_argument("quantities", nargs="+", metavar="QUANTITY")
-    plot.add_argument("-o", "--output", metavar="FILE.png|FILE.svg",
-                      help="the image to write (required)")
+    plot.add_argument(
+        "-o", "--output", metavar="FILE.png|FILE.svg", help="the image to write (required)"
+    )
     plot.add_argument("--format", choices=["png", "svg"], default=None)
-    plot.add_argument("--models", metavar="ID,ID,...|all",
-                      help="compare these models of the (single) quantity")
-    plot.add_argument("--x", metavar="AXIS",
-                      help="axis to plot against (default: the one with most values)")
+    plot.add_argument(
+        "--models", metavar="ID,ID,...|all", help="compare these models of the (single) quantity"
+    )
+    plot.add_argument(
+        "--x", metavar="AXIS", help="axis to plot against (default: the one with most values)"
+    )
     plot.add_argument("--force", action="store_true", help="replace an existing file")
     plot.set_defaults(run=_cmd_plot)
 
-    describe = commands.add_parser("describe", parents=[material],
-                                   help="one model: equation, coefficients, validity, "
-                                        "source, how the numbers were obtained")
+    describe = commands.add_parser(
+        "describe",
+        parents=[material],
+        help="one model: equation, coefficients, validity, source, how the numbers were obtained",
+    )
     describe.add_argument("quantity")
-    describe.add_argument("model_id", nargs="?", metavar="MODEL",
-                          help="model id (default: the release's choice)")
+    describe.add_argument(
+        "model_id", nargs="?", metavar="MODEL", help="model id (default: the release's choice)"
+    )
     describe.set_defaults(run=_cmd_describe)
 
-    prov = commands.add_parser("provenance", parents=[material],
-                               help="where a quantity's numbers come from")
+    prov = commands.add_parser(
+        "provenance", parents=[material], help="where a quantity's numbers come from"
+    )
     prov.add_argument("quantity")
     prov.add_argument("--json", action="store_true", help="every field, as JSON")
     prov.set_defaults(run=_cmd_provenance)
 
-    diff = commands.add_parser("release-diff", help="models changed between two releases "
-                                                    "and the largest deviations")
+    diff = commands.add_parser(
+        "release-diff", help="models changed between two releases and the largest deviations"
+    )
     diff.add_argument("old")
     diff.add_argument("new")
     diff.add_argument("--json", action="store_true")
     diff.set_defaults(run=_cmd_release_diff)
 
-    demo = commands.add_parser("demo", parents=[material, output],
-                               help="tables for the bundled, INVENTED scenario "
-                                    "(-o also takes .png or .svg: a plot)")
-    demo.add_argument("--scenario", default="two-site-modules",
-                      help="scenario file in datasets/scenarios (default: %(default)s)")
+    demo = commands.add_parser(
+        "demo",
+        parents=[material, output],
+        help="tables for the bundled, INVENTED scenario (-o also takes .png or .svg: a plot)",
+    )
+    demo.add_argument(
+        "--scenario",
+        default="two-site-modules",
+        help="scenario file in datasets/scenarios (default: %(default)s)",
+    )
     demo.set_defaults(run=_cmd_demo)
 
     listing = commands.add_parser("models", help="list models, per quantity")
@@ -808,8 +961,7 @@ def build_parser() -> argparse.ArgumentParser:
     rel = commands.add_parser("releases", help="list releases and their model choices")
     rel.set_defaults(run=_cmd_releases)
 
-    cite = commands.add_parser("cite", parents=[material], help="references of the models "
-                                                                "in use")
+    cite = commands.add_parser("cite", parents=[material], help="references of the models in use")
     cite.add_argument("--format", choices=["bibtex", "text"], default="bibtex")
     cite.set_defaults(run=_cmd_cite)
     return parser
@@ -864,13 +1016,16 @@ def main(argv=None) -> int:
         # the reader went away (matprops models | head -1): stop quietly, one line
         devnull = os.open(os.devnull, os.O_WRONLY)
         os.dup2(devnull, sys.stdout.fileno())
-        print("matprops: error: output closed by the reading program before the end",
-              file=sys.stderr)
+        print(
+            "matprops: error: output closed by the reading program before the end", file=sys.stderr
+        )
         return 2
     except tomllib.TOMLDecodeError as exc:
-        print(f"matprops: error: a data file is not valid TOML ({_cli_message(str(exc))}); "
-              "check the files under the datasets folder (python -m matprops.catalog)",
-              file=sys.stderr)
+        print(
+            f"matprops: error: a data file is not valid TOML ({_cli_message(str(exc))}); "
+            "check the files under the datasets folder (python -m matprops.catalogue)",
+            file=sys.stderr,
+        )
         return 2
     except OSError as exc:  # a file that cannot be read or written
         where = f": {exc.filename}" if exc.filename else ""

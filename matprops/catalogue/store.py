@@ -21,8 +21,8 @@ Three kinds of model share that shape:
 Releases (``datasets/releases/<id>.toml``) name one model per quantity.
 
 The records themselves (:class:`Source`, :class:`Model`, :class:`Release`, ...) live
-in :mod:`matprops.records`, the checks and binding of a model file in
-:mod:`matprops.modelfile`; this module finds the files, verifies their checksums,
+in :mod:`matprops.catalogue.records`, the checks and binding of a model file in
+:mod:`matprops.catalogue.modelfile`; this module finds the files, verifies their checksums,
 loads them once (thread-safe) and caches what it built.
 """
 
@@ -38,7 +38,7 @@ from types import MappingProxyType
 
 import numpy as np
 
-from .errors import (
+from ..errors import (
     ChecksumError,
     DatasetError,
     UnknownModelError,
@@ -46,11 +46,15 @@ from .errors import (
     UnknownQuantityError,
     UnknownReleaseError,
 )
-from .modelfile import (  # the model-file checks the catalogue uses, and helpers others use
-    _build_model,
-    _read_only,
+from .fields import read_only
+from .modelfile import _build_model
+from .records import (
+    Coefficient,
+    Model,
+    Range,
+    Release,
+    Source,
 )
-from .records import Coefficient, Model, Range, Release, Source
 from .regions import Region
 from .schema import (
     MODEL,
@@ -73,8 +77,13 @@ __all__ = [
 
 CHECKSUM_FILE = "checksums.sha256"
 # folder -> suffixes of the data files in it, each covered by the checksum list
-DATA_FILES = {"models": (".toml",), "tables": (".nc",), "releases": (".toml", ".json"),
-              "scenarios": (".toml",), "defects": (".toml",)}
+DATA_FILES = {
+    "models": (".toml",),
+    "tables": (".nc",),
+    "releases": (".toml", ".json"),
+    "scenarios": (".toml",),
+    "defects": (".toml",),
+}
 MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 RELEASE_ID = re.compile(r"^\d{4}\.\d+$")
 
@@ -97,17 +106,24 @@ def datasets_root() -> Path:
         given = Path(override).expanduser()
         root = Path(os.path.abspath(given))
         if not root.is_dir():
-            where = ("" if given.is_absolute() else
-                     f", a relative path resolved against the working folder {os.getcwd()}")
-            raise DatasetError(root, "datasets folder does not exist; set MATPROPS_DATASETS "
-                               "to a matprops datasets folder (models/, tables/, releases/, "
-                               "checksums.sha256), or unset it to use the installed data "
-                               f"(MATPROPS_DATASETS={override!r}{where})")
+            where = (
+                ""
+                if given.is_absolute()
+                else f", a relative path resolved against the working folder {os.getcwd()}"
+            )
+            raise DatasetError(
+                root,
+                "datasets folder does not exist; set MATPROPS_DATASETS "
+                "to a matprops datasets folder (models/, tables/, releases/, "
+                "checksums.sha256), or unset it to use the installed data "
+                f"(MATPROPS_DATASETS={override!r}{where})",
+            )
         return root
-    installed = Path(__file__).resolve().parent / "datasets"
+    package = Path(__file__).resolve().parent.parent
+    installed = package / "datasets"  # where the wheel puts them
     if installed.is_dir():
         return installed
-    return Path(__file__).resolve().parent.parent / "datasets"
+    return package.parent / "datasets"  # a source checkout
 
 
 def sha256_of(path: Path) -> str:
@@ -158,10 +174,14 @@ class Catalog:
     def _folder(self, name: str) -> Path:
         folder = self.root / name
         if not folder.is_dir():
-            origin = (" (set by MATPROPS_DATASETS)"
-                      if os.environ.get("MATPROPS_DATASETS", "").strip() else "")
-            raise DatasetError(folder, f"folder is missing: {self.root}{origin} is not a "
-                               "matprops datasets folder")
+            origin = (
+                " (set by MATPROPS_DATASETS)"
+                if os.environ.get("MATPROPS_DATASETS", "").strip()
+                else ""
+            )
+            raise DatasetError(
+                folder, f"folder is missing: {self.root}{origin} is not a matprops datasets folder"
+            )
         return folder
 
     def quantities(self) -> list[str]:
@@ -173,16 +193,18 @@ class Catalog:
         return sorted(p.stem for p in (self.root / "models" / quantity).glob("*.toml"))
 
     def release_ids(self) -> list[str]:
-        ids = [p.stem for p in self._folder("releases").glob("*.toml")
-               if RELEASE_ID.match(p.stem)]
+        ids = [p.stem for p in self._folder("releases").glob("*.toml") if RELEASE_ID.match(p.stem)]
         return sorted(ids, key=lambda r: tuple(int(x) for x in r.split(".")))
 
     def newest_release_id(self) -> str:
         """The newest release's id; a DatasetError when there is none."""
         ids = self.release_ids()
         if not ids:
-            raise DatasetError(self.root / "releases", "no release file (<YYYY.N>.toml) in "
-                               "this folder; a release names the model of each quantity")
+            raise DatasetError(
+                self.root / "releases",
+                "no release file (<YYYY.N>.toml) in "
+                "this folder; a release names the model of each quantity",
+            )
         return ids[-1]
 
     # -- checksums
@@ -211,18 +233,23 @@ class Catalog:
         relative = path.relative_to(self.root).as_posix()
         recorded = self.checksums().get(relative)
         if recorded is None:
-            raise ChecksumError(path, f"no checksum recorded in {CHECKSUM_FILE}; "
-                                "refusing to load an unlisted file")
+            raise ChecksumError(
+                path, f"no checksum recorded in {CHECKSUM_FILE}; refusing to load an unlisted file"
+            )
         try:
             data = path.read_bytes()
         except OSError as exc:
-            raise DatasetError(path, f"cannot be read ({exc.strerror or exc}); it is "
-                               f"listed in {CHECKSUM_FILE}") from exc
+            raise DatasetError(
+                path, f"cannot be read ({exc.strerror or exc}); it is listed in {CHECKSUM_FILE}"
+            ) from exc
         actual = hashlib.sha256(data).hexdigest()
         if actual != recorded:
-            raise ChecksumError(path, f"sha256 {actual} does not match the recorded "
-                                f"{recorded}; the file was changed or corrupted. "
-                                "Refusing to load it.")
+            raise ChecksumError(
+                path,
+                f"sha256 {actual} does not match the recorded "
+                f"{recorded}; the file was changed or corrupted. "
+                "Refusing to load it.",
+            )
         return data
 
     def data_files(self) -> list[str]:
@@ -230,16 +257,22 @@ class Catalog:
         list must cover."""
         found = []
         for sub, suffixes in DATA_FILES.items():
-            found += [path.relative_to(self.root).as_posix()
-                      for path in sorted((self.root / sub).rglob("*"))
-                      if path.is_file() and path.suffix in suffixes]
+            found += [
+                path.relative_to(self.root).as_posix()
+                for path in sorted((self.root / sub).rglob("*"))
+                if path.is_file() and path.suffix in suffixes
+            ]
         return found
 
     def write_checksums(self) -> Path:
         """Record the sha256 of every data file (see :meth:`data_files`)."""
-        lines = ["# sha256 of every dataset file; loaders refuse files that differ.",
-                 ("# Regenerate after a deliberate change: python -m matprops.catalog "
-                  "--update-checksums")]
+        lines = [
+            "# sha256 of every dataset file; loaders refuse files that differ.",
+            (
+                "# Regenerate after a deliberate change: python -m matprops.catalogue "
+                "--update-checksums"
+            ),
+        ]
         for relative in self.data_files():
             lines.append(f"{sha256_of(self.root / relative)}  {relative}")
         target = self.root / CHECKSUM_FILE
@@ -259,7 +292,8 @@ class Catalog:
                 if model_id not in known:
                     raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
                 self._models[key] = self._load_model(
-                    self.root / "models" / quantity / f"{model_id}.toml")
+                    self.root / "models" / quantity / f"{model_id}.toml"
+                )
             return self._models[key]
 
     def _load_model(self, path: Path) -> Model:
@@ -277,10 +311,18 @@ class Catalog:
         data = _parse_toml(path, self.verified_bytes(path))
         validate(path, data, RELEASE)
         if data["release"] != release_id:
-            raise DatasetError(path, f"field 'release' is {data['release']!r}, "
-                               f"the file name says {release_id!r}")
-        return Release(release_id, data["status"], str(data["date"]), data["notes"],
-                       MappingProxyType(dict(data["models"])), path)
+            raise DatasetError(
+                path, f"field 'release' is {data['release']!r}, the file name says {release_id!r}"
+            )
+        return Release(
+            release_id,
+            data["status"],
+            str(data["date"]),
+            data["notes"],
+            MappingProxyType(dict(data["models"])),
+            path,
+            self,
+        )
 
     def table_path(self, name: str) -> Path:
         path = self.root / "tables" / name
@@ -321,9 +363,10 @@ class Catalog:
         path = self.table_path(name)
         data = self.verified_bytes(path)
         with _TABLE_LOCK, netCDF4.Dataset(path.name, mode="r", memory=data) as handle:
-            return {key: (_read_only(np.array(var[:], dtype=float)),
-                          str(getattr(var, "units", "1")))
-                    for key, var in handle.variables.items()}
+            return {
+                key: (read_only(np.array(var[:], dtype=float)), str(getattr(var, "units", "1")))
+                for key, var in handle.variables.items()
+            }
 
 
 def _parse_toml(path: Path, raw: bytes) -> dict:
@@ -345,10 +388,13 @@ def _atomic_write_text(target: Path, text: str) -> None:
             tmp.unlink(missing_ok=True)
         except OSError:
             pass
-        raise DatasetError(target, f"cannot be written ({exc.strerror or exc}): this "
-                           "command changes the datasets folder itself, which is read-only "
-                           "here (an installed copy?); run it in a writable checkout, or "
-                           "on a writable copy (--root or MATPROPS_DATASETS)") from exc
+        raise DatasetError(
+            target,
+            f"cannot be written ({exc.strerror or exc}): this "
+            "command changes the datasets folder itself, which is read-only "
+            "here (an installed copy?); run it in a writable checkout, or "
+            "on a writable copy (--root or MATPROPS_DATASETS)",
+        ) from exc
 
 
 _DEFAULT: list[Catalog] = []
@@ -391,40 +437,3 @@ def catalog_at(root: Path | str | None) -> Catalog:
         if root not in _CATALOGS:
             _CATALOGS[root] = Catalog(root)
         return _CATALOGS[root]
-
-
-def main(argv=None) -> int:
-    """Developer tool: ``python -m matprops.catalog [--update-checksums]``.
-
-    Checks every data file (see :func:`matprops.integrity.check`); exit status 1 when
-    anything is wrong.
-    """
-    import argparse
-    import sys
-
-    from .errors import Error
-    from .integrity import check
-
-    parser = argparse.ArgumentParser(prog="python -m matprops.catalog",
-                                     description="Check or re-record dataset checksums.")
-    parser.add_argument("--update-checksums", action="store_true",
-                        help="record the sha256 of every dataset file (after a deliberate change)")
-    parser.add_argument("--root", type=Path, default=None, help="datasets folder")
-    args = parser.parse_args(argv)
-    try:
-        catalog = Catalog(args.root)
-        if args.update_checksums:
-            print(f"wrote {catalog.write_checksums()}")
-    except Error as exc:  # e.g. a read-only install, MATPROPS_DATASETS pointing nowhere
-        print(f"error: {exc}", file=sys.stderr)
-        return 2
-    problems, checked = check(catalog)
-    for problem in problems:
-        print(f"error: {problem}")
-    print(f"{catalog.root}: all {checked} dataset files verified" if not problems
-          else f"{len(problems)} problem(s) in {catalog.root}")
-    return 1 if problems else 0
-
-
-if __name__ == "__main__":
-    raise SystemExit(main())

@@ -25,7 +25,7 @@ from pathlib import Path
 
 import numpy as np
 
-from .errors import Error, InputError
+from ..errors import Error, InputError
 
 __all__ = ["FORMATS", "plot"]
 
@@ -44,23 +44,27 @@ def _matplotlib():
 
 
 def _x_axis(data, x):
-    from .tables import AXES, axis
+    from ..material.tables import AXES, axis
 
     if x is not None:
         name = axis(x).name
         if name not in data.dims:
-            raise InputError("x", f"an axis of the table with several values "
-                             f"({', '.join(d for d in data.dims if d in AXES) or 'none'})",
-                             repr(x))
+            raise InputError(
+                "x",
+                f"an axis of the table with several values "
+                f"({', '.join(d for d in data.dims if d in AXES) or 'none'})",
+                repr(x),
+            )
         if AXES[name].category:
-            raise InputError("x", "a numeric axis (not a category such as carrier)",
-                             repr(x))
+            raise InputError("x", "a numeric axis (not a category such as carrier)", repr(x))
         return name
-    numeric = [d for d in AXES if d in data.dims and not AXES[d].category
-               and data.sizes[d] > 1]
+    numeric = [d for d in AXES if d in data.dims and not AXES[d].category and data.sizes[d] > 1]
     if not numeric:
-        raise InputError("x", "an axis with at least two values to plot against "
-                         "(e.g. a temperature range)", "none in the table")
+        raise InputError(
+            "x",
+            "an axis with at least two values to plot against (e.g. a temperature range)",
+            "none in the table",
+        )
     return max(numeric, key=lambda d: data.sizes[d])
 
 
@@ -78,7 +82,7 @@ def _x_values(data, x):
     values = data[x].values
     asked = data[x].attrs.get("requested_units")
     if x == "temperature" and asked and asked != "K":
-        from .units import Q_
+        from ..units import Q_
 
         return Q_(values, "K").m_as(asked)
     return values
@@ -91,7 +95,7 @@ def _point(data, dim, value) -> str:
     if dim == "temperature":
         asked = data[dim].attrs.get("requested_units")
         if asked and asked != "K":
-            from .units import Q_
+            from ..units import Q_
 
             return f"T = {Q_(float(value), 'K').m_as(asked):g} {asked}"
         return f"T = {value:g} K"
@@ -99,7 +103,7 @@ def _point(data, dim, value) -> str:
 
 
 def _log_y(data, name) -> bool:
-    from .tables import QUANTITIES
+    from ..material.tables import QUANTITIES
 
     values = np.asarray(data[name].values, dtype=float)
     finite = values[np.isfinite(values)]
@@ -111,15 +115,25 @@ def _log_y(data, name) -> bool:
 
 def _caption(data) -> str:
     lines = [f"Sources: {data.attrs.get('references', '(none)')}".replace("\n", "; ")]
-    lines.append(f"{data.attrs.get('source', 'matprops')}. Model estimates; defer to "
-                 "measured data where decisions depend on them.")
+    lines.append(
+        f"{data.attrs.get('source', 'matprops')}. Model estimates; defer to "
+        "measured data where decisions depend on them."
+    )
     if data.attrs.get("scenario_note"):
         lines.insert(0, data.attrs["scenario_note"])
     return "\n".join(textwrap.fill(line, 150) for line in lines)
 
 
-def plot(data, path=None, *, x: str | None = None, variables=None, title: str | None = None,
-         format: str | None = None, overwrite: bool = False):
+def plot(
+    data,
+    path=None,
+    *,
+    x: str | None = None,
+    variables=None,
+    title: str | None = None,
+    format: str | None = None,
+    overwrite: bool = False,
+):
     """Draw a table or a comparison; write it to ``path`` (.png or .svg) if given.
 
     Parameters
@@ -142,12 +156,16 @@ def plot(data, path=None, *, x: str | None = None, variables=None, title: str | 
     _, Figure = _matplotlib()
     data = data.compute() if any(v.chunks for v in data.variables.values()) else data
     x = _x_axis(data, x)
-    names = list(variables) if variables else [
-        n for n in data.data_vars if not n.endswith("spread") and x in data[n].dims]
+    names = (
+        list(variables)
+        if variables
+        else [n for n in data.data_vars if not n.endswith("spread") and x in data[n].dims]
+    )
     for name in names:
         if name not in data.data_vars:
-            raise InputError("variables", f"variables of the table "
-                             f"({', '.join(data.data_vars)})", repr(name))
+            raise InputError(
+                "variables", f"variables of the table ({', '.join(data.data_vars)})", repr(name)
+            )
     if not names:
         raise InputError("x", "an axis some variable depends on", repr(x))
     spreads = [f"{n}_relative_spread" for n in names if f"{n}_relative_spread" in data]
@@ -155,23 +173,27 @@ def plot(data, path=None, *, x: str | None = None, variables=None, title: str | 
     heights = [3] * len(names) + [1.4] * len(spreads)
     caption = _caption(data)
     caption_lines = caption.count("\n") + 1
-    figure = Figure(figsize=(8.0, sum(heights) + 1.2 + 0.13 * caption_lines),
-                    layout="constrained")
-    axes = figure.subplots(panels, 1, sharex=True, squeeze=False,
-                           gridspec_kw={"height_ratios": heights})[:, 0]
+    figure = Figure(figsize=(8.0, sum(heights) + 1.2 + 0.13 * caption_lines), layout="constrained")
+    axes = figure.subplots(
+        panels, 1, sharex=True, squeeze=False, gridspec_kw={"height_ratios": heights}
+    )[:, 0]
     xs = _x_values(data, x)
     for ax, name in zip(axes, names + spreads, strict=True):
         variable = data[name]
         others = [d for d in variable.dims if d != x]
         combos = list(itertools.product(*(range(data.sizes[d]) for d in others)))
         if len(combos) > MAX_LINES:
-            raise InputError("x", f"a plot of at most {MAX_LINES} lines per panel (one per "
-                             f"value of {', '.join(others)}); give fewer values",
-                             f"{len(combos)} lines")
+            raise InputError(
+                "x",
+                f"a plot of at most {MAX_LINES} lines per panel (one per "
+                f"value of {', '.join(others)}); give fewer values",
+                f"{len(combos)} lines",
+            )
         for combo in combos:
             selection = variable.isel(dict(zip(others, combo, strict=True)))
-            label = ", ".join(_point(data, d, data[d].values[i])
-                              for d, i in zip(others, combo, strict=True))
+            label = ", ".join(
+                _point(data, d, data[d].values[i]) for d, i in zip(others, combo, strict=True)
+            )
             ys = selection.transpose(x).values
             if name in spreads:
                 ys = 100 * ys
@@ -185,7 +207,7 @@ def plot(data, path=None, *, x: str | None = None, variables=None, title: str | 
         ax.grid(True, which="major", alpha=0.3)
         if len(combos) > 1 and name not in spreads:
             ax.legend(fontsize=8, ncols=2 if len(combos) > 6 else 1)
-    from .tables import AXES
+    from ..material.tables import AXES
 
     if AXES[x].log and np.all(xs > 0):
         axes[-1].set_xscale("log")
@@ -194,6 +216,7 @@ def plot(data, path=None, *, x: str | None = None, variables=None, title: str | 
     figure.get_layout_engine().set(h_pad=0.08)
     figure.supxlabel(caption, fontsize=6.5, x=0.01, ha="left", linespacing=1.3)
     if path is not None:
-        atomic_write([(Path(path), lambda tmp: figure.savefig(tmp, format=format,
-                                                              dpi=150))], overwrite)
+        atomic_write(
+            [(Path(path), lambda tmp: figure.savefig(tmp, format=format, dpi=150))], overwrite
+        )
     return figure

@@ -35,13 +35,27 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .errors import InputError, UnknownModelError, UnknownQuantityError, ValidityWarning
-from .units import cf_units, to_magnitude
-from .units import name as check_name
-from .units import names as check_names
+from ..errors import (
+    InputError,
+    UnknownModelError,
+    UnknownQuantityError,
+    ValidityWarning,
+)
+from ..units import cf_units, to_magnitude
+from ..units import name as check_name
+from ..units import names as check_names
 
-__all__ = ["AXES", "QUANTITIES", "Axis", "Tabulated", "available", "axis", "cf_units",
-           "compare", "table"]
+__all__ = [
+    "AXES",
+    "QUANTITIES",
+    "Axis",
+    "Tabulated",
+    "available",
+    "axis",
+    "cf_units",
+    "compare",
+    "table",
+]
 
 BLOCK = 1 << 18  # points per evaluation block (~2 MB per float64 temporary)
 
@@ -81,40 +95,72 @@ def _catalogue_defects() -> tuple[str, ...]:
     """Names of the defect catalogue, for the ``defect`` axis (empty if unreadable:
     the recombination methods then name what exists)."""
     try:
-        from .defects import names
+        from ..catalogue.defects import names
 
         return tuple(names())
-    except Exception:  # noqa: BLE001 - a help text must not stop an import
+    except Exception:
         return ()
 
 
 # The order here is the order of a table's dimensions (last varies fastest).
-AXES: dict[str, Axis] = {a.name: a for a in (
-    Axis("carrier", None, None, "charge carrier", choices=("electron", "hole")),
-    Axis("plane", None, None, "crystal plane (Miller indices)",
-         choices=("100", "110", "111")),
-    Axis("defect", None, None, "recombination centre of the defect catalogue",
-         choices=_catalogue_defects()),
-    Axis("temperature", "T", "K", "temperature", "positive"),
-    Axis("acceptor_density", "Na", "cm^-3", "acceptor density", "non-negative", log=True),
-    Axis("donor_density", "Nd", "cm^-3", "donor density", "non-negative", log=True),
-    Axis("excess_density", "excess", "cm^-3", "excess carrier density", "non-negative",
-         log=True),
-    Axis("electron_density", "n", "cm^-3", "electron density", "non-negative", log=True),
-    Axis("hole_density", "p", "cm^-3", "hole density", "non-negative", log=True),
-    Axis("field", None, "V/cm", "electric field strength", "non-negative", log=True),
-    Axis("resistivity", "rho", "ohm*cm", "resistivity", "positive", log=True),
-    Axis("defect_density", None, "cm^-3", "defect density", "non-negative", log=True),
-    Axis("generation", None, "cm^-2/s", "photogeneration per area (absorbed photon flux)",
-         "positive", log=True),
-    Axis("thickness", None, "cm", "sample thickness", "positive"),
-    Axis("wavelength", None, "nm", "vacuum wavelength", "positive"),
-    Axis("dopant", None, None, "dopant species",
-         choices=("phosphorus", "arsenic", "antimony", "boron", "aluminium", "gallium",
-                  "indium")),
-    Axis("dopant_density", "N", "cm^-3", "density of one dopant species", "non-negative",
-         log=True),
-)}
+AXES: dict[str, Axis] = {
+    a.name: a
+    for a in (
+        Axis("carrier", None, None, "charge carrier", choices=("electron", "hole")),
+        Axis("plane", None, None, "crystal plane (Miller indices)", choices=("100", "110", "111")),
+        Axis(
+            "defect",
+            None,
+            None,
+            "recombination centre of the defect catalogue",
+            choices=_catalogue_defects(),
+        ),
+        Axis("temperature", "T", "K", "temperature", "positive"),
+        Axis("acceptor_density", "Na", "cm^-3", "acceptor density", "non-negative", log=True),
+        Axis("donor_density", "Nd", "cm^-3", "donor density", "non-negative", log=True),
+        Axis(
+            "excess_density", "excess", "cm^-3", "excess carrier density", "non-negative", log=True
+        ),
+        Axis("electron_density", "n", "cm^-3", "electron density", "non-negative", log=True),
+        Axis("hole_density", "p", "cm^-3", "hole density", "non-negative", log=True),
+        Axis("field", None, "V/cm", "electric field strength", "non-negative", log=True),
+        Axis("resistivity", "rho", "ohm*cm", "resistivity", "positive", log=True),
+        Axis("defect_density", None, "cm^-3", "defect density", "non-negative", log=True),
+        Axis(
+            "generation",
+            None,
+            "cm^-2/s",
+            "photogeneration per area (absorbed photon flux)",
+            "positive",
+            log=True,
+        ),
+        Axis("thickness", None, "cm", "sample thickness", "positive"),
+        Axis("wavelength", None, "nm", "vacuum wavelength", "positive"),
+        Axis(
+            "dopant",
+            None,
+            None,
+            "dopant species",
+            choices=(
+                "phosphorus",
+                "arsenic",
+                "antimony",
+                "boron",
+                "aluminium",
+                "gallium",
+                "indium",
+            ),
+        ),
+        Axis(
+            "dopant_density",
+            "N",
+            "cm^-3",
+            "density of one dopant species",
+            "non-negative",
+            log=True,
+        ),
+    )
+}
 _ALIASES = {a.alias: a.name for a in AXES.values() if a.alias}
 
 
@@ -123,8 +169,7 @@ def axis(name: str) -> Axis:
     key = _ALIASES.get(name, name)
     if key not in AXES:
         known = sorted(AXES) + sorted(_ALIASES)
-        raise InputError(name, f"a grid axis: one of {', '.join(known)}",
-                         "an unknown keyword")
+        raise InputError(name, f"a grid axis: one of {', '.join(known)}", "an unknown keyword")
     return AXES[key]
 
 
@@ -176,8 +221,11 @@ class Tabulated:
         """Axis -> (the method's parameter name, whether the parameter is required)."""
         method = getattr(type(si), self.method or self.name)
         if id(method) not in self._signature:
-            params = [p for p in inspect.signature(method).parameters.values()
-                      if p.kind in (p.POSITIONAL_OR_KEYWORD, p.KEYWORD_ONLY)][1:]  # no self
+            params = [
+                p
+                for p in inspect.signature(method).parameters.values()
+                if p.kind in (p.POSITIONAL_OR_KEYWORD, p.KEYWORD_ONLY)
+            ][1:]  # no self
             by_name = {p.name: p for p in params}
             resolved = {}
             for ax, where in self.takes.items():
@@ -193,7 +241,7 @@ class Tabulated:
     def model_quantities(self) -> tuple[str, ...]:
         if self.needs:
             return self.needs
-        from .material import DERIVED
+        from .derived import DERIVED
 
         return tuple(DERIVED[self.name][0]) if self.name in DERIVED else (self.name,)
 
@@ -201,8 +249,8 @@ class Tabulated:
         """Call the Silicon method with axis values (missing optional axes: defaults)."""
         names = self.parameters(si)
         return getattr(si, self.method or self.name)(
-            **{names[ax][0]: value for ax, value in values.items() if ax in names},
-            **self.fixed)
+            **{names[ax][0]: value for ax, value in values.items() if ax in names}, **self.fixed
+        )
 
 
 def _registry(*entries: Tabulated) -> dict[str, Tabulated]:
@@ -216,142 +264,294 @@ def _registry(*entries: Tabulated) -> dict[str, Tabulated]:
 
 
 _T = {"temperature": 0}
-_DOPED = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
-          "electron_density": "n", "hole_density": "p"}
+_DOPED = {
+    "temperature": 0,
+    "acceptor_density": "Na",
+    "donor_density": "Nd",
+    "electron_density": "n",
+    "hole_density": "p",
+}
 _DOPING = ("acceptor_density", "donor_density", "electron_density", "hole_density")
 _EQUILIBRIUM_AXES = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"}
-_DOPANTS_AND_CARRIERS = {"acceptor_density": "Na", "donor_density": "Nd",
-                         "electron_density": "n", "hole_density": "p"}
+_DOPANTS_AND_CARRIERS = {
+    "acceptor_density": "Na",
+    "donor_density": "Nd",
+    "electron_density": "n",
+    "hole_density": "p",
+}
 _DOPED_SHIFTED = {"temperature": 1, **_DOPANTS_AND_CARRIERS}  # after a carrier argument
 _FROM_RESISTIVITY = {"resistivity": 0, "temperature": 1, "dopant": "dopant"}
-_LIFETIME = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd",
-             "excess_density": "excess"}
+_LIFETIME = {
+    "temperature": 0,
+    "acceptor_density": "Na",
+    "donor_density": "Nd",
+    "excess_density": "excess",
+}
 _INJECTED = ("acceptor_density", "donor_density", "excess_density")
 _EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
 # One entry per tabulable quantity; add one here when a Silicon method lands.
 QUANTITIES: dict[str, Tabulated] = _registry(
-    Tabulated("band_gap", _T, (
-        ("band_gap", "fundamental (indirect) band gap, undoped, no narrowing"),)),
-    Tabulated("intrinsic_density", _T, (
-        ("intrinsic_density", "intrinsic carrier density, undoped"),), log=True),
-    Tabulated("densities_of_states", _T, (
-        ("conduction_band_states", "effective density of states of the conduction band"),
-        ("valence_band_states", "effective density of states of the valence band")),
-        log=True),
+    Tabulated(
+        "band_gap", _T, (("band_gap", "fundamental (indirect) band gap, undoped, no narrowing"),)
+    ),
+    Tabulated(
+        "intrinsic_density",
+        _T,
+        (("intrinsic_density", "intrinsic carrier density, undoped"),),
+        log=True,
+    ),
+    Tabulated(
+        "densities_of_states",
+        _T,
+        (
+            ("conduction_band_states", "effective density of states of the conduction band"),
+            ("valence_band_states", "effective density of states of the valence band"),
+        ),
+        log=True,
+    ),
     Tabulated("lattice_constant", _T, (("lattice_constant", "cubic lattice constant"),)),
     Tabulated("density", _T, (("density", "mass density"),)),
     Tabulated("atomic_density", _T, (("atomic_density", "silicon atoms per volume"),)),
-    Tabulated("surface_atom_density", {"plane": 0, "temperature": 1}, (
-        ("surface_atom_density", "atoms per area in one atomic layer of the plane"),)),
-    Tabulated("dangling_bond_density", {"plane": 0, "temperature": 1}, (
-        ("dangling_bond_density",
-         "dangling bonds per area of the ideal unreconstructed surface"),)),
+    Tabulated(
+        "surface_atom_density",
+        {"plane": 0, "temperature": 1},
+        (("surface_atom_density", "atoms per area in one atomic layer of the plane"),),
+    ),
+    Tabulated(
+        "dangling_bond_density",
+        {"plane": 0, "temperature": 1},
+        (
+            (
+                "dangling_bond_density",
+                "dangling bonds per area of the ideal unreconstructed surface",
+            ),
+        ),
+    ),
     Tabulated("molar_mass", {}, (("molar_mass", "molar mass (standard atomic weight)"),)),
-    Tabulated("permittivity", {}, (
-        ("relative_permittivity", "static relative permittivity"),)),
-    Tabulated("absorption", {"wavelength": 0, "temperature": 1}, (
-        ("absorption_coefficient", "band-to-band absorption coefficient"),), log=True),
-    Tabulated("refractive_index", {"wavelength": 0, "temperature": 1}, (
-        ("refractive_index", "real part of the complex refractive index"),)),
-    Tabulated("free_carrier_absorption",
-              {"wavelength": 0, "electron_density": "n", "hole_density": "p"}, (
-                  ("free_carrier_absorption_coefficient",
-                   "free-carrier absorption coefficient"),),
-              wants=("electron_density", "hole_density"), log=True),
+    Tabulated("permittivity", {}, (("relative_permittivity", "static relative permittivity"),)),
+    Tabulated(
+        "absorption",
+        {"wavelength": 0, "temperature": 1},
+        (("absorption_coefficient", "band-to-band absorption coefficient"),),
+        log=True,
+    ),
+    Tabulated(
+        "refractive_index",
+        {"wavelength": 0, "temperature": 1},
+        (("refractive_index", "real part of the complex refractive index"),),
+    ),
+    Tabulated(
+        "free_carrier_absorption",
+        {"wavelength": 0, "electron_density": "n", "hole_density": "p"},
+        (("free_carrier_absorption_coefficient", "free-carrier absorption coefficient"),),
+        wants=("electron_density", "hole_density"),
+        log=True,
+    ),
     # doping axis (methods of the carrier family; inert until the release serves them)
-    Tabulated("gap_narrowing", _DOPED, (
-        ("gap_narrowing", "band-gap narrowing"),), wants=_DOPING),
-    Tabulated("effective_intrinsic_density", _DOPED, (
-        ("effective_intrinsic_density",
-         "effective intrinsic carrier density, with band-gap narrowing"),),
-        wants=_DOPING, log=True),
-    Tabulated("equilibrium",
-              {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"}, (
-                  ("fermi_level", "Fermi level from the intrinsic level of undoped silicon"),
-                  ("fermi_level_from_conduction_edge",
-                   "Fermi level from the conduction-band edge after narrowing"),
-                  ("equilibrium_electron_density", "electron density in equilibrium"),
-                  ("equilibrium_hole_density", "hole density in equilibrium"),
-                  ("ionised_donor_density", "ionised donor density"),
-                  ("ionised_acceptor_density", "ionised acceptor density")),
-              fields=("fermi_level", "fermi_level_from_conduction_edge", "electron_density",
-                      "hole_density", "ionised_donors", "ionised_acceptors"),
-              wants=_DOPING[:2]),
-    Tabulated("ionisation", {"dopant_density": 0, "dopant": 1}, (
-        ("ionisation_energy", "ionisation energy of the dopant level"),
-        ("localised_share", "share of the dopant's states still localised")),
-        method="dopant_level", wants=("dopant_density",)),
+    Tabulated("gap_narrowing", _DOPED, (("gap_narrowing", "band-gap narrowing"),), wants=_DOPING),
+    Tabulated(
+        "effective_intrinsic_density",
+        _DOPED,
+        (
+            (
+                "effective_intrinsic_density",
+                "effective intrinsic carrier density, with band-gap narrowing",
+            ),
+        ),
+        wants=_DOPING,
+        log=True,
+    ),
+    Tabulated(
+        "equilibrium",
+        {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"},
+        (
+            ("fermi_level", "Fermi level from the intrinsic level of undoped silicon"),
+            (
+                "fermi_level_from_conduction_edge",
+                "Fermi level from the conduction-band edge after narrowing",
+            ),
+            ("equilibrium_electron_density", "electron density in equilibrium"),
+            ("equilibrium_hole_density", "hole density in equilibrium"),
+            ("ionised_donor_density", "ionised donor density"),
+            ("ionised_acceptor_density", "ionised acceptor density"),
+        ),
+        fields=(
+            "fermi_level",
+            "fermi_level_from_conduction_edge",
+            "electron_density",
+            "hole_density",
+            "ionised_donors",
+            "ionised_acceptors",
+        ),
+        wants=_DOPING[:2],
+    ),
+    Tabulated(
+        "ionisation",
+        {"dopant_density": 0, "dopant": 1},
+        (
+            ("ionisation_energy", "ionisation energy of the dopant level"),
+            ("localised_share", "share of the dopant's states still localised"),
+        ),
+        method="dopant_level",
+        wants=("dopant_density",),
+    ),
     # transport (methods of the transport family)
-    Tabulated("mobility", {"carrier": 0, **_DOPED_SHIFTED}, (
-        ("mobility", "low-field carrier mobility"),), log=True),
-    Tabulated("high_field_mobility", {"carrier": 0, "field": 1, "temperature": 2,
-                                      **_DOPANTS_AND_CARRIERS}, (
-        ("high_field_mobility", "carrier mobility in an electric field"),),
-        needs=("high_field_mobility", "mobility", "saturation_velocity"), log=True),
-    Tabulated("diffusivity", {"carrier": 0, **_DOPED_SHIFTED}, (
-        ("diffusivity", "carrier diffusion coefficient (Einstein relation)"),), log=True),
-    Tabulated("saturation_velocity", {"carrier": 0, "temperature": 1}, (
-        ("saturation_velocity", "saturation drift velocity"),)),
-    Tabulated("thermal_velocity", {"carrier": 0, "temperature": 1}, (
-        ("thermal_velocity", "thermal velocity (mean thermal speed)"),)),
-    Tabulated("resistivity", _EQUILIBRIUM_AXES, (
-        ("electrical_resistivity", "resistivity of silicon in equilibrium"),),
-        wants=_DOPING[:2], log=True),
-    Tabulated("conductivity", _EQUILIBRIUM_AXES, (
-        ("electrical_conductivity", "conductivity of silicon in equilibrium"),),
-        wants=_DOPING[:2], log=True),
-    Tabulated("doping_from_resistivity", _FROM_RESISTIVITY, (
-        ("doping_from_resistivity",
-         "density of the dopant species that gives the resistivity"),),
-        log=True),
-    Tabulated("standard_resistivity", _EQUILIBRIUM_AXES, (
-        ("standard_resistivity", "resistivity by the standard conversion (23 degC)"),),
-        method="resistivity", fixed={"conversion": "standard"}, wants=_DOPING[:2],
-        log=True, by_default=False),
-    Tabulated("standard_dopant_density", _FROM_RESISTIVITY, (
-        ("standard_dopant_density", "dopant density by the standard conversion (23 degC)"),),
-        method="doping_from_resistivity", fixed={"conversion": "standard"}, log=True,
-        by_default=False),
+    Tabulated(
+        "mobility",
+        {"carrier": 0, **_DOPED_SHIFTED},
+        (("mobility", "low-field carrier mobility"),),
+        log=True,
+    ),
+    Tabulated(
+        "high_field_mobility",
+        {"carrier": 0, "field": 1, "temperature": 2, **_DOPANTS_AND_CARRIERS},
+        (("high_field_mobility", "carrier mobility in an electric field"),),
+        needs=("high_field_mobility", "mobility", "saturation_velocity"),
+        log=True,
+    ),
+    Tabulated(
+        "diffusivity",
+        {"carrier": 0, **_DOPED_SHIFTED},
+        (("diffusivity", "carrier diffusion coefficient (Einstein relation)"),),
+        log=True,
+    ),
+    Tabulated(
+        "saturation_velocity",
+        {"carrier": 0, "temperature": 1},
+        (("saturation_velocity", "saturation drift velocity"),),
+    ),
+    Tabulated(
+        "thermal_velocity",
+        {"carrier": 0, "temperature": 1},
+        (("thermal_velocity", "thermal velocity (mean thermal speed)"),),
+    ),
+    Tabulated(
+        "resistivity",
+        _EQUILIBRIUM_AXES,
+        (("electrical_resistivity", "resistivity of silicon in equilibrium"),),
+        wants=_DOPING[:2],
+        log=True,
+    ),
+    Tabulated(
+        "conductivity",
+        _EQUILIBRIUM_AXES,
+        (("electrical_conductivity", "conductivity of silicon in equilibrium"),),
+        wants=_DOPING[:2],
+        log=True,
+    ),
+    Tabulated(
+        "doping_from_resistivity",
+        _FROM_RESISTIVITY,
+        (("doping_from_resistivity", "density of the dopant species that gives the resistivity"),),
+        log=True,
+    ),
+    Tabulated(
+        "standard_resistivity",
+        _EQUILIBRIUM_AXES,
+        (("standard_resistivity", "resistivity by the standard conversion (23 degC)"),),
+        method="resistivity",
+        fixed={"conversion": "standard"},
+        wants=_DOPING[:2],
+        log=True,
+        by_default=False,
+    ),
+    Tabulated(
+        "standard_dopant_density",
+        _FROM_RESISTIVITY,
+        (("standard_dopant_density", "dopant density by the standard conversion (23 degC)"),),
+        method="doping_from_resistivity",
+        fixed={"conversion": "standard"},
+        log=True,
+        by_default=False,
+    ),
     # recombination (methods of the recombination family)
-    Tabulated("radiative_coefficient", _T, (
-        ("radiative_coefficient", "radiative recombination coefficient"),), log=True),
-    Tabulated("intrinsic_lifetime", _LIFETIME, (
-        ("intrinsic_lifetime", "intrinsic (Auger and radiative) lifetime"),),
-        wants=_INJECTED, log=True, needs=("intrinsic_lifetime", *_EQUILIBRIUM)),
-    Tabulated("auger_lifetime", _LIFETIME, (
-        ("auger_lifetime", "Auger lifetime (the Auger part of the intrinsic lifetime)"),),
-        wants=_INJECTED, log=True),
-    Tabulated("srh_lifetime", {"defect": 0, "temperature": 1, "acceptor_density": "Na",
-                               "donor_density": "Nd", "excess_density": "excess",
-                               "defect_density": "density"},
-              (("srh_lifetime", "Shockley-Read-Hall lifetime through the defect"),),
-              log=True, needs=("srh_lifetime", "thermal_velocity", "band_gap", *_EQUILIBRIUM)),
-    Tabulated("effective_lifetime",
-              {**_LIFETIME, "defect": "defect", "defect_density": "density"},
-              (("effective_lifetime", "effective bulk lifetime (intrinsic and SRH)"),),
-              fields=("effective_lifetime",), wants=_INJECTED, log=True),
-    Tabulated("implied_voltage",
-              {"temperature": 0, "generation": 1, "thickness": 2, "acceptor_density": "Na",
-               "donor_density": "Nd", "defect": "defect", "defect_density": "density"},
-              (("implied_voltage", ("implied open-circuit voltage (steady state, uniform "
-                                    "generation, flat carrier profile)")),
-               ("steady_state_excess_density", "excess carrier density in steady state")),
-              fields=("implied_voltage", "excess_density")),
+    Tabulated(
+        "radiative_coefficient",
+        _T,
+        (("radiative_coefficient", "radiative recombination coefficient"),),
+        log=True,
+    ),
+    Tabulated(
+        "intrinsic_lifetime",
+        _LIFETIME,
+        (("intrinsic_lifetime", "intrinsic (Auger and radiative) lifetime"),),
+        wants=_INJECTED,
+        log=True,
+        needs=("intrinsic_lifetime", *_EQUILIBRIUM),
+    ),
+    Tabulated(
+        "auger_lifetime",
+        _LIFETIME,
+        (("auger_lifetime", "Auger lifetime (the Auger part of the intrinsic lifetime)"),),
+        wants=_INJECTED,
+        log=True,
+    ),
+    Tabulated(
+        "srh_lifetime",
+        {
+            "defect": 0,
+            "temperature": 1,
+            "acceptor_density": "Na",
+            "donor_density": "Nd",
+            "excess_density": "excess",
+            "defect_density": "density",
+        },
+        (("srh_lifetime", "Shockley-Read-Hall lifetime through the defect"),),
+        log=True,
+        needs=("srh_lifetime", "thermal_velocity", "band_gap", *_EQUILIBRIUM),
+    ),
+    Tabulated(
+        "effective_lifetime",
+        {**_LIFETIME, "defect": "defect", "defect_density": "density"},
+        (("effective_lifetime", "effective bulk lifetime (intrinsic and SRH)"),),
+        fields=("effective_lifetime",),
+        wants=_INJECTED,
+        log=True,
+    ),
+    Tabulated(
+        "implied_voltage",
+        {
+            "temperature": 0,
+            "generation": 1,
+            "thickness": 2,
+            "acceptor_density": "Na",
+            "donor_density": "Nd",
+            "defect": "defect",
+            "defect_density": "density",
+        },
+        (
+            (
+                "implied_voltage",
+                (
+                    "implied open-circuit voltage (steady state, uniform "
+                    "generation, flat carrier profile)"
+                ),
+            ),
+            ("steady_state_excess_density", "excess carrier density in steady state"),
+        ),
+        fields=("implied_voltage", "excess_density"),
+    ),
 )
 
 
 def available(si) -> list[str]:
     """Registry quantities that ``si`` can evaluate (its release serves their models)."""
     served = si.models  # (a dict built on each access: once here)
-    return [name for name, entry in QUANTITIES.items()
-            if hasattr(si, entry.method or name)
-            and all(q in served for q in entry.model_quantities())]
+    return [
+        name
+        for name, entry in QUANTITIES.items()
+        if hasattr(si, entry.method or name) and all(q in served for q in entry.model_quantities())
+    ]
 
 
 # --------------------------------------------------------------------------- units
 
-_DISPLAY_TEMPERATURE = {"kelvin": "K", "degree_Celsius": "degC",
-                        "degree_Fahrenheit": "degF", "degree_Rankine": "degR"}
+_DISPLAY_TEMPERATURE = {
+    "kelvin": "K",
+    "degree_Celsius": "degC",
+    "degree_Fahrenheit": "degF",
+    "degree_Rankine": "degR",
+}
 
 
 # --------------------------------------------------------------------------- grids
@@ -373,17 +573,29 @@ def _grid_values(ax: Axis, value):
             raise InputError(ax.name, "at least one value", "an empty list")
         scalar = isinstance(value, str) or np.ndim(value) == 0
         return np.asarray(cleaned, dtype=object), None, not scalar
-    if (isinstance(value, (list, tuple)) and value and all(isinstance(v, str) for v in value)
-            and any(v in QUANTITIES for v in value)):
-        raise InputError(ax.name, f"numbers in {ax.units} (quantity names go in the "
-                             "first argument, as one list)", repr(value))
+    if (
+        isinstance(value, (list, tuple))
+        and value
+        and all(isinstance(v, str) for v in value)
+        and any(v in QUANTITIES for v in value)
+    ):
+        raise InputError(
+            ax.name,
+            f"numbers in {ax.units} (quantity names go in the first argument, as one list)",
+            repr(value),
+        )
     requested = None
     if isinstance(value, pint.Quantity) and ax.name == "temperature":
         for name in value.units._units:
             requested = _DISPLAY_TEMPERATURE.get(name)
     elif isinstance(value, str) and ax.name == "temperature":
-        for key, short in (("degC", "degC"), ("°C", "degC"), ("celsius", "degC"),
-                           ("degF", "degF"), ("°F", "degF")):
+        for key, short in (
+            ("degC", "degC"),
+            ("°C", "degC"),
+            ("celsius", "degC"),
+            ("degF", "degF"),
+            ("°F", "degF"),
+        ):
             if key.lower() in value.lower():
                 requested = short
     array = to_magnitude(value, ax.name, ax.units, ax.requirement)
@@ -404,8 +616,12 @@ class _Grid:
                 continue
             ax = axis(key)
             if ax.name in given:
-                raise InputError(key, f"given once (it names the same axis as "
-                                 f"{ax.name if key != ax.name else ax.alias!r})", "twice")
+                raise InputError(
+                    key,
+                    f"given once (it names the same axis as "
+                    f"{ax.name if key != ax.name else ax.alias!r})",
+                    "twice",
+                )
             given[ax.name] = value
         self.values: dict[str, np.ndarray] = {}
         self.requested: dict[str, str] = {}
@@ -451,8 +667,11 @@ class _Grid:
             ax = AXES[name]
             units = "" if ax.category else f", {ax.units}"
             if values.ndim == 0:
-                parts.append(f"{name}={values.item()!r}" if ax.category
-                             else f"{name}={values.item():g}{units.replace(',', '')}")
+                parts.append(
+                    f"{name}={values.item()!r}"
+                    if ax.category
+                    else f"{name}={values.item():g}{units.replace(',', '')}"
+                )
             else:
                 parts.append(f"{name}=<{values.size} values{units}>")
         return ", ".join(parts)
@@ -473,8 +692,11 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
                 continue
             chosen.append(entry)
         if not chosen:
-            raise InputError("quantities", "named, or a grid some quantity depends on "
-                             "(e.g. temperature)", "none of either")
+            raise InputError(
+                "quantities",
+                "named, or a grid some quantity depends on (e.g. temperature)",
+                "none of either",
+            )
         return chosen
     names = check_names(quantities)  # one name (not its letters) or several, as text
     if not names:
@@ -491,8 +713,9 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
         entry = QUANTITIES[name]
         missing = [a for a in entry.required(si) if a not in grid]
         if missing:
-            raise InputError(missing[0], f"given for {name} ({_axis_hint(AXES[missing[0]])})",
-                             "nothing")
+            raise InputError(
+                missing[0], f"given for {name} ({_axis_hint(AXES[missing[0]])})", "nothing"
+            )
         entries.append(entry)
     return entries
 
@@ -545,8 +768,7 @@ def _call_block(si, entry: Tabulated, values: Mapping[str, np.ndarray], dims: li
         if outs is None:
             units = [p.units for p in parts]
             outs = [np.empty(shape) for _ in parts]
-        index = tuple(picks[categories.index(d)] if d in categories else slice(None)
-                      for d in dims)
+        index = tuple(picks[categories.index(d)] if d in categories else slice(None) for d in dims)
         sub_shape = [values[d].size for d in numeric]
         for out, part, unit in zip(outs, parts, units, strict=True):
             magnitude = part.m_as(unit) if part.units != unit else part.magnitude
@@ -618,7 +840,7 @@ def _in_blocks(si, entry, values, dims, units, progress=None, done=0, total=0):
 
 
 def _convert(values, unit, target):
-    from .units import Q_
+    from ..units import Q_
 
     return Q_(values, unit).m_as(target)
 
@@ -628,22 +850,21 @@ def _convert(values, unit, target):
 
 @functools.lru_cache(maxsize=8)
 def _rebuild(recipe):
-    """A Silicon from its recipe (release, overrides, strictness, datasets folder), once
-    per process: dask workers rebuild it instead of unpickling a bound one."""
-    from .catalog import Catalog, default_catalog
-    from .material import Silicon
+    """A material from its recipe (class, release, overrides, strictness, datasets
+    folder), once per process: dask workers rebuild it instead of unpickling a bound one."""
+    from ..catalogue.store import Catalog, default_catalog
 
-    root, release, overrides, strict = recipe
+    material, root, release, overrides, strict = recipe
     catalog = default_catalog() if root is None else Catalog(root)
-    return Silicon(release=release, models=dict(overrides), strict=strict, catalog=catalog)
+    return material(release=release, models=dict(overrides), strict=strict, catalog=catalog)
 
 
 def _recipe(si):
-    from .catalog import default_catalog
+    from ..catalogue.store import default_catalog
 
     root = None if si.catalog is default_catalog() else str(si.catalog.root)
     overrides = tuple(sorted((q, m) for q, m in si.models.items() if q in si.overridden))
-    return (root, si.release.id, overrides, si.strict)
+    return (type(si), root, si.release.id, overrides, si.strict)
 
 
 class _BlockFunction:
@@ -664,8 +885,11 @@ class _BlockFunction:
             if math.prod(values[d].size for d in self.dims) <= BLOCK:
                 outs, got = _call_block(si, entry, values, self.dims)
                 out = outs[self.part]
-                return out if got[self.part] == self.units else _convert(
-                    out, got[self.part], self.units)
+                return (
+                    out
+                    if got[self.part] == self.units
+                    else _convert(out, got[self.part], self.units)
+                )
             return _in_blocks(si, entry, values, self.dims, self.all_units)[self.part]
 
 
@@ -677,8 +901,7 @@ def _chunk_sizes(chunks, dims: list[str], grid: _Grid) -> dict[str, int]:
     elif isinstance(chunks, (int, np.integer)) and not isinstance(chunks, bool):
         sizes = dict.fromkeys(dims, int(chunks))
     else:
-        raise InputError("chunks", "a positive integer or a mapping axis -> integer",
-                         repr(chunks))
+        raise InputError("chunks", "a positive integer or a mapping axis -> integer", repr(chunks))
     out = {}
     for d in dims:
         size = sizes.get(d, grid.values[d].size)
@@ -695,7 +918,7 @@ def _evaluate_lazy(si, entry: Tabulated, grid: _Grid, chunks):
     units = _check_extremes(si, entry, grid, dims)  # warns or raises now, not in workers
     sizes = _chunk_sizes(chunks, dims, grid)
     scalars = {n: grid.values[n] for n in entry.takes if n in grid and n not in dims}
-    letters = "abcdefghijklmnopqrstuvwxyz"[:len(dims)]
+    letters = "abcdefghijklmnopqrstuvwxyz"[: len(dims)]
     arguments = []
     for d, letter in zip(dims, letters, strict=True):
         arguments += [da.from_array(grid.values[d], chunks=sizes[d]), letter]
@@ -704,8 +927,15 @@ def _evaluate_lazy(si, entry: Tabulated, grid: _Grid, chunks):
     token = _grid_token(grid, (recipe, sorted(sizes.items())))
     for part in range(len(units)):
         function = _BlockFunction(recipe, entry.name, dims, scalars, part, units)
-        outs.append(da.blockwise(function, letters, *arguments, dtype=float,
-                                 name=f"matprops-{entry.name}-{part}-{token}"))
+        outs.append(
+            da.blockwise(
+                function,
+                letters,
+                *arguments,
+                dtype=float,
+                name=f"matprops-{entry.name}-{part}-{token}",
+            )
+        )
     return dims, outs, units
 
 
@@ -716,16 +946,23 @@ def _grid_token(grid: _Grid, recipe) -> str:
     digest = hashlib.sha1(repr(recipe).encode())
     for d, values in grid.values.items():  # every axis, scalars included
         digest.update(d.encode())
-        digest.update(np.ascontiguousarray(values).astype(str if AXES[d].category
-                                                          else float).tobytes())
+        digest.update(
+            np.ascontiguousarray(values).astype(str if AXES[d].category else float).tobytes()
+        )
     return digest.hexdigest()[:16]
 
 
 # --------------------------------------------------------------------------- table
 
 
-def table(si, quantities: Iterable[str] | str | None = None, *, chunks=None,
-          progress: Callable[[int, int], None] | None = None, **axes):
+def table(
+    si,
+    quantities: Iterable[str] | str | None = None,
+    *,
+    chunks=None,
+    progress: Callable[[int, int], None] | None = None,
+    **axes,
+):
     """Evaluate quantities of ``si`` on a grid -> :class:`xarray.Dataset`.
 
     Parameters
@@ -758,7 +995,7 @@ def table(si, quantities: Iterable[str] | str | None = None, *, chunks=None,
     """
     import xarray as xr
 
-    from . import __version__
+    from .._version import __version__
 
     grid = _Grid(axes)
     entries = _select(si, grid, quantities)
@@ -773,26 +1010,37 @@ def table(si, quantities: Iterable[str] | str | None = None, *, chunks=None,
             done += grid.size_of(entry)
         provenance = _provenance_json(si, entry.name)
         model = si.models.get(entry.name, "derived")
-        for (variable, long_name), values, unit in zip(entry.outputs, outs, units,
-                                                       strict=True):
-            variables[variable] = (tuple(dims), values, {
-                "units": cf_units(unit), "long_name": long_name, "quantity": entry.name,
-                "model": model, "provenance": provenance})
+        for (variable, long_name), values, unit in zip(entry.outputs, outs, units, strict=True):
+            variables[variable] = (
+                tuple(dims),
+                values,
+                {
+                    "units": cf_units(unit),
+                    "long_name": long_name,
+                    "quantity": entry.name,
+                    "model": model,
+                    "provenance": provenance,
+                },
+            )
     data = xr.Dataset(variables, coords=grid.coords())
     names = [e.name for e in entries]
-    data.attrs.update({
-        "Conventions": "CF-1.11",
-        "title": "Crystalline-silicon parameters from matprops",
-        "source": f"matprops {__version__}, release {si.release.id} ({si.release.status})",
-        "references": si.cite(format="text", quantities=list(dict.fromkeys(
-            q for e in entries for q in e.model_quantities()))),
-        "history": f"matprops {__version__}: si.table({names!r}, {grid.describe()}"
-                   f"{f', chunks={chunks!r}' if chunks is not None else ''})",
-        "release": si.release.id,
-        "release_status": si.release.status,
-        "comment": "Model estimates; for decisions with consequences defer to measured "
-                   "data, local codes and licensed practice.",
-    })
+    data.attrs.update(
+        {
+            "Conventions": "CF-1.11",
+            "title": "Crystalline-silicon parameters from matprops",
+            "source": f"matprops {__version__}, release {si.release.id} ({si.release.status})",
+            "references": si.cite(
+                format="text",
+                quantities=list(dict.fromkeys(q for e in entries for q in e.model_quantities())),
+            ),
+            "history": f"matprops {__version__}: si.table({names!r}, {grid.describe()}"
+            f"{f', chunks={chunks!r}' if chunks is not None else ''})",
+            "release": si.release.id,
+            "release_status": si.release.status,
+            "comment": "Model estimates; for decisions with consequences defer to measured "
+            "data, local codes and licensed practice.",
+        }
+    )
     return data
 
 
@@ -800,8 +1048,11 @@ def _provenance_json(si, name: str) -> str:
     try:
         record = si.provenance(name)
     except UnknownQuantityError:
-        record = {"quantity": name, "release": si.release.id,
-                  "models": {q: si.models.get(q) for q in QUANTITIES[name].model_quantities()}}
+        record = {
+            "quantity": name,
+            "release": si.release.id,
+            "models": {q: si.models.get(q) for q in QUANTITIES[name].model_quantities()},
+        }
     return json.dumps(record, ensure_ascii=False)
 
 
@@ -812,8 +1063,9 @@ def _overrides(si) -> dict[str, str]:
     return {q: m for q, m in si.models.items() if q in si.overridden}
 
 
-def compare(si, quantity: str, models: Iterable[str] | None = None, *, chunks=None,
-            progress=None, **axes):
+def compare(
+    si, quantity: str, models: Iterable[str] | None = None, *, chunks=None, progress=None, **axes
+):
     """Evaluate several models of one quantity on the same grid.
 
     Parameters
@@ -834,8 +1086,6 @@ def compare(si, quantity: str, models: Iterable[str] | None = None, *, chunks=No
     """
     import xarray as xr
 
-    from .material import Silicon
-
     quantity = check_name(quantity, "quantity")
     if quantity not in si.catalog.quantities() or quantity not in QUANTITIES:
         comparable = [q for q in si.catalog.quantities() if q in QUANTITIES]
@@ -851,43 +1101,63 @@ def compare(si, quantity: str, models: Iterable[str] | None = None, *, chunks=No
         raise InputError("models", "distinct model ids", repr(ids))
     parts, citations, provenance = [], [], {}
     for model_id in ids:
-        variant = Silicon(release=si.release.id,
-                          models={**_overrides(si), quantity: model_id},
-                          strict=si.strict, catalog=si.catalog)
+        variant = type(si)(
+            release=si.release.id,
+            models={**_overrides(si), quantity: model_id},
+            strict=si.strict,
+            catalog=si.catalog,
+        )
         data = table(variant, [quantity], chunks=chunks, progress=progress, **axes)
         parts.append(data)
         citations.append(variant.model(quantity).source.citation())
         provenance[model_id] = variant.provenance(quantity)
-    combined = xr.concat(parts, dim="model", data_vars="all", coords="minimal",
-                         compat="override", combine_attrs="override")
+    combined = xr.concat(
+        parts,
+        dim="model",
+        data_vars="all",
+        coords="minimal",
+        compat="override",
+        combine_attrs="override",
+    )
     combined = combined.assign_coords(
         model=("model", np.asarray(ids, dtype=str), {"long_name": "model id"}),
-        citation=("model", np.asarray(citations, dtype=str),
-                  {"long_name": "source of the model"}))
+        citation=("model", np.asarray(citations, dtype=str), {"long_name": "source of the model"}),
+    )
     for name, _ in QUANTITIES[quantity].outputs:
         variable = combined[name]
-        variable.attrs.update({"model": ", ".join(ids),
-                               "provenance": json.dumps(provenance, ensure_ascii=False)})
+        variable.attrs.update(
+            {"model": ", ".join(ids), "provenance": json.dumps(provenance, ensure_ascii=False)}
+        )
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN points stay NaN
             high, low = variable.max("model", skipna=True), variable.min("model", skipna=True)
             spread = high - low
             scale = abs(variable).mean("model", skipna=True)
             relative = spread / scale.where(scale != 0)
-        combined[f"{name}_spread"] = spread.assign_attrs({
-            "units": variable.attrs["units"],
-            "long_name": f"spread (largest minus smallest) across models of: "
-                         f"{variable.attrs['long_name']}", "quantity": quantity})
-        combined[f"{name}_relative_spread"] = relative.assign_attrs({
-            "units": "1", "long_name": f"spread across models over their mean absolute "
-                                       f"value: {variable.attrs['long_name']}",
-            "quantity": quantity})
-    from . import __version__
+        combined[f"{name}_spread"] = spread.assign_attrs(
+            {
+                "units": variable.attrs["units"],
+                "long_name": f"spread (largest minus smallest) across models of: "
+                f"{variable.attrs['long_name']}",
+                "quantity": quantity,
+            }
+        )
+        combined[f"{name}_relative_spread"] = relative.assign_attrs(
+            {
+                "units": "1",
+                "long_name": f"spread across models over their mean absolute "
+                f"value: {variable.attrs['long_name']}",
+                "quantity": quantity,
+            }
+        )
+    from .._version import __version__
 
-    combined.attrs.update({
-        "title": f"Models of {quantity} compared (matprops)",
-        "references": "\n".join(f"[{m}] {c}" for m, c in zip(ids, citations, strict=True)),
-        "history": f"matprops {__version__}: si.compare({quantity!r}, models={ids!r}, "
-                   f"{_Grid(axes).describe()})",
-    })
+    combined.attrs.update(
+        {
+            "title": f"Models of {quantity} compared (matprops)",
+            "references": "\n".join(f"[{m}] {c}" for m, c in zip(ids, citations, strict=True)),
+            "history": f"matprops {__version__}: si.compare({quantity!r}, models={ids!r}, "
+            f"{_Grid(axes).describe()})",
+        }
+    )
     return combined

@@ -23,8 +23,11 @@ class Result:
 
     def quantities(self) -> dict:
         """Field name -> pint quantity, in declaration order."""
-        return {f.name: getattr(self, f.name) for f in dataclasses.fields(self)
-                if hasattr(getattr(self, f.name), "units")}
+        return {
+            f.name: getattr(self, f.name)
+            for f in dataclasses.fields(self)
+            if hasattr(getattr(self, f.name), "units")
+        }
 
     def __iter__(self):
         return iter(self.quantities().items())
@@ -37,8 +40,11 @@ class Result:
                 continue
             if hasattr(value, "units"):
                 magnitude = np.asarray(value.magnitude)
-                shown = (f"{magnitude.item():.6g}" if magnitude.size == 1
-                         else np.array2string(magnitude, precision=4, threshold=6))
+                shown = (
+                    f"{magnitude.item():.6g}"
+                    if magnitude.size == 1
+                    else np.array2string(magnitude, precision=4, threshold=6)
+                )
                 lines.append(f"  {f.name} = {shown} {value.units:~P}")
             else:
                 lines.append(f"  {f.name} = {value}")
@@ -51,17 +57,18 @@ class Result:
         """
         import xarray as xr
 
-        from .units import cf_units
+        from ..units import cf_units
 
         variables = {}
         for name, value in self.quantities().items():
             magnitude = np.asarray(value.magnitude, dtype=float)
-            names = dims if dims is not None else tuple(f"point_{i}"
-                                                        for i in range(magnitude.ndim))
-            variables[name] = (names[:magnitude.ndim], magnitude,
-                               {"units": cf_units(value.units)})
-        attrs = {f.name: getattr(self, f.name) for f in dataclasses.fields(self)
-                 if isinstance(getattr(self, f.name), str)}
+            names = dims if dims is not None else tuple(f"point_{i}" for i in range(magnitude.ndim))
+            variables[name] = (names[: magnitude.ndim], magnitude, {"units": cf_units(value.units)})
+        attrs = {
+            f.name: getattr(self, f.name)
+            for f in dataclasses.fields(self)
+            if isinstance(getattr(self, f.name), str)
+        }
         provenance = getattr(self, "provenance", None)
         if provenance is not None:
             attrs["provenance"] = json.dumps(provenance, ensure_ascii=False, default=str)

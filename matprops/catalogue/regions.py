@@ -15,7 +15,7 @@ model file declares such a limit as ``[[validity_region]]``::
 
 The bound is linear in ``varies_with`` between the points and constant beyond the
 first and last point. The catalogue parses the table into a :class:`Region`;
-:meth:`matprops.records.Model.check_regions` applies it to evaluated inputs.
+:meth:`matprops.catalogue.records.Model.check_regions` applies it to evaluated inputs.
 """
 
 from __future__ import annotations
@@ -28,7 +28,8 @@ from typing import Any
 
 import numpy as np
 
-from .errors import DatasetError
+from ..errors import DatasetError
+from .fields import convert, require
 
 __all__ = ["Region", "parse_regions"]
 
@@ -83,8 +84,9 @@ class Region:
         """The least and greatest bound for ``by`` anywhere in ``[low, high]`` (the bound
         is piecewise linear: its extremes lie at the ends or at the points)."""
         candidates = [self._bound_point(low), self._bound_point(high)]
-        candidates += [b for x, b in zip(self.by_values, self.bounds, strict=True)
-                       if low < x < high]
+        candidates += [
+            b for x, b in zip(self.by_values, self.bounds, strict=True) if low < x < high
+        ]
         return min(candidates), max(candidates)
 
     def clearly_inside(self, ranges: Mapping[str, tuple[float, float]]) -> bool:
@@ -96,8 +98,12 @@ class Region:
         bound_low, bound_high = self.bound_range(*ranges[self.by])
         return high <= bound_low if self.limit == "max" else low >= bound_high
 
-    def violation(self, values: Mapping[str, Any], model: str,
-                  ranges: Mapping[str, tuple[float, float]] | None = None) -> str | None:
+    def violation(
+        self,
+        values: Mapping[str, Any],
+        model: str,
+        ranges: Mapping[str, tuple[float, float]] | None = None,
+    ) -> str | None:
         """A message naming the points of ``values`` outside the region, or None.
 
         ``ranges`` (input -> (min, max)), when known, settle most calls without a pass
@@ -109,38 +115,48 @@ class Region:
                 return None  # one point inside (the scalar fast path): no arrays
         elif ranges is not None and self.clearly_inside(ranges):
             return None
-        value, by_value = np.broadcast_arrays(np.asarray(values[self.argument], float),
-                                              np.asarray(values[self.by], float))
+        value, by_value = np.broadcast_arrays(
+            np.asarray(values[self.argument], float), np.asarray(values[self.by], float)
+        )
         outside = self.outside(value, by_value)
         if not np.any(outside):
             return None
         distance = np.where(outside, np.abs(value - self.bound_at(by_value)), -1.0)
         worst = np.unravel_index(np.argmax(distance), value.shape)
         at_value, at_by = float(value[worst]), float(by_value[worst])
-        return (f"model {model}: {int(np.count_nonzero(outside))} of {value.size} "
-                f"point(s) lie outside its validity region ({self}), e.g. "
-                f"{self.argument} {at_value:g} {self.units} at {self.by} {at_by:g} "
-                f"{self.by_units}, where the limit is "
-                f"{float(self.bound_at(at_by)):g} {self.units}: {self.reason}; "
-                "the value there is unvalidated")
+        return (
+            f"model {model}: {int(np.count_nonzero(outside))} of {value.size} "
+            f"point(s) lie outside its validity region ({self}), e.g. "
+            f"{self.argument} {at_value:g} {self.units} at {self.by} {at_by:g} "
+            f"{self.by_units}, where the limit is "
+            f"{float(self.bound_at(at_by)):g} {self.units}: {self.reason}; "
+            "the value there is unvalidated"
+        )
 
     def __str__(self) -> str:
         relation = "at most" if self.limit == "max" else "at least"
-        points = ", ".join(f"{b:g} {self.units} at {v:g} {self.by_units}"
-                           for v, b in zip(self.by_values, self.bounds, strict=True))
-        return (f"{self.argument} {relation} a limit that depends on {self.by}: "
-                f"{points}, linear in between")
+        points = ", ".join(
+            f"{b:g} {self.units} at {v:g} {self.by_units}"
+            for v, b in zip(self.by_values, self.bounds, strict=True)
+        )
+        return (
+            f"{self.argument} {relation} a limit that depends on {self.by}: "
+            f"{points}, linear in between"
+        )
 
     def as_dict(self) -> dict:
-        return {"input": self.argument, "limit": self.limit, "varies_with": self.by,
-                "points": [[v, b] for v, b in zip(self.by_values, self.bounds, strict=True)],
-                "units": [self.by_units, self.units], "reason": self.reason}
+        return {
+            "input": self.argument,
+            "limit": self.limit,
+            "varies_with": self.by,
+            "points": [[v, b] for v, b in zip(self.by_values, self.bounds, strict=True)],
+            "units": [self.by_units, self.units],
+            "reason": self.reason,
+        }
 
 
 def parse_regions(path, data: Mapping, spec) -> tuple[Region, ...]:
     """Parse a model file's ``[[validity_region]]`` entries against its kernel spec."""
-    from .modelfile import _convert, _require  # the model files' field helpers
-
     entries = data.get("validity_region", [])
     if not isinstance(entries, list):
         raise DatasetError(path, "field 'validity_region' must be a list of tables")
@@ -150,30 +166,47 @@ def parse_regions(path, data: Mapping, spec) -> tuple[Region, ...]:
         if not isinstance(entry, dict):
             raise DatasetError(path, f"{where} must be a table")
         for name in ("input", "limit", "varies_with", "points", "units", "reason"):
-            _require(path, entry, name, where=where + ".")
+            require(path, entry, name, where=where + ".")
         argument, by = entry["input"], entry["varies_with"]
         for name in (argument, by):
             if name not in spec.inputs:
-                raise DatasetError(path, f"{where}: the kernel has no input {name!r} "
-                                   f"(inputs: {', '.join(spec.inputs)})")
+                raise DatasetError(
+                    path,
+                    f"{where}: the kernel has no input {name!r} (inputs: {', '.join(spec.inputs)})",
+                )
         if argument == by:
             raise DatasetError(path, f"{where}: 'input' and 'varies_with' must differ")
         if entry["limit"] not in ("min", "max"):
-            raise DatasetError(path, f"{where}.limit must be 'min' or 'max', "
-                               f"got {entry['limit']!r}")
+            raise DatasetError(
+                path, f"{where}.limit must be 'min' or 'max', got {entry['limit']!r}"
+            )
         units, points = entry["units"], entry["points"]
-        if (not isinstance(units, list) or len(units) != 2
-                or not isinstance(points, list) or len(points) < 2
-                or not all(isinstance(p, list) and len(p) == 2 for p in points)):
-            raise DatasetError(path, f"{where}: 'points' must be a list of at least two "
-                               f"[{by}, {argument}] pairs and 'units' a pair of unit strings")
-        by_values = _convert(path, where, [p[0] for p in points], units[0], spec.inputs[by])
-        bounds = _convert(path, where, [p[1] for p in points], units[1],
-                          spec.inputs[argument])
+        if (
+            not isinstance(units, list)
+            or len(units) != 2
+            or not isinstance(points, list)
+            or len(points) < 2
+            or not all(isinstance(p, list) and len(p) == 2 for p in points)
+        ):
+            raise DatasetError(
+                path,
+                f"{where}: 'points' must be a list of at least two "
+                f"[{by}, {argument}] pairs and 'units' a pair of unit strings",
+            )
+        by_values = convert(path, where, [p[0] for p in points], units[0], spec.inputs[by])
+        bounds = convert(path, where, [p[1] for p in points], units[1], spec.inputs[argument])
         if not np.all(np.diff(by_values) > 0):
             raise DatasetError(path, f"{where}: the {by} values must increase")
-        regions.append(Region(argument, entry["limit"], by,
-                              tuple(float(v) for v in by_values),
-                              tuple(float(b) for b in bounds), spec.inputs[argument],
-                              spec.inputs[by], str(entry["reason"])))
+        regions.append(
+            Region(
+                argument,
+                entry["limit"],
+                by,
+                tuple(float(v) for v in by_values),
+                tuple(float(b) for b in bounds),
+                spec.inputs[argument],
+                spec.inputs[by],
+                str(entry["reason"]),
+            )
+        )
     return tuple(regions)

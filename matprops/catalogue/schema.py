@@ -6,7 +6,7 @@ a missing required field, a value of the wrong kind and a number that is not fin
 (TOML allows ``nan`` and ``inf``) are each a :class:`~matprops.DatasetError` naming the
 file and the field, e.g. ``coefficients.alpha.value[1]``. A new field is one new line
 in its section. Rules that need more than the file's shape (a coefficient set that
-matches its kernel, units that convert, min below max) live in :mod:`matprops.catalog`.
+matches its kernel, units that convert, min below max) live in :mod:`matprops.catalogue.store`.
 
 Kinds of value::
 
@@ -30,13 +30,21 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from typing import Any
 
-from .errors import DatasetError
+from ..errors import DatasetError
 
-__all__ = ["DEFECT", "KINDS", "MODEL", "RELEASE", "SCENARIO", "THERMAL_VELOCITY_DEFINITIONS",
-           "VARIANT_AXES", "validate"]
+__all__ = [
+    "DEFECT",
+    "KINDS",
+    "MODEL",
+    "RELEASE",
+    "SCENARIO",
+    "THERMAL_VELOCITY_DEFINITIONS",
+    "VARIANT_AXES",
+    "validate",
+]
 
 REQUIRED, OPTIONAL = True, False
-KINDS = ("closed-form", "table", "composed")  # of model: see matprops.catalog
+KINDS = ("closed-form", "table", "composed")  # of model: see matprops.catalogue.modelfile
 VARIANT_AXES = ("dopant", "carrier")  # what a model's coefficient sets are per
 # a thermal velocity is the mean speed sqrt(8kT/(pi m)) or the rms speed sqrt(3kT/m)
 THERMAL_VELOCITY_DEFINITIONS = ("mean speed", "root-mean-square speed")
@@ -71,16 +79,26 @@ def _is_number(value) -> bool:
 TEXT = Kind("text", lambda v: isinstance(v, str))
 INTEGER = Kind("an integer", lambda v: isinstance(v, int) and not isinstance(v, bool))
 NUMBER = Kind("a finite number", _is_number)
-NUMBERS = Kind("a finite number or a non-empty list of finite numbers",
-               lambda v: _is_number(v) or (isinstance(v, list) and bool(v)
-                                           and all(_is_number(x) for x in v)))
-TEXTS = Kind("a list of text", lambda v: isinstance(v, list)
-             and all(isinstance(x, str) for x in v))
-PAIRS = Kind("a list of [number, number] pairs", lambda v: isinstance(v, list) and all(
-    isinstance(p, list) and len(p) == 2 and all(_is_number(x) for x in p) for p in v))
+NUMBERS = Kind(
+    "a finite number or a non-empty list of finite numbers",
+    lambda v: _is_number(v) or (isinstance(v, list) and bool(v) and all(_is_number(x) for x in v)),
+)
+TEXTS = Kind("a list of text", lambda v: isinstance(v, list) and all(isinstance(x, str) for x in v))
+PAIRS = Kind(
+    "a list of [number, number] pairs",
+    lambda v: (
+        isinstance(v, list)
+        and all(isinstance(p, list) and len(p) == 2 and all(_is_number(x) for x in p) for p in v)
+    ),
+)
 FLAG = Kind("true or false", lambda v: isinstance(v, bool))
-DATE = Kind("a date (YYYY-MM-DD)", lambda v: isinstance(v, datetime.date) or (
-    isinstance(v, str) and re.fullmatch(r"\d{4}-\d{2}-\d{2}", v) is not None))
+DATE = Kind(
+    "a date (YYYY-MM-DD)",
+    lambda v: (
+        isinstance(v, datetime.date)
+        or (isinstance(v, str) and re.fullmatch(r"\d{4}-\d{2}-\d{2}", v) is not None)
+    ),
+)
 
 
 def one_of(*choices: str) -> Kind:
@@ -97,34 +115,34 @@ def list_of(entry) -> ListOf:
 
 # --------------------------------------------------------------------------- sections
 
-SOURCE = {                         # which fields each type needs: catalog.SOURCE_TYPES
-    "type": (one_of("article", "book"), OPTIONAL),   # default "article"
+SOURCE = {  # which fields each type needs: catalog.SOURCE_TYPES
+    "type": (one_of("article", "book"), OPTIONAL),  # default "article"
     "authors": (TEXTS, REQUIRED),
     "year": (INTEGER, REQUIRED),
     "title": (TEXT, REQUIRED),
-    "journal": (TEXT, OPTIONAL),   # articles
-    "volume": (TEXT, OPTIONAL),    # articles
-    "pages": (TEXT, OPTIONAL),     # articles
+    "journal": (TEXT, OPTIONAL),  # articles
+    "volume": (TEXT, OPTIONAL),  # articles
+    "pages": (TEXT, OPTIONAL),  # articles
     "publisher": (TEXT, OPTIONAL),  # books
-    "edition": (TEXT, OPTIONAL),   # books
-    "address": (TEXT, OPTIONAL),   # books
-    "doi": (TEXT, REQUIRED),       # "" where the publication has none
+    "edition": (TEXT, OPTIONAL),  # books
+    "address": (TEXT, OPTIONAL),  # books
+    "doi": (TEXT, REQUIRED),  # "" where the publication has none
 }
 
-COEFFICIENT = {                    # [coefficients] name = { value = ..., units = ... }
+COEFFICIENT = {  # [coefficients] name = { value = ..., units = ... }
     "value": (NUMBERS, REQUIRED),
     "units": (TEXT, REQUIRED),
     "uncertainty": (NUMBERS, OPTIONAL),
     "obtained": (TEXT, OPTIONAL),  # this number's own origin, where it differs
 }
 
-RANGE = {                          # [validity.<kernel input>]
+RANGE = {  # [validity.<kernel input>]
     "min": (NUMBER, REQUIRED),
     "max": (NUMBER, REQUIRED),
     "units": (TEXT, REQUIRED),
 }
 
-REGION = {                         # [[validity_region]]: see matprops.regions
+REGION = {  # [[validity_region]]: see matprops.catalogue.regions
     "input": (TEXT, REQUIRED),
     "limit": (one_of("min", "max"), REQUIRED),
     "varies_with": (TEXT, REQUIRED),
@@ -133,32 +151,32 @@ REGION = {                         # [[validity_region]]: see matprops.regions
     "reason": (TEXT, REQUIRED),
 }
 
-VARIANT = {                        # [variants.<name>]: one coefficient set of a model
+VARIANT = {  # [variants.<name>]: one coefficient set of a model
     "coefficients": (table_of(COEFFICIENT), OPTIONAL),
     "validity": (table_of(RANGE), OPTIONAL),
     "obtained": (TEXT, OPTIONAL),
     "kernel": (TEXT, OPTIONAL),  # an equation form of its own (same inputs and output)
 }
 
-FITTED_DENSITY = {                 # the intrinsic density an apparent narrowing was fitted with
+FITTED_DENSITY = {  # the intrinsic density an apparent narrowing was fitted with
     **COEFFICIENT,
     "temperature": (NUMBER, REQUIRED),  # K
 }
 
-NARROWING = {                      # [narrowing] of a gap_narrowing model
+NARROWING = {  # [narrowing] of a gap_narrowing model
     "type": (one_of("apparent", "physical"), REQUIRED),
     "statistics": (one_of("boltzmann", "fermi-dirac"), REQUIRED),
     "split": (TEXT, REQUIRED),
     "intrinsic_density": (FITTED_DENSITY, OPTIONAL),  # required for "apparent"
 }
 
-FIT = {                            # [fit] of an intrinsic_lifetime model
-    "radiative": (TEXT, REQUIRED),   # which radiative term the model goes with
+FIT = {  # [fit] of an intrinsic_lifetime model
+    "radiative": (TEXT, REQUIRED),  # which radiative term the model goes with
     "gap_narrowing": (TEXT, REQUIRED),  # a gap_narrowing model id, or "none"/"not known"
     "intrinsic_density": (FITTED_DENSITY, OPTIONAL),
 }
 
-MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
+MODEL = {  # datasets/models/<quantity>/<model-id>.toml
     "id": (TEXT, REQUIRED),
     "quantity": (TEXT, REQUIRED),
     "name": (TEXT, REQUIRED),
@@ -169,68 +187,71 @@ MODEL = {                          # datasets/models/<quantity>/<model-id>.toml
     "source": (SOURCE, REQUIRED),
     "additional_sources": (list_of(SOURCE), OPTIONAL),
     "fallback": (TEXT, OPTIONAL),
-    "table": (TEXT, OPTIONAL),                       # required for kind "table"
-    "table_arguments": (table_of(TEXT), OPTIONAL),   # required for kind "table"
+    "table": (TEXT, OPTIONAL),  # required for kind "table"
+    "table_arguments": (table_of(TEXT), OPTIONAL),  # required for kind "table"
     "validity": (table_of(RANGE), OPTIONAL),
     "validity_region": (list_of(REGION), OPTIONAL),
     "coefficients": (table_of(COEFFICIENT), OPTIONAL),
     # -- the doping axis (which quantity needs which section: modelfile.QUANTITY_SECTIONS)
     "variant_axis": (one_of(*VARIANT_AXES), OPTIONAL),  # goes with variants
-    "variants": (table_of(VARIANT), OPTIONAL),          # one coefficient set per name
-    "narrowing": (NARROWING, OPTIONAL),                 # gap_narrowing models
+    "variants": (table_of(VARIANT), OPTIONAL),  # one coefficient set per name
+    "narrowing": (NARROWING, OPTIONAL),  # gap_narrowing models
     "dopant_densities": (one_of("total", "ionised"), OPTIONAL),  # mobility models
-    "fit": (FIT, OPTIONAL),                             # intrinsic_lifetime models
+    "fit": (FIT, OPTIONAL),  # intrinsic_lifetime models
     "definition": (one_of(*THERMAL_VELOCITY_DEFINITIONS), OPTIONAL),  # thermal_velocity
     # -- new fields: one line here
 }
 
-QUANTITY = {                       # a number with units: { value = ..., units = "..." }
+QUANTITY = {  # a number with units: { value = ..., units = "..." }
     "value": (NUMBER, REQUIRED),
     "units": (TEXT, REQUIRED),
 }
 
-CROSS_SECTION = {                  # [electron_cross_section] / [hole_cross_section]
+CROSS_SECTION = {  # [electron_cross_section] / [hole_cross_section]
     "value": (NUMBER, REQUIRED),
     "units": (TEXT, REQUIRED),
     "law": (one_of("constant", "power", "activated"), OPTIONAL),  # default constant
-    "exponent": (NUMBER, OPTIONAL),                  # power law
-    "reference_temperature": (QUANTITY, OPTIONAL),   # power law
-    "activation_energy": (QUANTITY, OPTIONAL),       # activated law
+    "exponent": (NUMBER, OPTIONAL),  # power law
+    "reference_temperature": (QUANTITY, OPTIONAL),  # power law
+    "activation_energy": (QUANTITY, OPTIONAL),  # activated law
 }
 
-DEFECT = {                         # datasets/defects/<name>.toml: see matprops.defects
+DEFECT = {  # datasets/defects/<name>.toml: see matprops.catalogue.defects
     "name": (TEXT, REQUIRED),
     "aliases": (TEXTS, OPTIONAL),
     "description": (TEXT, OPTIONAL),
     "obtained": (TEXT, REQUIRED),
     "notes": (TEXT, OPTIONAL),
-    "level": ({"energy": (QUANTITY, REQUIRED),
-               "reference": (one_of("conduction", "valence", "intrinsic"), REQUIRED)},
-              REQUIRED),
+    "level": (
+        {
+            "energy": (QUANTITY, REQUIRED),
+            "reference": (one_of("conduction", "valence", "intrinsic"), REQUIRED),
+        },
+        REQUIRED,
+    ),
     "electron_cross_section": (CROSS_SECTION, OPTIONAL),  # with hole_cross_section, or
     "hole_cross_section": (CROSS_SECTION, OPTIONAL),
-    "cross_section_ratio": (QUANTITY, OPTIONAL),     # only sigma_n / sigma_p is known
-    "thermal_velocity": ({"convention": (TEXT, REQUIRED), "model": (TEXT, OPTIONAL)},
-                         REQUIRED),
+    "cross_section_ratio": (QUANTITY, OPTIONAL),  # only sigma_n / sigma_p is known
+    "thermal_velocity": ({"convention": (TEXT, REQUIRED), "model": (TEXT, OPTIONAL)}, REQUIRED),
     "source": (SOURCE, REQUIRED),
     "additional_sources": (list_of(SOURCE), OPTIONAL),
     "validity": ({"temperature": (RANGE, REQUIRED)}, OPTIONAL),
 }
 
-RELEASE = {                        # datasets/releases/<release-id>.toml
+RELEASE = {  # datasets/releases/<release-id>.toml
     "release": (TEXT, REQUIRED),
     "status": (one_of("draft", "final"), REQUIRED),
     "date": (DATE, REQUIRED),
     "notes": (TEXT, REQUIRED),
-    "models": (table_of(TEXT), REQUIRED),            # quantity = "model-id"
+    "models": (table_of(TEXT), REQUIRED),  # quantity = "model-id"
 }
 
-OPERATING_POINTS = {               # [temperature] of a scenario
+OPERATING_POINTS = {  # [temperature] of a scenario
     "units": (TEXT, REQUIRED),
     "sites": (table_of(table_of(NUMBER)), REQUIRED),  # [temperature.sites.<site>] name = T
 }
 
-DOPED_REGION = {                   # [regions.<name>] of a scenario
+DOPED_REGION = {  # [regions.<name>] of a scenario
     "units": (TEXT, REQUIRED),
     "acceptor_density": (NUMBER, OPTIONAL),
     "donor_density": (NUMBER, OPTIONAL),
@@ -238,7 +259,7 @@ DOPED_REGION = {                   # [regions.<name>] of a scenario
     "note": (TEXT, OPTIONAL),
 }
 
-SCENARIO = {                       # datasets/scenarios/<name>.toml (invented demo data)
+SCENARIO = {  # datasets/scenarios/<name>.toml (invented demo data)
     "name": (TEXT, REQUIRED),
     "title": (TEXT, REQUIRED),
     "invented": (FLAG, REQUIRED),
@@ -260,8 +281,9 @@ def validate(path, data: Mapping, section: Mapping, where: str = "") -> None:
         if key not in section:
             close = difflib.get_close_matches(str(key), list(section), n=1)
             hint = f"; did you mean {close[0]!r}?" if close else ""
-            raise DatasetError(path, f"unknown field '{where}{key}' (allowed here: "
-                               f"{', '.join(section)}){hint}")
+            raise DatasetError(
+                path, f"unknown field '{where}{key}' (allowed here: {', '.join(section)}){hint}"
+            )
     for key, (kind, required) in section.items():
         if key in data:
             _check(path, data[key], kind, f"{where}{key}")
@@ -286,8 +308,7 @@ def _check(path, value, kind, where: str) -> None:
             _check(path, entry, kind.entry, f"{where}[{index}]")
     else:
         if not kind.accepts(value):
-            raise DatasetError(path, f"field '{where}' must be {kind.description}, "
-                               f"got {value!r}")
+            raise DatasetError(path, f"field '{where}' must be {kind.description}, got {value!r}")
         _check_finite(path, value, where)
 
 

@@ -1,8 +1,8 @@
 """Records of the catalogue: sources, coefficients, validity ranges, models, releases.
 
 Immutable definitions, separate from the files they are read from
-(:mod:`matprops.modelfile`) and from the catalogue that finds and checks those files
-(:mod:`matprops.catalog`). A :class:`Model` is a plain-array callable with its
+(:mod:`matprops.catalogue.modelfile`) and from the catalogue that finds and checks those files
+(:mod:`matprops.catalogue.store`). A :class:`Model` is a plain-array callable with its
 provenance attached.
 """
 
@@ -15,11 +15,11 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from types import MappingProxyType
-from typing import TYPE_CHECKING, Any
+from typing import Any, Protocol
 
 import numpy as np
 
-from .errors import (
+from ..errors import (
     DatasetError,
     UnknownNameError,
     UnknownVariantError,
@@ -29,8 +29,17 @@ from .errors import (
 )
 from .regions import Region
 
-if TYPE_CHECKING:
-    from .catalog import Catalog
+
+class CatalogueLike(Protocol):
+    """What a record needs of the catalogue that built it (records never import the
+    catalogue: it hands itself to each record it builds)."""
+
+    def model(self, quantity: str, model_id: str) -> Model: ...
+
+    def release(self, release_id: str) -> Release: ...
+
+    def table(self, name: str) -> Any: ...
+
 
 SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi")
 # Required fields of each kind of source record (``type`` in the file; default "article").
@@ -72,22 +81,29 @@ class Source:
             place = f"{self.publisher}, {self.address}" if self.address else self.publisher
             pages = f", pp. {self.pages}" if self.pages else ""
             return f"{authors}, {self.title}{edition} ({place}, {self.year}){pages}{doi}"
-        return (f"{authors}, \"{self.title}\", {self.journal} {self.volume}, "
-                f"{self.pages} ({self.year}){doi}")
+        return (
+            f'{authors}, "{self.title}", {self.journal} {self.volume}, '
+            f"{self.pages} ({self.year}){doi}"
+        )
 
     def bibtex(self, key: str) -> str:
         def esc(text):
             return str(text).replace("{", "").replace("}", "")
 
-        lines = [f"@{self.type}{{{key},",
-                 f"  author = {{{' and '.join(esc(a) for a in self.authors)}}},",
-                 f"  title = {{{{{esc(self.title)}}}}},"]
+        lines = [
+            f"@{self.type}{{{key},",
+            f"  author = {{{' and '.join(esc(a) for a in self.authors)}}},",
+            f"  title = {{{{{esc(self.title)}}}}},",
+        ]
         if self.type == "book":
-            fields = [("edition", self.edition), ("publisher", self.publisher),
-                      ("address", self.address), ("pages", self.pages)]
+            fields = [
+                ("edition", self.edition),
+                ("publisher", self.publisher),
+                ("address", self.address),
+                ("pages", self.pages),
+            ]
         else:
-            fields = [("journal", self.journal), ("volume", self.volume),
-                      ("pages", self.pages)]
+            fields = [("journal", self.journal), ("volume", self.volume), ("pages", self.pages)]
         lines += [f"  {name} = {{{esc(value)}}}," for name, value in fields if value]
         lines.append(f"  year = {{{self.year}}},")
         if self.doi:
@@ -106,13 +122,16 @@ class Source:
         return f"{re.sub(r'[^a-z]', '', ascii_name.lower())}-{self.year}"
 
     def as_dict(self) -> dict:
-        record = {"type": self.type, "authors": list(self.authors), "year": self.year,
-                  "title": self.title}
+        record = {
+            "type": self.type,
+            "authors": list(self.authors),
+            "year": self.year,
+            "title": self.title,
+        }
         if self.type == "book":
             record.update({k: getattr(self, k) for k in BOOK_FIELDS if getattr(self, k)})
         else:
-            record.update({"journal": self.journal, "volume": self.volume,
-                           "pages": self.pages})
+            record.update({"journal": self.journal, "volume": self.volume, "pages": self.pages})
         record["doi"] = self.doi
         return record
 
@@ -194,8 +213,10 @@ class Model:
     variant: str | None = None
     # quantity-specific sections of the model file (e.g. ``narrowing``), validated
     extra: Mapping[str, Any] = field(default_factory=dict)
-    # validity limits of one input that depend on another (see matprops.regions)
+    # validity limits of one input that depend on another (see matprops.catalogue.regions)
     regions: tuple[Region, ...] = ()
+    # the catalogue that built this record: tables are read and pickles re-bound there
+    catalogue: CatalogueLike | None = field(default=None, repr=False)
 
     def select(self, variant: str) -> Model:
         """The model bound to one coefficient set (a dopant species or a carrier)."""
@@ -203,11 +224,14 @@ class Model:
             return self
         if variant not in self.variants:
             if not self.variants:
-                raise UnknownNameError(variant, [], f"for model {self.quantity}/{self.id}, "
-                                       "which has a single coefficient set")
-            raise UnknownVariantError(variant, self.variants,
-                                      f"({self.variant_axis}) for model "
-                                      f"{self.quantity}/{self.id}")
+                raise UnknownNameError(
+                    variant,
+                    [],
+                    f"for model {self.quantity}/{self.id}, which has a single coefficient set",
+                )
+            raise UnknownVariantError(
+                variant, self.variants, f"({self.variant_axis}) for model {self.quantity}/{self.id}"
+            )
         return self.variants[variant]
 
     @property
@@ -215,8 +239,10 @@ class Model:
         """Files in ``datasets/tables/`` this model reads (sorted; empty if none)."""
         if not self.table:
             return []
-        return sorted({self.table} | {ref.rpartition(":")[0] for ref in
-                                      self.table_arguments.values() if ":" in ref})
+        return sorted(
+            {self.table}
+            | {ref.rpartition(":")[0] for ref in self.table_arguments.values() if ":" in ref}
+        )
 
     # -- evaluation
     @property
@@ -232,16 +258,14 @@ class Model:
     def array_api(self) -> bool:
         """Whether the kernel (and every model it is composed from) accepts arrays of
         any array-API namespace, not only numpy's."""
-        return self.kernel.spec.array_api and all(c.array_api
-                                                  for c in self.components.values())
+        return self.kernel.spec.array_api and all(c.array_api for c in self.components.values())
 
     @property
     def derivative(self):
         """The kernel's analytic derivatives bound to this model's coefficients:
         ``(**inputs) -> (value, {input: partial})``; None for a model without them."""
         function = getattr(self.kernel, "derivatives", None)
-        if function is None or self.kind == "table" or (self.variants and
-                                                         self.variant is None):
+        if function is None or self.kind == "table" or (self.variants and self.variant is None):
             return None
         if self.requires and not self.components:
             return None
@@ -252,22 +276,27 @@ class Model:
 
     def __call__(self, *args, **kwargs):
         if self.function is None and self.variants:
-            raise UnknownVariantError("(none)", self.variants,
-                                      f"({self.variant_axis}): model {self.quantity}/"
-                                      f"{self.id} has one coefficient set per "
-                                      f"{self.variant_axis}; choose one with .select()")
+            raise UnknownVariantError(
+                "(none)",
+                self.variants,
+                f"({self.variant_axis}): model {self.quantity}/"
+                f"{self.id} has one coefficient set per "
+                f"{self.variant_axis}; choose one with .select()",
+            )
         if self.function is None:
             missing = [q for q in self.requires if q not in self.components]
-            raise DatasetError(self.path, f"model {self.id!r} is composed from "
-                               f"{', '.join(missing)}; bind them with .compose()")
+            raise DatasetError(
+                self.path,
+                f"model {self.id!r} is composed from "
+                f"{', '.join(missing)}; bind them with .compose()",
+            )
         return self.function(*args, **kwargs)
 
     def compose(self, **components: Model) -> Model:
         """Bind the models this composed model requires (e.g. band_gap=...)."""
         missing = [q for q in self.requires if q not in components]
         if missing:
-            raise DatasetError(self.path, f"composed model {self.id!r} needs "
-                               f"{', '.join(missing)}")
+            raise DatasetError(self.path, f"composed model {self.id!r} needs {', '.join(missing)}")
         chosen = {q: components[q] for q in self.requires}
         own = {c.name: c.kernel_value for c in self.coefficients.values()}
         function = functools.partial(self.kernel, **own, **chosen)
@@ -277,23 +306,33 @@ class Model:
         """Warn (or raise, if strict) when [low, high] leaves the validity range."""
         rng = self.validity.get(argument)
         if rng is not None and (low < rng.low or high > rng.high):
-            consequence = ("the value is NaN where its table has no data and "
-                           "unvalidated elsewhere" if self.kind == "table"
-                           else "the value is an extrapolation")
-            message = (f"model {self.quantity}/{self.id}: {argument} "
-                       f"{_span(low, high)} {rng.units} is outside its validity range "
-                       f"{rng.low:g}-{rng.high:g} {rng.units}; {consequence}")
+            consequence = (
+                "the value is NaN where its table has no data and unvalidated elsewhere"
+                if self.kind == "table"
+                else "the value is an extrapolation"
+            )
+            message = (
+                f"model {self.quantity}/{self.id}: {argument} "
+                f"{_span(low, high)} {rng.units} is outside its validity range "
+                f"{rng.low:g}-{rng.high:g} {rng.units}; {consequence}"
+            )
             if self.fallback:
-                message += (f"; the model {self.fallback!r} covers a wider range "
-                            f"(models={{{self.quantity!r}: {self.fallback!r}}})")
+                message += (
+                    f"; the model {self.fallback!r} covers a wider range "
+                    f"(models={{{self.quantity!r}: {self.fallback!r}}})"
+                )
             if strict:
                 raise ValidityError(message)
             warn(message, ValidityWarning)
         for component in self.components.values():
             component.check(argument, low, high, strict)
 
-    def check_regions(self, values: Mapping[str, Any], strict: bool = False,
-                      ranges: Mapping[str, tuple[float, float]] | None = None) -> None:
+    def check_regions(
+        self,
+        values: Mapping[str, Any],
+        strict: bool = False,
+        ranges: Mapping[str, tuple[float, float]] | None = None,
+    ) -> None:
         """Warn (or raise) where inputs leave a validity region of several inputs.
 
         ``values`` maps input names to arrays in kernel units (broadcast together);
@@ -319,8 +358,9 @@ class Model:
             "citation": self.source.citation(),
             "doi": self.source.doi,
             "source": self.source.as_dict(),
-            "validity": {k: {"min": r.low, "max": r.high, "units": r.units}
-                         for k, r in self.validity.items()},
+            "validity": {
+                k: {"min": r.low, "max": r.high, "units": r.units} for k, r in self.validity.items()
+            },
             "validity_regions": [r.as_dict() for r in self.regions],
             "obtained": self.obtained,
             "notes": self.notes,
@@ -341,10 +381,14 @@ class Model:
             if self.variant is not None:
                 record["variant"] = self.variant
             else:
-                record["variants"] = {name: {k: c.as_dict() for k, c in
-                                             m.coefficients.items()
-                                             if k not in self.coefficients}
-                                      for name, m in self.variants.items()}
+                record["variants"] = {
+                    name: {
+                        k: c.as_dict()
+                        for k, c in m.coefficients.items()
+                        if k not in self.coefficients
+                    }
+                    for name, m in self.variants.items()
+                }
         for key, value in self.extra.items():
             record[key] = _plain_extra(value)
         return record
@@ -362,9 +406,7 @@ class Model:
         import xarray as xr
 
         if self.kind == "table":  # read through the checksum check, like the kernel
-            from .catalog import catalog_at
-
-            data = catalog_at(self.path.parent.parent.parent).table(self.table)
+            data = self.catalogue.table(self.table)
             data.attrs = {f"table_{k}": v for k, v in data.attrs.items()}
         else:
             variables = {}
@@ -376,21 +418,30 @@ class Model:
                     attrs["uncertainty"] = _plain(coef.uncertainty)
                 variables[name] = xr.Variable(dims, value, attrs)
             data = xr.Dataset(variables)
-        data.attrs.update({
-            "quantity": self.quantity, "model": self.id, "title": self.name,
-            "references": self.source.citation(), "obtained": self.obtained,
-            "provenance": json.dumps(self.provenance(), ensure_ascii=False),
-        })
+        data.attrs.update(
+            {
+                "quantity": self.quantity,
+                "model": self.id,
+                "title": self.name,
+                "references": self.source.citation(),
+                "obtained": self.obtained,
+                "provenance": json.dumps(self.provenance(), ensure_ascii=False),
+            }
+        )
         return data
 
     # -- pickling (process pools, dask workers) and copying
     def __reduce__(self):
         # by name, re-bound on load from the catalogue at the same root (or the
         # receiver's installed data when this came from the default catalogue)
-        from .catalog import catalog_at
-
-        return _rebind_model, (catalog_at(self.path.parent.parent.parent), self.quantity,
-                               self.id, self.sha256, dict(self.components), self.variant)
+        return _rebind_model, (
+            self.catalogue,
+            self.quantity,
+            self.id,
+            self.sha256,
+            dict(self.components),
+            self.variant,
+        )
 
     def __copy__(self):
         return self  # immutable
@@ -401,8 +452,10 @@ class Model:
     def __repr__(self) -> str:
         ranges = ", ".join(str(r) for r in self.validity.values()) or "no limits"
         inputs = ", ".join(f"{k} [{u}]" for k, u in self.inputs.items()) or "none"
-        return (f"<Model {self.quantity}/{self.id} ({self.kind}): {self.name}; "
-                f"inputs {inputs}; valid {ranges}; {self.source.citation()}>")
+        return (
+            f"<Model {self.quantity}/{self.id} ({self.kind}): {self.name}; "
+            f"inputs {inputs}; valid {ranges}; {self.source.citation()}>"
+        )
 
 
 def _plain_extra(value):
@@ -413,12 +466,21 @@ def _plain_extra(value):
     return value
 
 
-def _rebind_model(catalog: Catalog, quantity: str, model_id: str, sha256: str,
-                  components: Mapping[str, Model], variant: str | None = None) -> Model:
+def _rebind_model(
+    catalog: CatalogueLike,
+    quantity: str,
+    model_id: str,
+    sha256: str,
+    components: Mapping[str, Model],
+    variant: str | None = None,
+) -> Model:
     model = catalog.model(quantity, model_id)
     if model.sha256 != sha256:
-        raise DatasetError(model.path, f"has sha256 {model.sha256} here but {sha256} where "
-                           "the model was pickled: the two processes read different data")
+        raise DatasetError(
+            model.path,
+            f"has sha256 {model.sha256} here but {sha256} where "
+            "the model was pickled: the two processes read different data",
+        )
     if variant is not None:
         model = model.select(variant)
     return model.compose(**components) if components else model
@@ -430,6 +492,7 @@ def _span(low, high) -> str:
 
 def _replace(model: Model, **changes) -> Model:
     import dataclasses
+
     return dataclasses.replace(model, **changes)
 
 
@@ -443,6 +506,7 @@ class Release:
     notes: str
     models: Mapping[str, str]
     path: Path
+    catalogue: CatalogueLike | None = field(default=None, repr=False, compare=False)
 
     @property
     def final(self) -> bool:
@@ -453,9 +517,7 @@ class Release:
         return self.path.with_name(f"{self.id}.reference.json")
 
     def __reduce__(self):
-        from .catalog import catalog_at
-
-        return _reload_release, (catalog_at(self.path.parent.parent), self.id)
+        return _reload_release, (self.catalogue, self.id)
 
     def __copy__(self):
         return self  # immutable
@@ -464,5 +526,5 @@ class Release:
         return self
 
 
-def _reload_release(catalog: Catalog, release_id: str) -> Release:
+def _reload_release(catalog: CatalogueLike, release_id: str) -> Release:
     return catalog.release(release_id)

@@ -18,12 +18,20 @@ __all__ = ["DERIVED", "PLANES", "CrystalMethods"]
 DERIVED = {
     "density": (("lattice_constant", "molar_mass"), "rho = 8 M / (N_A a(T)^3)"),
     "atomic_density": (("lattice_constant",), "N = 8 / a(T)^3"),
-    "surface_atom_density": (("lattice_constant",),
-                             ("atoms per area in one atomic layer of the plane, "
-                              "2/a^2 (100), 2 sqrt2/a^2 (110), 4/(sqrt3 a^2) (111)")),
-    "dangling_bond_density": (("lattice_constant",),
-                              ("surface atom density x bonds cut per atom of the ideal "
-                               "unreconstructed surface: 2 (100), 1 (110), 1 (111)")),
+    "surface_atom_density": (
+        ("lattice_constant",),
+        (
+            "atoms per area in one atomic layer of the plane, "
+            "2/a^2 (100), 2 sqrt2/a^2 (110), 4/(sqrt3 a^2) (111)"
+        ),
+    ),
+    "dangling_bond_density": (
+        ("lattice_constant",),
+        (
+            "surface atom density x bonds cut per atom of the ideal "
+            "unreconstructed surface: 2 (100), 1 (110), 1 (111)"
+        ),
+    ),
 }
 
 PLANES = tuple(crystal.PLANES)
@@ -66,8 +74,12 @@ class CrystalMethods:
         # looked up once instead of a unit conversion per call; in place on the fresh
         # result of an array
         factor = _factor(units, "nm")
-        if isinstance(result, np.ndarray) and result.ndim and result.flags.writeable \
-                and result.flags.owndata:
+        if (
+            isinstance(result, np.ndarray)
+            and result.ndim
+            and result.flags.writeable
+            and result.flags.owndata
+        ):
             result *= factor
             return quantity(result, "nm")
         return quantity(result * factor, "nm")
@@ -87,20 +99,19 @@ class CrystalMethods:
     def density(self, temperature):
         """Mass density from the lattice constant and the atomic weight, g/cm^3."""
         mass, _ = self._evaluate("molar_mass")
-        return quantity(self._from_lattice(crystal.mass_density, temperature, mass),
-                        "g/cm^3")
+        return quantity(self._from_lattice(crystal.mass_density, temperature, mass), "g/cm^3")
 
     def surface_atom_density(self, plane, temperature):
         """Atoms per area in one atomic layer of a (100), (110) or (111) plane, cm^-2."""
         plane = _plane(plane)
-        return quantity(self._from_lattice(crystal.plane_atom_density, temperature, plane),
-                        "cm^-2")
+        return quantity(self._from_lattice(crystal.plane_atom_density, temperature, plane), "cm^-2")
 
     def dangling_bond_density(self, plane, temperature):
         """Dangling bonds per area of the ideal unreconstructed (100)/(110)/(111) surface, cm^-2."""
         plane = _plane(plane)
-        return quantity(self._from_lattice(crystal.dangling_bond_density, temperature,
-                                           plane), "cm^-2")
+        return quantity(
+            self._from_lattice(crystal.dangling_bond_density, temperature, plane), "cm^-2"
+        )
 
 
 @cache

@@ -1,0 +1,33 @@
+"""The catalogue layer: the numbers of ``datasets/`` as checked, immutable records.
+
+- :mod:`.records` — sources, coefficients, validity ranges, models, releases
+  (immutable; they never import the catalogue that builds them);
+- :mod:`.fields`, :mod:`.regions`, :mod:`.schema` — reading and checking the fields
+  of a data file;
+- :mod:`.modelfile` — the checks and binding of one model file to its kernel;
+- :mod:`.store` — :class:`Catalog`: finds, verifies (checksums) and loads the files;
+- :mod:`.defects` — the defect catalogue of Shockley-Read-Hall centres;
+- :mod:`.checks` — the integrity check of a whole datasets folder
+  (``python -m matprops.catalogue``).
+
+Imports run downward only: records -> fields/regions/schema -> modelfile -> store ->
+defects -> checks.
+"""
+
+from .records import Coefficient, Model, Range, Release, Source
+from .regions import Region
+from .store import Catalog, catalog_at, datasets_root, default_catalog, sha256_of
+
+__all__ = [
+    "Catalog",
+    "Coefficient",
+    "Model",
+    "Range",
+    "Region",
+    "Release",
+    "Source",
+    "catalog_at",
+    "datasets_root",
+    "default_catalog",
+    "sha256_of",
+]

@@ -1,0 +1,5 @@
+"""``python -m matprops.cli`` runs the ``matprops`` command."""
+
+from .main import main
+
+raise SystemExit(main())
