@@ -34,7 +34,7 @@ def spawn_pool():
     inherited, so every argument, result and error crosses by pickle."""
     import multiprocessing
 
-    from _spawn import plain_pickling
+    from spawn_helpers import plain_pickling
 
     pool = multiprocessing.get_context("spawn").Pool(2, initializer=plain_pickling)
     yield pool

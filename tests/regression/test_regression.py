@@ -23,7 +23,7 @@ import matprops
 from matprops import optics
 from matprops.catalogue.store import datasets_root, default_catalog
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 
 
 def quiet(function, *args, **kwargs):

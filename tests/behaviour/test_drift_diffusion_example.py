@@ -6,7 +6,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-EXAMPLE = Path(__file__).resolve().parent.parent / "docs" / "drift_diffusion_example.py"
+EXAMPLE = Path(__file__).resolve().parents[2] / "docs" / "drift_diffusion_example.py"
 
 
 @pytest.fixture(scope="module")

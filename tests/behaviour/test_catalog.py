@@ -341,7 +341,7 @@ def test_model_catalogue_in_docs_is_generated_from_datasets():
 
     from matprops.outputs.modeldocs import render
 
-    committed = Path(__file__).resolve().parent.parent / "docs" / "models.md"
+    committed = Path(__file__).resolve().parents[2] / "docs" / "models.md"
     assert committed.read_text() == render(), "regenerate: python -m matprops.outputs.modeldocs"
 
 

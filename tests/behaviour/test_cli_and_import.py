@@ -364,7 +364,7 @@ def test_modeldocs_help_writes_no_file(tmp_path):
         check=False,
         env={
             **__import__("os").environ,
-            "PYTHONPATH": str(__import__("pathlib").Path(__file__).resolve().parent.parent),
+            "PYTHONPATH": str(__import__("pathlib").Path(__file__).resolve().parents[2]),
         },
     )
     assert out.returncode == 0 and "docs/models.md" in out.stdout

@@ -9,7 +9,7 @@ import numpy as np
 
 import matprops
 
-README = Path(__file__).resolve().parent.parent / "README.md"
+README = Path(__file__).resolve().parents[2] / "README.md"
 
 
 def test_the_usage_example_runs():
