@@ -264,15 +264,15 @@ def test_release_diff_command(capsys, datasets_copy, monkeypatch):
     from matprops.catalogue.store import default_catalog
 
     root, catalog = datasets_copy
-    text = (root / "releases/2026.1.toml").read_text().replace('"2026.1"', '"2026.2"')
-    (root / "releases/2026.2.toml").write_text(
+    text = (root / "releases/2026.1.toml").read_text().replace('"2026.1"', '"2030.1"')
+    (root / "releases/2030.1.toml").write_text(
         text.replace('band_gap = "passler-2002"', 'band_gap = "alex-1996"')
     )
     catalog.write_checksums()
     monkeypatch.setenv("MATPROPS_DATASETS", str(root))
     default_catalog.cache_clear()
     try:
-        code, out, _ = run(capsys, "release-diff", "2026.1", "2026.2")
+        code, out, _ = run(capsys, "release-diff", "2026.1", "2030.1")
     finally:
         monkeypatch.delenv("MATPROPS_DATASETS")
         default_catalog.cache_clear()
@@ -449,7 +449,8 @@ def test_unusable_datasets_folder_is_one_line(capsys, tmp_path, datasets_env, ca
             path.unlink()
         monkeypatch.setenv("MATPROPS_DATASETS", str(root))
     else:
-        (root / "releases/2026.1.toml").write_text('release = "2026.1\n')
+        newest = catalog.newest_release_id()
+        (root / f"releases/{newest}.toml").write_text(f'release = "{newest}\n')
         catalog.write_checksums()
         monkeypatch.setenv("MATPROPS_DATASETS", str(root))
     for argv in (["table", "-t", "300"], ["releases"]):

@@ -108,7 +108,7 @@ def test_every_quantity_of_the_release_can_be_tabulated(si):
             data = si.table([name], **grid)
         for variable, _ in QUANTITIES[name].outputs:
             assert variable in data and data[variable].attrs["units"]
-            assert json.loads(data[variable].attrs["provenance"])["release"] == "2026.1"
+            assert json.loads(data[variable].attrs["provenance"])["release"] == si.release.id
 
 
 def test_dimensions_are_the_axes_given(si):
@@ -308,10 +308,10 @@ def test_compare_choices_and_errors(si):
 
 def _second_release(root, catalog, changes):
     text = (root / "releases/2026.1.toml").read_text()
-    text = text.replace('release = "2026.1"', 'release = "2026.2"')
+    text = text.replace('release = "2026.1"', 'release = "2030.1"')
     for quantity, (old, new) in changes.items():
         text = text.replace(f'{quantity} = "{old}"', f'{quantity} = "{new}"')
-    (root / "releases/2026.2.toml").write_text(text)
+    (root / "releases/2030.1.toml").write_text(text)
     catalog.write_checksums()
 
 
@@ -327,7 +327,7 @@ def test_release_difference_with_a_temporary_second_release(datasets_copy):
     )
     from matprops.outputs.changes import release_difference
 
-    diff = release_difference("2026.1", "2026.2", catalog)
+    diff = release_difference("2026.1", "2030.1", catalog)
     changed = {r["quantity"] for r in diff["models"] if r["changed"]}
     assert changed == {"band_gap", "intrinsic_density"}
     record = {r["quantity"]: r for r in diff["models"]}["band_gap"]
@@ -339,7 +339,7 @@ def test_release_difference_with_a_temporary_second_release(datasets_copy):
     from matprops.outputs.reference import TEMPERATURES
 
     old = matprops.Silicon(release="2026.1", catalog=catalog)
-    new = matprops.Silicon(release="2026.2", catalog=catalog)
+    new = matprops.Silicon(release="2030.1", catalog=catalog)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         ratio = np.abs(new.band_gap(TEMPERATURES).m / old.band_gap(TEMPERATURES).m - 1)
