@@ -15,7 +15,8 @@ def green_2008_copy():
     Returns wavelength (nm), alpha (1/cm), n, and the temperature coefficients C_n and
     C_alpha (1/K) as numpy arrays.
     """
-    table = np.loadtxt(DATA / "green-2008-table1-second-copy.csv", delimiter=",", comments="#", skiprows=7)
+    path = DATA / "green-2008-table1-second-copy.csv"
+    table = np.loadtxt(path, delimiter=",", comments="#", skiprows=7)
     wavelength = np.round(table[:, 0] * 1000.0, 6)
     return wavelength, table[:, 1], table[:, 2], table[:, 3] * 1e-4, table[:, 4] * 1e-4
 

@@ -18,7 +18,8 @@ a new kind of argument by adding an entry to :data:`KINDS`.
 The sweep is derandomised (the same examples every run, as tests must be
 deterministic). For a longer, random exploration on demand::
 
-    MATPROPS_SWEEP_EXAMPLES=2000 MATPROPS_SWEEP_RANDOM=1 python -m pytest tests/properties/test_sweep.py
+    MATPROPS_SWEEP_EXAMPLES=2000 MATPROPS_SWEEP_RANDOM=1 \
+        python -m pytest tests/properties/test_sweep.py
 """
 
 from __future__ import annotations
