@@ -18,6 +18,7 @@ __all__ = [
     "ChecksumError",
     "DatasetError",
     "Error",
+    "FinalityError",
     "InputError",
     "ReleaseFrozenError",
     "SolverError",
@@ -146,6 +147,12 @@ class DatasetError(Error, ValueError):
 
 class ChecksumError(DatasetError):
     """A dataset file does not match the checksum recorded for it: it is not loaded."""
+
+
+class FinalityError(DatasetError):
+    """A final release whose files do not match the seal recorded in the package code
+    (or a release file that claims or denies finality against that record): it is not
+    loaded."""
 
 
 class ReleaseFrozenError(Error, RuntimeError):

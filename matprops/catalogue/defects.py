@@ -193,7 +193,7 @@ _LOADED: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
 
 
 def _folder(catalog: Catalog) -> Path:
-    return catalog.root / FOLDER
+    return catalog.data_folder(FOLDER)
 
 
 def names(catalog: Catalog | None = None) -> list[str]:

@@ -46,9 +46,11 @@ from ..errors import (
     UnknownQuantityError,
     UnknownReleaseError,
 )
+from . import finality
 from .fields import read_only
 from .modelfile import _build_model
 from .records import (
+    CatalogueLike,
     Coefficient,
     Model,
     Range,
@@ -78,6 +80,7 @@ __all__ = [
 CHECKSUM_FILE = "checksums.sha256"
 # folder -> suffixes of the data files in it, each covered by the checksum list
 DATA_FILES = {
+    "archive": (".toml", ".nc"),
     "models": (".toml",),
     "tables": (".nc",),
     "releases": (".toml", ".json"),
@@ -154,7 +157,8 @@ class Catalog:
     def __init__(self, root: Path | str | None = None):
         # absolute once, so a later change of working folder changes nothing
         self.root = Path(os.path.abspath(root)) if root is not None else datasets_root()
-        self._models: dict[tuple[str, str], Model] = {}
+        self._models: dict[Path, Model] = {}  # by file: a release's archive has its own
+        self._views: dict[str, ReleaseCatalogue] = {}
         self._checksums: dict[str, str] | None = None
         self._lock = threading.RLock()  # models are built once, even from many threads
 
@@ -169,6 +173,15 @@ class Catalog:
 
     def __deepcopy__(self, memo):
         return self
+
+    @property
+    def base(self) -> Catalog:
+        """The catalogue itself (a release's view answers with the one it views)."""
+        return self
+
+    def data_folder(self, name: str) -> Path:
+        """Where this catalogue reads one kind of data (``"defects"``, ``"tables"``)."""
+        return self.root / name
 
     # -- listing
     def _folder(self, name: str) -> Path:
@@ -282,25 +295,39 @@ class Catalog:
 
     # -- models
     def model(self, quantity: str, model_id: str) -> Model:
-        key = (quantity, model_id)
-        model = self._models.get(key)
+        path = self.root / "models" / quantity / f"{model_id}.toml"
+        model = self._models.get(path)
+        if model is not None:
+            return model
+        known = self.model_ids(quantity)
+        if model_id not in known:
+            raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
+        return self.model_at(path, self)
+
+    def model_at(self, path: Path, owner: CatalogueLike) -> Model:
+        """The model of one file (built once); ``owner`` is the catalogue the record
+        answers to (this one, or the view of a release whose archive holds the file)."""
+        model = self._models.get(path)
         if model is not None:
             return model
         with self._lock:
-            if key not in self._models:
-                known = self.model_ids(quantity)
-                if model_id not in known:
-                    raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
-                self._models[key] = self._load_model(
-                    self.root / "models" / quantity / f"{model_id}.toml"
-                )
-            return self._models[key]
+            if path not in self._models:
+                raw = self.verified_bytes(path)
+                data = _parse_toml(path, raw)
+                validate(path, data, MODEL)
+                self._models[path] = _build_model(path, data, owner)
+            return self._models[path]
 
-    def _load_model(self, path: Path) -> Model:
-        raw = self.verified_bytes(path)
-        data = _parse_toml(path, raw)
-        validate(path, data, MODEL)
-        return _build_model(path, data, self)
+    def for_release(self, release: Release) -> Catalog | ReleaseCatalogue:
+        """The catalogue as a release sees it: a final release reads the model and
+        defect files it sealed from its archive (``archive/<id>/``), so the main tree
+        may move on; a draft reads the main tree."""
+        if not release.final or not (self.root / "archive" / release.id).is_dir():
+            return self
+        with self._lock:
+            if release.id not in self._views:
+                self._views[release.id] = ReleaseCatalogue(self, release.id)
+            return self._views[release.id]
 
     # -- releases
     def release(self, release_id: str) -> Release:
@@ -314,6 +341,7 @@ class Catalog:
             raise DatasetError(
                 path, f"field 'release' is {data['release']!r}, the file name says {release_id!r}"
             )
+        finality.verify(self, release_id, data["status"])
         return Release(
             release_id,
             data["status"],
@@ -325,7 +353,7 @@ class Catalog:
         )
 
     def table_path(self, name: str) -> Path:
-        path = self.root / "tables" / name
+        path = self.data_folder("tables") / name
         if not path.is_file():
             raise DatasetError(path, "table file is missing")
         return path
@@ -367,6 +395,66 @@ class Catalog:
                 key: (read_only(np.array(var[:], dtype=float)), str(getattr(var, "units", "1")))
                 for key, var in handle.variables.items()
             }
+
+
+class ReleaseCatalogue:
+    """A catalogue as one final release sees it (see :meth:`Catalog.for_release`).
+
+    Model and defect files come from ``archive/<release>/`` when the release sealed
+    them (every model of every quantity it served, defaults and alternatives, and the
+    defect catalogue); models added to the catalogue later come from the main tree
+    (their provenance says they are not part of the release). Everything else is the
+    viewed catalogue's.
+    """
+
+    def __init__(self, base: Catalog, release_id: str):
+        self.base = base
+        self.release_id = release_id
+        self.archive = base.root / "archive" / release_id
+
+    def __getattr__(self, name):
+        return getattr(self.base, name)
+
+    def __reduce__(self):
+        return _release_view, (self.base, self.release_id)
+
+    def __copy__(self):
+        return self
+
+    def __deepcopy__(self, memo):
+        return self
+
+    def __repr__(self) -> str:
+        return f"<catalogue {self.base.root} as final release {self.release_id} sees it>"
+
+    def data_folder(self, name: str) -> Path:
+        archived = self.archive / name
+        return archived if archived.is_dir() else self.base.data_folder(name)
+
+    def archived_model_ids(self, quantity: str) -> list[str]:
+        """Models of a quantity the release sealed (empty for a later quantity)."""
+        return sorted(p.stem for p in (self.archive / "models" / quantity).glob("*.toml"))
+
+    def model_ids(self, quantity: str) -> list[str]:
+        later = self.base.model_ids(quantity) if quantity in self.base.quantities() else []
+        return sorted(set(self.archived_model_ids(quantity)) | set(later))
+
+    def quantities(self) -> list[str]:
+        archived = [p.name for p in (self.archive / "models").iterdir() if p.is_dir()]
+        return sorted(set(archived) | set(self.base.quantities()))
+
+    def model(self, quantity: str, model_id: str) -> Model:
+        path = self.archive / "models" / quantity / f"{model_id}.toml"
+        if path.is_file():
+            return self.base.model_at(path, self)
+        return self.base.model(quantity, model_id)
+
+    def for_release(self, release: Release) -> Catalog | ReleaseCatalogue:
+        return self.base.for_release(release)
+
+
+def _release_view(base: Catalog, release_id: str) -> Catalog | ReleaseCatalogue:
+    return base.for_release(base.release(release_id))
 
 
 def _parse_toml(path: Path, raw: bytes) -> dict:

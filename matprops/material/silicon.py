@@ -64,10 +64,12 @@ class Silicon(
         strict: bool = False,
         catalog: Catalog | None = None,
     ):
-        self.catalog = catalog or default_catalog()
-        self.release = self.catalog.release(
-            release if release is not None else self.catalog.newest_release_id()
+        catalog = catalog or default_catalog()
+        self.release = catalog.release(
+            release if release is not None else catalog.newest_release_id()
         )
+        # a final release reads the model and defect files it sealed (its archive)
+        self.catalog = catalog.for_release(self.release)
         if not isinstance(strict, (bool, np.bool_)):  # strict="no" is not False
             raise InputError("strict", "True or False", repr(strict))
         self.strict = bool(strict)

@@ -862,7 +862,7 @@ def _rebuild(recipe):
 def _recipe(si):
     from ..catalogue.store import default_catalog
 
-    root = None if si.catalog is default_catalog() else str(si.catalog.root)
+    root = None if si.catalog.base is default_catalog() else str(si.catalog.root)
     overrides = tuple(sorted((q, m) for q, m in si.models.items() if q in si.overridden))
     return (type(si), root, si.release.id, overrides, si.strict)
 

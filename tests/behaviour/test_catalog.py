@@ -288,7 +288,13 @@ def test_check_command_covers_every_kind_of_file(datasets_copy, capsys, relative
 
 def test_check_command_fails_on_unlisted_files_and_bad_references(datasets_copy, capsys):
     root, catalog = datasets_copy
-    _rewrite(root, "releases/2026.1.toml", 'band_gap = "passler-2002"', 'band_gap = "passler-2003"')
+    newest = catalog.newest_release_id()  # a draft naming a model that does not exist
+    text = (root / f"releases/{newest}.toml").read_text()
+    text = text.replace(f'release = "{newest}"', 'release = "2030.1"')
+    text = text.replace('status = "final"', 'status = "draft"')
+    text = text.replace('band_gap = "passler-2002"', 'band_gap = "passler-2003"')
+    (root / "releases/2030.1.toml").write_text(text)
+    (root / "releases/2030.1.reference.json").write_text("{}")
     catalog.write_checksums()
     (root / "scenarios/extra.toml").write_text("name = 'extra'\n")
     status, out = _check(root, capsys)

@@ -265,6 +265,7 @@ def test_release_diff_command(capsys, datasets_copy, monkeypatch):
 
     root, catalog = datasets_copy
     text = (root / "releases/2026.1.toml").read_text().replace('"2026.1"', '"2030.1"')
+    text = text.replace('status = "final"', 'status = "draft"')
     (root / "releases/2030.1.toml").write_text(
         text.replace('band_gap = "passler-2002"', 'band_gap = "alex-1996"')
     )

@@ -24,6 +24,7 @@ EXAMPLES = [
     (errors.UnknownReleaseError("2025.9", ["2026.1"]), ("name", "known")),
     (errors.DatasetError(Path("models/a/b.toml"), "missing field 'id'"), ("path", "problem")),
     (errors.ChecksumError("tables/x.nc", "sha256 differs"), ("path", "problem")),
+    (errors.FinalityError("releases/x.seal.json", "not the recorded seal"), ("path", "problem")),
     (
         errors.UnknownVariantError("tin", ["boron", "phosphorus"], "for ionisation"),
         ("name", "known"),

@@ -309,6 +309,7 @@ def test_compare_choices_and_errors(si):
 def _second_release(root, catalog, changes):
     text = (root / "releases/2026.1.toml").read_text()
     text = text.replace('release = "2026.1"', 'release = "2030.1"')
+    text = text.replace('status = "final"', 'status = "draft"')
     for quantity, (old, new) in changes.items():
         text = text.replace(f'{quantity} = "{old}"', f'{quantity} = "{new}"')
     (root / "releases/2030.1.toml").write_text(text)

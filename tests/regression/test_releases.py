@@ -5,48 +5,78 @@ import json
 import pytest
 
 import matprops
+from matprops.catalogue.store import Catalog, default_catalog
 from matprops.outputs.reference import compare, regenerate
 
+RELEASES = matprops.releases()
+FINAL = [r for r in RELEASES if default_catalog().release(r).final]
+DRAFTS = [r for r in RELEASES if r not in FINAL]
 
-@pytest.mark.parametrize("release_id", matprops.releases())
+
+def _make_draft(root, catalog, release_id="2030.1") -> str:
+    """A draft release in a datasets copy, pinning the newest release's models, with
+    its reference evaluated (the tests of drafts run even when every shipped release
+    is final)."""
+    newest = catalog.newest_release_id()
+    text = (root / f"releases/{newest}.toml").read_text()
+    text = text.replace(f'release = "{newest}"', f'release = "{release_id}"')
+    text = text.replace('status = "final"', 'status = "draft"')
+    (root / f"releases/{release_id}.toml").write_text(text)
+    (root / f"releases/{release_id}.reference.json").write_text("{}")
+    catalog.write_checksums()
+    regenerate(release_id, catalog)
+    return release_id
+
+
+@pytest.mark.parametrize("release_id", RELEASES)
 def test_release_reproduces_its_frozen_reference(release_id):
-    # regression check (1e-12 relative) of every number the release pinned
+    # regression check of every number the release pinned, each case at its stored
+    # tolerance (closed forms 1e-12, iterative results 1e-9; see reference.py)
     assert compare(release_id) == []
 
 
 def test_release_lookup_and_listing():
-    assert matprops.releases()[-1] == matprops.silicon().release.id
+    assert RELEASES[-1] == matprops.silicon().release.id
     assert matprops.silicon(release="2026.1").models["band_gap"] == "passler-2002"
+    assert "2026.1" in FINAL
 
 
-def test_a_change_is_detected(datasets_copy):
+@pytest.mark.parametrize("release_id", RELEASES)
+def test_a_change_is_detected(datasets_copy, release_id):
     root, catalog = datasets_copy
-    path = root / "releases/2026.1.reference.json"
+    path = root / f"releases/{release_id}.reference.json"
     content = json.loads(path.read_text())
     content["cases"]["band_gap"]["values"][0][3] *= 1 + 1e-9
     path.write_text(json.dumps(content))
     catalog.write_checksums()
-    problems = compare("2026.1", catalog)
-    assert problems and "band_gap" in problems[0]
+    if release_id in FINAL:  # a final release's reference is sealed: it no longer loads
+        with pytest.raises(matprops.FinalityError, match="sealed by final release"):
+            compare(release_id, catalog)
+    else:
+        problems = compare(release_id, catalog)
+        assert problems and "band_gap" in problems[0]
 
 
-def test_the_release_is_final_and_says_so(capsys):
-    from matprops.catalogue.store import default_catalog
+def test_final_releases_say_so(capsys):
     from matprops.cli import main
 
-    assert default_catalog().release("2026.1").final
     assert main(["releases"]) == 0
-    assert "2026.1 (final" in capsys.readouterr().out
+    out = capsys.readouterr().out
+    for release_id in FINAL:
+        assert f"{release_id} (final" in out
 
 
-def test_final_reference_covers_every_pinned_quantity_and_data_file():
-    # every model the release pins is evaluated by some case of its frozen reference,
-    # every dopant species of its ionisation model and every defect of the catalogue
-    from matprops.catalogue.store import default_catalog
+@pytest.mark.parametrize("release_id", RELEASES)
+def test_reference_covers_every_model_species_and_defect(release_id):
+    # every model the release pins is evaluated by some case of its frozen reference
+    # (and every alternative model of its quantities, one swapped at a time), every
+    # dopant species of its ionisation model and every defect it reads
+    from matprops.catalogue import defects
     from matprops.outputs.reference import _needs
 
-    catalog = default_catalog()
-    release = catalog.release("2026.1")
+    si = matprops.silicon(release=release_id)
+    catalog = si.catalog
+    release = si.release
     frozen = json.loads(catalog.verified_bytes(release.reference_path))
     covered = {
         q for case in frozen["cases"].values() for q in _needs(case["method"], case["fixed"])
@@ -58,9 +88,7 @@ def test_final_reference_covers_every_pinned_quantity_and_data_file():
         for case in frozen["cases"].values()
         if case["method"] == "dopant_level"
     }
-    assert species == set(catalog.model("ionisation", release.models["ionisation"]).variants)
-    from matprops.catalogue import defects
-
+    assert species == set(si.model("ionisation").variants)
     defects_covered = {
         case["fixed"]["defect"]
         for case in frozen["cases"].values()
@@ -68,36 +96,63 @@ def test_final_reference_covers_every_pinned_quantity_and_data_file():
     }
     assert defects_covered == set(defects.names(catalog))
     assert {f"defects/{n}.toml" for n in defects_covered} == set(frozen["data_files"])
+    alternatives = dict(frozen.get("alternatives", {}))
+    supplement = release.reference_path.with_name(f"{release_id}.alternatives.json")
+    if supplement.is_file():
+        alternatives.update(json.loads(catalog.verified_bytes(supplement))["cases"])
+    swapped = {label.partition("@")[2] for label in alternatives}
+    expected = {
+        f"{quantity}={model_id}"
+        for quantity, default in release.models.items()
+        for model_id in catalog.model_ids(quantity)
+        if model_id != default
+    }
+    if release.final:  # models added to the catalogue after the release are not its own
+        expected = {
+            f"{quantity}={model_id}"
+            for quantity, default in release.models.items()
+            for model_id in catalog.archived_model_ids(quantity)
+            if model_id != default
+        }
+    assert swapped == expected
 
 
-def test_final_release_cannot_be_regenerated_or_changed(datasets_copy):
-    root, catalog = datasets_copy
+@pytest.mark.parametrize("release_id", FINAL)
+def test_final_release_cannot_be_regenerated(datasets_copy, release_id):
+    _, catalog = datasets_copy
     with pytest.raises(matprops.ReleaseFrozenError, match="final"):
-        regenerate("2026.1", catalog)
-    # editing a model file the final release pinned is caught even if the numbers
-    # happened not to move (the file's hash is frozen with the release)
-    model = root / "models/band_gap/passler-2002.toml"
-    model.write_text(model.read_text() + "\n# an innocent-looking edit\n")
-    # ... and so is an edit of a defect of the catalogue
-    defect = root / "defects/iron-interstitial.toml"
-    defect.write_text(defect.read_text() + "\n# another innocent-looking edit\n")
-    catalog.write_checksums()
-    problems = compare("2026.1", catalog)
-    assert any("passler-2002 changed in a final release" in p for p in problems)
-    assert any("defects/iron-interstitial.toml: data file changed" in p for p in problems)
+        regenerate(release_id, catalog)
 
 
-def test_a_draft_regenerates_identically(datasets_copy):
-    # regression check: regenerating a draft with the same code and data reproduces its
-    # reference exactly (the release itself is final: a draft copy of it is made here)
+@pytest.mark.parametrize("release_id", FINAL)
+def test_the_main_tree_moves_on_without_moving_a_final_release(datasets_copy, release_id):
+    # a final release reads the model and defect files it sealed from its archive:
+    # editing (correcting) the main tree's copies changes nothing of it
     root, catalog = datasets_copy
-    toml = root / "releases/2026.1.toml"
-    toml.write_text(toml.read_text().replace('status = "final"', 'status = "draft"'))
+    model = root / "models/band_gap/passler-2002.toml"
+    model.write_text(model.read_text().replace("1.1701", "1.1801"))
+    defect = root / "defects/iron-interstitial.toml"
+    defect.write_text(defect.read_text() + "\n# a later correction\n")
     catalog.write_checksums()
-    before = json.loads((root / "releases/2026.1.reference.json").read_text())
-    regenerate("2026.1", catalog)
-    after = json.loads((root / "releases/2026.1.reference.json").read_text())
+    assert compare(release_id, catalog) == []
+    si = matprops.Silicon(release=release_id, catalog=catalog)
+    assert "archive" in si.model("band_gap").path.parts
+
+
+def test_a_draft_regenerates_within_its_tolerances(datasets_copy):
+    # regression check: regenerating a draft with the same code and data reproduces
+    # its reference: every field exactly, the numbers within each case's tolerance
+    root, catalog = datasets_copy
+    release_id = _make_draft(root, catalog)
+    path = root / f"releases/{release_id}.reference.json"
+    before = json.loads(path.read_text())
+    regenerate(release_id, catalog)
+    after = json.loads(path.read_text())
+    for part in ("cases", "alternatives"):
+        for case in (*before[part].values(), *after[part].values()):
+            case.pop("values", None)
     assert after == before
+    assert compare(release_id, catalog) == []
 
 
 def _scale_table(root, name, variable, wavelength, factor, temperature=None):
@@ -131,12 +186,17 @@ def test_an_edit_anywhere_in_a_table_is_detected(
         table = catalog.table("franta-2017.nc")
         lam = table.wavelength.values
         wavelength = float(lam[(lam > 1001) & (lam < 1009)][0])
+    draft = _make_draft(root, catalog)
     _scale_table(root, name, variable, wavelength, 1.10, temperature)
     catalog.write_checksums()  # a deliberate edit: the checksum list is not the guard here
-    problems = compare("2026.1", catalog)
+    catalog = Catalog(root)  # a fresh reader (the draft's evaluation kept the old table)
+    problems = compare(draft, catalog)  # a draft's reference catches the moved numbers
     assert any(f"table {name}" in p for p in problems)
     if name == "green-2008.nc":  # and the evaluation at every stored point moves too
         assert any("_stored_points: differs" in p for p in problems)
+    for release_id in FINAL:  # a final release sealed the table file itself
+        with pytest.raises(matprops.FinalityError, match=f"tables/{name}"):
+            compare(release_id, catalog)
 
 
 # ------------------------------------------------------------------ read-only installs
@@ -185,13 +245,11 @@ def test_reference_regenerate_on_a_read_only_install_says_so(
     from matprops.outputs.reference import main
 
     root, catalog = datasets_copy
-    toml = root / "releases/2026.1.toml"  # a draft (a final release refuses first)
-    toml.write_text(toml.read_text().replace('status = "final"', 'status = "draft"'))
-    catalog.write_checksums()
+    draft = _make_draft(root, catalog)  # (a final release refuses first)
     monkeypatch.setattr(catalog_module, "_DEFAULT", [catalog])  # the "installed" copy
     read_only(root)
-    assert main(["regenerate", "2026.1"]) == 2
+    assert main(["regenerate", draft]) == 2
     err = capsys.readouterr().err
-    assert err.count("\n") == 1 and "2026.1.reference.json: cannot be written" in err
-    assert main(["regenerate", "2030.1"]) == 2  # and an unknown release: no traceback
-    assert "unknown release '2030.1'" in capsys.readouterr().err
+    assert err.count("\n") == 1 and f"{draft}.reference.json: cannot be written" in err
+    assert main(["regenerate", "2099.1"]) == 2  # and an unknown release: no traceback
+    assert "unknown release '2099.1'" in capsys.readouterr().err
