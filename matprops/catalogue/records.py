@@ -365,7 +365,7 @@ class Model:
             "obtained": self.obtained,
             "notes": self.notes,
             "coefficients": {k: c.as_dict() for k, c in self.coefficients.items()},
-            "file": f"models/{self.quantity}/{self.path.name}",
+            "file": self._relative_path(),
             "sha256": self.sha256,
         }
         if self.table:
@@ -392,6 +392,14 @@ class Model:
         for key, value in self.extra.items():
             record[key] = _plain_extra(value)
         return record
+
+    def _relative_path(self) -> str:
+        """The model file relative to its datasets folder (a final release's archive
+        copy shows as ``archive/<release>/models/...``)."""
+        root = getattr(self.catalogue, "root", None)
+        if root is not None and self.path.is_relative_to(root):
+            return self.path.relative_to(root).as_posix()
+        return f"models/{self.quantity}/{self.path.name}"
 
     def sources(self) -> list[tuple[str, Source]]:
         """(citation key, source) of this model and every model it is composed from."""

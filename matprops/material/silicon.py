@@ -208,6 +208,10 @@ class Silicon(
             record = self.model(name).provenance()
         record["release"] = self.release.id
         record["release_status"] = self.release.status
+        if self.release.final and name not in DERIVED:
+            # a final release serves what it sealed; a model added to the catalogue
+            # later (chosen with models=) is not part of it
+            record["sealed_with_release"] = record["file"].startswith("archive/")
         record["overridden"] = name in self.overridden
         if name in self.overridden:
             record["release_choice"] = self.release.models.get(name)

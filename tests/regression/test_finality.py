@@ -138,3 +138,10 @@ def test_freezing_a_draft_end_to_end(datasets_copy, monkeypatch):
     fresh.write_checksums()
     with pytest.raises(matprops.FinalityError):
         Catalog(root).release("2030.1")
+
+
+def test_provenance_says_where_a_final_release_read_its_model():
+    record = matprops.silicon(release="2026.1").provenance("mobility")
+    assert record["file"] == "archive/2026.1/models/mobility/klaassen-1992.toml"
+    assert record["sealed_with_release"] is True
+    assert matprops.silicon().provenance("mobility")["file"].startswith(("models/", "archive/"))
