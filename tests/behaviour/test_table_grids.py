@@ -125,15 +125,19 @@ def test_dimensions_are_the_axes_given(si):
 
 def test_default_selection_follows_the_axes(si):
     names = {v.attrs["quantity"] for v in si.table(T=[300.0]).data_vars.values()}
-    assert names == {
-        "band_gap",
-        "intrinsic_density",
-        "densities_of_states",
-        "lattice_constant",
-        "density",
-        "atomic_density",
-        "radiative_coefficient",
+    # the rule: every quantity of the release that depends on temperature, needs no
+    # other axis and wants none (read from the registry, so a new one is included)
+    expected = {
+        name
+        for name in available(si)
+        if "temperature" in QUANTITIES[name].takes
+        and set(QUANTITIES[name].required) <= {"temperature"}
+        and not QUANTITIES[name].wants
+        and QUANTITIES[name].by_default
     }
+    assert names == expected
+    assert {"band_gap", "intrinsic_density", "density", "radiative_coefficient"} <= names
+    assert not {"mobility", "gap_narrowing", "absorption", "molar_mass"} & names
     with_light = {
         v.attrs["quantity"] for v in si.table(T=[300.0], wavelength=[800.0]).data_vars.values()
     }
