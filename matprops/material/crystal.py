@@ -1,4 +1,5 @@
-"""Crystal constants: lattice constant, molar mass, permittivity and what follows from them."""
+"""Crystal constants: lattice constant, thermal expansion, molar mass, permittivity and what
+follows from them."""
 
 from __future__ import annotations
 
@@ -63,6 +64,20 @@ class CrystalMethods:
             result *= factor
             return quantity(result, "nm")
         return quantity(result * factor, "nm")
+
+    @declare(
+        units="1/K",
+        long_name="linear thermal-expansion coefficient",
+        aliases=("thermal_expansion_coefficient",),
+        cases=[case(temperature=TEMPERATURES)],
+    )
+    def thermal_expansion(self, temperature):
+        """Linear thermal-expansion coefficient alpha(T) = (1/a) da/dT, 1/K.
+
+        ``temperature`` in K (or a pint quantity); arrays broadcast. The release's
+        model and its validity range: ``si.provenance("thermal_expansion")``.
+        """
+        return self._quantity("thermal_expansion", temperature=temperature)
 
     @declare(units="g/mol", long_name="molar mass (standard atomic weight)", cases=[case()])
     def molar_mass(self):
