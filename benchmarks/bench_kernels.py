@@ -343,7 +343,7 @@ def cases(si):
         Case(
             "gap_narrowing (schenk-1998, n, p given)",
             doped,
-            lambda a: narrowing(a["T"], a["Nd"], a["Na"], a["n"], a["p"]),
+            lambda a: narrowing(a["T"], Nd=a["Nd"], Na=a["Na"], n=a["n"], p=a["p"]),
             lambda a: hand_schenk(a["T"], a["Nd"], a["Na"], a["n"], a["p"], c_bgn),
             lambda a: si.band_edge_shifts(a["T"], Na=a["Na"], Nd=a["Nd"], n=a["n"], p=a["p"]),
         )
@@ -358,7 +358,7 @@ def cases(si):
         Case(
             "effective_intrinsic_density (n, p given)",
             doped,
-            lambda a: eff(a["T"], a["Nd"], a["Na"], a["n"], a["p"]),
+            lambda a: eff(a["T"], Nd=a["Nd"], Na=a["Na"], n=a["n"], p=a["p"]),
             hand_eff,
             lambda a: si.effective_intrinsic_density(
                 a["T"], Na=a["Na"], Nd=a["Nd"], n=a["n"], p=a["p"]
@@ -371,7 +371,7 @@ def cases(si):
         Case(
             "ionisation (altermatt-2006, phosphorus)",
             lambda size: {"N": 10 ** rng.uniform(13, 20, size)},
-            lambda a: level(a["N"]),
+            lambda a: level(N=a["N"]),
             lambda a: hand_lowered_level(a["N"], c_level),
             lambda a: si.dopant_level(a["N"], "phosphorus"),
         )
@@ -382,7 +382,7 @@ def cases(si):
         Case(
             "intrinsic_lifetime (richter-2012, n0, p0 given)",
             lifetimes,
-            lambda a: tau(a["T"], a["n0"], a["p0"], a["dn"]),
+            lambda a: tau(a["T"], n0=a["n0"], p0=a["p0"], excess=a["dn"]),
             lambda a: hand_richter(a["n0"], a["p0"], a["dn"], c_tau),
             lambda a: si.intrinsic_lifetime(a["T"], n0=a["n0"], p0=a["p0"], excess=a["dn"]),
         )
@@ -404,7 +404,7 @@ def cases(si):
         Case(
             "srh_lifetime (shockley-1952)",
             srh_inputs,
-            lambda a: srh(a["dn"], a["n0"], a["p0"], a["n1"], a["p1"], a["tn"], a["tp"]),
+            lambda a: named(srh, a["dn"], a["n0"], a["p0"], a["n1"], a["p1"], a["tn"], a["tp"]),
             lambda a: hand_srh(a["dn"], a["n0"], a["p0"], a["n1"], a["p1"], a["tn"], a["tp"]),
         )
     )
@@ -433,7 +433,7 @@ def cases(si):
         Case(
             "free_carrier_absorption (nedeljkovic-2011)",
             fca_inputs,
-            lambda a: fca(a["lam"], a["n"], a["p"]),
+            lambda a: fca(a["lam"], n=a["n"], p=a["p"]),
             lambda a: hand_fca(a["lam"], a["n"], a["p"], c_fca),
             lambda a: si.free_carrier_absorption(a["lam"], n=a["n"], p=a["p"]),
         )
@@ -450,7 +450,7 @@ def cases(si):
             Case(
                 f"mobility (klaassen-1992, {carrier}, n, p given)",
                 doped,
-                lambda a, k=mobility: k(a["T"], a["Nd"], a["Na"], a["n"], a["p"]),
+                lambda a, k=mobility: k(a["T"], Nd=a["Nd"], Na=a["Na"], n=a["n"], p=a["p"]),
                 lambda a, c=c_mu: inline_klaassen(a["T"], a["Nd"], a["Na"], a["n"], a["p"], c),
                 lambda a, carrier=carrier: si.mobility(
                     carrier,
@@ -486,7 +486,7 @@ def cases(si):
         Case(
             "standard_resistivity (thurber-1981, boron)",
             resistivity_inputs,
-            lambda a: rho(a["T"], a["N"]),
+            lambda a: rho(a["T"], N=a["N"]),
             lambda a: (
                 c_rho["constant_term"] / a["N"]
                 + c_rho["fall_term"]
@@ -573,7 +573,7 @@ def cases(si):
         Case(
             "equilibrium (Fermi-Dirac, Schenk)",
             equilibrium_inputs,
-            lambda a: solve(a["T"], a["Nd"], a["Na"]),
+            lambda a: solve(a["T"], Nd=a["Nd"], Na=a["Na"]),
             None,
             lambda a: si.equilibrium(a["T"], Na=a["Na"], Nd=a["Nd"]),
             note="a solver: no closed form to write by hand",
@@ -581,6 +581,12 @@ def cases(si):
         )
     )
     return found
+
+
+def named(kernel, *args, **options):
+    """Call a bound kernel with its inputs in the order of ``kernel.inputs`` (densities
+    are keyword-only: each is passed by name)."""
+    return kernel(**dict(zip(kernel.inputs, args, strict=False)), **options)
 
 
 def _parts(value):
@@ -765,7 +771,7 @@ def section_scalars(si):
         kernel = si.kernel(name.split()[0], **fixed)
         k, a = [
             t * 1e6
-            for t in compare(lambda kernel=kernel, args=args: kernel(*args), api, budget=0.5)
+            for t in compare(lambda kernel=kernel, args=args: named(kernel, *args), api, budget=0.5)
         ]
         print(f"   {name:30s} kernel {k:6.1f} us   API {a:6.1f} us   ratio {a / k:5.2f}")
 
@@ -825,7 +831,8 @@ def section_derivatives(si, size):
                     )[k]
                     for k in kernel.inputs
                 )
-            value_out, partial_out = kernel.derivatives(*args)  # buffers to reuse
+            args = dict(zip(kernel.inputs, args, strict=False))  # densities go by name
+            value_out, partial_out = kernel.derivatives(**args)  # buffers to reuse
             partial_out = {
                 k: tuple(np.empty_like(a) for a in v) if isinstance(v, tuple) else np.empty_like(v)
                 for k, v in partial_out.items()
@@ -836,10 +843,10 @@ def section_derivatives(si, size):
                 else np.empty_like(value_out)
             )
             value, both, value_kept, both_kept = compare(
-                lambda k=kernel, a=args: k(*a),
-                lambda k=kernel, a=args: k.derivatives(*a),
-                lambda k=kernel, a=args, o=value_out: k(*a, out=o),
-                lambda k=kernel, a=args, o=(value_out, partial_out): k.derivatives(*a, out=o),
+                lambda k=kernel, a=args: k(**a),
+                lambda k=kernel, a=args: k.derivatives(**a),
+                lambda k=kernel, a=args, o=value_out: k(**a, out=o),
+                lambda k=kernel, a=args, o=(value_out, partial_out): k.derivatives(**a, out=o),
             )
             label = (
                 f"{name} ({material.model(name).id if name in material.models else 'derived'}"

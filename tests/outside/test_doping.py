@@ -265,7 +265,7 @@ def test_dopant_density_beyond_validity_warns(si):
 
 def test_kernel_door_gives_plain_arrays(si):
     solve = si.kernel("equilibrium", donor="phosphorus", acceptor="boron")
-    result = solve(np.array([300.0, 350.0]), np.array([1e16, 1e17]), np.array([0.0, 1e15]))
+    result = solve(np.array([300.0, 350.0]), Nd=np.array([1e16, 1e17]), Na=np.array([0.0, 1e15]))
     state = si.equilibrium([300.0, 350.0], Nd=[1e16, 1e17], Na=[0.0, 1e15])
     np.testing.assert_allclose(result["electron_density"], state.n.m_as("cm^-3"), rtol=1e-14)
     level = si.kernel("ionisation", dopant="boron")
