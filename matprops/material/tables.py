@@ -40,7 +40,7 @@ from ..errors import (
     UnknownQuantityError,
     ValidityWarning,
 )
-from ..units import cf_units, to_magnitude
+from ..units import cf_units, parse, to_magnitude
 from ..units import name as check_name
 from ..units import names as check_names
 from .registry import REGISTRY, Quantity
@@ -140,19 +140,11 @@ def _grid_values(ax: Axis, value, catalogue=None):
             repr(value),
         )
     requested = None
+    if isinstance(value, str):  # "25 degC": the units layer's one parser of such text
+        value = parse(value, ax.name, ax.units)
     if isinstance(value, pint.Quantity) and ax.name == "temperature":
         for name in value.units._units:
             requested = _DISPLAY_TEMPERATURE.get(name)
-    elif isinstance(value, str) and ax.name == "temperature":
-        for key, short in (
-            ("degC", "degC"),
-            ("°C", "degC"),
-            ("celsius", "degC"),
-            ("degF", "degF"),
-            ("°F", "degF"),
-        ):
-            if key.lower() in value.lower():
-                requested = short
     array = to_magnitude(value, ax.name, ax.units, ax.requirement)
     if array.ndim > 1:
         raise InputError(ax.name, "a scalar or a 1-D list", f"shape {array.shape}")
