@@ -8,6 +8,7 @@ import warnings
 
 import numpy as np
 import pytest
+from helpers import minimum_ionised_fraction
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -126,16 +127,6 @@ def test_altermatt_level_falls_with_density_and_merges(si):
     # at low density the level is the isolated-donor value, about 45 meV (Solymar & Walsh
     # Table 8.1; Altermatt et al. 2006 use 45.5 meV)
     assert energy[0].m_as("meV") == pytest.approx(45, abs=1)
-
-
-def minimum_ionised_fraction(si, species):
-    N = np.logspace(16, 20, 161)
-    kwargs = {"Nd": N, "donor": species} if species != "boron" else {"Na": N, "acceptor": species}
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", matprops.ValidityWarning)
-        state = si.equilibrium(300, **kwargs)
-    ionised = state.ionised_donors if species != "boron" else state.ionised_acceptors
-    return float(np.min(ionised.m_as("cm^-3") / N))
 
 
 # The ionised fraction depends on the valence/conduction densities of states as well as

@@ -1,10 +1,9 @@
 """Absorption, refractive index, free-carrier absorption and Beer-Lambert tools,
 checked against independent data sets, published values and common practice."""
 
-import warnings
-
 import numpy as np
 import pytest
+from helpers import quiet
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from outside_data import green_2008_copy, green_temperature_ratio
@@ -16,12 +15,6 @@ from matprops import optics
 def absorption(model_id, wavelength, temperature=300.0):
     si = matprops.silicon(models={"absorption": model_id})
     return si.absorption(wavelength, temperature).m_as("1/cm")
-
-
-def quiet(function, *args):
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", matprops.ValidityWarning)
-        return function(*args)
 
 
 # ---------------------------------------------------------------- external checks

@@ -12,6 +12,7 @@ import warnings
 
 import numpy as np
 import pytest
+from helpers import quiet, with_model
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -19,16 +20,6 @@ import matprops
 from matprops import Q_
 
 K_B = 8.617333262e-5  # eV/K, CODATA 2018 (exact)
-
-
-def quiet(function, *args, **kwargs):
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", matprops.ValidityWarning)
-        return function(*args, **kwargs)
-
-
-def with_model(quantity, model_id):
-    return matprops.silicon(models={quantity: model_id})
 
 
 def auger_coefficient_low_injection(si, n0, p0):

@@ -8,22 +8,16 @@ recombination model files' notes, recomputed so the text cannot drift from the c
 
 import json
 import re
-import warnings
 from pathlib import Path
 
 import numpy as np
 import pytest
+from helpers import quiet
 
 import matprops
 from matprops.catalogue.store import datasets_root
 
 K_B = 8.617333262e-5  # eV/K
-
-
-def quiet(function, *args, **kwargs):
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", matprops.ValidityWarning)
-        return function(*args, **kwargs)
 
 
 def test_kernel_door_equals_the_public_method(si):
