@@ -37,6 +37,7 @@ def ambipolar_coefficient(si, excess):
 # ----------------------------------------------------------------- radiative
 
 
+@pytest.mark.model("radiative_coefficient/trupke-2003")
 def test_radiative_coefficient_of_intrinsic_silicon_at_300K(si):
     # from memory (recalled with high confidence, not checked): Trupke et al. 2003,
     # J. Appl. Phys. 94, 4930, give B = 4.73e-15 cm^3/s for intrinsic silicon at 300 K;
@@ -47,6 +48,7 @@ def test_radiative_coefficient_of_intrinsic_silicon_at_300K(si):
     assert "recalled, not checked" in record["coefficients"]["coefficient"]["obtained"]
 
 
+@pytest.mark.model("radiative_coefficient/trupke-2003")
 def test_radiative_coefficient_warns_below_room_temperature(si):
     # Trupke et al. 2003, abstract (read): B of intrinsic silicon decreases as the
     # temperature rises over 77-300 K, so a constant 300 K value is wrong below room
@@ -59,6 +61,12 @@ def test_radiative_coefficient_warns_below_room_temperature(si):
         si.radiative_coefficient([300, 350])
 
 
+@pytest.mark.model(
+    "intrinsic_lifetime/dziewior-1977",
+    "intrinsic_lifetime/kerr-2002",
+    "intrinsic_lifetime/richter-2012",
+    "radiative_coefficient/trupke-2003",
+)
 def test_each_lifetime_model_keeps_the_radiative_term_it_was_fitted_with(si):
     # the two 300 K values in circulation are not interchangeable (doping-models.md §6.1):
     # Richter's B_low = 4.73e-15 (Trupke's value, from memory), Kerr & Cuevas's constant
@@ -86,6 +94,13 @@ def test_each_lifetime_model_keeps_the_radiative_term_it_was_fitted_with(si):
 # ----------------------------------------------------------------- Auger coefficients
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/dziewior-1977",
+    "ionisation/altermatt-2006",
+)
 def test_dziewior_schmid_coefficients():
     # COMSOL Semiconductor Module user guide and Genius TCAD Open (Si_band_schenk.cc),
     # secondary, uncited there: C_n = 2.8e-31, C_p = 9.9e-32 cm^6/s (attribution to
@@ -95,6 +110,13 @@ def test_dziewior_schmid_coefficients():
     assert auger_coefficient_low_injection(si, 1e1, 1e19) == pytest.approx(9.9e-32, abs=5e-34)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/dziewior-1977",
+    "ionisation/altermatt-2006",
+)
 def test_dziewior_schmid_ambipolar_coefficient():
     # Allpix Squared user manual, "Auger Recombination" (secondary): C_a = C_n + C_p =
     # 3.8e-31 cm^6/s from Dziewior & Schmid; half a unit of the last printed digit
@@ -102,6 +124,13 @@ def test_dziewior_schmid_ambipolar_coefficient():
     assert ambipolar_coefficient(si, 1e19) == pytest.approx(3.8e-31, abs=5e-33)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_richter_coefficients_where_coulomb_enhancement_has_vanished(si):
     # Richter et al. 2012 as read in two research codes that cite it (secondary):
     # 2.5e-31 g_eeh n0 and 8.5e-32 g_ehh p0, with g -> 1 at high doping; half a unit of
@@ -110,6 +139,13 @@ def test_richter_coefficients_where_coulomb_enhancement_has_vanished(si):
     assert auger_coefficient_low_injection(si, 1e0, 1e20) == pytest.approx(8.5e-32, abs=5e-34)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_richter_coulomb_enhancement_at_low_doping(si):
     # the same secondary sources: g_eeh = 1 + 13[...], g_ehh = 1 + 7.5[...] -> 14 and 8.5
     # in lowly doped silicon (here 1e12 cm^-3, where tanh((N/N0)^x) is below 2e-3)
@@ -117,6 +153,14 @@ def test_richter_coulomb_enhancement_at_low_doping(si):
     assert auger_coefficient_low_injection(si, 1e8, 1e12) / 8.5e-32 == pytest.approx(8.5, rel=2e-3)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/kerr-2002",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 @pytest.mark.parametrize("model_id", ["richter-2012", "kerr-2002"])
 def test_high_injection_ambipolar_coefficient(model_id):
     # from memory, with one secondary witness: the ambipolar Auger coefficient of lowly
@@ -131,6 +175,14 @@ def test_high_injection_ambipolar_coefficient(model_id):
         assert 1.66e-30 * 0.8 <= ambipolar_coefficient(si, excess) <= 1.66e-30 * 1.2
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/dziewior-1977",
+    "intrinsic_lifetime/kerr-2002",
+    "ionisation/altermatt-2006",
+)
 def test_kerr_cuevas_enhancement_above_the_free_particle_rate():
     # Kerr & Cuevas 2002, abstract (read): Auger recombination is enhanced above the
     # traditional free-particle rate at both low and high injection, and the enhancement is
@@ -148,6 +200,7 @@ def test_kerr_cuevas_enhancement_above_the_free_particle_rate():
     assert high_injection < low_injection
 
 
+@pytest.mark.model("intrinsic_lifetime/kerr-2002", "intrinsic_lifetime/richter-2012")
 @pytest.mark.parametrize("kwargs", [{"Nd": 1e15}, {"Na": 1e15}, {"Nd": 1e16}, {"Na": 1e16}])
 def test_richter_exceeds_the_kerr_cuevas_limit(kwargs):
     # Richter et al. 2012 (Energy Procedia 27, 88, abstract read): measured lifetimes
@@ -163,6 +216,13 @@ def test_richter_exceeds_the_kerr_cuevas_limit(kwargs):
     assert np.all(ratio > 1.2)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_auger_dominates_heavily_doped_silicon(si):
     # common practice: above about 1e18 cm^-3 the intrinsic lifetime is Auger-limited
     # (radiative recombination is a small share)
@@ -174,6 +234,7 @@ def test_auger_dominates_heavily_doped_silicon(si):
 # ----------------------------------------------------------------- validity and composition
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_richter_is_a_300K_model(si):
     # Richter et al. 2012 (Energy Procedia abstract, read): a parameterisation at 300 K
     with pytest.warns(
@@ -189,6 +250,7 @@ def test_richter_is_a_300K_model(si):
         si.intrinsic_lifetime(Q_(25, "degC"), Nd=1e16, excess=1e15)
 
 
+@pytest.mark.model("intrinsic_lifetime/dziewior-1977")
 def test_constant_coefficients_warn_below_heavy_doping():
     # Dziewior & Schmid's coefficients hold for heavily doped silicon only (below about
     # 5e18 cm^-3 Coulomb enhancement makes Auger faster: Hangleiter & Haecker 1990, from
@@ -201,6 +263,7 @@ def test_constant_coefficients_warn_below_heavy_doping():
         si.intrinsic_lifetime(300, Nd=1e19)
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_mixing_a_lifetime_model_with_another_narrowing_warns():
     # Richter et al. fitted with Schenk's narrowing (from memory); composing the model with
     # another narrowing mixes conventions and must say so
@@ -212,6 +275,13 @@ def test_mixing_a_lifetime_model_with_another_narrowing_warns():
         si.intrinsic_lifetime(300, Nd=1e16)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_intrinsic_lifetime_uses_the_equilibrium_densities(si):
     # composition: the lifetime at (T, Nd) is the model evaluated at the equilibrium n0, p0
     # (incomplete ionisation included: at 1e18 cm^-3 n0 is well below Nd)
@@ -233,6 +303,7 @@ MIDGAP = {
 }
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952", "thermal_velocity/green-1990")
 def test_srh_low_injection_is_one_over_sigma_v_n(si):
     # common practice: a mid-gap level in p-type silicon at low injection limits the
     # lifetime to tau_n0 = 1/(sigma_n v_th,n N_t) (n-type: 1/(sigma_p v_th,p N_t))
@@ -244,6 +315,7 @@ def test_srh_low_injection_is_one_over_sigma_v_n(si):
     assert n_type.m_as("s") == pytest.approx(1 / (1e-15 * v_p * 1e12), rel=1e-5)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952", "thermal_velocity/green-1990")
 def test_srh_high_injection_is_the_sum_of_capture_times(si):
     # common practice: at high injection tau_SRH -> tau_n0 + tau_p0 whatever the level
     v_n = si.thermal_velocity("electron", 300).m_as("cm/s")
@@ -254,6 +326,7 @@ def test_srh_high_injection_is_the_sum_of_capture_times(si):
         assert tau.m_as("s") == pytest.approx(expected, rel=1e-5)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 def test_shallow_levels_recombine_less(si):
     # common practice: SRH recombination is most effective through levels near mid-gap
     levels = [0.05, 0.15, 0.3, 0.56]
@@ -275,6 +348,7 @@ def test_shallow_levels_recombine_less(si):
     assert np.all(np.diff(taus) < 0)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952", "thermal_velocity/green-1990")
 def test_ratio_only_entry_with_the_electron_capture_time(si):
     # lifetime spectroscopy gives k = sigma_n/sigma_p (common practice): with tau_n0 given,
     # tau_p0 = k (v_n / v_p) tau_n0, and high injection tends to tau_n0 + tau_p0
@@ -367,6 +441,7 @@ def test_every_entry_states_its_source_origin_and_velocity_convention(si):
 _DOPING = st.floats(13, 19).map(lambda x: 10.0**x)
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     low=st.floats(13, 18).map(lambda x: 10.0**x),
@@ -381,6 +456,7 @@ def test_intrinsic_lifetime_falls_with_doping(si, low, factor, kind, excess):
     assert tau[1] < tau[0]
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     doping=_DOPING,
@@ -398,6 +474,16 @@ def test_intrinsic_lifetime_falls_with_injection_at_high_injection(si, doping, k
     assert tau[1] < tau[0]
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 @settings(max_examples=30, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     t=st.floats(250, 400),
@@ -435,6 +521,16 @@ def test_every_lifetime_is_positive(
             assert np.all(value.m_as("s") > 0), name
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 @settings(max_examples=15, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     doping=st.floats(14, 17).map(lambda x: 10.0**x),
@@ -458,6 +554,16 @@ def test_implied_voltage_rises_with_generation(si, doping, kind, flux, factor, d
     assert volts[1] > volts[0] > 0
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_implied_voltage_per_decade_of_generation(si):
     # common practice: with an injection-independent lifetime, dn is proportional to G,
     # so the implied voltage rises by (kT/q) ln 10 per decade at low injection and by
@@ -485,6 +591,16 @@ def test_implied_voltage_per_decade_of_generation(si):
     assert high[1] - high[0] == pytest.approx(2 * kt * math.log(10), rel=2e-2)
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_implied_voltage_states_its_assumptions(si):
     result = si.implied_voltage(300, Na=1e15, generation=Q_(40, "mA/cm^2"), thickness=Q_(180, "um"))
     for word in ("steady state", "uniform", "flat carrier profile", "surface"):
@@ -498,6 +614,7 @@ def test_implied_voltage_states_its_assumptions(si):
 # ----------------------------------------------------------------- bad input
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_negative_excess_density_is_refused(si):
     with pytest.raises(
         matprops.InputError,
@@ -507,6 +624,7 @@ def test_negative_excess_density_is_refused(si):
         si.intrinsic_lifetime(300, Nd=1e16, excess=-1e14)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 @pytest.mark.parametrize(
     "defect, pattern",
     [
@@ -588,6 +706,7 @@ def test_defect_parameters_out_of_physical_range(si, defect, pattern):
         si.srh_lifetime(defect, 300, Na=1e16, density=1e12)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 def test_unknown_defect_lists_the_catalogue(si):
     with pytest.raises(matprops.UnknownDefectError) as info:
         si.srh_lifetime("iron-interstitiel", 300, Na=1e16, density=1e12)
@@ -599,6 +718,7 @@ def test_unknown_defect_lists_the_catalogue(si):
     assert isinstance(info.value, KeyError)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 @pytest.mark.parametrize(
     "kwargs, argument, pattern",
     [
@@ -619,6 +739,7 @@ def test_incomplete_defect_arguments(si, kwargs, argument, pattern):
     assert info.value.argument == argument
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_equilibrium_densities_given_incompletely_or_twice(si):
     with pytest.raises(matprops.InputError, match="'p0' must be given together with n0"):
         si.intrinsic_lifetime(300, n0=1e16)
@@ -628,6 +749,16 @@ def test_equilibrium_densities_given_incompletely_or_twice(si):
         si.intrinsic_lifetime(300, n0=0, p0=1e4)
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 @pytest.mark.parametrize(
     "kwargs, pattern",
     [
@@ -649,6 +780,7 @@ def test_bad_generation_or_thickness(si, kwargs, pattern):
         si.implied_voltage(300, Na=1e15, **kwargs)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 def test_defect_outside_its_temperature_range_warns(datasets_copy):
     root, catalog = datasets_copy
     path = root / "defects" / "iron-interstitial.toml"

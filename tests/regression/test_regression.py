@@ -36,6 +36,13 @@ def absorption(model_id, wavelength, temperature=300.0):
 # ------------------------------------------------------------------------- identities
 
 
+@pytest.mark.model(
+    "band_gap/alex-1996",
+    "band_gap/bludau-1974",
+    "band_gap/passler-1999",
+    "band_gap/passler-2002",
+    "band_gap/thurmond-1975",
+)
 @pytest.mark.parametrize("model_id", matprops.models("band_gap"))
 def test_gap_tends_to_its_own_zero_kelvin_coefficient(model_id):
     # identity: each kernel's expression must tend to the Eg(0) its file holds
@@ -49,6 +56,11 @@ def test_gap_tends_to_its_own_zero_kelvin_coefficient(model_id):
     assert gap == pytest.approx(printed, abs=1e-8)
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "band_gap/thurmond-1975",
+    "intrinsic_density/boltzmann",
+)
 def test_boltzmann_follows_the_chosen_gap():
     # identity: ni ~ exp(-Eg/2kT), so swapping the gap model scales ni by exp(-dEg/2kT)
     a = matprops.silicon(models={"intrinsic_density": "boltzmann", "band_gap": "passler-2002"})
@@ -59,6 +71,7 @@ def test_boltzmann_follows_the_chosen_gap():
     assert ratio == pytest.approx(np.exp(-d_gap / (2 * kT)), rel=1e-9)
 
 
+@pytest.mark.model("absorption/green-2008", "absorption/green-2008-franta-2017")
 def test_default_absorption_equals_green_at_its_reference_temperature(si):
     # identity: the default scales Green's table by a ratio that is 1 at 300 K
     lam = np.arange(250.0, 1181.0, 10.0)
@@ -67,6 +80,7 @@ def test_default_absorption_equals_green_at_its_reference_temperature(si):
     )
 
 
+@pytest.mark.model("lattice_constant/okada-1984", "molar_mass/prohaska-2022")
 def test_density_is_the_formula_of_the_lattice_constant_and_atomic_weight(si):
     # identity: rho = 8 M / (N_A a^3), here with the element-data library's atomic weight
     a = si.lattice_constant(298.15).m_as("cm")
@@ -74,6 +88,7 @@ def test_density_is_the_formula_of_the_lattice_constant_and_atomic_weight(si):
     assert si.density(298.15).m_as("g/cm^3") == pytest.approx(from_library, rel=1e-4)
 
 
+@pytest.mark.model("lattice_constant/okada-1984")
 def test_lattice_constant_integrates_the_expansion_coefficient_of_its_file():
     # identity (our closed-form integral): d ln a / dT equals the file's alpha(T)
     # = c1 [1 - exp(-c2 (T - T1))] + c3 T, the formula of Okada & Tokumaru's abstract
@@ -86,6 +101,7 @@ def test_lattice_constant_integrates_the_expansion_coefficient_of_its_file():
         assert slope == pytest.approx(formula, rel=1e-6)
 
 
+@pytest.mark.model("free_carrier_absorption/schroder-1978", "free_carrier_absorption/soref-1987")
 def test_linear_free_carrier_forms_follow_their_own_equations():
     # identity: schroder-1978 is linear in density, additive in carriers and ~ lambda^2;
     # soref-1987 returns the cross-sections its file holds at 1300 and 1550 nm
@@ -143,6 +159,7 @@ def band_to_band_limits(cap):
     return points
 
 
+@pytest.mark.model("absorption/franta-2017", "absorption/green-2008-franta-2017")
 @pytest.mark.parametrize(
     "model_id, cap", [("green-2008-franta-2017", 1180.0), ("franta-2017", 1200.0)]
 )
@@ -495,6 +512,28 @@ def _normalise(text):
     return re.sub(r"\s+", " ", text)
 
 
+@pytest.mark.model(
+    "absorption/franta-2017",
+    "absorption/green-2008",
+    "absorption/green-2008-franta-2017",
+    "absorption/rajkanan-1979",
+    "absorption/schinke-2015",
+    "band_gap/alex-1996",
+    "band_gap/bludau-1974",
+    "band_gap/passler-1999",
+    "band_gap/passler-2002",
+    "band_gap/thurmond-1975",
+    "densities_of_states/couderc-2014",
+    "densities_of_states/green-1990",
+    "free_carrier_absorption/nedeljkovic-2011",
+    "free_carrier_absorption/schroder-1978",
+    "free_carrier_absorption/soref-1987",
+    "intrinsic_density/boltzmann",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_density/sproul-1991",
+    "intrinsic_density/sproul-1993",
+    "lattice_constant/okada-1984",
+)
 @pytest.mark.parametrize(
     "path, template, compute", QUOTED, ids=[f"{p.name}:{t[:30]}" for p, t, _ in QUOTED]
 )
@@ -735,6 +774,24 @@ def _model_notes() -> dict[str, str]:
     return found
 
 
+@pytest.mark.model(
+    "absorption/franta-2017",
+    "absorption/green-2008",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/delalamo-1985",
+    "gap_narrowing/klaassen-1992",
+    "gap_narrowing/schenk-1998",
+    "gap_narrowing/slotboom-1976",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/kerr-2002",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+    "saturation_velocity/canali-1975",
+    "saturation_velocity/jacoboni-1977",
+    "standard_resistivity/thurber-1981",
+    "thermal_velocity/green-1990",
+)
 @pytest.mark.parametrize("relative, pattern, compute", FIGURES, ids=[f[0] for f in FIGURES])
 def test_figures_a_note_computed_are_what_the_code_gives(relative, pattern, compute):
     # regression of the text: the note's figures, recomputed, at their printed precision
@@ -744,6 +801,16 @@ def test_figures_a_note_computed_are_what_the_code_gives(relative, pattern, comp
     assert wrong == [], f"{relative} quotes figures the code does not give: {wrong}"
 
 
+@pytest.mark.model(
+    "band_gap/alex-1996",
+    "band_gap/passler-1999",
+    "band_gap/passler-2002",
+    "band_gap/thurmond-1975",
+    "densities_of_states/couderc-2014",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_density/sproul-1991",
+    "intrinsic_density/sproul-1993",
+)
 def test_every_symbol_figure_in_a_note_is_what_the_code_gives():
     # regression of the text: Eg(300 K) = ..., ni(300 K) = ..., Nc/Nv(T) = ... anywhere in
     # a note: the file's own model for its own quantity, otherwise the newest release's
@@ -801,6 +868,7 @@ def test_every_computed_figure_in_a_note_is_recomputed():
     assert unchecked == []
 
 
+@pytest.mark.model("band_gap/passler-2002", "gap_narrowing/klaassen-1992")
 def test_a_wrong_figure_in_a_note_fails(tmp_path):
     # the property itself: a note quoting a figure the code does not give is caught
     notes = _notes("gap_narrowing/klaassen-1992.toml").replace("60.5", "61.5")
