@@ -143,8 +143,10 @@ class Silicon(
         ``carrier=`` (and ``donor=`` / ``acceptor=`` where the model has one
         coefficient set per dopant) for the transport quantities; ``dopant=`` for
         ionisation; ``donor=``, ``acceptor=`` and ``statistics=`` for ``equilibrium``
-        (a callable ``(temperature, donor_density, acceptor_density) -> dict of
-        arrays``).
+        (a callable ``(temperature, *, donor_density, acceptor_density) -> dict of
+        arrays``). Densities are keyword-only in every bound kernel, so a positional
+        call cannot swap donors and acceptors; any name of the argument vocabulary is
+        accepted (``T``, ``Nd``, ``donor_density``).
         """
         from .bound import make_kernel
 
@@ -255,7 +257,7 @@ class Silicon(
 
         Axes by name or alias (``T``, ``Na``, ``Nd``, ``excess``, ``n``, ``p``,
         ``wavelength``, ``carrier``, ``plane``) and ``chunks=`` for a lazy dask-backed
-        Dataset; see :func:`matprops.tables.table`.
+        Dataset; see :func:`matprops.material.tables.table`.
         """
         from .tables import table
 
@@ -265,7 +267,7 @@ class Silicon(
 
     def compare(self, quantity, models=None, **grid):
         """The same grid evaluated by several models of one quantity -> xarray.Dataset
-        with a ``model`` dimension and the spread; see :func:`matprops.tables.compare`."""
+        with a ``model`` dimension and the spread; see :func:`matprops.material.tables.compare`."""
         from .tables import compare
 
         return compare(self, quantity, models, **grid)

@@ -1,4 +1,4 @@
-"""The simulation-code door (issue 12): bound kernels, blocks, checks, derivatives,
+"""The simulation-code door: bound kernels, blocks, checks, derivatives,
 the array API, start-up.
 
 Derivatives are checked against central finite differences of the kernels themselves

@@ -177,6 +177,7 @@ def test_the_main_tree_moves_on_without_moving_a_final_release(datasets_copy, re
     assert "archive" in si.model(quantity).path.parts
 
 
+@pytest.mark.slow  # about 5 s or more
 def test_a_draft_regenerates_within_its_tolerances(datasets_copy):
     # regression check: regenerating a draft with the same code and data reproduces
     # its reference: every field exactly, the numbers within each case's tolerance
@@ -206,6 +207,7 @@ def _scale_table(root, name, variable, wavelength, factor, temperature=None):
     data.to_netcdf(path)
 
 
+@pytest.mark.slow  # about 5 s or more
 @pytest.mark.parametrize(
     "name, variable, wavelength, temperature",
     [
@@ -276,6 +278,7 @@ def test_update_checksums_on_a_read_only_install_says_so(datasets_copy, read_onl
     assert not list(root.glob(".*tmp*"))
 
 
+@pytest.mark.slow  # about 5 s or more
 def test_reference_regenerate_on_a_read_only_install_says_so(
     datasets_copy, read_only, capsys, monkeypatch
 ):
