@@ -481,7 +481,16 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
         model = si._transport_kernel(name, fixed)
         return _model_kernel(si, name, model, fixed)
     model = si.model(name)
-    if model.variant_axis == "dopant":
+    if model.variant_axis == "carrier":  # e.g. impact_ionisation
+        from .transport import CARRIERS, carrier_name
+
+        carrier = fixed.pop("carrier", None)
+        if carrier is None:
+            raise InputError("carrier", f"given for {name} (one of {', '.join(CARRIERS)})", None)
+        carrier = carrier_name(carrier)
+        model = model.select(carrier)
+        chosen = {"carrier": carrier}
+    elif model.variant_axis == "dopant":
         species = fixed.pop("dopant", None)
         if species is None:
             raise InputError(

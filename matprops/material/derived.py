@@ -9,8 +9,15 @@ from __future__ import annotations
 from .carriers import DERIVED as CARRIER_DERIVED
 from .crystal import DERIVED as CRYSTAL_DERIVED
 from .recombination import DERIVED as RECOMBINATION_DERIVED
+from .thermal import DERIVED as THERMAL_DERIVED
 from .transport import DERIVED as TRANSPORT_DERIVED
 
 __all__ = ["DERIVED"]
 
-DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED, **TRANSPORT_DERIVED, **RECOMBINATION_DERIVED}
+DERIVED = {
+    **CRYSTAL_DERIVED,
+    **CARRIER_DERIVED,
+    **TRANSPORT_DERIVED,
+    **RECOMBINATION_DERIVED,
+    **THERMAL_DERIVED,
+}

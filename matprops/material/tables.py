@@ -464,6 +464,29 @@ QUANTITIES: dict[str, Tabulated] = _registry(
         log=True,
         by_default=False,
     ),
+    # thermal and high-field quantities (methods of the thermal family)
+    Tabulated(
+        "thermal_conductivity",
+        _T,
+        (("thermal_conductivity", "thermal conductivity of single-crystal silicon"),),
+    ),
+    Tabulated(
+        "heat_capacity",
+        _T,
+        (("heat_capacity", "molar heat capacity at constant pressure"),),
+    ),
+    Tabulated(
+        "specific_heat",
+        _T,
+        (("specific_heat", "specific heat capacity at constant pressure"),),
+    ),
+    Tabulated(
+        "impact_ionisation",
+        {"carrier": 0, "field": 1, "temperature": 2},
+        (("impact_ionisation", "impact ionisation coefficient"),),
+        wants=("field",),
+        log=True,
+    ),
     # recombination (methods of the recombination family)
     Tabulated(
         "radiative_coefficient",

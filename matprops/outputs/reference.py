@@ -89,6 +89,7 @@ OPTICAL_TEMPERATURES = [80.0, 250.0, 295.0, 300.0, 350.0, 473.15]
 TRANSPORT_TEMPERATURES = [77.0, 150.0, 250.0, 300.0, 350.0, 400.0, 500.0]
 DOPINGS = [0.0, 1e14, 1e16, 1e18, 1e20]
 
+THERMAL_TEMPERATURES = [200.0, 298.15, 300.0, 350.0, 400.0, 600.0, 1000.0]
 LIFETIME_TEMPERATURES = [250.0, 298.15, 300.0, 350.0]
 LIFETIME_DOPING = [1e13, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20]
 EXCESS = [0.0, 1e12, 1e14, 1e15, 1e16, 1e17]
@@ -290,6 +291,18 @@ CASES = [
             {"resistivity": [1e-3, 0.1, 1.0, 10.0, 1e3], "temperature": [296.15]},
         )
         for d in ("boron", "phosphorus")
+    ],
+    ("thermal_conductivity", "thermal_conductivity", {}, {"temperature": THERMAL_TEMPERATURES}),
+    ("heat_capacity", "heat_capacity", {}, {"temperature": THERMAL_TEMPERATURES}),
+    ("specific_heat", "specific_heat", {}, {"temperature": THERMAL_TEMPERATURES}),
+    *[
+        (
+            f"impact_ionisation_{c}",
+            "impact_ionisation",
+            {"carrier": c},
+            {"field": [0.0, 1e5, 2e5, 3e5, 4e5, 6e5], "temperature": [200.0, 300.0, 400.0]},
+        )
+        for c in ("electron", "hole")
     ],
 ]
 
