@@ -11,6 +11,7 @@ file says which one it holds.
 import numpy as np
 
 from ._spec import derivatives_of, kernel
+from ._tables import linear_1d
 from ._xp import asfloat, namespace, zeros_like
 
 
@@ -53,3 +54,29 @@ def constant_derivatives(temperature, *, coefficient):
 
 
 constant_derivatives.unblocked = True
+
+
+@kernel(
+    inputs={"temperature": "K"},
+    output="cm^3/s",
+    coefficients={"temperatures": "K", "coefficients": "cm^3/s"},
+    nan_outside=("temperature",),
+)
+def temperature_table(temperature, *, temperatures, coefficients):
+    """A coefficient published at a set of temperatures.
+
+    Between the published temperatures log(B) is linear in T (B changes by orders
+    of magnitude between 77 and 300 K, smoothly); outside them the result is NaN.
+    Numpy arrays only.
+
+    Parameters
+    ----------
+    temperature : array_like, K
+    temperatures : K (ascending);  coefficients : cm^3/s (B at those temperatures)
+
+    Returns
+    -------
+    B, cm^3/s
+    """
+    t = np.asarray(temperature, dtype=float)
+    return np.exp(linear_1d(t, np.asarray(temperatures, dtype=float), np.log(coefficients)))
