@@ -464,6 +464,34 @@ QUANTITIES: dict[str, Tabulated] = _registry(
         log=True,
         by_default=False,
     ),
+    Tabulated(
+        "total_absorption",
+        {
+            "wavelength": 0,
+            "temperature": 1,
+            "acceptor_density": "Na",
+            "donor_density": "Nd",
+            "excess_density": "excess",
+        },
+        (("total_absorption", "absorption coefficient, band-to-band plus free-carrier"),),
+        wants=("wavelength",),
+        log=True,
+        needs=("absorption", "free_carrier_absorption", *_EQUILIBRIUM),
+    ),
+    Tabulated(
+        "extinction_coefficient",
+        {
+            "wavelength": 0,
+            "temperature": 1,
+            "acceptor_density": "Na",
+            "donor_density": "Nd",
+            "excess_density": "excess",
+        },
+        (("extinction_coefficient", "extinction coefficient (imaginary refractive index)"),),
+        wants=("wavelength",),
+        log=True,
+        needs=("absorption", "free_carrier_absorption", *_EQUILIBRIUM),
+    ),
     # thermal and high-field quantities (methods of the thermal family)
     Tabulated(
         "thermal_conductivity",

@@ -292,6 +292,25 @@ CASES = [
         )
         for d in ("boron", "phosphorus")
     ],
+    *[
+        (
+            f"total_absorption_{kind}",
+            "total_absorption",
+            {},
+            {
+                "wavelength": [600.0, 1000.0, 1150.0, 1300.0, 1400.0, 1550.0, 3000.0],
+                "temperature": [250.0, 300.0, 350.0],
+                kind: [0.0, 1e16, 1e19],
+            },
+        )
+        for kind in ("Na", "Nd")
+    ],
+    (
+        "extinction_coefficient",
+        "extinction_coefficient",
+        {},
+        {"wavelength": [1000.0, 1400.0, 2000.0], "temperature": [300.0], "Nd": [0.0, 1e19]},
+    ),
     ("thermal_conductivity", "thermal_conductivity", {}, {"temperature": THERMAL_TEMPERATURES}),
     ("heat_capacity", "heat_capacity", {}, {"temperature": THERMAL_TEMPERATURES}),
     ("specific_heat", "specific_heat", {}, {"temperature": THERMAL_TEMPERATURES}),
