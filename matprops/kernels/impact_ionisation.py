@@ -8,10 +8,10 @@ the model file holds one coefficient set per carrier.
 A field of zero gives zero (every form here is an exponential of -b/E).
 """
 
-import numpy as np
+import math
 
 from ._spec import kernel
-from ._xp import asfloat, errstate, namespace, power
+from ._xp import asfloat, errstate, namespace, power, zeros_like
 from .constants import BOLTZMANN_EV
 
 _INPUTS = {"field": "V/cm", "temperature": "K"}
@@ -69,12 +69,13 @@ def chynoweth_phonon_scaled(
     xp = namespace(field, temperature)
     e = asfloat(xp, field)
     t = asfloat(xp, temperature)
-    gamma = np.tanh(phonon_energy / (2.0 * BOLTZMANN_EV * reference_temperature)) / xp.tanh(
+    gamma = math.tanh(phonon_energy / (2.0 * BOLTZMANN_EV * reference_temperature)) / xp.tanh(
         phonon_energy / (2.0 * BOLTZMANN_EV * t)
     )
     high = e >= switch_field
-    a = xp.where(high, high_field_prefactor, low_field_prefactor)
-    b = xp.where(high, high_field_constant, low_field_constant)
+    zero = zeros_like(xp, e)
+    a = xp.where(high, zero + high_field_prefactor, zero + low_field_prefactor)
+    b = xp.where(high, zero + high_field_constant, zero + low_field_constant)
     with errstate(xp, divide="ignore"):
         return gamma * a * _exp_minus(xp, gamma * b / e)
 

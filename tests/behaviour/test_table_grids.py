@@ -133,6 +133,9 @@ def test_default_selection_follows_the_axes(si):
         "density",
         "atomic_density",
         "radiative_coefficient",
+        "thermal_conductivity",
+        "heat_capacity",
+        "specific_heat",
     }
     with_light = {
         v.attrs["quantity"] for v in si.table(T=[300.0], wavelength=[800.0]).data_vars.values()

@@ -211,6 +211,24 @@ SILICON_METHODS = [
     ("absorption", ("wavelength", "temperature"), {}),
     ("refractive_index", ("wavelength", "temperature"), {}),
     ("free_carrier_absorption", ("wavelength",), {"n": "density", "p": "density"}),
+    *[
+        (
+            name,
+            ("wavelength", "temperature"),
+            {
+                "Na": "density",
+                "Nd": "density",
+                "excess": "density",
+                "donor": "donor",
+                "acceptor": "acceptor",
+            },
+        )
+        for name in ("total_absorption", "extinction_coefficient")
+    ],
+    ("thermal_conductivity", ("temperature",), {}),
+    ("heat_capacity", ("temperature",), {}),
+    ("specific_heat", ("temperature",), {}),
+    ("impact_ionisation", ("carrier", "field", "temperature"), {}),
     ("dopant_level", ("density",), {"dopant": "dopant"}),
     ("ionisation_energy", ("density",), {"dopant": "dopant"}),
     (
@@ -402,6 +420,8 @@ NEEDS_FERMI_DIRAC = {
     "conductivity",
     "resistivity",
     "doping_from_resistivity",
+    "total_absorption",
+    "extinction_coefficient",
 }
 
 
