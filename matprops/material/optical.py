@@ -4,30 +4,24 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["DERIVED", "OpticalMethods"]
+from .registry import OPTICAL_TEMPERATURES, WAVELENGTHS, case
+from .registry import quantity as declare
+
+__all__ = ["OpticalMethods"]
 
 _BAND_EDGE_END_NM = 1450.0  # the long end of Green 2008's and Schinke 2015's tables
 _EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
-# Quantities computed from other quantities' models (no model file of their own).
-DERIVED = {
-    "total_absorption": (
-        ("absorption", "free_carrier_absorption", *_EQUILIBRIUM),
-        (
-            "alpha = alpha_bb(lambda, T) + alpha_fc(lambda, n0 + dn, p0 + dn): band-to-band "
-            "absorption of undoped silicon plus free-carrier absorption of the equilibrium "
-            "carriers (incomplete ionisation included) and the excess density"
-        ),
-    ),
-    "extinction_coefficient": (
-        ("absorption", "free_carrier_absorption", *_EQUILIBRIUM),
-        "k = alpha lambda / (4 pi), alpha the total absorption (band-to-band + free-carrier)",
-    ),
-}
 
 
 class OpticalMethods:
     """Absorption and refraction of light."""
 
+    @declare(
+        units="1/cm",
+        long_name="band-to-band absorption coefficient",
+        log=True,
+        cases=[case(wavelength=WAVELENGTHS, temperature=OPTICAL_TEMPERATURES)],
+    )
     def absorption(self, wavelength, temperature):
         """Band-to-band absorption coefficient, 1/cm.
 
@@ -42,10 +36,28 @@ class OpticalMethods:
         """
         return self._quantity("absorption", wavelength=wavelength, temperature=temperature)
 
+    @declare(
+        units="dimensionless",
+        long_name="real part of the complex refractive index",
+        cases=[case(wavelength=WAVELENGTHS, temperature=OPTICAL_TEMPERATURES)],
+    )
     def refractive_index(self, wavelength, temperature):
         """Real part of the complex refractive index (dimensionless)."""
         return self._quantity("refractive_index", wavelength=wavelength, temperature=temperature)
 
+    @declare(
+        units="1/cm",
+        long_name="free-carrier absorption coefficient",
+        wants=("electron_density", "hole_density"),
+        log=True,
+        cases=[
+            case(
+                wavelength=[1000.0, 1300.0, 1450.0, 1550.0, 2000.0, 5000.0],
+                n=[0.0, 1e16, 1e19],
+                p=[0.0, 1e16, 1e19],
+            )
+        ],
+    )
     def free_carrier_absorption(self, wavelength, n=0, p=0):
         """Free-carrier absorption coefficient, 1/cm, for electron and hole densities
         ``n`` and ``p`` (cm^-3); add it to :meth:`absorption` for doped or injected
@@ -55,6 +67,27 @@ class OpticalMethods:
             "free_carrier_absorption", wavelength=wavelength, electron_density=n, hole_density=p
         )
 
+    @declare(
+        units="1/cm",
+        long_name="absorption coefficient, band-to-band plus free-carrier",
+        models=("absorption", "free_carrier_absorption", *_EQUILIBRIUM),
+        formula=(
+            "alpha = alpha_bb(lambda, T) + alpha_fc(lambda, n0 + dn, p0 + dn): band-to-band "
+            "absorption of undoped silicon plus free-carrier absorption of the equilibrium "
+            "carriers (incomplete ionisation included) and the excess density"
+        ),
+        wants=("wavelength",),
+        log=True,
+        cases=[
+            case(
+                f"total_absorption_{kind}",
+                wavelength=[600.0, 1000.0, 1150.0, 1300.0, 1400.0, 1550.0, 3000.0],
+                temperature=[250.0, 300.0, 350.0],
+                **{kind: [0.0, 1e16, 1e19]},
+            )
+            for kind in ("Na", "Nd")
+        ],
+    )
     def total_absorption(
         self,
         wavelength,
@@ -116,6 +149,17 @@ class OpticalMethods:
         total = band + free
         return quantity(total[()] if np.ndim(total) == 0 else total, "1/cm")
 
+    @declare(
+        units="dimensionless",
+        long_name="extinction coefficient (imaginary part of the complex refractive index)",
+        models=("absorption", "free_carrier_absorption", *_EQUILIBRIUM),
+        formula=(
+            "k = alpha lambda / (4 pi), alpha the total absorption (band-to-band + free-carrier)"
+        ),
+        wants=("wavelength",),
+        log=True,
+        cases=[case(wavelength=[1000.0, 1400.0, 2000.0], temperature=[300.0], Nd=[0.0, 1e19])],
+    )
     def extinction_coefficient(
         self,
         wavelength,

@@ -25,6 +25,7 @@ def _soref_bennett(wavelength, carrier):
     return at_1300 * (at_1550 / at_1300) ** x
 
 
+@pytest.mark.model("free_carrier_absorption/nedeljkovic-2011")
 @pytest.mark.parametrize("wavelength", [1400.0, 1550.0])
 def test_free_carrier_absorption_of_1e19_layers(newest, wavelength):
     # 1e19 cm^-3 n- and p-type silicon: a finite value from a model valid there (no

@@ -33,6 +33,7 @@ def _van_roosbroeck_shockley(si, temperature):
     return -np.trapezoid(integrand, nu) / ni**2
 
 
+@pytest.mark.model("radiative_coefficient/trupke-2003-nguyen-2014")
 def test_radiative_coefficient_temperature_trend_from_absorption(newest):
     # van Roosbroeck & Shockley 1954 (Phys. Rev. 94, 1558) applied to the release's
     # band-to-band absorption (Green 2008 scaled by Franta et al. 2017, open refractive-
@@ -78,6 +79,7 @@ def test_ambipolar_auger_coefficient_at_300_K(newest, excess):
     assert coefficient == pytest.approx(1.66e-30, rel=0.20)
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012-huldt-1979")
 def test_free_particle_polynomial_against_dziewior_and_schmid(newest):
     # The temperature polynomial of the default model (read in a simulator's source that
     # cites no paper) evaluated at 300 K against Dziewior & Schmid 1977's free-particle

@@ -18,6 +18,7 @@ def newest():
 # Heat and Mass Transfer, Table A.1 (properties of selected metallic solids: silicon),
 # which lists 148 W/(m K) at 300 K and 98.9 at 400 K, 61.9 at 600 K, 31.2 at 1000 K
 # (from memory, not read here).
+@pytest.mark.model("thermal_conductivity/glassbrenner-1964")
 @pytest.mark.parametrize(
     "temperature, handbook, tolerance",
     [(300.0, 1.48, 0.05), (400.0, 0.989, 0.06), (600.0, 0.619, 0.06), (1000.0, 0.312, 0.06)],
@@ -27,6 +28,7 @@ def test_thermal_conductivity_against_the_handbook(newest, temperature, handbook
     assert kappa == pytest.approx(handbook, rel=tolerance)
 
 
+@pytest.mark.model("thermal_conductivity/glassbrenner-1964")
 def test_thermal_conductivity_against_a_measurement_at_425_degC(newest):
     # 0.46 +- 0.07 W/(cm degC) at 425 degC, single crystal ("Thermal conductivity
     # measurements of silicon from 30 to 425 degC", abstract read: scilit.com record
@@ -54,6 +56,7 @@ def test_thermal_conductivity_refuses_cryogenic_silently_never(newest):
 # (Chase 1998), tabulated Cp = 20.05 J/(mol K) at 300 K, 22.15 at 400 K, 23.34 at 500 K
 # (read); and 712 J/(kg K) at 300 K, 790 at 400 K in Incropera & DeWitt Table A.1 (from
 # memory).
+@pytest.mark.model("heat_capacity/chase-1998")
 @pytest.mark.parametrize("temperature, tabulated", [(300.0, 20.05), (400.0, 22.15), (500.0, 23.34)])
 def test_heat_capacity_against_the_janaf_table(newest, temperature, tabulated):
     assert newest.heat_capacity(temperature).m_as("J/(mol*K)") == pytest.approx(tabulated, abs=0.01)
@@ -93,6 +96,7 @@ def _massey(field, temperature, a, c, d):
     return a * math.exp(-(c + d * temperature) / field)
 
 
+@pytest.mark.model("impact_ionisation/vanoverstraeten-1970")
 @pytest.mark.parametrize("temperature", [250.0, 300.0, 400.0])
 def test_electron_ionisation_agrees_with_independent_fits(newest, temperature):
     field = 3e5
