@@ -310,3 +310,14 @@ def models(quantity: str | None = None):
     if quantity is None:
         return {q: catalog.model_ids(q) for q in catalog.quantities()}
     return catalog.model_ids(quantity)
+
+
+def _give_uncertainty():
+    """Every public method answers uncertainty=True (see matprops.material.uncertainty)."""
+    from .uncertainty import PUBLIC_METHODS, with_uncertainty
+
+    for method_name in PUBLIC_METHODS:
+        setattr(Silicon, method_name, with_uncertainty(getattr(Silicon, method_name)))
+
+
+_give_uncertainty()
