@@ -314,13 +314,16 @@ def _parts(result):
     return {None: (np.asarray(result.magnitude, float), result.units)}
 
 
-def used_models(si, name: str, kernel_quantity: str | None = None) -> dict:
+def used_models(si, name: str, options: Mapping | None = None) -> dict:
     """(quantity, model id) -> bound model, for every model a method's value depends on."""
     from .derived import DERIVED
 
-    quantity = kernel_quantity or _KERNEL_OF.get(name, (name,))[0]
+    quantity = _KERNEL_OF.get(name, (name,))[0]
     if name == "auger_lifetime":
         quantity = "intrinsic_lifetime"
+    if (options or {}).get("conversion") == "standard":  # the standard's 23 degC conversions
+        quantity = {"resistivity": "standard_resistivity"}.get(name, "standard_dopant_density")
+        return models_of(si._models[quantity], {}) if quantity in si._models else {}
     quantities = list(DERIVED[quantity][0]) if quantity in DERIVED else [quantity]
     extra = {
         "high_field_mobility": ("mobility", "saturation_velocity"),
@@ -370,16 +373,20 @@ def _selected_directions(models: Mapping[tuple, object], fixed=None) -> list[Dir
 
 
 def _status(models: Mapping[tuple, object], found: list[Direction]):
-    """(status, models without a stated uncertainty)."""
+    """(status, models without a stated uncertainty that propagates)."""
     with_numbers = {(d.quantity, d.model) for d in found}
-    unstated = tuple(
-        f"{q}/{m.id} ({m.uncertainty.statement})"
-        for (q, _), m in models.items()
-        if (q, m.id) not in with_numbers
-    )
+    labels = {}
+    for (q, _), m in models.items():
+        if (q, m.id) in with_numbers:
+            continue
+        statement = m.uncertainty.statement
+        if statement == "stated":  # only at points (e.g. ni at 300 K): reported beside
+            statement = "not stated but at points, see stated_accuracies"
+        labels[f"{q}/{m.id}"] = statement
+    unstated = tuple(f"{k} ({v})" for k, v in labels.items())
     if not found:
-        statements = {m.uncertainty.statement for m in models.values()}
-        return ("not stated" if statements <= {"not stated"} else "not known"), unstated
+        known = all(v.startswith("not stated") for v in labels.values())
+        return ("not stated" if known else "not known"), unstated
     return ("stated" if not unstated else "partial"), unstated
 
 
@@ -392,7 +399,7 @@ def evaluate(si, name, call, method, args, kwargs, *, samples, seed, how, spread
         raise InputError("samples", "an integer of at least 2", repr(samples))
     nominal = call(si)  # the value, with the usual checks and warnings
     parts = _parts(nominal)
-    models = used_models(si, name)
+    models = used_models(si, name, kwargs)
     found = _selected_directions(models)
     status, unstated = _status(models, found)
     accuracies = tuple(
@@ -477,6 +484,7 @@ def _kernel_call(si, name, method, args, kwargs):
         return None
     bound.apply_defaults()
     fixed, inputs = {}, {}
+    defaults = inspect.signature(method).parameters
     for parameter, value in list(bound.arguments.items())[1:]:
         if parameter in _FIXED:
             fixed[parameter] = value
@@ -484,10 +492,9 @@ def _kernel_call(si, name, method, args, kwargs):
             if value is None:
                 continue
             inputs[_ALIASES[parameter]] = coerce(value, parameter)[0]
-        elif parameter == "statistics" and value is None:
-            continue
-        else:
-            return None
+        elif value is not defaults[parameter].default:
+            return None  # an option that changes the composition: Monte Carlo
+        # (an option at its default: the kernel's value is compared with the method's)
     try:
         kernel = si.kernel(quantity, **fixed)
     except (Error, TypeError, KeyError):
@@ -777,3 +784,72 @@ def _spread(si, name, call, method, args, kwargs, models, parts):
             spread = np.where(count > 0, high[key] - low[key], np.nan)
         result[key] = (spread, count)
     return result
+
+
+# ---------------------------------------------------------------------- bound kernels
+@dataclasses.dataclass(frozen=True, repr=False)
+class KernelUncertain:
+    """A bound kernel's value and standard uncertainty as plain arrays (kernel units).
+
+    ``value, sigma = kernel(T, uncertainty=True)`` unpacks the two; ``status``,
+    ``method``, ``contributions`` and ``unstated`` as for :class:`Uncertain` (``sigma``
+    NaN where no source states an uncertainty). The same structure as the kernel's
+    value: a tuple of arrays for a kernel returning a tuple, a dict for equilibrium.
+    """
+
+    value: object
+    uncertainty: object
+    status: str
+    method: str
+    samples: int = 0
+    seed: int | None = None
+    contributions: Mapping[str, float] = dataclasses.field(default_factory=dict)
+    unstated: tuple[str, ...] = ()
+
+    def __iter__(self):
+        return iter((self.value, self.uncertainty))
+
+    def __repr__(self) -> str:
+        return (
+            f"<KernelUncertain {self.status}; {self.method}: value {self.value!r}, "
+            f"uncertainty {self.uncertainty!r}>"
+        )
+
+
+def kernel_answer(kernel, arguments, *, samples=None, seed=0, how="auto"):
+    """``kernel(**arguments, uncertainty=True)``: see :class:`KernelUncertain`."""
+    if how not in METHODS:
+        raise InputError("uncertainty_method", f"one of {', '.join(METHODS)}", repr(how))
+    si = kernel._si
+    if kernel.model is not None:
+        models = models_of(kernel.model, {})
+    else:
+        models = used_models(si, kernel.quantity)
+    found = _selected_directions(models)
+    status, unstated = _status(models, found)
+    if not found:
+        value = kernel(**arguments)
+        return KernelUncertain(value, _nan_like(value), status, "none", unstated=unstated)
+    if how != "monte-carlo" and samples is None:
+        linear = kernel_linear(si, kernel, arguments, found, models)
+        if linear is not None:
+            value, sigma, shares = linear
+            return KernelUncertain(value, sigma, status, "linear", 0, None, shares, unstated)
+        if how == "linear":
+            raise InputError(
+                "uncertainty_method",
+                f"'monte-carlo' or 'auto' for the {kernel.quantity} kernel "
+                "(not differentiable with respect to its coefficients)",
+                "'linear'",
+            )
+    drawn = DEFAULT_SAMPLES if samples is None else int(samples)
+    value, sigma = kernel_monte_carlo(si, kernel, arguments, found, models, drawn, seed)
+    return KernelUncertain(value, sigma, status, "monte-carlo", drawn, seed, {}, unstated)
+
+
+def _nan_like(value):
+    if isinstance(value, tuple):
+        return tuple(_nan_like(v) for v in value)
+    if isinstance(value, dict):
+        return {k: _nan_like(v) for k, v in value.items()}
+    return np.full(np.shape(value), np.nan)
