@@ -133,6 +133,12 @@ class Dual:
                 zero if db is None else db,
             )
             return Dual(value, np.broadcast_to(tangent, shape))
+        if func is np.broadcast_to and not kwargs:
+            value = np.broadcast_to(_value(args[0]), args[1])
+            tangent = _tangent(args[0])
+            if tangent is None:
+                return value
+            return Dual(value, np.broadcast_to(tangent, np.shape(value) + tangent.shape[-1:]))
         if func in (np.shape, np.ndim, np.size):
             return func(_value(args[0]))
         raise NotDifferentiable(f"numpy.{func.__name__} on a coefficient")
@@ -207,11 +213,10 @@ class Dual:
     def __ge__(self, other):
         return np.greater_equal(self, other)
 
-    def __eq__(self, other):
-        return np.equal(self, other)
+    def __eq__(self, other):  # a branch on equal coefficients cannot be followed
+        raise NotDifferentiable("a coefficient under differentiation was compared for equality")
 
-    def __ne__(self, other):
-        return np.not_equal(self, other)
+    __ne__ = __eq__
 
     __hash__ = None
 
@@ -290,8 +295,6 @@ _PLAIN = frozenset(
         "less_equal",
         "greater",
         "greater_equal",
-        "equal",
-        "not_equal",
         "isfinite",
         "isnan",
         "isinf",
@@ -346,3 +349,14 @@ def split(result, k: int):
             tangent = np.zeros(np.shape(result.value) + (k,))
         return result.value, np.broadcast_to(tangent, np.shape(result.value) + (k,))
     return result, np.zeros(np.shape(result) + (k,))
+
+
+def is_dual(value) -> bool:
+    """Whether a coefficient is under differentiation (kernels then skip their caches
+    and float conversions for it)."""
+    return isinstance(value, Dual)
+
+
+def number(value):
+    """A coefficient as a Python float, or as it is when under differentiation."""
+    return value if isinstance(value, Dual) else float(value)

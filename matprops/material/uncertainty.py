@@ -730,7 +730,6 @@ def _valid(model, inputs: Mapping[str, np.ndarray], shape) -> np.ndarray:
 def _spread(si, name, call, method, args, kwargs, models, parts):
     """part -> (largest minus smallest over the models valid at each point, count)."""
     from ..units import coerce
-    from .silicon import Silicon
 
     try:
         bound = inspect.signature(method).bind(si, *args, **kwargs)
@@ -758,7 +757,7 @@ def _spread(si, name, call, method, args, kwargs, models, parts):
             if model_id == si._models[quantity].id:
                 continue
             try:
-                other = Silicon(
+                other = type(si)(
                     release=si.release.id,
                     models={**overrides, quantity: model_id},
                     catalog=si.catalog,
