@@ -43,8 +43,15 @@ def _tangent(x):
 
 
 def _scale(factor, tangent):
-    """``factor * tangent`` with the direction axis last."""
-    return np.multiply(np.expand_dims(factor, -1), tangent)
+    """``factor * tangent`` with the direction axis last; a zero tangent stays zero where
+    the factor is infinite (a clamped branch through sqrt(0), log(0): its derivative is
+    that of the clamp, 0)."""
+    factor = np.expand_dims(factor, -1)
+    with np.errstate(invalid="ignore", over="ignore"):
+        product = np.multiply(factor, tangent)
+    if not np.all(np.isfinite(factor)):
+        product = np.where(tangent == 0.0, 0.0, product)
+    return product
 
 
 def _add(a, b):
@@ -225,6 +232,11 @@ class Dual:
 
 
 # -------------------------------------------------------------------- derivative rules
+def _inverse(x):
+    with np.errstate(divide="ignore"):
+        return np.divide(1.0, x)
+
+
 # unary: (u, f(u)) -> df/du
 _UNARY = {
     "negative": lambda u, r: -np.ones_like(u),
@@ -232,12 +244,12 @@ _UNARY = {
     "exp": lambda u, r: r,
     "expm1": lambda u, r: r + 1.0,
     "exp2": lambda u, r: r * np.log(2.0),
-    "log": lambda u, r: 1.0 / u,
+    "log": lambda u, r: _inverse(u),
     "log1p": lambda u, r: 1.0 / (1.0 + u),
     "log10": lambda u, r: 1.0 / (u * np.log(10.0)),
     "log2": lambda u, r: 1.0 / (u * np.log(2.0)),
-    "sqrt": lambda u, r: 0.5 / r,
-    "cbrt": lambda u, r: 1.0 / (3.0 * r * r),
+    "sqrt": lambda u, r: _inverse(2.0 * r),
+    "cbrt": lambda u, r: _inverse(3.0 * r * r),
     "square": lambda u, r: 2.0 * u,
     "reciprocal": lambda u, r: -r * r,
     "absolute": lambda u, r: np.sign(u),
