@@ -298,7 +298,7 @@ _OPTIONS_DOC = """
         catalogue's models valid at each point. ``uncertainty_method``: ``"auto"``
         (linear where the value is one smooth kernel, else Monte Carlo), ``"linear"``,
         ``"monte-carlo"``; ``samples`` (default 1000) and ``seed`` (default 0) of the
-        Monte Carlo draws; ``spread=False`` skips the model spread.
+        Monte Carlo draws where they are used; ``spread=False`` skips the model spread.
 """
 
 
@@ -411,7 +411,7 @@ def evaluate(si, name, call, method, args, kwargs, *, samples, seed, how, spread
     sigma = None
     used, drawn, contributions = "none", 0, {}
     if found:
-        if how in ("auto", "linear") and samples is None:
+        if how in ("auto", "linear"):
             linear = _linear_method(si, name, method, args, kwargs, found, models, parts)
             if linear is not None:
                 sigma, contributions = linear
@@ -829,7 +829,7 @@ def kernel_answer(kernel, arguments, *, samples=None, seed=0, how="auto"):
     if not found:
         value = kernel(**arguments)
         return KernelUncertain(value, _nan_like(value), status, "none", unstated=unstated)
-    if how != "monte-carlo" and samples is None:
+    if how != "monte-carlo":
         linear = kernel_linear(si, kernel, arguments, found, models)
         if linear is not None:
             value, sigma, shares = linear
@@ -852,3 +852,98 @@ def _nan_like(value):
     if isinstance(value, dict):
         return {k: _nan_like(v) for k, v in value.items()}
     return np.full(np.shape(value), np.nan)
+
+
+# ---------------------------------------------------------------------- tables
+class _Figures:
+    """A table entry whose parts are the uncertainty and the model spread of the entry's
+    outputs (for the table's block evaluation)."""
+
+    def __init__(self, entry, options, record):
+        self._entry, self._options, self._record = entry, options, record
+        self.takes = entry.takes
+        self.fields = ()
+
+    def call(self, si, values):
+        entry = self._entry
+        names = entry.parameters(si)
+        result = getattr(si, entry.method or entry.name)(
+            **{names[ax][0]: value for ax, value in values.items() if ax in names},
+            **entry.fixed,
+            **self._options,
+        )
+        if isinstance(result, tuple):
+            parts = list(result)
+        elif entry.fields:
+            parts = [result[name] for name in entry.fields]
+        else:
+            parts = [result]
+        for (variable, _), part in zip(entry.outputs, parts, strict=True):
+            self._record.setdefault(variable, []).append(part)
+        spreads = tuple(
+            part.model_spread
+            if part.model_spread is not None
+            else part.uncertainty * np.nan
+            for part in parts
+        )
+        return tuple(part.uncertainty for part in parts) + spreads
+
+
+def table_figures(si, data, entries, grid, *, samples=None, seed=0, spread=True):
+    """Add ``<variable>_uncertainty`` (and ``<variable>_model_spread``) to a table,
+    linked to their variable by CF ``ancillary_variables``."""
+    from ..units import cf_units
+    from .tables import _call_block
+
+    options = {"uncertainty": True, "samples": samples, "seed": seed, "spread": spread}
+    for entry in entries:
+        dims = grid.dims_of(entry)
+        values = {n: grid.values[n] for n in entry.takes if n in grid}
+        record: dict = {}
+        outs, units = _call_block(si, _Figures(entry, options, record), values, dims)
+        count = len(entry.outputs)
+        for j, (variable, long_name) in enumerate(entry.outputs):
+            answers = record.get(variable, [])
+            statuses = sorted({a.status for a in answers})
+            methods = sorted({a.method for a in answers})
+            unstated = sorted({u for a in answers for u in a.unstated})
+            contributions: dict = {}
+            for a in answers:
+                for label, share in a.contributions.items():
+                    contributions[label] = max(contributions.get(label, 0.0), share)
+            name = f"{variable}_uncertainty"
+            attrs = {
+                "units": cf_units(units[j]),
+                "long_name": f"standard uncertainty (k = 1) of {long_name}, from the "
+                "sources' stated coefficient uncertainties",
+                "uncertainty_status": ", ".join(statuses),
+                "uncertainty_method": ", ".join(methods),
+                "comment": "NaN where no source behind the value states an uncertainty "
+                "(not zero); the model spread is a separate variable, never added",
+            }
+            if unstated:
+                attrs["models_without_stated_uncertainty"] = "; ".join(unstated)
+            if contributions:
+                attrs["largest_contribution"] = max(contributions, key=contributions.get)
+            if samples is not None or "monte-carlo" in methods:
+                attrs["monte_carlo"] = f"{samples or DEFAULT_SAMPLES} samples, seed {seed}"
+            parent = data[variable].attrs
+            if "standard_name" in parent:  # CF's standard-name modifier
+                attrs["standard_name"] = f"{parent['standard_name']} standard_error"
+            data[name] = (tuple(dims), outs[j], attrs)
+            ancillary = [name]
+            if spread:
+                spread_name = f"{variable}_model_spread"
+                data[spread_name] = (
+                    tuple(dims),
+                    outs[count + j],
+                    {
+                        "units": cf_units(units[count + j]),
+                        "long_name": f"spread (largest minus smallest) of {long_name} over "
+                        "the catalogue's models valid at each point; beside the "
+                        "uncertainty, not added to it",
+                    },
+                )
+                ancillary.append(spread_name)
+            data[variable].attrs["ancillary_variables"] = " ".join(ancillary)
+    return data
