@@ -1037,7 +1037,7 @@ def table(
             raise InputError("uncertainty", "used without chunks= (an eager table)", True)
         from .uncertainty import table_figures
 
-        data = table_figures(si, data, entries, grid, samples=samples, seed=seed)
+        data = table_figures(si, data, entries, grid, _call_block, samples=samples, seed=seed)
     names = [e.name for e in entries]
     data.attrs.update(
         {

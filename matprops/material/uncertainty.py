@@ -889,18 +889,18 @@ class _Figures:
         return tuple(part.uncertainty for part in parts) + spreads
 
 
-def table_figures(si, data, entries, grid, *, samples=None, seed=0, spread=True):
+def table_figures(si, data, entries, grid, call_block, *, samples=None, seed=0, spread=True):
     """Add ``<variable>_uncertainty`` (and ``<variable>_model_spread``) to a table,
-    linked to their variable by CF ``ancillary_variables``."""
+    linked to their variable by CF ``ancillary_variables`` (``call_block``: the table's
+    block evaluation)."""
     from ..units import cf_units
-    from .tables import _call_block
 
     options = {"uncertainty": True, "samples": samples, "seed": seed, "spread": spread}
     for entry in entries:
         dims = grid.dims_of(entry)
         values = {n: grid.values[n] for n in entry.takes if n in grid}
         record: dict = {}
-        outs, units = _call_block(si, _Figures(entry, options, record), values, dims)
+        outs, units = call_block(si, _Figures(entry, options, record), values, dims)
         count = len(entry.outputs)
         for j, (variable, long_name) in enumerate(entry.outputs):
             answers = record.get(variable, [])

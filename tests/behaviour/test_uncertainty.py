@@ -347,3 +347,33 @@ def test_uncertainty_sections_are_checked(tmp_path, section, message):
     catalog = _model_file(tmp_path, section)
     with pytest.raises(DatasetError, match=message):
         catalog.model("permittivity", "dunlap-1953")
+
+
+def test_tables_and_files_carry_the_figures(tmp_path):
+    cf_xarray = pytest.importorskip("cf_xarray")
+    import json
+
+    import xarray as xr
+
+    from matprops import export
+
+    assert cf_xarray
+    si = matprops.silicon(models={"mobility": "arora-1982"})
+    data = si.table(
+        ["band_gap", "mobility"], T=[300, 350], Nd=[1e15, 1e17], carrier="electron", uncertainty=True
+    )
+    linked = data.cf.get_associated_variable_names("mobility")["ancillary_variables"]
+    assert linked == ["mobility_uncertainty", "mobility_model_spread"]
+    assert data["mobility_uncertainty"].attrs["uncertainty_status"] == "stated"
+    assert np.allclose(data["mobility_uncertainty"] / data["mobility"], 0.13 / 3**0.5)
+    assert np.all(np.isnan(data["band_gap_uncertainty"]))  # not zero
+    assert np.all(data["band_gap_model_spread"] > 0)
+    path = tmp_path / "t.nc"
+    export.write(data, path)
+    with xr.open_dataset(path) as back:
+        assert back.cf.get_associated_variable_names("mobility")["ancillary_variables"] == linked
+    export.write(data, tmp_path / "t.csv")
+    header = (tmp_path / "t.csv").read_text().splitlines()[0]
+    assert "mobility_uncertainty" in header and "band_gap_model_spread" in header
+    export.write(data, tmp_path / "t.json")
+    assert "mobility_uncertainty" in json.loads((tmp_path / "t.json").read_text())["data_vars"]
