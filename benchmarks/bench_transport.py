@@ -150,7 +150,7 @@ def loop_part(si, m_points, l_points):
     equilibrium = si.kernel("equilibrium", donor="phosphorus", acceptor="boron")
     electron = si.kernel("mobility", carrier="electron")
     hole = si.kernel("mobility", carrier="hole")
-    ionised = {m: m.extra["dopant_densities"] == "ionised" for m in (electron, hole)}
+    ionised = {m: m.conventions.value("dopant_densities") == "ionised" for m in (electron, hole)}
     ni = si.kernel("intrinsic_density")
 
     def log_rho(log_n, temperature):

@@ -4,13 +4,15 @@
   (immutable; they never import the catalogue that builds them);
 - :mod:`.fields`, :mod:`.regions`, :mod:`.schema` — reading and checking the fields
   of a data file;
+- :mod:`.conventions` — what a model's coefficients were fitted with (the
+  ``[fit_conventions]`` section of a composed quantity's model file);
 - :mod:`.modelfile` — the checks and binding of one model file to its kernel;
 - :mod:`.store` — :class:`Catalog`: finds, verifies (checksums) and loads the files;
 - :mod:`.defects` — the defect catalogue of Shockley-Read-Hall centres;
 - :mod:`.checks` — the integrity check of a whole datasets folder
   (``python -m matprops.catalogue``).
 
-Imports run downward only: records -> fields/regions/schema -> modelfile -> store ->
+Imports run downward only: records -> fields/regions/schema -> conventions -> modelfile -> store ->
 defects -> checks.
 """
 

@@ -3,7 +3,8 @@
 Every file the checksum list names must exist and match; every data file on disk
 must be listed; every model file must load (schema, kernel, units) and every table it
 reads must open and hold the variables it names; every release must load, name
-models that exist and have a readable frozen reference; every scenario must pass its
+models that exist and have a readable frozen reference (a final release's archived
+model files must load as that release reads them); every scenario must pass its
 schema, and every defect of the catalogue must load. A folder with no models or no
 releases is a failure, not an empty success.
 """
@@ -71,6 +72,11 @@ def check(catalog: Catalog) -> tuple[list[str], int]:
                     f"{release.path}: models.{quantity} = {model_id!r} does not "
                     f"exist (models of {quantity!r}: {', '.join(known) or 'none'})"
                 )
+        view = catalog.for_release(release)
+        if view is not catalog:  # a final release's archive: its sealed model files load
+            for quantity in view.quantities():
+                for model_id in view.archived_model_ids(quantity):
+                    attempt(view.model, quantity, model_id)
         reference = attempt(catalog.verified_bytes, release.reference_path)
         if reference is not None:
             try:

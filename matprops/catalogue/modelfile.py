@@ -23,6 +23,8 @@ from ..errors import (
     DatasetError,
 )
 from ..kernels import module_for
+from .conventions import REQUIRED as REQUIRED_CONVENTIONS
+from .conventions import legacy_conventions, parse_fit_conventions
 from .fields import convert, number_or_list, read_only, require, udunits_to_pint
 from .records import (
     SOURCE_TYPES,
@@ -166,7 +168,7 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
             f"kind 'composed' needs a kernel that requires other "
             f"quantities; {data['kernel']!r} requires none",
         )
-    extra = _extra_sections(path, quantity, data)
+    extra = _extra_sections(path, quantity, data, catalog, requires)
     common = {
         "quantity": quantity,
         "id": model_id,
@@ -504,8 +506,10 @@ def _check_complete(path, kernel_name, spec, supplied) -> None:
         )
 
 
-# Sections a model file may carry for its quantity only, each checked by a function.
-def _narrowing_section(path, entry) -> dict:
+# Sections a model file may carry for its quantity only, each checked by a function
+# that is told whether the file states its fit conventions (the older fields that
+# carried part of them are then refused: one place for each fact).
+def _narrowing_section(path, entry, with_conventions: bool) -> dict:
     where = "narrowing"
     if not isinstance(entry, dict):
         raise DatasetError(path, f"{where} must be a table")
@@ -515,14 +519,20 @@ def _narrowing_section(path, entry) -> dict:
     kind = require(path, entry, "type", str, where=where + ".")
     if kind not in ("apparent", "physical"):
         raise DatasetError(path, f"{where}.type must be 'apparent' or 'physical', got {kind!r}")
+    record = {"type": kind, "split": require(path, entry, "split", str, where=where + ".")}
+    if with_conventions:
+        for moved in ("statistics", "intrinsic_density"):
+            if moved in entry:
+                raise DatasetError(
+                    path,
+                    f"{where}.{moved}: stated in [fit_conventions] (this field is the "
+                    "form of files sealed before that section)",
+                )
+        return record
     statistics = require(path, entry, "statistics", str, where=where + ".")
     if statistics not in ("boltzmann", "fermi-dirac"):
         raise DatasetError(path, f"{where}.statistics must be 'boltzmann' or 'fermi-dirac'")
-    record = {
-        "type": kind,
-        "statistics": statistics,
-        "split": require(path, entry, "split", str, where=where + "."),
-    }
+    record["statistics"] = statistics
     if kind == "apparent":
         density = require(path, entry, "intrinsic_density", dict, where=where + ".")
         temperature = require(path, density, "temperature", where=where + ".intrinsic_density.")
@@ -541,7 +551,13 @@ def _narrowing_section(path, entry) -> dict:
     return record
 
 
-def _dopant_densities(path, value) -> str:
+def _dopant_densities(path, value, with_conventions: bool) -> str:
+    if with_conventions:
+        raise DatasetError(
+            path,
+            "field 'dopant_densities': stated in [fit_conventions] (this field is the "
+            "form of files sealed before that section)",
+        )
     if value not in ("total", "ionised"):
         raise DatasetError(
             path, f"field 'dopant_densities' must be 'total' or 'ionised', got {value!r}"
@@ -549,10 +565,16 @@ def _dopant_densities(path, value) -> str:
     return value
 
 
-def _fit_section(path, entry) -> dict:
-    """What an intrinsic-lifetime model was fitted with (its radiative term, intrinsic
-    density and narrowing), so that the material composes it consistently."""
+def _fit_section(path, entry, with_conventions: bool) -> dict:
+    """What an intrinsic-lifetime model was fitted with, in the form of files sealed
+    before [fit_conventions] (its radiative term, intrinsic density and narrowing)."""
     where = "fit"
+    if with_conventions:
+        raise DatasetError(
+            path,
+            "section [fit]: stated in [fit_conventions] (this section is the form of "
+            "files sealed before that section)",
+        )
     if not isinstance(entry, dict):
         raise DatasetError(path, f"{where} must be a table")
     unknown = set(entry) - {"radiative", "intrinsic_density", "gap_narrowing"}
@@ -579,7 +601,7 @@ def _fit_section(path, entry) -> dict:
     return record
 
 
-def _velocity_definition(path, value) -> str:
+def _velocity_definition(path, value, with_conventions: bool) -> str:
     if value not in THERMAL_VELOCITY_DEFINITIONS:
         raise DatasetError(
             path,
@@ -592,21 +614,57 @@ def _velocity_definition(path, value) -> str:
 
 # (A thermal velocity is either the mean speed sqrt(8kT/(pi m)) or the root-mean-square
 # speed sqrt(3kT/m), sqrt(3 pi/8) = 1.085 apart, so every such model says which.)
+# section -> check (it refuses a field that [fit_conventions] now holds); each section is
+# required of a file without [fit_conventions], the older form of some of them
 QUANTITY_SECTIONS = {
     "gap_narrowing": {"narrowing": _narrowing_section},
     "intrinsic_lifetime": {"fit": _fit_section},
     "mobility": {"dopant_densities": _dopant_densities},
     "thermal_velocity": {"definition": _velocity_definition},
 }
+# sections still required of a file with [fit_conventions]
+_KEPT = {"narrowing", "definition"}
 
 
-def _extra_sections(path, quantity, data) -> dict:
-    allowed = QUANTITY_SECTIONS.get(quantity, {})
+def _archived(path: Path, catalog) -> bool:
+    """Whether the file is a final release's archive copy (``archive/<id>/models/...``)."""
+    root = getattr(catalog, "root", None)
+    try:
+        return root is not None and path.relative_to(root).parts[0] == "archive"
+    except ValueError:
+        return False
+
+
+def _extra_sections(path, quantity, data, catalog, requires=()) -> dict:
+    """The quantity's own sections and the fit conventions, checked.
+
+    A composed quantity's model file in the main tree must state its fit conventions;
+    a final release's archive copy sealed before they existed gets them from its
+    older fields (:func:`~.conventions.legacy_conventions`)."""
+    with_conventions = "fit_conventions" in data
+    if not with_conventions and quantity in REQUIRED_CONVENTIONS and not _archived(path, catalog):
+        raise DatasetError(
+            path,
+            f"missing section [fit_conventions]: a {quantity} model is composed with "
+            "other models, so its file must state what its coefficients were fitted "
+            f"with ({', '.join(REQUIRED_CONVENTIONS[quantity])}; see "
+            "matprops.catalogue.conventions)",
+        )
     found = {}
-    for key, check in allowed.items():
-        if key not in data:
+    for key, check in QUANTITY_SECTIONS.get(quantity, {}).items():
+        if key in data:
+            found[key] = check(path, data[key], with_conventions)
+        elif key in _KEPT or not with_conventions:
             raise DatasetError(path, f"missing required field {key!r} for a {quantity} model")
-        found[key] = check(path, data[key])
+    if with_conventions:
+        found["fit_conventions"] = parse_fit_conventions(
+            path, quantity, data["fit_conventions"], catalog
+        )
+    elif quantity in REQUIRED_CONVENTIONS:  # an archive copy sealed before the section
+        narrowing_models = catalog.model_ids("gap_narrowing") if "fit" in found else ()
+        found["fit_conventions"] = legacy_conventions(
+            quantity, found, "radiative_coefficient" in requires, narrowing_models
+        )
     return found
 
 

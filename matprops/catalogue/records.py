@@ -367,6 +367,15 @@ class Model:
         return self.variants[variant]
 
     @property
+    def conventions(self):
+        """What the coefficients were fitted with
+        (:class:`~matprops.catalogue.conventions.FitConventions`: dopant and carrier
+        densities, intrinsic density, densities of states, narrowing, statistics,
+        radiative term, each with where that was read); None for a quantity that is
+        not composed with others."""
+        return self.extra.get("fit_conventions")
+
+    @property
     def tables(self) -> list[str]:
         """Files in ``datasets/tables/`` this model reads (sorted; empty if none)."""
         if not self.table:
@@ -600,7 +609,7 @@ class Model:
 
 
 def _plain_extra(value):
-    if isinstance(value, Coefficient):
+    if hasattr(value, "as_dict"):  # a Coefficient, the fit conventions
         return value.as_dict()
     if isinstance(value, Mapping):
         return {k: _plain_extra(v) for k, v in value.items()}

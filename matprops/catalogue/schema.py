@@ -92,6 +92,7 @@ NUMBERS = Kind(
     "a finite number or a non-empty list of finite numbers",
     lambda v: _is_number(v) or (isinstance(v, list) and bool(v) and all(_is_number(x) for x in v)),
 )
+TEXT_OR_NUMBER = Kind("text or a finite number", lambda v: isinstance(v, str) or _is_number(v))
 TEXTS = Kind("a list of text", lambda v: isinstance(v, list) and all(isinstance(x, str) for x in v))
 PAIRS = Kind(
     "a list of [number, number] pairs",
@@ -177,12 +178,20 @@ FITTED_DENSITY = {  # the intrinsic density an apparent narrowing was fitted wit
 
 NARROWING = {  # [narrowing] of a gap_narrowing model
     "type": (one_of("apparent", "physical"), REQUIRED),
-    "statistics": (one_of("boltzmann", "fermi-dirac"), REQUIRED),
     "split": (TEXT, REQUIRED),
+    # the form of files sealed before [fit_conventions] (they now live there):
+    "statistics": (one_of("boltzmann", "fermi-dirac"), OPTIONAL),
     "intrinsic_density": (FITTED_DENSITY, OPTIONAL),  # required for "apparent"
 }
 
-FIT = {  # [fit] of an intrinsic_lifetime model
+CONVENTION = {  # one entry of [fit_conventions]: see matprops.catalogue.conventions
+    "value": (TEXT_OR_NUMBER, REQUIRED),  # a word, a model id, or a number
+    "units": (TEXT, OPTIONAL),  # of a number
+    "temperature": (NUMBER, OPTIONAL),  # K, where a density holds
+    "obtained": (TEXT, REQUIRED),  # where it was read, or "not stated in the source"
+}
+
+FIT = {  # [fit] of an intrinsic_lifetime model sealed before [fit_conventions]
     "radiative": (TEXT, REQUIRED),  # which radiative term the model goes with
     "gap_narrowing": (TEXT, REQUIRED),  # a gap_narrowing model id, or "none"/"not known"
     "intrinsic_density": (FITTED_DENSITY, OPTIONAL),
@@ -248,6 +257,10 @@ MODEL = {  # datasets/models/<quantity>/<model-id>.toml
     "variant_axis": (one_of(*VARIANT_AXES), OPTIONAL),  # goes with variants
     "variants": (table_of(VARIANT), OPTIONAL),  # one coefficient set per name
     "narrowing": (NARROWING, OPTIONAL),  # gap_narrowing models
+    # what the coefficients were fitted with (required for a composed quantity's model
+    # in the main tree: matprops.catalogue.conventions.REQUIRED)
+    "fit_conventions": (table_of(CONVENTION), OPTIONAL),
+    # -- the forms of files sealed before [fit_conventions] (archives of final releases)
     "dopant_densities": (one_of("total", "ionised"), OPTIONAL),  # mobility models
     "fit": (FIT, OPTIONAL),  # intrinsic_lifetime models
     "definition": (one_of(*THERMAL_VELOCITY_DEFINITIONS), OPTIONAL),  # thermal_velocity

@@ -136,9 +136,12 @@ class _Bound:
         self.ni = si.model("intrinsic_density")
         self.narrowing = si.model("gap_narrowing")
         self.ionisation = si.model("ionisation")
-        section = self.narrowing.extra["narrowing"]
-        self.apparent = section["type"] == "apparent"
-        self.statistics = section["statistics"]
+        self.apparent = self.narrowing.extra["narrowing"]["type"] == "apparent"
+        conventions = self.narrowing.conventions
+        self.statistics = conventions.value(
+            "statistics", "boltzmann" if self.apparent else "fermi-dirac"
+        )
+        self.fitted_density = conventions.get("intrinsic_density")
         self.uses_carriers = "electron_density" in self.narrowing.inputs
 
     def narrowing_args(self, temperature, donor_density, acceptor_density, n, p):
@@ -158,19 +161,23 @@ class _Bound:
 
     def reference_ratio(self):
         """ni_fit / ni(T_fit) for an apparent narrowing, 1 for a physical one."""
-        if not self.apparent:
+        fitted = self.fitted_density
+        if not self.apparent or fitted is None or not fitted.number:
             return 1.0
-        section = self.narrowing.extra["narrowing"]
-        fitted = section["intrinsic_density"].kernel_value
-        return fitted / float(self.ni(temperature=section["intrinsic_density_temperature"]))
+        return fitted.kernel_value / float(self.ni(temperature=fitted.temperature))
 
     def gap_offset(self, temperature):
         """The extra narrowing that reconciles an apparent narrowing with the release's ni."""
         return 2.0 * BOLTZMANN_EV * temperature * np.log(self.reference_ratio())
 
-    def level(self, species, density):
+    def level(self, species, density, complete=False):
+        """((E_dop, localised share b), degeneracy) of a dopant species; with
+        ``complete`` the share is 0: every dopant ionised (the carrier convention of
+        fits that took the dopant density for the majority density)."""
         model = self.ionisation.select(species)
         energy, share = model(dopant_density=density)
+        if complete:
+            share = np.zeros(np.shape(density))
         return (energy, share), model.coefficients["degeneracy"].kernel_value
 
     def equilibrium(
@@ -181,13 +188,15 @@ class _Bound:
         donor="phosphorus",
         acceptor="boron",
         fermi_dirac=True,
+        complete=False,
     ):
+        """The equilibrium solve on plain arrays; ``complete``: every dopant ionised."""
         t, nd, na = np.broadcast_arrays(
             *(np.asarray(a, dtype=float) for a in (temperature, donor_density, acceptor_density))
         )
         nc, nv = self.dos(temperature=t)
-        donor_level, g_d = self.level(donor, nd)
-        acceptor_level, g_a = self.level(acceptor, na)
+        donor_level, g_d = self.level(donor, nd, complete)
+        acceptor_level, g_a = self.level(acceptor, na, complete)
 
         fixed = getattr(self.narrowing.kernel, "with_fixed_dopants", None)
         coefficients = {name: c.kernel_value for name, c in self.narrowing.coefficients.items()}
@@ -346,7 +355,7 @@ class CarrierMethods:
             _, low, high = prepared[key]
             ionisation.select(species).check("dopant_density", low, high, self.strict)
 
-    def _solve(self, temperature, Na, Nd, donor, acceptor, statistics):
+    def _solve(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False):
         donor = dopant_species(donor, "donor", "donor")
         acceptor = dopant_species(acceptor, "acceptor", "acceptor")
         bound = self._carriers()
@@ -366,6 +375,7 @@ class CarrierMethods:
             donor,
             acceptor,
             fermi_dirac,
+            complete,
         )
         return result, donor, acceptor, fermi_dirac
 
@@ -526,12 +536,11 @@ class CarrierMethods:
             return None
         bound = self._carriers()
         if bound.apparent:
-            section = bound.narrowing.extra["narrowing"]
-            fitted = section["intrinsic_density"]
+            fitted = bound.fitted_density
             return (
                 f"apparent narrowing {bound.narrowing.id} composed with the intrinsic "
                 f"density it was fitted with: ni(T) x [{fitted.value:g} cm^-3 / "
-                f"ni({section['intrinsic_density_temperature']:g} K) = "
+                f"ni({fitted.temperature:g} K) = "
                 f"{bound.reference_ratio():.6g}] x exp(dEg/2kT), ni from "
                 f"{bound.ni.id}; default statistics {bound.statistics}"
             )

@@ -230,7 +230,7 @@ class RecombinationMethods:
                 model.check(argument, low, high, self.strict)
         if model.regions:
             model.check_regions(state.kernel_inputs(), self.strict)
-        fitted = model.extra["fit"]["gap_narrowing"]
+        fitted = model.conventions.value("gap_narrowing")
         used = self.models.get("gap_narrowing")
         if not state.given and fitted in self.catalog.model_ids("gap_narrowing") and used != fitted:
             message = (

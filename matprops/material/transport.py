@@ -39,6 +39,7 @@ from ..kernels.constants import BOLTZMANN_EV
 from ..kernels.diffusivity import einstein_factor
 from ..units import coerce, quantity
 from .carriers import DOPANTS, dopant_species
+from .composition import complete_ionisation
 
 __all__ = ["CARRIERS", "CONVERSIONS", "DERIVED", "KERNELS", "TransportMethods", "carrier_name"]
 
@@ -177,7 +178,7 @@ class TransportMethods:
         them) and ``n``, ``p`` were omitted.
         """
         _choice(dopant_densities, "dopant_densities", DOPANT_DENSITIES)
-        takes_ionised = model.extra["dopant_densities"] == "ionised"
+        takes_ionised = model.conventions.value("dopant_densities") == "ionised"
         if dopant_densities == "ionised" and not takes_ionised:
             raise InputError(
                 "dopant_densities",
@@ -194,7 +195,9 @@ class TransportMethods:
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
         ionise = takes_ionised and dopant_densities == "total"
         if ionise or (wants_carriers and n is None):
-            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics)
+            result, *_ = self._solve(
+                temperature, Na, Nd, donor, acceptor, statistics, complete_ionisation(model)
+            )
             if ionise:
                 prepared["donor_density"] = _extremes(result["ionised_donors"])
                 prepared["acceptor_density"] = _extremes(result["ionised_acceptors"])
@@ -357,26 +360,43 @@ class TransportMethods:
 
     # ------------------------------------------------------------------ resistivity
     def _conductivity(self, t, nd, na, donor, acceptor, check=True):
-        """sigma (S/cm) of equilibrium silicon on plain arrays; validity checked if ``check``."""
+        """sigma (S/cm) of equilibrium silicon on plain arrays; validity checked if ``check``.
+
+        The carriers are those of the mobility model's fit convention: a mobility
+        reduced from conductivity with the dopant density standing for the majority
+        density (``carrier_densities = "complete-ionisation"``) already holds the
+        incomplete ionisation of its data in its product n mu, so sigma takes the
+        complete-ionisation carriers; otherwise the equilibrium free carriers.
+        """
         bound = self._carriers()
-        result = bound.equilibrium(t, nd, na, donor, acceptor, bound.statistics == "fermi-dirac")
-        n, p = result["electron_density"], result["hole_density"]
-        mobilities = []
-        for carrier in CARRIERS:
-            model = self._mobility_model(carrier, donor, acceptor)
-            ionised = model.extra["dopant_densities"] == "ionised"
+        fermi_dirac = bound.statistics == "fermi-dirac"
+        models = [self._mobility_model(carrier, donor, acceptor) for carrier in CARRIERS]
+        solved = {}
+        for model in models:
+            complete = complete_ionisation(model)
+            if complete not in solved:
+                solved[complete] = bound.equilibrium(
+                    t, nd, na, donor, acceptor, fermi_dirac, complete
+                )
+        conductivities = []
+        for carrier, model in zip(CARRIERS, models, strict=True):
+            result = solved[complete_ionisation(model)]
+            ionised = model.conventions.value("dopant_densities") == "ionised"
             values = {
                 "temperature": result["temperature"],
                 "donor_density": result["ionised_donors"] if ionised else nd,
                 "acceptor_density": result["ionised_acceptors"] if ionised else na,
-                "electron_density": n,
-                "hole_density": p,
+                "electron_density": result["electron_density"],
+                "hole_density": result["hole_density"],
             }
             if check:
                 for name in model.inputs:
                     model.check(name, *_extremes(values[name])[1:], self.strict)
-            mobilities.append(model(**{k: values[k] for k in model.inputs}))
-        return resistivity_kernels.conductivity(n, p, *mobilities)
+            mobility = model(**{k: values[k] for k in model.inputs})
+            density = values["electron_density" if carrier == "electron" else "hole_density"]
+            conductivities.append((density, mobility))
+        (n, mu_n), (p, mu_p) = conductivities
+        return resistivity_kernels.conductivity(n, p, mu_n, mu_p)
 
     def _physics_inputs(self, temperature, Na, Nd, donor, acceptor):
         donor = dopant_species(donor, "donor", "donor")

@@ -62,19 +62,11 @@ def render(catalog: Catalog | None = None) -> str:
                 unc = f" ± {coef.uncertainty}" if coef.uncertainty is not None else ""
                 value = list(coef.value) if isinstance(coef.value, tuple) else coef.value
                 lines.append(f"- `{name}` = {value}{unc} {coef.units}")
-            fit = model.extra.get("fit")
-            if fit:
-                density = fit.get("intrinsic_density")
-                density = (
-                    f"; intrinsic density {density.value:g} {density.units} at "
-                    f"{fit['intrinsic_density_temperature']:g} K"
-                    if density
-                    else ""
-                )
-                lines.append(
-                    f"- fitted with: radiative term {_one_line(fit['radiative'])}"
-                    f"{density}; narrowing {fit['gap_narrowing']}"
-                )
+            conventions = model.conventions
+            if conventions:
+                lines.append("- fitted with:")
+                for name, entry in conventions.items():
+                    lines.append(f"  - {name}: {_one_line(entry.describe())}")
             lines.append(f"- obtained: {_one_line(model.obtained)}")
             if model.notes:
                 lines.append(f"- notes: {_one_line(model.notes)}")

@@ -541,3 +541,141 @@ def test_bibtex_keys_are_unique(si):
     assert len(keys) == len(set(keys))
     assert "klaassen-1992a" in keys and "klaassen-1992b" in keys
     assert "astm-1999" in keys  # an organisation is keyed by its first word
+
+
+# ----------------------------------------------------------------- fit conventions
+
+
+def _drop_section(text, section):
+    """The model file's text without the tables [section.*] (up to the next other table)."""
+    import re
+
+    return re.sub(
+        rf"^\[{re.escape(section)}(\.[a-z_]+)?\]\n(?:(?!^\[(?!{re.escape(section)}[.\]])).*\n)*",
+        "",
+        text,
+        flags=re.MULTILINE,
+    )
+
+
+@pytest.mark.parametrize(
+    "quantity, model_id",
+    [
+        ("mobility", "klaassen-1992"),
+        ("gap_narrowing", "schenk-1998"),
+        ("ionisation", "altermatt-2006"),
+        ("intrinsic_lifetime", "richter-2012"),
+        ("radiative_coefficient", "trupke-2003"),
+        ("free_carrier_absorption", "soref-1987"),
+        ("high_field_mobility", "canali-1975"),
+    ],
+)
+def test_a_composed_model_file_must_state_its_fit_conventions(datasets_copy, quantity, model_id):
+    root, catalog = datasets_copy
+    path = root / f"models/{quantity}/{model_id}.toml"
+    text = path.read_text()
+    assert "[fit_conventions." in text
+    path.write_text(_drop_section(text, "fit_conventions"))
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"missing section \[fit_conventions\]"):
+        catalog.model(quantity, model_id)
+
+
+def test_every_main_tree_model_of_a_composed_quantity_has_its_conventions():
+    from matprops.catalogue.conventions import REQUIRED
+
+    catalog = matprops.catalogue.default_catalog()
+    for quantity, names in REQUIRED.items():
+        for model_id in catalog.model_ids(quantity):
+            conventions = catalog.model(quantity, model_id).conventions
+            assert conventions.recorded, (quantity, model_id)
+            assert set(names) <= set(conventions), (quantity, model_id)
+            for entry in conventions.values():
+                assert entry.obtained.strip()
+
+
+def test_a_final_release_archive_without_conventions_composes_as_it_did():
+    # archived 2026.1 files were valid when sealed: their conventions are synthesised from
+    # the older fields (a mobility's dopant_densities), everything else "not known"
+    si = matprops.silicon(release="2026.1")
+    conventions = si.model("mobility").conventions
+    assert not conventions.recorded
+    assert conventions["dopant_densities"].value == "ionised"
+    assert conventions["carrier_densities"].value == "not known"
+    assert si.provenance("mobility")["file"].startswith("archive/2026.1/")
+
+
+BLOCK = '[fit_conventions.dopant_densities]\nvalue = "total"\n'
+
+
+@pytest.mark.parametrize(
+    "old, new, message",
+    [
+        (BLOCK, BLOCK.replace('"total"', '"all"'), r"dopant_densities.value must be one of"),
+        (
+            BLOCK,
+            "[fit_conventions.doping]\nvalue = 'total'\nobtained = 'x'\n\n" + BLOCK,
+            r"unknown field 'fit_conventions.doping'",
+        ),
+        (
+            BLOCK,
+            BLOCK.replace('"total"', "3.0"),
+            r"dopant_densities.value must be text",
+        ),
+        (
+            'id = "klaassen-1992"\n',
+            'id = "klaassen-1992"\ndopant_densities = "total"\n',
+            r"'dopant_densities': stated in \[fit_conventions\]",
+        ),
+    ],
+)
+def test_fit_conventions_schema(datasets_copy, old, new, message):
+    root, catalog = datasets_copy
+    path = root / "models/mobility/klaassen-1992.toml"
+    text = path.read_text()
+    assert old in text
+    path.write_text(text.replace(old, new, 1))
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=message):
+        catalog.model("mobility", "klaassen-1992")
+
+
+def test_a_convention_must_say_where_it_was_read(datasets_copy):
+    import re
+
+    root, catalog = datasets_copy
+    path = root / "models/mobility/klaassen-1992.toml"
+    text = re.sub(
+        r'(\[fit_conventions.dopant_densities\]\nvalue = "total"\nobtained = )""".*?"""',
+        r'\1" "',
+        path.read_text(),
+        flags=re.DOTALL,
+    )
+    path.write_text(text)
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"obtained must say where"):
+        catalog.model("mobility", "klaassen-1992")
+
+
+def test_a_convention_naming_a_model_must_name_one_that_exists(datasets_copy):
+    root, catalog = datasets_copy
+    path = root / "models/ionisation/altermatt-2006.toml"
+    text = path.read_text()
+    path.write_text(text.replace('value = "green-1990"', 'value = "green-1991"'))
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"neither a model of 'densities_of_states'"):
+        catalog.model("ionisation", "altermatt-2006")
+
+
+def test_a_numeric_convention_needs_units_and_temperature(datasets_copy):
+    root, catalog = datasets_copy
+    path = root / "models/intrinsic_lifetime/richter-2012.toml"
+    text = path.read_text()
+    path.write_text(text.replace('units = "cm^-3"\ntemperature = 300\n', 'units = "cm^-3"\n'))
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"needs the temperature"):
+        catalog.model("intrinsic_lifetime", "richter-2012")
+    path.write_text(text.replace('units = "cm^-3"\ntemperature = 300\n', "temperature = 300\n"))
+    catalog.write_checksums()
+    with pytest.raises(matprops.DatasetError, match=r"needs its units"):
+        catalog.model("intrinsic_lifetime", "richter-2012")

@@ -307,9 +307,9 @@ def test_compare_choices_and_errors(si):
 
 
 def _second_release(root, catalog, changes):
-    text = (root / "releases/2026.1.toml").read_text()
-    text = text.replace('release = "2026.1"', 'release = "2030.1"')
-    text = text.replace('status = "final"', 'status = "draft"')
+    # a copy of the draft 2026.2 (it reads the main tree's model files, as 2030.1 will)
+    text = (root / "releases/2026.2.toml").read_text()
+    text = text.replace('release = "2026.2"', 'release = "2030.1"')
     for quantity, (old, new) in changes.items():
         text = text.replace(f'{quantity} = "{old}"', f'{quantity} = "{new}"')
     (root / "releases/2030.1.toml").write_text(text)
@@ -328,7 +328,7 @@ def test_release_difference_with_a_temporary_second_release(datasets_copy):
     )
     from matprops.outputs.changes import release_difference
 
-    diff = release_difference("2026.1", "2030.1", catalog)
+    diff = release_difference("2026.2", "2030.1", catalog)
     changed = {r["quantity"] for r in diff["models"] if r["changed"]}
     assert changed == {"band_gap", "intrinsic_density"}
     record = {r["quantity"]: r for r in diff["models"]}["band_gap"]
@@ -339,7 +339,7 @@ def test_release_difference_with_a_temporary_second_release(datasets_copy):
     # the band-gap deviation, recomputed here point by point from the two models
     from matprops.outputs.reference import TEMPERATURES
 
-    old = matprops.Silicon(release="2026.1", catalog=catalog)
+    old = matprops.Silicon(release="2026.2", catalog=catalog)
     new = matprops.Silicon(release="2030.1", catalog=catalog)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)

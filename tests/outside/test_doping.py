@@ -78,7 +78,7 @@ def test_apparent_narrowing_is_composed_with_its_own_intrinsic_density():
     # fitted with (recorded in its file); matprops must use that density, and say so
     for model_id in APPARENT:
         si = with_narrowing(model_id)
-        fitted = si.model("gap_narrowing").extra["narrowing"]["intrinsic_density"].value
+        fitted = si.model("gap_narrowing").conventions["intrinsic_density"].value
         dEg = si.gap_narrowing(300, Nd=1e19).m_as("eV")
         ni_eff = si.effective_intrinsic_density(300, Nd=1e19).m_as("cm^-3")
         assert ni_eff == pytest.approx(fitted * np.exp(dEg / (2 * K_B * 300)), rel=1e-12)

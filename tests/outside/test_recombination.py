@@ -88,12 +88,8 @@ def test_each_lifetime_model_keeps_the_radiative_term_it_was_fitted_with(si):
             part="radiative",
         )
         assert 1.0 / (tau * (1e15 + 1e5 + 1e14)) == pytest.approx(b, rel=1e-12)
-    assert (
-        "own"
-        in with_model("intrinsic_lifetime", "kerr-2002")
-        .model("intrinsic_lifetime")
-        .extra["fit"]["radiative"]
-    )
+    conventions = with_model("intrinsic_lifetime", "kerr-2002").model("intrinsic_lifetime")
+    assert conventions.conventions["radiative_coefficient"].value == "own"
 
 
 # ----------------------------------------------------------------- Auger coefficients
