@@ -434,7 +434,9 @@ def _uncertainty_section(path, data, spec, coefficients, variants) -> Uncertaint
         if matrix.shape != (len(names), len(names)):
             raise DatasetError(path, f"{where}: the matrix must be {len(names)} x {len(names)}")
         if not np.allclose(matrix, matrix.T) or not np.all(np.diag(matrix) == 1.0):
-            raise DatasetError(path, f"{where}: the matrix must be symmetric with 1 on its diagonal")
+            raise DatasetError(
+                path, f"{where}: the matrix must be symmetric with 1 on its diagonal"
+            )
         if np.any(np.abs(matrix) > 1.0) or np.linalg.eigvalsh(matrix).min() < -1e-12:
             raise DatasetError(path, f"{where}: not a correlation matrix (positive semi-definite)")
         for name in names:

@@ -34,13 +34,13 @@ from ..errors import DatasetError
 
 __all__ = [
     "DEFECT",
-    "UNCERTAINTY_KINDS",
-    "UNCERTAINTY_STATEMENTS",
     "KINDS",
     "MODEL",
     "RELEASE",
     "SCENARIO",
     "THERMAL_VELOCITY_DEFINITIONS",
+    "UNCERTAINTY_KINDS",
+    "UNCERTAINTY_STATEMENTS",
     "VARIANT_AXES",
     "validate",
 ]

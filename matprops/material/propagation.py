@@ -88,14 +88,14 @@ def _own_directions(model: Model) -> list[Direction]:
         sigma = coefficient.kernel_uncertainty
         if sigma is None:
             continue
-        common = dict(
-            quantity=model.quantity,
-            model=model.id,
-            variant=model.variant,
-            name=coefficient.name,
-            kind=coefficient.uncertainty_kind,
-            obtained=coefficient.uncertainty_obtained or "",
-        )
+        common = {
+            "quantity": model.quantity,
+            "model": model.id,
+            "variant": model.variant,
+            "name": coefficient.name,
+            "kind": coefficient.uncertainty_kind,
+            "obtained": coefficient.uncertainty_obtained or "",
+        }
         if np.ndim(sigma) == 0:
             if sigma > 0:
                 found.append(Direction(index=None, sigma=float(sigma), **common))
@@ -159,7 +159,10 @@ def covariance(found: list[Direction], models: Mapping[tuple, Model] | None = No
         if model is None:
             continue
         for block in model.uncertainty.correlations:
-            where = [_locate(name, quantity, model_id, d.variant, position) for name in block.coefficients]
+            where = [
+                _locate(name, quantity, model_id, d.variant, position)
+                for name in block.coefficients
+            ]
             for a, i in enumerate(where):
                 for b, j in enumerate(where):
                     if i is not None and j is not None and i != j:
@@ -241,9 +244,7 @@ def substitute(model: Model, values: Mapping, cache: dict | None = None) -> Mode
     cache : reused for models none of whose numbers change (keyed by identity)
     """
     cache = {} if cache is None else cache
-    changed_components = {
-        q: substitute(c, values, cache) for q, c in model.components.items()
-    }
+    changed_components = {q: substitute(c, values, cache) for q, c in model.components.items()}
     touched = any(k[0] == model.quantity for k in values) or any(
         changed_components[q] is not c for q, c in model.components.items()
     )
@@ -334,9 +335,7 @@ def values_for(found: list[Direction], deviations, models: Mapping[tuple, Model]
             if d.variant is not None:
                 model = model.select(d.variant)
             nominal = model.coefficients[d.name].kernel_value
-            values[key] = (
-                np.array(nominal, dtype=float) if d.index is not None else float(nominal)
-            )
+            values[key] = np.array(nominal, dtype=float) if d.index is not None else float(nominal)
         if d.index is None:
             values[key] = values[key] + e
         else:

@@ -204,7 +204,9 @@ class Uncertain:
     def __repr__(self) -> str:
         def show(q):
             m = np.asarray(q.magnitude)
-            text = f"{m.item():.6g}" if m.size == 1 else np.array2string(m, precision=4, threshold=6)
+            text = (
+                f"{m.item():.6g}" if m.size == 1 else np.array2string(m, precision=4, threshold=6)
+            )
             return f"{text} {q.units:~P}"
 
         lines = [
@@ -269,6 +271,7 @@ def with_uncertainty(method):
             return method(self, *args, **kwargs)
         if uncertainty is not True:
             raise InputError("uncertainty", "True or False", repr(uncertainty))
+
         def call(material):
             return method(material, *args, **kwargs)
 
@@ -308,7 +311,9 @@ def _parts(result):
     from .results import Result
 
     if isinstance(result, Result):
-        return {n: (np.asarray(q.magnitude, float), q.units) for n, q in result.quantities().items()}
+        return {
+            n: (np.asarray(q.magnitude, float), q.units) for n, q in result.quantities().items()
+        }
     if isinstance(result, tuple):
         return {i: (np.asarray(q.magnitude, float), q.units) for i, q in enumerate(result)}
     return {None: (np.asarray(result.magnitude, float), result.units)}
@@ -428,7 +433,9 @@ def evaluate(si, name, call, method, args, kwargs, *, samples, seed, how, spread
             sigma, rejected = _monte_carlo(si, call, found, models, parts, drawn, seed)
             used = "monte-carlo"
             if rejected:
-                notes.append(f"{rejected} of {drawn} draws failed (solver or domain) and were left out")
+                notes.append(
+                    f"{rejected} of {drawn} draws failed (solver or domain) and were left out"
+                )
     else:
         notes.append(
             "no model behind this value states an uncertainty: the uncertainty is NaN, not zero"
@@ -585,7 +592,7 @@ def flat_tangent(function, k, part):
     from ..kernels._coefficients import split
 
     def tangents(**block):
-        value, tangent = split(function(**block), k)
+        _, tangent = split(function(**block), k)
         if part == "sum":
             return tangent[0] + tangent[1]
         if isinstance(part, int):
@@ -604,9 +611,7 @@ def _budget(tangents, inputs, found, cov):
     size = math.prod(shape)
     if size > BUDGET_POINTS:
         pick = np.linspace(0, size - 1, BUDGET_POINTS).astype(int)
-        arrays = {
-            n: np.broadcast_to(a, shape).reshape(-1)[pick] for n, a in arrays.items()
-        }
+        arrays = {n: np.broadcast_to(a, shape).reshape(-1)[pick] for n, a in arrays.items()}
     t = tangents(**arrays)
     variances = np.diag(cov)
 
@@ -687,8 +692,10 @@ def kernel_monte_carlo(si, kernel, inputs, found, models, samples, seed, part=No
         changed = material.kernel(kernel.quantity, **kernel._fixed)
         if kernel._blocked:
             if buffer is None:
-                buffer = tuple(np.empty_like(v) for v in value) if isinstance(value, tuple) else (
-                    np.empty_like(np.asarray(value, float)) if np.ndim(value) else None
+                buffer = (
+                    tuple(np.empty_like(v) for v in value)
+                    if isinstance(value, tuple)
+                    else (np.empty_like(np.asarray(value, float)) if np.ndim(value) else None)
                 )
             sample = blocks(changed._function, inputs, out=buffer)
         else:
@@ -771,7 +778,7 @@ def _spread(si, name, call, method, args, kwargs, models, parts):
                 q = key[0]
                 if q in other._models:
                     mask &= _valid(other._models[q], inputs, shape)
-            for key, (value, _) in parts.items():
+            for key in parts:
                 v = np.broadcast_to(sample[key][0], shape)
                 ok = mask & np.isfinite(v)
                 low[key] = np.where(ok, np.minimum(low[key], v), low[key])
@@ -881,9 +888,7 @@ class _Figures:
         for (variable, _), part in zip(entry.outputs, parts, strict=True):
             self._record.setdefault(variable, []).append(part)
         spreads = tuple(
-            part.model_spread
-            if part.model_spread is not None
-            else part.uncertainty * np.nan
+            part.model_spread if part.model_spread is not None else part.uncertainty * np.nan
             for part in parts
         )
         return tuple(part.uncertainty for part in parts) + spreads

@@ -89,7 +89,9 @@ def _test_directions(model, share=0.01):
                 x = float(value) if index is None else float(value[index])
                 if x != 0:
                     found.append(
-                        Direction(m.quantity, m.id, m.variant, c.name, index, share * abs(x), "standard")
+                        Direction(
+                            m.quantity, m.id, m.variant, c.name, index, share * abs(x), "standard"
+                        )
                     )
     return found
 
@@ -103,14 +105,19 @@ def test_coefficient_partials_match_central_differences(si):
         label = f"{model.quantity}/{model.id}"
         for d in _test_directions(model, share=1e-6):
             try:
-                value, tangent = split(substitute(model, dual_values([d], models)).function(**inputs), 1)
+                value, tangent = split(
+                    substitute(model, dual_values([d], models)).function(**inputs), 1
+                )
             except NotDifferentiable:
                 assert label in NOT_FOLLOWED, f"{d.label}: not differentiable"
                 continue
             h = d.sigma
             up = substitute(model, values_for([d], [h], models)).function(**inputs)
             down = substitute(model, values_for([d], [-h], models)).function(**inputs)
-            pairs = zip(*(x if isinstance(x, tuple) else (x,) for x in (up, down, tangent, value)))
+            pairs = zip(
+                *(x if isinstance(x, tuple) else (x,) for x in (up, down, tangent, value)),
+                strict=True,
+            )
             for a, b, t, v in pairs:
                 difference = (np.asarray(a, float) - np.asarray(b, float)) / (2 * h)
                 analytic = np.asarray(t)[..., 0]
@@ -128,7 +135,9 @@ def _linear_and_monte_carlo(si, model, found, samples=800):
     inputs = {name: np.array([TYPICAL[name], 1.3 * TYPICAL[name]]) for name in model.inputs}
     models = models_of(model, {})
     cov = covariance(found, models)
-    value, tangent = split(substitute(model, dual_values(found, models)).function(**inputs), len(found))
+    value, tangent = split(
+        substitute(model, dual_values(found, models)).function(**inputs), len(found)
+    )
     values = value if isinstance(value, tuple) else (value,)
     tangents = tangent if isinstance(tangent, tuple) else (tangent,)
     linear = [np.sqrt(np.einsum("...i,ij,...j->...", t, cov, t)) for t in tangents]
@@ -360,7 +369,11 @@ def test_tables_and_files_carry_the_figures(tmp_path):
     assert cf_xarray
     si = matprops.silicon(models={"mobility": "arora-1982"})
     data = si.table(
-        ["band_gap", "mobility"], T=[300, 350], Nd=[1e15, 1e17], carrier="electron", uncertainty=True
+        ["band_gap", "mobility"],
+        T=[300, 350],
+        Nd=[1e15, 1e17],
+        carrier="electron",
+        uncertainty=True,
     )
     linked = data.cf.get_associated_variable_names("mobility")["ancillary_variables"]
     assert linked == ["mobility_uncertainty", "mobility_model_spread"]

@@ -16,7 +16,9 @@ def test_intrinsic_density_at_300_K_against_misiakos():
     # cm^-3 (seen). Their model carries that statement beside its value ...
     si = matprops.silicon(models={"intrinsic_density": "misiakos-1993"})
     answer = si.intrinsic_density(300, uncertainty=True)
-    stated = [a for a in answer.stated_accuracies if a["model"] == "intrinsic_density/misiakos-1993"]
+    stated = [
+        a for a in answer.stated_accuracies if a["model"] == "intrinsic_density/misiakos-1993"
+    ]
     assert stated and stated[0]["absolute"] == 1e8 and stated[0]["at"] == {"temperature": 300.0}
     assert abs(answer.value.m_as("cm^-3") - 9.7e9) <= 1e8
     # ... and only at that point: no uncertainty propagates to other temperatures (NaN)
