@@ -30,6 +30,7 @@ from .crystal import CrystalMethods
 from .derived import DERIVED
 from .optical import OpticalMethods
 from .recombination import RecombinationMethods
+from .registry import REGISTRY
 from .transport import TransportMethods
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
@@ -118,7 +119,7 @@ class Silicon(
 
     def model(self, name: str) -> Model:
         """The bound :class:`~matprops.catalogue.records.Model` serving a quantity."""
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         if name not in self._models:
             if name in DERIVED:
                 raise UnknownQuantityError(
@@ -147,7 +148,7 @@ class Silicon(
         """
         from .bound import make_kernel
 
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         try:
             key = (name, tuple(sorted(fixed.items())))
             hash(key)
@@ -192,7 +193,7 @@ class Silicon(
     # ------------------------------------------------------------------ provenance
     def provenance(self, name: str) -> dict:
         """Model id, source, DOI, validity, coefficients, release, and overrides."""
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         if name in DERIVED:
             parts, formula = DERIVED[name]
             record = {
@@ -314,9 +315,9 @@ def models(quantity: str | None = None):
 
 def _give_uncertainty():
     """Every public method answers uncertainty=True (see matprops.material.uncertainty)."""
-    from .uncertainty import PUBLIC_METHODS, with_uncertainty
+    from .uncertainty import public_methods, with_uncertainty
 
-    for method_name in PUBLIC_METHODS:
+    for method_name in public_methods():
         setattr(Silicon, method_name, with_uncertainty(getattr(Silicon, method_name)))
 
 

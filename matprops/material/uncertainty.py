@@ -54,48 +54,20 @@ from .propagation import (
     values_for,
 )
 
-__all__ = ["PUBLIC_METHODS", "Uncertain", "with_uncertainty"]
+__all__ = ["KernelUncertain", "Uncertain", "UncertainFields", "public_methods", "with_uncertainty"]
 
 METHODS = ("auto", "linear", "monte-carlo")
 DEFAULT_SAMPLES = 1000
 BUDGET_POINTS = 10_000  # the budget (contributions) is estimated on at most this many points
 
-# the Silicon methods that answer uncertainty=True
-PUBLIC_METHODS = (
-    "band_gap",
-    "densities_of_states",
-    "intrinsic_density",
-    "band_edge_shifts",
-    "gap_narrowing",
-    "effective_intrinsic_density",
-    "dopant_level",
-    "ionisation_energy",
-    "equilibrium",
-    "thermal_velocity",
-    "saturation_velocity",
-    "mobility",
-    "high_field_mobility",
-    "diffusivity",
-    "conductivity",
-    "resistivity",
-    "doping_from_resistivity",
-    "radiative_coefficient",
-    "intrinsic_lifetime",
-    "auger_lifetime",
-    "srh_lifetime",
-    "effective_lifetime",
-    "implied_voltage",
-    "lattice_constant",
-    "molar_mass",
-    "permittivity",
-    "atomic_density",
-    "density",
-    "surface_atom_density",
-    "dangling_bond_density",
-    "absorption",
-    "refractive_index",
-    "free_carrier_absorption",
-)
+
+def public_methods() -> tuple[str, ...]:
+    """The Silicon methods that answer uncertainty=True: every method serving a quantity
+    of the registry."""
+    from .registry import REGISTRY
+
+    return tuple(REGISTRY.methods())
+
 
 # a method that is one bound kernel's value under another name or shape:
 # method -> (kernel quantity, which part of the kernel's tuple, or "sum" of the pair)
@@ -320,39 +292,12 @@ def _parts(result):
 
 
 def used_models(si, name: str, options: Mapping | None = None) -> dict:
-    """(quantity, model id) -> bound model, for every model a method's value depends on."""
-    from .derived import DERIVED
+    """(quantity, model id) -> bound model, for every model a method's value depends on
+    (the quantity registry's declaration: its models and the models it uses)."""
+    from .registry import REGISTRY
 
-    quantity = _KERNEL_OF.get(name, (name,))[0]
-    if name == "auger_lifetime":
-        quantity = "intrinsic_lifetime"
-    if (options or {}).get("conversion") == "standard":  # the standard's 23 degC conversions
-        quantity = {"resistivity": "standard_resistivity"}.get(name, "standard_dopant_density")
-        return models_of(si._models[quantity], {}) if quantity in si._models else {}
-    quantities = list(DERIVED[quantity][0]) if quantity in DERIVED else [quantity]
-    extra = {
-        "high_field_mobility": ("mobility", "saturation_velocity"),
-        "intrinsic_lifetime": _EQUILIBRIUM_PARTS,
-        "auger_lifetime": _EQUILIBRIUM_PARTS,
-        "srh_lifetime": ("thermal_velocity", "band_gap", *_EQUILIBRIUM_PARTS),
-        "effective_lifetime": (
-            "intrinsic_lifetime",
-            "srh_lifetime",
-            "thermal_velocity",
-            "band_gap",
-            *_EQUILIBRIUM_PARTS,
-        ),
-        "implied_voltage": (
-            "intrinsic_lifetime",
-            "srh_lifetime",
-            "thermal_velocity",
-            "band_gap",
-            *_EQUILIBRIUM_PARTS,
-        ),
-        "density": ("molar_mass",),
-        "doping_from_resistivity": (),
-    }.get(name, ())
-    quantities += [q for q in extra if q not in quantities]
+    declared = REGISTRY.for_method(name, options or {})
+    quantities = list(declared.needs) if declared is not None else [name]
     found: dict = {}
     for q in quantities:
         if q in si._models:

@@ -209,6 +209,7 @@ def test_every_quantity_of_the_newest_release_answers(si):
         "densities_of_states": lambda o: si.densities_of_states(300, **o),
         "intrinsic_density": lambda o: si.intrinsic_density(300, **o),
         "lattice_constant": lambda o: si.lattice_constant(300, **o),
+        "thermal_expansion": lambda o: si.thermal_expansion(300, **o),
         "molar_mass": lambda o: si.molar_mass(**o),
         "permittivity": lambda o: si.permittivity(**o),
         "absorption": lambda o: si.absorption(800, 300, **o),

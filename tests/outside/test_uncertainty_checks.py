@@ -93,3 +93,12 @@ def test_standard_conversions_against_their_stated_self_consistency():
             rho.value, 296.15, dopant=dopant, conversion="standard"
         ).m_as("cm^-3")
         assert np.all(np.abs(back / densities - 1) <= bound)
+
+
+def test_thermal_expansion_against_its_stated_deviation():
+    # Okada & Tokumaru 1984, J. Appl. Phys. 56, 314, abstract: the samples' expansion
+    # coefficients lie within +-2e-7 /K of the formula, 120-1500 K (read) -> u = 2e-7/sqrt(3)
+    answer = matprops.silicon().thermal_expansion([300, 1000], uncertainty=True)
+    assert np.allclose(answer.uncertainty.m_as("1/K"), 2e-7 / 3**0.5)
+    # 2.6e-6 /K near room temperature (common practice): within that bound of the value
+    assert abs(answer.value.m_as("1/K")[0] - 2.6e-6) <= 3**0.5 * answer.uncertainty.m_as("1/K")[0]
