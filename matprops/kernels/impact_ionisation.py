@@ -8,8 +8,6 @@ the model file holds one coefficient set per carrier.
 A field of zero gives zero (every form here is an exponential of -b/E).
 """
 
-import math
-
 from ._spec import kernel
 from ._xp import asfloat, errstate, namespace, power, zeros_like
 from .constants import BOLTZMANN_EV
@@ -69,11 +67,11 @@ def chynoweth_phonon_scaled(
     xp = namespace(field, temperature)
     e = asfloat(xp, field)
     t = asfloat(xp, temperature)
-    gamma = math.tanh(phonon_energy / (2.0 * BOLTZMANN_EV * reference_temperature)) / xp.tanh(
+    zero = zeros_like(xp, e + t)
+    gamma = xp.tanh(zero + phonon_energy / (2.0 * BOLTZMANN_EV * reference_temperature)) / xp.tanh(
         phonon_energy / (2.0 * BOLTZMANN_EV * t)
     )
     high = e >= switch_field
-    zero = zeros_like(xp, e)
     a = xp.where(high, zero + high_field_prefactor, zero + low_field_prefactor)
     b = xp.where(high, zero + high_field_constant, zero + low_field_constant)
     with errstate(xp, divide="ignore"):
