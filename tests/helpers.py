@@ -36,3 +36,23 @@ def minimum_ionised_fraction(si, species):
     state = quiet(si.equilibrium, 300, **kwargs)
     ionised = state.ionised_donors if species != "boron" else state.ionised_acceptors
     return float(np.min(ionised.m_as("cm^-3") / dopings))
+
+
+H = 6.62607015e-34  # J s
+C = 2.99792458e10  # cm/s
+K = 1.380649e-23  # J/K
+
+
+def van_roosbroeck_shockley(si, temperature):
+    """B(T) from the band-to-band absorption by the van Roosbroeck-Shockley relation,
+    B ni^2 = integral of 8 pi n^2 nu^2 alpha(nu) exp(-h nu / kT) / c^2 d nu (the route
+    of Trupke et al. 2003 and Nguyen et al. 2014, abstracts read)."""
+    wavelength = np.arange(950.0, 1181.0, 1.0)  # nm: the band edge, inside the model's range
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        alpha = si.absorption(wavelength, temperature).m_as("1/cm")
+        index = si.refractive_index(wavelength, temperature).m
+        ni = si.intrinsic_density(temperature).m_as("cm^-3")
+    nu = C / (wavelength * 1e-7)
+    integrand = 8 * np.pi * index**2 * nu**2 / C**2 * alpha * np.exp(-H * nu / (K * temperature))
+    return -np.trapezoid(integrand, nu) / ni**2

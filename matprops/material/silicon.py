@@ -31,13 +31,19 @@ from .derived import DERIVED
 from .optical import OpticalMethods
 from .recombination import RecombinationMethods
 from .registry import REGISTRY
+from .thermal import ThermalMethods
 from .transport import TransportMethods
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 
 class Silicon(
-    CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods, RecombinationMethods
+    CarrierMethods,
+    CrystalMethods,
+    OpticalMethods,
+    TransportMethods,
+    RecombinationMethods,
+    ThermalMethods,
 ):
     """Crystalline silicon as described by one release of matprops.
 
@@ -313,3 +319,14 @@ def models(quantity: str | None = None):
     if quantity is None:
         return {q: catalog.model_ids(q) for q in catalog.quantities()}
     return catalog.model_ids(quantity)
+
+
+def _give_uncertainty():
+    """Every public method answers uncertainty=True (see matprops.material.uncertainty)."""
+    from .uncertainty import public_methods, with_uncertainty
+
+    for method_name in public_methods():
+        setattr(Silicon, method_name, with_uncertainty(getattr(Silicon, method_name)))
+
+
+_give_uncertainty()

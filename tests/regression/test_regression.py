@@ -606,7 +606,10 @@ DECADES = [1e17, 1e18, 1e19, 1e20]
 
 
 def _kerr_against_richter():
-    kerr, richter = with_model("intrinsic_lifetime", "kerr-2002"), matprops.silicon()
+    # as the note computed it: with release 2026.1's composition (the newest release
+    # carries the lifetimes to other temperatures and gives 0.43 and 0.44)
+    richter = matprops.silicon(release="2026.1")
+    kerr = matprops.silicon(release="2026.1", models={"intrinsic_lifetime": "kerr-2002"})
     return [
         (
             kerr.intrinsic_lifetime(300.0, **d, excess=1e15)
@@ -768,6 +771,82 @@ FIGURES.append(
         _klaassen_r5,
     )
 )
+
+
+def _okuto_at_3e5():
+    okuto = with_model("impact_ionisation", "okuto-1975")
+    default = with_model("impact_ionisation", "vanoverstraeten-1970")
+    electrons = okuto.impact_ionisation("electron", 3e5, 300.0).m_as("1/cm")
+    reference = default.impact_ionisation("electron", 3e5, 300.0).m_as("1/cm")
+    holes = okuto.impact_ionisation("hole", 3e5, 300.0).m_as("1/cm")
+    return [electrons, 100 * (1 - electrons / reference), holes]
+
+
+def _radiative_rise():
+    b240, b300 = (
+        with_model("radiative_coefficient", "trupke-2003-nguyen-2014")
+        .radiative_coefficient([240.0, 300.0])
+        .m_as("cm^3/s")
+    )
+    return [100 * (b240 / b300 - 1), b240]
+
+
+def _radiative_from_absorption():
+    from helpers import van_roosbroeck_shockley
+
+    si = with_model("radiative_coefficient", "trupke-2003-nguyen-2014")
+    v300, v240 = (van_roosbroeck_shockley(si, t) for t in (300.0, 240.0))
+    b240, b300 = si.radiative_coefficient([240.0, 300.0]).m_as("cm^3/s")
+    return [v300, v240, b300, b240, 100 * abs((v240 / v300) / (b240 / b300) - 1)]
+
+
+def _free_particle_at_300():
+    c = default_catalog().model("intrinsic_lifetime", "richter-2012-huldt-1979").coefficients
+    parts = ("constant", "linear", "quadratic")
+    return [sum(c[f"{carrier}_free_{k}"].value for k in parts) for carrier in ("electron", "hole")]
+
+
+def _simulator_conductivity_fit():
+    # the note's own formula, against the handbook values of the outside test
+    # (tests/outside/test_thermal.py: 1.48 and 0.989 W/(cm K))
+    fit = [1 / (0.03 + 1.56e-3 * t + 1.65e-6 * t * t) for t in (300.0, 400.0)]
+    return fit + [100 * (fit[0] / 1.48 - 1), 100 * (fit[1] / 0.989 - 1)]
+
+
+FIGURES += [
+    (
+        "impact_ionisation/okuto-1975.toml",
+        r"At 3e5 V/cm and 300 K: electrons ([\d.e]+) /cm \((\d+) % below vanoverstraeten-1970\), "
+        r"holes ([\d.e]+) /cm",
+        _okuto_at_3e5,
+    ),
+    (
+        "radiative_coefficient/trupke-2003-nguyen-2014.toml",
+        r"From 300 to 240 K, B rises by (\d+) % \(([\d.e-]+) at 240 K",
+        _radiative_rise,
+    ),
+    (
+        "radiative_coefficient/trupke-2003-nguyen-2014.toml",
+        r"gives ([\d.e-]+) at 300 K and ([\d.e-]+) at 240 K \(the table: ([\d.e-]+) and "
+        r"([\d.e-]+)\): the same rise within (\d+) %",
+        _radiative_from_absorption,
+    ),
+    (
+        "intrinsic_lifetime/richter-2012-huldt-1979.toml",
+        r"the free-particle polynomial gives C_n = ([\d.e-]+) and C_p = ([\d.e-]+) cm\^6/s",
+        _free_particle_at_300,
+    ),
+    (
+        "intrinsic_lifetime/richter-2012-huldt-1979.toml",
+        r"the radiative part \((\d+) % larger at 240 K than at 300 K\)",
+        lambda: _radiative_rise()[:1],
+    ),
+    (
+        "thermal_conductivity/glassbrenner-1964.toml",
+        r"uncited\) gives ([\d.]+) at 300 K and ([\d.]+) at 400 K, about (\d+) and (\d+) % above",
+        _simulator_conductivity_fit,
+    ),
+]
 
 
 def _boron_in_2026_1():
