@@ -467,6 +467,11 @@ QUOTED = [
     ),
     (datasets_root() / "releases/2026.1.toml", "{} cm^-3 at 300 K", lambda: (_ni(),)),
     (
+        datasets_root() / "releases/2026.2.toml",
+        "already integrates; {} /K at 300 K)",
+        lambda: (sci(matprops.silicon(release="2026.2").thermal_expansion(300).m_as("1/K")),),
+    ),
+    (
         ROOT / "README.md",
         "si.band_gap(300)                              # {} eV",
         lambda: (_gap("passler-2002"),),
