@@ -41,6 +41,7 @@ import numpy as np
 
 from ..errors import InputError, ValidityWarning
 from ..kernels._blocks import BLOCK, evaluate
+from .composition import input_kinds
 
 __all__ = ["BoundKernel"]
 
@@ -101,6 +102,7 @@ class BoundKernel:
         fixed=None,
         description: str = "",
         returns: str = "",
+        kinds: Mapping[str, tuple[str, str]] | None = None,
     ):
         self._si = si
         self.quantity = quantity
@@ -125,6 +127,10 @@ class BoundKernel:
         self._fixed = dict(fixed or {})
         self._description = description
         self._returns = returns
+        # input -> (short kind, description) of each density: total or ionised dopants,
+        # free carriers, carriers of complete ionisation (the model's fit conventions)
+        self.input_kinds = {name: kinds[name][0] for name in (kinds or {})}
+        self._kind_text = {name: kinds[name][1] for name in (kinds or {})}
         self.__doc__ = self._document()
 
     # ------------------------------------------------------------------ calling
@@ -312,6 +318,8 @@ class BoundKernel:
             record["release"] = self._si.release.id
         if self._fixed:
             record["kernel_options"] = dict(self._fixed)
+        if self.input_kinds:
+            record["input_kinds"] = dict(self._kind_text)
         return record
 
     def _signature(self) -> str:
@@ -337,7 +345,8 @@ class BoundKernel:
             valid = self._validity.get(name)
             span = f"; valid {valid[0]:g}-{valid[1]:g} {unit}" if valid else ""
             optional = " (optional)" if name in self._optional else ""
-            lines.append(f"    {name} : {unit}{span}{optional}")
+            kind = f", {self._kind_text[name]}" if name in self._kind_text else ""
+            lines.append(f"    {name} : {unit}{kind}{span}{optional}")
         for region in self._regions:
             lines.append(f"    validity region: {region}")
         lines += ["", f"Output: {shown}"]
@@ -390,7 +399,10 @@ class BoundKernel:
     def __repr__(self) -> str:
         units = self.output_units
         shown = ", ".join(units) if isinstance(units, tuple) else units
-        inputs = ", ".join(f"{n} [{u}]" for n, u in self.inputs.items())
+        inputs = ", ".join(
+            f"{n} [{u}, {self.input_kinds[n]}]" if n in self.input_kinds else f"{n} [{u}]"
+            for n, u in self.inputs.items()
+        )
         valid = (
             "; ".join(
                 f"{n} {lo:g}-{hi:g} {self.inputs.get(n, '')}".rstrip()
@@ -568,6 +580,7 @@ def _model_kernel(si, name, model, fixed) -> BoundKernel:
         options=_options(model),
         fixed=fixed,
         description=_DESCRIPTIONS.get(name, ""),
+        kinds=input_kinds(name, model),
     )
 
 
@@ -611,8 +624,11 @@ def _effective_intrinsic_density_kernel(si) -> BoundKernel:
         optional=optional,
         description=(
             "ni_eff = ni(T) x ratio x exp((dEc + dEv) / 2kT), composed as "
-            "si.effective_intrinsic_density() does (see its provenance); " + carriers + "."
+            "si.effective_intrinsic_density() does (see its provenance); " + carriers + ". "
+            "In equilibrium n0 p0 = gamma_n gamma_p ni_eff^2 (Fermi-Dirac degeneracy "
+            "factors, 1 with Boltzmann statistics)."
         ),
+        kinds=input_kinds("effective_intrinsic_density"),
     )
 
 
@@ -632,8 +648,8 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
         bound.equilibrium, donor=donor, acceptor=acceptor, fermi_dirac=fermi_dirac
     )
     models = [bound.dos, bound.ni, bound.narrowing]
-    donor_model = bound.ionisation.select(donor)
-    acceptor_model = bound.ionisation.select(acceptor)
+    donor_model = bound.species_level(donor)[0]
+    acceptor_model = bound.species_level(acceptor)[0]
     base = _model_checker(models)
 
     def check(arrays, ranges, strict):
@@ -673,6 +689,7 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
             "fermi_from_intrinsic [eV]; reduced_fermi_level, residual [1]; "
             "temperature [K]"
         ),
+        kinds=input_kinds("equilibrium"),
         description=(
             f"Charge neutrality with {'Fermi-Dirac' if fermi_dirac else 'Boltzmann'}"
             f" statistics, donor {donor}, acceptor {acceptor}: the solver of "

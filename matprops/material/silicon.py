@@ -20,7 +20,14 @@ from collections.abc import Iterable, Mapping
 import numpy as np
 
 from ..catalogue.store import Catalog, Model, default_catalog
-from ..errors import DatasetError, InputError, UnknownQuantityError
+from ..errors import (
+    DatasetError,
+    InputError,
+    UnknownQuantityError,
+    ValidityError,
+    ValidityWarning,
+    warn,
+)
 from ..kernels._blocks import evaluate
 from ..units import check_broadcast, coerce, quantity
 from ..units import name as check_name
@@ -216,6 +223,36 @@ class Silicon(
         if name in self.overridden:
             record["release_choice"] = self.release.models.get(name)
         return record
+
+    def consistency(self):
+        """Whether the models in use are fed what their coefficients were fitted with.
+
+        Returns a :class:`~matprops.material.composition.Consistency` report: its
+        ``mismatches`` (empty for a consistent choice, such as every release's
+        default) list each fit convention of a model in use that the material could not
+        honour (a lifetime parameterisation fitted with another narrowing, ...) with
+        its size at standard points (300 K; 1e15, 1e17, 1e19 cm^-3 of donors and of
+        acceptors); ``applied`` says, per quantity, what the composition carried to
+        honour the conventions (densities fed, the fit's own intrinsic density or
+        densities of states, statistics); ``unverified`` lists conventions not known;
+        ``stand_ins`` the dopant species served by another's coefficient set.
+        Computing model that uses a mismatched composition warns (a ValidityWarning),
+        or raises with ``strict=True``.
+        """
+        report = self.__dict__.get("_consistency")
+        if report is None:
+            from .composition import consistency
+
+            report = self.__dict__["_consistency"] = consistency(self)
+        return report
+
+    def _warn_mismatches(self, quantity: str) -> None:
+        """Warn (raise when strict) for each fit convention of ``quantity``'s model that
+        the material cannot honour (see :meth:`consistency`)."""
+        for mismatch in self.consistency().of(quantity):
+            if self.strict:
+                raise ValidityError(mismatch.message())
+            warn(mismatch.message(), ValidityWarning)
 
     def sources(self, names: Iterable[str] | None = None):
         """Unique (citation key, Source) pairs behind the given quantities (default: all)."""

@@ -367,6 +367,7 @@ SILICON_METHODS = [
     ("kernel", ("quantity",), {}),
     ("cite", (), {"format": "format", "quantities": "quantities"}),
     ("sources", ("quantities",), {}),
+    ("consistency", (), {}),
     ("table", ("quantities",), {"temperature": "temperature", "wavelength": "wavelength"}),
     ("compare", ("quantity",), {"models": "model_ids", "temperature": "temperature"}),
 ]

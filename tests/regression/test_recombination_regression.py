@@ -82,8 +82,27 @@ def test_steady_state_and_implied_voltage(si):
     np.testing.assert_allclose(dn / result.effective_lifetime.m_as("s"), generation, rtol=1e-10)
     n0 = result.equilibrium_electron_density.m_as("cm^-3")
     p0 = result.equilibrium_hole_density.m_as("cm^-3")
-    expected = K_B * 300 * np.log((n0 + dn) * (p0 + dn) / (n0 * p0))
+    # qV = kT ln[n p / (gamma_n gamma_p ni_eff(n, p)^2)]: the plain splitting less the
+    # narrowing the injected carriers add (Schenk's) and the change of the degeneracy
+    # factors gamma = F_1/2(eta)/exp(eta), n = Nc F_1/2(eta)
+    from matprops.kernels.fermi_dirac import fd_half_inverse
+
+    nc, nv = (x.m_as("cm^-3") for x in si.densities_of_states(300))
+    plain = K_B * 300 * np.log((n0 + dn) * (p0 + dn) / (n0 * p0))
+    narrowing = (
+        si.gap_narrowing(300, Nd=[1e15, 1e16], n=n0 + dn, p=p0 + dn)
+        - si.gap_narrowing(300, Nd=[1e15, 1e16], n=n0, p=p0)
+    ).m_as("eV")
+
+    def log_gamma(density, states):
+        return np.log(density / states) - fd_half_inverse(density / states)
+
+    degeneracy = (
+        log_gamma(n0 + dn, nc) + log_gamma(p0 + dn, nv) - log_gamma(n0, nc) - log_gamma(p0, nv)
+    )
+    expected = plain - narrowing - K_B * 300 * degeneracy
     np.testing.assert_allclose(result.implied_voltage.m_as("V"), expected, rtol=1e-9)
+    assert np.all(narrowing > 0)
     # the same point through the lifetime methods
     again = si.effective_lifetime(300, Nd=[1e15, 1e16], excess=dn, defect="Fe_i", density=1e11)
     np.testing.assert_allclose(
