@@ -213,6 +213,19 @@ class Silicon(
                 record["composition"] = note
         else:
             record = self.model(name).provenance()
+        # how the fit conventions of the models behind it were honoured (or not)
+        parts = DERIVED[name][0] if name in DERIVED else (name,)
+        report = self.consistency()
+        applied = [entry for q in parts for entry in report.applied.get(q, ())]
+        if applied:
+            record["conventions_applied"] = applied
+        mismatched = [m.as_dict() for q in parts for m in report.of(q)]
+        if mismatched:
+            record["conventions_mismatched"] = mismatched
+        if name == "doping_from_resistivity":
+            record["conversion_default"] = self.release.defaults.get(
+                "doping_from_resistivity", "physics"
+            )
         record["release"] = self.release.id
         record["release_status"] = self.release.status
         if self.release.final and name not in DERIVED:

@@ -274,3 +274,46 @@ def test_quoted_figures_are_what_the_code_gives(path, template, compute):
     assert expected in _normalise(Path(path).read_text()), (
         f"{Path(path).name} should say: {expected!r}"
     )
+
+
+# ----------------------------------------------------------------- moved from outside/
+# (these compare the code with the numbers its own files hold: regression, not validation)
+
+
+def test_each_lifetime_model_keeps_the_radiative_term_it_was_fitted_with(si):
+    # REGRESSION of the composition (the model files' own coefficients): the two 300 K
+    # values in circulation are not interchangeable (doping-models.md section 6.1):
+    # Richter's B_low = 4.73e-15, Kerr & Cuevas's constant 9.5e-15; a model without one
+    # takes the release's coefficient
+    expected = {
+        "richter-2012": 4.73e-15,
+        "kerr-2002": 9.5e-15,
+        "dziewior-1977": si.radiative_coefficient(300).m_as("cm^3/s"),
+    }
+    for model_id, b in expected.items():
+        model = matprops.silicon(models={"intrinsic_lifetime": model_id}).model(
+            "intrinsic_lifetime"
+        )
+        tau = model(
+            temperature=300.0,
+            equilibrium_electron_density=1e15,
+            equilibrium_hole_density=1e5,
+            excess_density=1e14,
+            part="radiative",
+        )
+        assert 1.0 / (tau * (1e15 + 1e5 + 1e14)) == pytest.approx(b, rel=1e-12)
+        convention = model.conventions["radiative_coefficient"].value
+        assert convention == ("composed" if model_id == "dziewior-1977" else "own")
+
+
+def test_iron_entries_as_recalled(si):
+    # REGRESSION (recalled values, as the catalogue stores them; from memory: Istratov et
+    # al. 1999 review): Fe_i at E_v + 0.38 eV, sigma_n = 5e-14, sigma_p = 7e-17 cm^2;
+    # Rein & Glunz's k = 51 against the lifetime-spectroscopy entry's ratio
+    fe = si.defect("Fe_i")
+    assert (fe.reference, fe.energy) == ("valence", pytest.approx(0.38))
+    assert fe.electron_cross_section(300.0) == pytest.approx(5e-14)
+    assert fe.hole_cross_section(300.0) == pytest.approx(7e-17)
+    assert float(si.defect("iron-interstitial-rein-2005").ratio(300.0)) == pytest.approx(
+        51, abs=0.5
+    )
