@@ -37,6 +37,7 @@ from .crystal import CrystalMethods
 from .derived import DERIVED
 from .optical import OpticalMethods
 from .recombination import RecombinationMethods
+from .registry import REGISTRY
 from .transport import TransportMethods
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
@@ -125,7 +126,7 @@ class Silicon(
 
     def model(self, name: str) -> Model:
         """The bound :class:`~matprops.catalogue.records.Model` serving a quantity."""
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         if name not in self._models:
             if name in DERIVED:
                 raise UnknownQuantityError(
@@ -154,7 +155,7 @@ class Silicon(
         """
         from .bound import make_kernel
 
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         try:
             key = (name, tuple(sorted(fixed.items())))
             hash(key)
@@ -199,7 +200,7 @@ class Silicon(
     # ------------------------------------------------------------------ provenance
     def provenance(self, name: str) -> dict:
         """Model id, source, DOI, validity, coefficients, release, and overrides."""
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         if name in DERIVED:
             parts, formula = DERIVED[name]
             record = {
