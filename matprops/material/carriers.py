@@ -768,16 +768,27 @@ def _effective_intrinsic_density_kernel(si, fixed) -> BoundKernel:
 
 
 def _equilibrium_kernel(si, fixed) -> BoundKernel:
-    unknown = set(fixed) - {"donor", "acceptor", "statistics"}
+    unknown = set(fixed) - {"donor", "acceptor", "statistics", "complete_ionisation"}
     if unknown:
-        raise InputError(min(unknown), "one of donor, acceptor, statistics", fixed[min(unknown)])
+        raise InputError(
+            min(unknown),
+            "one of donor, acceptor, statistics, complete_ionisation",
+            fixed[min(unknown)],
+        )
     bound = si._carriers()
     statistics = fixed.get("statistics") or bound.statistics
     donor = dopant_species(fixed.get("donor", "phosphorus"), "donor", "donor")
     acceptor = dopant_species(fixed.get("acceptor", "boron"), "acceptor", "acceptor")
     fermi_dirac = si._check_statistics(statistics, bound)
+    complete = fixed.get("complete_ionisation", False)
+    if not isinstance(complete, (bool, np.bool_)):
+        raise InputError("complete_ionisation", "True or False", repr(complete))
     function = functools.partial(
-        bound.equilibrium, donor=donor, acceptor=acceptor, fermi_dirac=fermi_dirac
+        bound.equilibrium,
+        donor=donor,
+        acceptor=acceptor,
+        fermi_dirac=fermi_dirac,
+        complete=bool(complete),
     )
     models = [bound.dos, bound.ni, bound.narrowing]
     donor_model = bound.species_level(donor)[0]
@@ -813,6 +824,7 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
             "donor": donor,
             "acceptor": acceptor,
             "statistics": "fermi-dirac" if fermi_dirac else "boltzmann",
+            **({"complete_ionisation": True} if complete else {}),
         },
         kinds=input_kinds("equilibrium"),
         returns=(

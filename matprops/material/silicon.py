@@ -149,7 +149,8 @@ class Silicon(
         ``kernel.derivatives(...)``. ``fixed`` chooses what a quantity needs fixed:
         ``carrier=`` (and ``donor=`` / ``acceptor=`` where the model has one
         coefficient set per dopant) for the transport quantities; ``dopant=`` for
-        ionisation; ``donor=``, ``acceptor=`` and ``statistics=`` for ``equilibrium``
+        ionisation; ``donor=``, ``acceptor=``, ``statistics=`` and ``complete_ionisation=``
+        (every dopant ionised) for ``equilibrium``
         (a callable ``(temperature, donor_density, acceptor_density) -> dict of
         arrays``).
         """

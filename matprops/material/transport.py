@@ -341,8 +341,9 @@ class TransportMethods:
         """Diffusion coefficient of electrons or holes, cm^2/s (Einstein relation).
 
         ``D = mu kT/q x F_1/2(eta) / F_-1/2(eta)``: the Fermi-Dirac factor (> 1 in
-        degenerate silicon) at the equilibrium reduced Fermi level, or at the
-        quasi-Fermi level of the given ``n`` (electrons) or ``p`` (holes).
+        degenerate silicon) at the equilibrium reduced Fermi level (of the free
+        carriers, whatever carriers the mobility's fit took), or at the quasi-Fermi
+        level of the given ``n`` (electrons) or ``p`` (holes).
         ``statistics``: ``"fermi-dirac"``, ``"boltzmann"`` (factor 1) or None (the
         narrowing model's own, as for :meth:`equilibrium`). Other arguments as for
         :meth:`mobility`.
@@ -372,10 +373,19 @@ class TransportMethods:
         factor = 1.0
         if fermi_dirac:
             nc, nv = bound.dos(temperature=t)
+            densities = prepared
+            if n is None and complete_ionisation(model):
+                # the mobility takes the carriers of its fit; the degeneracy of the
+                # Einstein relation is that of the free carriers there are
+                free, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics)
+                densities = {
+                    "electron_density": (free["electron_density"],),
+                    "hole_density": (free["hole_density"],),
+                }
             density, states = (
-                (prepared["electron_density"][0], nc)
+                (densities["electron_density"][0], nc)
                 if carrier == "electron"
-                else (prepared["hole_density"][0], nv)
+                else (densities["hole_density"][0], nv)
             )
             with np.errstate(divide="ignore"):
                 factor = einstein_factor(np.log(density) - np.log(states))
