@@ -41,7 +41,7 @@ import numpy as np
 from ..errors import InputError, ValidityWarning
 from ..kernels._blocks import BLOCK, evaluate
 from ..vocabulary import dopant_species
-from .composition import input_kinds
+from .composition import input_kinds, species_model
 
 __all__ = ["BoundKernel", "make_kernel", "model_checker", "model_kernel", "validity_of"]
 
@@ -492,7 +492,7 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
     if declared is not None and declared.kernel is not None:
         return declared.kernel(si, name, fixed)
     model = si.model(name)
-    chosen = {}
+    chosen, note = {}, ""
     if model.variant_axis == "dopant":
         species = fixed.pop("dopant", None)
         if species is None:
@@ -500,12 +500,14 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
                 "dopant", f"given for {name} (one of {', '.join(model.variants)})", None
             )
         species = dopant_species(species, "dopant")
-        model = model.select(species)
+        model, stand_in = species_model(model, species, si.catalog)
         chosen = {"dopant": species}
+        if stand_in is not None:  # served by another species' set or model: labelled
+            note = f"The dopant {stand_in.describe()}"
     if fixed:
         key = min(fixed)
         raise InputError(key, f"not an option of the {name} kernel", fixed[key])
-    return model_kernel(si, name, model, chosen)
+    return model_kernel(si, name, model, chosen, note)
 
 
 def model_checker(models):
@@ -552,7 +554,7 @@ def _options(model) -> dict:
     return options
 
 
-def model_kernel(si, name, model, fixed) -> BoundKernel:
+def model_kernel(si, name, model, fixed, note: str = "") -> BoundKernel:
     """The bound kernel of a model as it is (its inputs, units, validity, derivatives);
     the public method's units and description come from the quantity's declaration."""
     from .registry import REGISTRY
@@ -588,6 +590,8 @@ def model_kernel(si, name, model, fixed) -> BoundKernel:
         ),
         options=_options(model),
         fixed=fixed,
-        description=declared.kernel_note if declared is not None else "",
+        description=" ".join(
+            part for part in (declared.kernel_note if declared is not None else "", note) if part
+        ),
         kinds=input_kinds(name, model),
     )

@@ -221,8 +221,11 @@ class RecombinationMethods:
         """Radiative recombination coefficient B, cm^3/s (``U = B (n p - n0 p0)``).
 
         The release's model says which quantity it is: ``trupke-2003`` is the
-        coefficient of intrinsic silicon at low injection (see its provenance).
+        coefficient of intrinsic silicon at low injection (see its provenance). A
+        model fitted with another intrinsic density than the release's warns (see
+        :meth:`consistency`).
         """
+        self._warn_mismatches("radiative_coefficient")
         return self._quantity("radiative_coefficient", temperature=temperature)
 
     # ------------------------------------------------------------------ state

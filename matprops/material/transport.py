@@ -59,7 +59,16 @@ _HIGHEST_DENSITY = 1e21  # cm^-3: the top of the bracket for doping from resisti
 def _carrier_kernel(si, name, fixed):
     """The bound kernel of a transport quantity (``carrier=`` required; see
     ``TransportMethods._transport_kernel``)."""
-    return model_kernel(si, name, si._transport_kernel(name, fixed), fixed)
+    model = si._transport_kernel(name, fixed)
+    note = ""
+    if name == "mobility" and model.variant_axis == "dopant":
+        carrier = carrier_name(fixed.get("carrier"))
+        key, default = ("donor", "phosphorus") if carrier == "electron" else ("acceptor", "boron")
+        species = dopant_species(fixed.get(key, default), key, key)
+        stand_in = species_model(si.model("mobility"), species, si.catalog)[1]
+        if stand_in is not None:  # another species' coefficient set: labelled
+            note = f"The dopant {stand_in.describe()}"
+    return model_kernel(si, name, model, fixed, note)
 
 
 def _per_carrier(name, **grid):
@@ -283,6 +292,7 @@ class TransportMethods:
         kV/cm), >= 0. Other arguments as for :meth:`mobility`.
         """
         carrier = carrier_name(carrier)
+        self._warn_mismatches("high_field_mobility")
         model = self.model("high_field_mobility").select(carrier)
         low = self.mobility(
             carrier,
@@ -776,8 +786,8 @@ class TransportMethods:
         ``carrier=`` is required; for ``mobility`` also ``donor=`` / ``acceptor=``
         (defaults phosphorus, boron) where the model has one set per dopant species.
         The callable takes the model's inputs (``si.model(name).inputs``) in internal
-        units; a mobility model takes the dopant densities it declares (see its
-        ``dopant_densities``), nothing is converted.
+        units; a mobility model takes the dopant densities and carriers its fit
+        conventions name (the kernel's ``input_kinds``), nothing is converted.
         """
         fixed = dict(fixed)
         carrier = fixed.pop("carrier", None)

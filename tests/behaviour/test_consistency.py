@@ -164,3 +164,15 @@ def test_degeneracy_factors_make_the_mass_action_law_hold(si):
         assert ratio[0] == pytest.approx(1.0, abs=1e-4) and ratio[2] < 0.5
     boltzmann = si.equilibrium(300, Nd=1e20, statistics="boltzmann")
     assert [g.m for g in boltzmann.degeneracy_factors] == [1.0, 1.0]
+
+
+def test_kernels_serve_stand_in_species_and_say_so(si):
+    ionisation = si.kernel("ionisation", dopant="gallium")
+    energy, share = ionisation(dopant_density=1e16)
+    assert float(energy) == pytest.approx(0.072) and float(share) == 1.0  # sze-2007's level
+    assert "gallium: model sze-2007" in ionisation.__doc__
+    mobility = si.kernel("mobility", carrier="hole", acceptor="gallium")
+    assert "gallium: the boron set" in mobility.__doc__
+    assert mobility(300.0, 0.0, 1e16, 1e4, 1e16) == si.kernel("mobility", carrier="hole")(
+        300.0, 0.0, 1e16, 1e4, 1e16
+    )
