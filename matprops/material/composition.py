@@ -292,6 +292,11 @@ def _report(si, lenient) -> Consistency:
                             else "dopant densities standing for the carriers"
                         )
                     )
+                elif quantity == "radiative_coefficient":
+                    notes.append(
+                        f"{name}: multiplies n p - n0 p0 of the "
+                        + ("free carriers" if value == "free" else "carriers of its fit")
+                    )
                 elif value == "complete-ionisation":
                     also = " (also in the conductivity)" if quantity == "mobility" else ""
                     notes.append(f"{name}: fed the carriers of complete ionisation{also}")

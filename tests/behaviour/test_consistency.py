@@ -27,7 +27,10 @@ def test_a_mixed_choice_lists_its_mismatch_with_sizes_and_warns():
     report = si.consistency()
     assert len(report) == 1
     (mismatch,) = report.of("intrinsic_lifetime")
-    assert (mismatch.model, mismatch.convention) == ("richter-2012", "gap_narrowing")
+    assert (mismatch.model, mismatch.convention) == (
+        si.models["intrinsic_lifetime"],
+        "gap_narrowing",
+    )
     assert set(mismatch.sizes) == {
         f"300 K, {kind}={n:g}" for kind in ("Nd", "Na") for n in (1e15, 1e17, 1e19)
     }
