@@ -311,8 +311,16 @@ class Model:
         function = functools.partial(self.kernel, **own, **chosen)
         return _replace(self, components=MappingProxyType(chosen), function=function)
 
-    def check(self, argument: str, low: float, high: float, strict: bool = False) -> None:
-        """Warn (or raise, if strict) when [low, high] leaves the validity range."""
+    def check(
+        self, argument: str, low: float, high: float, strict: bool = False, report=None
+    ) -> list[str]:
+        """Warn (or raise, if strict) when [low, high] leaves the validity range.
+
+        ``report``, a callable taking the message, replaces the warning (an application
+        that prints its own messages passes one; no warning filter is touched).
+        Returns the messages (this model's and those of the models it is composed of).
+        """
+        messages = []
         rng = self.validity.get(argument)
         if rng is not None and (low < rng.low or high > rng.high):
             consequence = (
@@ -330,31 +338,31 @@ class Model:
                     f"; the model {self.fallback!r} covers a wider range "
                     f"(models={{{self.quantity!r}: {self.fallback!r}}})"
                 )
-            if strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            messages.append(report_violation(message, strict, report))
         for component in self.components.values():
-            component.check(argument, low, high, strict)
+            messages += component.check(argument, low, high, strict, report)
+        return messages
 
     def check_regions(
         self,
         values: Mapping[str, Any],
         strict: bool = False,
         ranges: Mapping[str, tuple[float, float]] | None = None,
-    ) -> None:
+        report=None,
+    ) -> list[str]:
         """Warn (or raise) where inputs leave a validity region of several inputs.
 
         ``values`` maps input names to arrays in kernel units (broadcast together);
         ``ranges``, input -> (min, max) where known, spare a pass over the points when
-        the extremes already show every point inside.
+        the extremes already show every point inside. ``report`` as for :meth:`check`;
+        returns the messages.
         """
+        messages = []
         for region in self.regions:
             message = region.violation(values, f"{self.quantity}/{self.id}", ranges)
-            if message is None:
-                continue
-            if strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            if message is not None:
+                messages.append(report_violation(message, strict, report))
+        return messages
 
     # -- provenance
     def provenance(self) -> dict:
@@ -501,6 +509,19 @@ def _rebind_model(
     if variant is not None:
         model = model.select(variant)
     return model.compose(**components) if components else model
+
+
+def report_violation(message: str, strict: bool = False, report=None) -> str:
+    """Raise :class:`ValidityError` (strict), hand the message to ``report``, or warn
+    (:class:`ValidityWarning`, attributed to the caller outside matprops); returns the
+    message. Never touches the warning filters."""
+    if strict:
+        raise ValidityError(message)
+    if report is not None:
+        report(message)
+    else:
+        warn(message, ValidityWarning)
+    return message
 
 
 def _span(low, high) -> str:

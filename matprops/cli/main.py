@@ -27,7 +27,6 @@ import shlex
 import sys
 import textwrap
 import tomllib
-import warnings
 
 import numpy as np
 
@@ -35,7 +34,6 @@ from ..errors import (
     Error,
     InputError,
     UnitError,
-    ValidityWarning,
 )
 
 __all__ = ["main", "parse_grid"]
@@ -239,7 +237,11 @@ def _silicon(args):
         if not sep:
             raise InputError("--model", "QUANTITY=MODEL_ID", repr(item))
         overrides[quantity.strip()] = model_id.strip()
-    return Silicon(release=args.release, models=overrides, strict=args.strict)
+    si = Silicon(release=args.release, models=overrides, strict=args.strict)
+    # validity messages go straight to stderr (one line each, once): the material
+    # reports them to the command instead of warning, so no warning filter is set
+    si._report = getattr(args, "report", None)
+    return si
 
 
 def _grid(args) -> dict:
@@ -997,17 +999,15 @@ def main(argv=None) -> int:
     args.command_line = _command_line(argv)
     seen = set()
 
-    def show(message, *rest, **kw):
+    def report(message):
         text = _cli_message(str(message))
         if text not in seen:
             seen.add(text)
             print(f"matprops: warning: {text}", file=sys.stderr)
 
+    args.report = report
     try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("always", ValidityWarning)
-            warnings.showwarning = show
-            args.run(args)
+        args.run(args)
         sys.stdout.flush()
     except Error as exc:
         print(f"matprops: error: {_cli_message(str(exc))}", file=sys.stderr)

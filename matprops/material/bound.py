@@ -34,12 +34,11 @@ from __future__ import annotations
 
 import functools
 import inspect
-import warnings
 from collections.abc import Callable, Mapping
 
 import numpy as np
 
-from ..errors import InputError, ValidityWarning
+from ..errors import InputError
 from ..kernels._blocks import BLOCK, evaluate
 
 __all__ = ["BoundKernel"]
@@ -292,15 +291,9 @@ class BoundKernel:
                 ", ".join(f"{n} {a.shape}" for n, a in arrays.items()),
             ) from None
         strict = self._si.strict if strict is None else bool(strict)
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always", ValidityWarning)
-            self._checker(arrays, ranges, strict)
-        messages = []
-        for item in caught:
-            if issubclass(item.category, ValidityWarning):
-                messages.append(str(item.message))
-            warnings.warn_explicit(item.message, item.category, item.filename, item.lineno)
-        return messages
+        # each check warns (or raises) itself and returns its messages: no warning
+        # filter is touched
+        return self._checker(arrays, ranges, strict, self._si._report)
 
     # ------------------------------------------------------------------ description
     @property
@@ -501,15 +494,17 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
 def _model_checker(models, strict_default=None):
     """A checker of the inputs each model takes (ranges, then regions)."""
 
-    def check(arrays, ranges, strict):
+    def check(arrays, ranges, strict, report=None) -> list[str]:
+        messages = []
         for model in models:
             for argument in model.inputs:
                 if argument in ranges and ranges[argument][0] <= ranges[argument][1]:
-                    model.check(argument, *ranges[argument], strict)
+                    messages += model.check(argument, *ranges[argument], strict, report)
             if model.regions:
-                model.check_regions(
-                    {k: arrays[k] for k in model.inputs if k in arrays}, strict, ranges
+                messages += model.check_regions(
+                    {k: arrays[k] for k in model.inputs if k in arrays}, strict, ranges, report
                 )
+        return messages
 
     return check
 
@@ -636,12 +631,13 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
     acceptor_model = bound.ionisation.select(acceptor)
     base = _model_checker(models)
 
-    def check(arrays, ranges, strict):
-        base(arrays, ranges, strict)
+    def check(arrays, ranges, strict, report=None) -> list[str]:
+        messages = base(arrays, ranges, strict, report)
         for model, key in ((donor_model, "donor_density"), (acceptor_model, "acceptor_density")):
             low, high = ranges[key]
             if low <= high:
-                model.check("dopant_density", low, high, strict)
+                messages += model.check("dopant_density", low, high, strict, report)
+        return messages
 
     validity = _validity(models)
     validity.pop("electron_density", None)

@@ -42,9 +42,6 @@ from ..catalogue import defects as defect_catalogue
 from ..errors import (
     InputError,
     UnitError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import implied_voltage as voltage_kernel
 from ..kernels import srh_lifetime as srh
@@ -227,9 +224,9 @@ class RecombinationMethods:
         model = self.model("intrinsic_lifetime")
         for argument, (low, high) in state.ranges.items():
             if low <= high:  # (an empty array has no range)
-                model.check(argument, low, high, self.strict)
+                self._check(model, argument, low, high)
         if model.regions:
-            model.check_regions(state.kernel_inputs(), self.strict)
+            self._check_regions(model, state.kernel_inputs())
         fitted = model.conventions.value("gap_narrowing")
         used = self.models.get("gap_narrowing")
         if not state.given and fitted in self.catalog.model_ids("gap_narrowing") and used != fitted:
@@ -239,9 +236,7 @@ class RecombinationMethods:
                 f"{used}: the minority densities, and the lifetime where dn is not "
                 "far above them, differ from the published model's"
             )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._violation(message)
         return model
 
     def _intrinsic(self, state: _State, part="total", excess=None):
@@ -336,7 +331,7 @@ class RecombinationMethods:
         for carrier in ("electron", "hole"):
             bound = model.select(carrier) if model.variant_axis == "carrier" else model
             if low <= high:
-                bound.check("temperature", low, high, self.strict)
+                self._check(bound, "temperature", low, high)
             arguments = {"temperature": t}
             if "carrier" in bound.inputs:
                 arguments["carrier"] = carrier
@@ -378,9 +373,7 @@ class RecombinationMethods:
                     f"outside the range of its data, {low:g}-{high:g} K; the capture "
                     "parameters are extrapolated"
                 )
-                if self.strict:
-                    raise ValidityError(message)
-                warn(message, ValidityWarning)
+                self._violation(message)
 
     def _capture_times(self, defect, t, density, electron_capture_time):
         """(tau_n0, tau_p0) in s for one defect, and a provenance record."""

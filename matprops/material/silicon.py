@@ -19,6 +19,7 @@ from collections.abc import Iterable, Mapping
 
 import numpy as np
 
+from ..catalogue.records import report_violation
 from ..catalogue.store import Catalog, Model, default_catalog
 from ..errors import DatasetError, InputError, UnknownQuantityError
 from ..kernels._blocks import evaluate
@@ -79,6 +80,10 @@ class Silicon(
             if name not in known:
                 raise UnknownQuantityError(name, known, "in models=")
         self._overrides = overrides
+        # validity policy besides ``strict`` (see _check): a view whose inputs were
+        # checked already skips the checks; ``_report`` replaces the warning
+        self._checked = False
+        self._report = None
         self.overridden = frozenset(
             q for q, m in overrides.items() if self.release.models.get(q) != m
         )
@@ -178,12 +183,53 @@ class Silicon(
         values, ranges = {}, {}
         for argument in model.inputs:
             array, low, high = prepared[argument]
-            model.check(argument, low, high, self.strict)
+            self._check(model, argument, low, high)
             values[argument] = array
             ranges[argument] = (low, high)
         if model.regions:
-            model.check_regions(values, self.strict, ranges)
+            self._check_regions(model, values, ranges)
         return evaluate(model.function or model, values)  # in blocks for large inputs
+
+    # ------------------------------------------------------------------ validity
+    # Every validity check of the material goes through these three: a warning (or a
+    # ValidityError when strict), a message handed to the application's reporter, or
+    # nothing in a view whose inputs were checked already (a table checks its grid's
+    # extremes once and evaluates its blocks with such a view). No warning filter is
+    # ever touched, so another thread's warnings are never lost.
+    def _check(self, model: Model, argument: str, low: float, high: float) -> None:
+        if not self._checked:
+            model.check(argument, low, high, self.strict, self._report)
+
+    def _check_regions(self, model: Model, values, ranges=None) -> None:
+        if not self._checked:
+            model.check_regions(values, self.strict, ranges, self._report)
+
+    def _violation(self, message: str) -> None:
+        """A validity message of the material's own (not of one model's range)."""
+        if not self._checked:
+            report_violation(message, self.strict, self._report)
+
+    def _checked_already(self) -> Silicon:
+        """A view of this material whose methods skip the validity checks: the caller
+        has checked the inputs' ranges already (a table, on its grid's extremes) or
+        crosses them on purpose (the reference grid). Shares the bound models."""
+        view = self.__dict__.get("_checked_view")
+        if view is None:
+            view = object.__new__(type(self))
+            view.__dict__.update(self.__dict__)
+            view.__dict__.pop("_kernel_cache", None)
+            view._checked = True
+            self.__dict__["_checked_view"] = view
+        return view
+
+    def _sibling(self, models: Mapping[str, str]) -> Silicon:
+        """The same release, strictness, catalogue and reporter with other model
+        choices (``models`` are overrides on top of the release's)."""
+        sibling = type(self)(
+            release=self.release.id, models=models, strict=self.strict, catalog=self.catalog.base
+        )
+        sibling._report = self._report
+        return sibling
 
     def _quantity(self, name: str, **arguments):
         result, units = self._evaluate(name, **arguments)

@@ -29,7 +29,6 @@ import inspect
 import itertools
 import json
 import math
-import warnings
 from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 
@@ -39,7 +38,6 @@ from ..errors import (
     InputError,
     UnknownModelError,
     UnknownQuantityError,
-    ValidityWarning,
 )
 from ..units import cf_units, to_magnitude
 from ..units import name as check_name
@@ -813,9 +811,9 @@ def _evaluate(si, entry: Tabulated, grid: _Grid, progress=None, done=0, total=0)
             progress(done + outs[0].size, total)
         return dims, outs, units
     units = _check_extremes(si, entry, grid, dims)  # warns once, or raises if strict
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", ValidityWarning)  # checked on the extremes above
-        outs = _in_blocks(si, entry, values, dims, units, progress, done, total)
+    # the blocks are evaluated by a view that knows the extremes were checked (no
+    # warning filter: another thread's warnings must still arrive)
+    outs = _in_blocks(si._checked_already(), entry, values, dims, units, progress, done, total)
     return dims, outs, units
 
 
@@ -876,21 +874,19 @@ class _BlockFunction:
         self.units = all_units[part]
 
     def __call__(self, *blocks):
-        si = _rebuild(self.recipe)
+        # validity was checked on the grid's extremes before the graph was made: the
+        # worker's view skips the checks (no warning filter is touched)
+        si = _rebuild(self.recipe)._checked_already()
         values = dict(self.scalars)
         values.update(zip(self.dims, blocks, strict=True))
         entry = QUANTITIES[self.quantity]
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", ValidityWarning)  # checked before the graph
-            if math.prod(values[d].size for d in self.dims) <= BLOCK:
-                outs, got = _call_block(si, entry, values, self.dims)
-                out = outs[self.part]
-                return (
-                    out
-                    if got[self.part] == self.units
-                    else _convert(out, got[self.part], self.units)
-                )
-            return _in_blocks(si, entry, values, self.dims, self.all_units)[self.part]
+        if math.prod(values[d].size for d in self.dims) <= BLOCK:
+            outs, got = _call_block(si, entry, values, self.dims)
+            out = outs[self.part]
+            return (
+                out if got[self.part] == self.units else _convert(out, got[self.part], self.units)
+            )
+        return _in_blocks(si, entry, values, self.dims, self.all_units)[self.part]
 
 
 def _chunk_sizes(chunks, dims: list[str], grid: _Grid) -> dict[str, int]:
@@ -1101,12 +1097,7 @@ def compare(
         raise InputError("models", "distinct model ids", repr(ids))
     parts, citations, provenance = [], [], {}
     for model_id in ids:
-        variant = type(si)(
-            release=si.release.id,
-            models={**_overrides(si), quantity: model_id},
-            strict=si.strict,
-            catalog=si.catalog,
-        )
+        variant = si._sibling({**_overrides(si), quantity: model_id})
         data = table(variant, [quantity], chunks=chunks, progress=progress, **axes)
         parts.append(data)
         citations.append(variant.model(quantity).source.citation())
@@ -1128,12 +1119,16 @@ def compare(
         variable.attrs.update(
             {"model": ", ".join(ids), "provenance": json.dumps(provenance, ensure_ascii=False)}
         )
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN points stay NaN
-            high, low = variable.max("model", skipna=True), variable.min("model", skipna=True)
-            spread = high - low
-            scale = abs(variable).mean("model", skipna=True)
-            relative = spread / scale.where(scale != 0)
+        # NaN (a table model without data there) is skipped; a point where every
+        # model is NaN stays NaN (written without nanmax, which warns there)
+        known = variable.notnull()
+        count = known.sum("model")
+        anywhere = count > 0
+        high = variable.fillna(-np.inf).max("model").where(anywhere)
+        low = variable.fillna(np.inf).min("model").where(anywhere)
+        spread = high - low
+        scale = abs(variable).fillna(0.0).sum("model") / count.where(anywhere)
+        relative = spread / scale.where(scale != 0)
         combined[f"{name}_spread"] = spread.assign_attrs(
             {
                 "units": variable.attrs["units"],

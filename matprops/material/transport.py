@@ -30,9 +30,6 @@ import numpy as np
 from ..errors import (
     InputError,
     SolverError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import resistivity as resistivity_kernels
 from ..kernels.constants import BOLTZMANN_EV
@@ -391,7 +388,7 @@ class TransportMethods:
             }
             if check:
                 for name in model.inputs:
-                    model.check(name, *_extremes(values[name])[1:], self.strict)
+                    self._check(model, name, *_extremes(values[name])[1:])
             mobility = model(**{k: values[k] for k in model.inputs})
             density = values["electron_density" if carrier == "electron" else "hole_density"]
             conductivities.append((density, mobility))
@@ -415,10 +412,10 @@ class TransportMethods:
         """The validity checks the equilibrium solver's models make (as in ``_solve``)."""
         _, low, high = prepared["temperature"]
         for name in ("densities_of_states", "intrinsic_density"):
-            self.model(name).check("temperature", low, high, self.strict)
+            self._check(self.model(name), "temperature", low, high)
         for argument in bound.narrowing.inputs:
             if argument in prepared:
-                bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+                self._check(bound.narrowing, argument, *prepared[argument][1:])
         self._check_dopants(prepared, donor, acceptor)
 
     def conductivity(self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron"):
@@ -463,9 +460,7 @@ class TransportMethods:
                 f"{np.count_nonzero(compensated)} point(s) with both Na and Nd > 0 "
                 "are NaN (conversion='physics' handles them)"
             )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._violation(message)
         model = self.model("standard_resistivity")
         out = np.full(t.shape, np.nan)
         for species, where in ((acceptor, (na > 0) & ~compensated), (donor, ~(na > 0))):
@@ -536,7 +531,7 @@ class TransportMethods:
             model = self._mobility_model(carrier, donor, acceptor)
             for name in ("temperature", "donor_density", "acceptor_density"):
                 if name in model.inputs:
-                    model.check(name, *prepared[name][1:], self.strict)
+                    self._check(model, name, *prepared[name][1:])
         return quantity(density.reshape(shape), "cm^-3")
 
     def _lowest_density(self, temperatures, kind, donor, acceptor):
