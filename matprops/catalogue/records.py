@@ -21,8 +21,10 @@ import numpy as np
 
 from ..errors import (
     DatasetError,
+    Error,
     UnknownNameError,
     UnknownVariantError,
+    Unusable,
     ValidityError,
     ValidityWarning,
     warn,
@@ -39,6 +41,10 @@ class CatalogueLike(Protocol):
     def release(self, release_id: str) -> Release: ...
 
     def table(self, name: str) -> Any: ...
+
+    def table_path(self, name: str) -> Path: ...
+
+    def checksums(self) -> dict[str, str]: ...
 
 
 SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi")
@@ -466,7 +472,19 @@ class Model:
             self.sha256,
             dict(self.components),
             self.variant,
+            self._table_digests(),
         )
+
+    def _table_digests(self) -> dict[str, str]:
+        """Table file name -> recorded sha256, for the tables this model reads."""
+        if not self.tables or self.catalogue is None:
+            return {}
+        sums = self.catalogue.checksums()
+        root = self.catalogue.root
+        return {
+            name: sums.get(self.catalogue.table_path(name).relative_to(root).as_posix(), "")
+            for name in self.tables
+        }
 
     def __copy__(self):
         return self  # immutable
@@ -498,17 +516,30 @@ def _rebind_model(
     sha256: str,
     components: Mapping[str, Model],
     variant: str | None = None,
-) -> Model:
-    model = catalog.model(quantity, model_id)
-    if model.sha256 != sha256:
-        raise DatasetError(
-            model.path,
-            f"has sha256 {model.sha256} here but {sha256} where "
-            "the model was pickled: the two processes read different data",
-        )
-    if variant is not None:
-        model = model.select(variant)
-    return model.compose(**components) if components else model
+    tables: Mapping[str, str] | None = None,
+) -> Model | Unusable:
+    """Unpickle a model; never raises (see :class:`matprops.errors.Unusable`): a model
+    whose file or tables differ here, or cannot be read, raises on its first use."""
+    for part in (catalog, *components.values()):
+        if isinstance(part, Unusable):
+            return Unusable(part.error, Model)
+    try:
+        model = catalog.model(quantity, model_id)
+        here = {"model file": (model.path, model.sha256, sha256)}
+        for name, digest in (tables or {}).items():
+            here[name] = (catalog.table_path(name), model._table_digests().get(name), digest)
+        for mine_path, mine, theirs in here.values():
+            if mine != theirs:
+                raise DatasetError(
+                    mine_path,
+                    f"has sha256 {mine or '(none)'} here but {theirs} where the model was "
+                    "pickled: the two processes read different data",
+                )
+        if variant is not None:
+            model = model.select(variant)
+        return model.compose(**components) if components else model
+    except Error as exc:
+        return Unusable(exc, Model)
 
 
 def report_violation(message: str, strict: bool = False, report=None) -> str:
@@ -564,5 +595,10 @@ class Release:
         return self
 
 
-def _reload_release(catalog: CatalogueLike, release_id: str) -> Release:
-    return catalog.release(release_id)
+def _reload_release(catalog: CatalogueLike, release_id: str) -> Release | Unusable:
+    if isinstance(catalog, Unusable):
+        return Unusable(catalog.error, Release)
+    try:
+        return catalog.release(release_id)
+    except Error as exc:  # (never raise while unpickling: see errors.Unusable)
+        return Unusable(exc, Release)

@@ -33,6 +33,7 @@ import os
 import re
 import threading
 import tomllib
+import weakref
 from pathlib import Path
 from types import MappingProxyType
 
@@ -41,10 +42,12 @@ import numpy as np
 from ..errors import (
     ChecksumError,
     DatasetError,
+    Error,
     UnknownModelError,
     UnknownNameError,
     UnknownQuantityError,
     UnknownReleaseError,
+    Unusable,
 )
 from . import finality
 from .fields import read_only
@@ -94,6 +97,36 @@ RELEASE_ID = re.compile(r"^\d{4}\.\d+$")
 # crash the process. Every read of a table goes through this one (process-wide) lock;
 # what is read is then kept in read-only arrays and never changes.
 _TABLE_LOCK = threading.RLock()
+# every catalogue, so that a forked child can give each a fresh lock (see _after_fork)
+_CATALOGUES: weakref.WeakSet = weakref.WeakSet()
+
+
+def _before_fork() -> None:
+    # no thread is inside the netCDF/HDF5 library while the process forks: the child
+    # would inherit that library half-way through a read (and the lock held forever)
+    _TABLE_LOCK.acquire()
+
+
+def _after_fork_in_parent() -> None:
+    _TABLE_LOCK.release()
+
+
+def _after_fork_in_child() -> None:
+    """A forked child has only the forking thread: locks another thread held at the
+    fork would never be released there, so every lock of the catalogue is made anew
+    (what those threads were loading is loaded again, by the child, when needed)."""
+    global _TABLE_LOCK, _DEFAULT_LOCK
+    _TABLE_LOCK = threading.RLock()
+    _DEFAULT_LOCK = threading.Lock()
+    for catalogue in list(_CATALOGUES):
+        catalogue._lock = threading.RLock()
+
+
+os.register_at_fork(
+    before=_before_fork,
+    after_in_parent=_after_fork_in_parent,
+    after_in_child=_after_fork_in_child,
+)
 
 
 def datasets_root() -> Path:
@@ -161,12 +194,13 @@ class Catalog:
         self._views: dict[str, ReleaseCatalogue] = {}
         self._checksums: dict[str, str] | None = None
         self._lock = threading.RLock()  # models are built once, even from many threads
+        _CATALOGUES.add(self)
 
     def __reduce__(self):
         # a catalogue pickles as its root; the default one as "the receiver's default",
         # so a worker on another machine reads its own installed copy
         default = bool(_DEFAULT) and self is _DEFAULT[0]
-        return catalog_at, (None if default else str(self.root),)
+        return _unpickle_catalog, (None if default else str(self.root),)
 
     def __copy__(self):
         return self  # a cache of immutable records: one per root is enough
@@ -453,8 +487,20 @@ class ReleaseCatalogue:
         return self.base.for_release(release)
 
 
-def _release_view(base: Catalog, release_id: str) -> Catalog | ReleaseCatalogue:
-    return base.for_release(base.release(release_id))
+def _release_view(base: Catalog, release_id: str) -> Catalog | ReleaseCatalogue | Unusable:
+    if isinstance(base, Unusable):
+        return base
+    try:
+        return base.for_release(base.release(release_id))
+    except Error as exc:  # (never raise while unpickling: see errors.Unusable)
+        return Unusable(exc, ReleaseCatalogue)
+
+
+def _unpickle_catalog(root: str | None) -> Catalog | Unusable:
+    try:
+        return catalog_at(root)
+    except Error as exc:  # e.g. MATPROPS_DATASETS names no folder in this process
+        return Unusable(exc, Catalog)
 
 
 def _parse_toml(path: Path, raw: bytes) -> dict:

@@ -482,7 +482,15 @@ class BoundKernel:
 
 
 def _rebuild(si, quantity, fixed):
-    return si.kernel(quantity, **fixed)
+    """Unpickle a kernel; never raises (see :class:`matprops.errors.Unusable`)."""
+    from ..errors import Error, Unusable
+
+    if isinstance(si, Unusable):
+        return Unusable(si.error, BoundKernel)
+    try:
+        return si.kernel(quantity, **fixed)
+    except Error as exc:
+        return Unusable(exc, BoundKernel)
 
 
 def _to_numpy(value):

@@ -21,7 +21,7 @@ import numpy as np
 
 from ..catalogue.records import report_violation
 from ..catalogue.store import Catalog, Model, default_catalog
-from ..errors import DatasetError, InputError, UnknownQuantityError
+from ..errors import DatasetError, Error, InputError, UnknownQuantityError, Unusable
 from ..kernels._blocks import evaluate
 from ..units import check_broadcast, coerce, quantity
 from ..units import name as check_name
@@ -93,10 +93,47 @@ class Silicon(
             self._bind(name, choice)
 
     def __reduce__(self):
-        # pickled by release, overrides, strict flag and catalogue, re-bound on load;
-        # the model files' hashes travel along so that both sides use the same numbers
-        hashes = {q: m.sha256 for q, m in self._models.items()}
-        return _restore, (self.catalog, self.release.id, self._overrides, self.strict, hashes)
+        # pickled by release, overrides, strict flag and datasets folder (None: the
+        # receiver's installed data), re-bound on load; the digests of every data file
+        # the material reads travel along, so that both sides use the same numbers
+        base = self.catalog.base
+        root = None if base is default_catalog() else str(base.root)
+        return _restore, (
+            root,
+            self.release.id,
+            self._overrides,
+            self.strict,
+            self._data_digests(),
+        )
+
+    def _data_digests(self) -> dict[str, str]:
+        """Relative path -> recorded sha256 of every data file this material's numbers
+        are read from: the release file, the model file of every bound model (and of the
+        models they are composed of), the tables those read, every defect file of the
+        catalogue and the thermal-velocity model each defect names. Every file is
+        verified against the checksum list when read, so equal digests mean equal data."""
+        digests = self.__dict__.get("_digests")
+        if digests is None:
+            digests = _data_digests(self)
+            self.__dict__["_digests"] = digests
+        return digests
+
+    def _digest_mismatch(self, expected: Mapping[str, str]) -> DatasetError | None:
+        """The first data file whose digest here differs from ``expected`` (those of the
+        process that pickled the material or made the lazy table), as an error."""
+        here = self._data_digests()
+        root = self.catalog.base.root
+        for path in sorted(set(here) | set(expected)):
+            mine, theirs = here.get(path), expected.get(path)
+            if mine != theirs:
+                return DatasetError(
+                    root / path,
+                    f"has sha256 {mine or '(no such file)'} here but "
+                    f"{theirs or '(no such file)'} where the material was pickled (or the "
+                    "lazy table made): the two processes read different data; give the "
+                    "workers the same datasets folder and release",
+                )
+        return None
 
     def _bind(self, name: str, choice: Mapping[str, str], chain=()) -> Model:
         if name in self._models:
@@ -325,17 +362,48 @@ class Silicon(
         )
 
 
-def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
-    si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog)
-    for name, model in si._models.items():
-        if model.sha256 != hashes.get(name):
-            raise DatasetError(
-                model.path,
-                f"has sha256 {model.sha256} here but "
-                f"{hashes.get(name)} where the material was pickled: "
-                "the two processes read different data",
-            )
-    return si
+def _restore(root, release, overrides, strict, digests) -> Silicon | Unusable:
+    """Unpickle a material; never raises (see :class:`matprops.errors.Unusable`): a
+    material whose data differ here, or cannot be read, raises on its first use."""
+    from ..catalogue.store import catalog_at
+
+    try:
+        si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog_at(root))
+        mismatch = si._digest_mismatch(digests)
+    except Error as exc:
+        return Unusable(exc, Silicon)
+    return si if mismatch is None else Unusable(mismatch, Silicon)
+
+
+def _data_digests(si: Silicon) -> dict[str, str]:
+    from ..catalogue import defects
+
+    files = {si.release.path}
+    seen = set()
+
+    def walk(model):
+        if id(model) in seen:
+            return
+        seen.add(id(model))
+        files.add(model.path)
+        for name in model.tables:
+            files.add(model.catalogue.table_path(name))
+        for component in model.components.values():
+            walk(component)
+
+    for model in si._models.values():
+        walk(model)
+    for entry in defects.describe(si.catalog):
+        files.add(entry.path)
+        if entry.thermal_velocity:
+            files.add(si.catalog.model("thermal_velocity", entry.thermal_velocity).path)
+    base = si.catalog.base
+    return {
+        path.relative_to(base.root).as_posix(): base.checksums().get(
+            path.relative_to(base.root).as_posix(), ""
+        )
+        for path in files
+    }
 
 
 def silicon(

@@ -865,18 +865,35 @@ def _recipe(si):
     return (type(si), root, si.release.id, overrides, si.strict)
 
 
-class _BlockFunction:
-    """Picklable block evaluator for dask: one output part of one quantity."""
+@functools.lru_cache(maxsize=8)
+def _verified(recipe, digests):
+    """The material of a recipe, once its data files were found to have the digests
+    of the process that made the lazy table (a DatasetError, raised in the task and
+    sent back to the client, when they differ)."""
+    si = _rebuild(recipe)
+    mismatch = si._digest_mismatch(dict(digests))
+    if mismatch is not None:
+        raise mismatch
+    return si
 
-    def __init__(self, recipe, quantity, dims, scalars, part, all_units):
+
+class _BlockFunction:
+    """Picklable block evaluator for dask: one output part of one quantity.
+
+    It carries the recipe of the material and the digests of every data file the
+    material reads, and checks them on its first call in a worker (never while being
+    unpickled: an error there would hang the client)."""
+
+    def __init__(self, recipe, quantity, dims, scalars, part, all_units, digests=()):
         self.recipe, self.quantity, self.dims = recipe, quantity, dims
         self.scalars, self.part, self.all_units = scalars, part, all_units
         self.units = all_units[part]
+        self.digests = digests
 
     def __call__(self, *blocks):
         # validity was checked on the grid's extremes before the graph was made: the
         # worker's view skips the checks (no warning filter is touched)
-        si = _rebuild(self.recipe)._checked_already()
+        si = _verified(self.recipe, self.digests)._checked_already()
         values = dict(self.scalars)
         values.update(zip(self.dims, blocks, strict=True))
         entry = QUANTITIES[self.quantity]
@@ -919,10 +936,11 @@ def _evaluate_lazy(si, entry: Tabulated, grid: _Grid, chunks):
     for d, letter in zip(dims, letters, strict=True):
         arguments += [da.from_array(grid.values[d], chunks=sizes[d]), letter]
     recipe = _recipe(si)
+    digests = tuple(sorted(si._data_digests().items()))
     outs = []
-    token = _grid_token(grid, (recipe, sorted(sizes.items())))
+    token = _grid_token(grid, (recipe, digests, sorted(sizes.items())))
     for part in range(len(units)):
-        function = _BlockFunction(recipe, entry.name, dims, scalars, part, units)
+        function = _BlockFunction(recipe, entry.name, dims, scalars, part, units, digests)
         outs.append(
             da.blockwise(
                 function,
