@@ -337,7 +337,9 @@ class Silicon(
 
         Axes by name or alias (``T``, ``Na``, ``Nd``, ``excess``, ``n``, ``p``,
         ``wavelength``, ``carrier``, ``plane``) and ``chunks=`` for a lazy dask-backed
-        Dataset; see :func:`matprops.tables.table`.
+        Dataset; a grid of more than ``max_values`` values (1e8 by default, 0.8 GB;
+        ``None`` for no limit) is an InputError before anything is allocated; see
+        :func:`matprops.tables.table`.
         """
         from .tables import table
 

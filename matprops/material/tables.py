@@ -57,6 +57,12 @@ __all__ = [
 
 BLOCK = 1 << 18  # points per evaluation block (~2 MB per float64 temporary)
 
+#: Most values (grid points x outputs, over every quantity) a table evaluates in memory
+#: unless told otherwise (``max_values=``; ``--allow-large`` on the command line): 1e8
+#: float64 values are 0.8 GB. A lazy table (``chunks=``) is not held in memory and has
+#: no such limit.
+MAX_VALUES = 10**8
+
 
 # --------------------------------------------------------------------------- axes
 
@@ -975,6 +981,7 @@ def table(
     *,
     chunks=None,
     progress: Callable[[int, int], None] | None = None,
+    max_values: int | None = MAX_VALUES,
     **axes,
 ):
     """Evaluate quantities of ``si`` on a grid -> :class:`xarray.Dataset`.
@@ -995,6 +1002,16 @@ def table(
         checked now, on the grid's extremes; values are computed by dask).
     progress : callable(done_points, total_points), optional
         Called as blocks of a large grid are evaluated (the command line draws a bar).
+    max_values : int or None
+        Most values (grid points times outputs, summed over the quantities) evaluated
+        in memory, :data:`MAX_VALUES` (1e8, 0.8 GB) by default; ``None`` for no limit.
+        A lazy table (``chunks=``) is not held in memory and is not limited.
+
+    Raises
+    ------
+    matprops.InputError
+        For a grid larger than ``max_values`` (before anything is allocated: the size is
+        the product of the axes' lengths), naming its size and how to go beyond it.
 
     Returns
     -------
@@ -1013,6 +1030,8 @@ def table(
 
     grid = _Grid(axes)
     entries = _select(si, grid, quantities)
+    eager = [e for e in entries if chunks is None or not grid.dims_of(e)]
+    check_size(grid, eager, max_values)
     total = sum(grid.size_of(e) for e in entries)
     variables = {}  # the Dataset is built once at the end: each __setitem__ is a merge
     done = 0
@@ -1058,6 +1077,30 @@ def table(
     return data
 
 
+def values_in(grid: _Grid, entries, copies: int = 1) -> int:
+    """How many values a table of these entries holds (grid points x outputs)."""
+    return copies * sum(grid.size_of(e) * len(e.outputs) for e in entries)
+
+
+def check_size(grid: _Grid, entries, max_values: int | None, copies: int = 1) -> None:
+    """An InputError for a table of more than ``max_values`` values, before any work."""
+    if max_values is None:
+        return
+    if isinstance(max_values, bool) or not isinstance(max_values, (int, np.integer)):
+        raise InputError("max_values", "a positive integer or None", repr(max_values))
+    count = values_in(grid, entries, copies)
+    if count <= max_values:
+        return
+    axes = " x ".join(f"{grid.values[d].size} {d}" for d in grid.dims) or "scalars"
+    raise InputError(
+        "grid",
+        f"at most {max_values:.3g} values in memory (max_values=None, or --allow-large on "
+        "the command line, goes beyond; chunks= makes a lazy table)",
+        f"{count:.3g} values ({axes}, {len(entries)} quantit{'y' if len(entries) == 1 else 'ies'}"
+        f"{f', {copies} models' if copies > 1 else ''}; {8 * count / 1e9:.3g} GB)",
+    )
+
+
 def _provenance_json(si, name: str) -> str:
     try:
         record = si.provenance(name)
@@ -1078,7 +1121,14 @@ def _overrides(si) -> dict[str, str]:
 
 
 def compare(
-    si, quantity: str, models: Iterable[str] | None = None, *, chunks=None, progress=None, **axes
+    si,
+    quantity: str,
+    models: Iterable[str] | None = None,
+    *,
+    chunks=None,
+    progress=None,
+    max_values: int | None = MAX_VALUES,
+    **axes,
 ):
     """Evaluate several models of one quantity on the same grid.
 
@@ -1087,7 +1137,8 @@ def compare(
     si : matprops.Silicon (its release, other model choices and strictness are kept)
     quantity : a quantity with model files (``matprops.models()`` lists them)
     models : model ids (default: every model of the quantity)
-    **axes, chunks, progress : as for :func:`table`
+    **axes, chunks, progress, max_values : as for :func:`table` (the values of every
+        model's table count towards ``max_values``)
 
     Returns
     -------
@@ -1113,10 +1164,13 @@ def compare(
             raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
     if len(set(ids)) != len(ids):
         raise InputError("models", "distinct model ids", repr(ids))
+    if chunks is None:  # every model's table, before any is evaluated
+        grid = _Grid(axes)
+        check_size(grid, [QUANTITIES[quantity]], max_values, copies=len(ids))
     parts, citations, provenance = [], [], {}
     for model_id in ids:
         variant = si._sibling({**_overrides(si), quantity: model_id})
-        data = table(variant, [quantity], chunks=chunks, progress=progress, **axes)
+        data = table(variant, [quantity], chunks=chunks, progress=progress, max_values=None, **axes)
         parts.append(data)
         citations.append(variant.model(quantity).source.citation())
         provenance[model_id] = variant.provenance(quantity)

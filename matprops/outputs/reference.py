@@ -39,6 +39,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ..catalogue.files import interruptible
 from ..catalogue.store import (
     Catalog,
     _atomic_write_text,
@@ -831,6 +832,11 @@ def main(argv=None) -> int:
     parser.add_argument("action", choices=["regenerate", "check", "freeze"])
     parser.add_argument("release")
     args = parser.parse_args(argv)
+    with interruptible("python -m matprops.outputs.reference"):  # no temporary left behind
+        return _run(args)
+
+
+def _run(args) -> int:
     try:
         if args.action == "regenerate":
             print(f"wrote {regenerate(args.release)} (review the diff before committing)")
