@@ -532,14 +532,7 @@ def _provenance_text(record: dict, indent: str = "") -> list[str]:
     lines.append(_wrap(record.get("name", ""), indent + "  "))
     lines.append(_wrap(f"source: {record.get('citation', '?')}", indent + "  "))
     for extra in record.get("additional_sources", []):
-        authors = ", ".join(extra["authors"][:3]) + (" et al." if len(extra["authors"]) > 3 else "")
-        lines.append(
-            _wrap(
-                f"also: {authors} ({extra['year']}), {extra['journal']} "
-                f"{extra['volume']}, {extra['pages']}, doi:{extra['doi']}",
-                indent + "  ",
-            )
-        )
+        lines.append(_wrap(f"also: {_source_text(extra)}", indent + "  "))
     validity = record.get("validity") or {}
     if validity:
         lines.append(
@@ -568,6 +561,26 @@ def _provenance_text(record: dict, indent: str = "") -> list[str]:
     for part in record.get("components", {}).values():
         lines += _provenance_text(part, indent + "  ")
     return lines
+
+
+def _source_text(source: dict) -> str:
+    """One line for a source record of any type (an article: journal, volume, pages; a
+    book: edition, publisher, address, pages), as ``Source.as_dict`` gives it."""
+    names = list(source.get("authors", []))
+    authors = ", ".join(names[:3]) + (" et al." if len(names) > 3 else "")
+    head = f"{authors} ({source.get('year', '?')})"
+    if source.get("type") == "book":
+        edition = f"{source['edition']} edition" if source.get("edition") else ""
+        place = ", ".join(p for p in (edition, source.get("publisher"), source.get("address")) if p)
+        text = f"{head}, {source.get('title', '')}" + (f" ({place})" if place else "")
+        if source.get("pages"):
+            text += f", pp. {source['pages']}"
+    else:
+        parts = [p for p in (source.get("journal"), source.get("volume")) if p]
+        text = f"{head}, {' '.join(parts)}" + (
+            f", {source['pages']}" if source.get("pages") else ""
+        )
+    return text + (f", doi:{source['doi']}" if source.get("doi") else "")
 
 
 def _cmd_provenance(args):

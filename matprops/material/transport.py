@@ -596,11 +596,15 @@ class TransportMethods:
         )
         if not converged.all():
             bad = np.flatnonzero(~converged)
-            raise SolverError(
-                f"doping_from_resistivity: {bad.size} point(s) did not "
-                f"converge, e.g. #{bad[0]}: {target[bad[0]]:g} ohm*cm at "
-                f"{temperatures[bad[0]]:g} K"
+            shown = "; ".join(
+                f"#{i} ({target[i]:g} ohm*cm at {temperatures[i]:g} K, {species})" for i in bad[:5]
             )
+            more = f"; and {bad.size - 5} more" if bad.size > 5 else ""
+            error = SolverError(
+                f"doping_from_resistivity: {bad.size} point(s) did not converge: {shown}{more}"
+            )
+            error.points, error.count = bad[:5].tolist(), int(bad.size)
+            raise error
         return np.exp(log_n)
 
     # ------------------------------------------------------------------ kernels
