@@ -60,6 +60,7 @@ SCRIPT = textwrap.dedent("""
 """)
 
 
+@pytest.mark.slow  # ten fork pools beside two loading threads: ~10 s
 @pytest.mark.skipif(sys.platform == "win32", reason="fork is POSIX only")
 def test_fork_pools_started_while_threads_load_tables_do_not_hang():
     run = subprocess.run(

@@ -88,6 +88,7 @@ def test_every_out_of_range_call_warns_while_other_threads_build_tables():
     assert warnings.filters == filters and warnings.showwarning is show
 
 
+@pytest.mark.slow  # three lazy tables of 1.2e6 points on dask's threads: ~9 s
 @pytest.mark.filterwarnings("error::matprops.errors.ValidityWarning")
 def test_warnings_from_other_threads_arrive_while_lazy_tables_are_computed():
     # four callers, each in its own thread, while dask's threads compute lazy tables

@@ -21,12 +21,12 @@ import sys
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 import matprops
 from matprops.catalogue import store
 from matprops.catalogue.store import Catalog, datasets_root
-
-pytestmark = pytest.mark.slow  # process pools and a cluster: ~20 s together
 
 CHANGES = {
     # what is changed -> (file named in the error, the call that reads it)
@@ -82,6 +82,7 @@ def _calls(si):
     ]
 
 
+@pytest.mark.slow  # a process pool per start method: ~5 s each
 @pytest.mark.parametrize(
     "method",
     [
@@ -109,6 +110,7 @@ def test_a_pool_worker_with_other_data_refuses_with_a_clear_error(materials, met
         pool.join()
 
 
+@pytest.mark.slow  # a two-worker cluster: ~13 s
 def test_a_dask_cluster_with_other_data_refuses_materials_and_lazy_tables(materials):
     from distributed import Client, LocalCluster
 
@@ -173,3 +175,26 @@ def test_same_data_in_a_worker_gives_the_same_numbers_and_no_error(spawn_pool, s
     )
     expected = si.srh_lifetime("Fe_i", 300.0, Na=1e16, excess=1e14, density=1e11)
     assert pending.get(timeout=60) == expected
+
+
+@settings(deadline=None, max_examples=40)
+@given(st.data())
+def test_any_differing_file_is_named(data):
+    # whichever file of the material differs (changed, missing on one side, extra on
+    # the other), the error names it
+    si = matprops.silicon()
+    digests = si._data_digests()
+    assert si._digest_mismatch(digests) is None
+    path = data.draw(st.sampled_from(sorted(digests)))
+    change = data.draw(st.sampled_from(["changed", "missing here", "missing there"]))
+    expected = dict(digests)
+    if change == "changed":
+        expected[path] = "f" * 64
+    elif change == "missing there":
+        del expected[path]
+    else:
+        path = "defects/a-defect-only-the-sender-has.toml"
+        expected[path] = "e" * 64
+    error = si._digest_mismatch(expected)
+    assert isinstance(error, matprops.DatasetError) and path in str(error)
+    assert "read different data" in str(error)
