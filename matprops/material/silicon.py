@@ -31,13 +31,20 @@ from .crystal import CrystalMethods
 from .derived import DERIVED
 from .optical import OpticalMethods
 from .recombination import RecombinationMethods
+from .registry import REGISTRY
+from .thermal import ThermalMethods
 from .transport import TransportMethods
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 
 class Silicon(
-    CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods, RecombinationMethods
+    CarrierMethods,
+    CrystalMethods,
+    OpticalMethods,
+    TransportMethods,
+    RecombinationMethods,
+    ThermalMethods,
 ):
     """Crystalline silicon as described by one release of matprops.
 
@@ -57,6 +64,11 @@ class Silicon(
     quantities (``matprops.Q_(25, "degC")``); arrays broadcast; a scalar input
     gives a scalar output. Outputs are pint quantities.
     """
+
+    # validity policy besides ``strict`` (see _check); class defaults, so that copies
+    # made without __init__ (propagation.changed_material) have them too
+    _checked = False  # a view whose inputs were checked already skips the checks
+    _report = None  # a callable taking each validity message instead of a warning
 
     def __init__(
         self,
@@ -80,10 +92,6 @@ class Silicon(
             if name not in known:
                 raise UnknownQuantityError(name, known, "in models=")
         self._overrides = overrides
-        # validity policy besides ``strict`` (see _check): a view whose inputs were
-        # checked already skips the checks; ``_report`` replaces the warning
-        self._checked = False
-        self._report = None
         self.overridden = frozenset(
             q for q, m in overrides.items() if self.release.models.get(q) != m
         )
@@ -160,7 +168,7 @@ class Silicon(
 
     def model(self, name: str) -> Model:
         """The bound :class:`~matprops.catalogue.records.Model` serving a quantity."""
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         if name not in self._models:
             if name in DERIVED:
                 raise UnknownQuantityError(
@@ -189,7 +197,7 @@ class Silicon(
         """
         from .bound import make_kernel
 
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         try:
             key = (name, tuple(sorted(fixed.items())))
             hash(key)
@@ -275,7 +283,7 @@ class Silicon(
     # ------------------------------------------------------------------ provenance
     def provenance(self, name: str) -> dict:
         """Model id, source, DOI, validity, coefficients, release, and overrides."""
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         if name in DERIVED:
             parts, formula = DERIVED[name]
             record = {
@@ -426,3 +434,14 @@ def models(quantity: str | None = None):
     if quantity is None:
         return {q: catalog.model_ids(q) for q in catalog.quantities()}
     return catalog.model_ids(quantity)
+
+
+def _give_uncertainty():
+    """Every public method answers uncertainty=True (see matprops.material.uncertainty)."""
+    from .uncertainty import public_methods, with_uncertainty
+
+    for method_name in public_methods():
+        setattr(Silicon, method_name, with_uncertainty(getattr(Silicon, method_name)))
+
+
+_give_uncertainty()

@@ -77,6 +77,7 @@ def test_an_empty_temperature_array_gives_an_empty_refractive_index(model_id):
     assert si.refractive_index(800.0, []).shape == (0,)
 
 
+@pytest.mark.filterwarnings("ignore::matprops.errors.ValidityWarning")  # (shapes only)
 @pytest.mark.parametrize("name", sorted(QUANTITIES))
 def test_every_tabulated_method_takes_an_empty_array_for_each_input(name):
     from matprops.material.tables import AXES, available

@@ -135,7 +135,8 @@ def test_a_dask_cluster_with_other_data_refuses_materials_and_lazy_tables(materi
                 future = client.submit(function, *args, pure=False, **kwargs)
                 with pytest.raises(matprops.DatasetError, match=CHANGES[what]):
                     future.result(timeout=60)
-            future = client.compute(lazy[what].absorption_coefficient.data)
+            variable = next(iter(lazy[what].data_vars.values()))
+            future = client.compute(variable.data)
             with pytest.raises(matprops.DatasetError, match=CHANGES[what]):
                 future.result(timeout=60)
 
