@@ -525,7 +525,7 @@ def _record_seal(release_id: str, digest: str) -> Path:
     anchor = "FINAL_SEALS: Mapping[str, str] = {\n"
     closing = text.index("}\n", text.index(anchor))
     line = f'    "{release_id}": "{digest}",\n'
-    path.write_text(text[:closing] + line + text[closing:])
+    _atomic_write_text(path, text[:closing] + line + text[closing:])
     finality.FINAL_SEALS = {**finality.FINAL_SEALS, release_id: digest}
     return path
 
