@@ -26,9 +26,6 @@ import numpy as np
 
 from ..errors import (
     InputError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import equilibrium as equilibrium_kernel
 from ..kernels._blocks import evaluate
@@ -398,9 +395,7 @@ class CarrierMethods:
                 f"fitted with {bound.statistics} statistics; combined with "
                 f"{statistics} statistics it counts degeneracy twice"
             )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._violation(message)
         return statistics == "fermi-dirac"
 
     def _check_narrowing(self, prepared, bound: _Bound):
@@ -409,17 +404,17 @@ class CarrierMethods:
         for argument in bound.narrowing.inputs:
             if argument in prepared:
                 array, low, high = prepared[argument]
-                bound.narrowing.check(argument, low, high, self.strict)
+                self._check(bound.narrowing, argument, low, high)
                 values[argument], ranges[argument] = array, (low, high)
         if bound.narrowing.regions and values:
-            bound.narrowing.check_regions(values, self.strict, ranges)
+            self._check_regions(bound.narrowing, values, ranges)
 
     def _check_dopants(self, prepared, donor, acceptor):
         """Validity of the ionisation models for the dopant densities given."""
         bound = self._carriers()
         for species, key in ((donor, "donor_density"), (acceptor, "acceptor_density")):
             _, low, high = prepared[key]
-            bound.species_level(species)[0].check("dopant_density", low, high, self.strict)
+            self._check(bound.species_level(species)[0], "dopant_density", low, high)
 
     def _solve(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False):
         donor = dopant_species(donor, "donor", "donor")
@@ -429,7 +424,7 @@ class CarrierMethods:
         fermi_dirac = self._check_statistics(statistics, bound)
         t, low, high = prepared["temperature"]
         for quantity_name in ("densities_of_states", "intrinsic_density"):
-            self.model(quantity_name).check("temperature", low, high, self.strict)
+            self._check(self.model(quantity_name), "temperature", low, high)
         self._check_narrowing(prepared, bound)
         self._check_dopants(prepared, donor, acceptor)
         result = bound.equilibrium(
@@ -554,9 +549,7 @@ class CarrierMethods:
             result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
             n, p = result["electron_density"], result["hole_density"]
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
-        self.model("intrinsic_density").check(
-            "temperature", *prepared["temperature"][1:], self.strict
-        )
+        self._check(self.model("intrinsic_density"), "temperature", *prepared["temperature"][1:])
         self._check_narrowing(prepared, bound)
         arrays = {k: v[0] for k, v in prepared.items()}
         arrays.setdefault("donor_density", 0.0)
@@ -585,7 +578,7 @@ class CarrierMethods:
         species = dopant_species(dopant, "dopant")
         model, _ = species_model(self.model("ionisation"), species, self.catalog)
         array, low, high = coerce(N, "N")
-        model.check("dopant_density", low, high, self.strict)
+        self._check(model, "dopant_density", low, high)
         energy, share = model(dopant_density=array)
         return quantity(np.asarray(energy, float), "eV"), quantity(
             np.asarray(share, float), "dimensionless"
@@ -795,12 +788,13 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
     acceptor_model = bound.species_level(acceptor)[0]
     base = model_checker(models)
 
-    def check(arrays, ranges, strict):
-        base(arrays, ranges, strict)
+    def check(arrays, ranges, strict, report=None) -> list[str]:
+        messages = base(arrays, ranges, strict, report)
         for model, key in ((donor_model, "donor_density"), (acceptor_model, "acceptor_density")):
             low, high = ranges[key]
             if low <= high:
-                model.check("dopant_density", low, high, strict)
+                messages += model.check("dopant_density", low, high, strict, report)
+        return messages
 
     validity = validity_of(models)
     validity.pop("electron_density", None)

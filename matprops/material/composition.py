@@ -172,18 +172,14 @@ def _quiet(function, *args, **kwargs):
 
 
 def _with(si, **models):
-    """The same material with other models for some quantities, not strict (the sizes
-    of a report are evaluated at standard points whatever the validity ranges say)."""
+    """The same material with other models for some quantities, neither strict nor
+    reporting to the caller's collector (the sizes of a report are evaluated at
+    standard points whatever the validity ranges say)."""
     return type(si)(
         release=si.release.id,
         models={**si._overrides, **models},
         catalog=si.catalog.base,
     )
-
-
-def _lenient(si):
-    """``si`` itself, or a copy that warns instead of raising when ``si`` is strict."""
-    return _with(si) if si.strict else si
 
 
 def _product_sizes(si, other) -> dict:
@@ -249,12 +245,6 @@ def _density_text(entry) -> str:
 
 def consistency(si) -> Consistency:
     """The consistency report of a material (see :meth:`Silicon.consistency`)."""
-    report = _report(si, _lenient(si))
-    return report
-
-
-def _report(si, lenient) -> Consistency:
-    """The report of ``si``, its sizes evaluated with ``lenient`` (never strict)."""
     bound = si._carriers()
     t = STANDARD_TEMPERATURE
     kt = 8.617333262e-5 * t
@@ -322,7 +312,7 @@ def _report(si, lenient) -> Consistency:
                             value,
                             f"{solver} (of {bound.narrowing.id})",
                             "n0 p0",
-                            _statistics_sizes(lenient, value),
+                            _statistics_sizes(_with(si), value),
                         )
                     )
             # -- another quantity's model or number
@@ -396,7 +386,7 @@ def _report(si, lenient) -> Consistency:
                         for label, size in _narrowing_only(si).items()
                     }
                 else:
-                    sizes = _product_sizes(lenient, _with(si, gap_narrowing=value))
+                    sizes = _product_sizes(_with(si), _with(si, gap_narrowing=value))
                 mismatches.append(
                     Mismatch(
                         quantity,

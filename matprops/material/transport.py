@@ -30,9 +30,6 @@ import numpy as np
 from ..errors import (
     InputError,
     SolverError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import resistivity as resistivity_kernels
 from ..kernels.constants import BOLTZMANN_EV
@@ -436,7 +433,7 @@ class TransportMethods:
             }
             if check:
                 for name in model.inputs:
-                    model.check(name, *_extremes(values[name])[1:], self.strict)
+                    self._check(model, name, *_extremes(values[name])[1:])
             mobility = model(**{k: values[k] for k in model.inputs})
             key = "electron_density" if carrier == "electron" else "hole_density"
             density = values[key]
@@ -468,7 +465,7 @@ class TransportMethods:
         """The validity checks the equilibrium solver's models make (as in ``_solve``)."""
         _, low, high = prepared["temperature"]
         for name in ("densities_of_states", "intrinsic_density"):
-            self.model(name).check("temperature", low, high, self.strict)
+            self._check(self.model(name), "temperature", low, high)
         self._check_narrowing(prepared, bound)
         self._check_dopants(prepared, donor, acceptor)
 
@@ -549,9 +546,7 @@ class TransportMethods:
                 f"{np.count_nonzero(compensated)} point(s) with both Na and Nd > 0 "
                 "are NaN (conversion='physics' handles them)"
             )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._violation(message)
         model = self.model("standard_resistivity")
         out = np.full(t.shape, np.nan)
         for species, where in ((acceptor, (na > 0) & ~compensated), (donor, ~(na > 0))):
@@ -707,7 +702,7 @@ class TransportMethods:
             model = self._mobility_model(carrier, donor, acceptor)
             for name in ("temperature", "donor_density", "acceptor_density"):
                 if name in model.inputs:
-                    model.check(name, *prepared[name][1:], self.strict)
+                    self._check(model, name, *prepared[name][1:])
         return density
 
     def _lowest_density(self, temperatures, kind, donor, acceptor):
@@ -772,11 +767,15 @@ class TransportMethods:
         )
         if not converged.all():
             bad = np.flatnonzero(~converged)
-            raise SolverError(
-                f"doping_from_resistivity: {bad.size} point(s) did not "
-                f"converge, e.g. #{bad[0]}: {target[bad[0]]:g} ohm*cm at "
-                f"{temperatures[bad[0]]:g} K"
+            shown = "; ".join(
+                f"#{i} ({target[i]:g} ohm*cm at {temperatures[i]:g} K, {species})" for i in bad[:5]
             )
+            more = f"; and {bad.size - 5} more" if bad.size > 5 else ""
+            error = SolverError(
+                f"doping_from_resistivity: {bad.size} point(s) did not converge: {shown}{more}"
+            )
+            error.points, error.count = bad[:5].tolist(), int(bad.size)
+            raise error
         return np.exp(log_n)
 
     # ------------------------------------------------------------------ kernels
