@@ -7,11 +7,7 @@ of each quantity on the releases' standard reference grid
 
 from __future__ import annotations
 
-import warnings
-
 import numpy as np
-
-from ..errors import ValidityWarning
 
 __all__ = ["release_difference"]
 
@@ -20,7 +16,9 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
     """What changed between two releases.
 
     Returns a dict with ``models``: one record per quantity (the model in each
-    release, ``changed`` when the model id or its file differs), and
+    release, ``changed`` when the model id or its file differs), ``defaults``: the
+    methods' defaults the releases choose differently (None: the method's own), the new
+    release's ``notes`` (which list each change with its size at standard points), and
     ``deviations``: for every case of the standard reference grid
     (:data:`matprops.outputs.reference.CASES`) that both releases evaluate, the largest
     relative deviation ``|new/old - 1|``, the largest absolute deviation with units,
@@ -43,9 +41,8 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
         ]
         record["changed"] = before != after or files[0] != files[1]
         models.append(record)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", ValidityWarning)
-        cases = {r: evaluate(silicon[r]) for r in (old, new)}
+    # (the reference grid crosses validity limits on purpose: evaluate skips the checks)
+    cases = {r: evaluate(silicon[r]) for r in (old, new)}
     deviations = []
     for label in sorted(set(cases[old]) & set(cases[new])):
         a, b = cases[old][label], cases[new][label]
@@ -85,4 +82,20 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
                     at=point,
                 )
             deviations.append(record)
-    return {"old": old, "new": new, "models": models, "deviations": deviations}
+    defaults = [
+        {
+            "option": key,
+            "old": releases[old].defaults.get(key),
+            "new": releases[new].defaults.get(key),
+        }
+        for key in sorted(set(releases[old].defaults) | set(releases[new].defaults))
+        if releases[old].defaults.get(key) != releases[new].defaults.get(key)
+    ]
+    return {
+        "old": old,
+        "new": new,
+        "models": models,
+        "defaults": defaults,
+        "deviations": deviations,
+        "notes": releases[new].notes,
+    }

@@ -174,6 +174,10 @@ def _markdown(model, defaults) -> list[str]:
     if conventions:
         lines.append("- fitted with:")
         lines += [f"  - {name}: {one_line(e.describe())}" for name, e in conventions.items()]
+    stand_ins = model.extra.get("stand_ins", {})
+    if stand_ins:
+        lines.append("- species without a set of their own:")
+        lines += [f"  - {one_line(record.describe())}" for record in stand_ins.values()]
     lines.append(f"- obtained: {one_line(model.obtained)}")
     if model.notes:
         lines.append(f"- notes: {one_line(model.notes)}")
@@ -229,6 +233,11 @@ def release_difference_lines(diff: dict) -> list[str]:
         lines.append(
             f"  {record['quantity']:24s} {record['old']!s:24s} -> {record['new']!s:24s} {mark}"
         )
+    for record in diff.get("defaults", []):
+        lines.append(
+            f"  default of {record['option']}: {record['old'] or 'physics'} -> "
+            f"{record['new'] or 'physics'}"
+        )
     lines.append(f"\nlargest deviation on the standard reference grid ({new} against {old}):")
     for record in diff["deviations"]:
         if record["largest_relative"] is None:
@@ -244,6 +253,9 @@ def release_difference_lines(diff: dict) -> list[str]:
                 + (f" at {at}" if at else "")
             )
         lines.append(wrap(f"{record['case']:28s} {detail}", "  "))
+    if "notes" in diff:
+        lines.append(f"\nnotes of {new} (each change with its size at standard points):")
+        lines += ["  " + line for line in diff["notes"].splitlines()]
     return lines
 
 
