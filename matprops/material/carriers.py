@@ -189,8 +189,38 @@ class _Bound:
         acceptor="boron",
         fermi_dirac=True,
         complete=False,
+        workers=None,
     ):
-        """The equilibrium solve on plain arrays; ``complete``: every dopant ionised."""
+        """The equilibrium solve on plain arrays; ``complete``: every dopant ionised.
+
+        Large inputs are solved block by block (each block's densities of states,
+        levels and narrowing computed with it), so that memory stays the outputs plus a
+        few blocks; ``workers``: threads solving blocks side by side."""
+        return evaluate(
+            self._equilibrium_block,
+            {
+                "temperature": temperature,
+                "donor_density": donor_density,
+                "acceptor_density": acceptor_density,
+            },
+            workers=workers,
+            donor=donor,
+            acceptor=acceptor,
+            fermi_dirac=fermi_dirac,
+            complete=complete,
+        )
+
+    def _equilibrium_block(
+        self,
+        temperature,
+        donor_density,
+        acceptor_density,
+        donor="phosphorus",
+        acceptor="boron",
+        fermi_dirac=True,
+        complete=False,
+    ):
+        """The equilibrium solve of one block (see :meth:`equilibrium`)."""
         t, nd, na = np.broadcast_arrays(
             *(np.asarray(a, dtype=float) for a in (temperature, donor_density, acceptor_density))
         )
@@ -270,6 +300,10 @@ class _Bound:
                 log_slope = log_slope + slopes["temperature"] / ni - (dec + dev) / (two_kt * t)
             partials[name] = value * log_slope
         return value, partials
+
+
+# points per block of the equilibrium solve (the solver's own choice)
+_Bound._equilibrium_block.block = equilibrium_kernel.BLOCK
 
 
 class CarrierMethods:
