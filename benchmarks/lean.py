@@ -1,22 +1,24 @@
 """Lean hand-written baselines for the inverse problems (benchmarks only).
 
 A per-point ``scipy.optimize.brentq`` loop of the same equations as matprops, written
-the fastest way a careful author would write it by hand: everything that does not
-involve the root search (densities of states, intrinsic density, dopant levels,
-Schenk's ionic part, Klaassen's dopant terms) is computed vectorised in numpy before
-the loop; inside it, plain Python floats and the ``math`` module only (no 1-element
-numpy arrays), the Fermi-Dirac integral as the same rational approximations
-matprops uses, evaluated in scalar Horner form.
+the fastest way a careful author would write it by hand: what depends on temperature
+only (densities of states, intrinsic density, Schenk's powers of kT) is computed
+vectorised in numpy before the loop; inside it, plain Python floats and the ``math``
+module only (no 1-element numpy arrays): the dopant levels, Schenk's narrowing,
+Klaassen's mobility and the Fermi-Dirac integral (the same rational approximations
+matprops uses, in scalar Horner form) are written out for one point.
 
-- :func:`equilibrium_loop`: charge neutrality in linear space,
-  ``p + Nd+ - n - Na-``, bracketed by brentq at fixed narrowing; Schenk's narrowing
-  made self-consistent by a fixed point around it (warm bracket, Aitken's
-  extrapolation every third step), to the same self-consistency as matprops (1e-10
-  of kT in the narrowing).
-- :func:`resistivity_loop`: doping from resistivity, brentq in ln N around a scalar
-  conductivity (an equilibrium solve as above, with complete or incomplete
-  ionisation as the release's mobility model was fitted, then Klaassen's mobility in
-  scalar form, its G minimum read from the same table with ``bisect``).
+- :func:`equilibrium_loop`: charge neutrality in linear space, ``p + Nd+ - n - Na-``,
+  bracketed by brentq at fixed narrowing (``xtol`` 1e-13 in eta); Schenk's narrowing
+  made self-consistent by a fixed point around it (warm bracket, Aitken's extrapolation
+  every third step) to 1e-12 of kT, matprops' own tolerance.
+- :func:`resistivity_loop`: doping from resistivity, brentq in ln N (``xtol`` 1e-13),
+  each evaluation an equilibrium solve as above (complete or incomplete ionisation as
+  the release's mobility model was fitted) and Klaassen's mobility for both carriers.
+
+Only the release defaults these benchmarks use are written out (Fermi-Dirac statistics,
+Schenk's narrowing, Altermatt's lowered levels, Klaassen's mobility); the functions
+check the release's models and refuse others.
 """
 
 from __future__ import annotations
@@ -35,6 +37,8 @@ __all__ = ["equilibrium_loop", "fd_half", "resistivity_loop"]
 _HALF = _fd.HALF
 _BREAKS = _fd.BREAKS
 _GAMMA_5_2 = math.gamma(2.5)
+XTOL = 1e-13  # in eta, and in ln N
+SELF_CONSISTENCY = 1e-12  # of the narrowing, in kT
 
 
 def _poly(cs, x):
@@ -64,48 +68,110 @@ def _coefficients(model):
     return {k: c.kernel_value for k, c in model.coefficients.items()}
 
 
-class _Setup:
-    """Everything of the equilibrium that does not depend on the Fermi level, per point
-    (computed vectorised), as Python lists of floats for the loop."""
-
-    def __init__(self, si, T, Nd, Na, complete=False):
-        from matprops.kernels.gap_narrowing import _fixed_dopants
-
-        bound = si._carriers()
-        T, Nd, Na = np.broadcast_arrays(*(np.asarray(a, float) for a in (T, Nd, Na)))
-        kt = BOLTZMANN_EV * T
-        nc, nv = bound.dos(temperature=T)
-        ni = bound.ni(temperature=T)
-        (e_d, b_d), g_d = bound.level("phosphorus", Nd, complete)
-        (e_a, b_a), g_a = bound.level("boron", Na, complete)
-        self.gap = np.log(nc) + np.log(nv) - 2.0 * np.log(ni) - bound.gap_offset(T) / kt
-        self.w_d = e_d / kt + math.log(g_d)
-        self.w_a = e_a / kt + math.log(g_a)
-        self.b_d, self.b_a = np.broadcast_to(b_d, T.shape), np.broadcast_to(b_a, T.shape)
-        self.nc, self.nv, self.kt, self.nd, self.na = nc, nv, kt, Nd, Na
-        narrowing = bound.narrowing
-        self.schenk = narrowing.kernel is not None and narrowing.id.startswith("schenk")
-        if self.schenk:
-            c = _coefficients(narrowing)
-            parts = _fixed_dopants(T, Nd, Na, **c)
-            self.parts = parts
-            self.ionic = parts.ionic_e + parts.ionic_h  # per point (fixed dopants)
-        else:
-            dec, dev = bound.shifts(T, Nd, Na)
-            self.fixed_shift = np.broadcast_to(dec + dev, T.shape) / kt
-
-    def point(self, i):
-        return (
-            float(self.gap[i]),
-            float(self.nc[i]),
-            float(self.nv[i]),
-            float(self.nd[i]),
-            float(self.w_d[i]),
-            float(self.b_d[i]),
-            float(self.na[i]),
-            float(self.w_a[i]),
-            float(self.b_a[i]),
+def _require(model, kernel_name):
+    name = getattr(model.kernel, "__name__", "")
+    if name != kernel_name:
+        raise NotImplementedError(
+            f"the lean loop writes out {kernel_name} only; the release uses "
+            f"{model.quantity} {model.id} ({name})"
         )
+
+
+class _Level:
+    """Altermatt et al.'s lowered level for one density: (w = E/kT + ln g, b)."""
+
+    def __init__(self, model):
+        _require(model, "lowered_level")
+        c = _coefficients(model)
+        self.e0, self.c_e, self.c_b = c["energy_at_low_density"], c["energy_exponent"], None
+        self.log_energy_density = math.log(c["energy_density"])
+        self.log_merging_density = math.log(c["merging_density"])
+        self.c_b = c["merging_exponent"]
+        self.log_g = math.log(c["degeneracy"])
+
+    def __call__(self, density, kt, complete):
+        if density <= 0.0:
+            return 0.0, 0.0
+        log_n = math.log(density)
+        energy = self.e0 / (1.0 + math.exp(self.c_e * (log_n - self.log_energy_density)))
+        share = (
+            0.0
+            if complete
+            else 1.0 / (1.0 + math.exp(self.c_b * (log_n - self.log_merging_density)))
+        )
+        return energy / kt + self.log_g, share
+
+
+class _Schenk:
+    """Schenk's narrowing for one point (floats): the ionic part of the dopants, the
+    exchange part of the carriers."""
+
+    def __init__(self, model):
+        _require(model, "schenk")
+        c = _coefficients(model)
+        self.rydberg, self.volume = c["exciton_rydberg"], c["exciton_radius"] ** 3
+        me, mh = c["electron_mass"], c["hole_mass"]
+        self.alpha_e, self.alpha_h = mh / (me + mh), me / (me + mh)
+        self.bands = []
+        for band, g, alpha in (
+            ("e", c["electron_degeneracy"], None),
+            ("h", c["hole_degeneracy"], None),
+        ):
+            del alpha
+            self.bands.append(
+                {
+                    "g": g,
+                    "alpha": self.alpha_e if band == "e" else self.alpha_h,
+                    **{k: c[f"{k}_{band}"] for k in ("b", "c", "d", "p", "h", "j", "k", "q")},
+                }
+            )
+
+    def ionic(self, t, nd, na):
+        """The ionic part of both bands, summed (units of Ry), at reduced t = kT/Ry."""
+        donors, acceptors = nd * self.volume, na * self.volume
+        dopants = donors + acceptors
+        if dopants <= 0.0:
+            return 0.0
+        u = dopants * dopants / (t * t * t)
+        screening = math.sqrt(t * dopants / (2.0 * math.pi))
+        log_screening = math.log1p(math.sqrt(dopants) / t)
+        ions_p = self.alpha_e * donors + self.alpha_h * acceptors
+        log_ions_p = math.log(ions_p)
+        ions_p34 = math.exp(0.75 * log_ions_p)
+        total = 0.0
+        for band in self.bands:
+            lattice = screening * (1.0 + band["h"] * log_screening)
+            impurity = (
+                band["j"] * u * ions_p34 * (1.0 + band["k"] * math.exp(band["q"] * log_ions_p))
+            )
+            total -= dopants * (1.0 + u) / (lattice + impurity)
+        return total
+
+    def total(self, t, n, p, ionic):
+        """dEc + dEv in eV (t = kT/Ry, ionic from :meth:`ionic`)."""
+        n *= self.volume
+        p *= self.volume
+        t2 = t * t
+        ns = n + p
+        sqrt_ns = math.sqrt(ns)
+        mix = self.alpha_e * n + self.alpha_h * p
+        f = 1984.4017075391884 * ns * ns  # (4 pi)^3 ns^2
+        common_top = 5.0132565492620005 * sqrt_ns * t2 * math.sqrt(t)  # sqrt(8 pi)
+        common_bottom = f + t2 * t + 40.0 * ns * sqrt_ns * t
+        total = 0.0
+        for dens, band in ((n, self.bands[0]), (p, self.bands[1])):
+            g = band["g"]
+            exchange = -(
+                f
+                * (
+                    (48.0 / (math.pi * g) * dens) ** (1.0 / 3.0)
+                    + band["c"] * math.log1p(band["d"] * mix ** band["p"])
+                )
+                + (8.0 * math.pi * band["alpha"] / g) * dens * t2
+                + common_top
+            ) / (common_bottom + band["b"] * sqrt_ns * t2)
+            total -= exchange
+        return (total - ionic) * self.rydberg
 
 
 def _charge(eta, gap, nc, nv, nd, w_d, b_d, na, w_a, b_a):
@@ -115,99 +181,85 @@ def _charge(eta, gap, nc, nv, nd, w_d, b_d, na, w_a, b_a):
     return nv * fd_half(eta_v) + donors - nc * fd_half(eta) - acceptors
 
 
-class _SchenkScalar:
-    """Schenk's exchange part for one point (floats), the ionic part given."""
+class _Equilibrium:
+    """The equations of the release's equilibrium, point by point."""
 
-    def __init__(self, parts):
-        self.volume, self.rydberg = parts.volume, parts.rydberg
-        self.alpha_e, self.alpha_h = parts.alpha_e, parts.alpha_h
-        self.g_e, self.g_h = parts.g_e, parts.g_h
-        self.sets = (parts.electron_set, parts.hole_set)
-        self.t, self.t2, self.t3, self.t52 = (
-            parts.t.tolist(),
-            parts.t2.tolist(),
-            parts.t3.tolist(),
-            parts.t52.tolist(),
-        )
+    def __init__(self, si):
+        bound = si._carriers()
+        if bound.statistics != "fermi-dirac":
+            raise NotImplementedError("the lean loop writes out Fermi-Dirac statistics only")
+        self.bound = bound
+        self.donor = _Level(bound.ionisation.select("phosphorus"))
+        self.acceptor = _Level(bound.ionisation.select("boron"))
+        self.schenk = _Schenk(bound.narrowing)
 
-    def total(self, i, n, p, ionic):
-        """dEc + dEv in eV at point i."""
-        n *= self.volume
-        p *= self.volume
-        t, t2 = self.t[i], self.t2[i]
-        ns = n + p
-        sqrt_ns = math.sqrt(ns)
-        mix = self.alpha_e * n + self.alpha_h * p
-        f = 1984.4017075391884 * ns * ns  # (4 pi)^3 ns^2
-        common_top = 5.0132565492620005 * sqrt_ns * self.t52[i]  # sqrt(8 pi)
-        common_bottom = f + self.t3[i] + 40.0 * ns * sqrt_ns * t
-        total = 0.0
-        for dens, g, alpha, (b, c, d, pa, *_) in (
-            (n, self.g_e, self.alpha_e, self.sets[0]),
-            (p, self.g_h, self.alpha_h, self.sets[1]),
-        ):
-            exchange = -(
-                f * ((48.0 / (math.pi * g) * dens) ** (1.0 / 3.0) + c * math.log1p(d * mix**pa))
-                + (8.0 * math.pi * alpha / g) * dens * t2
-                + common_top
-            ) / (common_bottom + b * sqrt_ns * t2)
-            total -= exchange
-        return (total - ionic) * self.rydberg
+    def temperature_parts(self, T):
+        """What depends on temperature only, vectorised: lists of floats."""
+        T = np.asarray(T, dtype=float)
+        nc, nv = self.bound.dos(temperature=T)
+        ni = self.bound.ni(temperature=T)
+        kt = BOLTZMANN_EV * T
+        gap = np.log(nc) + np.log(nv) - 2.0 * np.log(ni) - self.bound.gap_offset(T) / kt
+        t = kt / self.schenk.rydberg
+        return [a.tolist() for a in np.broadcast_arrays(T, kt, gap, nc, nv, t)]
 
-
-def _solve_point(i, setup, schenk, xtol, state=False):
-    """n, p of point i: brentq at fixed narrowing, fixed point on the narrowing."""
-    gap0, nc, nv, nd, w_d, b_d, na, w_a, b_a = setup.point(i)
-    kt = float(setup.kt[i])
-    ionic = float(setup.ionic[i]) if schenk is not None else 0.0
-    shift = 0.0 if schenk is not None else float(setup.fixed_shift[i])
-    low, high = -gap0 - 60.0, 60.0
-    history = []
-    for step in range(200):
-        gap = gap0 - shift
-        args = (gap, nc, nv, nd, w_d, b_d, na, w_a, b_a)
-        while _charge(low, *args) <= 0.0:
-            low -= 4.0
-        while _charge(high, *args) >= 0.0:
-            high += 4.0
-        eta = brentq(_charge, low, high, args=args, xtol=xtol, rtol=8.9e-16, maxiter=200)
-        n, p = nc * fd_half(eta), nv * fd_half(-eta - gap)
-        if schenk is None:
-            return (eta, gap, n, p, setup) if state else (n, p)
-        new = schenk.total(i, n, p, ionic) / kt
-        if abs(new - shift) <= 1e-10 and step:
-            return (eta, gap, n, p, setup) if state else (n, p)
-        history.append(new)
-        if len(history) == 3:  # Aitken's extrapolation of the narrowing
-            s0, s1, s2 = history
-            curvature = s2 - 2.0 * s1 + s0
-            new = s2 - (s2 - s1) ** 2 / curvature if abs(curvature) > 1e-14 else s2
-            history = []
-        shift = new
-        low, high = eta - 0.25, eta + 0.25
-    raise RuntimeError(f"lean loop: point {i} did not converge")
+    def solve(self, kt, gap0, nc, nv, t, nd, na, complete=False, start=None):
+        """(eta, n, p, Nd+, Na-) at one point: brentq at fixed narrowing, fixed point on it."""
+        w_d, b_d = self.donor(nd, kt, complete)
+        w_a, b_a = self.acceptor(na, kt, complete)
+        ionic = self.schenk.ionic(t, nd, na)
+        shift = 0.0
+        low, high = (-gap0 - 60.0, 60.0) if start is None else (start - 1.0, start + 1.0)
+        history = []
+        for step in range(200):
+            gap = gap0 - shift
+            args = (gap, nc, nv, nd, w_d, b_d, na, w_a, b_a)
+            while _charge(low, *args) <= 0.0:
+                low -= 4.0
+            while _charge(high, *args) >= 0.0:
+                high += 4.0
+            eta = brentq(_charge, low, high, args=args, xtol=XTOL, rtol=8.9e-16, maxiter=200)
+            n, p = nc * fd_half(eta), nv * fd_half(-eta - gap)
+            new = self.schenk.total(t, n, p, ionic) / kt
+            if abs(new - shift) <= SELF_CONSISTENCY and step:
+                donors = nd * (1.0 - b_d + b_d / (1.0 + math.exp(eta + w_d)))
+                acceptors = na * (1.0 - b_a + b_a / (1.0 + math.exp(-eta - gap + w_a)))
+                return eta, n, p, donors, acceptors
+            history.append(new)
+            if len(history) == 3:  # Aitken's extrapolation of the narrowing
+                s0, s1, s2 = history
+                curvature = s2 - 2.0 * s1 + s0
+                new = s2 - (s2 - s1) ** 2 / curvature if abs(curvature) > 1e-14 else s2
+                history = []
+            shift = new
+            low, high = eta - 0.25, eta + 0.25
+        raise RuntimeError("lean loop: a point did not converge")
 
 
-def equilibrium_loop(si, T, Nd, Na, xtol=1e-13):
+def equilibrium_loop(si, T, Nd, Na):
     """(n, p) of every point (1-D arrays), one brentq solve after another."""
-    setup = _Setup(si, T, Nd, Na)
-    schenk = _SchenkScalar(setup.parts) if setup.schenk else None
-    size = setup.nc.size
-    n_out, p_out = np.empty(size), np.empty(size)
-    for i in range(size):
-        n_out[i], p_out[i] = _solve_point(i, setup, schenk, xtol)
+    T, Nd, Na = (np.ravel(a) for a in np.broadcast_arrays(T, Nd, Na))
+    equations = _Equilibrium(si)
+    _, kt, gap, nc, nv, t = equations.temperature_parts(T)
+    nd, na = Nd.tolist(), Na.tolist()
+    n_out, p_out = np.empty(T.size), np.empty(T.size)
+    for i in range(T.size):
+        _, n_out[i], p_out[i], _, _ = equations.solve(
+            kt[i], gap[i], nc[i], nv[i], t[i], nd[i], na[i]
+        )
     return n_out, p_out
 
 
 # --------------------------------------------------------------------------- resistivity
 
 
-class _KlaassenScalar:
+class _Klaassen:
     """Klaassen's mobility for one point (floats); coefficients of a bound model."""
 
     def __init__(self, model):
         from matprops.kernels.mobility import _g_minimum_table
 
+        _require(model, "klaassen")
         self.c = c = _coefficients(model)
         self.charge = c["charge"]
         log_l, log_u = _g_minimum_table(c["s1"], c["s2"], c["s3"], c["s5"], c["s6"])
@@ -245,7 +297,9 @@ class _KlaassenScalar:
         n_sc = like + unlike + other
         log_sc = math.log(n_sc)
         coulomb = (
-            c["coulomb_weight"] / c["coulomb_density"] * math.exp((2.0 / 3.0) * (log_sc - 3 * log_t))
+            c["coulomb_weight"]
+            / c["coulomb_density"]
+            * math.exp((2.0 / 3.0) * (log_sc - 3 * log_t))
         )
         screening = (
             c["screening_weight"]
@@ -263,52 +317,61 @@ class _KlaassenScalar:
         u = math.exp(log_u)
         g = 1.0 - s1 * math.exp(-s3 * math.log(s2 + u)) + s5 * math.exp(log_k - s6 * log_u)
         n_eff = like + g * unlike + other / f
-        scale = impurity * math.exp((1.0 - alpha) * log_sc + alpha * self.log_ref) + carrier * (
-            carriers
+        scale = (
+            impurity * math.exp((1.0 - alpha) * log_sc + alpha * self.log_ref) + carrier * carriers
         )
         return 1.0 / (1.0 / lattice + n_eff / scale)
 
 
-def resistivity_loop(si, rho, T, xtol=1e-13):
-    """Boron density (1-D array) giving resistivity ``rho`` at ``T``: brentq in ln N,
-    each evaluation an equilibrium solve (as :func:`equilibrium_loop`) and Klaassen's
-    mobility in floats, composed as the release composes them (the carriers of
-    complete or incomplete ionisation, total or ionised dopant densities, as the
-    mobility model's fit conventions say)."""
+def resistivity_loop(si, rho, T, dopant="boron"):
+    """Density of ``dopant`` (boron or phosphorus; 1-D array) giving resistivity ``rho``
+    at ``T``: brentq in ln N, each evaluation one equilibrium (as :func:`equilibrium_loop`,
+    started from the last Fermi level found) and Klaassen's mobility for both carriers,
+    composed as the release composes them (the carriers of complete or incomplete
+    ionisation, total or ionised dopant densities, as the mobility's fit says)."""
     from matprops.material.composition import complete_ionisation
 
+    acceptor = dopant == "boron"
     models = []
     for carrier in ("electron", "hole"):
         model = si._mobility_model(carrier, "phosphorus", "boron")
         ionised = model.conventions.value("dopant_densities") == "ionised"
-        models.append((_KlaassenScalar(model), complete_ionisation(model), ionised))
-    rho = np.asarray(rho, float).ravel()
-    T = np.broadcast_to(np.asarray(T, float), rho.shape)
-    ni = si._carriers().ni(temperature=T)
+        models.append((_Klaassen(model), complete_ionisation(model), ionised))
+    equations = _Equilibrium(si)
+    rho, T = (np.ravel(a) for a in np.broadcast_arrays(rho, T))
+    _, kts, gaps, ncs, nvs, ts = equations.temperature_parts(T)
+    lows = np.log(si._lowest_density(T, "acceptor" if acceptor else "donor", "phosphorus", "boron"))
     out = np.empty(rho.size)
     for i in range(rho.size):
-        t = float(T[i])
+        temperature, kt, gap, nc, nv, t = float(T[i]), kts[i], gaps[i], ncs[i], nvs[i], ts[i]
+        last = {}
 
-        def log_rho(log_n, t=t):
-            na = math.exp(log_n)
+        def log_rho(log_n):
+            density = math.exp(log_n)
+            nd, na = (0.0, density) if acceptor else (density, 0.0)
             states, sigma = {}, 0.0
             for carrier, (mobility, complete, ionised) in enumerate(models):
                 if complete not in states:
-                    setup = _Setup(si, t, 0.0, na, complete)
-                    schenk = _SchenkScalar(setup.parts) if setup.schenk else None
-                    states[complete] = _solve_point(0, setup, schenk, xtol, state=True)
-                eta, gap, n, p, setup = states[complete]
-                acceptors = na
+                    states[complete] = equations.solve(
+                        kt, gap, nc, nv, t, nd, na, complete, last.get(complete)
+                    )
+                    last[complete] = states[complete][0]
+                _, n, p, donors, acceptors = states[complete]
                 if ionised:
-                    _, _, _, _, _, _, na_, w_a, b_a = setup.point(0)
-                    acceptors = na_ * (1.0 - b_a + b_a / (1.0 + math.exp(-eta - gap + w_a)))
-                mu = mobility(t, 0.0, acceptors, n, p)
+                    mu = mobility(temperature, donors, acceptors, n, p)
+                else:
+                    mu = mobility(temperature, nd, na, n, p)
                 sigma += ELEMENTARY_CHARGE * (p if carrier else n) * mu
             return -math.log(sigma)
 
-        low = math.log(max(4.0 * float(ni[i]), 1.0))
         target = math.log(float(rho[i]))
         out[i] = math.exp(
-            brentq(lambda x: log_rho(x) - target, low, math.log(1e21), xtol=xtol, rtol=8.9e-16)
+            brentq(
+                lambda x: log_rho(x) - target,
+                float(lows[i]),
+                math.log(1e21),
+                xtol=XTOL,
+                rtol=8.9e-16,
+            )
         )
     return out

@@ -28,7 +28,7 @@ import numpy as np
 
 from ..errors import SolverError
 
-__all__ = ["BLOCK", "evaluate", "relocated", "solver_error"]
+__all__ = ["BLOCK", "check_workers", "evaluate", "relocated", "solver_error"]
 
 # Points per block: 128 kB per float64 temporary, so that a kernel's temporaries stay
 # in the 2 MB L2 cache of this machine kind and are recycled by the heap allocator (at
@@ -45,6 +45,7 @@ def evaluate(
     out=None,
     block: int | None = None,
     workers: int | None = None,
+    locate: bool = False,
     **options,
 ):
     """``function(**arguments, **options)`` evaluated in blocks of ~``block`` points.
@@ -64,6 +65,9 @@ def evaluate(
         numpy releases the GIL inside its loops, so blocks of a heavy kernel run in
         parallel; the blocks are the same as without workers and each is computed by
         the same code, so the numbers are the same bit for bit.
+    locate : pass each call ``offset=``, the flat index (C order) of its first point in
+        the whole input (a block's points are consecutive flat indices), so that the
+        kernel can name a point in an error
     options : keyword arguments passed unchanged to every call (not blocked)
 
     Returns
@@ -107,6 +111,8 @@ def evaluate(
         shape = np.broadcast_shapes(*(np.shape(v) for v in arguments.values()))
     size = math.prod(shape)
     if size <= block:
+        if locate:
+            options["offset"] = 0
         result = function(**arguments, **options)
         return result if out is None else _write(out, result, shape, ())
     if out is not None:
@@ -132,6 +138,9 @@ def evaluate(
     def compute(where):
         outer, start, stop = where
         values = {name: a[_index(a, outer, start, stop, axis)] for name, a in padded.items()}
+        if locate:
+            first = outer + (start,) + (0,) * (ndim - axis - 1)
+            values["offset"] = int(np.ravel_multi_index(first, shape))
         try:
             return function(**values, **options)
         except SolverError as error:
@@ -157,7 +166,7 @@ def evaluate(
 
     # the first block here: it allocates the outputs (their structure and dtype)
     store(blocks[0], compute(blocks[0]))
-    workers = _workers(workers)
+    workers = check_workers(workers)
     if workers > 1 and len(blocks) > 1:
         _parallel(blocks[1:], lambda where: store(where, compute(where)), workers)
     else:
@@ -166,7 +175,8 @@ def evaluate(
     return state["outputs"]
 
 
-def _workers(workers) -> int:
+def check_workers(workers) -> int:
+    """The number of threads ``workers`` asks for (None: 1), or an InputError."""
     if workers is None:
         return 1
     if isinstance(workers, bool) or not isinstance(workers, (int, np.integer)) or workers < 1:

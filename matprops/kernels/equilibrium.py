@@ -249,6 +249,38 @@ class _Points:
         return r, f2, condition, state, (step_eta, step_s)
 
 
+def _start(
+    nd, na, nc, nv, log_nc, log_nv, reduced_gap, w_d, b_d, w_a, b_a, kt, narrowing_at,
+    carriers, fermi_dirac,
+):  # fmt: skip
+    """Newton's starting point ``(eta, s, dEc, dEv)`` from the Boltzmann first guess: the
+    narrowing at the guessed densities, the reduced level from the majority carrier's
+    band (the guess's minority density lacks the narrowing)."""
+    n, p = _first_guess(nd, na, log_nc, log_nv, reduced_gap, w_d, b_d, w_a, b_a)
+    dec, dev = narrowing_at(n, p)
+    s = (dec + dev) / kt
+    if carriers:
+        s = np.broadcast_to(s, nd.shape).copy()
+    else:
+        dec = np.broadcast_to(dec, nd.shape).astype(float)
+        dev = np.broadcast_to(dev, nd.shape).astype(float)
+        s = np.broadcast_to(s, nd.shape)
+    electrons = n >= p
+    with np.errstate(divide="ignore", invalid="ignore"):
+        level = np.where(electrons, np.log(n) - log_nc, np.log(p) - log_nv)
+        if fermi_dirac:
+            # F_1/2's inverse: ln y + y / 2^1.5 (+ O(y^2)) well below the band edge
+            level += np.exp(level) * 2.0**-1.5
+            if not level.max() <= _NEAR_EDGE:  # near or beyond the edge: in full
+                from .fermi_dirac import fd_half_inverse
+
+                index = np.flatnonzero(~(level <= _NEAR_EDGE))
+                density = np.where(electrons[index], n[index] / nc[index], p[index] / nv[index])
+                level[index] = fd_half_inverse(density)
+    eta = np.where(electrons, level, s - reduced_gap - level)
+    return eta, s, dec, dev
+
+
 def _first_guess(nd, na, log_nc, log_nv, reduced_gap, w_d, b_d, w_a, b_a):
     """n and p under Boltzmann statistics, the majority dopant's ionisation exact.
 
@@ -293,6 +325,7 @@ def solve(
     rtol=1e-12,
     self_consistency=1e-12,
     max_iterations=200,
+    start=None,
 ):
     """Solve charge neutrality for broadcast arrays of temperature and dopant densities.
 
@@ -320,6 +353,10 @@ def solve(
     self_consistency : for a narrowing that depends on n and p, the largest difference
         (in units of kT) between the narrowing used and the one of the resulting n, p
     max_iterations : iterations of the bracketed fallback
+    start : None, or a pair of arrays ``(eta, s)``: the reduced Fermi level and
+        narrowing to start Newton's iteration from (e.g. the solution at nearby
+        inputs, as an inverse problem moves its dopant density), instead of the
+        Boltzmann first guess
 
     Returns
     -------
@@ -352,6 +389,7 @@ def solve(
                 gap_offset,
                 *donor_level,
                 *acceptor_level,
+                *(start if start is not None else ()),
             )
         )
     )
@@ -369,6 +407,9 @@ def solve(
         "self_consistency": self_consistency,
         "max_iterations": max_iterations,
     }
+    if start is not None:  # the start travels with the inputs
+        *flat, eta, s = flat
+        options["start"] = (eta, s)
     if size <= BLOCK:
         try:
             result = _solve_block(*flat, **options)
@@ -376,12 +417,15 @@ def solve(
             raise _located(error, 0, shape) from None
         return {key: value.reshape(shape) for key, value in result.items()}
     out = {key: np.empty(size) for key in OUTPUTS}
-    for start in range(0, size, BLOCK):
-        block = slice(start, start + BLOCK)
+    first = options.pop("start", None)
+    for offset in range(0, size, BLOCK):
+        block = slice(offset, offset + BLOCK)
+        if first is not None:
+            options["start"] = (first[0][block], first[1][block])
         try:
             result = _solve_block(*(a[block] for a in flat), **options)
         except SolverError as error:
-            raise _located(error, start, shape) from None
+            raise _located(error, offset, shape) from None
         for key in OUTPUTS:
             out[key][block] = result[key]
     return {key: value.reshape(shape) for key, value in out.items()}
@@ -424,6 +468,7 @@ def _solve_block(
     rtol,
     self_consistency,
     max_iterations,
+    start=None,
 ):
     size = t.size
     if not size:
@@ -450,30 +495,16 @@ def _solve_block(
     scale = np.maximum(np.maximum(log_nd, log_na), 0.5 * (log_nc + log_nv - reduced_gap))
     b_d = np.broadcast_to(b_d, t.shape)
     b_a = np.broadcast_to(b_a, t.shape)
-    n, p = _first_guess(nd, na, log_nc, log_nv, reduced_gap, w_d, b_d, w_a, b_a)
-    dec, dev = narrowing_at(n, p)
-    s = (dec + dev) / kt
-    if narrowing_uses_carriers:
-        s = np.broadcast_to(s, t.shape).copy()
+    if start is not None:
+        eta, s = (np.array(a, dtype=float) for a in start)
+        if not narrowing_uses_carriers:  # the narrowing is fixed: it needs no start
+            dec, dev = (np.broadcast_to(a, t.shape).astype(float) for a in narrowing_at(0, 0))
+            s = (dec + dev) / kt
     else:
-        dec = np.broadcast_to(dec, t.shape).astype(float)
-        dev = np.broadcast_to(dev, t.shape).astype(float)
-        s = np.broadcast_to(s, t.shape)
-    # the reduced level from the majority carrier's band (the minority density of the
-    # guess lacks the narrowing)
-    electrons = n >= p
-    with np.errstate(divide="ignore", invalid="ignore"):
-        level = np.where(electrons, np.log(n) - log_nc, np.log(p) - log_nv)
-        if fermi_dirac:
-            # F_1/2's inverse: ln y + y / 2^1.5 (+ O(y^2)) well below the band edge
-            level += np.exp(level) * 2.0**-1.5
-            if not level.max() <= _NEAR_EDGE:  # near or beyond the edge: in full
-                from .fermi_dirac import fd_half_inverse
-
-                index = np.flatnonzero(~(level <= _NEAR_EDGE))
-                density = np.where(electrons[index], n[index] / nc[index], p[index] / nv[index])
-                level[index] = fd_half_inverse(density)
-    eta = np.where(electrons, level, s - reduced_gap - level)
+        eta, s, dec, dev = _start(
+            nd, na, nc, nv, log_nc, log_nv, reduced_gap, w_d, b_d, w_a, b_a, kt, narrowing_at,
+            narrowing_uses_carriers, fermi_dirac,
+        )  # fmt: skip
     with np.errstate(divide="ignore", invalid="ignore"):
         points = _Points(
             narrowing_at if narrowing_uses_carriers else None,
@@ -488,6 +519,7 @@ def _solve_block(
             kt=kt,
             density=np.exp(scale),
         )
+
     # the state of each point when it converged
     final = {
         "eta": np.empty(size),

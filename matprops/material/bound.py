@@ -164,7 +164,12 @@ class BoundKernel:
                 )
         return arguments, options
 
-    def __call__(self, *args, out=None, **kwargs):
+    def __call__(self, *args, out=None, workers=None, **kwargs):
+        """The kernel at the inputs given; ``out=`` an array (or tuple of arrays) to
+        write into; ``workers=`` threads evaluating the blocks of a large input side by
+        side (default: the material's ``workers``; the same numbers bit for bit)."""
+        if workers is None:
+            workers = self._si.workers
         if not kwargs and len(args) == len(self._names):  # the common call: positional
             arguments, options = dict(zip(self._names, args, strict=False)), {}
             if self._optional and any(v is None for v in args):
@@ -178,8 +183,8 @@ class BoundKernel:
                 raise TypeError(
                     f"the {self.quantity} kernel returns several fields; out= is not supported"
                 )
-            return self._function(**arguments, **options)
-        return evaluate(self._function, arguments, out=out, **options)
+            return self._function(**arguments, **options, workers=workers)
+        return evaluate(self._function, arguments, out=out, workers=workers, **options)
 
     def _refuse_foreign(self, arguments):
         for name, value in arguments.items():
@@ -191,7 +196,7 @@ class BoundKernel:
                     "numpy.asarray (or the library's own to-numpy function) first"
                 )
 
-    def derivatives(self, *args, out=None, **kwargs):
+    def derivatives(self, *args, out=None, workers=None, **kwargs):
         """Value and partial derivatives with respect to every input.
 
         Returns
@@ -202,7 +207,8 @@ class BoundKernel:
             Analytic, evaluated in the same blocks as the value.
 
         ``out=(value_out, {input: partial_out})`` writes into arrays the caller keeps
-        (a simulation code reuses them every iteration; fresh arrays cost page faults).
+        (a simulation code reuses them every iteration; fresh arrays cost page faults);
+        ``workers=`` as for a call.
         """
         if self._derivative is None:
             raise TypeError(
@@ -242,7 +248,9 @@ class BoundKernel:
                     "out must be (value array(s), {input: partial array(s)}) "
                     f"with a partial for each input given ({', '.join(names)})"
                 ) from None
-        parts = evaluate(flat, arguments, out=flat_out)
+        if workers is None:
+            workers = self._si.workers
+        parts = evaluate(flat, arguments, out=flat_out, workers=workers)
 
         def pick(k):
             chunk = parts[k * width : (k + 1) * width]
@@ -659,7 +667,7 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
         validity=validity,
         checker=check,
         array_api=False,
-        blocked=True,
+        blocked=False,  # the solver blocks its own work (and takes workers=)
         numpy_only_reason=_SOLVER_REASON,
         fixed={
             "donor": donor,

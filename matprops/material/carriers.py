@@ -59,6 +59,9 @@ _SYMBOLS = {
     "in": "indium",
 }
 STATISTICS = ("fermi-dirac", "boltzmann")
+# the equilibrium's outputs a caller keeps (a large solve holds only those)
+CARRIER_FIELDS = ("electron_density", "hole_density")
+_SHIFT_FIELDS = ("conduction_edge_shift", "valence_edge_shift")
 
 DERIVED = {
     "effective_intrinsic_density": (
@@ -190,24 +193,33 @@ class _Bound:
         fermi_dirac=True,
         complete=False,
         workers=None,
+        start=None,
+        fields=None,
     ):
         """The equilibrium solve on plain arrays; ``complete``: every dopant ionised.
 
         Large inputs are solved block by block (each block's densities of states,
         levels and narrowing computed with it), so that memory stays the outputs plus a
-        few blocks; ``workers``: threads solving blocks side by side."""
+        few blocks; ``workers``: threads solving blocks side by side; ``start``: the
+        reduced Fermi level and narrowing ``(eta, s)`` to start from (see
+        :func:`matprops.kernels.equilibrium.solve`); ``fields``: the outputs to keep
+        (None: every one, and ``temperature``)."""
+        arguments = {
+            "temperature": temperature,
+            "donor_density": donor_density,
+            "acceptor_density": acceptor_density,
+        }
+        if start is not None:
+            arguments["start_eta"], arguments["start_s"] = start
         return evaluate(
             self._equilibrium_block,
-            {
-                "temperature": temperature,
-                "donor_density": donor_density,
-                "acceptor_density": acceptor_density,
-            },
+            arguments,
             workers=workers,
             donor=donor,
             acceptor=acceptor,
             fermi_dirac=fermi_dirac,
             complete=complete,
+            fields=fields,
         )
 
     def _equilibrium_block(
@@ -219,6 +231,9 @@ class _Bound:
         acceptor="boron",
         fermi_dirac=True,
         complete=False,
+        start_eta=None,
+        start_s=None,
+        fields=None,
     ):
         """The equilibrium solve of one block (see :meth:`equilibrium`)."""
         t, nd, na = np.broadcast_arrays(
@@ -251,8 +266,11 @@ class _Bound:
             acceptor_degeneracy=g_a,
             gap_offset=self.gap_offset(t),
             fermi_dirac=fermi_dirac,
+            start=None if start_eta is None else (start_eta, start_s),
         )
         result["temperature"] = t
+        if fields is not None:
+            return {key: result[key] for key in fields}
         return result
 
     def effective_intrinsic_density(
@@ -389,7 +407,11 @@ class CarrierMethods:
             _, low, high = prepared[key]
             ionisation.select(species).check("dopant_density", low, high, self.strict)
 
-    def _solve(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False):
+    def _solve(
+        self, temperature, Na, Nd, donor, acceptor, statistics, complete=False, fields=None
+    ):
+        """The equilibrium at the public inputs (checked); ``fields``: the outputs to keep
+        (None: all), so that a large solve holds only those in memory."""
         donor = dopant_species(donor, "donor", "donor")
         acceptor = dopant_species(acceptor, "acceptor", "acceptor")
         bound = self._carriers()
@@ -410,6 +432,8 @@ class CarrierMethods:
             acceptor,
             fermi_dirac,
             complete,
+            workers=self.workers,
+            fields=fields,
         )
         return result, donor, acceptor, fermi_dirac
 
@@ -437,7 +461,9 @@ class CarrierMethods:
                     f"given together with {'p' if n is None else 'n'} (or both omitted)",
                     None,
                 )
-            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
+            result, *_ = self._solve(
+                temperature, Na, Nd, donor, acceptor, None, fields=_SHIFT_FIELDS
+            )
             return result["conduction_edge_shift"], result["valence_edge_shift"]
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
         dec, dev = self._call(bound.narrowing, prepared)
@@ -474,7 +500,9 @@ class CarrierMethods:
                     f"given together with {'p' if n is None else 'n'} (or both omitted)",
                     None,
                 )
-            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
+            result, *_ = self._solve(
+                temperature, Na, Nd, donor, acceptor, None, fields=CARRIER_FIELDS
+            )
             n, p = result["electron_density"], result["hole_density"]
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
         self.model("intrinsic_density").check(
@@ -485,7 +513,8 @@ class CarrierMethods:
         arrays = {k: v[0] for k, v in prepared.items()}
         arrays.setdefault("donor_density", 0.0)
         arrays.setdefault("acceptor_density", 0.0)
-        value = evaluate(bound.effective_intrinsic_density, arrays)  # blocks if large
+        # blocks if large
+        value = evaluate(bound.effective_intrinsic_density, arrays, workers=self.workers)
         shape = np.broadcast_shapes(*(np.shape(a) for a in arrays.values()))
         if np.shape(value) != shape:
             value = np.broadcast_to(value, shape)

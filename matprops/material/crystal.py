@@ -61,7 +61,7 @@ class CrystalMethods:
         def composed(temperature):
             return function(lattice(temperature=temperature), *args)
 
-        return evaluate(composed, {"temperature": prepared[0]})
+        return evaluate(composed, {"temperature": prepared[0]}, workers=self.workers)
 
     def lattice_constant(self, temperature):
         """Cubic lattice constant a(T), nm.

@@ -51,6 +51,7 @@ from ..kernels import srh_lifetime as srh
 from ..kernels._blocks import evaluate
 from ..kernels.constants import ELEMENTARY_CHARGE
 from ..units import coerce, quantity, unit
+from .carriers import CARRIER_FIELDS
 from .results import Result
 
 __all__ = ["DERIVED", "ImpliedVoltage", "Lifetimes", "RecombinationMethods"]
@@ -202,7 +203,9 @@ class RecombinationMethods:
             p0_array, *p0_range = coerce(p0, "p0")
             given = True
         else:
-            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics)
+            result, *_ = self._solve(
+                temperature, Na, Nd, donor, acceptor, statistics, fields=CARRIER_FIELDS
+            )
             n0_array, p0_array = result["electron_density"], result["hole_density"]
             n0_range, p0_range = _range(n0_array), _range(p0_array)
             given = False
@@ -246,7 +249,9 @@ class RecombinationMethods:
 
     def _intrinsic(self, state: _State, part="total", excess=None):
         model = self.model("intrinsic_lifetime")
-        return evaluate(model.function or model, state.kernel_inputs(excess), part=part)
+        return evaluate(
+            model.function or model, state.kernel_inputs(excess), workers=self.workers, part=part
+        )
 
     # ------------------------------------------------------------------ intrinsic
     def intrinsic_lifetime(

@@ -51,6 +51,10 @@ class Silicon(
         leaves a model's validity range.
     catalog : Catalog, optional
         Where the data come from (default: the installed ``datasets/``).
+    workers : int, optional
+        Threads that evaluate the blocks of a large input side by side (numpy releases
+        the GIL inside its loops). None or 1: one thread. The numbers are the same bit
+        for bit whatever the number of workers (the blocks are the same).
 
     Inputs are plain numbers or arrays in default units (temperature in K) or pint
     quantities (``matprops.Q_(25, "degC")``); arrays broadcast; a scalar input
@@ -63,6 +67,7 @@ class Silicon(
         models: Mapping[str, str] | None = None,
         strict: bool = False,
         catalog: Catalog | None = None,
+        workers: int | None = None,
     ):
         catalog = catalog or default_catalog()
         self.release = catalog.release(
@@ -73,6 +78,10 @@ class Silicon(
         if not isinstance(strict, (bool, np.bool_)):  # strict="no" is not False
             raise InputError("strict", "True or False", repr(strict))
         self.strict = bool(strict)
+        from ..kernels._blocks import check_workers
+
+        check_workers(workers)
+        self.workers = workers
         overrides = dict(models or {})
         known = set(self.catalog.quantities())
         for name in overrides:
@@ -91,7 +100,14 @@ class Silicon(
         # pickled by release, overrides, strict flag and catalogue, re-bound on load;
         # the model files' hashes travel along so that both sides use the same numbers
         hashes = {q: m.sha256 for q, m in self._models.items()}
-        return _restore, (self.catalog, self.release.id, self._overrides, self.strict, hashes)
+        return _restore, (
+            self.catalog,
+            self.release.id,
+            self._overrides,
+            self.strict,
+            hashes,
+            self.workers,
+        )
 
     def _bind(self, name: str, choice: Mapping[str, str], chain=()) -> Model:
         if name in self._models:
@@ -183,7 +199,8 @@ class Silicon(
             ranges[argument] = (low, high)
         if model.regions:
             model.check_regions(values, self.strict, ranges)
-        return evaluate(model.function or model, values)  # in blocks for large inputs
+        # in blocks for large inputs (on ``workers`` threads)
+        return evaluate(model.function or model, values, workers=self.workers)
 
     def _quantity(self, name: str, **arguments):
         result, units = self._evaluate(name, **arguments)
@@ -279,8 +296,10 @@ class Silicon(
         )
 
 
-def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
-    si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog)
+def _restore(catalog, release, overrides, strict, hashes, workers=None) -> Silicon:
+    si = Silicon(
+        release=release, models=overrides, strict=strict, catalog=catalog, workers=workers
+    )
     for name, model in si._models.items():
         if model.sha256 != hashes.get(name):
             raise DatasetError(
@@ -293,10 +312,13 @@ def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
 
 
 def silicon(
-    release: str | None = None, models: Mapping[str, str] | None = None, strict: bool = False
+    release: str | None = None,
+    models: Mapping[str, str] | None = None,
+    strict: bool = False,
+    workers: int | None = None,
 ) -> Silicon:
     """Silicon as described by a release (newest by default); see :class:`Silicon`."""
-    return Silicon(release=release, models=models, strict=strict)
+    return Silicon(release=release, models=models, strict=strict, workers=workers)
 
 
 def releases() -> list[str]:

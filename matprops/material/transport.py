@@ -29,13 +29,13 @@ import numpy as np
 
 from ..errors import (
     InputError,
-    SolverError,
     ValidityError,
     ValidityWarning,
     warn,
 )
 from ..kernels import resistivity as resistivity_kernels
-from ..kernels.constants import BOLTZMANN_EV
+from ..kernels._blocks import evaluate, solver_error
+from ..kernels.constants import BOLTZMANN_EV, ELEMENTARY_CHARGE
 from ..kernels.diffusivity import einstein_factor
 from ..units import coerce, quantity
 from .carriers import DOPANTS, dopant_species
@@ -77,8 +77,10 @@ DERIVED = {
         ("mobility", *_EQUILIBRIUM),
         (
             "the density N of one dopant species with rho(T, N) equal to the given "
-            "resistivity, rho as for resistivity; solved for all points at once (Illinois "
-            "false position in ln N, to 1e-13 in ln N) on the doping-dominated branch: for "
+            "resistivity, rho as for resistivity; solved for all points at once (secant "
+            "steps in ln N from N = 1/(q rho mu) at the low-density mobility, kept in a "
+            "bracket, each equilibrium started from the last one; until rho is reproduced to "
+            "1e-12 relative or ln N moves by less than 1e-13) on the doping-dominated branch: for "
             "acceptors above the resistivity maximum at N = ni (sqrt(r) - 1/sqrt(r)), "
             "r = mu_n/mu_p of intrinsic silicon"
         ),
@@ -89,6 +91,14 @@ DERIVED = {
 KERNELS = ("thermal_velocity", "saturation_velocity", "mobility", "high_field_mobility")
 
 _HIGHEST_DENSITY = 1e21  # cm^-3: the top of the bracket for doping from resistivity
+# the equilibrium's outputs the transport quantities use (a large solve keeps only those)
+_TRANSPORT_FIELDS = (
+    "temperature",
+    "ionised_donors",
+    "ionised_acceptors",
+    "electron_density",
+    "hole_density",
+)
 
 
 def carrier_name(value, argument: str = "carrier") -> str:
@@ -196,7 +206,14 @@ class TransportMethods:
         ionise = takes_ionised and dopant_densities == "total"
         if ionise or (wants_carriers and n is None):
             result, *_ = self._solve(
-                temperature, Na, Nd, donor, acceptor, statistics, complete_ionisation(model)
+                temperature,
+                Na,
+                Nd,
+                donor,
+                acceptor,
+                statistics,
+                complete_ionisation(model),
+                fields=_TRANSPORT_FIELDS,
             )
             if ionise:
                 prepared["donor_density"] = _extremes(result["ionised_donors"])
@@ -367,7 +384,35 @@ class TransportMethods:
         density (``carrier_densities = "complete-ionisation"``) already holds the
         incomplete ionisation of its data in its product n mu, so sigma takes the
         complete-ionisation carriers; otherwise the equilibrium free carriers.
+
+        Large inputs are evaluated block by block (equilibrium, mobilities and sigma of
+        each block together), so that memory stays about the output; the validity of the
+        mobility models is checked on the extremes of every block's inputs.
         """
+        seen = [] if check else None
+        sigma = evaluate(
+            self._conductivity_block,
+            {"t": t, "nd": nd, "na": na},
+            workers=self.workers,
+            donor=donor,
+            acceptor=acceptor,
+            seen=seen,
+        )
+        if check:
+            ranges = {}
+            for model, name, low, high in seen:
+                old = ranges.get((id(model), name), (model, np.inf, -np.inf))
+                ranges[(id(model), name)] = (model, min(old[1], low), max(old[2], high))
+            for (_, name), (model, low, high) in ranges.items():
+                if low <= high:
+                    model.check(name, low, high, self.strict)
+        return sigma
+
+    def _conductivity_block(self, t, nd, na, donor, acceptor, seen=None, start=None, keep=None):
+        """sigma of one block (see :meth:`_conductivity`); ``seen``: a list that collects
+        (model, input, min, max) for the validity checks; ``start``: {complete: (eta,
+        s)} to start each equilibrium from; ``keep``: a dict that receives the solved
+        equilibria {complete: result}."""
         bound = self._carriers()
         fermi_dirac = bound.statistics == "fermi-dirac"
         models = [self._mobility_model(carrier, donor, acceptor) for carrier in CARRIERS]
@@ -375,9 +420,18 @@ class TransportMethods:
         for model in models:
             complete = complete_ionisation(model)
             if complete not in solved:
-                solved[complete] = bound.equilibrium(
-                    t, nd, na, donor, acceptor, fermi_dirac, complete
+                solved[complete] = bound._equilibrium_block(
+                    t,
+                    nd,
+                    na,
+                    donor,
+                    acceptor,
+                    fermi_dirac,
+                    complete,
+                    *(start[complete] if start else (None, None)),
                 )
+        if keep is not None:
+            keep.update(solved)
         conductivities = []
         for carrier, model in zip(CARRIERS, models, strict=True):
             result = solved[complete_ionisation(model)]
@@ -389,9 +443,9 @@ class TransportMethods:
                 "electron_density": result["electron_density"],
                 "hole_density": result["hole_density"],
             }
-            if check:
+            if seen is not None:
                 for name in model.inputs:
-                    model.check(name, *_extremes(values[name])[1:], self.strict)
+                    seen.append((model, name, *_extremes(values[name])[1:]))
             mobility = model(**{k: values[k] for k in model.inputs})
             density = values["electron_density" if carrier == "electron" else "hole_density"]
             conductivities.append((density, mobility))
@@ -549,6 +603,13 @@ class TransportMethods:
         ni = self._carriers().ni(temperature=temperatures)
         if kind == "donor":
             return np.maximum(1e-3 * ni, 1e-30)
+        mu = self._intrinsic_mobilities(temperatures, donor, acceptor)
+        root = np.sqrt(np.maximum(mu["electron"] / mu["hole"], 1.0))
+        return np.maximum(ni * (root - 1.0 / root), 1e-3 * ni)
+
+    def _intrinsic_mobilities(self, temperatures, donor, acceptor):
+        """{carrier: mobility} of intrinsic silicon (no dopants, n = p = ni), cm^2/(V s)."""
+        ni = self._carriers().ni(temperature=temperatures)
         zeros = np.zeros_like(ni)
         state = {
             "temperature": temperatures,
@@ -557,55 +618,102 @@ class TransportMethods:
             "electron_density": ni,
             "hole_density": ni,
         }
-        mu = [
-            model(**{k: state[k] for k in model.inputs})
-            for model in (self._mobility_model(c, donor, acceptor) for c in CARRIERS)
-        ]
-        root = np.sqrt(np.maximum(mu[0] / mu[1], 1.0))
-        return np.maximum(ni * (root - 1.0 / root), 1e-3 * ni)
+        return {
+            carrier: model(**{k: state[k] for k in model.inputs})
+            for carrier, model in ((c, self._mobility_model(c, donor, acceptor)) for c in CARRIERS)
+        }
 
     def _invert_resistivity(self, target, temperatures, species, donor, acceptor):
-        """N (1-D) with rho(T, N) = target on the doping-dominated branch."""
-        kind = DOPANTS[species]
+        """N (1-D) with rho(T, N) = target on the doping-dominated branch, solved block
+        by block (the memory of a block, not of the whole input)."""
         if target.size == 0:
             return np.zeros(0)
+        return evaluate(
+            self._invert_block,
+            {"target": target, "temperatures": temperatures},
+            locate=True,
+            workers=self.workers,
+            species=species,
+            donor=donor,
+            acceptor=acceptor,
+        )
+
+    def _invert_block(self, target, temperatures, species, donor, acceptor, offset=0):
+        """The inversion of one block (1-D); ``offset``: the block's first point's index.
+
+        Illinois false position in ln N inside the bracket; every evaluation of rho
+        solves its equilibria from the state last solved at that point, its reduced
+        Fermi level moved by the change of ln N (the majority carrier follows the
+        dopant), so that each takes one or two Newton passes instead of a solve from
+        scratch."""
+        kind = DOPANTS[species]
+        target = np.asarray(target, dtype=float)
+        temperatures = np.broadcast_to(temperatures, target.shape)
         log_target = np.log(target)
+        sign = 1.0 if kind == "donor" else -1.0  # d eta / d ln N of the majority carrier
+        last = {}  # complete -> (ln N, eta, s) of the last state solved at each point
 
         def log_rho(log_n, index):
             density = np.exp(log_n)
             zeros = np.zeros_like(density)
             nd, na = (density, zeros) if kind == "donor" else (zeros, density)
-            sigma = self._conductivity(temperatures[index], nd, na, donor, acceptor, check=False)
+            start = None
+            if last:
+                start = {
+                    complete: (eta[index] + sign * (log_n - x[index]), s[index])
+                    for complete, (x, eta, s) in last.items()
+                }
+            keep = {}
+            sigma = self._conductivity_block(
+                temperatures[index], nd, na, donor, acceptor, start=start, keep=keep
+            )
+            for complete, result in keep.items():
+                if complete not in last:
+                    last[complete] = tuple(np.empty(target.size) for _ in range(3))
+                x, eta, s = last[complete]
+                x[index] = log_n
+                eta[index] = result["reduced_fermi_level"]
+                s[index] = (result["conduction_edge_shift"] + result["valence_edge_shift"]) / (
+                    BOLTZMANN_EV * result["temperature"]
+                )
             return -np.log(sigma)
 
-        everything = np.arange(target.size)
         low = np.log(self._lowest_density(temperatures, kind, donor, acceptor))
         high = np.full(target.size, np.log(_HIGHEST_DENSITY))
-        rho_low, rho_high = log_rho(low, everything), log_rho(high, everything)
-        for bad, limit, what in (
-            (log_target > rho_low, rho_low, "at most"),
-            (log_target < rho_high, rho_high, "at least"),
-        ):
+        # first guess: the majority carriers alone at their low-density mobility
+        # (N = 1 / (q rho mu_L), an underestimate where the mobility falls with N)
+        carrier = CARRIERS[0] if kind == "donor" else CARRIERS[1]
+        mobility = self._intrinsic_mobilities(temperatures, donor, acceptor)[carrier]
+        guess = -np.log(ELEMENTARY_CHARGE * mobility) - log_target
+        log_n, converged, reach = resistivity_kernels.solve_decreasing_from(
+            log_rho, log_target, guess, low, high
+        )
+        for where, limit, what in ((-1, low, "at most"), (1, high, "at least")):
+            bad = reach == where
             if bad.any():
                 i = np.flatnonzero(bad)[0]
+                edge = np.exp(log_rho(limit[i : i + 1], np.array([i]))[0])
                 raise InputError(
                     "resistivity",
-                    f"{what} {np.exp(limit[i]):.4g} ohm*cm for "
+                    f"{what} {edge:.4g} ohm*cm for "
                     f"{species}-doped silicon at {temperatures[i]:g} K (what "
                     f"{np.exp(low[i]):.3g}-{_HIGHEST_DENSITY:.0e} cm^-3 give)",
-                    f"{target[i]:g} ohm*cm at point #{i} "
-                    f"({np.count_nonzero(bad)} point(s) out of reach)",
+                    f"{target[i]:g} ohm*cm at point #{offset + i} "
+                    f"({np.count_nonzero(bad)} point(s) out of reach among "
+                    f"#{offset}-#{offset + target.size - 1})",
                 )
-        log_n, converged = resistivity_kernels.solve_decreasing(
-            log_rho, log_target, low, high, f_low=rho_low, f_high=rho_high
-        )
         if not converged.all():
             bad = np.flatnonzero(~converged)
-            raise SolverError(
-                f"doping_from_resistivity: {bad.size} point(s) did not "
-                f"converge, e.g. #{bad[0]}: {target[bad[0]]:g} ohm*cm at "
-                f"{temperatures[bad[0]]:g} K"
-            )
+            points = [
+                {
+                    "index": int(offset + i),
+                    "flat": int(offset + i),
+                    "inputs": (f"rho={target[i]:g} ohm*cm", f"T={temperatures[i]:g} K"),
+                    "detail": "the iterations ran out",
+                }
+                for i in bad[:5]
+            ]
+            raise solver_error("doping_from_resistivity", "did not converge", bad.size, points)
         return np.exp(log_n)
 
     # ------------------------------------------------------------------ kernels
