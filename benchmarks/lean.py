@@ -343,35 +343,37 @@ def resistivity_loop(si, rho, T, dopant="boron"):
     lows = np.log(si._lowest_density(T, "acceptor" if acceptor else "donor", "phosphorus", "boron"))
     out = np.empty(rho.size)
     for i in range(rho.size):
-        temperature, kt, gap, nc, nv, t = float(T[i]), kts[i], gaps[i], ncs[i], nvs[i], ts[i]
-        last = {}
-
-        def log_rho(log_n):
-            density = math.exp(log_n)
-            nd, na = (0.0, density) if acceptor else (density, 0.0)
-            states, sigma = {}, 0.0
-            for carrier, (mobility, complete, ionised) in enumerate(models):
-                if complete not in states:
-                    states[complete] = equations.solve(
-                        kt, gap, nc, nv, t, nd, na, complete, last.get(complete)
-                    )
-                    last[complete] = states[complete][0]
-                _, n, p, donors, acceptors = states[complete]
-                if ionised:
-                    mu = mobility(temperature, donors, acceptors, n, p)
-                else:
-                    mu = mobility(temperature, nd, na, n, p)
-                sigma += ELEMENTARY_CHARGE * (p if carrier else n) * mu
-            return -math.log(sigma)
-
+        point = (float(T[i]), kts[i], gaps[i], ncs[i], nvs[i], ts[i])
         target = math.log(float(rho[i]))
         out[i] = math.exp(
             brentq(
-                lambda x: log_rho(x) - target,
+                _residual,
                 float(lows[i]),
                 math.log(1e21),
+                args=(point, target, equations, models, acceptor, {}),
                 xtol=XTOL,
                 rtol=8.9e-16,
             )
         )
     return out
+
+
+def _residual(log_n, point, target, equations, models, acceptor, last):
+    """ln rho(N) - ln rho_target at one point (``last``: the last Fermi level found)."""
+    temperature, kt, gap, nc, nv, t = point
+    density = math.exp(log_n)
+    nd, na = (0.0, density) if acceptor else (density, 0.0)
+    states, sigma = {}, 0.0
+    for carrier, (mobility, complete, ionised) in enumerate(models):
+        if complete not in states:
+            states[complete] = equations.solve(
+                kt, gap, nc, nv, t, nd, na, complete, last.get(complete)
+            )
+            last[complete] = states[complete][0]
+        _, n, p, donors, acceptors = states[complete]
+        if ionised:
+            mu = mobility(temperature, donors, acceptors, n, p)
+        else:
+            mu = mobility(temperature, nd, na, n, p)
+        sigma += ELEMENTARY_CHARGE * (p if carrier else n) * mu
+    return -math.log(sigma) - target

@@ -273,8 +273,7 @@ def _conversion(value, units: str, argument: str):
                     # an offset unit (degC, degF): x * scale + offset, the scale read
                     # from the image of 1024 (to an ulp)
                     points = [
-                        float(owner.Quantity(x, units_key).m_as(target))
-                        for x in (0.0, 1.0, 1024.0)
+                        float(owner.Quantity(x, units_key).m_as(target)) for x in (0.0, 1.0, 1024.0)
                     ]
                     offset, one, far = points
                     factor = one if offset == 0.0 else (far - offset) / 1024.0

@@ -13,7 +13,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-HEADER = '''"""pint's conversion factors for the unit strings of the data files (generated: do not edit).
+HEADER = '''"""pint's factors for the unit strings of the data files (generated: do not edit).
 
 Written by tools/make_unit_factors.py with pint {version}: (units as written in a data
 file, the kernel's internal units) -> the factor pint multiplies by. Loading the

@@ -1,4 +1,4 @@
-"""pint's conversion factors for the unit strings of the data files (generated: do not edit).
+"""pint's factors for the unit strings of the data files (generated: do not edit).
 
 Written by tools/make_unit_factors.py with pint 0.25.3: (units as written in a data
 file, the kernel's internal units) -> the factor pint multiplies by. Loading the

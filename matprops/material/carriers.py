@@ -407,9 +407,7 @@ class CarrierMethods:
             _, low, high = prepared[key]
             ionisation.select(species).check("dopant_density", low, high, self.strict)
 
-    def _solve(
-        self, temperature, Na, Nd, donor, acceptor, statistics, complete=False, fields=None
-    ):
+    def _solve(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False, fields=None):
         """The equilibrium at the public inputs (checked); ``fields``: the outputs to keep
         (None: all), so that a large solve holds only those in memory."""
         donor = dopant_species(donor, "donor", "donor")

@@ -297,9 +297,7 @@ class Silicon(
 
 
 def _restore(catalog, release, overrides, strict, hashes, workers=None) -> Silicon:
-    si = Silicon(
-        release=release, models=overrides, strict=strict, catalog=catalog, workers=workers
-    )
+    si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog, workers=workers)
     for name, model in si._models.items():
         if model.sha256 != hashes.get(name):
             raise DatasetError(
