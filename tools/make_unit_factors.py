@@ -44,7 +44,7 @@ def main() -> int:
     for units, target in sorted(fields.CONVERSIONS_SEEN):
         factor = fields.pint_factor(units, target)
         if factor is not None:
-            lines.append(f"    ({units!r}, {target!r}): {factor!r},\n")
+            lines.append(f'    ("{units}", "{target}"): {factor!r},\n')
     lines.append("}\n")
     target = root / "matprops" / "catalogue" / "_unit_factors.py"
     target.write_text("".join(lines))

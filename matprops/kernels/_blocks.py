@@ -144,7 +144,7 @@ def evaluate(
         try:
             return function(**values, **options)
         except SolverError as error:
-            raise relocated(error, shape, where, axis) from None
+            raise relocated(error, shape, where, axis, first_only=len(blocks) > 1) from None
 
     def store(where, result):
         outer, start, stop = where
@@ -237,10 +237,12 @@ if hasattr(os, "register_at_fork"):
     os.register_at_fork(after_in_child=_forget_pools)
 
 
-def relocated(error, shape, where=None, axis=None):
+def relocated(error, shape, where=None, axis=None, first_only=False):
     """A solver error whose points (``error.points``, indices into the block) are
     named by their index in the whole input of ``shape`` (the block ``where`` =
-    (outer indices, start, stop) along ``axis``, as :func:`evaluate` cuts them)."""
+    (outer indices, start, stop) along ``axis``, as :func:`evaluate` cuts them);
+    ``first_only``: the input had several blocks and this one failed first (the count
+    is this block's; later blocks were not solved)."""
     points = getattr(error, "points", None)
     if points is None:
         return error
@@ -257,7 +259,18 @@ def relocated(error, shape, where=None, axis=None):
         point["index"] = tuple(int(i) for i in index)
         point["flat"] = int(np.ravel_multi_index(point["index"], shape)) if shape else flat
         moved.append(point)
-    return solver_error(error.subject, error.what, error.count, moved)
+    what = error.what
+    if first_only and where is not None:
+        outer, start, stop = where
+        size = (stop - start) * math.prod(shape[axis + 1 :])
+        first = int(
+            np.ravel_multi_index(tuple(outer) + (start,) + (0,) * (len(shape) - axis - 1), shape)
+        )
+        what = (
+            f"{what} in the first block that failed (points #{first}-#{first + size - 1} "
+            "in C order; the blocks after it were not solved)"
+        )
+    return solver_error(error.subject, what, error.count, moved)
 
 
 def solver_error(subject, what, count, points):

@@ -2,12 +2,21 @@
 
 from __future__ import annotations
 
+from .registry import OPTICAL_TEMPERATURES, WAVELENGTHS, case
+from .registry import quantity as declare
+
 __all__ = ["OpticalMethods"]
 
 
 class OpticalMethods:
     """Absorption and refraction of light."""
 
+    @declare(
+        units="1/cm",
+        long_name="band-to-band absorption coefficient",
+        log=True,
+        cases=[case(wavelength=WAVELENGTHS, temperature=OPTICAL_TEMPERATURES)],
+    )
     def absorption(self, wavelength, temperature):
         """Band-to-band absorption coefficient, 1/cm.
 
@@ -22,10 +31,28 @@ class OpticalMethods:
         """
         return self._quantity("absorption", wavelength=wavelength, temperature=temperature)
 
+    @declare(
+        units="dimensionless",
+        long_name="real part of the complex refractive index",
+        cases=[case(wavelength=WAVELENGTHS, temperature=OPTICAL_TEMPERATURES)],
+    )
     def refractive_index(self, wavelength, temperature):
         """Real part of the complex refractive index (dimensionless)."""
         return self._quantity("refractive_index", wavelength=wavelength, temperature=temperature)
 
+    @declare(
+        units="1/cm",
+        long_name="free-carrier absorption coefficient",
+        wants=("electron_density", "hole_density"),
+        log=True,
+        cases=[
+            case(
+                wavelength=[1000.0, 1300.0, 1450.0, 1550.0, 2000.0, 5000.0],
+                n=[0.0, 1e16, 1e19],
+                p=[0.0, 1e16, 1e19],
+            )
+        ],
+    )
     def free_carrier_absorption(self, wavelength, n=0, p=0):
         """Free-carrier absorption coefficient, 1/cm, for electron and hole densities
         ``n`` and ``p`` (cm^-3); add it to :meth:`absorption` for doped or injected

@@ -30,6 +30,7 @@ from .crystal import CrystalMethods
 from .derived import DERIVED
 from .optical import OpticalMethods
 from .recombination import RecombinationMethods
+from .registry import REGISTRY
 from .transport import TransportMethods
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
@@ -60,6 +61,8 @@ class Silicon(
     quantities (``matprops.Q_(25, "degC")``); arrays broadcast; a scalar input
     gives a scalar output. Outputs are pint quantities.
     """
+
+    workers: int | None = None  # (a copy made without __init__ works on one thread)
 
     def __init__(
         self,
@@ -134,7 +137,7 @@ class Silicon(
 
     def model(self, name: str) -> Model:
         """The bound :class:`~matprops.catalogue.records.Model` serving a quantity."""
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         if name not in self._models:
             if name in DERIVED:
                 raise UnknownQuantityError(
@@ -163,7 +166,7 @@ class Silicon(
         """
         from .bound import make_kernel
 
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         try:
             key = (name, tuple(sorted(fixed.items())))
             hash(key)
@@ -209,7 +212,7 @@ class Silicon(
     # ------------------------------------------------------------------ provenance
     def provenance(self, name: str) -> dict:
         """Model id, source, DOI, validity, coefficients, release, and overrides."""
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         if name in DERIVED:
             parts, formula = DERIVED[name]
             record = {
@@ -330,3 +333,14 @@ def models(quantity: str | None = None):
     if quantity is None:
         return {q: catalog.model_ids(q) for q in catalog.quantities()}
     return catalog.model_ids(quantity)
+
+
+def _give_uncertainty():
+    """Every public method answers uncertainty=True (see matprops.material.uncertainty)."""
+    from .uncertainty import public_methods, with_uncertainty
+
+    for method_name in public_methods():
+        setattr(Silicon, method_name, with_uncertainty(getattr(Silicon, method_name)))
+
+
+_give_uncertainty()

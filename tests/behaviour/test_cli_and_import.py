@@ -301,10 +301,7 @@ def test_demo_uses_the_invented_two_site_scenario(capsys, tmp_path):
     assert "INVENTED" in provenance["attrs"]["scenario"]
 
 
-def test_demo_shows_doping_quantities_once_they_exist(capsys, monkeypatch):
-    import matprops
-    from matprops.material.tables import QUANTITIES, Tabulated
-
+def test_demo_shows_doping_quantities_once_they_exist(capsys, plug_quantity):
     def fake(self, T, Na=0, Nd=0):  # a stand-in, NOT physics
         from matprops.units import quantity, to_magnitude
 
@@ -315,17 +312,7 @@ def test_demo_shows_doping_quantities_once_they_exist(capsys, monkeypatch):
             "eV",
         )
 
-    monkeypatch.setattr(matprops.Silicon, "gap_narrowing", fake, raising=False)
-    monkeypatch.setitem(
-        QUANTITIES,
-        "gap_narrowing",
-        Tabulated(
-            "gap_narrowing",
-            {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"},
-            (("gap_narrowing", "stand-in"),),
-            needs=("band_gap",),
-        ),
-    )
+    plug_quantity(fake, "gap_narrowing", units="eV", long_name="stand-in", models=("band_gap",))
     code, out, err = run(capsys, "demo", "--format", "csv")
     assert code == 0, err
     frame = pd.read_csv(io.StringIO(out))
@@ -413,12 +400,12 @@ def test_optical_table(tmp_path, capsys):
         == 0
     )
     out = capsys.readouterr().out
-    assert "absorption_" in out and "coefficient" in out and "green-2008-franta-2017" in out
+    assert "absorption" in out and "refractive_index" in out and "green-2008-franta-2017" in out
     path = tmp_path / "optics.nc"
     assert main(["table", "-t", "300", "-w", "1000", "-o", str(path)]) == 0
     with xr.open_dataset(path) as data:
-        assert data.absorption_coefficient.dims == ("temperature", "wavelength")
-        assert data.absorption_coefficient.values.item() == pytest.approx(64.0, rel=1e-3)
+        assert data.absorption.dims == ("temperature", "wavelength")
+        assert data.absorption.values.item() == pytest.approx(64.0, rel=1e-3)
 
 
 @pytest.fixture
