@@ -213,12 +213,17 @@ class _Bound:
         start_eta=None,
         start_s=None,
         fields=None,
+        states=None,
     ):
-        """The equilibrium solve of one block (see :meth:`equilibrium`)."""
+        """The equilibrium solve of one block (see :meth:`equilibrium`); ``states``:
+        ``(Nc, Nv, ni)`` at these temperatures if already known (an inverse problem
+        solves at the same temperatures again and again)."""
         t, nd, na = np.broadcast_arrays(
             *(np.asarray(a, dtype=float) for a in (temperature, donor_density, acceptor_density))
         )
-        nc, nv = self.dos(temperature=t)
+        nc, nv, ni = states if states is not None else (*self.dos(temperature=t), None)
+        if ni is None:
+            ni = self.ni(temperature=t)
         donor_level, g_d = self.level(donor, nd, complete)
         acceptor_level, g_a = self.level(acceptor, na, complete)
 
@@ -236,7 +241,7 @@ class _Bound:
             na,
             conduction_states=nc,
             valence_states=nv,
-            intrinsic_density=self.ni(temperature=t),
+            intrinsic_density=ni,
             narrowing=narrowing,
             narrowing_uses_carriers=self.uses_carriers,
             donor_level=donor_level,

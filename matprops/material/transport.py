@@ -429,11 +429,13 @@ class TransportMethods:
                     model.check(name, low, high, self.strict)
         return sigma
 
-    def _conductivity_block(self, t, nd, na, donor, acceptor, seen=None, start=None, keep=None):
+    def _conductivity_block(
+        self, t, nd, na, donor, acceptor, seen=None, start=None, keep=None, states=None
+    ):
         """sigma of one block (see :meth:`_conductivity`); ``seen``: a list that collects
         (model, input, min, max) for the validity checks; ``start``: {complete: (eta,
         s)} to start each equilibrium from; ``keep``: a dict that receives the solved
-        equilibria {complete: result}."""
+        equilibria {complete: result}; ``states``: (Nc, Nv, ni) at ``t`` if known."""
         bound = self._carriers()
         fermi_dirac = bound.statistics == "fermi-dirac"
         models = [self._mobility_model(carrier, donor, acceptor) for carrier in CARRIERS]
@@ -450,6 +452,7 @@ class TransportMethods:
                     fermi_dirac,
                     complete,
                     *(start[complete] if start else (None, None)),
+                    states=states,
                 )
         if keep is not None:
             keep.update(solved)
@@ -740,41 +743,64 @@ class TransportMethods:
         """The inversion of one block (1-D); ``offset``: the block's first point's index.
 
         Secant steps in ln N from a first guess, inside a bracket (see
-        :func:`~matprops.kernels.resistivity.solve_decreasing_from`); every evaluation of
-        rho solves its equilibria from the state last solved at that point, its reduced
-        Fermi level moved by the change of ln N (the majority carrier follows the
-        dopant), so that each takes one or two Newton passes instead of a solve from
-        scratch."""
+        :func:`~matprops.kernels.resistivity.solve_decreasing_from`). From the third
+        evaluation of a point on, its equilibria start from the reduced Fermi level and
+        narrowing extrapolated linearly in ln N from its last two solved states (the
+        secant steps shrink fast, so that start is close and each solve takes one or two
+        Newton passes instead of three); the first two start from the solver's own guess
+        (the first step can move ln N by a few units)."""
         kind = DOPANTS[species]
         target = np.asarray(target, dtype=float)
         temperatures = np.broadcast_to(temperatures, target.shape)
         log_target = np.log(target)
-        sign = 1.0 if kind == "donor" else -1.0  # d eta / d ln N of the majority carrier
-        last = {}  # complete -> (ln N, eta, s) of the last state solved at each point
+        history = {}  # complete -> [(ln N, eta, s) arrays of the last two states, newest last]
+        bound = self._carriers()
+        states = tuple(
+            np.broadcast_to(a, target.shape)
+            for a in (*bound.dos(temperature=temperatures), bound.ni(temperature=temperatures))
+        )
+        seen = np.zeros(target.size, dtype=np.int8)  # evaluations of each point so far
 
         def log_rho(log_n, index):
             density = np.exp(log_n)
             zeros = np.zeros_like(density)
             nd, na = (density, zeros) if kind == "donor" else (zeros, density)
             start = None
-            if last:
-                start = {
-                    complete: (eta[index] + sign * (log_n - x[index]), s[index])
-                    for complete, (x, eta, s) in last.items()
-                }
+            if history and seen[index].min() >= 2:
+                start = {}
+                for complete, ((x0, e0, s0), (x1, e1, s1)) in history.items():
+                    step = log_n - x1[index]
+                    with np.errstate(divide="ignore", invalid="ignore"):
+                        run = x1[index] - x0[index]
+                        slope_e = np.where(run != 0, (e1[index] - e0[index]) / run, 0.0)
+                        slope_s = np.where(run != 0, (s1[index] - s0[index]) / run, 0.0)
+                    start[complete] = (e1[index] + slope_e * step, s1[index] + slope_s * step)
             keep = {}
             sigma = self._conductivity_block(
-                temperatures[index], nd, na, donor, acceptor, start=start, keep=keep
+                temperatures[index],
+                nd,
+                na,
+                donor,
+                acceptor,
+                start=start,
+                keep=keep,
+                states=tuple(a[index] for a in states),
             )
             for complete, result in keep.items():
-                if complete not in last:
-                    last[complete] = tuple(np.empty(target.size) for _ in range(3))
-                x, eta, s = last[complete]
+                if complete not in history:
+                    history[complete] = [
+                        tuple(np.zeros(target.size) for _ in range(3)) for _ in range(2)
+                    ]
+                older, newer = history[complete]
+                for kept, fresh in zip(older, newer, strict=True):
+                    kept[index] = fresh[index]  # the newest becomes the older
+                x, eta, s = newer
                 x[index] = log_n
                 eta[index] = result["reduced_fermi_level"]
                 s[index] = (result["conduction_edge_shift"] + result["valence_edge_shift"]) / (
                     BOLTZMANN_EV * result["temperature"]
                 )
+            seen[index] += 1
             return -np.log(sigma)
 
         low = np.log(self._lowest_density(temperatures, kind, donor, acceptor))
