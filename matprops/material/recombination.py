@@ -167,6 +167,9 @@ class _State:
     shape: tuple
     given: bool  # n0, p0 given by the caller instead of solved
     ranges: dict  # kernel input -> (min, max), for the validity checks
+    # n0, p0 to be solved block by block with the lifetime (the dopant densities and the
+    # solve's options), instead of held whole: see RecombinationMethods._intrinsic
+    lazy: tuple | None = None
 
     def kernel_inputs(self, excess=None):
         return {
@@ -198,9 +201,14 @@ class RecombinationMethods:
 
     # ------------------------------------------------------------------ state
     def _recombination_state(
-        self, temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+        self, temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics, lazy=False
     ) -> _State:
-        """Coerce the inputs and get n0, p0 (solved once per (T, Na, Nd) point)."""
+        """Coerce the inputs and get n0, p0 (solved once per (T, Na, Nd) point).
+
+        ``lazy``: where n0, p0 are to be solved for a large input and the lifetime model
+        has no validity regions, they are left to :meth:`_intrinsic`, which solves them
+        block by block with the lifetime (memory: the output and a few blocks); the state
+        then holds the checked dopant densities and the solve's options instead."""
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, excess=excess)
         t = prepared["temperature"][0]
         dn = prepared["excess_density"][0]
@@ -222,6 +230,15 @@ class RecombinationMethods:
             n0_array, *n0_range = coerce(n0, "n0")
             p0_array, *p0_range = coerce(p0, "p0")
             given = True
+        elif lazy and self._lazy_solve_pays(prepared):
+            options = self._solve_options(temperature, Na, Nd, donor, acceptor, statistics)
+            nd, na = prepared["donor_density"][0], prepared["acceptor_density"][0]
+            shape = np.broadcast_shapes(t.shape, nd.shape, na.shape, dn.shape)
+            ranges = {
+                "temperature": prepared["temperature"][1:],
+                "excess_density": prepared["excess_density"][1:],
+            }
+            return _State(t, None, None, dn, shape, False, ranges, (nd, na, options))
         else:
             result, *_ = self._solve(
                 temperature, Na, Nd, donor, acceptor, statistics, fields=CARRIER_FIELDS
@@ -244,6 +261,15 @@ class RecombinationMethods:
             "excess_density": prepared["excess_density"][1:],
         }
         return _State(t, n0_array, p0_array, dn, shape, given, ranges)
+
+    def _lazy_solve_pays(self, prepared) -> bool:
+        """Whether n0, p0 are better solved block by block with the lifetime: an input
+        larger than one block of the solver, and a lifetime model without validity
+        regions (those are checked on the whole arrays)."""
+        from ..kernels.equilibrium import BLOCK
+
+        size = int(np.prod(np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))))
+        return size > BLOCK and not self.model("intrinsic_lifetime").regions
 
     def _check_intrinsic(self, state: _State):
         """Validity of the intrinsic-lifetime model at these inputs; fit conventions."""
@@ -269,9 +295,51 @@ class RecombinationMethods:
 
     def _intrinsic(self, state: _State, part="total", excess=None):
         model = self.model("intrinsic_lifetime")
-        return evaluate(
-            model.function or model, state.kernel_inputs(excess), workers=self.workers, part=part
+        if state.lazy is None:
+            return evaluate(
+                model.function or model,
+                state.kernel_inputs(excess),
+                workers=self.workers,
+                part=part,
+            )
+        nd, na, options = state.lazy
+        bound, function, seen = self._carriers(), model.function or model, []
+
+        def block(temperature, donor_density, acceptor_density, excess_density):
+            solved = bound._equilibrium_block(
+                temperature, donor_density, acceptor_density, **options, fields=CARRIER_FIELDS
+            )
+            n0, p0 = solved["electron_density"], solved["hole_density"]
+            seen.append((*_range(n0), *_range(p0)))
+            return function(
+                temperature=temperature,
+                equilibrium_electron_density=n0,
+                equilibrium_hole_density=p0,
+                excess_density=excess_density,
+                part=part,
+            )
+
+        block.block = getattr(bound._equilibrium_block, "block", None)
+        value = evaluate(
+            block,
+            {
+                "temperature": state.temperature,
+                "donor_density": nd,
+                "acceptor_density": na,
+                "excess_density": state.excess if excess is None else excess,
+            },
+            workers=self.workers,
         )
+        lows_n, highs_n, lows_p, highs_p = zip(*seen, strict=True) if seen else ((),) * 4
+        state.ranges["equilibrium_electron_density"] = (
+            min(lows_n, default=np.inf),
+            max(highs_n, default=-np.inf),
+        )
+        state.ranges["equilibrium_hole_density"] = (
+            min(lows_p, default=np.inf),
+            max(highs_p, default=-np.inf),
+        )
+        return value
 
     # ------------------------------------------------------------------ intrinsic
     @declare(
@@ -337,8 +405,12 @@ class RecombinationMethods:
         >>> si.intrinsic_lifetime(300, Nd=1e16, excess=1e15)        # doctest: +SKIP
         """
         state = self._recombination_state(
-            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics, lazy=True
         )
+        if state.lazy is not None:  # n0, p0 solved with the lifetime: checked after
+            value = self._intrinsic(state)
+            self._check_intrinsic(state)
+            return quantity(_full(value, state.shape), "s")
         self._check_intrinsic(state)
         return quantity(_full(self._intrinsic(state), state.shape), "s")
 
@@ -376,8 +448,12 @@ class RecombinationMethods:
         Arguments as for :meth:`intrinsic_lifetime`.
         """
         state = self._recombination_state(
-            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics, lazy=True
         )
+        if state.lazy is not None:  # n0, p0 solved with the lifetime: checked after
+            value = self._intrinsic(state, "auger")
+            self._check_intrinsic(state)
+            return quantity(_full(value, state.shape), "s")
         self._check_intrinsic(state)
         return quantity(_full(self._intrinsic(state, "auger"), state.shape), "s")
 

@@ -38,7 +38,7 @@ from ..kernels import resistivity as resistivity_kernels
 from ..kernels._blocks import evaluate, solver_error
 from ..kernels.constants import BOLTZMANN_EV, ELEMENTARY_CHARGE
 from ..kernels.diffusivity import einstein_factor
-from ..units import coerce, quantity
+from ..units import coerce, quantity, unit
 from ..vocabulary import CARRIERS, DOPANTS, carrier_name, dopant_species
 from .bound import model_kernel
 from .composition import complete_ionisation
@@ -73,6 +73,15 @@ def _carrier_kernel(si, name, fixed):
 
 def _per_carrier(name, **grid):
     return [case(f"{name}_{c}", fixed={"carrier": c}, **grid) for c in CARRIERS]
+
+
+def _in_units(values, units: str, target: str):
+    """Plain values in ``units`` expressed in ``target`` (no conversion when they agree)."""
+    if units == target or unit(units) == unit(target):
+        return values
+    from ..units import Q_
+
+    return Q_(values, unit(units)).m_as(unit(target))
 
 
 def _choice(value, argument, allowed):
@@ -251,16 +260,80 @@ class TransportMethods:
         Arrays broadcast. ``si.provenance("mobility")["dopant_densities"]`` says what
         the model in use takes.
         """
+        values, units = self._mobility_values(
+            carrier, temperature, Na, Nd, n, p, donor, acceptor, dopant_densities
+        )
+        return quantity(values, units)
+
+    def _mobility_values(self, carrier, temperature, Na, Nd, n, p, donor, acceptor, densities):
+        """:meth:`mobility` as (plain array, units): what :meth:`high_field_mobility`
+        builds on, without a quantity made and read back."""
         carrier = carrier_name(carrier)
         donor = dopant_species(donor, "donor", "donor")
         acceptor = dopant_species(acceptor, "acceptor", "acceptor")
         model = self._mobility_model(carrier, donor, acceptor)
+        blockwise = self._solved_blockwise(
+            model, temperature, Na, Nd, n, p, donor, acceptor, densities
+        )
+        if blockwise is not None:
+            return blockwise, model.output_units
         prepared = self._transport_inputs(
-            model, temperature, Na, Nd, n, p, donor, acceptor, dopant_densities
+            model, temperature, Na, Nd, n, p, donor, acceptor, densities
         )
-        return quantity(
-            self._broadcast_all(self._call(model, prepared), prepared), model.output_units
+        return self._broadcast_all(self._call(model, prepared), prepared), model.output_units
+
+    def _solved_blockwise(self, model, temperature, Na, Nd, n, p, donor, acceptor, densities):
+        """A mobility model at the equilibrium it needs (ionised dopants, or the carriers
+        where n, p are omitted), solved block by block with the model for a large input
+        (memory: the output and a few blocks, not the solve's fields); None where no solve
+        is needed or the input fits one block (then :meth:`_transport_inputs`)."""
+        from ..kernels.equilibrium import BLOCK
+
+        _choice(densities, "dopant_densities", DOPANT_DENSITIES)
+        takes_ionised = model.conventions.value("dopant_densities") == "ionised"
+        ionise = takes_ionised and densities == "total"
+        solve = ionise or ("electron_density" in model.inputs and n is None and p is None)
+        if not solve or model.regions:  # (regions are checked on whole arrays)
+            return None
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
+        shape = np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
+        if int(np.prod(shape)) <= BLOCK:
+            return None
+        options = self._solve_options(
+            temperature, Na, Nd, donor, acceptor, None, complete_ionisation(model)
         )
+        bound, seen = self._carriers(), []
+
+        def block(temperature, donor_density, acceptor_density):
+            result = bound._equilibrium_block(
+                temperature, donor_density, acceptor_density, **options, fields=_TRANSPORT_FIELDS
+            )
+            values = {
+                "temperature": result["temperature"],
+                "donor_density": result["ionised_donors"] if ionise else donor_density,
+                "acceptor_density": result["ionised_acceptors"] if ionise else acceptor_density,
+                "electron_density": result["electron_density"],
+                "hole_density": result["hole_density"],
+            }
+            values = {k: values[k] for k in model.inputs}
+            seen.append({k: _extremes(v)[1:] for k, v in values.items()})
+            return model(**values)
+
+        block.block = getattr(bound._equilibrium_block, "block", None)
+        value = evaluate(
+            block,
+            {
+                "temperature": prepared["temperature"][0],
+                "donor_density": prepared["donor_density"][0],
+                "acceptor_density": prepared["acceptor_density"][0],
+            },
+            workers=self.workers,
+        )
+        for name in model.inputs:
+            low = min(ranges[name][0] for ranges in seen)
+            high = max(ranges[name][1] for ranges in seen)
+            model.check(name, low, high, self.strict)
+        return np.broadcast_to(value, shape) if np.shape(value) != shape else value
 
     @declare(
         units="cm^2/(V*s)",
@@ -299,23 +372,19 @@ class TransportMethods:
         """
         carrier = carrier_name(carrier)
         model = self.model("high_field_mobility").select(carrier)
-        low = self.mobility(
-            carrier,
-            temperature,
-            Na,
-            Nd,
-            n,
-            p,
-            donor=donor,
-            acceptor=acceptor,
-            dopant_densities=dopant_densities,
+        low, low_units = self._mobility_values(
+            carrier, temperature, Na, Nd, n, p, donor, acceptor, dopant_densities
         )
-        velocity = self.saturation_velocity(carrier, temperature)
+        velocity_model = self.model("saturation_velocity").select(carrier)
+        temperatures = coerce(temperature, "temperature")
+        velocity = self._call(velocity_model, {"temperature": temperatures})
         prepared = {
             "field": coerce(field, "field"),
-            "temperature": coerce(temperature, "temperature"),
-            "low_field_mobility": _extremes(low.m_as("cm^2/(V*s)")),
-            "saturation_velocity": _extremes(velocity.m_as("cm/s")),
+            "temperature": temperatures,
+            "low_field_mobility": _extremes(_in_units(low, low_units, "cm^2/(V*s)")),
+            "saturation_velocity": _extremes(
+                _in_units(velocity, velocity_model.output_units, "cm/s")
+            ),
         }
         return quantity(
             self._broadcast_all(self._call(model, prepared), prepared), model.output_units
@@ -675,16 +744,17 @@ class TransportMethods:
         kind = DOPANTS[species]
         donor = species if kind == "donor" else "phosphorus"
         acceptor = species if kind == "acceptor" else "boron"
-        target = np.broadcast_to(rho[0], shape).ravel()
-        temperatures = np.broadcast_to(t[0], shape).ravel()
+        # views of the inputs in their broadcast shape: the blocks are cut from them
+        target = np.broadcast_to(rho[0], shape)
+        temperatures = np.broadcast_to(t[0], shape)
         density = self._invert_resistivity(target, temperatures, species, donor, acceptor)
         # validity of every model on the answer's range (warn, or raise if strict)
-        zeros = np.zeros_like(density)
-        nd, na = (density, zeros) if kind == "donor" else (zeros, density)
+        found = _extremes(density)
+        none = (np.zeros(()), 0.0, 0.0) if density.size else (np.zeros(()), np.inf, -np.inf)
         prepared = {
             "temperature": t,
-            "donor_density": _extremes(nd),
-            "acceptor_density": _extremes(na),
+            "donor_density": found if kind == "donor" else none,
+            "acceptor_density": none if kind == "donor" else found,
         }
         self._check_equilibrium(prepared, donor, acceptor, self._carriers())
         for carrier in CARRIERS:
@@ -692,7 +762,7 @@ class TransportMethods:
             for name in ("temperature", "donor_density", "acceptor_density"):
                 if name in model.inputs:
                     model.check(name, *prepared[name][1:], self.strict)
-        return quantity(density.reshape(shape), "cm^-3")
+        return quantity(density, "cm^-3")
 
     def _lowest_density(self, temperatures, kind, donor, acceptor):
         """Where the doping-dominated branch of rho(N) starts (cm^-3, 1-D).
@@ -725,10 +795,10 @@ class TransportMethods:
         }
 
     def _invert_resistivity(self, target, temperatures, species, donor, acceptor):
-        """N (1-D) with rho(T, N) = target on the doping-dominated branch, solved block
-        by block (the memory of a block, not of the whole input)."""
+        """N (the broadcast shape) with rho(T, N) = target on the doping-dominated branch,
+        solved block by block (the memory of a block, not of the whole input)."""
         if target.size == 0:
-            return np.zeros(0)
+            return np.zeros(target.shape)
         return evaluate(
             self._invert_block,
             {"target": target, "temperatures": temperatures},
@@ -750,8 +820,9 @@ class TransportMethods:
         Newton passes instead of three); the first two start from the solver's own guess
         (the first step can move ln N by a few units)."""
         kind = DOPANTS[species]
-        target = np.asarray(target, dtype=float)
-        temperatures = np.broadcast_to(temperatures, target.shape)
+        shape = np.broadcast_shapes(np.shape(target), np.shape(temperatures))
+        target = np.broadcast_to(np.asarray(target, dtype=float), shape).reshape(-1)
+        temperatures = np.broadcast_to(temperatures, shape).reshape(-1)
         log_target = np.log(target)
         history = {}  # complete -> [(ln N, eta, s) arrays of the last two states, newest last]
         bound = self._carriers()
@@ -839,7 +910,7 @@ class TransportMethods:
                 for i in bad[:5]
             ]
             raise solver_error("doping_from_resistivity", "did not converge", bad.size, points)
-        return np.exp(log_n)
+        return np.exp(log_n).reshape(shape)
 
     # ------------------------------------------------------------------ kernels
     def _transport_kernel(self, name: str, fixed: dict):
