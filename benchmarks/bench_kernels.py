@@ -312,7 +312,7 @@ def run_kernels(bench):
                 ours, theirs = compare(
                     lambda i=inputs, c=case: c.kernel(i),
                     lambda i=inputs, c=case: c.by_hand(i),
-                    budget=0.3 if bench.quick else 1.0,
+                    budget=0.2 if bench.quick else 1.0,
                 )
                 bench.row(
                     "kernels",
@@ -339,7 +339,7 @@ def run_api(bench):
                 ours, theirs = compare(
                     lambda i=inputs, c=case: c.api(i),
                     lambda i=inputs, c=case: c.kernel(i),
-                    budget=0.3 if bench.quick else 1.0,
+                    budget=0.2 if bench.quick else 1.0,
                 )
                 bench.row(
                     "api", case.name, _points(inputs), ours, theirs, goal=1.5, note="API / kernel"
@@ -381,7 +381,7 @@ def run_derivatives(bench):
         ours, theirs = compare(
             lambda k=kernel, a=args, o=kept: k.derivatives(*a, out=o),
             lambda k=kernel, a=args: k(*a),
-            budget=0.3 if bench.quick else 1.0,
+            budget=0.2 if bench.quick else 1.0,
         )
         bench.row(
             "derivatives",

@@ -199,9 +199,7 @@ def rows(si):
             "high_field_mobility (n, p given)",
             lambda: quantity(hfm(1e4, T, mu_e(T, N, 0.0, N, 1e4), vsat(T)), "cm^2/(V*s)"),
             lambda: si.high_field_mobility("electron", 1e4, T, Nd=N, n=N, p=1e4),
-            lambda: si.high_field_mobility(
-                "electron", FIELD, TQ, Nd=NQ, n=NQ, p=P4
-            ),
+            lambda: si.high_field_mobility("electron", FIELD, TQ, Nd=NQ, n=NQ, p=P4),
         ),
         (
             "resistivity",
@@ -232,7 +230,7 @@ def run(bench):
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         for name, floor, plain, with_units in rows(si):
             floor_s, plain_s, units_s = compare(
-                floor, plain, with_units, budget=0.15 if bench.quick else 0.5
+                floor, plain, with_units, budget=0.08 if bench.quick else 0.5
             )
             bench.row(
                 "scalars",

@@ -3,7 +3,8 @@
     python benchmarks/run.py --only startup [--quick]
 
 Each step runs in a fresh interpreter (bytecode compiled beforehand), several times; the
-median wall time is kept:
+median CPU time of the process (user + system, an empty interpreter's subtracted) is
+kept, so that other processes on a shared machine do not count:
 
 - the floor: ``import numpy, pint``;
 - the first call: ``import matprops; si = matprops.silicon(); si.kernel("band_gap")(300.0)``
@@ -17,6 +18,8 @@ median wall time is kept:
 
 from __future__ import annotations
 
+import os
+import resource
 import statistics
 import subprocess
 import sys
@@ -33,23 +36,32 @@ CACHED = (
 
 
 def _seconds(code, repeat):
-    timer = (
-        "import time; t0 = time.perf_counter()\n"
-        + code.replace("; ", "\n")
-        + "\nprint(time.perf_counter() - t0)"
-    )
+    """Median CPU time (user + system) of a fresh interpreter running ``code``, minus
+    that of an empty one: CPU time, not wall time, so that other processes on a shared
+    machine do not count."""
     times = []
     for _ in range(repeat):
-        run = subprocess.run(
-            [sys.executable, "-c", timer], capture_output=True, text=True, check=True
-        )
-        times.append(float(run.stdout.strip().splitlines()[-1]))
+        times.append(_cpu([sys.executable, "-c", code]) - _cpu([sys.executable, "-c", "pass"]))
     return statistics.median(times)
 
 
+def _cpu(command):
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
+    subprocess.run(command, check=True, capture_output=True)
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+
+
 def run(bench):
-    bench.section("startup: fresh processes, median wall time")
-    repeat = 5 if bench.quick else 11
+    bench.section("startup: fresh processes, median CPU time")
+    repeat = 3 if bench.quick else 11
+    # matprops' bytecode compiled first, as an installed package has it (an editable
+    # install under PYTHONDONTWRITEBYTECODE would otherwise compile it at every start)
+    import compileall
+
+    import matprops
+
+    compileall.compile_dir(os.path.dirname(matprops.__file__), quiet=1)
     with tempfile.TemporaryDirectory() as folder:  # pint's cache, not in the user's home
         cached_code = CACHED.format(folder=folder)
         subprocess.run([sys.executable, "-c", FIRST_QUANTITY], check=True, capture_output=True)

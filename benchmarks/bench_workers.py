@@ -4,7 +4,7 @@
 
 ``matprops.silicon(workers=k)`` (and ``kernel(..., workers=k)``) evaluates the blocks of
 a large input on a pool of k threads; numpy releases the GIL inside its loops. Wall time
-(it is wall time that threads save), best of interleaved rounds, at 1e7 points (2e6 with
+(it is wall time that threads save), best of interleaved rounds, at 1e7 points (1e6 with
 ``--quick``) with as many workers as the machine has usable cores; each row checks that
 the numbers are the same bit for bit. Goal for the heavy kernels: speed-up >= 1.7 on two
 cores. The load of the shared machine is printed in the header: other processes take
@@ -28,7 +28,7 @@ def run(bench):
         cores = len(os.sched_getaffinity(0))
     except AttributeError:
         cores = os.cpu_count() or 1
-    size = 2_000_000 if bench.quick else 10_000_000
+    size = 1_000_000 if bench.quick else 10_000_000
     bench.section(f"workers: {cores} threads against one, {size:.0e} points (wall time)")
     rng = np.random.default_rng(8)
     T = rng.uniform(250.0, 450.0, size)
