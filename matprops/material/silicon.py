@@ -19,8 +19,9 @@ from collections.abc import Iterable, Mapping
 
 import numpy as np
 
+from ..catalogue.records import report_violation
 from ..catalogue.store import Catalog, Model, default_catalog
-from ..errors import DatasetError, InputError, UnknownQuantityError
+from ..errors import DatasetError, Error, InputError, UnknownQuantityError, Unusable
 from ..kernels._blocks import evaluate
 from ..units import check_broadcast, coerce, quantity
 from ..units import name as check_name
@@ -31,13 +32,19 @@ from .derived import DERIVED
 from .optical import OpticalMethods
 from .recombination import RecombinationMethods
 from .registry import REGISTRY
+from .thermal import ThermalMethods
 from .transport import TransportMethods
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 
 class Silicon(
-    CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods, RecombinationMethods
+    CarrierMethods,
+    CrystalMethods,
+    OpticalMethods,
+    TransportMethods,
+    RecombinationMethods,
+    ThermalMethods,
 ):
     """Crystalline silicon as described by one release of matprops.
 
@@ -62,6 +69,10 @@ class Silicon(
     gives a scalar output. Outputs are pint quantities.
     """
 
+    # validity policy besides ``strict`` (see _check); class defaults, so that copies
+    # made without __init__ (propagation.changed_material) have them too
+    _checked = False  # a view whose inputs were checked already skips the checks
+    _report = None  # a callable taking each validity message instead of a warning
     workers: int | None = None  # (a copy made without __init__ works on one thread)
 
     def __init__(
@@ -100,17 +111,48 @@ class Silicon(
             self._bind(name, choice)
 
     def __reduce__(self):
-        # pickled by release, overrides, strict flag and catalogue, re-bound on load;
-        # the model files' hashes travel along so that both sides use the same numbers
-        hashes = {q: m.sha256 for q, m in self._models.items()}
+        # pickled by release, overrides, strict flag and datasets folder (None: the
+        # receiver's installed data), re-bound on load; the digests of every data file
+        # the material reads travel along, so that both sides use the same numbers
+        base = self.catalog.base
+        root = None if base is default_catalog() else str(base.root)
         return _restore, (
-            self.catalog,
+            root,
             self.release.id,
             self._overrides,
             self.strict,
-            hashes,
+            self._data_digests(),
             self.workers,
         )
+
+    def _data_digests(self) -> dict[str, str]:
+        """Relative path -> recorded sha256 of every data file this material's numbers
+        are read from: the release file, the model file of every bound model (and of the
+        models they are composed of), the tables those read, every defect file of the
+        catalogue and the thermal-velocity model each defect names. Every file is
+        verified against the checksum list when read, so equal digests mean equal data."""
+        digests = self.__dict__.get("_digests")
+        if digests is None:
+            digests = _data_digests(self)
+            self.__dict__["_digests"] = digests
+        return digests
+
+    def _digest_mismatch(self, expected: Mapping[str, str]) -> DatasetError | None:
+        """The first data file whose digest here differs from ``expected`` (those of the
+        process that pickled the material or made the lazy table), as an error."""
+        here = self._data_digests()
+        root = self.catalog.base.root
+        for path in sorted(set(here) | set(expected)):
+            mine, theirs = here.get(path), expected.get(path)
+            if mine != theirs:
+                return DatasetError(
+                    root / path,
+                    f"has sha256 {mine or '(no such file)'} here but "
+                    f"{theirs or '(no such file)'} where the material was pickled (or the "
+                    "lazy table made): the two processes read different data; give the "
+                    "workers the same datasets folder and release",
+                )
+        return None
 
     def _bind(self, name: str, choice: Mapping[str, str], chain=()) -> Model:
         if name in self._models:
@@ -197,13 +239,54 @@ class Silicon(
         values, ranges = {}, {}
         for argument in model.inputs:
             array, low, high = prepared[argument]
-            model.check(argument, low, high, self.strict)
+            self._check(model, argument, low, high)
             values[argument] = array
             ranges[argument] = (low, high)
         if model.regions:
-            model.check_regions(values, self.strict, ranges)
+            self._check_regions(model, values, ranges)
         # in blocks for large inputs (on ``workers`` threads)
         return evaluate(model.function or model, values, workers=self.workers)
+
+    # ------------------------------------------------------------------ validity
+    # Every validity check of the material goes through these three: a warning (or a
+    # ValidityError when strict), a message handed to the application's reporter, or
+    # nothing in a view whose inputs were checked already (a table checks its grid's
+    # extremes once and evaluates its blocks with such a view). No warning filter is
+    # ever touched, so another thread's warnings are never lost.
+    def _check(self, model: Model, argument: str, low: float, high: float) -> None:
+        if not self._checked:
+            model.check(argument, low, high, self.strict, self._report)
+
+    def _check_regions(self, model: Model, values, ranges=None) -> None:
+        if not self._checked:
+            model.check_regions(values, self.strict, ranges, self._report)
+
+    def _violation(self, message: str) -> None:
+        """A validity message of the material's own (not of one model's range)."""
+        if not self._checked:
+            report_violation(message, self.strict, self._report)
+
+    def _checked_already(self) -> Silicon:
+        """A view of this material whose methods skip the validity checks: the caller
+        has checked the inputs' ranges already (a table, on its grid's extremes) or
+        crosses them on purpose (the reference grid). Shares the bound models."""
+        view = self.__dict__.get("_checked_view")
+        if view is None:
+            view = object.__new__(type(self))
+            view.__dict__.update(self.__dict__)
+            view.__dict__.pop("_kernel_cache", None)
+            view._checked = True
+            self.__dict__["_checked_view"] = view
+        return view
+
+    def _sibling(self, models: Mapping[str, str]) -> Silicon:
+        """The same release, strictness, catalogue and reporter with other model
+        choices (``models`` are overrides on top of the release's)."""
+        sibling = type(self)(
+            release=self.release.id, models=models, strict=self.strict, catalog=self.catalog.base
+        )
+        sibling._report = self._report
+        return sibling
 
     def _quantity(self, name: str, **arguments):
         result, units = self._evaluate(name, **arguments)
@@ -274,7 +357,9 @@ class Silicon(
 
         Axes by name or alias (``T``, ``Na``, ``Nd``, ``excess``, ``n``, ``p``,
         ``wavelength``, ``carrier``, ``plane``) and ``chunks=`` for a lazy dask-backed
-        Dataset; see :func:`matprops.tables.table`.
+        Dataset; a grid of more than ``max_values`` values (1e8 by default, 0.8 GB;
+        ``None`` for no limit) is an InputError before anything is allocated; see
+        :func:`matprops.tables.table`.
         """
         from .tables import table
 
@@ -299,17 +384,54 @@ class Silicon(
         )
 
 
-def _restore(catalog, release, overrides, strict, hashes, workers=None) -> Silicon:
-    si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog, workers=workers)
-    for name, model in si._models.items():
-        if model.sha256 != hashes.get(name):
-            raise DatasetError(
-                model.path,
-                f"has sha256 {model.sha256} here but "
-                f"{hashes.get(name)} where the material was pickled: "
-                "the two processes read different data",
-            )
-    return si
+def _restore(root, release, overrides, strict, digests, workers=None) -> Silicon | Unusable:
+    """Unpickle a material; never raises (see :class:`matprops.errors.Unusable`): a
+    material whose data differ here, or cannot be read, raises on its first use."""
+    from ..catalogue.store import catalog_at
+
+    try:
+        si = Silicon(
+            release=release,
+            models=overrides,
+            strict=strict,
+            catalog=catalog_at(root),
+            workers=workers,
+        )
+        mismatch = si._digest_mismatch(digests)
+    except Error as exc:
+        return Unusable(exc, Silicon)
+    return si if mismatch is None else Unusable(mismatch, Silicon)
+
+
+def _data_digests(si: Silicon) -> dict[str, str]:
+    from ..catalogue import defects
+
+    files = {si.release.path}
+    seen = set()
+
+    def walk(model):
+        if id(model) in seen:
+            return
+        seen.add(id(model))
+        files.add(model.path)
+        for name in model.tables:
+            files.add(model.catalogue.table_path(name))
+        for component in model.components.values():
+            walk(component)
+
+    for model in si._models.values():
+        walk(model)
+    for entry in defects.describe(si.catalog):
+        files.add(entry.path)
+        if entry.thermal_velocity:
+            files.add(si.catalog.model("thermal_velocity", entry.thermal_velocity).path)
+    base = si.catalog.base
+    return {
+        path.relative_to(base.root).as_posix(): base.checksums().get(
+            path.relative_to(base.root).as_posix(), ""
+        )
+        for path in files
+    }
 
 
 def silicon(

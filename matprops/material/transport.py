@@ -30,9 +30,6 @@ import numpy as np
 
 from ..errors import (
     InputError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import resistivity as resistivity_kernels
 from ..kernels._blocks import evaluate, solver_error
@@ -332,7 +329,7 @@ class TransportMethods:
         for name in model.inputs:
             low = min(ranges[name][0] for ranges in seen)
             high = max(ranges[name][1] for ranges in seen)
-            model.check(name, low, high, self.strict)
+            self._check(model, name, low, high)
         return np.broadcast_to(value, shape) if np.shape(value) != shape else value
 
     @declare(
@@ -495,7 +492,7 @@ class TransportMethods:
                 ranges[(id(model), name)] = (model, min(old[1], low), max(old[2], high))
             for (_, name), (model, low, high) in ranges.items():
                 if low <= high:
-                    model.check(name, low, high, self.strict)
+                    self._check(model, name, low, high)
         return sigma
 
     def _conductivity_block(
@@ -562,10 +559,10 @@ class TransportMethods:
         """The validity checks the equilibrium solver's models make (as in ``_solve``)."""
         _, low, high = prepared["temperature"]
         for name in ("densities_of_states", "intrinsic_density"):
-            self.model(name).check("temperature", low, high, self.strict)
+            self._check(self.model(name), "temperature", low, high)
         for argument in bound.narrowing.inputs:
             if argument in prepared:
-                bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+                self._check(bound.narrowing, argument, *prepared[argument][1:])
         self._check_dopants(prepared, donor, acceptor)
 
     @declare(
@@ -645,9 +642,7 @@ class TransportMethods:
                 f"{np.count_nonzero(compensated)} point(s) with both Na and Nd > 0 "
                 "are NaN (conversion='physics' handles them)"
             )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._violation(message)
         model = self.model("standard_resistivity")
         out = np.full(t.shape, np.nan)
         for species, where in ((acceptor, (na > 0) & ~compensated), (donor, ~(na > 0))):
@@ -761,7 +756,7 @@ class TransportMethods:
             model = self._mobility_model(carrier, donor, acceptor)
             for name in ("temperature", "donor_density", "acceptor_density"):
                 if name in model.inputs:
-                    model.check(name, *prepared[name][1:], self.strict)
+                    self._check(model, name, *prepared[name][1:])
         return quantity(density, "cm^-3")
 
     def _lowest_density(self, temperatures, kind, donor, acceptor):
@@ -904,7 +899,7 @@ class TransportMethods:
                 {
                     "index": int(offset + i),
                     "flat": int(offset + i),
-                    "inputs": (f"rho={target[i]:g} ohm*cm", f"T={temperatures[i]:g} K"),
+                    "inputs": (f"{target[i]:g} ohm*cm at {temperatures[i]:g} K", species),
                     "detail": "the iterations ran out",
                 }
                 for i in bad[:5]
