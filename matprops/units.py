@@ -246,7 +246,10 @@ def _convert_cached(value, argument: str, units: str, requirement):
     factor, offset = conversion
     magnitude = value.magnitude
     if type(magnitude) in _PLAIN_SCALARS:
-        number = float(magnitude) * factor
+        try:
+            number = float(magnitude) * factor
+        except OverflowError:  # a Python int beyond float's 1.8e308
+            raise InputError(argument, f"finite numbers in {units}", _huge(magnitude)) from None
         if offset:
             number += offset
         if not math.isfinite(number):
