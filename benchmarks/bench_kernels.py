@@ -98,10 +98,13 @@ def cases(si):
     )
     b, c_b = si.kernel("radiative_coefficient"), c(si.model("radiative_coefficient"))
     add(
-        "radiative_coefficient (trupke-2003)",
+        f"radiative_coefficient ({si.models['radiative_coefficient']})",
         temperatures,
         lambda a: b(a["T"]),
-        lambda a: np.full(a["T"].shape, c_b["coefficient"]),
+        # a constant model: the array filled; a B(T) table: log B interpolated by np.interp
+        (lambda a: np.full(a["T"].shape, c_b["coefficient"]))
+        if "coefficient" in c_b
+        else (lambda a: hand.log_linear_table(a["T"], c_b)),
         lambda a: si.radiative_coefficient(a["T"]),
     )
     narrowing, c_bgn = si.kernel("gap_narrowing"), c(si.model("gap_narrowing"))

