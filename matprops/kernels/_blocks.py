@@ -23,6 +23,7 @@ import math
 import os
 import threading
 from collections.abc import Callable, Mapping
+from typing import Any
 
 import numpy as np
 
@@ -41,7 +42,7 @@ _SCALARS = (float, int)
 
 def evaluate(
     function: Callable,
-    arguments: Mapping[str, object],
+    arguments: Mapping[str, Any],
     out=None,
     block: int | None = None,
     workers: int | None = None,

@@ -38,7 +38,7 @@ from ..kernels.diffusivity import einstein_factor
 from ..units import coerce, quantity, unit
 from ..vocabulary import CARRIERS, DOPANTS, carrier_name, dopant_species
 from .bound import model_kernel
-from .composition import complete_ionisation
+from .composition import complete_ionisation, species_model
 from .registry import DOPINGS, TEMPERATURES, TRANSPORT_TEMPERATURES, case
 from .registry import quantity as declare
 
@@ -65,7 +65,16 @@ _TRANSPORT_FIELDS = (
 def _carrier_kernel(si, name, fixed):
     """The bound kernel of a transport quantity (``carrier=`` required; see
     ``TransportMethods._transport_kernel``)."""
-    return model_kernel(si, name, si._transport_kernel(name, fixed), fixed)
+    model = si._transport_kernel(name, fixed)
+    note = ""
+    if name == "mobility" and model.variant_axis == "dopant":
+        carrier = carrier_name(fixed.get("carrier"))
+        key, default = ("donor", "phosphorus") if carrier == "electron" else ("acceptor", "boron")
+        species = dopant_species(fixed.get(key, default), key, key)
+        stand_in = species_model(si.model("mobility"), species, si.catalog)[1]
+        if stand_in is not None:  # another species' coefficient set: labelled
+            note = f"The dopant {stand_in.describe()}"
+    return model_kernel(si, name, model, fixed, note)
 
 
 def _per_carrier(name, **grid):
@@ -143,7 +152,8 @@ class TransportMethods:
         """The release's mobility model bound to the coefficient set for ``carrier``."""
         model = self.model("mobility")
         if model.variant_axis == "dopant":
-            return model.select(donor if carrier == "electron" else acceptor)
+            species = donor if carrier == "electron" else acceptor
+            return species_model(model, species, self.catalog)[0]
         if model.variant_axis == "carrier":
             return model.select(carrier)
         return model
@@ -368,6 +378,7 @@ class TransportMethods:
         kV/cm), >= 0. Other arguments as for :meth:`mobility`.
         """
         carrier = carrier_name(carrier)
+        self._warn_mismatches("high_field_mobility")
         model = self.model("high_field_mobility").select(carrier)
         low, low_units = self._mobility_values(
             carrier, temperature, Na, Nd, n, p, donor, acceptor, dopant_densities
@@ -422,8 +433,9 @@ class TransportMethods:
         """Diffusion coefficient of electrons or holes, cm^2/s (Einstein relation).
 
         ``D = mu kT/q x F_1/2(eta) / F_-1/2(eta)``: the Fermi-Dirac factor (> 1 in
-        degenerate silicon) at the equilibrium reduced Fermi level, or at the
-        quasi-Fermi level of the given ``n`` (electrons) or ``p`` (holes).
+        degenerate silicon) at the equilibrium reduced Fermi level (of the free
+        carriers, whatever carriers the mobility's fit took), or at the quasi-Fermi
+        level of the given ``n`` (electrons) or ``p`` (holes).
         ``statistics``: ``"fermi-dirac"``, ``"boltzmann"`` (factor 1) or None (the
         narrowing model's own, as for :meth:`equilibrium`). Other arguments as for
         :meth:`mobility`.
@@ -453,10 +465,19 @@ class TransportMethods:
         factor = 1.0
         if fermi_dirac:
             nc, nv = bound.dos(temperature=t)
+            densities = prepared
+            if n is None and complete_ionisation(model):
+                # the mobility takes the carriers of its fit; the degeneracy of the
+                # Einstein relation is that of the free carriers there are
+                free, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics)
+                densities = {
+                    "electron_density": (free["electron_density"],),
+                    "hole_density": (free["hole_density"],),
+                }
             density, states = (
-                (prepared["electron_density"][0], nc)
+                (densities["electron_density"][0], nc)
                 if carrier == "electron"
-                else (prepared["hole_density"][0], nv)
+                else (densities["hole_density"][0], nv)
             )
             with np.errstate(divide="ignore"):
                 factor = einstein_factor(np.log(density) - np.log(states))
@@ -499,17 +520,19 @@ class TransportMethods:
         self, t, nd, na, donor, acceptor, seen=None, start=None, keep=None, states=None
     ):
         """sigma of one block (see :meth:`_conductivity`); ``seen``: a list that collects
-        (model, input, min, max) for the validity checks; ``start``: {complete: (eta,
-        s)} to start each equilibrium from; ``keep``: a dict that receives the solved
-        equilibria {complete: result}; ``states``: (Nc, Nv, ni) at ``t`` if known."""
+        (model, input, min, max) for the validity checks; ``start``: {(complete, donor,
+        acceptor): (eta, s)} to start each equilibrium from; ``keep``: a dict that
+        receives the solved equilibria {(complete, donor, acceptor): result};
+        ``states``: (Nc, Nv, ni) at ``t`` if known."""
         bound = self._carriers()
         fermi_dirac = bound.statistics == "fermi-dirac"
         models = [self._mobility_model(carrier, donor, acceptor) for carrier in CARRIERS]
         solved = {}
-        for model in models:
-            complete = complete_ionisation(model)
-            if complete not in solved:
-                solved[complete] = bound._equilibrium_block(
+
+        def equilibrium(complete, donor=donor, acceptor=acceptor):
+            key = (complete, donor, acceptor)
+            if key not in solved:
+                solved[key] = bound._equilibrium_block(
                     t,
                     nd,
                     na,
@@ -517,14 +540,15 @@ class TransportMethods:
                     acceptor,
                     fermi_dirac,
                     complete,
-                    *(start[complete] if start else (None, None)),
+                    *(start[key] if start and key in start else (None, None)),
                     states=states,
                 )
-        if keep is not None:
-            keep.update(solved)
+            return solved[key]
+
         conductivities = []
         for carrier, model in zip(CARRIERS, models, strict=True):
-            result = solved[complete_ionisation(model)]
+            complete = complete_ionisation(model)
+            result = equilibrium(complete)
             ionised = model.conventions.value("dopant_densities") == "ionised"
             values = {
                 "temperature": result["temperature"],
@@ -537,8 +561,18 @@ class TransportMethods:
                 for name in model.inputs:
                     seen.append((model, name, *_extremes(values[name])[1:]))
             mobility = model(**{k: values[k] for k in model.inputs})
-            density = values["electron_density" if carrier == "electron" else "hole_density"]
+            key = "electron_density" if carrier == "electron" else "hole_density"
+            density = values[key]
+            species = donor if carrier == "electron" else acceptor
+            if complete and model.variant_axis == "dopant" and model.variant != species:
+                # a stand-in set (boron's for gallium): its fit holds the set's own
+                # species' incomplete ionisation in n mu; the species' carriers are
+                # those scaled by the ratio of the two species' free-carrier densities
+                swapped = {"donor" if carrier == "electron" else "acceptor": model.variant}
+                density = density * (equilibrium(False)[key] / equilibrium(False, **swapped)[key])
             conductivities.append((density, mobility))
+        if keep is not None:
+            keep.update(solved)
         (n, mu_n), (p, mu_p) = conductivities
         return resistivity_kernels.conductivity(n, p, mu_n, mu_p)
 
@@ -560,9 +594,7 @@ class TransportMethods:
         _, low, high = prepared["temperature"]
         for name in ("densities_of_states", "intrinsic_density"):
             self._check(self.model(name), "temperature", low, high)
-        for argument in bound.narrowing.inputs:
-            if argument in prepared:
-                self._check(bound.narrowing, argument, *prepared[argument][1:])
+        self._check_narrowing(prepared, bound)
         self._check_dopants(prepared, donor, acceptor)
 
     @declare(
@@ -648,7 +680,7 @@ class TransportMethods:
         for species, where in ((acceptor, (na > 0) & ~compensated), (donor, ~(na > 0))):
             if not where.any():
                 continue
-            chosen = model.select(species)
+            chosen = species_model(model, species, self.catalog)[0]
             values = {
                 "temperature": _extremes(t[where]),
                 "dopant_density": _extremes((na if species == acceptor else nd)[where]),
@@ -699,19 +731,33 @@ class TransportMethods:
             for d in ("boron", "phosphorus")
         ],
     )
-    def doping_from_resistivity(self, resistivity, temperature, dopant, *, conversion="physics"):
+    def doping_from_resistivity(self, resistivity, temperature, dopant, *, conversion=None):
         """Density of one dopant species that gives silicon a resistivity, cm^-3.
 
         Parameters
         ----------
         resistivity : ohm cm (or a pint quantity of resistivity), > 0
         temperature : K (or a pint quantity)
-        dopant : the species (``"boron"``, ``"phosphorus"``, ...); the silicon holds
-            that dopant only
-        conversion : ``"physics"`` (default): the inverse of :meth:`resistivity` at the
-            temperature given, solved for every point at once; ``"standard"``: the
-            standard's own conversion (ASTM F723 at 23 degC; boron and phosphorus),
-            which warns at any other temperature
+        dopant : the species (``"boron"``, ``"phosphorus"``, ``"gallium"``, ...); the
+            silicon holds that dopant only
+        conversion : None (default): the release's choice (``si.release.defaults``;
+            from 2026.2: the standard's conversion where it holds, boron and
+            phosphorus at 23 degC within its validity of +-0.5 K, and the physics route
+            everywhere else, point by point; 2026.1: the physics route); ``"physics"``:
+            the inverse of
+            :meth:`resistivity` at the temperature given, solved for every point at
+            once; ``"standard"``: the standard's own conversion (ASTM F723 at 23 degC;
+            boron and phosphorus, its phosphorus conversion also for arsenic and
+            antimony as its scope allows), which warns at any other temperature
+
+        Why the default: at 23 degC the physics route (Klaassen's mobility, fed as it
+        was fitted) lies within the ASTM F723 conversion by -12..+9 % (boron) and
+        -11..+13 % (phosphorus) in density, beyond +-10 % near 5e17 (boron), 5e18-1e19
+        and 1e20 cm^-3 (phosphorus), while the standard condenses Thurber et al.'s
+        measurements at that temperature (``si.provenance("doping_from_resistivity")``
+        and the README's agreement table). A species the mobility model has no set
+        for (gallium, aluminium, indium: boron's; antimony: phosphorus's) is labelled
+        so in the provenance of ``mobility``.
 
         A resistivity that no density of the dopant gives at that temperature
         (above that of nearly intrinsic silicon, or below that of 1e21 cm^-3) is an
@@ -720,7 +766,8 @@ class TransportMethods:
         more mobile electrons) up to a maximum near ``N = ni (sqrt(r) - 1/sqrt(r))``,
         ``r = mu_n / mu_p``; the answer is the density above that maximum.
         """
-        _choice(conversion, "conversion", CONVERSIONS)
+        if conversion is not None:
+            _choice(conversion, "conversion", CONVERSIONS)
         species = dopant_species(dopant, "dopant")
         rho = coerce(resistivity, "resistivity")
         t = coerce(temperature, "temperature")
@@ -733,21 +780,55 @@ class TransportMethods:
                 f"{rho[0].shape}, {t[0].shape}",
             ) from None
         if conversion == "standard":
-            model = self.model("standard_dopant_density").select(species)
+            model = species_model(self.model("standard_dopant_density"), species, self.catalog)[0]
             value = self._call(model, {"temperature": t, "resistivity": rho})
             return quantity(np.broadcast_to(value, shape).astype(float), "cm^-3")
+        # views of the inputs in their broadcast shape (the blocks are cut from them)
+        target = np.broadcast_to(rho[0], shape)
+        temperatures = np.broadcast_to(t[0], shape)
+        standard = self._standard_applies(species, temperatures, conversion)
+        if not standard.any():
+            density = self._physics_doping(target, temperatures, species)
+            return quantity(np.asarray(density, dtype=float).reshape(shape), "cm^-3")
+        density = np.empty(shape)
+        model = self.model("standard_dopant_density").select(species)
+        values = {
+            "temperature": _extremes(temperatures[standard]),
+            "resistivity": _extremes(target[standard]),
+        }
+        density[standard] = self._call(model, values)
+        physics = ~standard
+        if physics.any():
+            density[physics] = self._physics_doping(target[physics], temperatures[physics], species)
+        return quantity(density, "cm^-3")
+
+    def _standard_applies(self, species, temperatures, conversion):
+        """Points (1-D mask) the default conversion answers with the standard's: the
+        species has a conversion of its own and the temperature lies in its validity."""
+        if conversion is None:  # the release's choice (2026.1: the physics route)
+            conversion = self.release.defaults.get("doping_from_resistivity", "physics")
+        if conversion == "physics":
+            return np.zeros(temperatures.shape, dtype=bool)
+        model = self.model("standard_dopant_density")
+        if species not in model.variants:
+            return np.zeros(temperatures.shape, dtype=bool)
+        valid = model.select(species).validity.get("temperature")
+        if valid is None:
+            return np.ones(temperatures.shape, dtype=bool)
+        return (temperatures >= valid.low) & (temperatures <= valid.high)
+
+    def _physics_doping(self, target, temperatures, species):
+        """The physics route's N for resistivities ``target`` at ``temperatures`` (arrays
+        of one shape, views or copies)."""
         kind = DOPANTS[species]
         donor = species if kind == "donor" else "phosphorus"
         acceptor = species if kind == "acceptor" else "boron"
-        # views of the inputs in their broadcast shape: the blocks are cut from them
-        target = np.broadcast_to(rho[0], shape)
-        temperatures = np.broadcast_to(t[0], shape)
         density = self._invert_resistivity(target, temperatures, species, donor, acceptor)
         # validity of every model on the answer's range (warn, or raise if strict)
         found = _extremes(density)
         none = (np.zeros(()), 0.0, 0.0) if density.size else (np.zeros(()), np.inf, -np.inf)
         prepared = {
-            "temperature": t,
+            "temperature": _extremes(temperatures),
             "donor_density": found if kind == "donor" else none,
             "acceptor_density": none if kind == "donor" else found,
         }
@@ -757,7 +838,7 @@ class TransportMethods:
             for name in ("temperature", "donor_density", "acceptor_density"):
                 if name in model.inputs:
                     self._check(model, name, *prepared[name][1:])
-        return quantity(density, "cm^-3")
+        return density
 
     def _lowest_density(self, temperatures, kind, donor, acceptor):
         """Where the doping-dominated branch of rho(N) starts (cm^-3, 1-D).
@@ -819,7 +900,9 @@ class TransportMethods:
         target = np.broadcast_to(np.asarray(target, dtype=float), shape).reshape(-1)
         temperatures = np.broadcast_to(temperatures, shape).reshape(-1)
         log_target = np.log(target)
-        history = {}  # complete -> [(ln N, eta, s) arrays of the last two states, newest last]
+        # (complete, donor, acceptor) of each equilibrium -> [(ln N, eta, s) arrays of its
+        # last two states, newest last]
+        history = {}
         bound = self._carriers()
         states = tuple(
             np.broadcast_to(a, target.shape)
@@ -834,13 +917,13 @@ class TransportMethods:
             start = None
             if history and seen[index].min() >= 2:
                 start = {}
-                for complete, ((x0, e0, s0), (x1, e1, s1)) in history.items():
+                for key, ((x0, e0, s0), (x1, e1, s1)) in history.items():
                     step = log_n - x1[index]
                     with np.errstate(divide="ignore", invalid="ignore"):
                         run = x1[index] - x0[index]
                         slope_e = np.where(run != 0, (e1[index] - e0[index]) / run, 0.0)
                         slope_s = np.where(run != 0, (s1[index] - s0[index]) / run, 0.0)
-                    start[complete] = (e1[index] + slope_e * step, s1[index] + slope_s * step)
+                    start[key] = (e1[index] + slope_e * step, s1[index] + slope_s * step)
             keep = {}
             sigma = self._conductivity_block(
                 temperatures[index],
@@ -852,12 +935,12 @@ class TransportMethods:
                 keep=keep,
                 states=tuple(a[index] for a in states),
             )
-            for complete, result in keep.items():
-                if complete not in history:
-                    history[complete] = [
+            for key, result in keep.items():
+                if key not in history:
+                    history[key] = [
                         tuple(np.zeros(target.size) for _ in range(3)) for _ in range(2)
                     ]
-                older, newer = history[complete]
+                older, newer = history[key]
                 for kept, fresh in zip(older, newer, strict=True):
                     kept[index] = fresh[index]  # the newest becomes the older
                 x, eta, s = newer
@@ -914,8 +997,8 @@ class TransportMethods:
         ``carrier=`` is required; for ``mobility`` also ``donor=`` / ``acceptor=``
         (defaults phosphorus, boron) where the model has one set per dopant species.
         The callable takes the model's inputs (``si.model(name).inputs``) in internal
-        units; a mobility model takes the dopant densities it declares (see its
-        ``dopant_densities``), nothing is converted.
+        units; a mobility model takes the dopant densities and carriers its fit
+        conventions name (the kernel's ``input_kinds``), nothing is converted.
         """
         fixed = dict(fixed)
         carrier = fixed.pop("carrier", None)

@@ -12,6 +12,7 @@ import warnings
 
 import numpy as np
 import pytest
+from helpers import quiet, with_model
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -19,16 +20,6 @@ import matprops
 from matprops import Q_
 
 K_B = 8.617333262e-5  # eV/K, CODATA 2018 (exact)
-
-
-def quiet(function, *args, **kwargs):
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", matprops.ValidityWarning)
-        return function(*args, **kwargs)
-
-
-def with_model(quantity, model_id):
-    return matprops.silicon(models={quantity: model_id})
 
 
 def auger_coefficient_low_injection(si, n0, p0):
@@ -46,19 +37,22 @@ def ambipolar_coefficient(si, excess):
 # ----------------------------------------------------------------- radiative
 
 
+@pytest.mark.model("radiative_coefficient/trupke-2003")
 def test_radiative_coefficient_of_intrinsic_silicon_at_300K():
     # the constant model of 2026.1 (2026.2's default is tested in
     # test_recombination_temperature.py)
     si = matprops.silicon(models={"radiative_coefficient": "trupke-2003"})
-    # from memory (recalled with high confidence, not checked): Trupke et al. 2003,
-    # J. Appl. Phys. 94, 4930, give B = 4.73e-15 cm^3/s for intrinsic silicon at 300 K;
-    # printed to three digits
+    # Trupke et al. 2003, J. Appl. Phys. 94, 4930: B = 4.73e-15 cm^3/s for intrinsic
+    # silicon at 300 K, as read in a research code that cites the paper (WhyBeU/DPML,
+    # DPML/Si/sah.py, commit 4eeb6e4, its B_low table; secondary), a witness independent
+    # of the model file's recollection; printed to three digits
     assert si.radiative_coefficient(300).m_as("cm^3/s") == pytest.approx(4.73e-15, abs=5e-18)
     record = si.provenance("radiative_coefficient")
     assert "intrinsic" in record["notes"] and "low injection" in record["notes"]
     assert "recalled, not checked" in record["coefficients"]["coefficient"]["obtained"]
 
 
+@pytest.mark.model("radiative_coefficient/trupke-2003")
 def test_radiative_coefficient_warns_below_room_temperature():
     si = matprops.silicon(models={"radiative_coefficient": "trupke-2003"})  # 2026.1's
     # Trupke et al. 2003, abstract (read): B of intrinsic silicon decreases as the
@@ -72,33 +66,16 @@ def test_radiative_coefficient_warns_below_room_temperature():
         si.radiative_coefficient([300, 350])
 
 
-def test_each_lifetime_model_keeps_the_radiative_term_it_was_fitted_with(si):
-    # the two 300 K values in circulation are not interchangeable (doping-models.md §6.1):
-    # Richter's B_low = 4.73e-15 (Trupke's value, from memory), Kerr & Cuevas's constant
-    # 9.5e-15 (from memory); a model without one takes the release's coefficient
-    expected = {
-        "richter-2012": 4.73e-15,
-        "kerr-2002": 9.5e-15,
-        "dziewior-1977": si.radiative_coefficient(300).m_as("cm^3/s"),
-    }
-    for model_id, b in expected.items():
-        material = with_model("intrinsic_lifetime", model_id)
-        model = material.model("intrinsic_lifetime")
-        tau = model(
-            temperature=300.0,
-            equilibrium_electron_density=1e15,
-            equilibrium_hole_density=1e5,
-            excess_density=1e14,
-            part="radiative",
-        )
-        assert 1.0 / (tau * (1e15 + 1e5 + 1e14)) == pytest.approx(b, rel=1e-12)
-    conventions = with_model("intrinsic_lifetime", "kerr-2002").model("intrinsic_lifetime")
-    assert conventions.conventions["radiative_coefficient"].value == "own"
-
-
 # ----------------------------------------------------------------- Auger coefficients
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/dziewior-1977",
+    "ionisation/altermatt-2006",
+)
 def test_dziewior_schmid_coefficients():
     # COMSOL Semiconductor Module user guide and Genius TCAD Open (Si_band_schenk.cc),
     # secondary, uncited there: C_n = 2.8e-31, C_p = 9.9e-32 cm^6/s (attribution to
@@ -108,6 +85,13 @@ def test_dziewior_schmid_coefficients():
     assert auger_coefficient_low_injection(si, 1e1, 1e19) == pytest.approx(9.9e-32, abs=5e-34)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/dziewior-1977",
+    "ionisation/altermatt-2006",
+)
 def test_dziewior_schmid_ambipolar_coefficient():
     # Allpix Squared user manual, "Auger Recombination" (secondary): C_a = C_n + C_p =
     # 3.8e-31 cm^6/s from Dziewior & Schmid; half a unit of the last printed digit
@@ -115,21 +99,49 @@ def test_dziewior_schmid_ambipolar_coefficient():
     assert ambipolar_coefficient(si, 1e19) == pytest.approx(3.8e-31, abs=5e-33)
 
 
+# Richter et al. 2012 (Phys. Rev. B 86, 165202) as read in a research code that cites
+# it: WhyBeU/DPML, DPML/Si/sah.py, commit 4eeb6e4 (secondary): 2.5e-31 g_eeh n0 +
+# 8.5e-32 g_ehh p0 + 3e-29 dn^0.92, g_eeh = 1 + 13[1 - tanh((n0/3.3e17)^0.66)], N0_ehh
+# 7.0e17 with exponent 0.63 (its g_ehh line repeats 13 and n0, a copying error: the 7.5 of
+# g_ehh is from memory). A witness independent of the model file's recollection.
+
+
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_richter_coefficients_where_coulomb_enhancement_has_vanished(si):
-    # Richter et al. 2012 as read in two research codes that cite it (secondary):
-    # 2.5e-31 g_eeh n0 and 8.5e-32 g_ehh p0, with g -> 1 at high doping; half a unit of
-    # the last printed digit (the injection term is absent at dn -> 0)
+    # DPML (above): 2.5e-31 g_eeh n0 and 8.5e-32 g_ehh p0, with g -> 1 at high doping;
+    # half a unit of the last printed digit (the injection term is absent at dn -> 0)
     assert auger_coefficient_low_injection(si, 1e20, 1e0) == pytest.approx(2.5e-31, abs=5e-33)
     assert auger_coefficient_low_injection(si, 1e0, 1e20) == pytest.approx(8.5e-32, abs=5e-34)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_richter_coulomb_enhancement_at_low_doping(si):
-    # the same secondary sources: g_eeh = 1 + 13[...], g_ehh = 1 + 7.5[...] -> 14 and 8.5
-    # in lowly doped silicon (here 1e12 cm^-3, where tanh((N/N0)^x) is below 2e-3)
+    # DPML (above): g_eeh = 1 + 13[...] -> 14 in lowly doped silicon; g_ehh = 1 + 7.5[...]
+    # -> 8.5 from memory (here 1e12 cm^-3, where tanh((N/N0)^x) is below 2e-3)
     assert auger_coefficient_low_injection(si, 1e12, 1e8) / 2.5e-31 == pytest.approx(14, rel=2e-3)
     assert auger_coefficient_low_injection(si, 1e8, 1e12) / 8.5e-32 == pytest.approx(8.5, rel=2e-3)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/kerr-2002",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 @pytest.mark.parametrize("model_id", ["richter-2012", "kerr-2002"])
 def test_high_injection_ambipolar_coefficient(model_id):
     # from memory, with one secondary witness: the ambipolar Auger coefficient of lowly
@@ -144,6 +156,14 @@ def test_high_injection_ambipolar_coefficient(model_id):
         assert 1.66e-30 * 0.8 <= ambipolar_coefficient(si, excess) <= 1.66e-30 * 1.2
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/dziewior-1977",
+    "intrinsic_lifetime/kerr-2002",
+    "ionisation/altermatt-2006",
+)
 def test_kerr_cuevas_enhancement_above_the_free_particle_rate():
     # Kerr & Cuevas 2002, abstract (read): Auger recombination is enhanced above the
     # traditional free-particle rate at both low and high injection, and the enhancement is
@@ -161,6 +181,7 @@ def test_kerr_cuevas_enhancement_above_the_free_particle_rate():
     assert high_injection < low_injection
 
 
+@pytest.mark.model("intrinsic_lifetime/kerr-2002", "intrinsic_lifetime/richter-2012")
 @pytest.mark.parametrize("kwargs", [{"Nd": 1e15}, {"Na": 1e15}, {"Nd": 1e16}, {"Na": 1e16}])
 def test_richter_exceeds_the_kerr_cuevas_limit(kwargs):
     # Richter et al. 2012 (Energy Procedia 27, 88, abstract read): measured lifetimes
@@ -176,6 +197,13 @@ def test_richter_exceeds_the_kerr_cuevas_limit(kwargs):
     assert np.all(ratio > 1.2)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_auger_dominates_heavily_doped_silicon(si):
     # common practice: above about 1e18 cm^-3 the intrinsic lifetime is Auger-limited
     # (radiative recombination is a small share)
@@ -187,6 +215,7 @@ def test_auger_dominates_heavily_doped_silicon(si):
 # ----------------------------------------------------------------- validity and composition
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_richter_is_a_300K_model():
     # Richter et al. 2012 (Energy Procedia abstract, read): a parameterisation at 300 K
     si = matprops.silicon(models={"intrinsic_lifetime": "richter-2012"})
@@ -205,6 +234,7 @@ def test_richter_is_a_300K_model():
         si.intrinsic_lifetime(Q_(25, "degC"), Nd=1e16, excess=1e15)
 
 
+@pytest.mark.model("intrinsic_lifetime/dziewior-1977")
 def test_constant_coefficients_warn_below_heavy_doping():
     # Dziewior & Schmid's coefficients hold for heavily doped silicon only (below about
     # 5e18 cm^-3 Coulomb enhancement makes Auger faster: Hangleiter & Haecker 1990, from
@@ -217,17 +247,29 @@ def test_constant_coefficients_warn_below_heavy_doping():
         si.intrinsic_lifetime(300, Nd=1e19)
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_mixing_a_lifetime_model_with_another_narrowing_warns():
     # Richter et al. fitted with Schenk's narrowing (from memory); composing the model with
     # another narrowing mixes conventions and must say so
     si = matprops.silicon(models={"gap_narrowing": "klaassen-1992"})
     with pytest.warns(
         matprops.ValidityWarning,
-        match="fitted with the effective intrinsic density of gap_narrowing/schenk-1998",
+        match="fitted with gap_narrowing schenk-1998",
     ):
-        si.intrinsic_lifetime(300, Nd=1e16)
+        si.intrinsic_lifetime(300, Nd=1e18)
+    # the consistency report lists it, with its size at standard points
+    (mismatch,) = si.consistency().of("intrinsic_lifetime")
+    assert mismatch.fitted == "schenk-1998" and mismatch.used == "klaassen-1992"
+    assert len(mismatch.sizes) == 6
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_intrinsic_lifetime_uses_the_equilibrium_densities(si):
     # composition: the lifetime at (T, Nd) is the model evaluated at the equilibrium n0, p0
     # (incomplete ionisation included: at 1e18 cm^-3 n0 is well below Nd)
@@ -249,6 +291,7 @@ MIDGAP = {
 }
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952", "thermal_velocity/green-1990")
 def test_srh_low_injection_is_one_over_sigma_v_n(si):
     # common practice: a mid-gap level in p-type silicon at low injection limits the
     # lifetime to tau_n0 = 1/(sigma_n v_th,n N_t) (n-type: 1/(sigma_p v_th,p N_t))
@@ -260,6 +303,7 @@ def test_srh_low_injection_is_one_over_sigma_v_n(si):
     assert n_type.m_as("s") == pytest.approx(1 / (1e-15 * v_p * 1e12), rel=1e-5)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952", "thermal_velocity/green-1990")
 def test_srh_high_injection_is_the_sum_of_capture_times(si):
     # common practice: at high injection tau_SRH -> tau_n0 + tau_p0 whatever the level
     v_n = si.thermal_velocity("electron", 300).m_as("cm/s")
@@ -270,6 +314,7 @@ def test_srh_high_injection_is_the_sum_of_capture_times(si):
         assert tau.m_as("s") == pytest.approx(expected, rel=1e-5)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 def test_shallow_levels_recombine_less(si):
     # common practice: SRH recombination is most effective through levels near mid-gap
     levels = [0.05, 0.15, 0.3, 0.56]
@@ -291,6 +336,7 @@ def test_shallow_levels_recombine_less(si):
     assert np.all(np.diff(taus) < 0)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952", "thermal_velocity/green-1990")
 def test_ratio_only_entry_with_the_electron_capture_time(si):
     # lifetime spectroscopy gives k = sigma_n/sigma_p (common practice): with tau_n0 given,
     # tau_p0 = k (v_n / v_p) tau_n0, and high injection tends to tau_n0 + tau_p0
@@ -347,19 +393,6 @@ def test_catalogue_temperature_laws_against_the_research_program(si, name, law_n
     np.testing.assert_allclose(defect.hole_cross_section(t), law_p(t), rtol=1e-12)
 
 
-def test_iron_entries_against_memory(si):
-    # from memory (Istratov et al. 1999 review, as used for iron imaging): Fe_i at
-    # E_v + 0.38 eV, sigma_n = 5e-14, sigma_p = 7e-17 cm^2; Rein & Glunz's k = 51 (from
-    # memory) against the lifetime-spectroscopy entry's ratio (printed to two digits)
-    fe = si.defect("Fe_i")
-    assert (fe.reference, fe.energy) == ("valence", pytest.approx(0.38))
-    assert fe.electron_cross_section(300.0) == pytest.approx(5e-14)
-    assert fe.hole_cross_section(300.0) == pytest.approx(7e-17)
-    assert float(si.defect("iron-interstitial-rein-2005").ratio(300.0)) == pytest.approx(
-        51, abs=0.5
-    )
-
-
 def test_chromium_level_against_hall_measurements(si):
     # Kunio et al. 1981, Solid-State Electron. (abstract read): a chromium donor level at
     # E_c - 0.226 +- 0.010 eV by Hall measurements; lifetime spectroscopy's own
@@ -383,6 +416,7 @@ def test_every_entry_states_its_source_origin_and_velocity_convention(si):
 _DOPING = st.floats(13, 19).map(lambda x: 10.0**x)
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     low=st.floats(13, 18).map(lambda x: 10.0**x),
@@ -397,6 +431,7 @@ def test_intrinsic_lifetime_falls_with_doping(si, low, factor, kind, excess):
     assert tau[1] < tau[0]
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     doping=_DOPING,
@@ -414,6 +449,16 @@ def test_intrinsic_lifetime_falls_with_injection_at_high_injection(si, doping, k
     assert tau[1] < tau[0]
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 @settings(max_examples=30, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     t=st.floats(250, 400),
@@ -451,6 +496,16 @@ def test_every_lifetime_is_positive(
             assert np.all(value.m_as("s") > 0), name
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 @settings(max_examples=15, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     doping=st.floats(14, 17).map(lambda x: 10.0**x),
@@ -474,6 +529,16 @@ def test_implied_voltage_rises_with_generation(si, doping, kind, flux, factor, d
     assert volts[1] > volts[0] > 0
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_implied_voltage_per_decade_of_generation(si):
     # common practice: with an injection-independent lifetime, dn is proportional to G,
     # so the implied voltage rises by (kT/q) ln 10 per decade at low injection and by
@@ -489,8 +554,11 @@ def test_implied_voltage_per_decade_of_generation(si):
         density=1e14,
     ).implied_voltage.m_as("V")
     assert low[1] - low[0] == pytest.approx(kt * math.log(10), rel=2e-3)
+    # (at high injection with a narrowing that does not move with the carriers: the
+    # release's Schenk narrowing grows with the injected densities and lowers the slope,
+    # see test_narrowing_at_the_injected_densities_lowers_the_voltage)
     high = quiet(
-        si.implied_voltage,
+        with_model("gap_narrowing", "klaassen-1992").implied_voltage,
         300,
         Na=1e10,
         generation=[1e20, 1e21],
@@ -501,10 +569,47 @@ def test_implied_voltage_per_decade_of_generation(si):
     assert high[1] - high[0] == pytest.approx(2 * kt * math.log(10), rel=2e-2)
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_implied_voltage_states_its_assumptions(si):
     result = si.implied_voltage(300, Na=1e15, generation=Q_(40, "mA/cm^2"), thickness=Q_(180, "um"))
-    for word in ("steady state", "uniform", "flat carrier profile", "surface"):
+    for word in ("steady state", "uniform", "flat carrier profile", "surface", "injected"):
         assert word in result.assumptions
+    lifetimes = si.effective_lifetime(300, Na=1e15, excess=1e15)
+    assert "injected densities" in lifetimes.assumptions
+
+
+def test_narrowing_at_the_injected_densities_lowers_the_voltage(si):
+    # physics of the quasi-Fermi-level splitting: qV = kT ln[n p / (gamma_n gamma_p
+    # ni_eff(n, p)^2)]; Schenk's narrowing grows with the injected carriers, so one-sun
+    # implied voltages fall below kT ln[(n0 + dn)(p0 + dn)/(n0 p0)] by a few mV (the
+    # issue's audit measured 4.5-6 mV); with a narrowing that does not depend on the
+    # carriers the two agree
+    kt = K_B * 300.0
+    for material, lower, upper in (
+        (si, 0.002, 0.008),
+        (with_model("gap_narrowing", "klaassen-1992"), -1e-9, 1e-9),
+    ):
+        result = quiet(
+            material.implied_voltage,
+            300,
+            Na=1e15,
+            generation=Q_(40, "mA/cm^2"),
+            thickness=Q_(180, "um"),
+        )
+        n0 = result.equilibrium_electron_density.m_as("cm^-3")
+        p0 = result.equilibrium_hole_density.m_as("cm^-3")
+        dn = result.excess_density.m_as("cm^-3")
+        plain = kt * math.log((n0 + dn) * (p0 + dn) / (n0 * p0))
+        assert lower <= plain - result.implied_voltage.m_as("V") <= upper
     assert result.provenance["assumptions"] == result.assumptions
     # common practice: the intrinsic limit of a well-passivated 180 um wafer under one sun
     # (about 40 mA/cm^2) is near 0.75 V (reported limits 0.74-0.77 V, from memory)
@@ -514,6 +619,7 @@ def test_implied_voltage_states_its_assumptions(si):
 # ----------------------------------------------------------------- bad input
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_negative_excess_density_is_refused(si):
     with pytest.raises(
         matprops.InputError,
@@ -523,6 +629,7 @@ def test_negative_excess_density_is_refused(si):
         si.intrinsic_lifetime(300, Nd=1e16, excess=-1e14)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 @pytest.mark.parametrize(
     "defect, pattern",
     [
@@ -604,6 +711,7 @@ def test_defect_parameters_out_of_physical_range(si, defect, pattern):
         si.srh_lifetime(defect, 300, Na=1e16, density=1e12)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 def test_unknown_defect_lists_the_catalogue(si):
     with pytest.raises(matprops.UnknownDefectError) as info:
         si.srh_lifetime("iron-interstitiel", 300, Na=1e16, density=1e12)
@@ -615,6 +723,7 @@ def test_unknown_defect_lists_the_catalogue(si):
     assert isinstance(info.value, KeyError)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 @pytest.mark.parametrize(
     "kwargs, argument, pattern",
     [
@@ -635,6 +744,7 @@ def test_incomplete_defect_arguments(si, kwargs, argument, pattern):
     assert info.value.argument == argument
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_equilibrium_densities_given_incompletely_or_twice(si):
     with pytest.raises(matprops.InputError, match="'p0' must be given together with n0"):
         si.intrinsic_lifetime(300, n0=1e16)
@@ -644,6 +754,16 @@ def test_equilibrium_densities_given_incompletely_or_twice(si):
         si.intrinsic_lifetime(300, n0=0, p0=1e4)
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 @pytest.mark.parametrize(
     "kwargs, pattern",
     [
@@ -665,6 +785,7 @@ def test_bad_generation_or_thickness(si, kwargs, pattern):
         si.implied_voltage(300, Na=1e15, **kwargs)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 def test_defect_outside_its_temperature_range_warns(datasets_copy):
     root, catalog = datasets_copy
     path = root / "defects" / "iron-interstitial.toml"
