@@ -250,7 +250,7 @@ def relocated(error, shape, where=None, axis=None, first_only=False):
     moved = []
     for point in points:
         point = dict(point)
-        flat = point.get("flat", point["index"])
+        flat = int(point["flat"] if "flat" in point else point["index"])
         if where is None:
             index = np.unravel_index(flat, shape) if shape else (flat,)
         else:

@@ -105,7 +105,7 @@ def _bands(eta, slopes=True):
         flat_ratio = ratio.reshape(-1)
         value, other = _degenerate(eta.reshape(-1)[index], slopes)
         flat_ratio[index] = value
-        if slopes:
+        if slope is not None:
             slope.reshape(-1)[index] = other
     return ratio, slope
 
@@ -125,14 +125,14 @@ def _degenerate(eta, slopes):
         values = _horner(_SEGMENTS[i], part - _fd.BREAKS[i - 1], 4 if slopes else 2)
         half = values[0] / values[1]
         ratio[where] = half * np.exp(-part)
-        if slopes:
+        if slope is not None:
             slope[where] = (values[2] / values[3]) / half
     where = np.flatnonzero(segment >= 5)  # eta > 20 (and NaN): the asymptotic form
     if where.size:
         part = eta[where]
         half = fd_half(part)
         ratio[where] = half * np.exp(-part)
-        if slopes:
+        if slope is not None:
             slope[where] = fd_minus_half(part) / half
     return ratio, slope
 
@@ -147,6 +147,13 @@ class _Points:
     """
 
     FIELDS = ("log_states", "w", "share", "dopants", "gap", "kt", "density")
+    log_states: np.ndarray
+    w: np.ndarray
+    share: np.ndarray
+    dopants: np.ndarray
+    gap: np.ndarray
+    kt: np.ndarray
+    density: np.ndarray
 
     def __init__(self, narrowing, carriers, fermi_dirac, by_density, **fields):
         self.narrowing = narrowing  # an object with carrier_slopes(n, p), or None
@@ -583,8 +590,9 @@ def _solve_block(
     else:
         rest.append(np.flatnonzero(~done) if index is None else index[~done])
     index = np.sort(np.concatenate(rest)) if rest else np.zeros(0, dtype=np.intp)
+    fallback = {}
     if index.size:  # what Newton did not settle: the bracketed solver
-        rest = _solve_fixed_point(
+        fallback = _solve_fixed_point(
             t[index], nd[index], na[index], log_nc[index], log_nv[index], log_ni[index],
             log_nd[index], log_na[index], np.broadcast_to(offset, t.shape)[index],
             reduced_gap[index], kt[index], w_d[index], b_d[index], w_a[index], b_a[index],
@@ -611,7 +619,7 @@ def _solve_block(
         "residual": final["r"],
     }
     if index.size:
-        for key, value in rest.items():
+        for key, value in fallback.items():
             result[key][index] = value
     return result
 
@@ -622,6 +630,8 @@ def _keep(final, done, index, eta, s, r, state):
     values = {"eta": eta, "s": s, "r": r, "densities": densities, "ionised": ionised}
     if shifts is not None:
         values["shifts"] = shifts
+    where: slice | np.ndarray
+    target: slice | np.ndarray
     if done is None:
         where = slice(None)
         target = slice(None) if index is None else index
@@ -671,11 +681,8 @@ class _Neutrality:
     def subset(self, index):
         """The same equation on a subset of the points."""
         names = ("log_nc", "log_nv", "log_nd", "log_na", "gap", "w_d", "b_d", "w_a", "b_a")
-        return _Neutrality(
-            *(np.broadcast_to(getattr(self, a), self.gap.shape)[index] for a in names),
-            self.fermi_dirac,
-            self.by_density,
-        )
+        parts = {a: np.broadcast_to(getattr(self, a), self.gap.shape)[index] for a in names}
+        return _Neutrality(**parts, fermi_dirac=self.fermi_dirac, by_density=self.by_density)
 
     def parts(self, eta):
         eta_v = -eta - self.gap
