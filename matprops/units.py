@@ -156,6 +156,8 @@ def coerce(
     default_units, default_req = ARGUMENTS.get(argument, (None, None))
     units = units or default_units
     requirement = requirement or default_req
+    if units is None:  # a name no argument has, and no units given
+        raise InputError(argument, "an argument name the library knows, or units", argument)
     if type(value) in _PLAIN_SCALARS:  # the scalar fast path: a plain number
         try:
             number = float(value)

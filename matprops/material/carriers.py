@@ -359,7 +359,7 @@ class _Bound:
 
 
 # points per block of the equilibrium solve (the solver's own choice)
-_Bound._equilibrium_block.block = equilibrium_kernel.BLOCK
+_Bound._equilibrium_block.block = equilibrium_kernel.BLOCK  # type: ignore[attr-defined]
 
 
 class CarrierMethods:

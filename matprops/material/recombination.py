@@ -232,8 +232,8 @@ class _State:
     """Inputs of the recombination kernels, in internal units (arrays broadcast)."""
 
     temperature: np.ndarray
-    n0: np.ndarray
-    p0: np.ndarray
+    n0: Any  # an array; None while a lazy state leaves it to the blocks
+    p0: Any
     excess: np.ndarray
     shape: tuple
     given: bool  # n0, p0 given by the caller instead of solved
@@ -263,6 +263,8 @@ class RecombinationMethods:
 
     if TYPE_CHECKING:  # provided by the facade (silicon.Silicon) these methods serve
         _inputs: Any
+        _solve_options: Any
+        workers: Any
         _solve: Any
         model: Any
         _check: Any
@@ -454,7 +456,7 @@ class RecombinationMethods:
             solved_state.dopants = (t, nd, na, options["fermi_dirac"])
             return self._intrinsic_solved(solved_state, part, None, None)
 
-        block.block = getattr(bound._equilibrium_block, "block", None)
+        block.block = getattr(bound._equilibrium_block, "block", None)  # type: ignore[attr-defined]
         value = evaluate(
             block,
             {
