@@ -18,7 +18,10 @@ matprops uses, in scalar Horner form) are written out for one point.
 
 Only the release defaults these benchmarks use are written out (Fermi-Dirac statistics,
 Schenk's narrowing, Altermatt's lowered levels, Klaassen's mobility); the functions
-check the release's models and refuse others.
+check the release's models and refuse others. Where the ionisation model was fitted with
+other densities of states and Boltzmann statistics (its fit conventions), its levels
+carry ``kT ln(N / N_fit)`` and its occupancy takes ``ln(n/Nc)``, ``ln(p/Nv)``, as the
+release composes it.
 """
 
 from __future__ import annotations
@@ -174,11 +177,25 @@ class _Schenk:
         return (total - ionic) * self.rydberg
 
 
-def _charge(eta, gap, nc, nv, nd, w_d, b_d, na, w_a, b_a):
+def _occupancy_levels(eta, eta_v, by_density):
+    """The reduced levels the dopants' occupancy takes: eta and eta_v, or (an ionisation
+    model fitted with Boltzmann statistics) ln(n/Nc) and ln(p/Nv)."""
+    if by_density:
+        return math.log(fd_half(eta)), math.log(fd_half(eta_v))
+    return eta, eta_v
+
+
+def _ionised(eta, gap, nd, w_d, b_d, na, w_a, b_a, by_density):
     eta_v = -eta - gap
-    donors = nd * (1.0 - b_d + b_d / (1.0 + math.exp(eta + w_d)))
-    acceptors = na * (1.0 - b_a + b_a / (1.0 + math.exp(eta_v + w_a)))
-    return nv * fd_half(eta_v) + donors - nc * fd_half(eta) - acceptors
+    x_d, x_a = _occupancy_levels(eta, eta_v, by_density)
+    donors = nd * (1.0 - b_d + b_d / (1.0 + math.exp(x_d + w_d)))
+    acceptors = na * (1.0 - b_a + b_a / (1.0 + math.exp(x_a + w_a)))
+    return donors, acceptors
+
+
+def _charge(eta, gap, nc, nv, nd, w_d, b_d, na, w_a, b_a, by_density):
+    donors, acceptors = _ionised(eta, gap, nd, w_d, b_d, na, w_a, b_a, by_density)
+    return nv * fd_half(-eta - gap) + donors - nc * fd_half(eta) - acceptors
 
 
 class _Equilibrium:
@@ -192,6 +209,7 @@ class _Equilibrium:
         self.donor = _Level(bound.ionisation.select("phosphorus"))
         self.acceptor = _Level(bound.ionisation.select("boron"))
         self.schenk = _Schenk(bound.narrowing)
+        self.by_density = bound.occupancy_from_densities
 
     def temperature_parts(self, T):
         """What depends on temperature only, vectorised: lists of floats."""
@@ -201,19 +219,27 @@ class _Equilibrium:
         kt = BOLTZMANN_EV * T
         gap = np.log(nc) + np.log(nv) - 2.0 * np.log(ni) - self.bound.gap_offset(T) / kt
         t = kt / self.schenk.rydberg
-        return [a.tolist() for a in np.broadcast_arrays(T, kt, gap, nc, nv, t)]
+        # levels fitted with other densities of states carry them: + ln(N / N_fit)
+        shift_d = shift_a = np.zeros_like(T)
+        if self.bound.level_states is not None:
+            fit_c, fit_v = self.bound.level_states(temperature=T)
+            shift_d, shift_a = np.log(nc / fit_c), np.log(nv / fit_v)
+        parts = np.broadcast_arrays(T, kt, gap, nc, nv, t, shift_d, shift_a)
+        return [a.tolist() for a in parts]
 
-    def solve(self, kt, gap0, nc, nv, t, nd, na, complete=False, start=None):
-        """(eta, n, p, Nd+, Na-) at one point: brentq at fixed narrowing, fixed point on it."""
+    def solve(self, kt, gap0, nc, nv, t, nd, na, complete=False, start=None, shifts=(0.0, 0.0)):
+        """(eta, n, p, Nd+, Na-) at one point: brentq at fixed narrowing, fixed point on it;
+        ``shifts``: the levels' ln(N / N_fit) (see :meth:`temperature_parts`)."""
         w_d, b_d = self.donor(nd, kt, complete)
         w_a, b_a = self.acceptor(na, kt, complete)
+        w_d, w_a = w_d + shifts[0], w_a + shifts[1]
         ionic = self.schenk.ionic(t, nd, na)
         shift = 0.0
         low, high = (-gap0 - 60.0, 60.0) if start is None else (start - 1.0, start + 1.0)
         history = []
         for step in range(200):
             gap = gap0 - shift
-            args = (gap, nc, nv, nd, w_d, b_d, na, w_a, b_a)
+            args = (gap, nc, nv, nd, w_d, b_d, na, w_a, b_a, self.by_density)
             while _charge(low, *args) <= 0.0:
                 low -= 4.0
             while _charge(high, *args) >= 0.0:
@@ -222,8 +248,7 @@ class _Equilibrium:
             n, p = nc * fd_half(eta), nv * fd_half(-eta - gap)
             new = self.schenk.total(t, n, p, ionic) / kt
             if abs(new - shift) <= SELF_CONSISTENCY and step:
-                donors = nd * (1.0 - b_d + b_d / (1.0 + math.exp(eta + w_d)))
-                acceptors = na * (1.0 - b_a + b_a / (1.0 + math.exp(-eta - gap + w_a)))
+                donors, acceptors = _ionised(eta, gap, nd, w_d, b_d, na, w_a, b_a, self.by_density)
                 return eta, n, p, donors, acceptors
             history.append(new)
             if len(history) == 3:  # Aitken's extrapolation of the narrowing
@@ -240,12 +265,12 @@ def equilibrium_loop(si, T, Nd, Na):
     """(n, p) of every point (1-D arrays), one brentq solve after another."""
     T, Nd, Na = (np.ravel(a) for a in np.broadcast_arrays(T, Nd, Na))
     equations = _Equilibrium(si)
-    _, kt, gap, nc, nv, t = equations.temperature_parts(T)
+    _, kt, gap, nc, nv, t, shift_d, shift_a = equations.temperature_parts(T)
     nd, na = Nd.tolist(), Na.tolist()
     n_out, p_out = np.empty(T.size), np.empty(T.size)
     for i in range(T.size):
         _, n_out[i], p_out[i], _, _ = equations.solve(
-            kt[i], gap[i], nc[i], nv[i], t[i], nd[i], na[i]
+            kt[i], gap[i], nc[i], nv[i], t[i], nd[i], na[i], shifts=(shift_d[i], shift_a[i])
         )
     return n_out, p_out
 
@@ -339,11 +364,11 @@ def resistivity_loop(si, rho, T, dopant="boron"):
         models.append((_Klaassen(model), complete_ionisation(model), ionised))
     equations = _Equilibrium(si)
     rho, T = (np.ravel(a) for a in np.broadcast_arrays(rho, T))
-    _, kts, gaps, ncs, nvs, ts = equations.temperature_parts(T)
+    _, kts, gaps, ncs, nvs, ts, shift_ds, shift_as = equations.temperature_parts(T)
     lows = np.log(si._lowest_density(T, "acceptor" if acceptor else "donor", "phosphorus", "boron"))
     out = np.empty(rho.size)
     for i in range(rho.size):
-        point = (float(T[i]), kts[i], gaps[i], ncs[i], nvs[i], ts[i])
+        point = (float(T[i]), kts[i], gaps[i], ncs[i], nvs[i], ts[i], shift_ds[i], shift_as[i])
         target = math.log(float(rho[i]))
         out[i] = math.exp(
             brentq(
@@ -360,14 +385,14 @@ def resistivity_loop(si, rho, T, dopant="boron"):
 
 def _residual(log_n, point, target, equations, models, acceptor, last):
     """ln rho(N) - ln rho_target at one point (``last``: the last Fermi level found)."""
-    temperature, kt, gap, nc, nv, t = point
+    temperature, kt, gap, nc, nv, t, shift_d, shift_a = point
     density = math.exp(log_n)
     nd, na = (0.0, density) if acceptor else (density, 0.0)
     states, sigma = {}, 0.0
     for carrier, (mobility, complete, ionised) in enumerate(models):
         if complete not in states:
             states[complete] = equations.solve(
-                kt, gap, nc, nv, t, nd, na, complete, last.get(complete)
+                kt, gap, nc, nv, t, nd, na, complete, last.get(complete), (shift_d, shift_a)
             )
             last[complete] = states[complete][0]
         _, n, p, donors, acceptors = states[complete]

@@ -53,8 +53,10 @@ def _same(a, b):
         lambda si, T, N: si.intrinsic_lifetime(300.0, Nd=N, excess=1e15),
         lambda si, T, N: si.absorption(np.linspace(400, 1100, 300)[:, None], T[:200][None, :]),
         lambda si, T, N: si.kernel("band_gap")(T),
-        lambda si, T, N: si.kernel("equilibrium")(T, N, 1e14),
-        lambda si, T, N: si.kernel("mobility", carrier="hole").derivatives(T, N, 1e14, 1e10, N),
+        lambda si, T, N: si.kernel("equilibrium")(T, Nd=N, Na=1e14),
+        lambda si, T, N: si.kernel("mobility", carrier="hole").derivatives(
+            T, Nd=N, Na=1e14, n=1e10, p=N
+        ),
     ],
 )
 def test_workers_give_the_same_numbers_bit_for_bit(pair, call):
@@ -115,7 +117,7 @@ def test_a_failed_solve_names_points_by_their_index_in_the_whole_input():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         for solve in (
             lambda: si.equilibrium(T, Nd=1e16),
-            lambda: si.kernel("equilibrium")(T, 1e16, 0.0),
+            lambda: si.kernel("equilibrium")(T, Nd=1e16, Na=0.0),
         ):
             with pytest.raises(matprops.SolverError) as caught:
                 solve()
@@ -211,7 +213,7 @@ def test_loading_and_a_kernel_value_build_no_unit_registry():
         import matprops
         si = matprops.silicon()
         si.kernel("band_gap")(300.0)
-        si.kernel("mobility", carrier="electron")(300.0, 1e16, 0.0, 1e16, 1e4)
+        si.kernel("mobility", carrier="electron")(300.0, Nd=1e16, Na=0.0, n=1e16, p=1e4)
         print(type(pint.application_registry._registry).__name__)
         print(si.band_gap(300.0).units)
         """

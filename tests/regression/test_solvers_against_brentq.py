@@ -43,7 +43,7 @@ def test_equilibrium_matches_a_brentq_loop(si, lean):
     n, p = lean.equilibrium_loop(si, T, Nd, Na)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
-        state = si.kernel("equilibrium")(T, Nd, Na)
+        state = si.kernel("equilibrium")(T, Nd=Nd, Na=Na)
     # where Nd and Na nearly cancel, n and p are fixed by their difference only: the
     # loop's own rounding (eps (Nd + Na) / (n + p)) bounds how close the two can be
     condition = (Nd + Na) / (n + p)
@@ -68,6 +68,6 @@ def test_a_compensated_point_is_solved_to_its_root(si):
     # about 1e-12 of the root there, not only the residual below 1e-12
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
-        state = si.kernel("equilibrium")(250.0, 1e16, 1e16)
+        state = si.kernel("equilibrium")(250.0, Nd=1e16, Na=1e16)
     residual = float(state["residual"])
     assert abs(residual) <= 8 * np.finfo(float).eps  # at the rounding floor
