@@ -111,7 +111,7 @@ def cases(si):
     add(
         "gap_narrowing (schenk-1998, n, p given)",
         doped,
-        lambda a: narrowing(a["T"], a["Nd"], a["Na"], a["n"], a["p"]),
+        lambda a: narrowing(a["T"], Nd=a["Nd"], Na=a["Na"], n=a["n"], p=a["p"]),
         lambda a: hand.schenk(a["T"], a["Nd"], a["Na"], a["n"], a["p"], c_bgn),
         lambda a: si.band_edge_shifts(a["T"], Na=a["Na"], Nd=a["Nd"], n=a["n"], p=a["p"]),
     )
@@ -124,7 +124,7 @@ def cases(si):
     add(
         "effective_intrinsic_density (n, p given)",
         doped,
-        lambda a: eff(a["T"], a["Nd"], a["Na"], a["n"], a["p"]),
+        lambda a: eff(a["T"], Nd=a["Nd"], Na=a["Na"], n=a["n"], p=a["p"]),
         hand_eff,
         lambda a: si.effective_intrinsic_density(
             a["T"], Na=a["Na"], Nd=a["Nd"], n=a["n"], p=a["p"]
@@ -135,7 +135,7 @@ def cases(si):
     add(
         "ionisation (altermatt-2006, phosphorus)",
         lambda size: {"N": 10 ** rng.uniform(13, 20, size)},
-        lambda a: level(a["N"]),
+        lambda a: level(N=a["N"]),
         lambda a: hand.lowered_level(a["N"], c_level),
         lambda a: si.dopant_level(a["N"], "phosphorus"),
     )
@@ -143,7 +143,7 @@ def cases(si):
     add(
         f"intrinsic_lifetime ({si.models['intrinsic_lifetime']}, n0, p0 given)",
         lifetimes,
-        lambda a: tau(a["T"], a["n0"], a["p0"], a["dn"]),
+        lambda a: tau(a["T"], n0=a["n0"], p0=a["p0"], excess=a["dn"]),
         (lambda a: hand.richter(a["n0"], a["p0"], a["dn"], c_tau))
         if si.models["intrinsic_lifetime"] == "richter-2012"
         else None,
@@ -162,11 +162,12 @@ def cases(si):
             "tp": rng.uniform(1e-6, 1e-3, size),
         }
 
-    keys = ("dn", "n0", "p0", "n1", "p1", "tn", "tp")
+    keys = ("dn", "n0", "p0", "n1", "p1", "tn", "tp")  # in the order of srh.inputs
+    srh_names = tuple(srh.inputs)
     add(
         "srh_lifetime (shockley-1952)",
         srh_inputs,
-        lambda a: srh(*(a[k] for k in keys)),
+        lambda a: srh(**{name: a[k] for name, k in zip(srh_names, keys, strict=True)}),
         lambda a: hand.srh(*(a[k] for k in keys)),
     )
     vth = si.kernel("thermal_velocity", carrier="electron")
@@ -190,7 +191,7 @@ def cases(si):
     add(
         "free_carrier_absorption (nedeljkovic-2011)",
         fca_inputs,
-        lambda a: fca(a["lam"], a["n"], a["p"]),
+        lambda a: fca(a["lam"], n=a["n"], p=a["p"]),
         lambda a: hand.fca(a["lam"], a["n"], a["p"], c_fca),
         lambda a: si.free_carrier_absorption(a["lam"], n=a["n"], p=a["p"]),
     )
@@ -200,7 +201,7 @@ def cases(si):
         add(
             f"mobility (klaassen-1992, {carrier}, n, p given)",
             doped,
-            lambda a, k=mobility: k(a["T"], a["Nd"], a["Na"], a["n"], a["p"]),
+            lambda a, k=mobility: k(a["T"], Nd=a["Nd"], Na=a["Na"], n=a["n"], p=a["p"]),
             lambda a, c=c_mu: hand.klaassen(a["T"], a["Nd"], a["Na"], a["n"], a["p"], c),
             lambda a, carrier=carrier: si.mobility(
                 carrier, a["T"], Na=a["Na"], Nd=a["Nd"], n=a["n"], p=a["p"]
@@ -220,7 +221,7 @@ def cases(si):
     add(
         "standard_resistivity (thurber-1981, boron)",
         lambda size: {"T": np.full(size, 296.15), "N": 10 ** rng.uniform(13, 20, size)},
-        lambda a: rho(a["T"], a["N"]),
+        lambda a: rho(a["T"], N=a["N"]),
         lambda a: hand.rational_resistivity(a["N"], c_rho),
     )
 
@@ -379,11 +380,12 @@ def run_derivatives(bench):
     ]
     for name, fixed, args in rows:
         kernel = si.kernel(name, **fixed)
-        value, partials = kernel.derivatives(*args)
+        args = dict(zip(kernel.inputs, args, strict=True))  # densities go by name
+        value, partials = kernel.derivatives(**args)
         kept = (value, partials)
         ours, theirs = compare(
-            lambda k=kernel, a=args, o=kept: k.derivatives(*a, out=o),
-            lambda k=kernel, a=args: k(*a),
+            lambda k=kernel, a=args, o=kept: k.derivatives(**a, out=o),
+            lambda k=kernel, a=args: k(**a),
             budget=0.2 if bench.quick else 1.0,
         )
         bench.row(

@@ -43,10 +43,14 @@ def calls(si):
         (
             "gap_narrowing (kernel, n, p given)",
             2.0,
-            lambda a: si.kernel("gap_narrowing")(a["T"], a["N"], 0.0, a["N"], 1e4),
+            lambda a: si.kernel("gap_narrowing")(a["T"], Nd=a["N"], Na=0.0, n=a["N"], p=1e4),
         ),
         ("equilibrium (method)", 3.0, lambda a: si.equilibrium(a["T"], Nd=a["N"])),
-        ("equilibrium (kernel)", 3.0, lambda a: si.kernel("equilibrium")(a["T"], a["N"], 0.0)),
+        (
+            "equilibrium (kernel)",
+            3.0,
+            lambda a: si.kernel("equilibrium")(a["T"], Nd=a["N"], Na=0.0),
+        ),
         ("resistivity (method)", 3.0, lambda a: si.resistivity(a["T"], Na=a["N"])),
         (
             "doping_from_resistivity (method)",

@@ -59,13 +59,16 @@ def rows(si):
     def mobility_floor():
         state = eq(**solve_args)
         return quantity(
-            mu_e(T, N, 0.0, state["electron_density"], state["hole_density"]), "cm^2/(V*s)"
+            mu_e(T, Nd=N, Na=0.0, n=state["electron_density"], p=state["hole_density"]),
+            "cm^2/(V*s)",
         )
 
     def resistivity_floor():
         state = eq(**solve_args)
         n, p = state["electron_density"], state["hole_density"]
-        sigma = 1.602176634e-19 * (n * mu_e(T, N, 0.0, n, p) + p * mu_h(T, N, 0.0, n, p))
+        sigma = 1.602176634e-19 * (
+            n * mu_e(T, Nd=N, Na=0.0, n=n, p=p) + p * mu_h(T, Nd=N, Na=0.0, n=n, p=p)
+        )
         return quantity(1.0 / sigma, "ohm*cm")
 
     return [
@@ -95,19 +98,19 @@ def rows(si):
         ),
         (
             "band_edge_shifts (n, p given)",
-            lambda: [quantity(x, "eV") for x in bgn(T, N, 0.0, N, 1e4)],
+            lambda: [quantity(x, "eV") for x in bgn(T, Nd=N, Na=0.0, n=N, p=1e4)],
             lambda: si.band_edge_shifts(T, Nd=N, n=N, p=1e4),
             lambda: si.band_edge_shifts(TQ, Nd=NQ, n=NQ, p=P4),
         ),
         (
             "effective_intrinsic_density (n, p given)",
-            lambda: quantity(eff(T, N, 0.0, N, 1e4), "cm^-3"),
+            lambda: quantity(eff(T, Nd=N, Na=0.0, n=N, p=1e4), "cm^-3"),
             lambda: si.effective_intrinsic_density(T, Nd=N, n=N, p=1e4),
             lambda: si.effective_intrinsic_density(TQ, Nd=NQ, n=NQ, p=P4),
         ),
         (
             "dopant_level",
-            lambda: [quantity(x, "eV") for x in level(N)],
+            lambda: [quantity(x, "eV") for x in level(N=N)],
             lambda: si.dopant_level(N),
             lambda: si.dopant_level(NQ),
         ),
@@ -149,7 +152,7 @@ def rows(si):
         ),
         (
             "free_carrier_absorption",
-            lambda: quantity(fca(1500.0, 1e18, 0.0), "1/cm"),
+            lambda: quantity(fca(1500.0, n=1e18, p=0.0), "1/cm"),
             lambda: si.free_carrier_absorption(1500.0, n=1e18),
             lambda: si.free_carrier_absorption(UM, n=N18),
         ),
@@ -161,13 +164,15 @@ def rows(si):
         ),
         (
             "intrinsic_lifetime (n0, p0 given)",
-            lambda: quantity(tau(T, 1e16, 1e4, 1e15), "s"),
+            lambda: quantity(tau(T, n0=1e16, p0=1e4, excess=1e15), "s"),
             lambda: si.intrinsic_lifetime(T, n0=1e16, p0=1e4, excess=1e15),
             lambda: si.intrinsic_lifetime(TQ, n0=NQ, p0=P4, excess=X15),
         ),
         (
             "intrinsic_lifetime (n0, p0 solved)",
-            lambda: quantity(tau(T, eq(**solve_args)["electron_density"], 1e4, 1e15), "s"),
+            lambda: quantity(
+                tau(T, n0=eq(**solve_args)["electron_density"], p0=1e4, excess=1e15), "s"
+            ),
             lambda: si.intrinsic_lifetime(T, Nd=N, excess=1e15),
             lambda: si.intrinsic_lifetime(TQ, Nd=NQ, excess=X15),
         ),
@@ -185,7 +190,7 @@ def rows(si):
         ),
         (
             "mobility (n, p given)",
-            lambda: quantity(mu_e(T, N, 0.0, N, 1e4), "cm^2/(V*s)"),
+            lambda: quantity(mu_e(T, Nd=N, Na=0.0, n=N, p=1e4), "cm^2/(V*s)"),
             lambda: si.mobility("electron", T, Nd=N, n=N, p=1e4),
             lambda: si.mobility("electron", TQ, Nd=NQ, n=NQ, p=P4),
         ),
@@ -197,7 +202,7 @@ def rows(si):
         ),
         (
             "high_field_mobility (n, p given)",
-            lambda: quantity(hfm(1e4, T, mu_e(T, N, 0.0, N, 1e4), vsat(T)), "cm^2/(V*s)"),
+            lambda: quantity(hfm(1e4, T, mu_e(T, Nd=N, Na=0.0, n=N, p=1e4), vsat(T)), "cm^2/(V*s)"),
             lambda: si.high_field_mobility("electron", 1e4, T, Nd=N, n=N, p=1e4),
             lambda: si.high_field_mobility("electron", FIELD, TQ, Nd=NQ, n=NQ, p=P4),
         ),

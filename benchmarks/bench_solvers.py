@@ -43,18 +43,18 @@ def run_equilibrium(bench):
     size, sample = (20_000, 60) if bench.quick else (200_000, 400)
     T, Nd, Na = _points(size)
     kernel = si.kernel("equilibrium")
-    kernel(T[:10], Nd[:10], Na[:10])
+    kernel(T[:10], Nd=Nd[:10], Na=Na[:10])
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         loop, vectorised, api = compare(
             lambda: lean.equilibrium_loop(si, T[:sample], Nd[:sample], Na[:sample]),
-            lambda: kernel(T, Nd, Na),
+            lambda: kernel(T, Nd=Nd, Na=Na),
             lambda: si.equilibrium(T, Nd=Nd, Na=Na),
             rounds=2,
             budget=1.0 if bench.quick else 10.0,
         )
         n, p = lean.equilibrium_loop(si, T[:sample], Nd[:sample], Na[:sample])
-        state = kernel(T[:sample], Nd[:sample], Na[:sample])
+        state = kernel(T[:sample], Nd=Nd[:sample], Na=Na[:sample])
     worst = max(
         float(np.max(np.abs(state["electron_density"] / n - 1.0))),
         float(np.max(np.abs(state["hole_density"] / p - 1.0))),

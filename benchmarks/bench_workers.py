@@ -36,25 +36,30 @@ def run(bench):
     n = 10 ** rng.uniform(10.0, 19.0, size)
     one, many = matprops.silicon(), matprops.silicon(workers=cores)
     heavy = [
-        ("gap_narrowing kernel (schenk, n, p given)", "gap_narrowing", (T, N, 0.0, n, 1e4), {}),
+        (
+            "gap_narrowing kernel (schenk, n, p given)",
+            "gap_narrowing",
+            {"temperature": T, "Nd": N, "Na": 0.0, "n": n, "p": 1e4},
+            {},
+        ),
         (
             "mobility kernel (klaassen, electron)",
             "mobility",
-            (T, N, 0.0, n, 1e4),
+            {"temperature": T, "Nd": N, "Na": 0.0, "n": n, "p": 1e4},
             {"carrier": "electron"},
         ),
-        ("intrinsic_density kernel", "intrinsic_density", (T,), {}),
-        ("band_gap kernel", "band_gap", (T,), {}),
+        ("intrinsic_density kernel", "intrinsic_density", {"temperature": T}, {}),
+        ("band_gap kernel", "band_gap", {"temperature": T}, {}),
     ]
     solver_size = size // 10
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         for name, quantity, args, fixed in heavy:
             k1, kn = one.kernel(quantity, **fixed), many.kernel(quantity, **fixed)
-            same = _same(k1(*args), kn(*args))
+            same = _same(k1(**args), kn(**args))
             single, threaded = compare(
-                lambda k=k1, a=args: k(*a),
-                lambda k=kn, a=args: k(*a),
+                lambda k=k1, a=args: k(**a),
+                lambda k=kn, a=args: k(**a),
                 clock=time.perf_counter,
                 rounds=3,
                 budget=2.0 if bench.quick else 8.0,
