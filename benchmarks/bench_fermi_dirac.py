@@ -26,6 +26,32 @@ def ns_per_element(function, x, repeat=7):
     return min(timeit.repeat(lambda: function(x), number=1, repeat=repeat)) / x.size * 1e9
 
 
+def run(bench):
+    """F_1/2 and its relatives against np.exp on the same arrays (ratio: x np.exp)."""
+    from harness import compare
+
+    bench.section("fermi_dirac: F_1/2, F_-1/2 and the inverse against np.exp")
+    n = 100_000 if bench.quick else 1_000_000
+    rng = np.random.default_rng(0)
+    cases = {
+        "random -50..100": rng.uniform(-50.0, 100.0, n),
+        "sorted -50..100": np.linspace(-50.0, 100.0, n),
+        "random -40..0": rng.uniform(-40.0, 0.0, n),
+    }
+    for label, eta in cases.items():
+        y = fd_half(eta)
+        for name, function, x in (
+            ("fd_half", fd_half, eta),
+            ("fd_minus_half", fd_minus_half, eta),
+            ("fd_half_inverse", fd_half_inverse, y),
+        ):
+            ours, exp = compare(lambda f=function, x=x: f(x), lambda e=eta: np.exp(e), budget=0.3)
+            bench.row("fermi_dirac", f"{name}, {label}", n, ours, exp, note="x np.exp")
+
+
+SECTIONS = {"fermi_dirac": run}
+
+
 def main():
     n = 1_000_000
     rng = np.random.default_rng(0)

@@ -164,10 +164,14 @@ class SolverError(Error, ArithmeticError):
     """A numerical solve (e.g. charge neutrality) did not converge; names the points."""
 
     # set by solvers that know them: the first failing points (flat indices into the
-    # input's shape), how many failed, and why
-    points: list[int]
+    # input's shape, or dicts naming each point's index and inputs), how many failed,
+    # and why; the block-wise solvers also set what was solved (``subject``) and what
+    # went wrong (``what``), to name the points again in the caller's whole input
+    points: list
     count: int
     reason: str
+    subject: str
+    what: str
 
 
 class ValidityError(Error, ValueError):

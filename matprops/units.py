@@ -24,6 +24,7 @@ from __future__ import annotations
 import datetime
 import math
 import re
+import threading
 from functools import cache
 
 import numpy as np
@@ -53,15 +54,33 @@ __all__ = [
 ureg = pint.get_application_registry()
 
 
+_BUILDING = threading.Lock()
+_BUILT = [None]  # the registry last seen fully built
+
+
+def registry():
+    """The current application registry, built (pint parses its definitions on first
+    use) under a lock: pint's lazy registry is not safe to build from several threads at
+    once (it changes class before its definitions are loaded), and the first quantity
+    may be asked for by many threads together."""
+    current = ureg.get()
+    if current is not _BUILT[0]:
+        with _BUILDING:
+            current = ureg.get()
+            current.Quantity  # noqa: B018 - builds a lazy registry (at once if built)
+            _BUILT[0] = current
+    return current
+
+
 def __getattr__(name):
     if name == "Q_":  # the Quantity class of the current application registry
-        return ureg.Quantity
+        return registry().Quantity
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
 def _Q(value, units=None):
     """A quantity of the current application registry (``ureg.Quantity(value, units)``)."""
-    return ureg.Quantity(value, units)
+    return registry().Quantity(value, units)
 
 
 @cache
@@ -72,7 +91,7 @@ def _unit_of(registry, text: str) -> pint.Unit:
 def unit(text: str) -> pint.Unit:
     """A pint Unit of the application registry, parsed once per registry (parsing a
     string costs ~56 µs per call)."""
-    return _unit_of(ureg.get(), text)
+    return _unit_of(registry(), text)
 
 
 # Default (and internal) unit of each argument name and alias, and what its value must
@@ -137,6 +156,8 @@ def coerce(
     default_units, default_req = ARGUMENTS.get(argument, (None, None))
     units = units or default_units
     requirement = requirement or default_req
+    if units is None:  # a name no argument has, and no units given
+        raise InputError(argument, "an argument name the library knows, or units", argument)
     if type(value) in _PLAIN_SCALARS:  # the scalar fast path: a plain number
         try:
             number = float(value)
@@ -149,6 +170,10 @@ def coerce(
         if requirement == "non-negative" and number < 0:
             raise InputError(argument, f">= 0 {units}", f"{number:g} {units}")
         return np.array(number), number, number
+    if isinstance(value, pint.Quantity):  # a cached conversion factor for its unit
+        converted = _convert_cached(value, argument, units, requirement)
+        if converted is not None:
+            return converted
     target = unit(units)
     if value is None:
         raise UnitError(argument, units, None)
@@ -166,6 +191,85 @@ def coerce(
             raise InputError(argument, f"finite numbers in {units}", _huge(value)) from None
         except (TypeError, ValueError) as exc:
             raise UnitError(argument, units, value) from exc
+    low, high = check_values(magnitude, argument, units, requirement)
+    return magnitude, low, high
+
+
+# (registry, unit of the quantity, target unit text) -> (factor, offset), or None where
+# the conversion is not a linear map (a spectral conversion, a temperature difference
+# for an absolute temperature, another dimension): those take the general path.
+_CONVERSIONS: dict = {}
+_CONVERSIONS_MAX = 512
+
+
+def _conversion(value, units: str, argument: str):
+    """(factor, offset) with ``magnitude * factor + offset`` = ``value.m_as(units)``,
+    computed once per registry, unit and target (pint's own conversion of 0, 1 and 2),
+    or None."""
+    owner = getattr(value, "_REGISTRY", None)
+    units_key = getattr(value, "_units", None)
+    if owner is None or units_key is None:
+        return None
+    key = (owner, units_key, units)
+    try:
+        return _CONVERSIONS[key]
+    except KeyError:
+        pass
+    except TypeError:  # an unhashable unit: no cache
+        return None
+    found = None
+    if owner is registry():  # a quantity of another registry: the general path
+        try:
+            target = unit(units)
+            if not (target == unit("K") and "delta_" in str(value.units)):
+                if value.dimensionality == target.dimensionality:
+                    # a multiplicative unit: pint's factor itself (the image of 1);
+                    # an offset unit (degC, degF): x * scale + offset, the scale read
+                    # from the image of 1024 (to an ulp)
+                    points = [
+                        float(owner.Quantity(x, units_key).m_as(target)) for x in (0.0, 1.0, 1024.0)
+                    ]
+                    offset, one, far = points
+                    factor = one if offset == 0.0 else (far - offset) / 1024.0
+                    if math.isclose(far, offset + 1024.0 * factor, rel_tol=1e-13):
+                        found = (factor, offset)
+        except Exception:  # pint refuses: the general path says why
+            found = None
+    if len(_CONVERSIONS) >= _CONVERSIONS_MAX:
+        _CONVERSIONS.clear()
+    _CONVERSIONS[key] = found
+    return found
+
+
+def _convert_cached(value, argument: str, units: str, requirement):
+    """coerce() of a quantity through a cached linear conversion; None if there is none
+    (then the general path converts, or raises saying why)."""
+    conversion = _conversion(value, units, argument)
+    if conversion is None:
+        return None
+    factor, offset = conversion
+    magnitude = value.magnitude
+    if type(magnitude) in _PLAIN_SCALARS:
+        try:
+            number = float(magnitude) * factor
+        except OverflowError:  # a Python int beyond float's 1.8e308
+            raise InputError(argument, f"finite numbers in {units}", _huge(magnitude)) from None
+        if offset:
+            number += offset
+        if not math.isfinite(number):
+            raise InputError(argument, f"finite numbers in {units}", repr(value))
+        if requirement == "positive" and number <= 0:
+            raise InputError(argument, f"> 0 {units}", f"{number:g} {units}")
+        if requirement == "non-negative" and number < 0:
+            raise InputError(argument, f">= 0 {units}", f"{number:g} {units}")
+        return np.array(number), number, number
+    _real_array(magnitude, argument, units)
+    # arrays: pint's own conversion (its array path rounds differently from its scalar
+    # one), to the cached Unit, the unit's checks already settled by the cache
+    try:
+        magnitude = np.asarray(value.m_as(unit(units)), dtype=float)
+    except (pint.PintError, TypeError, ValueError):
+        return None  # the general path says why
     low, high = check_values(magnitude, argument, units, requirement)
     return magnitude, low, high
 
@@ -417,8 +521,8 @@ def quantity(magnitude, units: str):
     """Attach units to a kernel result; 0-d arrays become scalars."""
     if isinstance(magnitude, np.ndarray) and magnitude.ndim == 0:
         magnitude = magnitude[()]
-    registry = ureg.get()
-    return registry.Quantity(magnitude, _unit_of(registry, units)._units)
+    current = registry()
+    return current.Quantity(magnitude, _unit_of(current, units)._units)
 
 
 _CF_SYMBOLS = {
@@ -441,7 +545,7 @@ def cf_units(units) -> str:
         return "1"
     parts = []
     for name, power in unit_._units.items():
-        symbol = _CF_SYMBOLS.get(name) or ureg.get_symbol(name).replace("µ", "u")
+        symbol = _CF_SYMBOLS.get(name) or registry().get_symbol(name).replace("µ", "u")
         power = int(power) if float(power).is_integer() else float(power)
         parts.append(symbol if power == 1 else f"{symbol}{power}")
     return " ".join(parts) or "1"

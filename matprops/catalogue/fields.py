@@ -48,7 +48,34 @@ def require(path, data: Mapping, name: str, kind=None, where: str = ""):
     return value
 
 
+#: Every (units, target) pair a conversion was asked for in this process (what
+#: ``tools/make_unit_factors.py`` records after loading the whole catalogue).
+CONVERSIONS_SEEN: set[tuple[str, str]] = set()
+
+
 def convert(path, where: str, value, units: str, target: str):
+    """Convert value (float or list) from ``units`` to ``target``.
+
+    A pair of unit strings the data files use is looked up in
+    :data:`matprops.catalogue._unit_factors.FACTORS`: pint's own factor for it, written
+    by ``tools/make_unit_factors.py`` and checked against pint by the tests. The
+    conversion is then ``value * factor``, the operation pint performs itself, so the
+    numbers are the same; loading the catalogue builds no unit registry (pint parses
+    its definitions on the first quantity made, ~150 ms). A pair not in the table (a new
+    data file's units) is converted by pint.
+    """
+    from ._unit_factors import FACTORS
+
+    CONVERSIONS_SEEN.add((units, target))
+    factor = FACTORS.get((units, target))
+    if factor is not None:
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            return float(value) * factor
+        return read_only(np.asarray(value, dtype=float) * factor)
+    return convert_with_pint(path, where, value, units, target)
+
+
+def convert_with_pint(path, where: str, value, units: str, target: str):
     """Convert value (float or list) from ``units`` to ``target`` with pint."""
     import pint
 
@@ -72,6 +99,21 @@ def convert(path, where: str, value, units: str, target: str):
     except pint.PintError as exc:  # pragma: no cover - dimension checked above
         raise DatasetError(path, f"{where}: cannot convert {units!r} to {target!r}") from exc
     return float(converted) if np.ndim(converted) == 0 else read_only(np.array(converted))
+
+
+def pint_factor(units: str, target: str) -> float | None:
+    """pint's factor from ``units`` to ``target`` (None for an offset or logarithmic
+    unit, whose conversion is not a product)."""
+    from ..units import Q_, unit
+
+    source_unit, target_unit = unit(units), unit(target)
+    zero = float(Q_(0.0, source_unit).m_as(target_unit))
+    if zero != 0.0:
+        return None
+    factor = float(Q_(1.0, source_unit).m_as(target_unit))
+    if float(Q_(3.0, source_unit).m_as(target_unit)) != 3.0 * factor:
+        return None
+    return factor
 
 
 def number_or_list(path, where, value):

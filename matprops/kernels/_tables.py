@@ -98,7 +98,7 @@ class GridTable:
     # evaluate() calls this table with the whole input: it blocks where blocks help
     blocks_itself = True
 
-    def __call__(self, wavelength, temperature, out=None):
+    def __call__(self, wavelength, temperature, out=None, workers=None):
         lam = np.asarray(wavelength, dtype=float)
         t = np.asarray(temperature, dtype=float)
         shape = np.broadcast_shapes(lam.shape, t.shape)
@@ -118,7 +118,9 @@ class GridTable:
             from ._blocks import evaluate
 
             path = self._grid if _apart(lam.shape, t.shape) else self._pairs
-            return evaluate(self._blockwise, {"lam": lam, "t": t}, out=out, path=path)
+            return evaluate(
+                self._blockwise, {"lam": lam, "t": t}, out=out, workers=workers, path=path
+            )
         result = self._grid(lam, t) if _apart(lam.shape, t.shape) else self._pairs(lam, t)
         return self._finish(result, shape, None)
 
@@ -182,16 +184,19 @@ class GridTable:
         return self._bracket(t, self._t_locator)
 
     def _grid(self, lam, t):
-        """Wavelength and temperature on different axes: each table row at the
-        wavelengths once, then the two rows around each temperature blended."""
+        """Wavelength and temperature on different axes: the table rows around the
+        temperatures asked for (only those) at the wavelengths once, then the two rows
+        around each temperature blended."""
         shape = np.broadcast_shapes(lam.shape, t.shape)
         j, v = self._bracket(lam.reshape(-1), self._locator)
-        rows = self.values[:, j]
-        rows *= 1.0 - v
-        rows += self.values[:, j + 1] * v  # (table rows, wavelengths)
         i, u = self._temperature_bracket(t.reshape(-1))
-        low = rows[i]
-        high = rows[i + 1]  # (temperatures, wavelengths)
+        needed = np.unique(np.concatenate((i, i + 1)))  # table rows used, ascending
+        rows = self.values[needed[:, None], j]
+        rows *= 1.0 - v
+        rows += self.values[needed[:, None], j + 1] * v  # (rows used, wavelengths)
+        position = np.searchsorted(needed, i)  # row i's place among those used
+        low = rows[position]
+        high = rows[position + 1]  # (temperatures, wavelengths)
         low *= (1.0 - u)[:, None]
         high *= u[:, None]
         low += high

@@ -214,3 +214,8 @@ def mass_polynomials_derivatives(
         values.append(t32 * mass)
         slopes.append(scale * (1.5 * mass + t * horner_derivative(t, c)))
     return tuple(values), {"temperature": tuple(slopes)}
+
+
+# a few operations per point: large blocks (a 1e5-point call in one piece)
+for _light in (mass_polynomials, power_law):
+    _light.block = 1 << 17

@@ -483,6 +483,126 @@ class _SchenkParts:
             shift(p, self.g_h, self.alpha_h, self.hole_set, self.ionic_h),
         )
 
+    def subset(self, index):
+        """The same parts at a subset of the points (per-point arrays indexed, numpy)."""
+        part = object.__new__(_SchenkParts)
+        part.__dict__.update(self.__dict__)
+        for name in ("t", "t2", "t3", "t52", "ionic_e", "ionic_h"):
+            value = self.__dict__[name]
+            if getattr(value, "ndim", 0):
+                part.__dict__[name] = value[index]
+        part.__dict__.pop("_stacked", None)
+        return part
+
+    def _columns(self):
+        """Per-band constants as (2, 1) columns and the ionic parts stacked (2, m)."""
+        stacked = self.__dict__.get("_stacked")
+        if stacked is None:
+            bands = (
+                (self.g_e, self.alpha_e, self.electron_set),
+                (self.g_h, self.alpha_h, self.hole_set),
+            )
+
+            def column(values):
+                return np.array(values, dtype=float).reshape(2, 1)
+
+            b, c, d, pa = (column([band[2][k] for band in bands]) for k in range(4))
+            stacked = self.__dict__["_stacked"] = {
+                "cube": column([48.0 / (math.pi * g) for g, _, _ in bands]),
+                "k": column([8.0 * math.pi * alpha / g for g, alpha, _ in bands]),
+                "b": b,
+                "half_b": 0.5 * b,
+                "c": c,
+                "d": d,
+                "pa": pa,
+                "cpa": c * pa,
+                "ionic": np.stack(np.broadcast_arrays(self.ionic_e, self.ionic_h)),
+            }
+        return stacked
+
+    def carrier_slopes(self, electron_density, hole_density=None, slopes=True, factor=1.0):
+        """The shifts and the logarithmic slopes of their sum with respect to n and p.
+
+        Returns ``(shifts, n d(dEc + dEv)/dn, p d(dEc + dEv)/dp)`` in eV, numpy:
+        ``shifts`` of shape ``(2, m)`` holds dEc and dEv (for the equilibrium solver,
+        which carries the narrowing in its Newton step; both bands are computed as one
+        stacked array). The slopes are :meth:`with_derivatives`' partials times the
+        density, written so that they stay finite as a density vanishes (the cube
+        root's slope does not); with ``slopes=False`` they are None. With
+        ``hole_density`` None, ``electron_density`` holds both densities as a (2, m)
+        array; ``factor`` multiplies them (a scale the caller divided them by).
+        """
+        k = self._columns()
+        if hole_density is None:
+            densities = electron_density * (factor * self.volume)
+        else:
+            densities = np.stack((electron_density, hole_density))
+            densities *= factor * self.volume
+        n, p = densities
+        t, t2 = self.t, self.t2
+        ns = n + p
+        sqrt_ns = np.sqrt(ns)
+        mix = self.alpha_e * n
+        mix += self.alpha_h * p
+        with np.errstate(divide="ignore", invalid="ignore"):
+            log_mix = np.log(mix)
+            f = ns * ns
+            f *= _FOUR_PI_CUBED
+            common_top = sqrt_ns * self.t52
+            common_top *= _ROOT_8PI
+            ns_t = ns * sqrt_ns
+            ns_t *= t
+            root_t2 = sqrt_ns * t2
+            inverse = k["b"] * root_t2
+            inverse += f
+            inverse += self.t3
+            inverse += 40.0 * ns_t
+            np.divide(1.0, inverse, out=inverse)  # 1 / bottom, per band
+            cube = k["cube"] * densities
+            np.cbrt(cube, out=cube)
+            w = k["pa"] * log_mix
+            np.exp(w, out=w)
+            w *= k["d"]
+            bracket = _log1p(w)
+            bracket *= k["c"]
+            bracket += cube
+            k_n = k["k"] * t2
+            k_n *= densities
+            top = f * bracket
+            top += k_n
+            top += common_top
+            exchange = top * inverse  # -X, per band
+            shifts = exchange - k["ionic"]
+            shifts *= self.rydberg  # -(X + I) Ry
+            if not slopes:
+                return shifts, None, None
+            # ns d(top)/d ns + X ns d(bottom)/d ns, per band, over bottom
+            common = bracket * (2.0 * f)
+            common += 0.5 * common_top
+            bottom_slope = k["half_b"] * root_t2
+            bottom_slope += 2.0 * f
+            bottom_slope += 60.0 * ns_t
+            bottom_slope *= exchange
+            common -= bottom_slope
+            common *= inverse
+            mixing = w / (1.0 + w)
+            mixing *= k["cpa"]
+            mixing *= inverse
+            own = cube * (1.0 / 3.0)
+            own *= f
+            own += k_n
+            own *= inverse
+            shared = (common[0] + common[1]) / ns
+            mixed = (mixing[0] + mixing[1]) * f / mix
+            rydberg = self.rydberg
+            slope_n = n * (shared + self.alpha_e * mixed)
+            slope_n += own[0]
+            slope_n *= rydberg
+            slope_p = p * (shared + self.alpha_h * mixed)
+            slope_p += own[1]
+            slope_p *= rydberg
+        return shifts, slope_n, slope_p
+
     def with_derivatives(self, electron_density, hole_density):
         """The shifts (as :meth:`__call__`) and their partial derivatives with respect to
         temperature (eV/K) and the four densities (eV cm^3)."""
@@ -559,3 +679,16 @@ class _SchenkParts:
 
 
 _ROOT_8PI = math.sqrt(8.0 * math.pi)
+_FOUR_PI_CUBED = (4.0 * math.pi) ** 3
+
+
+def _log1p(w):
+    """``log(1 + w)`` for w >= 0 to a few ulps: ``log(u) - ((u - 1) - w) / u`` with
+    ``u = 1 + w`` (numpy's log1p takes 3-4 times as long on small arguments)."""
+    u = 1.0 + w
+    value = np.log(u)
+    correction = u - 1.0
+    correction -= w
+    correction /= u
+    value -= correction
+    return value

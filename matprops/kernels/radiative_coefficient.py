@@ -79,9 +79,10 @@ def temperature_table(temperature, *, temperatures, coefficients):
     -------
     B, cm^3/s
     """
-    return temperature_table_derivatives(
-        temperature, temperatures=temperatures, coefficients=coefficients
-    )[0]
+    grid = np.asarray(temperatures, dtype=float)
+    logs = np.log(np.asarray(coefficients, dtype=float))
+    # np.interp holds the end values outside the grid, as the derivatives' clip does
+    return np.exp(np.interp(np.asarray(temperature, dtype=float), grid, logs))
 
 
 @derivatives_of(temperature_table)

@@ -11,7 +11,8 @@ mobilities in cm^2/(V s).
   form) and :func:`log_rational_resistivity` / :func:`log_rational_density`
   (phosphorus's form). Their ``temperature`` input only carries the validity
   check: the conversions hold at 23 degC.
-- :func:`solve_decreasing`: the vectorised root finder that inverts a
+- :func:`solve_decreasing` (from a bracket) and :func:`solve_decreasing_from` (from a
+  first guess, secant steps kept in a bracket): vectorised root finders that invert a
   resistivity that falls with the dopant density (doping from resistivity).
 """
 
@@ -29,6 +30,7 @@ __all__ = [
     "rational_density",
     "rational_resistivity",
     "solve_decreasing",
+    "solve_decreasing_from",
 ]
 
 
@@ -256,3 +258,101 @@ def solve_decreasing(
         side[active] = np.where(moved_a, -1, 1)
         done[active] = (fx == 0) | (b[active] - a[active] <= xtol) | (step <= xtol)
     return x, done
+
+
+def solve_decreasing_from(
+    function, target, guess, low, high, *, xtol=1e-13, ftol=1e-12, max_iterations=100
+):
+    """Solve ``function(x) = target`` (``function`` falling with x) from a first guess.
+
+    Secant steps (the first with slope -1, as for ``ln rho`` against ``ln N`` in
+    doped silicon), kept inside a bracket that closes as the signs of the residual are
+    found: a step that leaves it is replaced by false position between its ends
+    (Illinois: the end that stayed twice has its residual halved), or by bisection
+    while one end has not been evaluated. The ends ``low`` and ``high`` themselves are
+    evaluated only when a step reaches them: where the residual keeps its sign there,
+    the target is out of reach. Each iteration evaluates ``function`` once, on the
+    points not yet converged (``function(x, index)``); a point stops when its step or
+    its bracket is below ``xtol``, or its residual is below ``ftol`` (where the
+    function's own rounding, e.g. of an iterative solve inside it, leaves the residual
+    a step cannot reduce).
+
+    Parameters
+    ----------
+    function : callable ``(x, index) -> values``
+    target, guess, low, high : 1-D arrays (``low < guess < high`` after clipping)
+    xtol : absolute tolerance in x
+    ftol : absolute tolerance of the residual
+    max_iterations : int
+
+    Returns
+    -------
+    (x, converged, reach) : the roots, a boolean array (False where the iterations ran
+    out), and an int8 array: 0 where the target is within reach, -1 where it lies beyond
+    ``function(low)`` (residual negative at ``low``), +1 beyond ``function(high)``.
+    """
+    target = np.asarray(target, dtype=float)
+    low = np.array(low, dtype=float)
+    high = np.array(high, dtype=float)
+    x = np.clip(np.array(guess, dtype=float), low, high)
+    a, b = low.copy(), high.copy()
+    fa = np.full(target.size, np.nan)  # residuals at the bracket's ends, once evaluated
+    fb = np.full(target.size, np.nan)
+    previous_x = np.full(target.size, np.nan)
+    previous_f = np.full(target.size, np.nan)
+    side = np.zeros(target.size, dtype=np.int8)  # which end moved last: -1 a, +1 b
+    reach = np.zeros(target.size, dtype=np.int8)
+    done = np.zeros(target.size, dtype=bool)
+    active = np.arange(target.size)
+    for _ in range(max_iterations):
+        if not active.size:
+            break
+        xx = x[active]
+        fx = function(xx, active) - target[active]
+        # the target beyond an end: the residual keeps its sign there
+        at_low = (xx <= low[active]) & (fx < 0)
+        at_high = (xx >= high[active]) & (fx > 0)
+        reach[active[at_low]] = -1
+        reach[active[at_high]] = 1
+        # the bracket closes on the sign found (function falls: f > 0 below the root)
+        above = fx > 0
+        last = side[active]
+        fa_active, fb_active = fa[active], fb[active]
+        fb_active = np.where(above & (last == -1), 0.5 * fb_active, fb_active)
+        fa_active = np.where(~above & (last == 1), 0.5 * fa_active, fa_active)
+        a[active] = np.where(above, xx, a[active])
+        fa[active] = np.where(above, fx, fa_active)
+        b[active] = np.where(above, b[active], xx)
+        fb[active] = np.where(above, fb_active, fx)
+        side[active] = np.where(above, -1, 1)
+        # the next point: secant (slope -1 at first), else false position, else bisection
+        px, pf = previous_x[active], previous_f[active]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            slope = np.where(np.isfinite(px), (fx - pf) / (xx - px), -1.0)
+            proposal = xx - fx / np.where(slope < 0, slope, -1.0)
+            aa, bb = a[active], b[active]
+            fa_, fb_ = fa[active], fb[active]
+            position = (aa * fb_ - bb * fa_) / (fb_ - fa_)
+        inside = (proposal > aa) & (proposal < bb) & np.isfinite(proposal)
+        both = np.isfinite(fa_) & np.isfinite(fb_)
+        fallback = np.where(both & (position > aa) & (position < bb), position, 0.5 * (aa + bb))
+        # an end not yet evaluated is tried itself before bisecting towards it
+        fallback = np.where(~np.isfinite(fb_) & (proposal >= bb), bb, fallback)
+        fallback = np.where(~np.isfinite(fa_) & (proposal <= aa), aa, fallback)
+        step = np.where(inside, proposal, fallback)
+        previous_x[active], previous_f[active] = xx, fx
+        finished = (
+            (np.abs(fx) <= ftol)
+            | (np.abs(proposal - xx) <= xtol)  # (the proposal may round onto an end)
+            | (np.abs(step - xx) <= xtol)
+            | (bb - aa <= xtol)
+            | (reach[active] != 0)
+        )
+        # a finished point takes the last secant correction when it is small (more
+        # accurate than the point evaluated), else the point evaluated
+        close = np.abs(proposal - xx) <= 1e-8
+        final = np.where(close & (reach[active] == 0), proposal, xx)
+        x[active] = np.where(finished, final, step)
+        done[active] = finished
+        active = active[~finished]
+    return x, done, reach

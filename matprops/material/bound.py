@@ -263,9 +263,14 @@ class BoundKernel:
                 )
         return arguments, options
 
-    def __call__(self, *args, out=None, uncertainty=False, **kwargs):
+    def __call__(self, *args, out=None, uncertainty=False, workers=None, **kwargs):
+        """The kernel at the inputs given; ``out=`` an array (or tuple of arrays) to
+        write into; ``workers=`` threads evaluating the blocks of a large input side by
+        side (default: the material's ``workers``; the same numbers bit for bit)."""
         if uncertainty is not False:
             return self._uncertain(args, out, uncertainty, kwargs)
+        if workers is None:
+            workers = self._si.workers
         if not kwargs and len(args) == len(self._names) and self._all_positional:
             arguments, options = dict(zip(self._names, args, strict=False)), {}
             if self._optional and any(v is None for v in args):
@@ -282,8 +287,8 @@ class BoundKernel:
                 raise TypeError(
                     f"the {self.quantity} kernel returns several fields; out= is not supported"
                 )
-            return self._function(**arguments, **options)
-        return evaluate(self._function, arguments, out=out, **options)
+            return self._function(**arguments, **options, workers=workers)
+        return evaluate(self._function, arguments, out=out, workers=workers, **options)
 
     def _uncertain(self, args, out, uncertainty, kwargs):
         """``kernel(..., uncertainty=True[, samples=, seed=, uncertainty_method=])``:
@@ -313,7 +318,7 @@ class BoundKernel:
                     "numpy.asarray (or the library's own to-numpy function) first"
                 )
 
-    def derivatives(self, *args, out=None, **kwargs):
+    def derivatives(self, *args, out=None, workers=None, **kwargs):
         """Value and partial derivatives with respect to every input.
 
         Returns
@@ -324,7 +329,8 @@ class BoundKernel:
             Analytic, evaluated in the same blocks as the value.
 
         ``out=(value_out, {input: partial_out})`` writes into arrays the caller keeps
-        (a simulation code reuses them every iteration; fresh arrays cost page faults).
+        (a simulation code reuses them every iteration; fresh arrays cost page faults);
+        ``workers=`` as for a call.
         """
         if self._derivative is None:
             raise TypeError(
@@ -367,7 +373,9 @@ class BoundKernel:
                 ) from None
         if flat_out is not None:
             _check_out_dtype(flat_out, self.quantity)
-        parts = evaluate(flat, arguments, out=flat_out)
+        if workers is None:
+            workers = self._si.workers
+        parts = evaluate(flat, arguments, out=flat_out, workers=workers)
 
         def pick(k):
             chunk = parts[k * width : (k + 1) * width]

@@ -50,6 +50,9 @@ from .results import Result
 __all__ = ["DOPANTS", "CarrierMethods", "Equilibrium", "dopant_species"]
 
 STATISTICS = ("fermi-dirac", "boltzmann")
+# the equilibrium's outputs a caller keeps (a large solve holds only those)
+CARRIER_FIELDS = ("electron_density", "hole_density")
+_SHIFT_FIELDS = ("conduction_edge_shift", "valence_edge_shift")
 _DOPING = ("acceptor_density", "donor_density", "electron_density", "hole_density")
 _EQUILIBRIUM_MODELS = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
 _IONISATION_DENSITIES = [0.0, 1e14, 1e16, 1e18, 3e18, 1e19, 1e20]
@@ -190,7 +193,7 @@ class _Bound:
         """The ionisation model serving a dopant species, and its stand-in record."""
         return species_model(self.ionisation, species, self.catalog)
 
-    def level(self, species, density, temperature=None, complete=False):
+    def level(self, species, density, temperature=None, complete=False, states=None):
         """((E_dop, localised share b), degeneracy) of a dopant species.
 
         ``complete``: the share is 0, every dopant ionised (the carrier convention of
@@ -199,6 +202,7 @@ class _Bound:
         conventions), the level carries them: ``E_dop + kT ln(N/N_fit)`` with N = Nc
         (donors) or Nv (acceptors), exact for an occupancy written with the carrier
         density (``n/N_fit``), as the solver writes it for a Boltzmann-fitted model.
+        ``states``: ``(Nc, Nv)`` at ``temperature`` if already computed.
         """
         model, _ = self.species_level(species)
         energy, share = model(dopant_density=density)
@@ -206,7 +210,7 @@ class _Bound:
             share = np.zeros(np.shape(density))
         if self.level_states is not None and temperature is not None:
             band = 0 if DOPANTS[species] == "donor" else 1
-            own = self.dos(temperature=temperature)[band]
+            own = (states if states is not None else self.dos(temperature=temperature))[band]
             fitted = self.level_states(temperature=temperature)[band]
             energy = energy + BOLTZMANN_EV * temperature * np.log(own / fitted)
         return (energy, share), model.coefficients["degeneracy"].kernel_value
@@ -220,14 +224,61 @@ class _Bound:
         acceptor="boron",
         fermi_dirac=True,
         complete=False,
+        workers=None,
+        start=None,
+        fields=None,
     ):
-        """The equilibrium solve on plain arrays; ``complete``: every dopant ionised."""
+        """The equilibrium solve on plain arrays; ``complete``: every dopant ionised.
+
+        Large inputs are solved block by block (each block's densities of states,
+        levels and narrowing computed with it), so that memory stays the outputs plus a
+        few blocks; ``workers``: threads solving blocks side by side; ``start``: the
+        reduced Fermi level and narrowing ``(eta, s)`` to start from (see
+        :func:`matprops.kernels.equilibrium.solve`); ``fields``: the outputs to keep
+        (None: every one, and ``temperature``)."""
+        arguments = {
+            "temperature": temperature,
+            "donor_density": donor_density,
+            "acceptor_density": acceptor_density,
+        }
+        if start is not None:
+            arguments["start_eta"], arguments["start_s"] = start
+        return evaluate(
+            self._equilibrium_block,
+            arguments,
+            workers=workers,
+            donor=donor,
+            acceptor=acceptor,
+            fermi_dirac=fermi_dirac,
+            complete=complete,
+            fields=fields,
+        )
+
+    def _equilibrium_block(
+        self,
+        temperature,
+        donor_density,
+        acceptor_density,
+        donor="phosphorus",
+        acceptor="boron",
+        fermi_dirac=True,
+        complete=False,
+        start_eta=None,
+        start_s=None,
+        fields=None,
+        states=None,
+    ):
+        """The equilibrium solve of one block (see :meth:`equilibrium`); ``states``:
+        ``(Nc, Nv, ni)`` at these temperatures if already known (an inverse problem
+        solves at the same temperatures again and again)."""
         t, nd, na = np.broadcast_arrays(
             *(np.asarray(a, dtype=float) for a in (temperature, donor_density, acceptor_density))
         )
-        nc, nv = self.dos(temperature=t)
-        donor_level, g_d = self.level(donor, nd, t, complete)
-        acceptor_level, g_a = self.level(acceptor, na, t, complete)
+        nc, nv, ni = states if states is not None else (*self.dos(temperature=t), None)
+        if ni is None:
+            ni = self.ni(temperature=t)
+        donor_level, g_d = self.level(donor, nd, t, complete, states=(nc, nv))
+        acceptor_level, g_a = self.level(acceptor, na, t, complete, states=(nc, nv))
 
         fixed = getattr(self.narrowing.kernel, "with_fixed_dopants", None)
         coefficients = {name: c.kernel_value for name, c in self.narrowing.coefficients.items()}
@@ -243,7 +294,7 @@ class _Bound:
             na,
             conduction_states=nc,
             valence_states=nv,
-            intrinsic_density=self.ni(temperature=t),
+            intrinsic_density=ni,
             narrowing=narrowing,
             narrowing_uses_carriers=self.uses_carriers,
             donor_level=donor_level,
@@ -253,8 +304,11 @@ class _Bound:
             gap_offset=self.gap_offset(t),
             fermi_dirac=fermi_dirac,
             occupancy_from_densities=self.occupancy_from_densities,
+            start=None if start_eta is None else (start_eta, start_s),
         )
         result["temperature"] = t
+        if fields is not None:
+            return {key: result[key] for key in fields}
         return result
 
     def effective_intrinsic_density(
@@ -302,6 +356,10 @@ class _Bound:
                 log_slope = log_slope + slopes["temperature"] / ni - (dec + dev) / (two_kt * t)
             partials[name] = value * log_slope
         return value, partials
+
+
+# points per block of the equilibrium solve (the solver's own choice)
+_Bound._equilibrium_block.block = equilibrium_kernel.BLOCK  # type: ignore[attr-defined]
 
 
 class CarrierMethods:
@@ -423,27 +481,41 @@ class CarrierMethods:
             _, low, high = prepared[key]
             self._check(bound.species_level(species)[0], "dopant_density", low, high)
 
-    def _solve(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False):
+    def _solve(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False, fields=None):
+        """The equilibrium at the public inputs (checked); ``fields``: the outputs to keep
+        (None: all), so that a large solve holds only those in memory."""
+        options = self._solve_options(temperature, Na, Nd, donor, acceptor, statistics, complete)
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
+        result = self._carriers().equilibrium(
+            prepared["temperature"][0],
+            prepared["donor_density"][0],
+            prepared["acceptor_density"][0],
+            **options,
+            workers=self.workers,
+            fields=fields,
+        )
+        return result, options["donor"], options["acceptor"], options["fermi_dirac"]
+
+    def _solve_options(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False):
+        """Check what an equilibrium solve at these inputs uses (species, statistics, the
+        validity of its models) and return its options (donor, acceptor, fermi_dirac,
+        complete) for :meth:`_Bound.equilibrium` or a block of it."""
         donor = dopant_species(donor, "donor", "donor")
         acceptor = dopant_species(acceptor, "acceptor", "acceptor")
         bound = self._carriers()
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
         fermi_dirac = self._check_statistics(statistics, bound)
-        t, low, high = prepared["temperature"]
+        _, low, high = prepared["temperature"]
         for quantity_name in ("densities_of_states", "intrinsic_density"):
             self._check(self.model(quantity_name), "temperature", low, high)
         self._check_narrowing(prepared, bound)
         self._check_dopants(prepared, donor, acceptor)
-        result = bound.equilibrium(
-            t,
-            prepared["donor_density"][0],
-            prepared["acceptor_density"][0],
-            donor,
-            acceptor,
-            fermi_dirac,
-            complete,
-        )
-        return result, donor, acceptor, fermi_dirac
+        return {
+            "donor": donor,
+            "acceptor": acceptor,
+            "fermi_dirac": fermi_dirac,
+            "complete": complete,
+        }
 
     # ------------------------------------------------------------------ narrowing
     @method_of(
@@ -481,7 +553,9 @@ class CarrierMethods:
                     f"given together with {'p' if n is None else 'n'} (or both omitted)",
                     None,
                 )
-            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
+            result, *_ = self._solve(
+                temperature, Na, Nd, donor, acceptor, None, fields=_SHIFT_FIELDS
+            )
             return result["conduction_edge_shift"], result["valence_edge_shift"]
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
         dec, dev = self._call(bound.narrowing, prepared)
@@ -553,7 +627,9 @@ class CarrierMethods:
                     f"given together with {'p' if n is None else 'n'} (or both omitted)",
                     None,
                 )
-            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
+            result, *_ = self._solve(
+                temperature, Na, Nd, donor, acceptor, None, fields=CARRIER_FIELDS
+            )
             n, p = result["electron_density"], result["hole_density"]
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
         self._check(self.model("intrinsic_density"), "temperature", *prepared["temperature"][1:])
@@ -561,7 +637,8 @@ class CarrierMethods:
         arrays = {k: v[0] for k, v in prepared.items()}
         arrays.setdefault("donor_density", 0.0)
         arrays.setdefault("acceptor_density", 0.0)
-        value = evaluate(bound.effective_intrinsic_density, arrays)  # blocks if large
+        # blocks if large
+        value = evaluate(bound.effective_intrinsic_density, arrays, workers=self.workers)
         shape = np.broadcast_shapes(*(np.shape(a) for a in arrays.values()))
         if np.shape(value) != shape:
             value = np.broadcast_to(value, shape)
@@ -819,7 +896,7 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
         validity=validity,
         checker=check,
         array_api=False,
-        blocked=True,
+        blocked=False,  # the solver blocks its own work (and takes workers=)
         numpy_only_reason=SOLVER_REASON,
         fixed={
             "donor": donor,

@@ -41,7 +41,7 @@ class CrystalMethods:
         def composed(temperature):
             return function(lattice(temperature=temperature), *args)
 
-        return evaluate(composed, {"temperature": prepared[0]})
+        return evaluate(composed, {"temperature": prepared[0]}, workers=self.workers)
 
     @declare(units="nm", long_name="cubic lattice constant", cases=[case(temperature=TEMPERATURES)])
     def lattice_constant(self, temperature):

@@ -50,6 +50,7 @@ from ..kernels import srh_lifetime as srh
 from ..kernels._blocks import evaluate
 from ..kernels.constants import BOLTZMANN_EV, ELEMENTARY_CHARGE
 from ..units import coerce, quantity, unit
+from .carriers import CARRIER_FIELDS
 from .composition import complete_ionisation
 from .registry import (
     EXCESS,
@@ -231,8 +232,8 @@ class _State:
     """Inputs of the recombination kernels, in internal units (arrays broadcast)."""
 
     temperature: np.ndarray
-    n0: np.ndarray
-    p0: np.ndarray
+    n0: Any  # an array; None while a lazy state leaves it to the blocks
+    p0: Any
     excess: np.ndarray
     shape: tuple
     given: bool  # n0, p0 given by the caller instead of solved
@@ -243,6 +244,9 @@ class _State:
     fit_p0: np.ndarray | None = None
     # (T, Nd, Na) of a solved state, for the narrowing at the injected densities
     dopants: tuple | None = None
+    # n0, p0 to be solved block by block with the lifetime (the dopant densities and the
+    # solve's options), instead of held whole: see RecombinationMethods._intrinsic
+    lazy: tuple | None = None
 
     def kernel_inputs(self, excess=None):
         return {
@@ -259,6 +263,8 @@ class RecombinationMethods:
 
     if TYPE_CHECKING:  # provided by the facade (silicon.Silicon) these methods serve
         _inputs: Any
+        _solve_options: Any
+        workers: Any
         _solve: Any
         model: Any
         _check: Any
@@ -287,9 +293,14 @@ class RecombinationMethods:
 
     # ------------------------------------------------------------------ state
     def _recombination_state(
-        self, temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+        self, temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics, lazy=False
     ) -> _State:
-        """Coerce the inputs and get n0, p0 (solved once per (T, Na, Nd) point)."""
+        """Coerce the inputs and get n0, p0 (solved once per (T, Na, Nd) point).
+
+        ``lazy``: where n0, p0 are to be solved for a large input and the lifetime model
+        has no validity regions, they are left to :meth:`_intrinsic`, which solves them
+        block by block with the lifetime (memory: the output and a few blocks); the state
+        then holds the checked dopant densities and the solve's options instead."""
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, excess=excess)
         t = prepared["temperature"][0]
         dn = prepared["excess_density"][0]
@@ -311,14 +322,34 @@ class RecombinationMethods:
             n0_array, *n0_range = coerce(n0, "n0")
             p0_array, *p0_range = coerce(p0, "p0")
             given = True
+        elif lazy and self._lazy_solve_pays(prepared):
+            options = self._solve_options(temperature, Na, Nd, donor, acceptor, statistics)
+            nd, na = prepared["donor_density"][0], prepared["acceptor_density"][0]
+            shape = np.broadcast_shapes(t.shape, nd.shape, na.shape, dn.shape)
+            ranges = {
+                "temperature": prepared["temperature"][1:],
+                "excess_density": prepared["excess_density"][1:],
+            }
+            return _State(t, None, None, dn, shape, False, ranges, lazy=(nd, na, options))
         else:
             result, _, _, fermi_dirac = self._solve(
-                temperature, Na, Nd, donor, acceptor, statistics
+                temperature,
+                Na,
+                Nd,
+                donor,
+                acceptor,
+                statistics,
+                fields=(*CARRIER_FIELDS, "temperature"),
             )
             n0_array, p0_array = result["electron_density"], result["hole_density"]
             given = False
             fit_n0, fit_p0 = self._fitted_equilibrium(
-                result, temperature, Na, Nd, donor, acceptor, statistics
+                n0_array,
+                p0_array,
+                result["temperature"],
+                lambda: self._solve(
+                    temperature, Na, Nd, donor, acceptor, statistics, True, CARRIER_FIELDS
+                )[0],
             )
             n0_range, p0_range = _range(fit_n0), _range(fit_p0)
         try:
@@ -347,17 +378,18 @@ class RecombinationMethods:
             )
         return state
 
-    def _fitted_equilibrium(self, result, temperature, Na, Nd, donor, acceptor, statistics):
+    def _fitted_equilibrium(self, n0, p0, temperature, solve_complete):
         """n0, p0 as the intrinsic-lifetime model was fitted with them: the equilibrium of
         its carrier convention (complete ionisation, or the free carriers), with the
         product n0 p0 scaled to its own intrinsic density (``(ni_fit/ni(T_fit))^2``,
-        the net doping n0 - p0 kept). Unknown conventions: the equilibrium as solved."""
+        the net doping n0 - p0 kept). Unknown conventions: the equilibrium as solved.
+        ``n0, p0``: the equilibrium solved at ``temperature``; ``solve_complete()``: the
+        same points solved with every dopant ionised (called only where needed)."""
         model = self.model("intrinsic_lifetime")
-        n0, p0 = result["electron_density"], result["hole_density"]
         if complete_ionisation(model):
-            complete, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics, True)
+            complete = solve_complete()
             n0, p0 = complete["electron_density"], complete["hole_density"]
-        ratio = self._fitted_ni_ratio(model, result["temperature"])
+        ratio = self._fitted_ni_ratio(model, temperature)
         if ratio is None:
             return n0, p0
         net = n0 - p0
@@ -377,6 +409,15 @@ class RecombinationMethods:
         other = self.catalog.model("intrinsic_density", entry.value)
         return other(temperature=temperature) / ni(temperature=temperature)
 
+    def _lazy_solve_pays(self, prepared) -> bool:
+        """Whether n0, p0 are better solved block by block with the lifetime: an input
+        larger than one block of the solver, and a lifetime model without validity
+        regions (those are checked on the whole arrays)."""
+        from ..kernels.equilibrium import BLOCK
+
+        size = int(np.prod(np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))))
+        return size > BLOCK and not self.model("intrinsic_lifetime").regions
+
     def _check_intrinsic(self, state: _State):
         """Validity of the intrinsic-lifetime model at these inputs; fit conventions."""
         model = self.model("intrinsic_lifetime")
@@ -390,8 +431,61 @@ class RecombinationMethods:
         return model
 
     def _intrinsic(self, state: _State, part="total", excess=None):
+        if state.lazy is None:
+            return self._intrinsic_solved(state, part, excess, self.workers)
+        nd, na, options = state.lazy
+        bound, seen = self._carriers(), []
+        complete = {**options, "complete": True}
+
+        def block(temperature, donor_density, acceptor_density, excess_density):
+            # one block's n0, p0 (and the lifetime's fitted ones), then its lifetime
+            t, nd, na = np.broadcast_arrays(temperature, donor_density, acceptor_density)
+            solved = bound._equilibrium_block(t, nd, na, **options, fields=CARRIER_FIELDS)
+            n0, p0 = solved["electron_density"], solved["hole_density"]
+            fit_n0, fit_p0 = self._fitted_equilibrium(
+                n0,
+                p0,
+                t,
+                lambda: bound._equilibrium_block(t, nd, na, **complete, fields=CARRIER_FIELDS),
+            )
+            seen.append((*_range(fit_n0), *_range(fit_p0)))
+            shape = np.broadcast_shapes(t.shape, np.shape(excess_density))
+            solved_state = _State(t, n0, p0, excess_density, shape, False, {})
+            solved_state.fit_n0 = None if fit_n0 is n0 else fit_n0
+            solved_state.fit_p0 = None if fit_p0 is p0 else fit_p0
+            solved_state.dopants = (t, nd, na, options["fermi_dirac"])
+            return self._intrinsic_solved(solved_state, part, None, None)
+
+        block.block = getattr(bound._equilibrium_block, "block", None)  # type: ignore[attr-defined]
+        value = evaluate(
+            block,
+            {
+                "temperature": state.temperature,
+                "donor_density": nd,
+                "acceptor_density": na,
+                "excess_density": state.excess if excess is None else excess,
+            },
+            workers=self.workers,
+        )
+        lows_n, highs_n, lows_p, highs_p = zip(*seen, strict=True) if seen else ((),) * 4
+        state.ranges["equilibrium_electron_density"] = (
+            min(lows_n, default=np.inf),
+            max(highs_n, default=-np.inf),
+        )
+        state.ranges["equilibrium_hole_density"] = (
+            min(lows_p, default=np.inf),
+            max(highs_p, default=-np.inf),
+        )
+        return value
+
+    def _intrinsic_solved(self, state: _State, part, excess, workers):
+        """The intrinsic lifetime of a state holding its n0, p0: the model at the
+        densities it was fitted with, over the share of the rate the narrowing at the
+        injected densities leaves."""
         model = self.model("intrinsic_lifetime")
-        tau = evaluate(model.function or model, state.kernel_inputs(excess), part=part)
+        tau = evaluate(
+            model.function or model, state.kernel_inputs(excess), workers=workers, part=part
+        )
         factor = self._injection_factor(state, excess)
         return tau if factor is None else tau / factor
 
@@ -459,8 +553,12 @@ class RecombinationMethods:
         >>> si.intrinsic_lifetime(300, Nd=1e16, excess=1e15)        # doctest: +SKIP
         """
         state = self._recombination_state(
-            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics, lazy=True
         )
+        if state.lazy is not None:  # n0, p0 solved with the lifetime: checked after
+            value = self._intrinsic(state)
+            self._check_intrinsic(state)
+            return quantity(_full(value, state.shape), "s")
         self._check_intrinsic(state)
         return quantity(_full(self._intrinsic(state), state.shape), "s")
 
@@ -498,8 +596,12 @@ class RecombinationMethods:
         Arguments as for :meth:`intrinsic_lifetime`.
         """
         state = self._recombination_state(
-            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
+            temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics, lazy=True
         )
+        if state.lazy is not None:  # n0, p0 solved with the lifetime: checked after
+            value = self._intrinsic(state, "auger")
+            self._check_intrinsic(state)
+            return quantity(_full(value, state.shape), "s")
         self._check_intrinsic(state)
         return quantity(_full(self._intrinsic(state, "auger"), state.shape), "s")
 

@@ -60,6 +60,10 @@ class Silicon(
         leaves a model's validity range.
     catalog : Catalog, optional
         Where the data come from (default: the installed ``datasets/``).
+    workers : int, optional
+        Threads that evaluate the blocks of a large input side by side (numpy releases
+        the GIL inside its loops). None or 1: one thread. The numbers are the same bit
+        for bit whatever the number of workers (the blocks are the same).
 
     Inputs are plain numbers or arrays in default units (temperature in K) or pint
     quantities (``matprops.Q_(25, "degC")``); arrays broadcast; a scalar input
@@ -70,6 +74,7 @@ class Silicon(
     # made without __init__ (propagation.changed_material) have them too
     _checked = False  # a view whose inputs were checked already skips the checks
     _report = None  # a callable taking each validity message instead of a warning
+    workers: int | None = None  # (a copy made without __init__ works on one thread)
 
     def __init__(
         self,
@@ -77,6 +82,7 @@ class Silicon(
         models: Mapping[str, str] | None = None,
         strict: bool = False,
         catalog: Catalog | None = None,
+        workers: int | None = None,
     ):
         catalog = catalog or default_catalog()
         self.release = catalog.release(
@@ -87,6 +93,10 @@ class Silicon(
         if not isinstance(strict, (bool, np.bool_)):  # strict="no" is not False
             raise InputError("strict", "True or False", repr(strict))
         self.strict = bool(strict)
+        from ..kernels._blocks import check_workers
+
+        check_workers(workers)
+        self.workers = workers
         overrides = dict(models or {})
         known = set(self.catalog.quantities())
         for name in overrides:
@@ -113,6 +123,7 @@ class Silicon(
             self._overrides,
             self.strict,
             self._data_digests(),
+            self.workers,
         )
 
     def _data_digests(self) -> dict[str, str]:
@@ -236,7 +247,8 @@ class Silicon(
             ranges[argument] = (low, high)
         if model.regions:
             self._check_regions(model, values, ranges)
-        return evaluate(model.function or model, values)  # in blocks for large inputs
+        # in blocks for large inputs (on ``workers`` threads)
+        return evaluate(model.function or model, values, workers=self.workers)
 
     # ------------------------------------------------------------------ validity
     # Every validity check of the material goes through these three: a warning (or a
@@ -417,13 +429,19 @@ class Silicon(
         )
 
 
-def _restore(root, release, overrides, strict, digests) -> Silicon | Unusable:
+def _restore(root, release, overrides, strict, digests, workers=None) -> Silicon | Unusable:
     """Unpickle a material; never raises (see :class:`matprops.errors.Unusable`): a
     material whose data differ here, or cannot be read, raises on its first use."""
     from ..catalogue.store import catalog_at
 
     try:
-        si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog_at(root))
+        si = Silicon(
+            release=release,
+            models=overrides,
+            strict=strict,
+            catalog=catalog_at(root),
+            workers=workers,
+        )
         mismatch = si._digest_mismatch(digests)
     except Error as exc:
         return Unusable(exc, Silicon)
@@ -463,10 +481,13 @@ def _data_digests(si: Silicon) -> dict[str, str]:
 
 
 def silicon(
-    release: str | None = None, models: Mapping[str, str] | None = None, strict: bool = False
+    release: str | None = None,
+    models: Mapping[str, str] | None = None,
+    strict: bool = False,
+    workers: int | None = None,
 ) -> Silicon:
     """Silicon as described by a release (newest by default); see :class:`Silicon`."""
-    return Silicon(release=release, models=models, strict=strict)
+    return Silicon(release=release, models=models, strict=strict, workers=workers)
 
 
 def releases() -> list[str]:

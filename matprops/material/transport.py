@@ -18,7 +18,8 @@ Composition rules (each shown in the provenance of what it returns):
   Boltzmann statistics.
 - Resistivity is ``1 / q (n0 mu_n + p0 mu_p)`` with the equilibrium carriers and the
   release's mobility; its inverse for one dopant species is solved for all points
-  at once (false position in ln N inside a bracket, no per-point loop).
+  at once (secant steps in ln N kept inside a bracket, each equilibrium started from
+  the last one; no per-point loop).
 - The standard's conversions (ASTM F723, 23 degC) are models of their own,
   reached with ``conversion="standard"``; asked at another temperature they warn.
 """
@@ -31,12 +32,12 @@ import numpy as np
 
 from ..errors import (
     InputError,
-    SolverError,
 )
 from ..kernels import resistivity as resistivity_kernels
-from ..kernels.constants import BOLTZMANN_EV
+from ..kernels._blocks import evaluate, solver_error
+from ..kernels.constants import BOLTZMANN_EV, ELEMENTARY_CHARGE
 from ..kernels.diffusivity import einstein_factor
-from ..units import coerce, quantity
+from ..units import coerce, quantity, unit
 from ..vocabulary import CARRIERS, DOPANTS, carrier_name, dopant_species
 from .bound import model_kernel
 from .composition import complete_ionisation, species_model
@@ -53,6 +54,14 @@ _RESISTIVITIES = [1e-3, 0.1, 1.0, 10.0, 1e3]
 _STANDARD_DOPINGS = [1e12, 1e14, 1e16, 1e18, 1e20]
 
 _HIGHEST_DENSITY = 1e21  # cm^-3: the top of the bracket for doping from resistivity
+# the equilibrium's outputs the transport quantities use (a large solve keeps only those)
+_TRANSPORT_FIELDS = (
+    "temperature",
+    "ionised_donors",
+    "ionised_acceptors",
+    "electron_density",
+    "hole_density",
+)
 
 
 def _carrier_kernel(si, name, fixed):
@@ -72,6 +81,15 @@ def _carrier_kernel(si, name, fixed):
 
 def _per_carrier(name, **grid):
     return [case(f"{name}_{c}", fixed={"carrier": c}, **grid) for c in CARRIERS]
+
+
+def _in_units(values, units: str, target: str):
+    """Plain values in ``units`` expressed in ``target`` (no conversion when they agree)."""
+    if units == target or unit(units) == unit(target):
+        return values
+    from ..units import Q_
+
+    return Q_(values, unit(units)).m_as(unit(target))
 
 
 def _choice(value, argument, allowed):
@@ -185,7 +203,14 @@ class TransportMethods:
         ionise = takes_ionised and dopant_densities == "total"
         if ionise or (wants_carriers and n is None):
             result, *_ = self._solve(
-                temperature, Na, Nd, donor, acceptor, statistics, complete_ionisation(model)
+                temperature,
+                Na,
+                Nd,
+                donor,
+                acceptor,
+                statistics,
+                complete_ionisation(model),
+                fields=_TRANSPORT_FIELDS,
             )
             if ionise:
                 prepared["donor_density"] = _extremes(result["ionised_donors"])
@@ -248,16 +273,80 @@ class TransportMethods:
         Arrays broadcast. ``si.provenance("mobility")["dopant_densities"]`` says what
         the model in use takes.
         """
+        values, units = self._mobility_values(
+            carrier, temperature, Na, Nd, n, p, donor, acceptor, dopant_densities
+        )
+        return quantity(values, units)
+
+    def _mobility_values(self, carrier, temperature, Na, Nd, n, p, donor, acceptor, densities):
+        """:meth:`mobility` as (plain array, units): what :meth:`high_field_mobility`
+        builds on, without a quantity made and read back."""
         carrier = carrier_name(carrier)
         donor = dopant_species(donor, "donor", "donor")
         acceptor = dopant_species(acceptor, "acceptor", "acceptor")
         model = self._mobility_model(carrier, donor, acceptor)
+        blockwise = self._solved_blockwise(
+            model, temperature, Na, Nd, n, p, donor, acceptor, densities
+        )
+        if blockwise is not None:
+            return blockwise, model.output_units
         prepared = self._transport_inputs(
-            model, temperature, Na, Nd, n, p, donor, acceptor, dopant_densities
+            model, temperature, Na, Nd, n, p, donor, acceptor, densities
         )
-        return quantity(
-            self._broadcast_all(self._call(model, prepared), prepared), model.output_units
+        return self._broadcast_all(self._call(model, prepared), prepared), model.output_units
+
+    def _solved_blockwise(self, model, temperature, Na, Nd, n, p, donor, acceptor, densities):
+        """A mobility model at the equilibrium it needs (ionised dopants, or the carriers
+        where n, p are omitted), solved block by block with the model for a large input
+        (memory: the output and a few blocks, not the solve's fields); None where no solve
+        is needed or the input fits one block (then :meth:`_transport_inputs`)."""
+        from ..kernels.equilibrium import BLOCK
+
+        _choice(densities, "dopant_densities", DOPANT_DENSITIES)
+        takes_ionised = model.conventions.value("dopant_densities") == "ionised"
+        ionise = takes_ionised and densities == "total"
+        solve = ionise or ("electron_density" in model.inputs and n is None and p is None)
+        if not solve or model.regions:  # (regions are checked on whole arrays)
+            return None
+        prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd)
+        shape = np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
+        if int(np.prod(shape)) <= BLOCK:
+            return None
+        options = self._solve_options(
+            temperature, Na, Nd, donor, acceptor, None, complete_ionisation(model)
         )
+        bound, seen = self._carriers(), []
+
+        def block(temperature, donor_density, acceptor_density):
+            result = bound._equilibrium_block(
+                temperature, donor_density, acceptor_density, **options, fields=_TRANSPORT_FIELDS
+            )
+            values = {
+                "temperature": result["temperature"],
+                "donor_density": result["ionised_donors"] if ionise else donor_density,
+                "acceptor_density": result["ionised_acceptors"] if ionise else acceptor_density,
+                "electron_density": result["electron_density"],
+                "hole_density": result["hole_density"],
+            }
+            values = {k: values[k] for k in model.inputs}
+            seen.append({k: _extremes(v)[1:] for k, v in values.items()})
+            return model(**values)
+
+        block.block = getattr(bound._equilibrium_block, "block", None)
+        value = evaluate(
+            block,
+            {
+                "temperature": prepared["temperature"][0],
+                "donor_density": prepared["donor_density"][0],
+                "acceptor_density": prepared["acceptor_density"][0],
+            },
+            workers=self.workers,
+        )
+        for name in model.inputs:
+            low = min(ranges[name][0] for ranges in seen)
+            high = max(ranges[name][1] for ranges in seen)
+            self._check(model, name, low, high)
+        return np.broadcast_to(value, shape) if np.shape(value) != shape else value
 
     @declare(
         units="cm^2/(V*s)",
@@ -297,23 +386,19 @@ class TransportMethods:
         carrier = carrier_name(carrier)
         self._warn_mismatches("high_field_mobility")
         model = self.model("high_field_mobility").select(carrier)
-        low = self.mobility(
-            carrier,
-            temperature,
-            Na,
-            Nd,
-            n,
-            p,
-            donor=donor,
-            acceptor=acceptor,
-            dopant_densities=dopant_densities,
+        low, low_units = self._mobility_values(
+            carrier, temperature, Na, Nd, n, p, donor, acceptor, dopant_densities
         )
-        velocity = self.saturation_velocity(carrier, temperature)
+        velocity_model = self.model("saturation_velocity").select(carrier)
+        temperatures = coerce(temperature, "temperature")
+        velocity = self._call(velocity_model, {"temperature": temperatures})
         prepared = {
             "field": coerce(field, "field"),
-            "temperature": coerce(temperature, "temperature"),
-            "low_field_mobility": _extremes(low.m_as("cm^2/(V*s)")),
-            "saturation_velocity": _extremes(velocity.m_as("cm/s")),
+            "temperature": temperatures,
+            "low_field_mobility": _extremes(_in_units(low, low_units, "cm^2/(V*s)")),
+            "saturation_velocity": _extremes(
+                _in_units(velocity, velocity_model.output_units, "cm/s")
+            ),
         }
         return quantity(
             self._broadcast_all(self._call(model, prepared), prepared), model.output_units
@@ -413,7 +498,38 @@ class TransportMethods:
         density (``carrier_densities = "complete-ionisation"``) already holds the
         incomplete ionisation of its data in its product n mu, so sigma takes the
         complete-ionisation carriers; otherwise the equilibrium free carriers.
+
+        Large inputs are evaluated block by block (equilibrium, mobilities and sigma of
+        each block together), so that memory stays about the output; the validity of the
+        mobility models is checked on the extremes of every block's inputs.
         """
+        seen = [] if check else None
+        sigma = evaluate(
+            self._conductivity_block,
+            {"t": t, "nd": nd, "na": na},
+            workers=self.workers,
+            donor=donor,
+            acceptor=acceptor,
+            seen=seen,
+        )
+        if check:
+            ranges = {}
+            for model, name, low, high in seen:
+                old = ranges.get((id(model), name), (model, np.inf, -np.inf))
+                ranges[(id(model), name)] = (model, min(old[1], low), max(old[2], high))
+            for (_, name), (model, low, high) in ranges.items():
+                if low <= high:
+                    self._check(model, name, low, high)
+        return sigma
+
+    def _conductivity_block(
+        self, t, nd, na, donor, acceptor, seen=None, start=None, keep=None, states=None
+    ):
+        """sigma of one block (see :meth:`_conductivity`); ``seen``: a list that collects
+        (model, input, min, max) for the validity checks; ``start``: {(complete, donor,
+        acceptor): (eta, s)} to start each equilibrium from; ``keep``: a dict that
+        receives the solved equilibria {(complete, donor, acceptor): result};
+        ``states``: (Nc, Nv, ni) at ``t`` if known."""
         bound = self._carriers()
         fermi_dirac = bound.statistics == "fermi-dirac"
         models = [self._mobility_model(carrier, donor, acceptor) for carrier in CARRIERS]
@@ -422,7 +538,17 @@ class TransportMethods:
         def equilibrium(complete, donor=donor, acceptor=acceptor):
             key = (complete, donor, acceptor)
             if key not in solved:
-                solved[key] = bound.equilibrium(t, nd, na, donor, acceptor, fermi_dirac, complete)
+                solved[key] = bound._equilibrium_block(
+                    t,
+                    nd,
+                    na,
+                    donor,
+                    acceptor,
+                    fermi_dirac,
+                    complete,
+                    *(start[key] if start and key in start else (None, None)),
+                    states=states,
+                )
             return solved[key]
 
         conductivities = []
@@ -437,9 +563,9 @@ class TransportMethods:
                 "electron_density": result["electron_density"],
                 "hole_density": result["hole_density"],
             }
-            if check:
+            if seen is not None:
                 for name in model.inputs:
-                    self._check(model, name, *_extremes(values[name])[1:])
+                    seen.append((model, name, *_extremes(values[name])[1:]))
             mobility = model(**{k: values[k] for k in model.inputs})
             key = "electron_density" if carrier == "electron" else "hole_density"
             density = values[key]
@@ -451,6 +577,8 @@ class TransportMethods:
                 swapped = {"donor" if carrier == "electron" else "acceptor": model.variant}
                 density = density * (equilibrium(False)[key] / equilibrium(False, **swapped)[key])
             conductivities.append((density, mobility))
+        if keep is not None:
+            keep.update(solved)
         (n, mu_n), (p, mu_p) = conductivities
         return resistivity_kernels.conductivity(n, p, mu_n, mu_p)
 
@@ -590,8 +718,11 @@ class TransportMethods:
         models=("mobility", *_EQUILIBRIUM),
         formula=(
             "the density N of one dopant species with rho(T, N) equal to the given "
-            "resistivity, rho as for resistivity; solved for all points at once (Illinois "
-            "false position in ln N, to 1e-13 in ln N) on the doping-dominated branch: for "
+            "resistivity, rho as for resistivity; solved for all points at once (secant "
+            "steps in ln N from N = 1/(q rho mu) at the low-density mobility, kept in a "
+            "bracket, each equilibrium started from the last one; until rho is reproduced "
+            "to 1e-12 relative or ln N moves by less than 1e-13) on the doping-dominated "
+            "branch: for "
             "acceptors above the resistivity maximum at N = ni (sqrt(r) - 1/sqrt(r)), "
             "r = mu_n/mu_p of intrinsic silicon"
         ),
@@ -658,21 +789,24 @@ class TransportMethods:
             model = species_model(self.model("standard_dopant_density"), species, self.catalog)[0]
             value = self._call(model, {"temperature": t, "resistivity": rho})
             return quantity(np.broadcast_to(value, shape).astype(float), "cm^-3")
-        target = np.broadcast_to(rho[0], shape).ravel()
-        temperatures = np.broadcast_to(t[0], shape).ravel()
-        density = np.empty(target.size)
+        # views of the inputs in their broadcast shape (the blocks are cut from them)
+        target = np.broadcast_to(rho[0], shape)
+        temperatures = np.broadcast_to(t[0], shape)
         standard = self._standard_applies(species, temperatures, conversion)
-        if standard.any():
-            model = self.model("standard_dopant_density").select(species)
-            values = {
-                "temperature": _extremes(temperatures[standard]),
-                "resistivity": _extremes(target[standard]),
-            }
-            density[standard] = self._call(model, values)
+        if not standard.any():
+            density = self._physics_doping(target, temperatures, species)
+            return quantity(np.asarray(density, dtype=float).reshape(shape), "cm^-3")
+        density = np.empty(shape)
+        model = self.model("standard_dopant_density").select(species)
+        values = {
+            "temperature": _extremes(temperatures[standard]),
+            "resistivity": _extremes(target[standard]),
+        }
+        density[standard] = self._call(model, values)
         physics = ~standard
         if physics.any():
             density[physics] = self._physics_doping(target[physics], temperatures[physics], species)
-        return quantity(density.reshape(shape), "cm^-3")
+        return quantity(density, "cm^-3")
 
     def _standard_applies(self, species, temperatures, conversion):
         """Points (1-D mask) the default conversion answers with the standard's: the
@@ -690,18 +824,19 @@ class TransportMethods:
         return (temperatures >= valid.low) & (temperatures <= valid.high)
 
     def _physics_doping(self, target, temperatures, species):
-        """The physics route's N (1-D) for resistivities ``target`` at ``temperatures``."""
+        """The physics route's N for resistivities ``target`` at ``temperatures`` (arrays
+        of one shape, views or copies)."""
         kind = DOPANTS[species]
         donor = species if kind == "donor" else "phosphorus"
         acceptor = species if kind == "acceptor" else "boron"
         density = self._invert_resistivity(target, temperatures, species, donor, acceptor)
         # validity of every model on the answer's range (warn, or raise if strict)
-        zeros = np.zeros_like(density)
-        nd, na = (density, zeros) if kind == "donor" else (zeros, density)
+        found = _extremes(density)
+        none = (np.zeros(()), 0.0, 0.0) if density.size else (np.zeros(()), np.inf, -np.inf)
         prepared = {
             "temperature": _extremes(temperatures),
-            "donor_density": _extremes(nd),
-            "acceptor_density": _extremes(na),
+            "donor_density": found if kind == "donor" else none,
+            "acceptor_density": none if kind == "donor" else found,
         }
         self._check_equilibrium(prepared, donor, acceptor, self._carriers())
         for carrier in CARRIERS:
@@ -721,6 +856,13 @@ class TransportMethods:
         ni = self._carriers().ni(temperature=temperatures)
         if kind == "donor":
             return np.maximum(1e-3 * ni, 1e-30)
+        mu = self._intrinsic_mobilities(temperatures, donor, acceptor)
+        root = np.sqrt(np.maximum(mu["electron"] / mu["hole"], 1.0))
+        return np.maximum(ni * (root - 1.0 / root), 1e-3 * ni)
+
+    def _intrinsic_mobilities(self, temperatures, donor, acceptor):
+        """{carrier: mobility} of intrinsic silicon (no dopants, n = p = ni), cm^2/(V s)."""
+        ni = self._carriers().ni(temperature=temperatures)
         zeros = np.zeros_like(ni)
         state = {
             "temperature": temperatures,
@@ -729,60 +871,130 @@ class TransportMethods:
             "electron_density": ni,
             "hole_density": ni,
         }
-        mu = [
-            model(**{k: state[k] for k in model.inputs})
-            for model in (self._mobility_model(c, donor, acceptor) for c in CARRIERS)
-        ]
-        root = np.sqrt(np.maximum(mu[0] / mu[1], 1.0))
-        return np.maximum(ni * (root - 1.0 / root), 1e-3 * ni)
+        return {
+            carrier: model(**{k: state[k] for k in model.inputs})
+            for carrier, model in ((c, self._mobility_model(c, donor, acceptor)) for c in CARRIERS)
+        }
 
     def _invert_resistivity(self, target, temperatures, species, donor, acceptor):
-        """N (1-D) with rho(T, N) = target on the doping-dominated branch."""
-        kind = DOPANTS[species]
+        """N (the broadcast shape) with rho(T, N) = target on the doping-dominated branch,
+        solved block by block (the memory of a block, not of the whole input)."""
         if target.size == 0:
-            return np.zeros(0)
+            return np.zeros(target.shape)
+        return evaluate(
+            self._invert_block,
+            {"target": target, "temperatures": temperatures},
+            locate=True,
+            workers=self.workers,
+            species=species,
+            donor=donor,
+            acceptor=acceptor,
+        )
+
+    def _invert_block(self, target, temperatures, species, donor, acceptor, offset=0):
+        """The inversion of one block (1-D); ``offset``: the block's first point's index.
+
+        Secant steps in ln N from a first guess, inside a bracket (see
+        :func:`~matprops.kernels.resistivity.solve_decreasing_from`). From the third
+        evaluation of a point on, its equilibria start from the reduced Fermi level and
+        narrowing extrapolated linearly in ln N from its last two solved states (the
+        secant steps shrink fast, so that start is close and each solve takes one or two
+        Newton passes instead of three); the first two start from the solver's own guess
+        (the first step can move ln N by a few units)."""
+        kind = DOPANTS[species]
+        shape = np.broadcast_shapes(np.shape(target), np.shape(temperatures))
+        target = np.broadcast_to(np.asarray(target, dtype=float), shape).reshape(-1)
+        temperatures = np.broadcast_to(temperatures, shape).reshape(-1)
         log_target = np.log(target)
+        # (complete, donor, acceptor) of each equilibrium -> [(ln N, eta, s) arrays of its
+        # last two states, newest last]
+        history = {}
+        bound = self._carriers()
+        states = tuple(
+            np.broadcast_to(a, target.shape)
+            for a in (*bound.dos(temperature=temperatures), bound.ni(temperature=temperatures))
+        )
+        seen = np.zeros(target.size, dtype=np.int8)  # evaluations of each point so far
 
         def log_rho(log_n, index):
             density = np.exp(log_n)
             zeros = np.zeros_like(density)
             nd, na = (density, zeros) if kind == "donor" else (zeros, density)
-            sigma = self._conductivity(temperatures[index], nd, na, donor, acceptor, check=False)
+            start = None
+            if history and seen[index].min() >= 2:
+                start = {}
+                for key, ((x0, e0, s0), (x1, e1, s1)) in history.items():
+                    step = log_n - x1[index]
+                    with np.errstate(divide="ignore", invalid="ignore"):
+                        run = x1[index] - x0[index]
+                        slope_e = np.where(run != 0, (e1[index] - e0[index]) / run, 0.0)
+                        slope_s = np.where(run != 0, (s1[index] - s0[index]) / run, 0.0)
+                    start[key] = (e1[index] + slope_e * step, s1[index] + slope_s * step)
+            keep = {}
+            sigma = self._conductivity_block(
+                temperatures[index],
+                nd,
+                na,
+                donor,
+                acceptor,
+                start=start,
+                keep=keep,
+                states=tuple(a[index] for a in states),
+            )
+            for key, result in keep.items():
+                if key not in history:
+                    history[key] = [
+                        tuple(np.zeros(target.size) for _ in range(3)) for _ in range(2)
+                    ]
+                older, newer = history[key]
+                for kept, fresh in zip(older, newer, strict=True):
+                    kept[index] = fresh[index]  # the newest becomes the older
+                x, eta, s = newer
+                x[index] = log_n
+                eta[index] = result["reduced_fermi_level"]
+                s[index] = (result["conduction_edge_shift"] + result["valence_edge_shift"]) / (
+                    BOLTZMANN_EV * result["temperature"]
+                )
+            seen[index] += 1
             return -np.log(sigma)
 
-        everything = np.arange(target.size)
         low = np.log(self._lowest_density(temperatures, kind, donor, acceptor))
         high = np.full(target.size, np.log(_HIGHEST_DENSITY))
-        rho_low, rho_high = log_rho(low, everything), log_rho(high, everything)
-        for bad, limit, what in (
-            (log_target > rho_low, rho_low, "at most"),
-            (log_target < rho_high, rho_high, "at least"),
-        ):
+        # first guess: the majority carriers alone at their low-density mobility
+        # (N = 1 / (q rho mu_L), an underestimate where the mobility falls with N)
+        carrier = CARRIERS[0] if kind == "donor" else CARRIERS[1]
+        mobility = self._intrinsic_mobilities(temperatures, donor, acceptor)[carrier]
+        guess = -np.log(ELEMENTARY_CHARGE * mobility) - log_target
+        log_n, converged, reach = resistivity_kernels.solve_decreasing_from(
+            log_rho, log_target, guess, low, high
+        )
+        for where, limit, what in ((-1, low, "at most"), (1, high, "at least")):
+            bad = reach == where
             if bad.any():
                 i = np.flatnonzero(bad)[0]
+                edge = np.exp(log_rho(limit[i : i + 1], np.array([i]))[0])
                 raise InputError(
                     "resistivity",
-                    f"{what} {np.exp(limit[i]):.4g} ohm*cm for "
+                    f"{what} {edge:.4g} ohm*cm for "
                     f"{species}-doped silicon at {temperatures[i]:g} K (what "
                     f"{np.exp(low[i]):.3g}-{_HIGHEST_DENSITY:.0e} cm^-3 give)",
-                    f"{target[i]:g} ohm*cm at point #{i} "
-                    f"({np.count_nonzero(bad)} point(s) out of reach)",
+                    f"{target[i]:g} ohm*cm at point #{offset + i} "
+                    f"({np.count_nonzero(bad)} point(s) out of reach among "
+                    f"#{offset}-#{offset + target.size - 1})",
                 )
-        log_n, converged = resistivity_kernels.solve_decreasing(
-            log_rho, log_target, low, high, f_low=rho_low, f_high=rho_high
-        )
         if not converged.all():
             bad = np.flatnonzero(~converged)
-            shown = "; ".join(
-                f"#{i} ({target[i]:g} ohm*cm at {temperatures[i]:g} K, {species})" for i in bad[:5]
-            )
-            more = f"; and {bad.size - 5} more" if bad.size > 5 else ""
-            error = SolverError(
-                f"doping_from_resistivity: {bad.size} point(s) did not converge: {shown}{more}"
-            )
-            error.points, error.count = bad[:5].tolist(), int(bad.size)
-            raise error
-        return np.exp(log_n)
+            points = [
+                {
+                    "index": int(offset + i),
+                    "flat": int(offset + i),
+                    "inputs": (f"{target[i]:g} ohm*cm at {temperatures[i]:g} K", species),
+                    "detail": "the iterations ran out",
+                }
+                for i in bad[:5]
+            ]
+            raise solver_error("doping_from_resistivity", "did not converge", bad.size, points)
+        return np.exp(log_n).reshape(shape)
 
     # ------------------------------------------------------------------ kernels
     def _transport_kernel(self, name: str, fixed: dict):

@@ -171,15 +171,15 @@ def test_a_book_source_and_an_additional_standard_print_on_one_line_each():
 def test_a_resistivity_inversion_failure_names_its_points_and_inputs(monkeypatch):
     from matprops.kernels import resistivity as kernels
 
-    original = kernels.solve_decreasing
+    original = kernels.solve_decreasing_from
 
     def failing(*args, **kwargs):
-        solution, converged = original(*args, **kwargs)
+        solution, converged, reach = original(*args, **kwargs)
         converged = converged.copy()
         converged[1::2] = False
-        return solution, converged
+        return solution, converged, reach
 
-    monkeypatch.setattr(kernels, "solve_decreasing", failing)
+    monkeypatch.setattr(kernels, "solve_decreasing_from", failing)
     rho = np.array([0.5, 1.0, 2.0, 5.0])
     with pytest.raises(matprops.SolverError) as info:
         SI.doping_from_resistivity(rho, [290.0, 300.0, 310.0, 320.0], dopant="boron")
