@@ -174,6 +174,48 @@ class ValidityWarning(UserWarning):
     """
 
 
+class Refusal:
+    """What unpickling gives in place of an object the receiving process refused to
+    rebuild (its data differ from the sender's, a file fails its checksum ...).
+
+    Raising while unpickling would hang a process pool or a dask cluster: the worker
+    dies before it can answer, and the caller waits forever. So the refusal is kept
+    and raised when the object is used (called, or a method of it called): the error
+    then travels back to the caller as the task's own error. Whatever is rebuilt from
+    a refusal is that refusal.
+    """
+
+    __slots__ = ("error",)
+
+    def __init__(self, error: Error):
+        self.error = error
+
+    def __getattr__(self, name):
+        if name.startswith("__") and name.endswith("__"):
+            raise AttributeError(name)
+        return self  # ``si.band_gap`` of a refused material: refused when called
+
+    def __call__(self, *args, **kwargs):
+        raise self.error
+
+    def __reduce__(self):
+        return Refusal, (self.error,)
+
+    def __repr__(self) -> str:
+        return f"<refused: {self.error}>"
+
+
+def refused(rebuild, *args):
+    """``rebuild(*args)``, or a :class:`Refusal` holding the matprops error it raised
+    (for the functions that unpickling calls)."""
+    if any(isinstance(a, Refusal) for a in args):
+        return next(a for a in args if isinstance(a, Refusal))
+    try:
+        return rebuild(*args)
+    except Error as exc:
+        return Refusal(exc)
+
+
 _PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))
 
 

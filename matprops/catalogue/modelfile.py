@@ -87,6 +87,24 @@ def _source(path, src, where: str) -> Source:
     authors = src["authors"]
     if not isinstance(authors, list) or not authors:
         raise DatasetError(path, f"field '{where}authors' must be a non-empty list")
+    if kind == "measurement":
+        digest = str(src["data_sha256"])
+        if len(digest) != 64 or not all(c in "0123456789abcdef" for c in digest):
+            raise DatasetError(path, f"field '{where}data_sha256' must be a sha256 (64 hex digits)")
+        return Source(
+            tuple(authors),
+            int(src["year"]),
+            str(src["title"]),
+            "",
+            "",
+            "",
+            str(src["doi"]),
+            type="measurement",
+            lab=str(src.get("lab", "")),
+            description=str(src["description"]),
+            data=str(src["data"]),
+            data_sha256=digest,
+        )
     if kind == "book":
         return Source(
             tuple(authors),
@@ -169,6 +187,8 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
             f"quantities; {data['kernel']!r} requires none",
         )
     extra = _extra_sections(path, quantity, data, catalog, requires)
+    if "fitted" in data:  # a model fitted to one's own measurements: how, and how well
+        extra["fitted"] = _fitted_section(path, data["fitted"], catalog)
     common = {
         "quantity": quantity,
         "id": model_id,
@@ -434,7 +454,9 @@ def _uncertainty_section(path, data, spec, coefficients, variants) -> Uncertaint
         if matrix.shape != (len(names), len(names)):
             raise DatasetError(path, f"{where}: the matrix must be {len(names)} x {len(names)}")
         if not np.allclose(matrix, matrix.T) or not np.all(np.diag(matrix) == 1.0):
-            raise DatasetError(path, f"{where}: the matrix must be symmetric with 1 on its diagonal")
+            raise DatasetError(
+                path, f"{where}: the matrix must be symmetric with 1 on its diagonal"
+            )
         if np.any(np.abs(matrix) > 1.0) or np.linalg.eigvalsh(matrix).min() < -1e-12:
             raise DatasetError(path, f"{where}: not a correlation matrix (positive semi-definite)")
         for name in names:
@@ -666,6 +688,25 @@ def _extra_sections(path, quantity, data, catalog, requires=()) -> dict:
             quantity, found, "radiative_coefficient" in requires, narrowing_models
         )
     return found
+
+
+def _fitted_section(path, entry, catalog) -> dict:
+    """The ``[fitted]`` section of a model fitted by :func:`matprops.fit`: the base
+    model it started from, which coefficients were free, the method and the fit's
+    statistics (schema: :data:`~.schema.FITTED`)."""
+    quantity, _, model_id = entry["base_model"].partition("/")
+    if quantity != path.parent.name or not MODEL_ID.match(model_id):
+        raise DatasetError(
+            path,
+            f"fitted.base_model must be '<quantity>/<model-id>' of this quantity, "
+            f"got {entry['base_model']!r}",
+        )
+    if entry["dof"] < 0 or entry["points"] < 1 or entry["chi2"] < 0:
+        raise DatasetError(path, "fitted: points >= 1, dof >= 0 and chi2 >= 0")
+    record = dict(entry)
+    record["date"] = str(entry["date"])
+    record["residuals"] = dict(entry["residuals"])
+    return record
 
 
 class _TableFunction:

@@ -21,10 +21,12 @@ import numpy as np
 
 from ..errors import (
     DatasetError,
+    Refusal,
     UnknownNameError,
     UnknownVariantError,
     ValidityError,
     ValidityWarning,
+    refused,
     warn,
 )
 from .regions import Region
@@ -46,8 +48,11 @@ SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi"
 SOURCE_TYPES = {
     "article": SOURCE_FIELDS,
     "book": ("authors", "year", "title", "publisher", "doi"),
+    # a lab's own measurement, fitted into a model of an overlay catalogue
+    "measurement": ("authors", "year", "title", "description", "data", "data_sha256", "doi"),
 }
 BOOK_FIELDS = ("publisher", "edition", "address", "pages")
+MEASUREMENT_FIELDS = ("lab", "description", "data", "data_sha256")
 
 
 # --------------------------------------------------------------------------- records
@@ -57,8 +62,11 @@ BOOK_FIELDS = ("publisher", "edition", "address", "pages")
 class Source:
     """A bibliographic record of the publication a model comes from.
 
-    ``type`` is ``"article"`` (journal, volume, pages) or ``"book"`` (publisher,
-    optional edition, address and pages); it decides the BibTeX entry type.
+    ``type`` is ``"article"`` (journal, volume, pages), ``"book"`` (publisher,
+    optional edition, address and pages) or ``"measurement"`` (a lab's own measured
+    data: the people who measured, the ``lab``, a ``description`` of the data and the
+    file ``data`` in the overlay catalogue's ``measurements/`` folder with its
+    ``data_sha256``); it decides the BibTeX entry type.
     """
 
     authors: tuple[str, ...]
@@ -72,10 +80,20 @@ class Source:
     publisher: str = ""
     edition: str = ""
     address: str = ""
+    lab: str = ""
+    description: str = ""
+    data: str = ""
+    data_sha256: str = ""
 
     def citation(self) -> str:
         authors = ", ".join(self.authors)
         doi = f", doi:{self.doi}" if self.doi else ""
+        if self.type == "measurement":
+            lab = f" ({self.lab})" if self.lab else ""
+            return (
+                f'{authors}{lab}, "{self.title}", own measurement ({self.year}), '
+                f"data {self.data} (sha256 {self.data_sha256[:12]}){doi}"
+            )
         if self.type == "book":
             edition = f", {self.edition} edition" if self.edition else ""
             place = f"{self.publisher}, {self.address}" if self.address else self.publisher
@@ -95,7 +113,13 @@ class Source:
             f"  author = {{{' and '.join(esc(a) for a in self.authors)}}},",
             f"  title = {{{{{esc(self.title)}}}}},",
         ]
-        if self.type == "book":
+        if self.type == "measurement":
+            lines[0] = f"@misc{{{key},"
+            fields = [
+                ("howpublished", f"own measurement, data {self.data}"),
+                ("note", f"{self.lab + '; ' if self.lab else ''}sha256 {self.data_sha256}"),
+            ]
+        elif self.type == "book":
             fields = [
                 ("edition", self.edition),
                 ("publisher", self.publisher),
@@ -130,6 +154,8 @@ class Source:
         }
         if self.type == "book":
             record.update({k: getattr(self, k) for k in BOOK_FIELDS if getattr(self, k)})
+        elif self.type == "measurement":
+            record.update({k: getattr(self, k) for k in MEASUREMENT_FIELDS if getattr(self, k)})
         else:
             record.update({"journal": self.journal, "volume": self.volume, "pages": self.pages})
         record["doi"] = self.doi
@@ -510,6 +536,9 @@ class Model:
             "file": self._relative_path(),
             "sha256": self.sha256,
         }
+        describe = getattr(self.catalogue, "describe", None)
+        if describe is not None:  # which catalogue the file was read from
+            record["catalogue"] = describe()
         if self.table:
             record["tables"] = [f"tables/{t}" for t in self.tables]
         if self.additional_sources:
@@ -624,6 +653,15 @@ def _rebind_model(
     components: Mapping[str, Model],
     variant: str | None = None,
 ) -> Model:
+    # a refusal (different data here) is raised when the model is used, not while it is
+    # unpickled: a worker that raises while unpickling hangs its pool
+    return refused(_rebind, catalog, quantity, model_id, sha256, components, variant)
+
+
+def _rebind(catalog, quantity, model_id, sha256, components, variant) -> Model:
+    refusal = next((m for m in components.values() if isinstance(m, Refusal)), None)
+    if refusal is not None:
+        raise refusal.error
     model = catalog.model(quantity, model_id)
     if model.sha256 != sha256:
         raise DatasetError(
@@ -648,7 +686,12 @@ def _replace(model: Model, **changes) -> Model:
 
 @dataclass(frozen=True)
 class Release:
-    """A named bundle: one model per quantity, a status, a date, notes."""
+    """A named bundle: one model per quantity, a status, a date, notes.
+
+    An own release of an overlay catalogue names the release it builds on (``base``)
+    and the models it chooses itself (``chosen``); ``models`` is the whole choice (the
+    base's, then its own).
+    """
 
     id: str
     status: str  # "draft" or "final"
@@ -657,10 +700,31 @@ class Release:
     models: Mapping[str, str]
     path: Path
     catalogue: CatalogueLike | None = field(default=None, repr=False, compare=False)
+    base: str | None = None
+    chosen: Mapping[str, str] | None = field(default=None, compare=False)
 
     @property
     def final(self) -> bool:
         return self.status == "final"
+
+    def chosen_by(self, quantity: str) -> str:
+        """The id of the release whose file chose the model of a quantity: this one,
+        or (for an own release) the base it inherits the choice from."""
+        if self.base is None or quantity in (self.chosen or {}):
+            return self.id
+        if self.catalogue is None:
+            return self.base
+        return self.catalogue.release(self.base).chosen_by(quantity)
+
+    def origin(self) -> dict:
+        """Which release and catalogue this is (for provenance)."""
+        record = {"release": self.id, "release_status": self.status}
+        if self.base is not None:
+            record["release_base"] = self.base
+        describe = getattr(self.catalogue, "describe", None)
+        if describe is not None:
+            record["release_catalogue"] = describe()
+        return record
 
     @property
     def reference_path(self) -> Path:
@@ -677,4 +741,4 @@ class Release:
 
 
 def _reload_release(catalog: CatalogueLike, release_id: str) -> Release:
-    return catalog.release(release_id)
+    return refused(lambda c: c.release(release_id), catalog)

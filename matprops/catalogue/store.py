@@ -183,6 +183,16 @@ class Catalog:
         """Where this catalogue reads one kind of data (``"defects"``, ``"tables"``)."""
         return self.root / name
 
+    def describe(self) -> dict:
+        """Which catalogue this is (for provenance): the data shipped with matprops."""
+        from .._version import __version__
+
+        return {
+            "name": "matprops",
+            "description": f"the data shipped with matprops {__version__}",
+            "path": str(self.root),
+        }
+
     # -- listing
     def _folder(self, name: str) -> Path:
         folder = self.root / name
@@ -230,15 +240,7 @@ class Catalog:
             path = self.root / CHECKSUM_FILE
             if not path.is_file():
                 raise DatasetError(path, "checksum list is missing; refusing to load data")
-            sums = {}
-            for number, line in enumerate(path.read_text().splitlines(), 1):
-                if not line.strip() or line.startswith("#"):
-                    continue
-                parts = line.split(maxsplit=1)
-                if len(parts) != 2 or len(parts[0]) != 64:
-                    raise DatasetError(path, f"line {number} is not '<sha256>  <path>'")
-                sums[parts[1].strip()] = parts[0]
-            self._checksums = sums
+            self._checksums = parse_checksums(path, path.read_bytes())
         return self._checksums
 
     def verified_bytes(self, path: Path) -> bytes:
@@ -341,6 +343,12 @@ class Catalog:
             raise DatasetError(
                 path, f"field 'release' is {data['release']!r}, the file name says {release_id!r}"
             )
+        if "base" in data:
+            raise DatasetError(
+                path,
+                "field 'base' belongs to the own releases of an overlay catalogue; a "
+                "release of this folder names every model itself",
+            )
         finality.verify(self, release_id, data["status"])
         return Release(
             release_id,
@@ -353,7 +361,7 @@ class Catalog:
         )
 
     def table_path(self, name: str) -> Path:
-        path = self.data_folder("tables") / name
+        path = self.data_folder("tables") / confined(name, "table")
         if not path.is_file():
             raise DatasetError(path, "table file is missing")
         return path
@@ -455,6 +463,35 @@ class ReleaseCatalogue:
 
 def _release_view(base: Catalog, release_id: str) -> Catalog | ReleaseCatalogue:
     return base.for_release(base.release(release_id))
+
+
+def parse_checksums(path: Path, raw: bytes) -> dict[str, str]:
+    """A checksum list (lines ``<sha256>  <relative path>``) as relative path -> sha256."""
+    sums = {}
+    for number, line in enumerate(raw.decode("utf-8", "replace").splitlines(), 1):
+        if not line.strip() or line.startswith("#"):
+            continue
+        parts = line.split(maxsplit=1)
+        if len(parts) != 2 or len(parts[0]) != 64:
+            raise DatasetError(path, f"line {number} is not '<sha256>  <path>'")
+        sums[parts[1].strip()] = parts[0]
+    return sums
+
+
+def confined(name: str, kind: str) -> str:
+    """A file name that stays in its folder: no folder part, no ``..``, not hidden
+    (a table or measurement name given in a data file)."""
+    if (
+        not isinstance(name, str)
+        or not name
+        or name != Path(name).name
+        or "\\" in name
+        or name.startswith(".")
+    ):
+        raise DatasetError(
+            name, f"{kind} name must be a file name inside its folder (no path), got {name!r}"
+        )
+    return name
 
 
 def _parse_toml(path: Path, raw: bytes) -> dict:

@@ -38,7 +38,7 @@ from collections.abc import Callable, Mapping
 
 import numpy as np
 
-from ..errors import InputError, ValidityWarning
+from ..errors import InputError, ValidityWarning, refused
 from ..kernels._blocks import BLOCK, evaluate
 from ..vocabulary import dopant_species
 
@@ -428,7 +428,8 @@ class BoundKernel:
 
 
 def _rebuild(si, quantity, fixed):
-    return si.kernel(quantity, **fixed)
+    # a refused material (different data in this process) stays refused until used
+    return refused(lambda material: material.kernel(quantity, **fixed), si)
 
 
 def _to_numpy(value):

@@ -14,13 +14,14 @@ licensed practice.
 
 from __future__ import annotations
 
+import os
 from collections import Counter
-from collections.abc import Iterable, Mapping
+from collections.abc import Iterable, Mapping, Sequence
 
 import numpy as np
 
 from ..catalogue.store import Catalog, Model, default_catalog
-from ..errors import DatasetError, InputError, UnknownQuantityError
+from ..errors import DatasetError, InputError, UnknownQuantityError, refused
 from ..kernels._blocks import evaluate
 from ..units import check_broadcast, coerce, quantity
 from ..units import name as check_name
@@ -207,8 +208,10 @@ class Silicon(
                 record["composition"] = note
         else:
             record = self.model(name).provenance()
-        record["release"] = self.release.id
-        record["release_status"] = self.release.status
+        record.update(self.release.origin())  # which release, of which catalogue
+        if self.release.base is not None and name not in DERIVED:
+            # an own release chooses some models and inherits the others from its base
+            record["release_choice_from"] = self.release.chosen_by(name)
         if self.release.final and name not in DERIVED:
             # a final release serves what it sealed; a model added to the catalogue
             # later (chosen with models=) is not part of it
@@ -281,6 +284,12 @@ class Silicon(
 
 
 def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
+    # a refusal (different data in this process) is raised when the material is used:
+    # raising while unpickling would leave a process pool or a dask client waiting
+    return refused(_rebuild, catalog, release, overrides, strict, hashes)
+
+
+def _rebuild(catalog, release, overrides, strict, hashes) -> Silicon:
     si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog)
     for name, model in si._models.items():
         if model.sha256 != hashes.get(name):
@@ -294,20 +303,56 @@ def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
 
 
 def silicon(
-    release: str | None = None, models: Mapping[str, str] | None = None, strict: bool = False
+    release: str | None = None,
+    models: Mapping[str, str] | None = None,
+    strict: bool = False,
+    catalogues: Sequence[str | os.PathLike] | None = None,
+    seals: str | os.PathLike | None = None,
 ) -> Silicon:
-    """Silicon as described by a release (newest by default); see :class:`Silicon`."""
-    return Silicon(release=release, models=models, strict=strict)
+    """Silicon as described by a release (newest shipped release by default).
+
+    Parameters
+    ----------
+    release, models, strict
+        See :class:`Silicon`.
+    catalogues : list of folders, optional
+        Overlay catalogues of your own models and releases, searched in this order
+        before the shipped data (default: ``$MATPROPS_CATALOGUES``, folders separated by
+        ``os.pathsep``); ``release`` may then name an own release (``"ourlab-2027.1"``).
+        See :mod:`matprops.catalogue.overlay`.
+    seals : path, optional
+        The file that records the seals of final own releases (default
+        ``$MATPROPS_SEALS``, else ``matprops/seals.txt`` in the user's configuration
+        folder).
+    """
+    return Silicon(
+        release=release, models=models, strict=strict, catalog=_catalogue(catalogues, seals)
+    )
 
 
-def releases() -> list[str]:
-    """Ids of every release, oldest first."""
-    return default_catalog().release_ids()
+def _catalogue(catalogues, seals=None) -> Catalog:
+    """The shipped catalogue, with the overlays given (or named by the environment)."""
+    from ..catalogue.overlay import catalog_at, catalogues_from_environment
+
+    if catalogues is None:
+        catalogues = catalogues_from_environment()
+    elif isinstance(catalogues, (str, os.PathLike)):
+        catalogues = [catalogues]
+    if not catalogues:
+        return default_catalog()
+    return catalog_at(None, [os.path.abspath(os.path.expanduser(p)) for p in catalogues], seals)
 
 
-def models(quantity: str | None = None):
-    """Model ids for one quantity, or a dict quantity -> ids for all."""
-    catalog = default_catalog()
+def releases(catalogues: Sequence[str | os.PathLike] | None = None) -> list[str]:
+    """Ids of every release, oldest shipped first, then the own releases of the
+    overlay catalogues (default: ``$MATPROPS_CATALOGUES``)."""
+    return _catalogue(catalogues).release_ids()
+
+
+def models(quantity: str | None = None, catalogues: Sequence[str | os.PathLike] | None = None):
+    """Model ids for one quantity, or a dict quantity -> ids for all (with the models of
+    the overlay catalogues given, default ``$MATPROPS_CATALOGUES``)."""
+    catalog = _catalogue(catalogues)
     if quantity is None:
         return {q: catalog.model_ids(q) for q in catalog.quantities()}
     return catalog.model_ids(quantity)

@@ -408,21 +408,16 @@ def _convert(values, unit, target):
 
 @functools.lru_cache(maxsize=8)
 def _rebuild(recipe):
-    """A material from its recipe (class, release, overrides, strictness, datasets
-    folder), once per process: dask workers rebuild it instead of unpickling a bound one."""
-    from ..catalogue.store import Catalog, default_catalog
-
-    material, root, release, overrides, strict = recipe
-    catalog = default_catalog() if root is None else Catalog(root)
+    """A material from its recipe (class, release, overrides, strictness, catalogue),
+    once per process: dask workers rebuild it instead of unpickling a bound one. (The
+    catalogue crosses as its folders and digests: the shared one of this process.)"""
+    material, catalog, release, overrides, strict = recipe
     return material(release=release, models=dict(overrides), strict=strict, catalog=catalog)
 
 
 def _recipe(si):
-    from ..catalogue.store import default_catalog
-
-    root = None if si.catalog.base is default_catalog() else str(si.catalog.root)
     overrides = tuple(sorted((q, m) for q, m in si.models.items() if q in si.overridden))
-    return (type(si), root, si.release.id, overrides, si.strict)
+    return (type(si), si.catalog.base, si.release.id, overrides, si.strict)
 
 
 class _BlockFunction:

@@ -123,8 +123,14 @@ def test_unpickling_against_different_data_is_refused(datasets_copy):
     path.write_text(path.read_text() + "\n# changed after pickling\n")
     catalog.write_checksums()
     catalog_module._CATALOGS.pop(root, None)  # as in a fresh worker process
+    # refused when used, not while unpickling: a worker that raises while unpickling
+    # dies before it can answer, and its pool (or dask client) waits forever
+    clone = pickle.loads(data)
+    assert isinstance(clone, errors.Refusal)
     with pytest.raises(matprops.DatasetError, match=r"passler-2002\.toml: has sha256"):
-        pickle.loads(data)
+        clone.band_gap(300)
+    with pytest.raises(matprops.DatasetError, match=r"passler-2002\.toml: has sha256"):
+        pickle.loads(pickle.dumps(clone)).kernel("band_gap")  # and stays refused
 
 
 def test_spawn_pool_gives_the_serial_numbers(spawn_pool, si):

@@ -1,0 +1,876 @@
+"""Overlay catalogues: a lab's own models and releases, layered over the shipped data.
+
+A modelling group re-fits a band gap to its own photoluminescence data or a mobility
+to its own Hall measurements, and then needs every simulation to use exactly that
+set. An *overlay* is a folder with the layout of ``datasets/``::
+
+    overlay.toml                   name and description of the catalogue (who keeps it)
+    checksums.sha256               the sha256 of every file below
+    models/<quantity>/<id>.toml    its own model files (the same schema; a source may be
+                                   an own measurement, type = "measurement")
+    measurements/<file>            the measured data its fits used (CSV, netCDF, JSON)
+    releases/<id>.toml             own releases: base = "<release>", [models] it chooses
+    releases/<id>.reference.json   their frozen reference evaluations
+    releases/<id>.seal.json        the seal of a final own release
+    archive/<id>/                  what a final own release sealed (models, defects, tables)
+    tables/                        optional tables of its own models
+
+An overlay adds models and releases; it never redefines a model id, release id or
+table of a catalogue below it (an error names both files), and the shipped files are
+never copied or edited. Every file is verified against its own folder's checksum
+list, and a table or measurement name cannot leave its folder.
+
+An own release names the release it builds on (``base``, shipped or own) and the
+models it chooses; every other quantity keeps the base's choice, read as the base
+reads it (a final base from its archive). Own release ids are lower-case words and
+numbers (``ourlab-2027.1``, ``example-lab-1``), never the shipped ``YYYY.N``.
+
+Finality works as for the shipped releases (:mod:`.finality`): freezing an own release
+archives every model file of every quantity it serves (its own and the base's, as it
+sees them), the defect catalogue and the tables its models read into
+``archive/<id>/``, seals them, and records the seal's digest in a seals file outside
+the overlay (:class:`~.finality.SealRecord`). A final own release then reads only its
+archive: the shipped draft it was based on may move, the release does not.
+
+:func:`catalog_at` gives the one shared catalogue of a combination (shipped folder,
+overlays, seals); it pickles as the folders and the digests of their checksum lists,
+and a process that finds different data there refuses it (raised when the catalogue
+is used, so a worker pool never hangs on it).
+"""
+
+from __future__ import annotations
+
+import hashlib
+import os
+import re
+import threading
+from collections.abc import Iterable, Mapping, Sequence
+from pathlib import Path
+from types import MappingProxyType
+
+from ..errors import (
+    DatasetError,
+    UnknownModelError,
+    UnknownQuantityError,
+    UnknownReleaseError,
+    refused,
+)
+from . import finality
+from .finality import SealRecord
+from .records import Model, Release
+from .schema import OVERLAY, RELEASE, validate
+from .store import (
+    CHECKSUM_FILE,
+    DATA_FILES,
+    RELEASE_ID,
+    Catalog,
+    _parse_toml,
+    confined,
+    parse_checksums,
+)
+from .store import catalog_at as _shipped_at
+
+__all__ = [
+    "IDENTITY",
+    "MEASUREMENTS",
+    "OWN_RELEASE_ID",
+    "Overlay",
+    "OverlayView",
+    "OwnReleaseView",
+    "catalog_at",
+    "catalogues_from_environment",
+]
+
+IDENTITY = "overlay.toml"
+MEASUREMENTS = "measurements"
+# own release ids: lower-case words and numbers joined by hyphens or dots, starting
+# with a letter (the shipped releases' YYYY.N cannot match)
+OWN_RELEASE_ID = re.compile(r"^[a-z][a-z0-9]*([-.][a-z0-9]+)*$")
+OVERLAY_NAME = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
+OVERLAY_FILES = {
+    "models": DATA_FILES["models"],
+    "releases": DATA_FILES["releases"],
+    "tables": DATA_FILES["tables"],
+    "archive": DATA_FILES["archive"],
+    MEASUREMENTS: (".csv", ".nc", ".json", ".txt"),
+}
+
+
+class Overlay(Catalog):
+    """One overlay folder, layered over the catalogue ``below`` it.
+
+    Lookups (models, releases, tables) search this folder, then ``below``; this
+    folder's own files are verified against its own checksum list. ``seals`` is the
+    record of final own releases (default: the seals file, see
+    :func:`~.finality.seals_path`).
+    """
+
+    def __init__(self, root: Path | str, below: Catalog, seals: SealRecord | None = None):
+        super().__init__(root)
+        if not self.root.is_dir():
+            raise DatasetError(
+                self.root,
+                "overlay catalogue folder does not exist (make one with "
+                "matprops.create_catalogue(path, name=..., description=...))",
+            )
+        self.below = below
+        self._seal_record = seals if seals is not None else SealRecord()
+        self.digest = ""
+        for layer in _layers(below):
+            if self.root.is_relative_to(layer.root) or layer.root.is_relative_to(self.root):
+                raise DatasetError(
+                    self.root,
+                    f"an overlay catalogue may not lie inside, or hold, another catalogue "
+                    f"({layer.root})",
+                )
+        self.checksums()  # pins the digest of the checksum list it reads
+        identity = self.root / IDENTITY
+        data = _parse_toml(identity, self.verified_bytes(identity))
+        validate(identity, data, OVERLAY)
+        if not OVERLAY_NAME.match(data["name"]):
+            raise DatasetError(
+                identity,
+                f"field 'name' must be lower-case words joined by hyphens, got {data['name']!r}",
+            )
+        self.name: str = data["name"]
+        self.description: str = data["description"]
+        self.contact: str = data.get("contact", "")
+        for layer in _layers(below):
+            if isinstance(layer, Overlay) and layer.name == self.name:
+                raise DatasetError(
+                    identity, f"catalogue name {self.name!r} is also the name of {layer.root}"
+                )
+        self._check_unique()
+
+    # -- identity, pickling
+    def describe(self) -> dict:
+        record = {"name": self.name, "description": self.description, "path": str(self.root)}
+        if self.contact:
+            record["contact"] = self.contact
+        return record
+
+    def __repr__(self) -> str:
+        return f"<overlay catalogue {self.name!r} at {self.root} over {self.below!r}>"
+
+    def __reduce__(self):
+        # the folder, the digest of its checksum list and the seals it trusts: a worker
+        # reads its own copy of the folder and refuses one that differs
+        seals = {(self.name, r): d for r, d in self.seals.items()}
+        return _overlay_from, (str(self.root), self.digest, self.below, seals)
+
+    @property
+    def base(self) -> Overlay:
+        return self
+
+    @property
+    def seals(self) -> dict[str, str]:
+        """Release id -> seal digest of this catalogue's final own releases."""
+        return self._seal_record.for_catalogue(self.name)
+
+    @property
+    def seal_record(self) -> SealRecord:
+        return self._seal_record
+
+    # -- checksums
+    def _read_checksums(self) -> dict[str, str]:
+        if self._checksums is None:
+            path = self.root / CHECKSUM_FILE
+            if not path.is_file():
+                raise DatasetError(path, "checksum list is missing; refusing to load data")
+            raw = path.read_bytes()  # read once: the digest is of the list it parses
+            self._checksums = parse_checksums(path, raw)
+            self.digest = hashlib.sha256(raw).hexdigest()
+        return self._checksums
+
+    def owns(self, path: Path) -> bool:
+        """Whether a file lies in this folder (not in a catalogue below)."""
+        return Path(path).is_relative_to(self.root)
+
+    def verified_bytes(self, path: Path) -> bytes:
+        if self.owns(path):
+            return super().verified_bytes(path)
+        return self.below.verified_bytes(path)
+
+    def data_files(self) -> list[str]:
+        return overlay_files(self.root)
+
+    def write_checksums(self) -> Path:
+        with self._lock:
+            target = _write_checksums_of(self.root)
+            self._checksums = None
+            self.checksums()  # the new digest
+        return target
+
+    # -- models
+    def own_quantities(self) -> list[str]:
+        folder = self.root / "models"
+        return sorted(p.name for p in folder.iterdir() if p.is_dir()) if folder.is_dir() else []
+
+    def own_model_ids(self, quantity: str) -> list[str]:
+        folder = self.root / "models" / quantity
+        return sorted(p.stem for p in folder.glob("*.toml")) if folder.is_dir() else []
+
+    def quantities(self) -> list[str]:
+        return sorted(set(self.own_quantities()) | set(self.below.quantities()))
+
+    def model_ids(self, quantity: str) -> list[str]:
+        below = self.below.model_ids(quantity) if quantity in self.below.quantities() else []
+        own = self.own_model_ids(quantity)
+        if not own and quantity not in self.below.quantities():
+            raise UnknownQuantityError(quantity, self.quantities())
+        return sorted(set(own) | set(below))
+
+    def model(self, quantity: str, model_id: str) -> Model:
+        if model_id in self.own_model_ids(quantity):
+            return self.model_at(self.root / "models" / quantity / f"{model_id}.toml", self)
+        known = self.model_ids(quantity)
+        if model_id not in known:
+            raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
+        return self.below.model(quantity, model_id)
+
+    def model_at(self, path: Path, owner) -> Model:
+        if not self.owns(path):
+            return self.below.model_at(path, owner)
+        model = super().model_at(path, owner)
+        self._check_measurement(model)
+        return model
+
+    def _check_measurement(self, model: Model) -> None:
+        """A model fitted to own measurements cites a data file of this catalogue with
+        the digest its checksum list records."""
+        source = model.source
+        if source.type != "measurement" or not source.data:
+            return
+        relative = f"{MEASUREMENTS}/{confined(source.data, 'measurement')}"
+        recorded = self.checksums().get(relative)
+        if recorded is None:
+            raise DatasetError(
+                model.path,
+                f"source.data {source.data!r}: no file {relative} is listed in "
+                f"{self.root / CHECKSUM_FILE} (keep the data a model was fitted to beside it)",
+            )
+        if recorded != source.data_sha256:
+            raise DatasetError(
+                model.path,
+                f"source.data_sha256 {source.data_sha256} is not the sha256 of {relative} "
+                f"({recorded}): the model cites other data than the catalogue holds",
+            )
+
+    def measurement_path(self, name: str) -> Path:
+        """A measurement file of this catalogue (the name cannot leave the folder)."""
+        return self.root / MEASUREMENTS / confined(name, "measurement")
+
+    # -- tables and other data
+    def table_path(self, name: str) -> Path:
+        own = self.root / "tables" / confined(name, "table")
+        return own if own.is_file() else self.below.table_path(name)
+
+    def data_folder(self, name: str) -> Path:
+        # the defect catalogue is the shipped one (an overlay holds models, releases,
+        # tables and measurements); tables are found by name (table_path)
+        return self.below.data_folder(name)
+
+    def scenario_names(self) -> list[str]:
+        return self.below.scenario_names()
+
+    def scenario(self, name: str) -> dict:
+        return self.below.scenario(name)
+
+    # -- releases
+    def own_release_ids(self) -> list[str]:
+        folder = self.root / "releases"
+        return sorted(p.stem for p in folder.glob("*.toml")) if folder.is_dir() else []
+
+    def release_ids(self) -> list[str]:
+        return self.below.release_ids() + self.own_release_ids()
+
+    def newest_release_id(self) -> str:
+        """The newest shipped release (own releases are asked for by name)."""
+        return self.below.newest_release_id()
+
+    def owner_of(self, release_id: str) -> Overlay | None:
+        """The overlay (this one or one below) whose folder holds an own release."""
+        for layer in _layers(self):
+            if isinstance(layer, Overlay) and release_id in layer.own_release_ids():
+                return layer
+        return None
+
+    def release(self, release_id: str) -> Release:
+        if release_id not in self.own_release_ids():
+            if release_id in self.below.release_ids():
+                return self.below.release(release_id)
+            raise UnknownReleaseError(release_id, self.release_ids())
+        return self._own_release(release_id, ())
+
+    def _own_release(self, release_id: str, chain: tuple[str, ...]) -> Release:
+        path = self.root / "releases" / f"{release_id}.toml"
+        data = _parse_toml(path, self.verified_bytes(path))
+        validate(path, data, RELEASE)
+        if data["release"] != release_id:
+            raise DatasetError(
+                path, f"field 'release' is {data['release']!r}, the file name says {release_id!r}"
+            )
+        base = data.get("base")
+        if base is None:
+            raise DatasetError(
+                path,
+                "missing field 'base': an own release names the release it builds on "
+                '(base = "2026.2")',
+            )
+        if base == release_id or base in chain:
+            raise DatasetError(
+                path, f"field 'base': {' -> '.join((*chain, release_id, base))} runs in a circle"
+            )
+        chosen = dict(data["models"])
+        final = finality.verify(
+            self, release_id, data["status"], self.seals, self._seal_record.where
+        )
+        if final:  # the whole choice as sealed: the base's own choice may have moved since
+            seal = finality.read_seal(self, release_id, self.seals, self._seal_record.where)
+            models = dict(seal["models"])
+        else:
+            if base in self.own_release_ids():
+                below = self._own_release(base, (*chain, release_id))
+            elif base in self.below.release_ids():
+                below = self.below.release(base)
+            else:
+                raise UnknownReleaseError(
+                    base, self.release_ids(), f"(the base of own release {release_id})"
+                )
+            models = {**below.models, **chosen}
+        return Release(
+            release_id,
+            data["status"],
+            str(data["date"]),
+            data["notes"],
+            MappingProxyType(models),
+            path,
+            self,
+            base=base,
+            chosen=MappingProxyType(chosen),
+        )
+
+    def for_release(self, release: Release):
+        """The catalogue as a release sees it: a final own release reads its archive;
+        a draft own release this folder's models over its base as the base sees them;
+        a release of a catalogue below, this folder's models over that release's view
+        (so ``models=`` may choose one of this folder's models)."""
+        with self._lock:
+            view = self._views.get(release.id)
+        if view is not None:
+            return view
+        if self.owns(release.path):
+            if release.final and (self.root / "archive" / release.id).is_dir():
+                view = OwnReleaseView(self, release)
+            else:
+                base = self.release(release.base)
+                lower = self.for_release(base) if self.owns(base.path) else None
+                if lower is None:
+                    lower = self.below.for_release(base)
+                view = OverlayView(self, release, lower)
+        else:
+            view = OverlayView(self, release, self.below.for_release(release))
+        with self._lock:
+            return self._views.setdefault(release.id, view)
+
+    # -- integrity
+    def _check_unique(self) -> None:
+        """An overlay adds; it never redefines what a catalogue below holds."""
+        below_quantities = set(self.below.quantities())
+        for quantity in self.own_quantities():
+            if quantity not in below_quantities:
+                raise DatasetError(
+                    self.root / "models" / quantity,
+                    f"no quantity {quantity!r} in the catalogues below (an overlay adds "
+                    "models of the quantities matprops serves: "
+                    f"{', '.join(sorted(below_quantities))})",
+                )
+            below = set(self.below.model_ids(quantity))
+            for model_id in self.own_model_ids(quantity):
+                if model_id in below:
+                    raise DatasetError(
+                        self.root / "models" / quantity / f"{model_id}.toml",
+                        f"redefines model {quantity}/{model_id} of "
+                        f"{_defining_file(self.below, quantity, model_id)}: an overlay "
+                        "catalogue adds models, it never redefines one (give yours an id "
+                        "of its own)",
+                    )
+        below_releases = set(self.below.release_ids())
+        for release_id in self.own_release_ids():
+            path = self.root / "releases" / f"{release_id}.toml"
+            if RELEASE_ID.match(release_id) or not OWN_RELEASE_ID.match(release_id):
+                raise DatasetError(
+                    path,
+                    f"release id {release_id!r}: an own release id is lower-case words and "
+                    "numbers joined by hyphens or dots, starting with a letter "
+                    "('ourlab-2027.1'); YYYY.N belongs to the shipped releases",
+                )
+            if release_id in below_releases:
+                raise DatasetError(
+                    path,
+                    f"redefines release {release_id} of "
+                    f"{_release_file(self.below, release_id)}: an overlay catalogue adds "
+                    "releases, it never redefines one",
+                )
+        tables = self.root / "tables"
+        if tables.is_dir():
+            for path in sorted(tables.glob("*.nc")):
+                try:
+                    other = self.below.table_path(path.name)
+                except DatasetError:
+                    continue
+                raise DatasetError(
+                    path, f"redefines table {other}: an overlay catalogue adds tables"
+                )
+
+
+class _View:
+    """What the views below share: the overlay's files, pickling by release id."""
+
+    def __init__(self, overlay: Overlay, release: Release):
+        self.overlay = overlay
+        self.release_id = release.id
+
+    def __getattr__(self, name):
+        return getattr(self.overlay, name)
+
+    @property
+    def base(self) -> Overlay:
+        return self.overlay
+
+    @property
+    def root(self) -> Path:
+        return self.overlay.root
+
+    def __reduce__(self):
+        return _overlay_view, (self.overlay, self.release_id)
+
+    def __copy__(self):
+        return self
+
+    def __deepcopy__(self, memo):
+        return self
+
+    def table(self, name: str):
+        return Catalog.table(self, name)
+
+    def table_arrays(self, name: str):
+        return Catalog.table_arrays(self, name)
+
+    def for_release(self, release: Release):
+        return self.overlay.for_release(release)
+
+    def release(self, release_id: str) -> Release:
+        return self.overlay.release(release_id)
+
+
+class OverlayView(_View):
+    """An overlay's models over the view of a release (a draft own release over its
+    base, or a release of a catalogue below).
+
+    A model the lower view sealed (a final base's archive) is read as it sealed it;
+    otherwise the overlay's own file, else the lower view's.
+    """
+
+    def __init__(self, overlay: Overlay, release: Release, lower):
+        super().__init__(overlay, release)
+        self.lower = lower
+
+    def __repr__(self) -> str:
+        return (
+            f"<catalogue {self.overlay.name!r} over {self.lower!r} as release "
+            f"{self.release_id} sees it>"
+        )
+
+    def quantities(self) -> list[str]:
+        return sorted(set(self.overlay.own_quantities()) | set(self.lower.quantities()))
+
+    def model_ids(self, quantity: str) -> list[str]:
+        lower = self.lower.model_ids(quantity) if quantity in self.lower.quantities() else []
+        own = self.overlay.own_model_ids(quantity)
+        if not own and quantity not in self.lower.quantities():
+            raise UnknownQuantityError(quantity, self.quantities())
+        return sorted(set(own) | set(lower))
+
+    def archived_model_ids(self, quantity: str) -> list[str]:
+        ids = getattr(self.lower, "archived_model_ids", None)
+        return ids(quantity) if ids is not None else []
+
+    def model(self, quantity: str, model_id: str) -> Model:
+        if model_id in self.archived_model_ids(quantity):
+            return self.lower.model(quantity, model_id)
+        if model_id in self.overlay.own_model_ids(quantity):
+            return self.overlay.model(quantity, model_id)
+        known = self.model_ids(quantity)
+        if model_id not in known:
+            raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
+        return self.lower.model(quantity, model_id)
+
+    def data_folder(self, name: str) -> Path:
+        return self.lower.data_folder(name)
+
+    def table_path(self, name: str) -> Path:
+        own = self.overlay.root / "tables" / confined(name, "table")
+        return own if own.is_file() else self.lower.table_path(name)
+
+
+class OwnReleaseView(_View):
+    """A final own release: every model, defect and table file it sealed comes from
+    ``archive/<release>/`` in its overlay; models added later come from the catalogues
+    (their provenance says they are not part of the release)."""
+
+    def __init__(self, overlay: Overlay, release: Release):
+        super().__init__(overlay, release)
+        self.archive = overlay.root / "archive" / release.id
+
+    def __repr__(self) -> str:
+        return f"<catalogue {self.overlay.name!r} as final release {self.release_id} sees it>"
+
+    def archived_model_ids(self, quantity: str) -> list[str]:
+        return sorted(p.stem for p in (self.archive / "models" / quantity).glob("*.toml"))
+
+    def quantities(self) -> list[str]:
+        folder = self.archive / "models"
+        archived = [p.name for p in folder.iterdir() if p.is_dir()] if folder.is_dir() else []
+        return sorted(set(archived) | set(self.overlay.quantities()))
+
+    def model_ids(self, quantity: str) -> list[str]:
+        later = self.overlay.model_ids(quantity) if quantity in self.overlay.quantities() else []
+        archived = self.archived_model_ids(quantity)
+        if not archived and not later:
+            raise UnknownQuantityError(quantity, self.quantities())
+        return sorted(set(archived) | set(later))
+
+    def model(self, quantity: str, model_id: str) -> Model:
+        path = self.archive / "models" / quantity / f"{model_id}.toml"
+        if path.is_file():
+            return self.overlay.model_at(path, self)
+        return self.overlay.model(quantity, model_id)
+
+    def data_folder(self, name: str) -> Path:
+        archived = self.archive / name
+        return archived if archived.is_dir() else self.overlay.data_folder(name)
+
+    def table_path(self, name: str) -> Path:
+        archived = self.archive / "tables" / confined(name, "table")
+        return archived if archived.is_file() else self.overlay.table_path(name)
+
+
+def _overlay_view(overlay: Overlay, release_id: str):
+    return refused(lambda o: o.for_release(o.release(release_id)), overlay)
+
+
+def _layers(catalog) -> Iterable[Catalog]:
+    """A catalogue and every one below it, top first."""
+    while catalog is not None:
+        yield catalog
+        catalog = getattr(catalog, "below", None)
+
+
+def _defining_file(catalog, quantity: str, model_id: str) -> Path:
+    for layer in _layers(catalog):
+        if isinstance(layer, Overlay):
+            if model_id in layer.own_model_ids(quantity):
+                return layer.root / "models" / quantity / f"{model_id}.toml"
+        else:
+            return layer.root / "models" / quantity / f"{model_id}.toml"
+    raise AssertionError("unreachable")  # pragma: no cover
+
+
+def _release_file(catalog, release_id: str) -> Path:
+    for layer in _layers(catalog):
+        if not isinstance(layer, Overlay) or release_id in layer.own_release_ids():
+            return layer.root / "releases" / f"{release_id}.toml"
+    raise AssertionError("unreachable")  # pragma: no cover
+
+
+# --------------------------------------------------------------------------- sharing
+
+_LOCK = threading.RLock()
+_OVERLAYS: dict[tuple, Overlay] = {}
+_RECORDS: dict[Path, SealRecord] = {}
+
+
+def _record(seals) -> SealRecord:
+    """The shared record of a seals file (default: the user's), or a given one."""
+    if isinstance(seals, SealRecord):
+        return seals
+    if isinstance(seals, Mapping):
+        return SealRecord(seals)
+    path = finality.seals_path() if seals is None else Path(os.path.abspath(Path(seals)))
+    with _LOCK:
+        if path not in _RECORDS:
+            _RECORDS[path] = SealRecord(path)
+        return _RECORDS[path]
+
+
+def _record_key(record: SealRecord):
+    if record.path is not None:
+        return ("file", record.path)
+    return ("given", frozenset(record.entries().items()))
+
+
+def _overlay(root: Path, below: Catalog, record: SealRecord) -> Overlay:
+    key = (Path(os.path.abspath(root)), id(below), _record_key(record))
+    with _LOCK:
+        overlay = _OVERLAYS.get(key)
+        if overlay is None or overlay.below is not below:
+            overlay = Overlay(root, below, record)
+            _OVERLAYS[key] = overlay
+        return overlay
+
+
+def catalog_at(
+    root: Path | str | None = None,
+    overlays: Sequence[Path | str] = (),
+    seals: Path | str | Mapping | SealRecord | None = None,
+) -> Catalog:
+    """The shared catalogue of a shipped datasets folder (``None``: the installed one)
+    with overlay catalogues over it.
+
+    ``overlays`` are searched in the order given, then the shipped data: each may build
+    on (name the releases of) those listed after it. ``seals`` is where final own
+    releases are recorded: a seals file (default ``$MATPROPS_SEALS`` or the user's
+    configuration folder) or a mapping ``{(catalogue name, release id): digest}``.
+    Without overlays this is :func:`matprops.catalogue.store.catalog_at`.
+    """
+    catalog = _shipped_at(root)
+    if isinstance(overlays, (str, os.PathLike)):
+        overlays = [overlays]
+    if not overlays:
+        return catalog
+    record = _record(seals)
+    for path in reversed([Path(p).expanduser() for p in overlays]):
+        catalog = _overlay(path, catalog, record)
+    return catalog
+
+
+def catalogues_from_environment() -> list[str]:
+    """The overlay folders named by ``$MATPROPS_CATALOGUES`` (separated by
+    ``os.pathsep``; relative ones resolved against the working folder now)."""
+    value = os.environ.get("MATPROPS_CATALOGUES", "")
+    return [os.path.abspath(os.path.expanduser(p)) for p in value.split(os.pathsep) if p.strip()]
+
+
+def _overlay_from(root: str, digest: str, below, seals) -> Overlay:
+    return refused(_rebuild_overlay, root, digest, below, seals)
+
+
+def _rebuild_overlay(root, digest, below, seals) -> Overlay:
+    root = Path(os.path.abspath(root))
+    given = {release: d for (_, release), d in dict(seals).items()}
+    with _LOCK:  # the same process (or one that has it already): the shared one
+        for (path, _, _), known in _OVERLAYS.items():
+            if path == root and known.below is below and known.seals == given:
+                overlay = known
+                break
+        else:
+            overlay = _overlay(root, below, _record(dict(seals)))
+    if overlay.digest != digest:
+        raise DatasetError(
+            overlay.root / CHECKSUM_FILE,
+            f"has sha256 {overlay.digest} in this process but {digest} where the catalogue "
+            "was pickled: the two processes read different overlay data (give every "
+            "worker the same copy of the folder)",
+        )
+    return overlay
+
+
+# --------------------------------------------------------------------------- writing
+
+
+def create(
+    path: Path | str, name: str, description: str, contact: str = "", exist_ok: bool = False
+) -> Path:
+    """Make an empty overlay catalogue folder (``overlay.toml`` and its checksum list).
+
+    ``name`` is lower-case words joined by hyphens (``"example-lab"``); ``description``
+    says whose catalogue it is and what it holds. With ``exist_ok`` an existing
+    overlay of the same name is left as it is.
+    """
+    from .store import _atomic_write_text
+
+    root = Path(os.path.abspath(Path(path).expanduser()))
+    if not OVERLAY_NAME.match(name or ""):
+        raise DatasetError(
+            root / IDENTITY,
+            f"catalogue name must be lower-case words joined by hyphens, got {name!r}",
+        )
+    if not (description or "").strip():
+        raise DatasetError(root / IDENTITY, "a catalogue needs a description (whose, what for)")
+    identity = root / IDENTITY
+    if identity.exists():
+        if not exist_ok:
+            raise DatasetError(identity, "exists already: this folder is an overlay catalogue")
+        data = _parse_toml(identity, identity.read_bytes())
+        if data.get("name") != name:
+            raise DatasetError(identity, f"is catalogue {data.get('name')!r}, not {name!r}")
+        return root
+    if root.exists() and any(root.iterdir()):
+        raise DatasetError(root, "is not empty: make an overlay catalogue in a new folder")
+    root.mkdir(parents=True, exist_ok=True)
+    lines = [f"name = {_toml_string(name)}", f"description = {_toml_string(description)}"]
+    if contact:
+        lines.append(f"contact = {_toml_string(contact)}")
+    _atomic_write_text(identity, "\n".join(lines) + "\n")
+    for sub in ("models", "releases", MEASUREMENTS):
+        (root / sub).mkdir(exist_ok=True)
+    _write_checksums_of(root)
+    return root
+
+
+def overlay_files(root: Path) -> list[str]:
+    """Every data file of an overlay folder (relative paths): what its checksum list
+    must cover."""
+    found = [IDENTITY] if (root / IDENTITY).is_file() else []
+    for sub, suffixes in OVERLAY_FILES.items():
+        found += [
+            path.relative_to(root).as_posix()
+            for path in sorted((root / sub).rglob("*"))
+            if path.is_file() and path.suffix in suffixes and not path.name.startswith(".")
+        ]
+    return found
+
+
+def _write_checksums_of(root: Path) -> Path:
+    """Record the sha256 of every data file of an overlay folder."""
+    from .store import _atomic_write_text, sha256_of
+
+    lines = [
+        "# sha256 of every file of this overlay catalogue; matprops refuses files that differ.",
+        "# After a deliberate change: python -m matprops.catalogue --catalogue <this folder> "
+        "--update-checksums",
+    ]
+    lines += [f"{sha256_of(root / relative)}  {relative}" for relative in overlay_files(root)]
+    target = root / CHECKSUM_FILE
+    _atomic_write_text(target, "\n".join(lines) + "\n")
+    return target
+
+
+def write_release(
+    overlay: Overlay,
+    release_id: str,
+    base: str,
+    models: Mapping[str, str],
+    notes: str,
+    date: str | None = None,
+) -> Path:
+    """Write a draft own release file ``releases/<id>.toml`` into an overlay (checked:
+    the id's form, the base exists, every model named exists for its quantity) and
+    re-record the overlay's checksums. Its reference is written by
+    :func:`matprops.outputs.reference.regenerate`."""
+    import datetime
+
+    from .store import _atomic_write_text
+
+    path = overlay.root / "releases" / f"{release_id}.toml"
+    if RELEASE_ID.match(release_id) or not OWN_RELEASE_ID.match(release_id):
+        raise DatasetError(
+            path,
+            f"release id {release_id!r}: an own release id is lower-case words and numbers "
+            "joined by hyphens or dots, starting with a letter ('ourlab-2027.1')",
+        )
+    if release_id in overlay.release_ids():
+        raise DatasetError(path, f"release {release_id} exists already")
+    if base not in overlay.release_ids():
+        raise UnknownReleaseError(base, overlay.release_ids(), "(the base of a new release)")
+    if not (notes or "").strip():
+        raise DatasetError(path, "a release needs notes: what it changes against its base, why")
+    for quantity, model_id in models.items():
+        known = overlay.model_ids(quantity)  # UnknownQuantityError for an unknown quantity
+        if model_id not in known:
+            raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
+    date = date or datetime.date.today().isoformat()
+    lines = [
+        f"release = {_toml_string(release_id)}",
+        f"base = {_toml_string(base)}",
+        'status = "draft"',
+        f'date = "{date}"',
+        f"notes = {_toml_string(notes)}",
+        "",
+        "[models]",
+        *[f"{q} = {_toml_string(m)}" for q, m in sorted(models.items())],
+    ]
+    path.parent.mkdir(exist_ok=True)
+    _atomic_write_text(path, "\n".join(lines) + "\n")
+    overlay.write_checksums()
+    return path
+
+
+def _toml_string(text: str) -> str:
+    """A TOML basic string (JSON's escapes are TOML's for these characters)."""
+    import json
+
+    return json.dumps(str(text), ensure_ascii=False)
+
+
+def archive_own(overlay: Overlay, release: Release) -> Path:
+    """Copy into ``archive/<id>/`` of the overlay every file an own release's numbers
+    depend on, as the release sees them now: every model file of every quantity it
+    serves (its own and its base's, alternatives too), the defect catalogue, and the
+    tables those models read. The copies are of verified bytes."""
+    view = overlay.for_release(release)
+    target = overlay.root / "archive" / release.id
+    if target.exists():
+        raise DatasetError(target, "exists already: an own release is archived once")
+    copies: dict[Path, bytes] = {}
+    tables: set[tuple[str, object]] = set()
+    for quantity in sorted(release.models):
+        for model_id in view.model_ids(quantity):
+            model = view.model(quantity, model_id)
+            copies[target / "models" / quantity / f"{model_id}.toml"] = overlay.verified_bytes(
+                model.path
+            )
+            tables.update((name, model.catalogue) for name in model.tables)
+    defects = view.data_folder("defects")
+    for path in sorted(defects.glob("*.toml")) if defects.is_dir() else []:
+        copies[target / "defects" / path.name] = overlay.verified_bytes(path)
+    for name, owner in sorted(tables, key=lambda t: t[0]):
+        path = owner.table_path(name)
+        copies[target / "tables" / name] = overlay.verified_bytes(path)
+    for destination, data in copies.items():
+        destination.parent.mkdir(parents=True, exist_ok=True)
+        destination.write_bytes(data)
+    return target
+
+
+def seal_own(overlay: Overlay, release: Release, date: str) -> tuple[Path, str]:
+    """Write ``releases/<id>.seal.json`` of a (just archived) own release: the sha256 of
+    its release file, references, archive and the measurements its models cite, and its
+    whole model choice. Returns the seal and its digest (the line for the seals file)."""
+    import json
+
+    from .store import _atomic_write_text, sha256_of
+
+    root = overlay.root
+    releases = root / "releases"
+    paths = [releases / f"{release.id}.toml", releases / f"{release.id}.reference.json"]
+    archive = root / "archive" / release.id
+    paths += sorted(p for p in archive.rglob("*") if p.is_file())
+    cited = set()
+    for path in archive.glob("models/*/*.toml"):
+        source = _parse_toml(path, path.read_bytes()).get("source", {})
+        if source.get("type") == "measurement" and source.get("data"):
+            cited.add(overlay.measurement_path(source["data"]))
+    paths += sorted(p for p in cited if p.is_file())
+    files = {p.relative_to(root).as_posix(): sha256_of(p) for p in paths}
+    base = overlay.release(release.base)
+    seal = {
+        "release": release.id,
+        "catalogue": overlay.name,
+        "base": release.base,
+        "base_status": base.status,
+        "sealed": date,
+        "version": finality.SEAL_VERSION,
+        "models": dict(sorted(release.models.items())),
+        "files": files,
+    }
+    target = releases / f"{release.id}.seal.json"
+    _atomic_write_text(target, json.dumps(seal, indent=1, ensure_ascii=False) + "\n")
+    return target, sha256_of(target)
+
+
+def forget(overlay: Overlay, release_id: str) -> None:
+    """Drop what an overlay has built for a release (after it was frozen)."""
+    with overlay._lock:
+        overlay._views.pop(release_id, None)
