@@ -732,6 +732,31 @@ def overlay_files(root: Path) -> list[str]:
     return found
 
 
+def check_unchanged(root: Path) -> None:
+    """Refuse to write into an overlay folder whose files differ from its checksum list
+    (re-recording the list would make such a change look deliberate)."""
+    from .store import sha256_of
+
+    path = root / CHECKSUM_FILE
+    if not path.is_file():
+        raise DatasetError(path, "checksum list is missing: not an overlay catalogue folder")
+    recorded = parse_checksums(path, path.read_bytes())
+    on_disk = set(overlay_files(root))
+    changed = sorted(
+        [r for r in on_disk if r not in recorded]
+        + [r for r in recorded if r not in on_disk]
+        + [r for r in on_disk & set(recorded) if sha256_of(root / r) != recorded[r]]
+    )
+    if changed:
+        raise DatasetError(
+            root,
+            f"files differ from its checksum list ({', '.join(changed[:5])}"
+            f"{' ...' if len(changed) > 5 else ''}): matprops writes into a catalogue only "
+            "while every file matches; check it (python -m matprops.catalogue --catalogue "
+            "PATH) and re-record deliberate changes (--update-checksums)",
+        )
+
+
 def _write_checksums_of(root: Path) -> Path:
     """Record the sha256 of every data file of an overlay folder."""
     from .store import _atomic_write_text, sha256_of
@@ -764,6 +789,7 @@ def write_release(
     from .store import _atomic_write_text
 
     path = overlay.root / "releases" / f"{release_id}.toml"
+    check_unchanged(overlay.root)
     if RELEASE_ID.match(release_id) or not OWN_RELEASE_ID.match(release_id):
         raise DatasetError(
             path,
@@ -809,6 +835,7 @@ def archive_own(overlay: Overlay, release: Release) -> Path:
     depend on, as the release sees them now: every model file of every quantity it
     serves (its own and its base's, alternatives too), the defect catalogue, and the
     tables those models read. The copies are of verified bytes."""
+    check_unchanged(overlay.root)
     view = overlay.for_release(release)
     target = overlay.root / "archive" / release.id
     if target.exists():
