@@ -497,8 +497,8 @@ def coefficient_entry(name: str, coefficients, variants):
     coefficient = table.get(name)
     if coefficient is None or coefficient.uncertainty is None:
         return None
-    if (index is None) != isinstance(coefficient.value, tuple):
-        return None
+    if (index is not None) != isinstance(coefficient.value, tuple):
+        return None  # an index for a vector's element, none for a number
     if index is not None and not 0 <= index < len(coefficient.value):
         return None
     return coefficient, index

@@ -7,6 +7,7 @@ import functools
 
 import numpy as np
 
+from ._coefficients import is_dual
 from ._spec import derivatives_of, kernel
 from ._xp import asfloat, namespace
 from .constants import AVOGADRO
@@ -84,6 +85,8 @@ def _okada_integral(x, c1, c2, c3, onset_temperature, exp=None):
     """``F(x) = c1 [x + exp(-c2 (x - T1)) / c2] + c3 x^2 / 2`` (a float for a float x,
     computed once per set of coefficients)."""
     if exp is None:
+        if any(is_dual(c) for c in (c1, c2, c3, onset_temperature)):
+            return _okada_integral(x, c1, c2, c3, onset_temperature, np.exp)
         return _okada_constant(float(x), c1, c2, c3, onset_temperature)
     return c1 * (x + exp(-c2 * (x - onset_temperature)) / c2) + 0.5 * c3 * x * x
 

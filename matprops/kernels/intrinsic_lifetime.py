@@ -27,6 +27,7 @@ import math
 
 import numpy as np
 
+from ._coefficients import number
 from ._spec import derivatives_of, kernel
 from ._xp import asfloat, errstate, namespace, power, zeros_like
 
@@ -196,7 +197,7 @@ def richter(
         + hole_coefficient * g_ehh * p0
         + injection_coefficient * _power(xp, dn, injection_exponent)
     )
-    return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part, xp)
+    return _lifetime(shape, n0, p0, dn, auger, number(radiative_coefficient), part, xp)
 
 
 @derivatives_of(richter)
@@ -247,7 +248,7 @@ def richter_derivatives(
             * xp.where(dn > 0, injection / dn, zeros_like(xp, injection) + math.inf),
         }
     return _lifetime_derivatives(
-        xp, shape, n0, p0, dn, auger, float(radiative_coefficient), d_auger, {}, part
+        xp, shape, n0, p0, dn, auger, number(radiative_coefficient), d_auger, {}, part
     )
 
 
@@ -305,7 +306,7 @@ def kerr_cuevas(
     auger = electron_coefficient * _power(xp, n0, electron_exponent)
     auger = auger + hole_coefficient * _power(xp, p0, hole_exponent)
     auger = auger + injection_coefficient * _power(xp, dn, injection_exponent)
-    return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part, xp)
+    return _lifetime(shape, n0, p0, dn, auger, number(radiative_coefficient), part, xp)
 
 
 @derivatives_of(kerr_cuevas)
@@ -346,7 +347,7 @@ def kerr_cuevas_derivatives(
             * _power(xp, dn, injection_exponent - 1.0),
         }
     return _lifetime_derivatives(
-        xp, shape, n0, p0, dn, auger, float(radiative_coefficient), d_auger, {}, part
+        xp, shape, n0, p0, dn, auger, number(radiative_coefficient), d_auger, {}, part
     )
 
 

@@ -10,6 +10,7 @@ file says which one it holds.
 
 import numpy as np
 
+from ._coefficients import is_dual, number
 from ._spec import derivatives_of, kernel
 from ._xp import asfloat, namespace, zeros_like
 
@@ -34,8 +35,10 @@ def constant(temperature, *, coefficient):
     """
     xp = namespace(temperature)
     if xp is np:
+        if is_dual(coefficient):
+            return coefficient + np.zeros(np.shape(temperature))
         return np.full(np.shape(temperature), float(coefficient))
-    return zeros_like(xp, asfloat(xp, temperature)) + float(coefficient)
+    return zeros_like(xp, asfloat(xp, temperature)) + number(coefficient)
 
 
 constant.unblocked = True  # fills its output and nothing else: no blocks needed

@@ -164,7 +164,9 @@ class BoundKernel:
                 )
         return arguments, options
 
-    def __call__(self, *args, out=None, **kwargs):
+    def __call__(self, *args, out=None, uncertainty=False, **kwargs):
+        if uncertainty is not False:
+            return self._uncertain(args, out, uncertainty, kwargs)
         if not kwargs and len(args) == len(self._names):  # the common call: positional
             arguments, options = dict(zip(self._names, args, strict=False)), {}
             if self._optional and any(v is None for v in args):
@@ -180,6 +182,24 @@ class BoundKernel:
                 )
             return self._function(**arguments, **options)
         return evaluate(self._function, arguments, out=out, **options)
+
+    def _uncertain(self, args, out, uncertainty, kwargs):
+        """``kernel(..., uncertainty=True[, samples=, seed=, uncertainty_method=])``:
+        value and standard uncertainty (see matprops.material.uncertainty)."""
+        from .uncertainty import kernel_answer
+
+        if uncertainty is not True:
+            raise InputError("uncertainty", "True or False", repr(uncertainty))
+        if out is not None:
+            raise TypeError("out= is not supported with uncertainty=True")
+        settings = {k: kwargs.pop(k) for k in ("samples", "seed") if k in kwargs}
+        how = kwargs.pop("uncertainty_method", "auto")
+        arguments, options = self._arguments(args, kwargs)
+        if options:
+            raise TypeError(f"options {sorted(options)} are not supported with uncertainty=True")
+        if not self.array_api:
+            self._refuse_foreign(arguments)
+        return kernel_answer(self, arguments, how=how, **settings)
 
     def _refuse_foreign(self, arguments):
         for name, value in arguments.items():

@@ -356,3 +356,14 @@ def models(quantity: str | None = None, catalogues: Sequence[str | os.PathLike] 
     if quantity is None:
         return {q: catalog.model_ids(q) for q in catalog.quantities()}
     return catalog.model_ids(quantity)
+
+
+def _give_uncertainty():
+    """Every public method answers uncertainty=True (see matprops.material.uncertainty)."""
+    from .uncertainty import public_methods, with_uncertainty
+
+    for method_name in public_methods():
+        setattr(Silicon, method_name, with_uncertainty(getattr(Silicon, method_name)))
+
+
+_give_uncertainty()

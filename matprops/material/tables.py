@@ -514,6 +514,9 @@ def table(
     *,
     chunks=None,
     progress: Callable[[int, int], None] | None = None,
+    uncertainty: bool = False,
+    samples: int | None = None,
+    seed: int = 0,
     **axes,
 ):
     """Evaluate quantities of ``si`` on a grid -> :class:`xarray.Dataset`.
@@ -534,6 +537,12 @@ def table(
         checked now, on the grid's extremes; values are computed by dask).
     progress : callable(done_points, total_points), optional
         Called as blocks of a large grid are evaluated (the command line draws a bar).
+    uncertainty : bool
+        Add ``<variable>_uncertainty`` (standard uncertainty from the sources' stated
+        coefficient uncertainties; NaN where none is stated) and
+        ``<variable>_model_spread`` (over the catalogue's models valid at each point),
+        linked by CF ``ancillary_variables``; ``samples`` and ``seed`` of Monte Carlo
+        draws (see :mod:`matprops.material.uncertainty`). Not with ``chunks``.
 
     Returns
     -------
@@ -584,6 +593,12 @@ def table(
                 },
             )
     data = xr.Dataset(variables, coords=grid.coords())
+    if uncertainty:
+        if chunks is not None:
+            raise InputError("uncertainty", "used without chunks= (an eager table)", True)
+        from .uncertainty import table_figures
+
+        data = table_figures(si, data, entries, grid, _call_block, samples=samples, seed=seed)
     names = [e.name for e in entries]
     data.attrs.update(
         {
@@ -595,7 +610,8 @@ def table(
                 quantities=list(dict.fromkeys(q for e in entries for q in e.model_quantities())),
             ),
             "history": f"matprops {__version__}: si.table({names!r}, {grid.describe()}"
-            f"{f', chunks={chunks!r}' if chunks is not None else ''})",
+            f"{f', chunks={chunks!r}' if chunks is not None else ''}"
+            f"{', uncertainty=True' if uncertainty else ''})",
             "release": si.release.id,
             "release_status": si.release.status,
             "comment": "Model estimates; for decisions with consequences defer to measured "

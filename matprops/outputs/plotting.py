@@ -159,7 +159,11 @@ def plot(
     names = (
         list(variables)
         if variables
-        else [n for n in data.data_vars if not n.endswith("spread") and x in data[n].dims]
+        else [
+            n
+            for n in data.data_vars
+            if not n.endswith(("spread", "_uncertainty")) and x in data[n].dims
+        ]
     )
     for name in names:
         if name not in data.data_vars:
@@ -197,7 +201,14 @@ def plot(
             ys = selection.transpose(x).values
             if name in spreads:
                 ys = 100 * ys
-            ax.plot(xs, ys, label=label or None, linewidth=1.4)
+            (line,) = ax.plot(xs, ys, label=label or None, linewidth=1.4)
+            band = f"{name}_uncertainty"
+            if band in data and name not in spreads:  # value +- standard uncertainty (k = 1)
+                sigma = data[band].isel(
+                    {d: i for d, i in zip(others, combo, strict=True) if d in data[band].dims}
+                )
+                sigma = np.broadcast_to(sigma.values, ys.shape)
+                ax.fill_between(xs, ys - sigma, ys + sigma, color=line.get_color(), alpha=0.2)
         if name in spreads:
             ax.set_ylabel("spread across\nmodels [%]")
         else:
