@@ -620,6 +620,15 @@ def _overlay(root: Path, below: Catalog, record: SealRecord) -> Overlay:
         return overlay
 
 
+def _forget_all(root: Path | str) -> None:
+    """Drop the shared catalogues of an overlay folder, as in a fresh process (after the
+    folder was changed by hand: tests, or a tool that rewrote it)."""
+    root = Path(os.path.abspath(Path(root)))
+    with _LOCK:
+        for key in [k for k in _OVERLAYS if k[0] == root]:
+            del _OVERLAYS[key]
+
+
 def catalog_at(
     root: Path | str | None = None,
     overlays: Sequence[Path | str] = (),
