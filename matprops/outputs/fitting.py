@@ -598,11 +598,11 @@ def fit(
     if scaled:
         covariance = covariance * chi2 / dof
     values = u * scale
+    # at a bound within 1e-8 of the coefficient's own scale (its starting value)
     at_bound = tuple(
         e
-        for e, v, lo, hi in zip(elements, values, low, high, strict=True)
-        if (np.isfinite(lo) and abs(v - lo) <= 1e-9 * max(abs(lo), 1e-300))
-        or (np.isfinite(hi) and abs(v - hi) <= 1e-9 * max(abs(hi), 1e-300))
+        for e, v, lo, hi in zip(elements, u, low / scale, high / scale, strict=True)
+        if abs(v - lo) <= 1e-8 or abs(v - hi) <= 1e-8
     )
     return Fit(
         quantity=quantity,
