@@ -470,3 +470,21 @@ def test_a_refusal_crosses_back_as_its_error():
         clone.band_gap(300)
     assert errors.refused(lambda a: a + 1, 1) == 2
     assert errors.refused(lambda a: a + 1, clone) is clone
+
+
+def test_the_check_command_checks_an_overlay(small_lab, capsys):
+    from matprops.catalogue.__main__ import main
+
+    root, seals = small_lab
+    assert main(["--catalogue", str(root), "--seals", str(seals)]) == 0
+    assert "all 3 dataset files verified" in capsys.readouterr().out
+    (root / "measurements" / "later.csv").write_text("temperature [K]\n300\n")
+    (root / "defects").mkdir()
+    assert main(["--catalogue", str(root), "--seals", str(seals)]) == 1
+    out = capsys.readouterr().out
+    assert "later.csv: not listed in checksums.sha256" in out
+    assert "an overlay catalogue's defects are not read" in out
+    overlays._forget_all(root)
+    assert main(["--catalogue", str(root), "--update-checksums", "--seals", str(seals)]) == 1
+    out = capsys.readouterr().out
+    assert "not listed" not in out and "defects are not read" in out
