@@ -473,11 +473,17 @@ class Model:
         """Warn (or raise, if strict) when [low, high] leaves the validity range."""
         rng = self.validity.get(argument)
         if rng is not None and (low < rng.low or high > rng.high):
-            consequence = (
-                "the value is NaN where its table has no data and unvalidated elsewhere"
-                if self.kind == "table"
-                else "the value is an extrapolation"
-            )
+            if argument in getattr(self.kernel.spec, "nan_outside", ()):
+                consequence = (
+                    "the value is NaN there (its coefficients were published only inside "
+                    "this range; nothing is extrapolated)"
+                )
+            elif self.kind == "table":
+                consequence = (
+                    "the value is NaN where its table has no data and unvalidated elsewhere"
+                )
+            else:
+                consequence = "the value is an extrapolation"
             message = (
                 f"model {self.quantity}/{self.id}: {argument} "
                 f"{_span(low, high)} {rng.units} is outside its validity range "

@@ -7,7 +7,14 @@ each family of methods declares its quantities.
 
 from __future__ import annotations
 
-from . import carriers, crystal, optical, recombination, transport  # noqa: F401 (declarations)
+from . import (  # noqa: F401 (declarations)
+    carriers,
+    crystal,
+    optical,
+    recombination,
+    thermal,
+    transport,
+)
 from .registry import REGISTRY
 
 __all__ = ["DERIVED"]

@@ -32,13 +32,19 @@ from .derived import DERIVED
 from .optical import OpticalMethods
 from .recombination import RecombinationMethods
 from .registry import REGISTRY
+from .thermal import ThermalMethods
 from .transport import TransportMethods
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 
 class Silicon(
-    CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods, RecombinationMethods
+    CarrierMethods,
+    CrystalMethods,
+    OpticalMethods,
+    TransportMethods,
+    RecombinationMethods,
+    ThermalMethods,
 ):
     """Crystalline silicon as described by one release of matprops.
 
