@@ -155,8 +155,7 @@ class Overlay(Catalog):
     def __reduce__(self):
         # the folder, the digest of its checksum list and the seals it trusts: a worker
         # reads its own copy of the folder and refuses one that differs
-        seals = {(self.name, r): d for r, d in self.seals.items()}
-        return _overlay_from, (str(self.root), self.digest, self.below, seals)
+        return _overlay_from, (key_of(self),)
 
     @property
     def base(self) -> Overlay:
@@ -661,8 +660,32 @@ def catalogues_from_environment() -> list[str]:
     return [os.path.abspath(os.path.expanduser(p)) for p in value.split(os.pathsep) if p.strip()]
 
 
-def _overlay_from(root: str, digest: str, below, seals) -> Overlay:
-    return refused(_rebuild_overlay, root, digest, below, seals)
+def key_of(catalog) -> tuple | None:
+    """A catalogue as plain data, the same in every process that holds the same data:
+    ``None`` for the installed one, ``("datasets", folder)``, or for an overlay
+    ``("overlay", folder, digest of its checksum list, name, its seals, key below)``.
+    :func:`from_key` rebuilds it (and refuses an overlay whose files differ)."""
+    from .store import default_catalog
+
+    if isinstance(catalog, Overlay):
+        seals = tuple(sorted(catalog.seals.items()))
+        return ("overlay", str(catalog.root), catalog.digest, catalog.name, seals,
+                key_of(catalog.below))  # fmt: skip
+    if catalog is default_catalog():
+        return None
+    return ("datasets", str(catalog.root))
+
+
+def from_key(key: tuple | None) -> Catalog:
+    """The shared catalogue a :func:`key_of` key describes, in this process."""
+    if key is None or key[0] == "datasets":
+        return _shipped_at(None if key is None else key[1])
+    _, root, digest, name, seals, below = key
+    return _rebuild_overlay(root, digest, from_key(below), {(name, r): d for r, d in seals})
+
+
+def _overlay_from(key) -> Overlay:
+    return refused(from_key, key)
 
 
 def _rebuild_overlay(root, digest, below, seals) -> Overlay:

@@ -408,16 +408,22 @@ def _convert(values, unit, target):
 
 @functools.lru_cache(maxsize=8)
 def _rebuild(recipe):
-    """A material from its recipe (class, release, overrides, strictness, catalogue),
-    once per process: dask workers rebuild it instead of unpickling a bound one. (The
-    catalogue crosses as its folders and digests: the shared one of this process.)"""
-    material, catalog, release, overrides, strict = recipe
+    """A material from its recipe (class, release, overrides, strictness, catalogue
+    key), once per process: dask workers rebuild it instead of unpickling a bound one.
+    (The catalogue crosses as its folders and digests, plain data with a deterministic
+    repr: the shared one of this process.)"""
+    from ..catalogue.overlay import from_key
+
+    material, key, release, overrides, strict = recipe
+    catalog = from_key(key)  # an overlay whose files differ here is refused (an error)
     return material(release=release, models=dict(overrides), strict=strict, catalog=catalog)
 
 
 def _recipe(si):
+    from ..catalogue.overlay import key_of
+
     overrides = tuple(sorted((q, m) for q, m in si.models.items() if q in si.overridden))
-    return (type(si), si.catalog.base, si.release.id, overrides, si.strict)
+    return (type(si), key_of(si.catalog.base), si.release.id, overrides, si.strict)
 
 
 class _BlockFunction:
