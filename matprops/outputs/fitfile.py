@@ -65,7 +65,7 @@ def write(
     overwrite: bool = False,
 ) -> Path:
     """Write the fitted model into an overlay catalogue (a folder, see
-    :mod:`matprops.catalogue.overlay`): the data as ``measurements/<model_id>.csv``
+    :mod:`matprops.catalogue.overlay`): the data as ``measurements/<quantity>-<model_id>.csv``
     and the model file ``models/<quantity>/<model_id>.toml``, then re-record the
     catalogue's checksums and load the new file once through it (schema, units,
     conventions); on any failure the catalogue is left as it was. Returns the model
@@ -140,7 +140,7 @@ def model_file(
         raise InputError("model_id", "a lower-case 'name-year' id", repr(model_id))
     parent = fit.parent
     raw = tomllib.loads(parent.catalogue.verified_bytes(parent.path).decode())
-    data_name = f"{model_id}{fit.measurements.suffix}"
+    data_name = f"{fit.quantity}-{model_id}{fit.measurements.suffix}"
     record = _source_record(source, data_name, fit.measurements.sha256)
     free = ", ".join(fit.free)
     m = fit.measurements

@@ -277,7 +277,7 @@ class Fit:
             title or f"{self.quantity}: {self.base.id} refitted ({', '.join(self.free)} free)",
             fontsize=10,
         )
-        bottom.axhspan(-2, 2, color="0.92")
+        bottom.axhspan(-2, 2, color="0.92", label="+-2 sigma")
         bottom.axhline(0, color="0.5", lw=0.8)
         base_residuals = (m.values - self.evaluate_base(**m.inputs)) / m.uncertainty
         bottom.plot(x, base_residuals, "^", ms=3, mfc="none", color="C1", label=self.base.id)
@@ -311,7 +311,7 @@ class Fit:
         overwrite: bool = False,
     ) -> Path:
         """Write the fitted model into an overlay catalogue (a folder, see
-        :mod:`matprops.catalogue.overlay`): the data as ``measurements/<model_id>.csv``
+        :mod:`matprops.catalogue.overlay`): the data as ``measurements/<quantity>-<model_id>.csv``
         and the model file ``models/<quantity>/<model_id>.toml``, then re-record the
         catalogue's checksums and load the new file once through it (schema, units,
         conventions); on any failure the catalogue is left as it was. Returns the

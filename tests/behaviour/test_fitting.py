@@ -243,7 +243,7 @@ def test_a_written_fit_loads_with_its_uncertainties_and_correlations(gap_model, 
     (block,) = model.uncertainty.correlations
     np.testing.assert_allclose(np.array(block.matrix), fit.correlation, atol=1e-15)
     record = model.provenance()
-    assert record["source"]["data"] == "fitlab-2027.csv"
+    assert record["source"]["data"] == "band_gap-fitlab-2027.csv"
     assert record["fitted"]["base_model"] == "band_gap/passler-2002"
     assert record["fitted"]["dof"] == 37 and record["validity"]["temperature"]["min"] == 5.0
     assert record["additional_sources"][0]["doi"] == "10.1103/PhysRevB.66.085201"

@@ -181,7 +181,7 @@ def test_table_and_measurement_names_stay_in_their_folder(small_lab):
 
 def test_a_model_must_cite_the_data_the_catalogue_holds(small_lab):
     root, seals = small_lab
-    data = root / "measurements" / "testlab-2027.csv"
+    data = root / "measurements" / "band_gap-testlab-2027.csv"
     data.write_text(data.read_text() + "# one more line\n")
     overlays._write_checksums_of(root)
     with pytest.raises(matprops.DatasetError, match="cites other data than the catalogue holds"):
@@ -274,7 +274,7 @@ def test_a_final_own_release_reproduces_its_reference_and_is_recorded_outside(la
     assert f"{digest}  test-lab-1  test-lab" in seals.read_text()
     seal = json.loads((root / "releases" / "test-lab-1.seal.json").read_text())
     assert seal["base"] == "2026.1" and seal["models"]["band_gap"] == "testlab-2027"
-    assert "measurements/testlab-2027.csv" in seal["files"]
+    assert "measurements/band_gap-testlab-2027.csv" in seal["files"]
     assert not any(path.startswith("..") for path in seal["files"])
     with pytest.raises(matprops.ReleaseFrozenError, match="final already"):
         reference.freeze("test-lab-1", catalog)
