@@ -37,6 +37,7 @@ from ..errors import (
     UnitError,
     ValidityWarning,
 )
+from . import own
 
 __all__ = ["main", "parse_grid"]
 
@@ -239,7 +240,9 @@ def _silicon(args):
         if not sep:
             raise InputError("--model", "QUANTITY=MODEL_ID", repr(item))
         overrides[quantity.strip()] = model_id.strip()
-    return Silicon(release=args.release, models=overrides, strict=args.strict)
+    return Silicon(
+        release=args.release, models=overrides, strict=args.strict, catalog=own.catalogue(args)
+    )
 
 
 def _grid(args) -> dict:
@@ -498,9 +501,29 @@ def _provenance_text(record: dict, indent: str = "") -> list[str]:
             )
         )
     lines.append(_wrap(f"obtained: {record.get('obtained', '?')}", indent + "  "))
-    if "file" in record:
+    fitted = record.get("fitted")
+    if fitted:
         lines.append(
-            f"{indent}  file: datasets/{record['file']} (sha256 {record.get('sha256', '')[:12]}...)"
+            _wrap(
+                f"fitted: {', '.join(fitted['free'])} free, to {fitted['points']} points; chi2 "
+                f"{fitted['chi2']:.4g} for {fitted['dof']} degrees of freedom; base model "
+                f"{fitted['base_model']}",
+                indent + "  ",
+            )
+        )
+    if "file" in record:
+        where = record.get("catalogue") or {}
+        folder = "datasets"
+        if where.get("name", "matprops") != "matprops":  # an overlay catalogue
+            lines.append(
+                _wrap(
+                    f"catalogue: {where['name']} ({where['description']}), {where['path']}",
+                    indent + "  ",
+                )
+            )
+            folder = where["path"]
+        lines.append(
+            f"{indent}  file: {folder}/{record['file']} (sha256 {record.get('sha256', '')[:12]}...)"
         )
     for part in record.get("components", {}).values():
         lines += _provenance_text(part, indent + "  ")
@@ -514,6 +537,12 @@ def _cmd_provenance(args):
         return
     lines = _provenance_text(record)
     status = f"release {record['release']} ({record['release_status']})"
+    if record.get("release_base"):  # an own release of an overlay catalogue
+        owner = record.get("release_catalogue", {}).get("name", "?")
+        status = (
+            f"release {record['release']} ({record['release_status']}, catalogue {owner}, on "
+            f"{record['release_base']}; this model chosen by {record['release_choice_from']})"
+        )
     if record.get("overridden"):
         status += f"; overridden with --model (the release chose {record['release_choice']})"
     lines.append(status)
@@ -763,23 +792,20 @@ def _cmd_demo(args):
 
 
 def _cmd_models(args):
-    from ..catalogue.store import default_catalog
-    from ..material.silicon import models
-
     _catalog()
-    catalog = models(args.quantity) if args.quantity else models()
-    if args.quantity:
-        catalog = {args.quantity: catalog}
-    for quantity, ids in catalog.items():
+    catalog = own.catalogue(args)
+    quantities = [args.quantity] if args.quantity else catalog.quantities()
+    for quantity in quantities:
         print(f"{quantity}:")
-        for model_id in ids:
-            model = default_catalog().model(quantity, model_id)
+        for model_id in catalog.model_ids(quantity):
+            model = catalog.model(quantity, model_id)
             ranges = ", ".join(str(r) for r in model.validity.values()) or "no limits"
             print(_wrap(f"{model_id:22s} {model.name} [{ranges}]", "  "))
 
 
 def _cmd_releases(args):
-    catalog = _catalog()
+    _catalog()
+    catalog = own.catalogue(args)
     for release_id in catalog.release_ids():
         release = catalog.release(release_id)
         print(f"{release_id} ({release.status}, {release.date})")
@@ -824,6 +850,7 @@ def build_parser() -> argparse.ArgumentParser:
         action="store_true",
         help="fail instead of warning outside a model's validity range",
     )
+    own.add_options(material)  # --catalogue, --seals
 
     grid = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
     group = grid.add_argument_group("grid (" + _GRID_HELP + ")")
@@ -956,10 +983,13 @@ def build_parser() -> argparse.ArgumentParser:
 
     listing = commands.add_parser("models", help="list models, per quantity")
     listing.add_argument("quantity", nargs="?")
+    own.add_options(listing)
     listing.set_defaults(run=_cmd_models)
 
     rel = commands.add_parser("releases", help="list releases and their model choices")
+    own.add_options(rel)
     rel.set_defaults(run=_cmd_releases)
+    own.add_commands(commands)  # fit, catalogue, release
 
     cite = commands.add_parser("cite", parents=[material], help="references of the models in use")
     cite.add_argument("--format", choices=["bibtex", "text"], default="bibtex")
