@@ -488,3 +488,38 @@ def test_the_check_command_checks_an_overlay(small_lab, capsys):
     assert main(["--catalogue", str(root), "--update-checksums", "--seals", str(seals)]) == 1
     out = capsys.readouterr().out
     assert "not listed" not in out and "defects are not read" in out
+
+
+def test_an_overlay_model_reads_its_own_table_and_no_other_folders(small_lab):
+    root, seals = small_lab
+    shipped = matprops.silicon().catalog.root
+    (root / "tables").mkdir()
+    shutil.copyfile(shipped / "tables" / "green-2008.nc", root / "tables" / "ourlab-optics.nc")
+    text = (shipped / "models" / "absorption" / "green-2008.toml").read_text()
+    own = text.replace('id = "green-2008"', 'id = "testlab-2027"').replace(
+        'table = "green-2008.nc"', 'table = "ourlab-optics.nc"'
+    )
+    (root / "models" / "absorption").mkdir()
+    (root / "models" / "absorption" / "testlab-2027.toml").write_text(own)
+    overlays._write_checksums_of(root)
+    si = matprops.silicon(models={"absorption": "testlab-2027"}, catalogues=[root], seals=seals)
+    shipped_si = matprops.silicon(models={"absorption": "green-2008"})
+    assert si.absorption(800, 300) == shipped_si.absorption(800, 300)
+    assert si.provenance("absorption")["tables"] == ["tables/ourlab-optics.nc"]
+    # a table name that leaves the folder is refused
+    (root / "models" / "absorption" / "testlab-2027.toml").write_text(
+        own.replace('table = "ourlab-optics.nc"', 'table = "../measurements/x.nc"')
+    )
+    overlays._write_checksums_of(root)
+    overlays._forget_all(root)
+    refused = matprops.silicon(
+        models={"absorption": "testlab-2027"}, catalogues=[root], seals=seals
+    )
+    with pytest.raises(matprops.DatasetError, match="must be a file name inside its folder"):
+        refused.absorption(800, 300)
+    # a table of the shipped data may not be redefined
+    shutil.copyfile(shipped / "tables" / "green-2008.nc", root / "tables" / "green-2008.nc")
+    overlays._write_checksums_of(root)
+    overlays._forget_all(root)
+    with pytest.raises(matprops.DatasetError, match="redefines table"):
+        catalog_at(None, [root], seals)
