@@ -174,46 +174,40 @@ class ValidityWarning(UserWarning):
     """
 
 
-class Refusal:
-    """What unpickling gives in place of an object the receiving process refused to
-    rebuild (its data differ from the sender's, a file fails its checksum ...).
+class Unusable:
+    """Stands for an object that could not be rebuilt in this process: a material, a
+    model, a kernel or a release unpickled where the data differ from those it was
+    pickled with (or cannot be read). Every use raises the error that prevented it.
 
-    Raising while unpickling would hang a process pool or a dask cluster: the worker
-    dies before it can answer, and the caller waits forever. So the refusal is kept
-    and raised when the object is used (called, or a method of it called): the error
-    then travels back to the caller as the task's own error. Whatever is rebuilt from
-    a refusal is that refusal.
+    An exception raised *while unpickling* never reaches the sender: a process pool's
+    worker dies with the task (the pool waits for it forever) and a dask client hangs.
+    So unpickling never raises; the error waits for the first use, an ordinary call
+    whose exception a pool or a dask worker sends back to the client. Methods of the
+    object stood for are returned as functions that raise (``getattr(material,
+    "band_gap")`` is how a bound method unpickles); other attributes raise at once.
     """
 
-    __slots__ = ("error",)
+    def __init__(self, error: BaseException, stands_for: type):
+        self.error, self.stands_for = error, stands_for
 
-    def __init__(self, error: Error):
-        self.error = error
-
-    def __getattr__(self, name):
-        if name.startswith("__") and name.endswith("__"):
-            raise AttributeError(name)
-        return self  # ``si.band_gap`` of a refused material: refused when called
+    def _raise(self, *args, **kwargs):
+        raise self.error.with_traceback(None)
 
     def __call__(self, *args, **kwargs):
-        raise self.error
+        self._raise()
+
+    def __getattr__(self, name):
+        if name.startswith("__") or name in ("error", "stands_for"):
+            raise AttributeError(name)
+        if callable(getattr(self.stands_for, name, None)):
+            return self._raise
+        self._raise()
 
     def __reduce__(self):
-        return Refusal, (self.error,)
+        return Unusable, (self.error, self.stands_for)
 
     def __repr__(self) -> str:
-        return f"<refused: {self.error}>"
-
-
-def refused(rebuild, *args):
-    """``rebuild(*args)``, or a :class:`Refusal` holding the matprops error it raised
-    (for the functions that unpickling calls)."""
-    if any(isinstance(a, Refusal) for a in args):
-        return next(a for a in args if isinstance(a, Refusal))
-    try:
-        return rebuild(*args)
-    except Error as exc:
-        return Refusal(exc)
+        return f"<unusable {self.stands_for.__name__}: {self.error}>"
 
 
 _PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))

@@ -40,6 +40,7 @@ from pathlib import Path
 from typing import Any, Protocol
 
 from ..errors import DatasetError, FinalityError
+from .files import forget, read_limited, temporary_for
 
 __all__ = [
     "FINAL_SEALS",
@@ -90,12 +91,12 @@ def read_seal(
     seals = FINAL_SEALS if seals is None else seals
     path = seal_path(catalogue, release_id)
     try:
-        data = path.read_bytes()
-    except OSError as exc:
+        data = read_limited(path)  # (a regular file, its size checked before reading)
+    except DatasetError as exc:
         raise FinalityError(
             path,
             f"release {release_id} is final (its seal is recorded in {where}), but its "
-            f"seal file cannot be read ({exc.strerror or exc})",
+            f"seal file cannot be read ({exc.problem})",
         ) from exc
     digest = hashlib.sha256(data).hexdigest()
     if digest != seals[release_id]:
@@ -260,7 +261,11 @@ class SealRecord:
         )
         if text and not text.endswith("\n"):
             text += "\n"
-        tmp = self.path.with_name(f".{self.path.name}.tmp-{os.getpid()}")
-        tmp.write_text(text + f"{digest}  {release}  {name}\n")
-        os.replace(tmp, self.path)
+        tmp = temporary_for(self.path)  # (removed by an interrupted application)
+        try:
+            tmp.write_text(text + f"{digest}  {release}  {name}\n")
+            os.replace(tmp, self.path)
+        finally:
+            tmp.unlink(missing_ok=True)
+            forget(tmp)
         return self.path

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import os
 import re
+import shutil
 from collections.abc import Mapping
 from pathlib import Path
 
@@ -84,6 +85,25 @@ def create(
         (root / sub).mkdir(exist_ok=True)
     _write_checksums_of(root)
     return root
+
+
+MEASUREMENT_NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]*\.(csv|nc|json|txt)$")
+
+
+def named(folder: Path, name: str, kind: str) -> Path:
+    """The file ``name`` of ``folder`` (a table or measurement an overlay's file names):
+    a plain file name that stays inside the folder, or a DatasetError."""
+    from .files import confined
+    from .store import TABLE_NAME
+
+    pattern = TABLE_NAME if kind == "table" else MEASUREMENT_NAME
+    if not isinstance(name, str) or not pattern.match(name):
+        raise DatasetError(
+            folder / str(name),
+            f"a {kind} is named by its file name in its folder (letters, digits, '-', '_', "
+            "'.'; no folders): refusing to read it",
+        )
+    return confined(folder / name, folder)
 
 
 def overlay_files(root: Path) -> list[str]:
@@ -222,9 +242,16 @@ def archive_own(overlay, release) -> Path:
     for name, owner in sorted(tables, key=lambda t: t[0]):
         path = owner.table_path(name)
         copies[target / "tables" / name] = overlay.verified_bytes(path)
-    for destination, data in copies.items():
-        destination.parent.mkdir(parents=True, exist_ok=True)
-        destination.write_bytes(data)
+    # written into a hidden folder and renamed: an interrupted freeze leaves no half archive
+    staging = target.with_name(f".{target.name}.tmp-{os.getpid()}")
+    try:
+        for destination, data in copies.items():
+            path = staging / destination.relative_to(target)
+            path.parent.mkdir(parents=True, exist_ok=True)
+            path.write_bytes(data)
+        os.replace(staging, target)
+    finally:
+        shutil.rmtree(staging, ignore_errors=True)
     return target
 
 

@@ -11,8 +11,10 @@ dopant densities, ...) are validated here.
 from __future__ import annotations
 
 import functools
+import os
 import re
 import threading
+import weakref
 from collections.abc import Mapping
 from pathlib import Path
 from types import MappingProxyType
@@ -709,6 +711,19 @@ def _fitted_section(path, entry, catalog) -> dict:
     return record
 
 
+# every table function, so that a forked child can give each a fresh lock: a lock held
+# by another thread at the fork would never be released in the child
+_TABLE_FUNCTIONS: weakref.WeakSet = weakref.WeakSet()
+
+
+def _after_fork_in_child() -> None:
+    for function in list(_TABLE_FUNCTIONS):
+        function._lock = threading.Lock()
+
+
+os.register_at_fork(after_in_child=_after_fork_in_child)
+
+
 class _TableFunction:
     """A table kernel whose arrays are read (and checked) on first call.
 
@@ -722,6 +737,7 @@ class _TableFunction:
         self._table, self._arguments, self._bound = table, table_arguments, bound
         self._function = None
         self._lock = threading.Lock()
+        _TABLE_FUNCTIONS.add(self)
 
     def _load(self):
         with self._lock:  # the first callers wait for one load; later calls take no lock

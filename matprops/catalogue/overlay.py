@@ -49,10 +49,11 @@ from types import MappingProxyType
 
 from ..errors import (
     DatasetError,
+    Error,
     UnknownModelError,
     UnknownQuantityError,
     UnknownReleaseError,
-    refused,
+    Unusable,
 )
 from . import finality
 from .finality import SealRecord
@@ -66,6 +67,7 @@ from .folders import (  # the folder's layout and its writers, re-exported here
     check_unchanged,
     create,
     forget,
+    named,
     overlay_files,
     seal_own,
     write_release,
@@ -77,7 +79,6 @@ from .store import (
     RELEASE_ID,
     Catalog,
     _parse_toml,
-    confined,
     parse_checksums,
 )
 from .store import catalog_at as _shipped_at
@@ -94,6 +95,8 @@ __all__ = [
     "catalogues_from_environment",
     "check_unchanged",
     "create",
+    "file_label",
+    "file_of_label",
     "forget",
     "from_key",
     "key_of",
@@ -197,6 +200,16 @@ class Overlay(Catalog):
             return super().verified_bytes(path)
         return self.below.verified_bytes(path)
 
+    def recorded(self, path: Path) -> str:
+        return super().recorded(path) if self.owns(path) else self.below.recorded(path)
+
+    def layer_of(self, path: Path):
+        """The catalogue (this overlay or one below) whose folder holds ``path``."""
+        for layer in _layers(self):
+            if Path(path).is_relative_to(layer.root):
+                return layer
+        return None
+
     def data_files(self) -> list[str]:
         return overlay_files(self.root)
 
@@ -247,7 +260,8 @@ class Overlay(Catalog):
         source = model.source
         if source.type != "measurement" or not source.data:
             return
-        relative = f"{MEASUREMENTS}/{confined(source.data, 'measurement')}"
+        named(self.root / MEASUREMENTS, source.data, "measurement")
+        relative = f"{MEASUREMENTS}/{source.data}"
         recorded = self.checksums().get(relative)
         if recorded is None:
             raise DatasetError(
@@ -264,11 +278,11 @@ class Overlay(Catalog):
 
     def measurement_path(self, name: str) -> Path:
         """A measurement file of this catalogue (the name cannot leave the folder)."""
-        return self.root / MEASUREMENTS / confined(name, "measurement")
+        return named(self.root / MEASUREMENTS, name, "measurement")
 
     # -- tables and other data
     def table_path(self, name: str) -> Path:
-        own = self.root / "tables" / confined(name, "table")
+        own = named(self.root / "tables", name, "table")
         return own if own.is_file() else self.below.table_path(name)
 
     def data_folder(self, name: str) -> Path:
@@ -516,7 +530,7 @@ class OverlayView(_View):
         return self.lower.data_folder(name)
 
     def table_path(self, name: str) -> Path:
-        own = self.overlay.root / "tables" / confined(name, "table")
+        own = named(self.overlay.root / "tables", name, "table")
         return own if own.is_file() else self.lower.table_path(name)
 
 
@@ -558,12 +572,17 @@ class OwnReleaseView(_View):
         return archived if archived.is_dir() else self.overlay.data_folder(name)
 
     def table_path(self, name: str) -> Path:
-        archived = self.archive / "tables" / confined(name, "table")
+        archived = named(self.archive / "tables", name, "table")
         return archived if archived.is_file() else self.overlay.table_path(name)
 
 
 def _overlay_view(overlay: Overlay, release_id: str):
-    return refused(lambda o: o.for_release(o.release(release_id)), overlay)
+    if isinstance(overlay, Unusable):
+        return Unusable(overlay.error, OverlayView)
+    try:
+        return overlay.for_release(overlay.release(release_id))
+    except Error as exc:  # (never raise while unpickling: see errors.Unusable)
+        return Unusable(exc, OverlayView)
 
 
 def _layers(catalog) -> Iterable[Catalog]:
@@ -691,8 +710,32 @@ def from_key(key: tuple | None) -> Catalog:
     return _rebuild_overlay(root, digest, from_key(below), {(name, r): d for r, d in seals})
 
 
-def _overlay_from(key) -> Overlay:
-    return refused(from_key, key)
+def _overlay_from(key) -> Overlay | Unusable:
+    try:
+        return from_key(key)
+    except Error as exc:  # (never raise while unpickling: see errors.Unusable)
+        return Unusable(exc, Overlay)
+
+
+def file_label(catalog, path: Path) -> str:
+    """A data file as the digests of a pickled material name it: its path relative to
+    the shipped folder, or ``<catalogue name>:<path>`` in an overlay."""
+    layer = catalog.layer_of(path) if isinstance(catalog, Overlay) else catalog
+    if layer is None:
+        return str(path)
+    relative = Path(path).relative_to(layer.root).as_posix()
+    return f"{layer.name}:{relative}" if isinstance(layer, Overlay) else relative
+
+
+def file_of_label(catalog, label: str) -> Path:
+    """The file a :func:`file_label` names, in this process."""
+    name, sep, relative = label.partition(":")
+    for layer in _layers(catalog):
+        if sep and isinstance(layer, Overlay) and layer.name == name:
+            return layer.root / relative
+        if not sep and not isinstance(layer, Overlay):
+            return layer.root / label
+    return Path(label)
 
 
 def _rebuild_overlay(root, digest, below, seals) -> Overlay:

@@ -27,15 +27,14 @@ import shlex
 import sys
 import textwrap
 import tomllib
-import warnings
 
 import numpy as np
 
+from ..catalogue.files import interruptible
 from ..errors import (
     Error,
     InputError,
     UnitError,
-    ValidityWarning,
 )
 from . import own
 
@@ -166,6 +165,13 @@ def _cli_message(text: str) -> str:
     ):
         text = text.replace(f"argument {argument!r}", f"option {option}")
     text = text.replace("argument 'quantities'", "the QUANTITY arguments")
+    text = text.replace("argument 'grid' must be", "the grid must hold")
+    text = text.replace(
+        "(max_values=None, or --allow-large on the command line, goes", "(--allow-large goes"
+    )
+    text = text.replace(
+        "; chunks= makes a lazy table)", "; --chunks N with -o FILE.nc writes a lazy table)"
+    )
     text = text.replace("(--force, or overwrite=True, replaces it)", "(--force replaces it)")
     text = re.sub(r"\(?models=\{'(\w+)': '([\w.-]+)'\}\)?", r"(--model \1=\2)", text)
     text = text.replace("strict=True", "--strict")
@@ -240,9 +246,19 @@ def _silicon(args):
         if not sep:
             raise InputError("--model", "QUANTITY=MODEL_ID", repr(item))
         overrides[quantity.strip()] = model_id.strip()
-    return Silicon(
+    si = Silicon(
         release=args.release, models=overrides, strict=args.strict, catalog=own.catalogue(args)
     )
+    # validity messages go straight to stderr (one line each, once): the material
+    # reports them to the command instead of warning, so no warning filter is set
+    si._report = getattr(args, "report", None)
+    return si
+
+
+def _max_values(args):
+    from ..material.tables import MAX_VALUES
+
+    return None if getattr(args, "allow_large", False) else MAX_VALUES
 
 
 def _grid(args) -> dict:
@@ -271,10 +287,49 @@ def _command_line(argv) -> str:
     return "matprops " + shlex.join(argv)
 
 
+#: Output (file or screen) above which the command asks first (or, not run from a
+#: terminal, refuses unless --allow-large).
+LARGE_OUTPUT = 10**9
+
+
+def _confirm_size(args, data) -> None:
+    """Say how large an output will be before writing more than ~1 GB, and ask (on a
+    terminal) or refuse (otherwise) unless --allow-large."""
+    from ..outputs import export
+
+    kind = "text" if not args.output and args.format in (None, "text") else None
+    try:
+        kind = kind or export.format_for(
+            args.output or "-", None if args.format in (None, "text") else args.format
+        )
+    except InputError:
+        return  # (the writer names the problem)
+    size = export.estimate_size(data, kind, layout=args.layout)
+    if size <= LARGE_OUTPUT:
+        return
+    where = args.output or "the screen"
+    shown = f"about {size / 1e9:.3g} GB of {kind} to {where}"
+    if getattr(args, "allow_large", False):
+        print(f"matprops: note: writing {shown}", file=sys.stderr)
+        return
+    if sys.stdin is not None and sys.stdin.isatty():
+        sys.stderr.write(f"matprops: this writes {shown}; continue? [y/N] ")
+        sys.stderr.flush()
+        if sys.stdin.readline().strip().lower() in ("y", "yes"):
+            return
+        raise InputError("--allow-large", "given (or the question answered y)", "no")
+    raise InputError(
+        "--allow-large",
+        f"given to write {shown} (not run from a terminal, so not asked)",
+        "nothing",
+    )
+
+
 def _emit(args, data, footer: str = ""):
     """Write a table to -o, or print it in --format (text by default)."""
     from ..outputs import export
 
+    _confirm_size(args, data)
     if args.output:
         written = export.write(
             data,
@@ -335,7 +390,13 @@ def _cmd_table(args):
             repr(args.chunks),
         )
     try:
-        data = si.table(args.quantities or None, progress=progress, chunks=chunks, **_grid(args))
+        data = si.table(
+            args.quantities or None,
+            progress=progress,
+            chunks=chunks,
+            max_values=_max_values(args),
+            **_grid(args),
+        )
     finally:
         progress.close()
     _note_unused_axes(data)
@@ -361,7 +422,9 @@ def _cmd_compare(args):
     models = [m.strip() for m in args.models.split(",")] if args.models else None
     progress = _Progress()
     try:
-        data = si.compare(args.quantity, models, progress=progress, **_grid(args))
+        data = si.compare(
+            args.quantity, models, progress=progress, max_values=_max_values(args), **_grid(args)
+        )
     finally:
         progress.close()
     footer = "\n".join(
@@ -388,9 +451,9 @@ def _cmd_plot(args):
         models = [m.strip() for m in args.models.split(",")]
         if models == ["all"]:
             models = None
-        data = si.compare(args.quantities[0], models, **grid)
+        data = si.compare(args.quantities[0], models, max_values=_max_values(args), **grid)
     else:
-        data = si.table(args.quantities, **grid)
+        data = si.table(args.quantities, max_values=_max_values(args), **grid)
     plot(data, args.output, x=args.x, format=args.format, overwrite=args.force)
     print(f"wrote {args.output}")
 
@@ -472,14 +535,7 @@ def _provenance_text(record: dict, indent: str = "") -> list[str]:
     lines.append(_wrap(record.get("name", ""), indent + "  "))
     lines.append(_wrap(f"source: {record.get('citation', '?')}", indent + "  "))
     for extra in record.get("additional_sources", []):
-        authors = ", ".join(extra["authors"][:3]) + (" et al." if len(extra["authors"]) > 3 else "")
-        lines.append(
-            _wrap(
-                f"also: {authors} ({extra['year']}), {extra['journal']} "
-                f"{extra['volume']}, {extra['pages']}, doi:{extra['doi']}",
-                indent + "  ",
-            )
-        )
+        lines.append(_wrap(f"also: {_source_text(extra)}", indent + "  "))
     validity = record.get("validity") or {}
     if validity:
         lines.append(
@@ -528,6 +584,26 @@ def _provenance_text(record: dict, indent: str = "") -> list[str]:
     for part in record.get("components", {}).values():
         lines += _provenance_text(part, indent + "  ")
     return lines
+
+
+def _source_text(source: dict) -> str:
+    """One line for a source record of any type (an article: journal, volume, pages; a
+    book: edition, publisher, address, pages), as ``Source.as_dict`` gives it."""
+    names = list(source.get("authors", []))
+    authors = ", ".join(names[:3]) + (" et al." if len(names) > 3 else "")
+    head = f"{authors} ({source.get('year', '?')})"
+    if source.get("type") == "book":
+        edition = f"{source['edition']} edition" if source.get("edition") else ""
+        place = ", ".join(p for p in (edition, source.get("publisher"), source.get("address")) if p)
+        text = f"{head}, {source.get('title', '')}" + (f" ({place})" if place else "")
+        if source.get("pages"):
+            text += f", pp. {source['pages']}"
+    else:
+        parts = [p for p in (source.get("journal"), source.get("volume")) if p]
+        text = f"{head}, {' '.join(parts)}" + (
+            f", {source['pages']}" if source.get("pages") else ""
+        )
+    return text + (f", doi:{source['doi']}" if source.get("doi") else "")
 
 
 def _cmd_provenance(args):
@@ -586,17 +662,13 @@ def _cmd_release_diff(args):
 
 
 def _scenario(name: str):
-    from ..catalogue.store import datasets_root
-
-    folder = datasets_root() / "scenarios"
-    path = folder / f"{name}.toml"
-    if not path.is_file():
-        known = sorted(p.stem for p in folder.glob("*.toml"))
+    """A scenario of the datasets folder by name, read as every data file is: its
+    checksum, its schema, and nowhere outside ``datasets/scenarios/``."""
+    catalog = _catalog()
+    known = catalog.scenario_names()
+    if name not in known:  # (a path such as ../.. is no scenario's name)
         raise InputError("--scenario", f"one of {', '.join(known) or '(none)'}", repr(name))
-    try:
-        return path, tomllib.loads(path.read_text(encoding="utf-8"))
-    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-        raise InputError("--scenario", "a valid TOML scenario file", f"{path.name}: {exc}") from exc
+    return catalog.root / "scenarios" / f"{name}.toml", catalog.scenario(name)
 
 
 def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
@@ -867,6 +939,12 @@ def build_parser() -> argparse.ArgumentParser:
         else:
             text = f"{ax.long_name} (plain numbers are {ax.units})"
         group.add_argument(*flags, dest=ax.name, metavar="VALUES", help=text)
+    grid.add_argument(
+        "--allow-large",
+        action="store_true",
+        help="evaluate grids of more than 1e8 values (0.8 GB) in memory, and write or "
+        "print more than ~1 GB without asking",
+    )
 
     output = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
     out = output.add_argument_group("output")
@@ -1027,18 +1105,19 @@ def main(argv=None) -> int:
     args.command_line = _command_line(argv)
     seen = set()
 
-    def show(message, *rest, **kw):
+    def report(message):
         text = _cli_message(str(message))
         if text not in seen:
             seen.add(text)
             print(f"matprops: warning: {text}", file=sys.stderr)
 
+    args.report = report
     try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("always", ValidityWarning)
-            warnings.showwarning = show
+        # SIGINT or SIGTERM while a file is written: its temporary is removed and the
+        # command stops at once (status 130 / 143); see matprops.catalogue.files
+        with interruptible():
             args.run(args)
-        sys.stdout.flush()
+            sys.stdout.flush()
     except Error as exc:
         print(f"matprops: error: {_cli_message(str(exc))}", file=sys.stderr)
         return 2

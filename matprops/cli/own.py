@@ -82,8 +82,8 @@ def _check_fit_options(args) -> None:
     """The options that need no fit, checked before it."""
     from pathlib import Path
 
-    if args.report:
-        report = Path(args.report)
+    if args.report_path:
+        report = Path(args.report_path)
         for path in (report, report.with_suffix(".csv"), report.with_suffix(".txt")):
             if path.exists() and not args.force:
                 raise InputError(
@@ -128,8 +128,8 @@ def _cmd_fit(args) -> None:
         seals=args.seals,
     )
     print(result.summary())
-    if args.report:
-        for path in result.report(args.report, note=args.note or "", overwrite=args.force):
+    if args.report_path:
+        for path in result.report(args.report_path, note=args.note or "", overwrite=args.force):
             print(f"wrote {path}")
     if args.into:
         source = {
@@ -244,7 +244,9 @@ def add_commands(commands) -> None:
     )
     fit.add_argument("--release", help="release the base model is read as (default: newest)")
     add_options(fit)
-    fit.add_argument("--report", metavar="FILE.png", help="plot (+ FILE.csv, FILE.txt)")
+    fit.add_argument(
+        "--report", dest="report_path", metavar="FILE.png", help="plot (+ FILE.csv, FILE.txt)"
+    )
     fit.add_argument("--note", help="a line for the report (e.g. 'INVENTED data')")
     fit.add_argument("--into", metavar="PATH", help="write the model into this catalogue")
     fit.add_argument("--id", help="the new model's id (firstauthor-year form)")

@@ -26,9 +26,6 @@ import numpy as np
 
 from ..errors import (
     InputError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import equilibrium as equilibrium_kernel
 from ..kernels._blocks import evaluate
@@ -343,9 +340,7 @@ class CarrierMethods:
                 f"fitted with {bound.statistics} statistics; combined with "
                 f"{statistics} statistics it counts degeneracy twice"
             )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._violation(message)
         return statistics == "fermi-dirac"
 
     def _check_dopants(self, prepared, donor, acceptor):
@@ -353,7 +348,7 @@ class CarrierMethods:
         ionisation = self._carriers().ionisation
         for species, key in ((donor, "donor_density"), (acceptor, "acceptor_density")):
             _, low, high = prepared[key]
-            ionisation.select(species).check("dopant_density", low, high, self.strict)
+            self._check(ionisation.select(species), "dopant_density", low, high)
 
     def _solve(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False):
         donor = dopant_species(donor, "donor", "donor")
@@ -363,10 +358,10 @@ class CarrierMethods:
         fermi_dirac = self._check_statistics(statistics, bound)
         t, low, high = prepared["temperature"]
         for quantity_name in ("densities_of_states", "intrinsic_density"):
-            self.model(quantity_name).check("temperature", low, high, self.strict)
+            self._check(self.model(quantity_name), "temperature", low, high)
         for argument in bound.narrowing.inputs:
             if argument in prepared:
-                bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+                self._check(bound.narrowing, argument, *prepared[argument][1:])
         self._check_dopants(prepared, donor, acceptor)
         result = bound.equilibrium(
             t,
@@ -480,11 +475,9 @@ class CarrierMethods:
             result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
             n, p = result["electron_density"], result["hole_density"]
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
-        self.model("intrinsic_density").check(
-            "temperature", *prepared["temperature"][1:], self.strict
-        )
+        self._check(self.model("intrinsic_density"), "temperature", *prepared["temperature"][1:])
         for argument in bound.narrowing.inputs:
-            bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+            self._check(bound.narrowing, argument, *prepared[argument][1:])
         arrays = {k: v[0] for k, v in prepared.items()}
         arrays.setdefault("donor_density", 0.0)
         arrays.setdefault("acceptor_density", 0.0)
@@ -512,7 +505,7 @@ class CarrierMethods:
         species = dopant_species(dopant, "dopant")
         model = self.model("ionisation").select(species)
         array, low, high = coerce(N, "N")
-        model.check("dopant_density", low, high, self.strict)
+        self._check(model, "dopant_density", low, high)
         energy, share = model(dopant_density=array)
         return quantity(np.asarray(energy, float), "eV"), quantity(
             np.asarray(share, float), "dimensionless"
@@ -708,12 +701,13 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
     acceptor_model = bound.ionisation.select(acceptor)
     base = model_checker(models)
 
-    def check(arrays, ranges, strict):
-        base(arrays, ranges, strict)
+    def check(arrays, ranges, strict, report=None) -> list[str]:
+        messages = base(arrays, ranges, strict, report)
         for model, key in ((donor_model, "donor_density"), (acceptor_model, "acceptor_density")):
             low, high = ranges[key]
             if low <= high:
-                model.check("dopant_density", low, high, strict)
+                messages += model.check("dopant_density", low, high, strict, report)
+        return messages
 
     validity = validity_of(models)
     validity.pop("electron_density", None)

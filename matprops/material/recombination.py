@@ -41,10 +41,8 @@ import numpy as np
 from ..catalogue import defects as defect_catalogue
 from ..errors import (
     InputError,
+    SolverError,
     UnitError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import implied_voltage as voltage_kernel
 from ..kernels import srh_lifetime as srh
@@ -149,6 +147,54 @@ def _optional(values):
     return None if values is None else quantity(values, "s")
 
 
+def _widen(state, items) -> None:
+    """Make the state's shape span the defect densities and capture times too (arrays
+    broadcast with the other inputs); an InputError names one that does not."""
+    for defect, density, capture in items:
+        for name, value in (("density", density), ("electron_capture_time", capture)):
+            if value is None:
+                continue
+            shape = np.shape(getattr(value, "magnitude", value))
+            try:
+                state.shape = np.broadcast_shapes(state.shape, shape)
+            except ValueError:
+                raise InputError(
+                    name,
+                    f"a number or an array whose shape broadcasts with the other inputs' "
+                    f"{state.shape} (for defect {defect.name!r})",
+                    f"shape {shape}",
+                ) from None
+
+
+def _steady_state_failure(error, state, generation, thickness, shape) -> SolverError:
+    """The steady-state solver's error, its first failing points named by their inputs."""
+    points = getattr(error, "points", None)
+    if not points:
+        return error
+    inputs = {
+        "T": (state.temperature, "K"),
+        "G": (generation, "cm^-2 s^-1"),
+        "thickness": (thickness, "cm"),
+        "n0": (state.n0, "cm^-3"),
+        "p0": (state.p0, "cm^-3"),
+    }
+    shown = []
+    for flat in points:
+        where = np.unravel_index(flat, shape) if shape else ()
+        values = ", ".join(
+            f"{name}={float(np.broadcast_to(array, shape)[where]):.4g} {units}"
+            for name, (array, units) in inputs.items()
+        )
+        shown.append(f"#{where if len(shape) > 1 else flat} ({values})")
+    more = f"; and {error.count - len(points)} more" if error.count > len(points) else ""
+    failure = SolverError(
+        f"implied_voltage: the steady state was not found at {error.count} point(s) "
+        f"({error.reason}): {'; '.join(shown)}{more}"
+    )
+    failure.points, failure.count = points, error.count
+    return failure
+
+
 def _full(values, shape):
     """A float array of ``shape`` (no copy when the values already have it)."""
     array = np.asarray(values, dtype=float)
@@ -247,9 +293,9 @@ class RecombinationMethods:
         model = self.model("intrinsic_lifetime")
         for argument, (low, high) in state.ranges.items():
             if low <= high:  # (an empty array has no range)
-                model.check(argument, low, high, self.strict)
+                self._check(model, argument, low, high)
         if model.regions:
-            model.check_regions(state.kernel_inputs(), self.strict)
+            self._check_regions(model, state.kernel_inputs())
         fitted = model.conventions.value("gap_narrowing")
         used = self.models.get("gap_narrowing")
         if not state.given and fitted in self.catalog.model_ids("gap_narrowing") and used != fitted:
@@ -259,9 +305,7 @@ class RecombinationMethods:
                 f"{used}: the minority densities, and the lifetime where dn is not "
                 "far above them, differ from the published model's"
             )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._violation(message)
         return model
 
     def _intrinsic(self, state: _State, part="total", excess=None):
@@ -397,7 +441,7 @@ class RecombinationMethods:
         for carrier in ("electron", "hole"):
             bound = model.select(carrier) if model.variant_axis == "carrier" else model
             if low <= high:
-                bound.check("temperature", low, high, self.strict)
+                self._check(bound, "temperature", low, high)
             arguments = {"temperature": t}
             if "carrier" in bound.inputs:
                 arguments["carrier"] = carrier
@@ -439,9 +483,7 @@ class RecombinationMethods:
                     f"outside the range of its data, {low:g}-{high:g} K; the capture "
                     "parameters are extrapolated"
                 )
-                if self.strict:
-                    raise ValidityError(message)
-                warn(message, ValidityWarning)
+                self._violation(message)
 
     def _capture_times(self, defect, t, density, electron_capture_time):
         """(tau_n0, tau_p0) in s for one defect, and a provenance record."""
@@ -482,6 +524,7 @@ class RecombinationMethods:
         """SRH lifetime of several (defect, density, electron_capture_time) items."""
         if not items:
             return None, []
+        _widen(state, items)
         model = self.model("srh_lifetime")
         nc, nv = self.model("densities_of_states")(temperature=state.temperature)
         product = state.n0 * state.p0
@@ -582,6 +625,7 @@ class RecombinationMethods:
         state = self._recombination_state(
             temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
         )
+        _widen(state, items)  # (array densities broadcast with the other inputs)
         value, _ = self._srh(state, items)
         return quantity(value, "s")
 
@@ -648,6 +692,7 @@ class RecombinationMethods:
         state = self._recombination_state(
             temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
         )
+        _widen(state, items)  # (array densities broadcast with the other inputs)
         self._check_intrinsic(state)
         parts = self._lifetime_parts(state, items)
         provenance = self._recombination_provenance("effective_lifetime", parts["records"], state)
@@ -767,6 +812,7 @@ class RecombinationMethods:
         state = self._recombination_state(
             temperature, Na, Nd, 0.0, n0, p0, donor, acceptor, statistics
         )
+        _widen(state, items)
         shape = np.broadcast_shapes(state.shape, rate.shape)
         state.shape = shape
         state.excess = np.zeros(shape)
@@ -778,7 +824,10 @@ class RecombinationMethods:
 
         low_injection = self._lifetime_parts(state, items, np.zeros(shape))["effective"]
         guess = np.clip(rate * low_injection, 1.0, 1e22)
-        dn = voltage_kernel.steady_state_excess(recombination, rate, guess)
+        try:
+            dn = voltage_kernel.steady_state_excess(recombination, rate, guess)
+        except SolverError as error:  # name the failing points by their inputs
+            raise _steady_state_failure(error, state, g_area, w, shape) from None
         state.excess = dn
         state.ranges["excess_density"] = _range(dn)
         self._check_intrinsic(state)  # the excess densities reached

@@ -20,8 +20,9 @@ from collections.abc import Iterable, Mapping, Sequence
 
 import numpy as np
 
+from ..catalogue.records import report_violation
 from ..catalogue.store import Catalog, Model, default_catalog
-from ..errors import DatasetError, InputError, UnknownQuantityError, refused
+from ..errors import DatasetError, Error, InputError, UnknownQuantityError, Unusable
 from ..kernels._blocks import evaluate
 from ..units import check_broadcast, coerce, quantity
 from ..units import name as check_name
@@ -65,6 +66,11 @@ class Silicon(
     gives a scalar output. Outputs are pint quantities.
     """
 
+    # validity policy besides ``strict`` (see _check); class defaults, so that copies
+    # made without __init__ (propagation.changed_material) have them too
+    _checked = False  # a view whose inputs were checked already skips the checks
+    _report = None  # a callable taking each validity message instead of a warning
+
     def __init__(
         self,
         release: str | None = None,
@@ -96,10 +102,49 @@ class Silicon(
             self._bind(name, choice)
 
     def __reduce__(self):
-        # pickled by release, overrides, strict flag and catalogue, re-bound on load;
-        # the model files' hashes travel along so that both sides use the same numbers
-        hashes = {q: m.sha256 for q, m in self._models.items()}
-        return _restore, (self.catalog, self.release.id, self._overrides, self.strict, hashes)
+        # pickled by release, overrides, strict flag and catalogue (its folders as plain
+        # data, None: the receiver's installed data; an overlay with the digest of its
+        # checksum list), re-bound on load; the digests of every data file the material
+        # reads travel along, so that both sides use the same numbers
+        from ..catalogue.overlay import key_of
+
+        return _restore, (
+            key_of(self.catalog.base),
+            self.release.id,
+            self._overrides,
+            self.strict,
+            self._data_digests(),
+        )
+
+    def _data_digests(self) -> dict[str, str]:
+        """Relative path -> recorded sha256 of every data file this material's numbers
+        are read from: the release file, the model file of every bound model (and of the
+        models they are composed of), the tables those read, every defect file of the
+        catalogue and the thermal-velocity model each defect names. Every file is
+        verified against the checksum list when read, so equal digests mean equal data."""
+        digests = self.__dict__.get("_digests")
+        if digests is None:
+            digests = _data_digests(self)
+            self.__dict__["_digests"] = digests
+        return digests
+
+    def _digest_mismatch(self, expected: Mapping[str, str]) -> DatasetError | None:
+        """The first data file whose digest here differs from ``expected`` (those of the
+        process that pickled the material or made the lazy table), as an error."""
+        from ..catalogue.overlay import file_of_label
+
+        here = self._data_digests()
+        for path in sorted(set(here) | set(expected)):
+            mine, theirs = here.get(path), expected.get(path)
+            if mine != theirs:
+                return DatasetError(
+                    file_of_label(self.catalog.base, path),
+                    f"has sha256 {mine or '(no such file)'} here but "
+                    f"{theirs or '(no such file)'} where the material was pickled (or the "
+                    "lazy table made): the two processes read different data; give the "
+                    "workers the same datasets folder and release",
+                )
+        return None
 
     def _bind(self, name: str, choice: Mapping[str, str], chain=()) -> Model:
         if name in self._models:
@@ -186,12 +231,53 @@ class Silicon(
         values, ranges = {}, {}
         for argument in model.inputs:
             array, low, high = prepared[argument]
-            model.check(argument, low, high, self.strict)
+            self._check(model, argument, low, high)
             values[argument] = array
             ranges[argument] = (low, high)
         if model.regions:
-            model.check_regions(values, self.strict, ranges)
+            self._check_regions(model, values, ranges)
         return evaluate(model.function or model, values)  # in blocks for large inputs
+
+    # ------------------------------------------------------------------ validity
+    # Every validity check of the material goes through these three: a warning (or a
+    # ValidityError when strict), a message handed to the application's reporter, or
+    # nothing in a view whose inputs were checked already (a table checks its grid's
+    # extremes once and evaluates its blocks with such a view). No warning filter is
+    # ever touched, so another thread's warnings are never lost.
+    def _check(self, model: Model, argument: str, low: float, high: float) -> None:
+        if not self._checked:
+            model.check(argument, low, high, self.strict, self._report)
+
+    def _check_regions(self, model: Model, values, ranges=None) -> None:
+        if not self._checked:
+            model.check_regions(values, self.strict, ranges, self._report)
+
+    def _violation(self, message: str) -> None:
+        """A validity message of the material's own (not of one model's range)."""
+        if not self._checked:
+            report_violation(message, self.strict, self._report)
+
+    def _checked_already(self) -> Silicon:
+        """A view of this material whose methods skip the validity checks: the caller
+        has checked the inputs' ranges already (a table, on its grid's extremes) or
+        crosses them on purpose (the reference grid). Shares the bound models."""
+        view = self.__dict__.get("_checked_view")
+        if view is None:
+            view = object.__new__(type(self))
+            view.__dict__.update(self.__dict__)
+            view.__dict__.pop("_kernel_cache", None)
+            view._checked = True
+            self.__dict__["_checked_view"] = view
+        return view
+
+    def _sibling(self, models: Mapping[str, str]) -> Silicon:
+        """The same release, strictness, catalogue and reporter with other model
+        choices (``models`` are overrides on top of the release's)."""
+        sibling = type(self)(
+            release=self.release.id, models=models, strict=self.strict, catalog=self.catalog.base
+        )
+        sibling._report = self._report
+        return sibling
 
     def _quantity(self, name: str, **arguments):
         result, units = self._evaluate(name, **arguments)
@@ -264,7 +350,9 @@ class Silicon(
 
         Axes by name or alias (``T``, ``Na``, ``Nd``, ``excess``, ``n``, ``p``,
         ``wavelength``, ``carrier``, ``plane``) and ``chunks=`` for a lazy dask-backed
-        Dataset; see :func:`matprops.tables.table`.
+        Dataset; a grid of more than ``max_values`` values (1e8 by default, 0.8 GB;
+        ``None`` for no limit) is an InputError before anything is allocated; see
+        :func:`matprops.tables.table`.
         """
         from .tables import table
 
@@ -289,23 +377,46 @@ class Silicon(
         )
 
 
-def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
-    # a refusal (different data in this process) is raised when the material is used:
-    # raising while unpickling would leave a process pool or a dask client waiting
-    return refused(_rebuild, catalog, release, overrides, strict, hashes)
+def _restore(key, release, overrides, strict, digests) -> Silicon | Unusable:
+    """Unpickle a material; never raises (see :class:`matprops.errors.Unusable`): a
+    material whose data differ here, or cannot be read, raises on its first use."""
+    from ..catalogue.overlay import from_key
+
+    try:
+        catalog = from_key(key)  # (an overlay whose checksum list differs: refused)
+        si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog)
+        mismatch = si._digest_mismatch(digests)
+    except Error as exc:
+        return Unusable(exc, Silicon)
+    return si if mismatch is None else Unusable(mismatch, Silicon)
 
 
-def _rebuild(catalog, release, overrides, strict, hashes) -> Silicon:
-    si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog)
-    for name, model in si._models.items():
-        if model.sha256 != hashes.get(name):
-            raise DatasetError(
-                model.path,
-                f"has sha256 {model.sha256} here but "
-                f"{hashes.get(name)} where the material was pickled: "
-                "the two processes read different data",
-            )
-    return si
+def _data_digests(si: Silicon) -> dict[str, str]:
+    from ..catalogue import defects
+
+    files = {si.release.path}
+    seen = set()
+
+    def walk(model):
+        if id(model) in seen:
+            return
+        seen.add(id(model))
+        files.add(model.path)
+        for name in model.tables:
+            files.add(model.catalogue.table_path(name))
+        for component in model.components.values():
+            walk(component)
+
+    for model in si._models.values():
+        walk(model)
+    for entry in defects.describe(si.catalog):
+        files.add(entry.path)
+        if entry.thermal_velocity:
+            files.add(si.catalog.model("thermal_velocity", entry.thermal_velocity).path)
+    from ..catalogue.overlay import file_label
+
+    base = si.catalog.base  # (a file of an overlay is labelled '<catalogue name>:<path>')
+    return {file_label(base, path): base.recorded(path) for path in files}
 
 
 def silicon(

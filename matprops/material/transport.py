@@ -30,9 +30,6 @@ import numpy as np
 from ..errors import (
     InputError,
     SolverError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import resistivity as resistivity_kernels
 from ..kernels.constants import BOLTZMANN_EV
@@ -413,7 +410,7 @@ class TransportMethods:
             }
             if check:
                 for name in model.inputs:
-                    model.check(name, *_extremes(values[name])[1:], self.strict)
+                    self._check(model, name, *_extremes(values[name])[1:])
             mobility = model(**{k: values[k] for k in model.inputs})
             density = values["electron_density" if carrier == "electron" else "hole_density"]
             conductivities.append((density, mobility))
@@ -437,10 +434,10 @@ class TransportMethods:
         """The validity checks the equilibrium solver's models make (as in ``_solve``)."""
         _, low, high = prepared["temperature"]
         for name in ("densities_of_states", "intrinsic_density"):
-            self.model(name).check("temperature", low, high, self.strict)
+            self._check(self.model(name), "temperature", low, high)
         for argument in bound.narrowing.inputs:
             if argument in prepared:
-                bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+                self._check(bound.narrowing, argument, *prepared[argument][1:])
         self._check_dopants(prepared, donor, acceptor)
 
     @declare(
@@ -520,9 +517,7 @@ class TransportMethods:
                 f"{np.count_nonzero(compensated)} point(s) with both Na and Nd > 0 "
                 "are NaN (conversion='physics' handles them)"
             )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._violation(message)
         model = self.model("standard_resistivity")
         out = np.full(t.shape, np.nan)
         for species, where in ((acceptor, (na > 0) & ~compensated), (donor, ~(na > 0))):
@@ -632,7 +627,7 @@ class TransportMethods:
             model = self._mobility_model(carrier, donor, acceptor)
             for name in ("temperature", "donor_density", "acceptor_density"):
                 if name in model.inputs:
-                    model.check(name, *prepared[name][1:], self.strict)
+                    self._check(model, name, *prepared[name][1:])
         return quantity(density.reshape(shape), "cm^-3")
 
     def _lowest_density(self, temperatures, kind, donor, acceptor):
@@ -697,11 +692,15 @@ class TransportMethods:
         )
         if not converged.all():
             bad = np.flatnonzero(~converged)
-            raise SolverError(
-                f"doping_from_resistivity: {bad.size} point(s) did not "
-                f"converge, e.g. #{bad[0]}: {target[bad[0]]:g} ohm*cm at "
-                f"{temperatures[bad[0]]:g} K"
+            shown = "; ".join(
+                f"#{i} ({target[i]:g} ohm*cm at {temperatures[i]:g} K, {species})" for i in bad[:5]
             )
+            more = f"; and {bad.size - 5} more" if bad.size > 5 else ""
+            error = SolverError(
+                f"doping_from_resistivity: {bad.size} point(s) did not converge: {shown}{more}"
+            )
+            error.points, error.count = bad[:5].tolist(), int(bad.size)
+            raise error
         return np.exp(log_n)
 
     # ------------------------------------------------------------------ kernels

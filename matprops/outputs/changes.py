@@ -7,11 +7,7 @@ of each quantity on the releases' standard reference grid
 
 from __future__ import annotations
 
-import warnings
-
 import numpy as np
-
-from ..errors import ValidityWarning
 
 __all__ = ["release_difference"]
 
@@ -43,9 +39,8 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
         ]
         record["changed"] = before != after or files[0] != files[1]
         models.append(record)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", ValidityWarning)
-        cases = {r: evaluate(silicon[r]) for r in (old, new)}
+    # (the reference grid crosses validity limits on purpose: evaluate skips the checks)
+    cases = {r: evaluate(silicon[r]) for r in (old, new)}
     deviations = []
     for label in sorted(set(cases[old]) & set(cases[new])):
         a, b = cases[old][label], cases[new][label]

@@ -77,6 +77,7 @@ def write(
     state them; default: the base model's, marked as assumed).
     """
     from ..catalogue import overlay as overlays
+    from ..catalogue.files import forget, temporary_for
 
     text, data_name = fit.model_file(
         model_id, source=source, name=name, notes=notes, conventions=conventions
@@ -103,9 +104,13 @@ def write(
     written = []
     try:
         for path, content in ((data_path, fit.measurements.content), (target, text.encode())):
-            tmp = path.with_name(f".{path.name}.tmp-{os.getpid()}")
-            tmp.write_bytes(content)
-            os.replace(tmp, path)
+            tmp = temporary_for(path)  # (removed by an interrupted application)
+            try:
+                tmp.write_bytes(content)
+                os.replace(tmp, path)
+            finally:
+                tmp.unlink(missing_ok=True)
+                forget(tmp)
             written.append(path)
         overlays._write_checksums_of(root)
         probe = overlays.Overlay(root, _below(root, fit.parent), overlays.SealRecord({}))
