@@ -284,6 +284,7 @@ def seal_own(overlay, release, date: str) -> tuple[Path, str]:
         "sealed": date,
         "version": finality.SEAL_VERSION,
         "models": dict(sorted(release.models.items())),
+        "defaults": dict(sorted(release.defaults.items())),
         "files": files,
     }
     target = releases / f"{release.id}.seal.json"

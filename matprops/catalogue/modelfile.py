@@ -26,7 +26,7 @@ from ..errors import (
 )
 from ..kernels import module_for
 from .conventions import REQUIRED as REQUIRED_CONVENTIONS
-from .conventions import legacy_conventions, parse_fit_conventions
+from .conventions import legacy_conventions, parse_fit_conventions, parse_stand_ins
 from .fields import convert, number_or_list, read_only, require, udunits_to_pint
 from .records import (
     SOURCE_TYPES,
@@ -191,6 +191,12 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
     extra = _extra_sections(path, quantity, data, catalog, requires)
     if "fitted" in data:  # a model fitted to one's own measurements: how, and how well
         extra["fitted"] = _fitted_section(path, data["fitted"], catalog)
+    if "stand_ins" in data:  # what serves a dopant species without a set of its own
+        extra["stand_ins"] = MappingProxyType(
+            parse_stand_ins(
+                path, quantity, data["stand_ins"], list(raw_variants or {}), variant_axis, catalog
+            )
+        )
     common = {
         "quantity": quantity,
         "id": model_id,

@@ -348,6 +348,7 @@ class Overlay(Catalog):
         if final:  # the whole choice as sealed: the base's own choice may have moved since
             seal = finality.read_seal(self, release_id, self.seals, self._seal_record.where)
             models = dict(seal["models"])
+            defaults = dict(seal.get("defaults", {}))
         else:
             if base in self.own_release_ids():
                 below = self._own_release(base, (*chain, release_id))
@@ -358,6 +359,7 @@ class Overlay(Catalog):
                     base, self.release_ids(), f"(the base of own release {release_id})"
                 )
             models = {**below.models, **chosen}
+            defaults = {**below.defaults, **data.get("defaults", {})}
         return Release(
             release_id,
             data["status"],
@@ -366,6 +368,7 @@ class Overlay(Catalog):
             MappingProxyType(models),
             path,
             self,
+            MappingProxyType(defaults),
             base=base,
             chosen=MappingProxyType(chosen),
         )
@@ -695,8 +698,14 @@ def key_of(catalog) -> tuple | None:
 
     if isinstance(catalog, Overlay):
         seals = tuple(sorted(catalog.seals.items()))
-        return ("overlay", str(catalog.root), catalog.digest, catalog.name, seals,
-                key_of(catalog.below))  # fmt: skip
+        return (
+            "overlay",
+            str(catalog.root),
+            catalog.digest,
+            catalog.name,
+            seals,
+            key_of(catalog.below),
+        )
     if catalog is default_catalog():
         return None
     return ("datasets", str(catalog.root))

@@ -746,6 +746,8 @@ class Release:
     models: Mapping[str, str]
     path: Path
     catalogue: CatalogueLike | None = field(default=None, repr=False, compare=False)
+    # defaults of methods' options the release chooses (e.g. doping_from_resistivity)
+    defaults: Mapping[str, str] = field(default_factory=dict)
     base: str | None = None
     chosen: Mapping[str, str] | None = field(default=None, compare=False)
 

@@ -412,6 +412,7 @@ class Catalog:
             MappingProxyType(dict(data["models"])),
             path,
             self,
+            MappingProxyType(dict(data.get("defaults", {}))),
         )
 
     def table_path(self, name: str) -> Path:

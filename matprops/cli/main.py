@@ -644,6 +644,11 @@ def _cmd_release_diff(args):
     for record in diff["models"]:
         mark = "changed" if record["changed"] else "same"
         print(f"  {record['quantity']:24s} {record['old']!s:24s} -> {record['new']!s:24s} {mark}")
+    for record in diff["defaults"]:
+        print(
+            f"  default of {record['option']}: {record['old'] or 'physics'} -> "
+            f"{record['new'] or 'physics'}"
+        )
     print(f"\nlargest deviation on the standard reference grid ({new} against {old}):")
     for record in diff["deviations"]:
         if record["largest_relative"] is None:
@@ -659,6 +664,8 @@ def _cmd_release_diff(args):
                 + (f" at {at}" if at else "")
             )
         print(_wrap(f"{record['case']:28s} {detail}", "  "))
+    print(f"\nnotes of {new} (each change with its size at standard points):")
+    print("\n".join("  " + line for line in diff["notes"].splitlines()))
 
 
 def _scenario(name: str):

@@ -52,8 +52,9 @@ def catalogue(args):
     paths = getattr(args, "catalogues", None)
     if paths is None:
         paths = catalogues_from_environment()
-    return catalog_at(None, [os.path.abspath(os.path.expanduser(p)) for p in paths],
-                      getattr(args, "seals", None))  # fmt: skip
+    return catalog_at(
+        None, [os.path.abspath(os.path.expanduser(p)) for p in paths], getattr(args, "seals", None)
+    )
 
 
 def _pairs(items, option: str, form: str) -> dict:

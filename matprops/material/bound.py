@@ -50,6 +50,7 @@ import numpy as np
 from ..errors import InputError
 from ..kernels._blocks import BLOCK, evaluate
 from ..vocabulary import dopant_species
+from .composition import input_kinds, species_model
 
 __all__ = ["BoundKernel", "make_kernel", "model_checker", "model_kernel", "validity_of"]
 
@@ -154,6 +155,7 @@ class BoundKernel:
         fixed=None,
         description: str = "",
         returns: str = "",
+        kinds: Mapping[str, tuple[str, str]] | None = None,
     ):
         self._si = si
         self.quantity = quantity
@@ -178,6 +180,10 @@ class BoundKernel:
         self._fixed = dict(fixed or {})
         self._description = description
         self._returns = returns
+        # input -> (short kind, description) of each density: total or ionised dopants,
+        # free carriers, carriers of complete ionisation (the model's fit conventions)
+        self.input_kinds = {name: kinds[name][0] for name in (kinds or {})}
+        self._kind_text = {name: kinds[name][1] for name in (kinds or {})}
         self.__doc__ = self._document()
 
     # ------------------------------------------------------------------ calling
@@ -386,6 +392,8 @@ class BoundKernel:
             record["release"] = self._si.release.id
         if self._fixed:
             record["kernel_options"] = dict(self._fixed)
+        if self.input_kinds:
+            record["input_kinds"] = dict(self._kind_text)
         return record
 
     def _signature(self) -> str:
@@ -411,7 +419,8 @@ class BoundKernel:
             valid = self._validity.get(name)
             span = f"; valid {valid[0]:g}-{valid[1]:g} {unit}" if valid else ""
             optional = " (optional)" if name in self._optional else ""
-            lines.append(f"    {name} : {unit}{span}{optional}")
+            kind = f", {self._kind_text[name]}" if name in self._kind_text else ""
+            lines.append(f"    {name} : {unit}{kind}{span}{optional}")
         for region in self._regions:
             lines.append(f"    validity region: {region}")
         lines += ["", f"Output: {shown}"]
@@ -464,7 +473,10 @@ class BoundKernel:
     def __repr__(self) -> str:
         units = self.output_units
         shown = ", ".join(units) if isinstance(units, tuple) else units
-        inputs = ", ".join(f"{n} [{u}]" for n, u in self.inputs.items())
+        inputs = ", ".join(
+            f"{n} [{u}, {self.input_kinds[n]}]" if n in self.input_kinds else f"{n} [{u}]"
+            for n, u in self.inputs.items()
+        )
         valid = (
             "; ".join(
                 f"{n} {lo:g}-{hi:g} {self.inputs.get(n, '')}".rstrip()
@@ -542,7 +554,7 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
     if declared is not None and declared.kernel is not None:
         return declared.kernel(si, name, fixed)
     model = si.model(name)
-    chosen = {}
+    chosen, note = {}, ""
     if model.variant_axis == "dopant":
         species = fixed.pop("dopant", None)
         if species is None:
@@ -550,12 +562,14 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
                 "dopant", f"given for {name} (one of {', '.join(model.variants)})", None
             )
         species = dopant_species(species, "dopant")
-        model = model.select(species)
+        model, stand_in = species_model(model, species, si.catalog)
         chosen = {"dopant": species}
+        if stand_in is not None:  # served by another species' set or model: labelled
+            note = f"The dopant {stand_in.describe()}"
     if fixed:
         key = min(fixed)
         raise InputError(key, f"not an option of the {name} kernel", fixed[key])
-    return model_kernel(si, name, model, chosen)
+    return model_kernel(si, name, model, chosen, note)
 
 
 def model_checker(models):
@@ -604,7 +618,7 @@ def _options(model) -> dict:
     return options
 
 
-def model_kernel(si, name, model, fixed) -> BoundKernel:
+def model_kernel(si, name, model, fixed, note: str = "") -> BoundKernel:
     """The bound kernel of a model as it is (its inputs, units, validity, derivatives);
     the public method's units and description come from the quantity's declaration."""
     from .registry import REGISTRY
@@ -640,5 +654,8 @@ def model_kernel(si, name, model, fixed) -> BoundKernel:
         ),
         options=_options(model),
         fixed=fixed,
-        description=declared.kernel_note if declared is not None else "",
+        description=" ".join(
+            part for part in (declared.kernel_note if declared is not None else "", note) if part
+        ),
+        kinds=input_kinds(name, model),
     )

@@ -194,7 +194,8 @@ class Silicon(
         ``kernel.derivatives(...)``. ``fixed`` chooses what a quantity needs fixed:
         ``carrier=`` (and ``donor=`` / ``acceptor=`` where the model has one
         coefficient set per dopant) for the transport quantities; ``dopant=`` for
-        ionisation; ``donor=``, ``acceptor=`` and ``statistics=`` for ``equilibrium``
+        ionisation; ``donor=``, ``acceptor=``, ``statistics=`` and ``complete_ionisation=``
+        (every dopant ionised) for ``equilibrium``
         (a callable ``(temperature, donor_density, acceptor_density) -> dict of
         arrays``).
         """
@@ -300,6 +301,19 @@ class Silicon(
                 record["composition"] = note
         else:
             record = self.model(name).provenance()
+        # how the fit conventions of the models behind it were honoured (or not)
+        parts = DERIVED[name][0] if name in DERIVED else (name,)
+        report = self.consistency()
+        applied = [entry for q in parts for entry in report.applied.get(q, ())]
+        if applied:
+            record["conventions_applied"] = applied
+        mismatched = [m.as_dict() for q in parts for m in report.of(q)]
+        if mismatched:
+            record["conventions_mismatched"] = mismatched
+        if name == "doping_from_resistivity":
+            record["conversion_default"] = self.release.defaults.get(
+                "doping_from_resistivity", "physics"
+            )
         record.update(self.release.origin())  # which release, of which catalogue
         if self.release.base is not None and name not in DERIVED:
             # an own release chooses some models and inherits the others from its base
@@ -312,6 +326,34 @@ class Silicon(
         if name in self.overridden:
             record["release_choice"] = self.release.models.get(name)
         return record
+
+    def consistency(self):
+        """Whether the models in use are fed what their coefficients were fitted with.
+
+        Returns a :class:`~matprops.material.composition.Consistency` report: its
+        ``mismatches`` (empty for a consistent choice, such as every release's
+        default) list each fit convention of a model in use that the material could not
+        honour (a lifetime parameterisation fitted with another narrowing, ...) with
+        its size at standard points (300 K; 1e15, 1e17, 1e19 cm^-3 of donors and of
+        acceptors); ``applied`` says, per quantity, what the composition carried to
+        honour the conventions (densities fed, the fit's own intrinsic density or
+        densities of states, statistics); ``unverified`` lists conventions not known;
+        ``stand_ins`` the dopant species served by another's coefficient set.
+        Computing model that uses a mismatched composition warns (a ValidityWarning),
+        or raises with ``strict=True``.
+        """
+        report = self.__dict__.get("_consistency")
+        if report is None:
+            from .composition import consistency
+
+            report = self.__dict__["_consistency"] = consistency(self)
+        return report
+
+    def _warn_mismatches(self, quantity: str) -> None:
+        """Warn (raise when strict) for each fit convention of ``quantity``'s model that
+        the material cannot honour (see :meth:`consistency`)."""
+        for mismatch in self.consistency().of(quantity):
+            self._violation(mismatch.message())
 
     def sources(self, names: Iterable[str] | None = None):
         """Unique (citation key, Source) pairs behind the given quantities (default: all)."""

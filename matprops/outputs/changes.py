@@ -16,7 +16,9 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
     """What changed between two releases.
 
     Returns a dict with ``models``: one record per quantity (the model in each
-    release, ``changed`` when the model id or its file differs), and
+    release, ``changed`` when the model id or its file differs), ``defaults``: the
+    methods' defaults the releases choose differently (None: the method's own), the new
+    release's ``notes`` (which list each change with its size at standard points), and
     ``deviations``: for every case of the standard reference grid
     (:data:`matprops.outputs.reference.CASES`) that both releases evaluate, the largest
     relative deviation ``|new/old - 1|``, the largest absolute deviation with units,
@@ -80,4 +82,20 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
                     at=point,
                 )
             deviations.append(record)
-    return {"old": old, "new": new, "models": models, "deviations": deviations}
+    defaults = [
+        {
+            "option": key,
+            "old": releases[old].defaults.get(key),
+            "new": releases[new].defaults.get(key),
+        }
+        for key in sorted(set(releases[old].defaults) | set(releases[new].defaults))
+        if releases[old].defaults.get(key) != releases[new].defaults.get(key)
+    ]
+    return {
+        "old": old,
+        "new": new,
+        "models": models,
+        "defaults": defaults,
+        "deviations": deviations,
+        "notes": releases[new].notes,
+    }

@@ -76,6 +76,11 @@ def render(catalog: Catalog | None = None) -> str:
                 lines.append("- fitted with:")
                 for name, entry in conventions.items():
                     lines.append(f"  - {name}: {_one_line(entry.describe())}")
+            stand_ins = model.extra.get("stand_ins", {})
+            if stand_ins:
+                lines.append("- species without a set of their own:")
+                for record in stand_ins.values():
+                    lines.append(f"  - {_one_line(record.describe())}")
             lines.append(f"- obtained: {_one_line(model.obtained)}")
             if model.notes:
                 lines.append(f"- notes: {_one_line(model.notes)}")

@@ -513,3 +513,38 @@ def test_an_overlay_model_reads_its_own_table_and_no_other_folders(small_lab):
     overlays._forget_all(root)
     with pytest.raises(matprops.DatasetError, match="redefines table"):
         catalog_at(None, [root], seals)
+
+
+def test_the_consistency_report_covers_an_own_model(small_lab):
+    root, seals = small_lab
+    arora = matprops.silicon().catalog.model("mobility", "arora-1982")
+    temperature = np.linspace(250.0, 450.0, 9)
+    values = arora.select("electron")(
+        temperature=temperature, donor_density=1e15, acceptor_density=0.0
+    )
+    data = {
+        "temperature": (temperature, "K"),
+        "mobility": (values, "cm^2/(V*s)"),
+        "mobility_uncertainty": (0.02 * values, "cm^2/(V*s)"),
+    }
+    fit = matprops.fit(
+        "mobility",
+        arora,
+        data,
+        variant="electron",
+        free=["min_mobility"],
+        inputs={"Nd": 1e15, "Na": 0},
+    )
+    stated = {
+        "dopant_densities": {"value": "total", "obtained": "INVENTED: the wafer's, as grown"},
+        "carrier_densities": {"value": "free", "obtained": "INVENTED: the Hall densities"},
+    }
+    fit.write(root, "testlab-2027", source=SOURCE, conventions=stated)
+    catalog = catalog_at(None, [root], seals)
+    overlays.write_release(catalog, "test-lab-0", "2026.2", {"mobility": "testlab-2027"}, "x")
+    si = matprops.silicon("test-lab-0", catalogues=[root], seals=seals)
+    report = str(si.consistency())
+    assert "mobility/testlab-2027: fed the total dopant densities" in report
+    applied = si.provenance("mobility")["conventions_applied"]
+    assert any("testlab-2027" in entry for entry in applied)
+    assert si.provenance("mobility")["fit_conventions"]["carrier_densities"]["value"] == "free"
