@@ -25,7 +25,6 @@ import os
 import re
 import shlex
 import sys
-import textwrap
 import tomllib
 
 import numpy as np
@@ -36,6 +35,8 @@ from ..errors import (
     InputError,
     UnitError,
 )
+from ..outputs import render
+from ..outputs.scenario import scenario_dataset
 from . import own
 
 __all__ = ["main", "parse_grid"]
@@ -272,17 +273,6 @@ def _grid(args) -> dict:
     return grid
 
 
-def _wrap(text: str, indent: str = "", width: int | None = None) -> str:
-    from ..outputs.export import terminal_width
-
-    return textwrap.fill(
-        " ".join(str(text).split()),
-        width or terminal_width(),
-        initial_indent=indent,
-        subsequent_indent=indent + "  ",
-    )
-
-
 def _command_line(argv) -> str:
     return "matprops " + shlex.join(argv)
 
@@ -352,20 +342,6 @@ def _emit(args, data, footer: str = ""):
             print(footer)
 
 
-def _footer(si, names) -> str:
-    names = list(dict.fromkeys(names))
-    lines = [
-        _wrap(
-            f"release {si.release.id} ({si.release.status}); models: "
-            + "; ".join(
-                f"{q} {si.models[q]}" if q in si.models else f"{q} (derived)" for q in names
-            )
-        )
-    ]
-    lines.append(_wrap("sources: matprops provenance QUANTITY; references: matprops cite"))
-    return "\n".join(lines)
-
-
 def _needs_output(args, what: str):
     if not args.output:
         raise InputError("-o/--output", f"a file name for {what}", "none")
@@ -400,7 +376,7 @@ def _cmd_table(args):
     finally:
         progress.close()
     _note_unused_axes(data)
-    _emit(args, data, _footer(si, [data[v].attrs["quantity"] for v in data.data_vars]))
+    _emit(args, data, render.table_footer(si, [data[v].attrs["quantity"] for v in data.data_vars]))
 
 
 def _note_unused_axes(data):
@@ -428,9 +404,10 @@ def _cmd_compare(args):
     finally:
         progress.close()
     footer = "\n".join(
-        _wrap(f"[{m}] {c}") for m, c in zip(data.model.values, data.citation.values, strict=True)
+        render.wrap(f"[{m}] {c}")
+        for m, c in zip(data.model.values, data.citation.values, strict=True)
     )
-    footer += "\n" + _wrap(
+    footer += "\n" + render.wrap(
         "spread = largest minus smallest model value; relative_spread "
         "= spread / mean absolute value"
     )
@@ -458,160 +435,30 @@ def _cmd_plot(args):
     print(f"wrote {args.output}")
 
 
-def _equation(model) -> str:
-    import inspect
-
-    doc = inspect.getdoc(model.kernel) or ""
-    return doc.split("\nParameters")[0].strip()
-
-
-def _describe(si, quantity, model_id=None) -> str:
-    catalog = si.catalog
-    if model_id is None:
-        model = si.model(quantity)
-    else:
-        catalog.model_ids(quantity)  # unknown quantity -> error listing what exists
-        model = catalog.model(quantity, model_id)
-    releases = [
-        r for r in catalog.release_ids() if catalog.release(r).models.get(quantity) == model.id
-    ]
-    out = [f"{quantity} / {model.id}", _wrap(model.name, "  ")]
-    if releases:
-        out.append(f"  default in release {', '.join(releases)}")
-    out += ["", "equation:"]
-    out += [_wrap(line, "  ") if line.strip() else "" for line in _equation(model).splitlines()]
-    kernel = f"{model.kernel.__module__.removeprefix('matprops.')}.{model.kernel.__name__}"
-    out.append(f"  (kernel {kernel}; kind {model.kind})")
-    if model.requires:
-        chosen = ", ".join(f"{q} {si.models.get(q, '?')}" for q in model.requires)
-        out.append(_wrap(f"composed from the material's choice of: {chosen}", "  "))
-    if model.coefficients:
-        out += ["", "coefficients (as published; value ± uncertainty, units):"]
-        width = max(len(n) for n in model.coefficients)
-        for name, coef in model.coefficients.items():
-            value = (
-                ", ".join(f"{v:g}" for v in coef.value)
-                if isinstance(coef.value, tuple)
-                else f"{coef.value:g}"
-            )
-            unc = coef.uncertainty
-            unc = (
-                ""
-                if unc is None
-                else " ± "
-                + (", ".join(f"{u:g}" for u in unc) if isinstance(unc, tuple) else f"{unc:g}")
-            )
-            units = "" if coef.units in ("1", "dimensionless") else f" {coef.units}"
-            out.append(_wrap(f"{name.ljust(width)} = {value}{unc}{units}", "  "))
-    if model.tables:
-        out += ["", "tables: " + ", ".join(f"datasets/tables/{t}" for t in model.tables)]
-    out += ["", "validity:"]
-    out += [f"  {r}" for r in model.validity.values()] or ["  no limits recorded"]
-    out += ["", "source:", _wrap(model.source.citation(), "  ")]
-    out += [_wrap(s.citation(), "  also: ") for s in model.additional_sources]
-    out += ["", "how the numbers were obtained:", _wrap(model.obtained, "  ")]
-    if model.notes:
-        out += ["", "notes:", _wrap(model.notes, "  ")]
-    relative = f"models/{quantity}/{model.path.name}"
-    out += ["", f"file: datasets/{relative}", f"sha256: {model.sha256}"]
-    return "\n".join(out)
-
-
 def _cmd_describe(args):
     si = _silicon(args)
-    print(_describe(si, args.quantity, args.model_id))
-
-
-def _provenance_text(record: dict, indent: str = "") -> list[str]:
-    lines = []
-    if record.get("model") == "derived":
-        lines.append(f"{indent}{record['quantity']}: derived, {record['formula']}")
-        for part in record.get("components", {}).values():
-            lines += _provenance_text(part, indent + "  ")
-        return lines
-    lines.append(
-        f"{indent}{record['quantity']}: model {record['model']} ({record.get('kind', '?')})"
-    )
-    lines.append(_wrap(record.get("name", ""), indent + "  "))
-    lines.append(_wrap(f"source: {record.get('citation', '?')}", indent + "  "))
-    for extra in record.get("additional_sources", []):
-        lines.append(_wrap(f"also: {_source_text(extra)}", indent + "  "))
-    validity = record.get("validity") or {}
-    if validity:
-        lines.append(
-            _wrap(
-                "validity: "
-                + "; ".join(
-                    f"{k} {v['min']:g}-{v['max']:g} {v['units']}" for k, v in validity.items()
-                ),
-                indent + "  ",
-            )
-        )
-    coefficients = record.get("coefficients") or {}
-    if coefficients:
-        lines.append(
-            _wrap(
-                "coefficients: "
-                + "; ".join(f"{k} = {v['value']} {v['units']}" for k, v in coefficients.items()),
-                indent + "  ",
-            )
-        )
-    lines.append(_wrap(f"obtained: {record.get('obtained', '?')}", indent + "  "))
-    fitted = record.get("fitted")
-    if fitted:
-        lines.append(
-            _wrap(
-                f"fitted: {', '.join(fitted['free'])} free, to {fitted['points']} points; chi2 "
-                f"{fitted['chi2']:.4g} for {fitted['dof']} degrees of freedom; base model "
-                f"{fitted['base_model']}",
-                indent + "  ",
-            )
-        )
-    if "file" in record:
-        where = record.get("catalogue") or {}
-        folder = "datasets"
-        if where.get("name", "matprops") != "matprops":  # an overlay catalogue
-            lines.append(
-                _wrap(
-                    f"catalogue: {where['name']} ({where['description']}), {where['path']}",
-                    indent + "  ",
-                )
-            )
-            folder = where["path"]
-        lines.append(
-            f"{indent}  file: {folder}/{record['file']} (sha256 {record.get('sha256', '')[:12]}...)"
-        )
-    for part in record.get("components", {}).values():
-        lines += _provenance_text(part, indent + "  ")
-    return lines
-
-
-def _source_text(source: dict) -> str:
-    """One line for a source record of any type (an article: journal, volume, pages; a
-    book: edition, publisher, address, pages), as ``Source.as_dict`` gives it."""
-    names = list(source.get("authors", []))
-    authors = ", ".join(names[:3]) + (" et al." if len(names) > 3 else "")
-    head = f"{authors} ({source.get('year', '?')})"
-    if source.get("type") == "book":
-        edition = f"{source['edition']} edition" if source.get("edition") else ""
-        place = ", ".join(p for p in (edition, source.get("publisher"), source.get("address")) if p)
-        text = f"{head}, {source.get('title', '')}" + (f" ({place})" if place else "")
-        if source.get("pages"):
-            text += f", pp. {source['pages']}"
+    catalogue = si.catalog
+    if args.model_id is None:
+        model = si.model(args.quantity)
     else:
-        parts = [p for p in (source.get("journal"), source.get("volume")) if p]
-        text = f"{head}, {' '.join(parts)}" + (
-            f", {source['pages']}" if source.get("pages") else ""
-        )
-    return text + (f", doi:{source['doi']}" if source.get("doi") else "")
+        catalogue.model_ids(args.quantity)  # unknown quantity -> error listing what exists
+        model = catalogue.model(args.quantity, args.model_id)
+    defaults = [
+        r
+        for r in catalogue.release_ids()
+        if catalogue.release(r).models.get(args.quantity) == model.id
+    ]
+    composed = ", ".join(f"{q} {si.models.get(q, '?')}" for q in model.requires)
+    print("\n".join(render.model_record(model, "full", defaults=defaults, composed_with=composed)))
 
 
 def _cmd_provenance(args):
-    record = _silicon(args).provenance(args.quantity)
+    si = _silicon(args)
+    record = si.provenance(args.quantity)
     if args.json:
         print(json.dumps(record, indent=2, ensure_ascii=False))
         return
-    lines = _provenance_text(record)
+    lines = render.provenance_lines(si, record["quantity"])
     status = f"release {record['release']} ({record['release_status']})"
     if record.get("release_base"):  # an own release of an overlay catalogue
         owner = record.get("release_catalogue", {}).get("name", "?")
@@ -623,7 +470,7 @@ def _cmd_provenance(args):
         status += f"; overridden with --model (the release chose {record['release_choice']})"
     lines.append(status)
     lines.append(
-        _wrap(
+        render.wrap(
             f"(all fields: matprops provenance {args.quantity} --json; the "
             f"model in full: matprops describe {args.quantity})"
         )
@@ -639,33 +486,7 @@ def _cmd_release_diff(args):
     if args.json:
         print(json.dumps(diff, indent=1, ensure_ascii=False))
         return
-    old, new = diff["old"], diff["new"]
-    print(f"models: release {old} -> {new}")
-    for record in diff["models"]:
-        mark = "changed" if record["changed"] else "same"
-        print(f"  {record['quantity']:24s} {record['old']!s:24s} -> {record['new']!s:24s} {mark}")
-    for record in diff["defaults"]:
-        print(
-            f"  default of {record['option']}: {record['old'] or 'physics'} -> "
-            f"{record['new'] or 'physics'}"
-        )
-    print(f"\nlargest deviation on the standard reference grid ({new} against {old}):")
-    for record in diff["deviations"]:
-        if record["largest_relative"] is None:
-            detail = record.get("note", "no finite values to compare")
-        else:
-            at = ", ".join(
-                f"{k}={v:g}" if isinstance(v, float) else f"{k}={v}"
-                for k, v in (record["at"] or {}).items()
-            )
-            detail = (
-                f"{100 * record['largest_relative']:.3g} % "
-                f"({record['largest_absolute']:.3g} {record['units']})"
-                + (f" at {at}" if at else "")
-            )
-        print(_wrap(f"{record['case']:28s} {detail}", "  "))
-    print(f"\nnotes of {new} (each change with its size at standard points):")
-    print("\n".join("  " + line for line in diff["notes"].splitlines()))
+    print("\n".join(render.release_difference_lines(diff)))
 
 
 def _scenario(name: str):
@@ -678,160 +499,6 @@ def _scenario(name: str):
     return catalog.root / "scenarios" / f"{name}.toml", catalog.scenario(name)
 
 
-def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
-    """The scenario's table: every listed quantity the release serves, at its
-    operating points (and its regions' dopings for doping-dependent quantities).
-
-    Returns (dataset, skipped quantity names).
-    """
-    import xarray as xr
-
-    from ..material.tables import AXES, QUANTITIES, available
-    from ..units import Q_
-
-    units = scenario["temperature"]["units"]
-    points = []
-    for site, conditions in scenario["temperature"]["sites"].items():
-        for condition, value in conditions.items():
-            points.append((float(value), f"{site}: {condition}"))
-    points.sort()
-    temperature = Q_(np.array([p[0] for p in points]), units)
-    labels = np.array([p[1] for p in points])
-    serves = set(available(si))
-    listed = scenario["quantities"]
-    shown = [q for q in listed if q in serves]
-    skipped = [q for q in listed if q not in serves]
-    doping = {"acceptor_density", "donor_density", "excess_density"}
-    plain = [q for q in shown if not set(QUANTITIES[q].takes) & doping]
-    doped = [q for q in shown if q not in plain]
-    extra = {}
-    if scenario.get("carriers"):
-        extra["carrier"] = scenario["carriers"]
-    parts = []
-    if plain:
-        takes = set().union(*(QUANTITIES[q].takes for q in plain))
-        parts.append(
-            si.table(
-                plain, temperature=temperature, **{k: v for k, v in extra.items() if k in takes}
-            )
-        )
-    if doped:
-        takes = set().union(*(QUANTITIES[q].takes for q in doped))
-        regions, per_region = list(scenario["regions"]), []
-        for region in regions:
-            spec = scenario["regions"][region]
-            grid = {
-                k: Q_(float(spec[k]), spec["units"])
-                for k in ("acceptor_density", "donor_density", "excess_density")
-                if k in spec and k in takes
-            }
-            grid.update({k: v for k, v in extra.items() if k in takes})
-            table = si.table(doped, temperature=temperature, **grid)
-            per_region.append(
-                table.reset_coords(
-                    [c for c in grid if c in AXES and c in table.coords and not table[c].dims],
-                    drop=False,
-                )
-            )
-        region_table = xr.concat(
-            per_region,
-            dim="region",
-            data_vars="all",
-            coords="minimal",
-            compat="override",
-            combine_attrs="override",
-        )
-        region_table = region_table.assign_coords(region=("region", np.array(regions)))
-        for name in ("acceptor_density", "donor_density", "excess_density"):
-            if name in region_table.data_vars:
-                region_table = region_table.set_coords(name)
-        parts.append(region_table)
-    data = (
-        xr.merge(parts, combine_attrs="override")
-        if parts
-        else xr.Dataset(coords={"temperature": ("temperature", temperature.m_as("K"))})
-    )
-    if "carrier" in data.dims:  # one variable per carrier keeps the screen table narrow
-        for name in [v for v in data.data_vars if "carrier" in data[v].dims]:
-            for carrier in data["carrier"].values:
-                attrs = dict(data[name].attrs, carrier=str(carrier))
-                attrs["long_name"] = f"{carrier} {attrs.get('long_name', name)}"
-                data[f"{carrier}_{name}"] = (
-                    data[name].sel(carrier=carrier, drop=True).assign_attrs(attrs)
-                )
-            data = data.drop_vars(name)
-        data = data.drop_vars("carrier")
-    data = data.assign_coords(
-        operating_point=("temperature", labels, {"long_name": "invented operating point"})
-    )
-    data.attrs.update(
-        {
-            "title": scenario["title"],
-            "scenario": f"{scenario['name']} ({path_name}); INVENTED data for demonstration",
-            "scenario_note": "INVENTED scenario - not measured data, not a real product or site.",
-        }
-    )
-    if data.attrs.get("references"):
-        data.attrs["references"] = si.cite(
-            format="text",
-            quantities=list(
-                dict.fromkeys(q for name in shown for q in QUANTITIES[name].model_quantities())
-            ),
-        )
-    return data, skipped
-
-
-def _scenario_text(data, scenario: dict) -> str:
-    """A scenario's table for the screen, one block per site: operating points across
-    (at most ~80 columns), quantities down; doping-dependent rows per region."""
-    from ..units import Q_
-
-    units = scenario["temperature"]["units"]
-    labels = [str(v) for v in data["operating_point"].values]
-    sites = list(dict.fromkeys(label.split(": ")[0] for label in labels))
-    regions = list(data["region"].values) if "region" in data.dims else []
-
-    def row(name, values):
-        cells = "".join(f" {v:>11.4g}" if isinstance(v, float) else f" {v:>11}" for v in values)
-        return f"{name[:36]:<36}{cells}"
-
-    def rows_for(columns, region=None):
-        lines = []
-        for variable in data.data_vars:
-            array = data[variable]
-            if ("region" in array.dims) != (region is not None):
-                continue
-            if region is not None:
-                array = array.sel(region=region)
-            unit = array.attrs.get("units", "")
-            extra = [d for d in array.dims if d != "temperature"]
-            picks = [{}] if not extra else [{extra[0]: value} for value in data[extra[0]].values]
-            for pick in picks:
-                selected = array.sel(pick) if pick else array
-                suffix = f" ({next(iter(pick.values()))})" if pick else ""
-                values = [float(selected.values[i]) for i in columns]
-                lines.append(row(f"{variable}{suffix} [{unit}]", values))
-        return lines
-
-    out = []
-    for site in sites:
-        columns = [i for i, label in enumerate(labels) if label.startswith(site + ":")]
-        out.append(f"== {site} (invented) ==")
-        out.append(row("operating point", [labels[i].split(": ")[1] for i in columns]))
-        shown = Q_(data["temperature"].values, "K").to(units).magnitude
-        out.append(row(f"temperature [{units}]", [float(shown[i]) for i in columns]))
-        out.extend(rows_for(columns))
-        for region in regions:
-            spec = scenario["regions"][str(region)]
-            out.append(
-                f"-- {region}: {spec.get('note', '')} (Na {spec['acceptor_density']:g},"
-                f" Nd {spec['donor_density']:g} {spec['units']})"
-            )
-            out.extend(rows_for(columns, region))
-        out.append("")
-    return "\n".join(out)
-
-
 def _cmd_demo(args):
     path, scenario = _scenario(args.scenario)
     if not scenario.get("invented"):
@@ -842,7 +509,7 @@ def _cmd_demo(args):
     if on_screen:
         print(scenario["title"])
         print(f"(INVENTED data for demonstration; datasets/scenarios/{path.name})")
-        print(_wrap(scenario.get("description", "")))
+        print(render.wrap(scenario.get("description", "")))
         print()
     if args.output and args.output.lower().endswith((".png", ".svg")):
         from ..outputs.plotting import plot
@@ -851,35 +518,35 @@ def _cmd_demo(args):
         print(f"wrote {args.output}")
         if skipped:
             print(
-                _wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
+                render.wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
                 file=sys.stderr,
             )
         return
     names = [data[v].attrs["quantity"] for v in data.data_vars]
-    footer = _footer(si, list(dict.fromkeys(names)))
+    footer = render.table_footer(si, list(dict.fromkeys(names)))
     if skipped:
-        footer += "\n" + _wrap("not yet in this release, skipped: " + ", ".join(skipped))
+        footer += "\n" + render.wrap("not yet in this release, skipped: " + ", ".join(skipped))
     if on_screen:
-        print(_scenario_text(data, scenario))
+        print(render.scenario_text(data, scenario))
         print(footer)
         return
     _emit(args, data, footer)
     if not on_screen and skipped:
         print(
-            _wrap("note: not yet in this release, skipped: " + ", ".join(skipped)), file=sys.stderr
+            render.wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
+            file=sys.stderr,
         )
 
 
 def _cmd_models(args):
     _catalog()
-    catalog = own.catalogue(args)
-    quantities = [args.quantity] if args.quantity else catalog.quantities()
+    catalogue = own.catalogue(args)
+    quantities = [args.quantity] if args.quantity else catalogue.quantities()
     for quantity in quantities:
         print(f"{quantity}:")
-        for model_id in catalog.model_ids(quantity):
-            model = catalog.model(quantity, model_id)
-            ranges = ", ".join(str(r) for r in model.validity.values()) or "no limits"
-            print(_wrap(f"{model_id:22s} {model.name} [{ranges}]", "  "))
+        for model_id in catalogue.model_ids(quantity):
+            model = catalogue.model(quantity, model_id)
+            print("\n".join(render.model_record(model, "line", indent="  ")))
 
 
 def _cmd_releases(args):
