@@ -17,6 +17,7 @@ from __future__ import annotations
 import os
 from collections import Counter
 from collections.abc import Iterable, Mapping, Sequence
+from typing import Any
 
 import numpy as np
 
@@ -289,6 +290,7 @@ class Silicon(
     def provenance(self, name: str) -> dict:
         """Model id, source, DOI, validity, coefficients, release, and overrides."""
         name = REGISTRY.canonical(check_name(name))
+        record: dict[str, Any]
         if name in DERIVED:
             parts, formula = DERIVED[name]
             record = {
@@ -453,7 +455,8 @@ def _data_digests(si: Silicon) -> dict[str, str]:
     for model in si._models.values():
         walk(model)
     for entry in defects.describe(si.catalog):
-        files.add(entry.path)
+        if entry.path is not None:
+            files.add(entry.path)
         if entry.thermal_velocity:
             files.add(si.catalog.model("thermal_velocity", entry.thermal_velocity).path)
     from ..catalogue.overlay import file_label

@@ -177,6 +177,4 @@ def test_kernels_serve_stand_in_species_and_say_so(si):
     mobility = si.kernel("mobility", carrier="hole", acceptor="gallium")
     assert "gallium: the boron set" in mobility.__doc__
     densities = {"Nd": 0.0, "Na": 1e16, "n": 1e4, "p": 1e16}
-    assert mobility(300.0, **densities) == si.kernel("mobility", carrier="hole")(
-        300.0, **densities
-    )
+    assert mobility(300.0, **densities) == si.kernel("mobility", carrier="hole")(300.0, **densities)
