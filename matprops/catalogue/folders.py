@@ -16,6 +16,7 @@ from pathlib import Path
 
 from ..errors import DatasetError, UnknownModelError, UnknownReleaseError
 from . import finality
+from .records import CatalogueLike
 from .store import CHECKSUM_FILE, DATA_FILES, RELEASE_ID, _parse_toml, parse_checksums
 
 __all__ = [
@@ -228,14 +229,15 @@ def archive_own(overlay, release) -> Path:
     if target.exists():
         raise DatasetError(target, "exists already: an own release is archived once")
     copies: dict[Path, bytes] = {}
-    tables: set[tuple[str, object]] = set()
+    tables: set[tuple[str, CatalogueLike]] = set()  # table name, catalogue that reads it
     for quantity in sorted(release.models):
         for model_id in view.model_ids(quantity):
             model = view.model(quantity, model_id)
             copies[target / "models" / quantity / f"{model_id}.toml"] = overlay.verified_bytes(
                 model.path
             )
-            tables.update((name, model.catalogue) for name in model.tables)
+            if model.catalogue is not None:
+                tables.update((name, model.catalogue) for name in model.tables)
     defects = view.data_folder("defects")
     for path in sorted(defects.glob("*.toml")) if defects.is_dir() else []:
         copies[target / "defects" / path.name] = overlay.verified_bytes(path)
@@ -295,4 +297,4 @@ def seal_own(overlay, release, date: str) -> tuple[Path, str]:
 def forget(overlay, release_id: str) -> None:
     """Drop what an overlay has built for a release (after it was frozen)."""
     with overlay._lock:
-        overlay._views.pop(release_id, None)
+        overlay._release_views.pop(release_id, None)

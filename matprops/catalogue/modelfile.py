@@ -208,7 +208,7 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
         "obtained": obtained,
         "notes": notes,
         "path": path,
-        "sha256": catalog.checksums().get(path.relative_to(catalog.root).as_posix(), ""),
+        "sha256": catalog.recorded(path),
         "requires": requires,
         "additional_sources": additional_sources,
         "fallback": fallback,

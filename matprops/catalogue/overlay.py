@@ -46,6 +46,7 @@ import threading
 from collections.abc import Iterable, Mapping, Sequence
 from pathlib import Path
 from types import MappingProxyType
+from typing import cast
 
 from ..errors import (
     DatasetError,
@@ -124,6 +125,8 @@ class Overlay(Catalog):
                 "matprops.create_catalogue(path, name=..., description=...))",
             )
         self.below = below
+        # the views of releases (this folder's own, and those of catalogues below)
+        self._release_views: dict[str, _View] = {}
         self._seal_record = seals if seals is not None else SealRecord()
         self.digest = ""
         for layer in _layers(below):
@@ -379,13 +382,16 @@ class Overlay(Catalog):
         a release of a catalogue below, this folder's models over that release's view
         (so ``models=`` may choose one of this folder's models)."""
         with self._lock:
-            view = self._views.get(release.id)
-        if view is not None:
-            return view
+            known = self._release_views.get(release.id)
+        if known is not None:
+            return known
+        view: _View
         if self.owns(release.path):
             if release.final and (self.root / "archive" / release.id).is_dir():
                 view = OwnReleaseView(self, release)
             else:
+                if release.base is None:  # (the reader refuses one without)
+                    raise DatasetError(release.path, "an own release names its base")
                 base = self.release(release.base)
                 lower = self.for_release(base) if self.owns(base.path) else None
                 if lower is None:
@@ -394,7 +400,7 @@ class Overlay(Catalog):
         else:
             view = OverlayView(self, release, self.below.for_release(release))
         with self._lock:
-            return self._views.setdefault(release.id, view)
+            return self._release_views.setdefault(release.id, view)
 
     # -- integrity
     def _check_unique(self) -> None:
@@ -474,11 +480,12 @@ class _View:
     def __deepcopy__(self, memo):
         return self
 
+    # the catalogue's readers, through the view's own table_path and verified_bytes
     def table(self, name: str):
-        return Catalog.table(self, name)
+        return Catalog.table(cast(Catalog, self), name)
 
     def table_arrays(self, name: str):
-        return Catalog.table_arrays(self, name)
+        return Catalog.table_arrays(cast(Catalog, self), name)
 
     def for_release(self, release: Release):
         return self.overlay.for_release(release)
@@ -720,8 +727,9 @@ def from_key(key: tuple | None) -> Catalog:
 
 
 def _overlay_from(key) -> Overlay | Unusable:
-    try:
-        return from_key(key)
+    try:  # (an overlay's key: the rebuilt catalogue is an overlay)
+        _, root, digest, name, seals, below = key
+        return _rebuild_overlay(root, digest, from_key(below), {(name, r): d for r, d in seals})
     except Error as exc:  # (never raise while unpickling: see errors.Unusable)
         return Unusable(exc, Overlay)
 

@@ -274,7 +274,7 @@ def model_file(
         new["fit_conventions"] = merged
     correlation = fit.correlation
     labels = [f"{fit.variant}.{n}" if fit.variant else n for n in fit.free]
-    uncertainty = {
+    uncertainty: dict[str, object] = {
         "statement": "stated",
         "obtained": "the fit's covariance: standard uncertainties of the free coefficients "
         "and their correlations; the other coefficients as the base model states them",

@@ -44,12 +44,16 @@ from __future__ import annotations
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from ..errors import Error, InputError, UnknownNameError
 from .fitfile import _printed, _split, _to_printed
 from .measurements import Measurements, read_measurements
+
+if TYPE_CHECKING:
+    from ..catalogue.records import Model
 
 __all__ = ["Fit", "fit", "read_measurements"]
 
@@ -67,8 +71,8 @@ class Fit:
     """
 
     quantity: str
-    base: object  # the base Model (the coefficient set fitted, for a variant)
-    parent: object  # the base Model as its file reads (all coefficient sets)
+    base: Model  # the base model (the coefficient set fitted, for a variant)
+    parent: Model  # the base model as its file reads (all coefficient sets)
     release: str | None
     variant: str | None
     free: tuple[str, ...]
@@ -433,7 +437,7 @@ def _bounds(model, elements, given) -> tuple[np.ndarray, np.ndarray]:
         pair = given.get(element, given.get(_split(element)[0]))
         if pair is not None:
             coefficient = _printed(model, element)
-            converted = []
+            converted: list[float | None] = []
             for end in pair:
                 if end is None:
                     converted.append(None)

@@ -119,7 +119,7 @@ def read_measurements(data, quantity: str, model, inputs: Mapping | None = None)
             given[canonical] = float(np.asarray(value.m_as(_units_of(spec.inputs[canonical]))))
         else:
             given[canonical] = float(value)
-    arrays = {}
+    arrays: dict[str, np.ndarray] = {}
     for argument, target in spec.inputs.items():
         if argument in given:
             if argument in names:

@@ -376,8 +376,16 @@ def regenerate(release_id: str, catalog: Catalog | None = None) -> Path:
     }
     target = release.reference_path
     _atomic_write_text(target, json.dumps(content, indent=1, ensure_ascii=False) + "\n")
-    release.catalogue.write_checksums()  # of the folder that holds the release
+    _holder(release).write_checksums()  # of the folder that holds the release
     return target
+
+
+def _holder(release) -> Catalog:
+    """The catalogue whose folder holds a release's file (the shipped one or an overlay)."""
+    holder = release.catalogue
+    if not isinstance(holder, Catalog):  # (every release is read by a catalogue)
+        raise Error(f"release {release.id} was not read from a catalogue folder")
+    return holder
 
 
 def _compare_cases(si, frozen: dict, fresh: dict) -> list[str]:
@@ -625,14 +633,16 @@ def _run(args) -> int:
             return 0
         if args.action == "freeze":
             digest = freeze(args.release, catalog)
+            from ..catalogue.overlay import Overlay
+
             release = (catalog or default_catalog()).release(args.release)
-            if release.base is None:
+            layer = _holder(release)
+            if not isinstance(layer, Overlay):  # a release shipped with matprops
                 print(
                     f"release {args.release} is final: sealed with sha256 {digest}, recorded "
                     "in matprops/catalogue/finality.py (commit both)"
                 )
             else:
-                layer = release.catalogue
                 print(
                     f"release {args.release} is final: sealed with sha256 {digest}, recorded "
                     f"in {layer.seal_record.where} as '{digest}  {args.release}  "

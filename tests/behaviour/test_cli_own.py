@@ -96,6 +96,10 @@ def test_fit_prints_the_coefficients_and_writes_the_model(lab, capsys):
     assert code == 0
     assert "catalogue: cli-lab (a fictional lab (tests))" in out
     assert "fitted: gap_at_zero, alpha free, to 17 points" in out
+    code, out, _ = run(capsys, "describe", "band_gap", "clilab-2027", "--catalogue", lab)
+    assert code == 0
+    assert "fitted: gap_at_zero, alpha free" in out
+    assert f"file: {lab}/models/band_gap/clilab-2027.toml" in out.replace("\n", "")
     code, _, _ = run(capsys, "catalogue", "check", lab)
     assert code == 0
 
