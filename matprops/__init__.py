@@ -23,6 +23,10 @@ __all__ = [
     "Silicon",
     "releases",
     "models",
+    "fit",
+    "create_catalogue",
+    "create_release",
+    "freeze_release",
     "Q_",
     "ureg",
     "optics",
@@ -36,6 +40,10 @@ _LAZY = {
     "Silicon": "material.silicon",
     "releases": "material.silicon",
     "models": "material.silicon",
+    "fit": "outputs.fitting",
+    "create_catalogue": "outputs.catalogues",
+    "create_release": "outputs.catalogues",
+    "freeze_release": "outputs.catalogues",
     "Q_": "units",
     "ureg": "units",
 }
@@ -53,6 +61,7 @@ _SUBMODULES = {
     "export": "outputs.export",
     "plotting": "outputs.plotting",
     "changes": "outputs.changes",
+    "fitting": "outputs.fitting",
 }
 
 

@@ -8,12 +8,14 @@
   ``[fit_conventions]`` section of a composed quantity's model file);
 - :mod:`.modelfile` — the checks and binding of one model file to its kernel;
 - :mod:`.store` — :class:`Catalog`: finds, verifies (checksums) and loads the files;
+- :mod:`.overlay` — overlay catalogues: a lab's own models and releases layered over
+  the shipped data (:mod:`.folders` writes their folders), each checked like them;
 - :mod:`.defects` — the defect catalogue of Shockley-Read-Hall centres;
 - :mod:`.checks` — the integrity check of a whole datasets folder
   (``python -m matprops.catalogue``).
 
 Imports run downward only: records -> fields/regions/schema -> conventions -> modelfile -> store ->
-defects -> checks.
+folders -> overlay -> defects -> checks.
 """
 
 from .records import Coefficient, Model, Range, Release, Source

@@ -30,8 +30,25 @@ def main(argv=None) -> int:
         help="record the sha256 of every dataset file (after a deliberate change)",
     )
     parser.add_argument("--root", type=Path, default=None, help="datasets folder")
+    parser.add_argument(
+        "--catalogue",
+        action="append",
+        default=[],
+        type=Path,
+        metavar="PATH",
+        help="check (or re-record) an overlay catalogue of own models and releases instead; "
+        "repeatable, each may build on those given after it",
+    )
+    parser.add_argument(
+        "--seals",
+        default=None,
+        metavar="FILE",
+        help="the record of final own releases (default $MATPROPS_SEALS or the user's)",
+    )
     args = parser.parse_args(argv)
     try:
+        if args.catalogue:
+            return _check_overlays(args)
         catalog = Catalog(args.root)
         if args.update_checksums:
             with interruptible("python -m matprops.catalogue"):  # no temporary left behind
@@ -39,15 +56,32 @@ def main(argv=None) -> int:
     except Error as exc:  # e.g. a read-only install, MATPROPS_DATASETS pointing nowhere
         print(f"error: {exc}", file=sys.stderr)
         return 2
-    problems, checked = check(catalog)
+    return _report(*check(catalog), catalog.root)
+
+
+def _report(problems, checked, root) -> int:
     for problem in problems:
         print(f"error: {problem}")
     print(
-        f"{catalog.root}: all {checked} dataset files verified"
+        f"{root}: all {checked} dataset files verified"
         if not problems
-        else f"{len(problems)} problem(s) in {catalog.root}"
+        else f"{len(problems)} problem(s) in {root}"
     )
     return 1 if problems else 0
+
+
+def _check_overlays(args) -> int:
+    from .overlay import _write_checksums_of, catalog_at
+
+    roots = [path.expanduser().resolve() for path in args.catalogue]
+    if args.update_checksums:
+        for root in roots:
+            print(f"wrote {_write_checksums_of(root)}")
+    status = 0
+    for index, root in enumerate(roots):
+        overlay = catalog_at(args.root, roots[index:], args.seals)
+        status = max(status, _report(*check(overlay), root))
+    return status
 
 
 if __name__ == "__main__":

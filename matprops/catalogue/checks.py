@@ -19,13 +19,7 @@ from .store import CHECKSUM_FILE, Catalog
 __all__ = ["check"]
 
 
-def check(catalog: Catalog) -> tuple[list[str], int]:
-    """(problems, number of data files verified); no problems means all is well."""
-    root = catalog.root
-    if not root.is_dir():
-        return [f"{root}: the datasets folder does not exist"], 0
-    problems: list[str] = []
-
+def _attempts(problems: list[str]):
     def attempt(action, *args):
         try:
             return action(*args)
@@ -35,9 +29,15 @@ def check(catalog: Catalog) -> tuple[list[str], int]:
                 problems.append(str(exc))
             return None
 
+    return attempt
+
+
+def _files(catalog, problems, attempt) -> int | None:
+    """Check the checksum list against the files on disk; the number verified."""
+    root = catalog.root
     recorded = attempt(catalog.checksums)
     if recorded is None:
-        return problems, 0
+        return None
     on_disk = set(catalog.data_files())
     for relative in sorted(set(recorded) - on_disk):
         problems.append(f"{root / relative}: listed in {CHECKSUM_FILE} but missing")
@@ -48,6 +48,24 @@ def check(catalog: Catalog) -> tuple[list[str], int]:
         )
     for relative in sorted(on_disk & set(recorded)):
         attempt(catalog.verified_bytes, root / relative)
+    return len(on_disk & set(recorded))
+
+
+def check(catalog: Catalog) -> tuple[list[str], int]:
+    """(problems, number of data files verified); no problems means all is well."""
+    from .overlay import Overlay
+
+    if isinstance(catalog, Overlay):
+        return check_overlay(catalog)
+    root = catalog.root
+    if not root.is_dir():
+        return [f"{root}: the datasets folder does not exist"], 0
+    problems: list[str] = []
+    attempt = _attempts(problems)
+    if _files(catalog, problems, attempt) is None:
+        return problems, 0
+    on_disk = set(catalog.data_files())
+    recorded = catalog.checksums()
 
     quantities = attempt(catalog.quantities)  # None: the folder is missing (reported)
     if quantities == []:
@@ -91,3 +109,52 @@ def check(catalog: Catalog) -> tuple[list[str], int]:
     for name in defects.names(catalog):
         attempt(defects.defect, name, catalog)
     return problems, len(on_disk & set(recorded))
+
+
+def check_overlay(overlay) -> tuple[list[str], int]:
+    """The check of one overlay catalogue folder (:mod:`.overlay`): its checksum list
+    against its files, every own model file (and the data it cites), every own
+    release as it sees its models (a final one: its seal and its archive), and the
+    frozen reference of each."""
+    problems: list[str] = []
+    attempt = _attempts(problems)
+    checked = _files(overlay, problems, attempt)
+    if checked is None:
+        return problems, 0
+    for quantity in overlay.own_quantities():
+        for model_id in overlay.own_model_ids(quantity):
+            model = attempt(overlay.model, quantity, model_id)
+            if model is not None and model.kind == "table":
+                attempt(model.function._load)
+    for release_id in overlay.own_release_ids():
+        release = attempt(overlay.release, release_id)
+        if release is None:
+            continue
+        view = attempt(overlay.for_release, release)
+        if view is None:
+            continue
+        for quantity, model_id in release.models.items():
+            attempt(view.model, quantity, model_id)
+        for quantity in view.quantities() if release.final else ():
+            for model_id in view.archived_model_ids(quantity):
+                attempt(view.model, quantity, model_id)
+        if not release.reference_path.is_file():
+            problems.append(
+                f"{release.reference_path}: missing (an own release's frozen reference: "
+                "python -m matprops.outputs.reference regenerate "
+                f"{release_id} --catalogue {overlay.root})"
+            )
+            continue
+        reference = attempt(overlay.verified_bytes, release.reference_path)
+        if reference is not None:
+            try:
+                json.loads(reference)
+            except ValueError as exc:
+                problems.append(f"{release.reference_path}: not valid JSON: {exc}")
+    for ignored in ("defects", "scenarios"):
+        if (overlay.root / ignored).is_dir():
+            problems.append(
+                f"{overlay.root / ignored}: an overlay catalogue's {ignored} are not read "
+                "(it holds models, releases, measurements and tables)"
+            )
+    return problems, checked

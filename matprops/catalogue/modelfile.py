@@ -89,6 +89,24 @@ def _source(path, src, where: str) -> Source:
     authors = src["authors"]
     if not isinstance(authors, list) or not authors:
         raise DatasetError(path, f"field '{where}authors' must be a non-empty list")
+    if kind == "measurement":
+        digest = str(src["data_sha256"])
+        if len(digest) != 64 or not all(c in "0123456789abcdef" for c in digest):
+            raise DatasetError(path, f"field '{where}data_sha256' must be a sha256 (64 hex digits)")
+        return Source(
+            tuple(authors),
+            int(src["year"]),
+            str(src["title"]),
+            "",
+            "",
+            "",
+            str(src["doi"]),
+            type="measurement",
+            lab=str(src.get("lab", "")),
+            description=str(src["description"]),
+            data=str(src["data"]),
+            data_sha256=digest,
+        )
     if kind == "book":
         return Source(
             tuple(authors),
@@ -171,6 +189,8 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
             f"quantities; {data['kernel']!r} requires none",
         )
     extra = _extra_sections(path, quantity, data, catalog, requires)
+    if "fitted" in data:  # a model fitted to one's own measurements: how, and how well
+        extra["fitted"] = _fitted_section(path, data["fitted"], catalog)
     if "stand_ins" in data:  # what serves a dopant species without a set of its own
         extra["stand_ins"] = MappingProxyType(
             parse_stand_ins(
@@ -188,7 +208,7 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
         "obtained": obtained,
         "notes": notes,
         "path": path,
-        "sha256": catalog.checksums().get(path.relative_to(catalog.root).as_posix(), ""),
+        "sha256": catalog.recorded(path),
         "requires": requires,
         "additional_sources": additional_sources,
         "fallback": fallback,
@@ -485,8 +505,8 @@ def coefficient_entry(name: str, coefficients, variants):
     coefficient = table.get(name)
     if coefficient is None or coefficient.uncertainty is None:
         return None
-    if (index is None) != isinstance(coefficient.value, tuple):
-        return None
+    if (index is not None) != isinstance(coefficient.value, tuple):
+        return None  # an index for a vector's element, none for a number
     if index is not None and not 0 <= index < len(coefficient.value):
         return None
     return coefficient, index
@@ -676,6 +696,25 @@ def _extra_sections(path, quantity, data, catalog, requires=()) -> dict:
             quantity, found, "radiative_coefficient" in requires, narrowing_models
         )
     return found
+
+
+def _fitted_section(path, entry, catalog) -> dict:
+    """The ``[fitted]`` section of a model fitted by :func:`matprops.fit`: the base
+    model it started from, which coefficients were free, the method and the fit's
+    statistics (schema: :data:`~.schema.FITTED`)."""
+    quantity, _, model_id = entry["base_model"].partition("/")
+    if quantity != path.parent.name or not MODEL_ID.match(model_id):
+        raise DatasetError(
+            path,
+            f"fitted.base_model must be '<quantity>/<model-id>' of this quantity, "
+            f"got {entry['base_model']!r}",
+        )
+    if entry["dof"] < 0 or entry["points"] < 1 or entry["chi2"] < 0:
+        raise DatasetError(path, "fitted: points >= 1, dof >= 0 and chi2 >= 0")
+    record = dict(entry)
+    record["date"] = str(entry["date"])
+    record["residuals"] = dict(entry["residuals"])
+    return record
 
 
 # every table function, so that a forked child can give each a fresh lock: a lock held

@@ -46,6 +46,8 @@ class CatalogueLike(Protocol):
 
     def checksums(self) -> dict[str, str]: ...
 
+    def recorded(self, path: Path) -> str: ...
+
     @property
     def root(self) -> Path: ...
 
@@ -55,8 +57,11 @@ SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi"
 SOURCE_TYPES = {
     "article": SOURCE_FIELDS,
     "book": ("authors", "year", "title", "publisher", "doi"),
+    # a lab's own measurement, fitted into a model of an overlay catalogue
+    "measurement": ("authors", "year", "title", "description", "data", "data_sha256", "doi"),
 }
 BOOK_FIELDS = ("publisher", "edition", "address", "pages")
+MEASUREMENT_FIELDS = ("lab", "description", "data", "data_sha256")
 
 
 # --------------------------------------------------------------------------- records
@@ -66,8 +71,11 @@ BOOK_FIELDS = ("publisher", "edition", "address", "pages")
 class Source:
     """A bibliographic record of the publication a model comes from.
 
-    ``type`` is ``"article"`` (journal, volume, pages) or ``"book"`` (publisher,
-    optional edition, address and pages); it decides the BibTeX entry type.
+    ``type`` is ``"article"`` (journal, volume, pages), ``"book"`` (publisher,
+    optional edition, address and pages) or ``"measurement"`` (a lab's own measured
+    data: the people who measured, the ``lab``, a ``description`` of the data and the
+    file ``data`` in the overlay catalogue's ``measurements/`` folder with its
+    ``data_sha256``); it decides the BibTeX entry type.
     """
 
     authors: tuple[str, ...]
@@ -81,10 +89,20 @@ class Source:
     publisher: str = ""
     edition: str = ""
     address: str = ""
+    lab: str = ""
+    description: str = ""
+    data: str = ""
+    data_sha256: str = ""
 
     def citation(self) -> str:
         authors = ", ".join(self.authors)
         doi = f", doi:{self.doi}" if self.doi else ""
+        if self.type == "measurement":
+            lab = f" ({self.lab})" if self.lab else ""
+            return (
+                f'{authors}{lab}, "{self.title}", own measurement ({self.year}), '
+                f"data {self.data} (sha256 {self.data_sha256[:12]}){doi}"
+            )
         if self.type == "book":
             edition = f", {self.edition} edition" if self.edition else ""
             place = f"{self.publisher}, {self.address}" if self.address else self.publisher
@@ -104,7 +122,13 @@ class Source:
             f"  author = {{{' and '.join(esc(a) for a in self.authors)}}},",
             f"  title = {{{{{esc(self.title)}}}}},",
         ]
-        if self.type == "book":
+        if self.type == "measurement":
+            lines[0] = f"@misc{{{key},"
+            fields = [
+                ("howpublished", f"own measurement, data {self.data}"),
+                ("note", f"{self.lab + '; ' if self.lab else ''}sha256 {self.data_sha256}"),
+            ]
+        elif self.type == "book":
             fields = [
                 ("edition", self.edition),
                 ("publisher", self.publisher),
@@ -139,6 +163,8 @@ class Source:
         }
         if self.type == "book":
             record.update({k: getattr(self, k) for k in BOOK_FIELDS if getattr(self, k)})
+        elif self.type == "measurement":
+            record.update({k: getattr(self, k) for k in MEASUREMENT_FIELDS if getattr(self, k)})
         else:
             record.update({"journal": self.journal, "volume": self.volume, "pages": self.pages})
         record["doi"] = self.doi
@@ -535,6 +561,9 @@ class Model:
             "file": self._relative_path(),
             "sha256": self.sha256,
         }
+        describe = getattr(self.catalogue, "describe", None)
+        if describe is not None:  # which catalogue the file was read from
+            record["catalogue"] = describe()
         if self.table:
             record["tables"] = [f"tables/{t}" for t in self.tables]
         if self.additional_sources:
@@ -623,11 +652,10 @@ class Model:
         """Table file name -> recorded sha256, for the tables this model reads."""
         if not self.tables or self.catalogue is None:
             return {}
-        sums = self.catalogue.checksums()
-        root = self.catalogue.root
+        # (recorded by the folder that holds each table: an overlay's model may read a
+        # table of the shipped data)
         return {
-            name: sums.get(self.catalogue.table_path(name).relative_to(root).as_posix(), "")
-            for name in self.tables
+            name: self.catalogue.recorded(self.catalogue.table_path(name)) for name in self.tables
         }
 
     def __copy__(self):
@@ -713,7 +741,12 @@ def _replace(model: Model, **changes) -> Model:
 
 @dataclass(frozen=True)
 class Release:
-    """A named bundle: one model per quantity, a status, a date, notes."""
+    """A named bundle: one model per quantity, a status, a date, notes.
+
+    An own release of an overlay catalogue names the release it builds on (``base``)
+    and the models it chooses itself (``chosen``); ``models`` is the whole choice (the
+    base's, then its own).
+    """
 
     id: str
     status: str  # "draft" or "final"
@@ -724,10 +757,31 @@ class Release:
     catalogue: CatalogueLike | None = field(default=None, repr=False, compare=False)
     # defaults of methods' options the release chooses (e.g. doping_from_resistivity)
     defaults: Mapping[str, str] = field(default_factory=dict)
+    base: str | None = None
+    chosen: Mapping[str, str] | None = field(default=None, compare=False)
 
     @property
     def final(self) -> bool:
         return self.status == "final"
+
+    def chosen_by(self, quantity: str) -> str:
+        """The id of the release whose file chose the model of a quantity: this one,
+        or (for an own release) the base it inherits the choice from."""
+        if self.base is None or quantity in (self.chosen or {}):
+            return self.id
+        if self.catalogue is None:
+            return self.base
+        return self.catalogue.release(self.base).chosen_by(quantity)
+
+    def origin(self) -> dict:
+        """Which release and catalogue this is (for provenance)."""
+        record = {"release": self.id, "release_status": self.status}
+        if self.base is not None:
+            record["release_base"] = self.base
+        describe = getattr(self.catalogue, "describe", None)
+        if describe is not None:
+            record["release_catalogue"] = describe()
+        return record
 
     @property
     def reference_path(self) -> Path:

@@ -34,8 +34,10 @@ from ..errors import DatasetError
 
 __all__ = [
     "DEFECT",
+    "FITTED",
     "KINDS",
     "MODEL",
+    "OVERLAY",
     "RELEASE",
     "SCENARIO",
     "THERMAL_VELOCITY_DEFINITIONS",
@@ -129,7 +131,7 @@ def list_of(entry) -> ListOf:
 # --------------------------------------------------------------------------- sections
 
 SOURCE = {  # which fields each type needs: catalog.SOURCE_TYPES
-    "type": (one_of("article", "book"), OPTIONAL),  # default "article"
+    "type": (one_of("article", "book", "measurement"), OPTIONAL),  # default "article"
     "authors": (TEXTS, REQUIRED),
     "year": (INTEGER, REQUIRED),
     "title": (TEXT, REQUIRED),
@@ -139,6 +141,10 @@ SOURCE = {  # which fields each type needs: catalog.SOURCE_TYPES
     "publisher": (TEXT, OPTIONAL),  # books
     "edition": (TEXT, OPTIONAL),  # books
     "address": (TEXT, OPTIONAL),  # books
+    "lab": (TEXT, OPTIONAL),  # measurements: the lab that measured
+    "description": (TEXT, OPTIONAL),  # measurements: what was measured, how, on what
+    "data": (TEXT, OPTIONAL),  # measurements: the file in the catalogue's measurements/
+    "data_sha256": (TEXT, OPTIONAL),  # measurements: its sha256
     "doi": (TEXT, REQUIRED),  # "" where the publication has none
 }
 
@@ -246,6 +252,30 @@ UNCERTAINTY = {  # [uncertainty] of a model: what its source states about uncert
     "output": (list_of(OUTPUT_UNCERTAINTY), OPTIONAL),
 }
 
+RESIDUALS = {  # of a fit: normalised residuals (data - model) / uncertainty
+    "rms": (NUMBER, REQUIRED),
+    "max_abs": (NUMBER, REQUIRED),
+    "mean": (NUMBER, REQUIRED),
+}
+
+FITTED = {  # [fitted] of a model fitted to one's own measurements (matprops.fit)
+    "base_model": (TEXT, REQUIRED),  # "<quantity>/<model-id>" it started from
+    "base_sha256": (TEXT, REQUIRED),  # that model file's sha256
+    "base_release": (TEXT, OPTIONAL),  # the release it was read as
+    "variant": (TEXT, OPTIONAL),  # the coefficient set fitted (carrier, dopant)
+    "free": (TEXTS, REQUIRED),  # coefficients fitted; the others kept from the base
+    "inputs": (table_of(NUMBER), OPTIONAL),  # kernel inputs held fixed (kernel units)
+    "method": (TEXT, REQUIRED),
+    "covariance": (one_of("from the measured uncertainties", "scaled by reduced chi2"), REQUIRED),
+    "points": (INTEGER, REQUIRED),
+    "dof": (INTEGER, REQUIRED),
+    "chi2": (NUMBER, REQUIRED),
+    "reduced_chi2": (NUMBER, REQUIRED),
+    "residuals": (RESIDUALS, REQUIRED),
+    "date": (DATE, REQUIRED),
+    "software": (TEXT, REQUIRED),
+}
+
 MODEL = {  # datasets/models/<quantity>/<model-id>.toml
     "id": (TEXT, REQUIRED),
     "quantity": (TEXT, REQUIRED),
@@ -275,6 +305,7 @@ MODEL = {  # datasets/models/<quantity>/<model-id>.toml
     "fit": (FIT, OPTIONAL),  # intrinsic_lifetime models
     "definition": (one_of(*THERMAL_VELOCITY_DEFINITIONS), OPTIONAL),  # thermal_velocity
     "uncertainty": (UNCERTAINTY, OPTIONAL),  # absent: "not known" (see records.Uncertainty)
+    "fitted": (FITTED, OPTIONAL),  # fitted to own measurements: how, how well
     # -- new fields: one line here
 }
 
@@ -322,6 +353,13 @@ RELEASE = {  # datasets/releases/<release-id>.toml
     "models": (table_of(TEXT), REQUIRED),  # quantity = "model-id"
     # defaults of methods' options that a release chooses (absent: "physics")
     "defaults": ({"doping_from_resistivity": (one_of(*DOPING_DEFAULTS), OPTIONAL)}, OPTIONAL),
+    "base": (TEXT, OPTIONAL),  # own releases of an overlay: the release they build on
+}
+
+OVERLAY = {  # overlay.toml: who keeps an overlay catalogue (matprops.catalogue.overlay)
+    "name": (TEXT, REQUIRED),  # lower-case words joined by hyphens: "example-lab"
+    "description": (TEXT, REQUIRED),
+    "contact": (TEXT, OPTIONAL),
 }
 
 OPERATING_POINTS = {  # [temperature] of a scenario

@@ -225,6 +225,25 @@ class Catalog:
         """Where this catalogue reads one kind of data (``"defects"``, ``"tables"``)."""
         return self.root / name
 
+    def recorded(self, path: Path) -> str:
+        """The sha256 the checksum list of the folder holding ``path`` records for it
+        ("" if none: not listed, or outside every folder this catalogue reads)."""
+        try:
+            relative = Path(path).relative_to(self.root).as_posix()
+        except ValueError:
+            return ""
+        return self.checksums().get(relative, "")
+
+    def describe(self) -> dict:
+        """Which catalogue this is (for provenance): the data shipped with matprops."""
+        from .._version import __version__
+
+        return {
+            "name": "matprops",
+            "description": f"the data shipped with matprops {__version__}",
+            "path": str(self.root),
+        }
+
     # -- listing
     def _folder(self, name: str) -> Path:
         folder = self.root / name
@@ -272,19 +291,7 @@ class Catalog:
             path = self.root / CHECKSUM_FILE
             if not path.is_file():
                 raise DatasetError(path, "checksum list is missing; refusing to load data")
-            try:
-                text = read_limited(path).decode("utf-8")
-            except UnicodeDecodeError as exc:
-                raise DatasetError(path, f"is not UTF-8 text ({exc})") from exc
-            sums = {}
-            for number, line in enumerate(text.splitlines(), 1):
-                if not line.strip() or line.startswith("#"):
-                    continue
-                parts = line.split(maxsplit=1)
-                if len(parts) != 2 or len(parts[0]) != 64:
-                    raise DatasetError(path, f"line {number} is not '<sha256>  <path>'")
-                sums[parts[1].strip()] = parts[0]
-            self._checksums = sums
+            self._checksums = parse_checksums(path, read_limited(path))
         return self._checksums
 
     def verified_bytes(self, path: Path) -> bytes:
@@ -389,6 +396,12 @@ class Catalog:
         if data["release"] != release_id:
             raise DatasetError(
                 path, f"field 'release' is {data['release']!r}, the file name says {release_id!r}"
+            )
+        if "base" in data:
+            raise DatasetError(
+                path,
+                "field 'base' belongs to the own releases of an overlay catalogue; a "
+                "release of this folder names every model itself",
             )
         finality.verify(self, release_id, data["status"])
         return Release(
@@ -540,6 +553,23 @@ def _unpickle_catalog(root: str | None) -> Catalog | Unusable:
 #: Deepest nesting of tables and arrays a data file may have (the catalogue's files
 #: nest three or four levels; Python's TOML reader fails near a thousand).
 MAX_NESTING = 32
+
+
+def parse_checksums(path: Path, raw: bytes) -> dict[str, str]:
+    """A checksum list (lines ``<sha256>  <relative path>``) as relative path -> sha256."""
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        raise DatasetError(path, f"is not UTF-8 text ({exc})") from exc
+    sums = {}
+    for number, line in enumerate(text.splitlines(), 1):
+        if not line.strip() or line.startswith("#"):
+            continue
+        parts = line.split(maxsplit=1)
+        if len(parts) != 2 or len(parts[0]) != 64:
+            raise DatasetError(path, f"line {number} is not '<sha256>  <path>'")
+        sums[parts[1].strip()] = parts[0]
+    return sums
 
 
 def _parse_toml(path: Path, raw: bytes) -> dict:

@@ -37,6 +37,7 @@ from ..errors import (
 )
 from ..outputs import render
 from ..outputs.scenario import scenario_dataset
+from . import own
 
 __all__ = ["main", "parse_grid"]
 
@@ -246,7 +247,9 @@ def _silicon(args):
         if not sep:
             raise InputError("--model", "QUANTITY=MODEL_ID", repr(item))
         overrides[quantity.strip()] = model_id.strip()
-    si = Silicon(release=args.release, models=overrides, strict=args.strict)
+    si = Silicon(
+        release=args.release, models=overrides, strict=args.strict, catalog=own.catalogue(args)
+    )
     # validity messages go straight to stderr (one line each, once): the material
     # reports them to the command instead of warning, so no warning filter is set
     si._report = getattr(args, "report", None)
@@ -457,6 +460,12 @@ def _cmd_provenance(args):
         return
     lines = render.provenance_lines(si, record["quantity"])
     status = f"release {record['release']} ({record['release_status']})"
+    if record.get("release_base"):  # an own release of an overlay catalogue
+        owner = record.get("release_catalogue", {}).get("name", "?")
+        status = (
+            f"release {record['release']} ({record['release_status']}, catalogue {owner}, on "
+            f"{record['release_base']}; this model chosen by {record['release_choice_from']})"
+        )
     if record.get("overridden"):
         status += f"; overridden with --model (the release chose {record['release_choice']})"
     lines.append(status)
@@ -530,19 +539,19 @@ def _cmd_demo(args):
 
 
 def _cmd_models(args):
-    from ..material.silicon import models
-
-    catalogue = _catalog()
-    listing = {args.quantity: models(args.quantity)} if args.quantity else models()
-    for quantity, ids in listing.items():
+    _catalog()
+    catalogue = own.catalogue(args)
+    quantities = [args.quantity] if args.quantity else catalogue.quantities()
+    for quantity in quantities:
         print(f"{quantity}:")
-        for model_id in ids:
+        for model_id in catalogue.model_ids(quantity):
             model = catalogue.model(quantity, model_id)
             print("\n".join(render.model_record(model, "line", indent="  ")))
 
 
 def _cmd_releases(args):
-    catalog = _catalog()
+    _catalog()
+    catalog = own.catalogue(args)
     for release_id in catalog.release_ids():
         release = catalog.release(release_id)
         print(f"{release_id} ({release.status}, {release.date})")
@@ -587,6 +596,7 @@ def build_parser() -> argparse.ArgumentParser:
         action="store_true",
         help="fail instead of warning outside a model's validity range",
     )
+    own.add_options(material)  # --catalogue, --seals
 
     grid = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
     group = grid.add_argument_group("grid (" + _GRID_HELP + ")")
@@ -725,10 +735,13 @@ def build_parser() -> argparse.ArgumentParser:
 
     listing = commands.add_parser("models", help="list models, per quantity")
     listing.add_argument("quantity", nargs="?")
+    own.add_options(listing)
     listing.set_defaults(run=_cmd_models)
 
     rel = commands.add_parser("releases", help="list releases and their model choices")
+    own.add_options(rel)
     rel.set_defaults(run=_cmd_releases)
+    own.add_commands(commands)  # fit, catalogue, release
 
     cite = commands.add_parser("cite", parents=[material], help="references of the models in use")
     cite.add_argument("--format", choices=["bibtex", "text"], default="bibtex")

@@ -14,8 +14,9 @@ licensed practice.
 
 from __future__ import annotations
 
+import os
 from collections import Counter
-from collections.abc import Iterable, Mapping
+from collections.abc import Iterable, Mapping, Sequence
 from typing import Any
 
 import numpy as np
@@ -112,13 +113,14 @@ class Silicon(
             self._bind(name, choice)
 
     def __reduce__(self):
-        # pickled by release, overrides, strict flag and datasets folder (None: the
-        # receiver's installed data), re-bound on load; the digests of every data file
-        # the material reads travel along, so that both sides use the same numbers
-        base = self.catalog.base
-        root = None if base is default_catalog() else str(base.root)
+        # pickled by release, overrides, strict flag and catalogue (its folders as plain
+        # data, None: the receiver's installed data; an overlay with the digest of its
+        # checksum list), re-bound on load; the digests of every data file the material
+        # reads travel along, so that both sides use the same numbers
+        from ..catalogue.overlay import key_of
+
         return _restore, (
-            root,
+            key_of(self.catalog.base),
             self.release.id,
             self._overrides,
             self.strict,
@@ -141,13 +143,14 @@ class Silicon(
     def _digest_mismatch(self, expected: Mapping[str, str]) -> DatasetError | None:
         """The first data file whose digest here differs from ``expected`` (those of the
         process that pickled the material or made the lazy table), as an error."""
+        from ..catalogue.overlay import file_of_label
+
         here = self._data_digests()
-        root = self.catalog.base.root
         for path in sorted(set(here) | set(expected)):
             mine, theirs = here.get(path), expected.get(path)
             if mine != theirs:
                 return DatasetError(
-                    root / path,
+                    file_of_label(self.catalog.base, path),
                     f"has sha256 {mine or '(no such file)'} here but "
                     f"{theirs or '(no such file)'} where the material was pickled (or the "
                     "lazy table made): the two processes read different data; give the "
@@ -326,8 +329,10 @@ class Silicon(
             record["conversion_default"] = self.release.defaults.get(
                 "doping_from_resistivity", "physics"
             )
-        record["release"] = self.release.id
-        record["release_status"] = self.release.status
+        record.update(self.release.origin())  # which release, of which catalogue
+        if self.release.base is not None and name not in DERIVED:
+            # an own release chooses some models and inherits the others from its base
+            record["release_choice_from"] = self.release.chosen_by(name)
         if self.release.final and name not in DERIVED:
             # a final release serves what it sealed; a model added to the catalogue
             # later (chosen with models=) is not part of it
@@ -429,18 +434,15 @@ class Silicon(
         )
 
 
-def _restore(root, release, overrides, strict, digests, workers=None) -> Silicon | Unusable:
+def _restore(key, release, overrides, strict, digests, workers=None) -> Silicon | Unusable:
     """Unpickle a material; never raises (see :class:`matprops.errors.Unusable`): a
     material whose data differ here, or cannot be read, raises on its first use."""
-    from ..catalogue.store import catalog_at
+    from ..catalogue.overlay import from_key
 
     try:
+        catalog = from_key(key)  # (an overlay whose checksum list differs: refused)
         si = Silicon(
-            release=release,
-            models=overrides,
-            strict=strict,
-            catalog=catalog_at(root),
-            workers=workers,
+            release=release, models=overrides, strict=strict, catalog=catalog, workers=workers
         )
         mismatch = si._digest_mismatch(digests)
     except Error as exc:
@@ -471,13 +473,10 @@ def _data_digests(si: Silicon) -> dict[str, str]:
             files.add(entry.path)
         if entry.thermal_velocity:
             files.add(si.catalog.model("thermal_velocity", entry.thermal_velocity).path)
-    base = si.catalog.base
-    return {
-        path.relative_to(base.root).as_posix(): base.checksums().get(
-            path.relative_to(base.root).as_posix(), ""
-        )
-        for path in files
-    }
+    from ..catalogue.overlay import file_label
+
+    base = si.catalog.base  # (a file of an overlay is labelled '<catalogue name>:<path>')
+    return {file_label(base, path): base.recorded(path) for path in files}
 
 
 def silicon(
@@ -485,19 +484,57 @@ def silicon(
     models: Mapping[str, str] | None = None,
     strict: bool = False,
     workers: int | None = None,
+    catalogues: Sequence[str | os.PathLike] | None = None,
+    seals: str | os.PathLike | None = None,
 ) -> Silicon:
-    """Silicon as described by a release (newest by default); see :class:`Silicon`."""
-    return Silicon(release=release, models=models, strict=strict, workers=workers)
+    """Silicon as described by a release (newest shipped release by default).
+
+    Parameters
+    ----------
+    release, models, strict, workers
+        See :class:`Silicon`.
+    catalogues : list of folders, optional
+        Overlay catalogues of your own models and releases, searched in this order
+        before the shipped data (default: ``$MATPROPS_CATALOGUES``, folders separated by
+        ``os.pathsep``); ``release`` may then name an own release (``"ourlab-2027.1"``).
+        See :mod:`matprops.catalogue.overlay`.
+    seals : path, optional
+        The file that records the seals of final own releases (default
+        ``$MATPROPS_SEALS``, else ``matprops/seals.txt`` in the user's configuration
+        folder).
+    """
+    return Silicon(
+        release=release,
+        models=models,
+        strict=strict,
+        workers=workers,
+        catalog=_catalogue(catalogues, seals),
+    )
 
 
-def releases() -> list[str]:
-    """Ids of every release, oldest first."""
-    return default_catalog().release_ids()
+def _catalogue(catalogues, seals=None) -> Catalog:
+    """The shipped catalogue, with the overlays given (or named by the environment)."""
+    from ..catalogue.overlay import catalog_at, catalogues_from_environment
+
+    if catalogues is None:
+        catalogues = catalogues_from_environment()
+    elif isinstance(catalogues, (str, os.PathLike)):
+        catalogues = [catalogues]
+    if not catalogues:
+        return default_catalog()
+    return catalog_at(None, [os.path.abspath(os.path.expanduser(p)) for p in catalogues], seals)
 
 
-def models(quantity: str | None = None):
-    """Model ids for one quantity, or a dict quantity -> ids for all."""
-    catalog = default_catalog()
+def releases(catalogues: Sequence[str | os.PathLike] | None = None) -> list[str]:
+    """Ids of every release, oldest shipped first, then the own releases of the
+    overlay catalogues (default: ``$MATPROPS_CATALOGUES``)."""
+    return _catalogue(catalogues).release_ids()
+
+
+def models(quantity: str | None = None, catalogues: Sequence[str | os.PathLike] | None = None):
+    """Model ids for one quantity, or a dict quantity -> ids for all (with the models of
+    the overlay catalogues given, default ``$MATPROPS_CATALOGUES``)."""
+    catalog = _catalogue(catalogues)
     if quantity is None:
         return {q: catalog.model_ids(q) for q in catalog.quantities()}
     return catalog.model_ids(quantity)

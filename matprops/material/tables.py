@@ -411,21 +411,22 @@ def _convert(values, unit, target):
 
 @functools.lru_cache(maxsize=8)
 def _rebuild(recipe):
-    """A material from its recipe (class, release, overrides, strictness, datasets
-    folder), once per process: dask workers rebuild it instead of unpickling a bound one."""
-    from ..catalogue.store import Catalog, default_catalog
+    """A material from its recipe (class, release, overrides, strictness, catalogue
+    key), once per process: dask workers rebuild it instead of unpickling a bound one.
+    (The catalogue crosses as its folders and digests, plain data with a deterministic
+    repr: the shared one of this process.)"""
+    from ..catalogue.overlay import from_key
 
-    material, root, release, overrides, strict = recipe
-    catalog = default_catalog() if root is None else Catalog(root)
+    material, key, release, overrides, strict = recipe
+    catalog = from_key(key)  # an overlay whose files differ here is refused (an error)
     return material(release=release, models=dict(overrides), strict=strict, catalog=catalog)
 
 
 def _recipe(si):
-    from ..catalogue.store import default_catalog
+    from ..catalogue.overlay import key_of
 
-    root = None if si.catalog.base is default_catalog() else str(si.catalog.root)
     overrides = tuple(sorted((q, m) for q, m in si.models.items() if q in si.overridden))
-    return (type(si), root, si.release.id, overrides, si.strict)
+    return (type(si), key_of(si.catalog.base), si.release.id, overrides, si.strict)
 
 
 @functools.lru_cache(maxsize=8)

@@ -386,8 +386,16 @@ def regenerate(release_id: str, catalog: Catalog | None = None) -> Path:
     }
     target = release.reference_path
     _atomic_write_text(target, json.dumps(content, indent=1, ensure_ascii=False) + "\n")
-    catalog.write_checksums()
+    _holder(release).write_checksums()  # of the folder that holds the release
     return target
+
+
+def _holder(release) -> Catalog:
+    """The catalogue whose folder holds a release's file (the shipped one or an overlay)."""
+    holder = release.catalogue
+    if not isinstance(holder, Catalog):  # (every release is read by a catalogue)
+        raise Error(f"release {release.id} was not read from a catalogue folder")
+    return holder
 
 
 def _compare_cases(si, frozen: dict, fresh: dict) -> list[str]:
@@ -546,7 +554,6 @@ def freeze(release_id: str, catalog: Catalog | None = None, date: str | None = N
     archive its model and defect files, seal every file its numbers depend on and
     record the seal's digest in the package code. Returns the digest."""
     import datetime
-    import re
 
     catalog = catalog or default_catalog()
     release = catalog.release(release_id)
@@ -559,15 +566,40 @@ def freeze(release_id: str, catalog: Catalog | None = None, date: str | None = N
             f"review the diff first: {problems[0]}"
         )
     date = date or datetime.date.today().isoformat()
-    text = release.path.read_text()
-    text = re.sub(r'(?m)^status = "draft"$', 'status = "final"', text)
-    text = re.sub(r"(?m)^date = .*$", f'date = "{date}"', text)
-    _atomic_write_text(release.path, text)
+    if release.base is not None:  # an own release of an overlay catalogue
+        return _freeze_own(release, date)
+    _mark_final(release, date)
     archive(catalog, release_id, dict(release.models))
     catalog.write_checksums()
     _, digest = write_seal(catalog, release_id, date)
     catalog.write_checksums()
     _record_seal(release_id, digest)
+    return digest
+
+
+def _mark_final(release, date: str) -> None:
+    import re
+
+    text = release.path.read_text()
+    text = re.sub(r'(?m)^status = "draft"$', 'status = "final"', text)
+    text = re.sub(r"(?m)^date = .*$", f'date = "{date}"', text)
+    _atomic_write_text(release.path, text)
+
+
+def _freeze_own(release, date: str) -> str:
+    """Freeze an own release of an overlay catalogue: archive every file its numbers
+    depend on as it sees them now (its own models and its base's), mark it final, seal
+    it, and record the seal in the seals file outside the overlay."""
+    from ..catalogue import overlay as overlays
+
+    layer = release.catalogue
+    overlays.archive_own(layer, release)  # read through the draft's view
+    _mark_final(release, date)
+    layer.write_checksums()
+    _, digest = overlays.seal_own(layer, release, date)
+    layer.write_checksums()
+    layer.seal_record.add(layer.name, release.id, digest)
+    overlays.forget(layer, release.id)
     return digest
 
 
@@ -580,6 +612,19 @@ def main(argv=None) -> int:
     )
     parser.add_argument("action", choices=["regenerate", "check", "freeze"])
     parser.add_argument("release")
+    parser.add_argument(
+        "--catalogue",
+        action="append",
+        default=[],
+        metavar="PATH",
+        help="an overlay catalogue of own models and releases (repeatable)",
+    )
+    parser.add_argument(
+        "--seals",
+        default=None,
+        metavar="FILE",
+        help="the record of final own releases (default $MATPROPS_SEALS or the user's)",
+    )
     args = parser.parse_args(argv)
     with interruptible("python -m matprops.outputs.reference"):  # no temporary left behind
         return _run(args)
@@ -587,17 +632,34 @@ def main(argv=None) -> int:
 
 def _run(args) -> int:
     try:
+        catalog = None
+        if args.catalogue:
+            from ..catalogue.overlay import catalog_at
+
+            catalog = catalog_at(None, args.catalogue, args.seals)
         if args.action == "regenerate":
-            print(f"wrote {regenerate(args.release)} (review the diff before committing)")
+            target = regenerate(args.release, catalog)
+            print(f"wrote {target} (review the diff before committing)")
             return 0
         if args.action == "freeze":
-            digest = freeze(args.release)
-            print(
-                f"release {args.release} is final: sealed with sha256 {digest}, recorded in "
-                "matprops/catalogue/finality.py (commit both)"
-            )
+            digest = freeze(args.release, catalog)
+            from ..catalogue.overlay import Overlay
+
+            release = (catalog or default_catalog()).release(args.release)
+            layer = _holder(release)
+            if not isinstance(layer, Overlay):  # a release shipped with matprops
+                print(
+                    f"release {args.release} is final: sealed with sha256 {digest}, recorded "
+                    "in matprops/catalogue/finality.py (commit both)"
+                )
+            else:
+                print(
+                    f"release {args.release} is final: sealed with sha256 {digest}, recorded "
+                    f"in {layer.seal_record.where} as '{digest}  {args.release}  "
+                    f"{layer.name}' (its users need that line in their seals file)"
+                )
             return 0
-        problems = compare(args.release)
+        problems = compare(args.release, catalog)
     except Error as exc:  # a read-only install, a final release, an unknown release ...
         print(f"error: {exc}", file=sys.stderr)
         return 2

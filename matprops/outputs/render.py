@@ -127,18 +127,20 @@ def model_record(
                 text = _coefficient(coefficient, False)
                 lines.append(wrap(name.ljust(width) + text[len(name) :], inner))
         if model.tables:
-            lines += [
-                "",
-                f"{indent}tables: " + ", ".join(f"datasets/tables/{t}" for t in model.tables),
-            ]
+            lines += ["", f"{indent}tables: " + ", ".join(_table_files(model))]
         lines += ["", f"{indent}validity:"]
         lines += [f"{inner}{r}" for r in model.validity.values()] or [f"{inner}no limits recorded"]
         lines += ["", f"{indent}source:", wrap(model.source.citation(), inner)]
         lines += [wrap(s.citation(), inner + "also: ") for s in model.additional_sources]
         lines += ["", f"{indent}how the numbers were obtained:", wrap(model.obtained, inner)]
+        lines += _fitted_lines(model, inner)
         if model.notes:
             lines += ["", f"{indent}notes:", wrap(model.notes, inner)]
-        lines += ["", f"{indent}file: datasets/{model.provenance()['file']}"]
+        folder, catalogue = _folder(model)
+        lines.append("")
+        if catalogue:
+            lines.append(wrap(catalogue, indent))
+        lines.append(f"{indent}file: {folder}/{_file(model)}")
         lines.append(f"{indent}sha256: {model.sha256}")
         return lines
     lines.append(wrap(f"source: {model.source.citation()}", inner))
@@ -150,10 +152,47 @@ def model_record(
         text = "; ".join(_coefficient(c, False) for c in model.coefficients.values())
         lines.append(wrap(f"coefficients: {text}", inner))
     lines.append(wrap(f"obtained: {model.obtained}", inner))
-    lines.append(
-        f"{inner}file: datasets/{model.provenance()['file']} (sha256 {model.sha256[:12]}...)"
-    )
+    lines += _fitted_lines(model, inner)
+    folder, catalogue = _folder(model)
+    if catalogue:
+        lines.append(wrap(catalogue, inner))
+    lines.append(f"{inner}file: {folder}/{_file(model)} (sha256 {model.sha256[:12]}...)")
     return lines
+
+
+def _file(model) -> str:
+    return str(model.provenance()["file"])
+
+
+def _folder(model) -> tuple[str, str]:
+    """Where the model's file lies: ``datasets`` for the data shipped with matprops, an
+    overlay catalogue's folder otherwise (with a line naming that catalogue)."""
+    where = model.provenance().get("catalogue") or {}
+    if where.get("name", "matprops") == "matprops":
+        return "datasets", ""
+    return where["path"], f"catalogue: {where['name']} ({where['description']}), {where['path']}"
+
+
+def _table_files(model) -> list[str]:
+    if _folder(model)[1]:  # an overlay's model: its tables may lie in either folder
+        return [str(model.catalogue.table_path(t)) for t in model.tables]
+    return [f"datasets/tables/{t}" for t in model.tables]
+
+
+def _fitted_lines(model, indent: str) -> list[str]:
+    """For a model fitted to one's own measurements: what was free, to how many points,
+    how well, and the model it started from."""
+    fitted = model.extra.get("fitted")
+    if not fitted:
+        return []
+    return [
+        wrap(
+            f"fitted: {', '.join(fitted['free'])} free, to {fitted['points']} points; chi2 "
+            f"{fitted['chi2']:.4g} for {fitted['dof']} degrees of freedom; base model "
+            f"{fitted['base_model']}",
+            indent,
+        )
+    ]
 
 
 def _markdown(model, defaults) -> list[str]:
