@@ -34,6 +34,8 @@ __all__ = [
     "name",
     "names",
     "quantity",
+    "normalise_units",
+    "pretty_units",
     "to_magnitude",
     "unit",
     "ureg",
@@ -59,12 +61,37 @@ def _Q(value, units=None):
 
 @cache
 def _unit_of(registry, text: str) -> pint.Unit:
-    return registry.Unit(text)
+    return registry.Unit(normalise_units(text))
+
+
+# One units grammar for input and output: what the screen and the files print
+# (``cm^-3``, ``cm^2 V^-1 s^-1``, ``ohm cm``), UDUNITS' compact powers (``cm-3``,
+# ``cm2 V-1 s-1``), pint's own (``cm**-3``, ``cm^2/(V*s)``) and the typographic forms of
+# a report (``cm⁻³``, ``Ω·cm``, ``°C``, ``µm``) all read as the same unit.
+_SUPERSCRIPT = str.maketrans("⁻⁰¹²³⁴⁵⁶⁷⁸⁹", "-0123456789")
+_SUPERSCRIPT_POWER = re.compile(r"([A-Za-zµΩ%])([⁻⁰¹²³⁴⁵⁶⁷⁸⁹]+)")
+_COMPACT_POWER = re.compile(r"(?<![\w^*.])([A-Za-zµ%]+)(-?[0-9]+)(?![\w.])")
+_TYPOGRAPHIC = (("·", "*"), ("⋅", "*"), ("×", "*"), ("Ω", "ohm"), ("°C", "degC"), ("°F", "degF"))
+
+
+@cache
+def normalise_units(text: str) -> str:
+    """A unit string in any of the grammars above -> pint's grammar.
+
+    ``"cm-3"`` -> ``"cm^-3"``, ``"cm2 V-1 s-1"`` -> ``"cm^2 V^-1 s^-1"``,
+    ``"cm⁻³"`` -> ``"cm^-3"``, ``"Ω·cm"`` -> ``"ohm*cm"``; pint's own strings pass
+    unchanged.
+    """
+    text = str(text).strip()
+    for typographic, plain in _TYPOGRAPHIC:
+        text = text.replace(typographic, plain)
+    text = _SUPERSCRIPT_POWER.sub(lambda m: f"{m[1]}^{m[2].translate(_SUPERSCRIPT)}", text)
+    return _COMPACT_POWER.sub(r"\1^\2", text)
 
 
 def unit(text: str) -> pint.Unit:
     """A pint Unit of the application registry, parsed once per registry (parsing a
-    string costs ~56 µs per call)."""
+    string costs ~56 µs per call). Any grammar of :func:`normalise_units` is read."""
     return _unit_of(ureg.get(), text)
 
 
@@ -102,6 +129,10 @@ ARGUMENTS = {
     "density": ("cm^-3", "non-negative"),
 }
 
+# Lengths a bare number would leave ambiguous (a wafer's 180 is µm to its maker, the
+# internal unit is cm): these need a unit, given as a pint quantity or a string.
+NEEDS_UNIT = {"thickness": "a length with its unit, e.g. Q_(180, 'um') or '180 um'"}
+
 # Exact types that take the scalar fast path of coerce (bool, a subclass of int, is not
 # one of them: it is refused below, as True is not a number here).
 _PLAIN_SCALARS = (float, int, np.float64)
@@ -125,6 +156,19 @@ def _parse(text: str, argument: str, units: str):
         return _Q(text)
     except Exception as exc:  # pint raises several unrelated types here
         raise UnitError(argument, units, text) from exc
+
+
+def _has_unit(value) -> bool:
+    """Whether ``value`` says its unit: a pint quantity (or a list of them), or a
+    string with a unit after its number."""
+    if isinstance(value, pint.Quantity):
+        return True
+    if isinstance(value, str):
+        match = _NUMBER_THEN_UNIT.match(value)
+        return not match or bool(match.group(2))
+    if isinstance(value, (list, tuple)) and value:
+        return all(_has_unit(v) for v in value)
+    return False
 
 
 def _describe(value) -> str:
@@ -153,6 +197,10 @@ def coerce(
     default_units, default_req = ARGUMENTS.get(argument, (None, None))
     units = units or default_units
     requirement = requirement or default_req
+    if argument in NEEDS_UNIT and not _has_unit(value):
+        raise InputError(
+            argument, NEEDS_UNIT[argument], f"{_brief(value)} (a bare number: which unit?)"
+        )
     if type(value) in _PLAIN_SCALARS:  # the scalar fast path: a plain number
         number = float(value)
         if not math.isfinite(number):
@@ -393,8 +441,11 @@ _CF_SYMBOLS = {
 
 @cache
 def cf_units(units) -> str:
-    """A UDUNITS string for CF files: ``cm^-3`` -> ``cm-3``,
-    ``cm^2/(V*s)`` -> ``cm2 V-1 s-1``, dimensionless -> ``1`` (ASCII only)."""
+    """The units string of files and screens: ``cm^-3``, ``cm^2/(V*s)`` ->
+    ``cm^2 V^-1 s^-1``, dimensionless -> ``1`` (ASCII only).
+
+    One grammar that UDUNITS-2 (CF), pint's default registry and cf-xarray's registry
+    all read, and that every input of matprops accepts (:func:`normalise_units`)."""
     unit_ = unit(units) if isinstance(units, str) else units
     if unit_.dimensionless and not unit_._units:
         return "1"
@@ -402,5 +453,39 @@ def cf_units(units) -> str:
     for name, power in unit_._units.items():
         symbol = _CF_SYMBOLS.get(name) or ureg.get_symbol(name).replace("µ", "u")
         power = int(power) if float(power).is_integer() else float(power)
-        parts.append(symbol if power == 1 else f"{symbol}{power}")
+        parts.append(symbol if power == 1 else f"{symbol}^{power}")
     return " ".join(parts) or "1"
+
+
+_PRETTY_SYMBOLS = {"degC": "°C", "degF": "°F", "um": "µm", "us": "µs", "ohm": "Ω"}
+_PRETTY_POWER = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+@cache
+def pretty_units(units) -> str:
+    """Units as a report prints them: ``cm⁻³``, ``cm²/(V·s)``, ``Ω·cm``, ``°C``, ``µm``;
+    ``""`` for dimensionless. :func:`normalise_units` reads them back."""
+    text = units if isinstance(units, str) else cf_units(units)
+    if text in ("", "1"):
+        return ""
+    if text in _PRETTY_SYMBOLS:
+        return _PRETTY_SYMBOLS[text]
+    tokens = cf_units(unit(text)).split()
+    up, down = [], []
+    for token in tokens:
+        symbol, _, power = token.partition("^")
+        symbol = _PRETTY_SYMBOLS.get(symbol, symbol)
+        power = int(power) if power else 1
+        (up if power > 0 else down).append((symbol, abs(power)))
+    if not up:  # only negative powers: cm⁻³, s⁻¹
+        return "·".join(
+            f"{s}{str(-p).translate(_PRETTY_POWER)}" for s, p in down
+        )
+
+    def product(parts):
+        return "·".join(s if p == 1 else f"{s}{str(p).translate(_PRETTY_POWER)}" for s, p in parts)
+
+    if not down:
+        return product(up)
+    below = product(down)
+    return f"{product(up)}/({below})" if len(down) > 1 else f"{product(up)}/{below}"

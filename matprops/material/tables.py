@@ -76,6 +76,7 @@ class Axis:
     requirement: str | None = None  # "positive" or "non-negative" for numeric axes
     log: bool = False  # spans decades: log-spaced ranges, log plot axis
     choices: tuple[str, ...] = ()  # the values a category axis takes
+    unit_required: bool = False  # plain numbers refused (matprops.units.NEEDS_UNIT)
 
     @property
     def category(self) -> bool:
@@ -134,7 +135,7 @@ AXES: dict[str, Axis] = {
             "positive",
             log=True,
         ),
-        Axis("thickness", None, "cm", "sample thickness", "positive"),
+        Axis("thickness", None, "um", "sample thickness", "positive", unit_required=True),
         Axis("wavelength", None, "nm", "vacuum wavelength", "positive"),
         Axis(
             "dopant",
@@ -758,6 +759,10 @@ def _call_block(si, entry: Tabulated, values: Mapping[str, np.ndarray], dims: li
                 arguments[name] = _shape(vals, numeric.index(name), len(numeric))
             else:
                 arguments[name] = str(vals.item()) if AXES[name].category else vals.item()
+            if AXES[name].unit_required:  # the method takes it only with its unit
+                from ..units import Q_
+
+                arguments[name] = Q_(arguments[name], AXES[name].units)
         result = entry.call(si, arguments)
         if isinstance(result, tuple):
             parts = result

@@ -186,7 +186,7 @@ def test_export_netcdf_and_csv(capsys, tmp_path):
     assert main(["table", "-t", "250:350:50 K", "-o", str(nc)]) == 0
     with xr.open_dataset(nc) as data:
         assert data.attrs["Conventions"] == "CF-1.11"
-        assert data["intrinsic_density"].attrs["units"] == "cm-3"
+        assert data["intrinsic_density"].attrs["units"] == "cm^-3"
         assert data["band_gap"].attrs["model"] == "passler-2002"
         assert data.temperature.attrs["units_metadata"] == "temperature: on_scale"
         assert "matprops table -t '250:350:50 K' -o" in data.attrs["history"]
@@ -228,7 +228,7 @@ def test_doping_and_carrier_axes_on_the_command_line(capsys):
     )
     assert code == 0, err
     frame = pd.read_csv(io.StringIO(out))
-    assert list(frame["electron_density [cm-3]"]) == [1e14, 1e15, 1e16]
+    assert list(frame["electron_density [cm^-3]"]) == [1e14, 1e15, 1e16]
     code, _, err = run(capsys, "table", "band_gap", "-t", "300", "--Nd", "1e15,1e16")
     assert code == 0 and "no quantity in this table depends on --donor-density" in err
 

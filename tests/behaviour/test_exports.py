@@ -26,9 +26,10 @@ from matprops import export
 # - 2.5.1: valid_min/valid_max/valid_range mean data outside are missing, so a model's
 #   validity domain must not be written there;
 # - 3.4 ancillary_variables name variables of the file.
-# UDUNITS units: space-separated products of symbols with optional integer powers
-# ("cm-3", "cm2 V-1 s-1", "g cm-3"); "1" for dimensionless. "^", "*", "/" and "**"
-# are pint's grammar, not UDUNITS' canonical form.
+# UDUNITS units: space-separated products of symbols with optional integer powers;
+# UDUNITS-2's grammar (its manual, "Unit syntax") writes a power as "cm3", "cm^3" or
+# "cm**3"; matprops writes "cm^-3", "cm^2 V^-1 s^-1" (which pint's default registry
+# also reads, unlike "cm-3"); "1" for dimensionless. "/" and "*" are not used.
 UDUNITS_SYMBOLS = {
     "K",
     "degC",
@@ -48,7 +49,7 @@ UDUNITS_SYMBOLS = {
     "J",
     "%",
 }
-UDUNITS_TOKEN = re.compile(r"^([A-Za-z%]+)(-?\d+)?$")
+UDUNITS_TOKEN = re.compile(r"^([A-Za-z%]+)(\^-?\d+)?$")
 
 
 def udunits_ok(text):
@@ -102,13 +103,13 @@ def units_of_temperature(vattrs):
 
 def test_cf_checker_catches_what_it_should(tmp_path):
     bad = xr.Dataset(
-        {"x": ("t", [1.0, 2.0], {"units": "cm^-3", "valid_min": 0.0})},
+        {"x": ("t", [1.0, 2.0], {"units": "cm**-3", "valid_min": 0.0})},
         coords={"t": ("t", [1.0, 2.0], {"units": "K"})},
     )
     bad.to_netcdf(tmp_path / "bad.nc")
     problems = cf_problems(tmp_path / "bad.nc")
     assert any("Conventions" in p for p in problems)
-    assert any("x: units 'cm^-3'" in p for p in problems)
+    assert any("x: units 'cm**-3'" in p for p in problems)
     assert any("valid_min" in p for p in problems)
     assert any("t: temperature without units_metadata" in p for p in problems)
     assert any("_FillValue" in p for p in problems)
@@ -153,12 +154,12 @@ def test_csv_opens_in_pandas_with_default_arguments(si, tmp_path):
         "temperature [K]",
         "wavelength [nm]",
         "band_gap [eV]",
-        "absorption_coefficient [cm-1]",
+        "absorption_coefficient [cm^-1]",
     ]
     assert len(frame) == 6
     np.testing.assert_allclose(frame["temperature [degC]"], [25, 25, 25, 85, 85, 85])
     np.testing.assert_allclose(
-        frame["absorption_coefficient [cm-1]"],
+        frame["absorption_coefficient [cm^-1]"],
         data.absorption_coefficient.values.ravel(),
         rtol=1e-9,
     )
@@ -174,9 +175,9 @@ def test_wide_csv_has_one_row_per_temperature(si, tmp_path):
     export.write(data, path, layout="wide")
     frame = pd.read_csv(path)
     assert len(frame) == 2
-    assert "absorption_coefficient [cm-1] at wavelength=800 nm" in frame.columns
+    assert "absorption_coefficient [cm^-1] at wavelength=800 nm" in frame.columns
     np.testing.assert_allclose(
-        frame["absorption_coefficient [cm-1] at wavelength=800 nm"],
+        frame["absorption_coefficient [cm^-1] at wavelength=800 nm"],
         data.absorption_coefficient.values[:, 1],
         rtol=1e-9,
     )

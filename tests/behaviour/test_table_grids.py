@@ -73,7 +73,7 @@ def test_free_carrier_absorption_and_permittivity_are_tabulable(si):
     assert data.relative_permittivity.dims == ()
     assert data.relative_permittivity.item() == si.permittivity().m_as("")
     assert data.relative_permittivity.attrs["units"] == "1"
-    assert data.molar_mass.attrs["units"] == "g mol-1"
+    assert data.molar_mass.attrs["units"] == "g mol^-1"
 
 
 def test_every_quantity_of_the_release_can_be_tabulated(si):
@@ -90,7 +90,7 @@ def test_every_quantity_of_the_release_can_be_tabulated(si):
         "defect": ["iron-interstitial"],
         "defect_density": [1e11],
         "generation": [1e17],
-        "thickness": [0.018],
+        "thickness": matprops.Q_([180.0], "um"),
         "dopant": ["boron", "phosphorus"],
         "dopant_density": [1e16, 1e18],
         "field": [0.0, 1e4],
@@ -120,7 +120,7 @@ def test_dimensions_are_the_axes_given(si):
     data = si.table(["band_gap"], T=[300.0, 350.0], Na=[1e15, 1e16])
     assert list(data.dims) == ["temperature", "acceptor_density"]  # the order of AXES
     assert data.band_gap.dims == ("temperature",)  # depends on temperature only
-    assert data.acceptor_density.attrs["units"] == "cm-3"
+    assert data.acceptor_density.attrs["units"] == "cm^-3"
 
 
 def test_default_selection_follows_the_axes(si):
@@ -421,4 +421,4 @@ def test_methods_returning_a_result_object(monkeypatch):
     si = matprops.silicon()
     data = si.table(["pair_probe"], T=[250.0, 300.0])
     np.testing.assert_array_equal(data.gap, si.band_gap([250.0, 300.0]).m_as("eV"))
-    assert data.states.attrs["units"] == "cm-3"
+    assert data.states.attrs["units"] == "cm^-3"

@@ -63,7 +63,7 @@ def test_thermal_velocity_kernel_door_and_table(si):
         kernel(temperature=t), si.thermal_velocity("electron", t).m_as("cm/s")
     )
     data = si.table(["thermal_velocity"], carrier=["electron", "hole"], T=[300.0])
-    assert data["thermal_velocity"].attrs["units"] == "cm s-1"
+    assert data["thermal_velocity"].attrs["units"] == "cm s^-1"
     assert data["thermal_velocity"].sel(carrier="hole").item() == pytest.approx(
         si.thermal_velocity("hole", 300).m_as("cm/s")
     )
@@ -571,7 +571,7 @@ def test_transport_tables_equal_single_calls(si):
         dopant=["boron", "phosphorus"],
     )
     assert inverse.doping_from_resistivity.dims == ("resistivity", "dopant")
-    assert inverse.standard_dopant_density.attrs["units"] == "cm-3"
+    assert inverse.standard_dopant_density.attrs["units"] == "cm^-3"
     assert inverse.doping_from_resistivity.sel(
         dopant="boron", resistivity=10.0
     ).item() == pytest.approx(si.doping_from_resistivity(10.0, 296.15, "boron").m, rel=1e-12)
