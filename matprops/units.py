@@ -33,9 +33,9 @@ __all__ = [
     "coerce",
     "name",
     "names",
-    "quantity",
     "normalise_units",
     "pretty_units",
+    "quantity",
     "to_magnitude",
     "unit",
     "ureg",
@@ -71,7 +71,14 @@ def _unit_of(registry, text: str) -> pint.Unit:
 _SUPERSCRIPT = str.maketrans("⁻⁰¹²³⁴⁵⁶⁷⁸⁹", "-0123456789")
 _SUPERSCRIPT_POWER = re.compile(r"([A-Za-zµΩ%])([⁻⁰¹²³⁴⁵⁶⁷⁸⁹]+)")
 _COMPACT_POWER = re.compile(r"(?<![\w^*.])([A-Za-zµ%]+)(-?[0-9]+)(?![\w.])")
-_TYPOGRAPHIC = (("·", "*"), ("⋅", "*"), ("×", "*"), ("Ω", "ohm"), ("°C", "degC"), ("°F", "degF"))
+_TYPOGRAPHIC = (
+    ("·", "*"),
+    ("⋅", "*"),
+    ("\u00d7", "*"),  # multiplication sign
+    ("Ω", "ohm"),
+    ("°C", "degC"),
+    ("°F", "degF"),
+)
 
 
 @cache
@@ -478,9 +485,7 @@ def pretty_units(units) -> str:
         power = int(power) if power else 1
         (up if power > 0 else down).append((symbol, abs(power)))
     if not up:  # only negative powers: cm⁻³, s⁻¹
-        return "·".join(
-            f"{s}{str(-p).translate(_PRETTY_POWER)}" for s, p in down
-        )
+        return "·".join(f"{s}{str(-p).translate(_PRETTY_POWER)}" for s, p in down)
 
     def product(parts):
         return "·".join(s if p == 1 else f"{s}{str(p).translate(_PRETTY_POWER)}" for s, p in parts)

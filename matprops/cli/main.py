@@ -37,6 +37,7 @@ from ..errors import (
     UnitError,
     ValidityWarning,
 )
+from ..material.validity import value_names
 
 __all__ = ["main", "parse_grid"]
 
@@ -335,20 +336,7 @@ def _cmd_table(args):
         data = si.table(args.quantities or None, progress=progress, chunks=chunks, **_grid(args))
     finally:
         progress.close()
-    _note_unused_axes(data)
-    _emit(args, data, _footer(si, [data[v].attrs["quantity"] for v in data.data_vars]))
-
-
-def _note_unused_axes(data):
-    from ..material.tables import AXES
-
-    used = set().union(*(data[v].dims for v in data.data_vars)) if data.data_vars else set()
-    for dim in data.dims:
-        if dim in AXES and dim not in used:
-            print(
-                f"matprops: note: no quantity in this table depends on {AXES[dim].option}",
-                file=sys.stderr,
-            )
+    _emit(args, data, _footer(si, [data[v].attrs["quantity"] for v in value_names(data)]))
 
 
 def _cmd_compare(args):
@@ -747,7 +735,7 @@ def _cmd_demo(args):
                 file=sys.stderr,
             )
         return
-    names = [data[v].attrs["quantity"] for v in data.data_vars]
+    names = [data[v].attrs["quantity"] for v in value_names(data)]
     footer = _footer(si, list(dict.fromkeys(names)))
     if skipped:
         footer += "\n" + _wrap("not yet in this release, skipped: " + ", ".join(skipped))

@@ -721,6 +721,28 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
     return entries
 
 
+def _refuse_or_drop_unused(grid: _Grid, entries: list[Tabulated], named: bool) -> None:
+    """An axis no quantity of the table depends on is refused when the quantities were
+    named (it would show beside values it did not affect), dropped when they were
+    chosen from the axes."""
+    used = set().union(*(e.takes for e in entries))
+    unused = [name for name in grid.values if name not in used]
+    if not unused:
+        return
+    if named:
+        depends = "; ".join(f"{e.name} on {', '.join(e.takes) or 'nothing'}" for e in entries)
+        raise InputError(
+            unused[0],
+            f"left out: no quantity asked for depends on it ({depends})",
+            "a value",
+        )
+    for name in unused:
+        del grid.values[name]
+        grid.requested.pop(name, None)
+        if name in grid.dims:
+            grid.dims.remove(name)
+
+
 def _axis_hint(ax: Axis) -> str:
     if ax.category:
         return "one or more of " + ", ".join(ax.choices)
@@ -1004,6 +1026,7 @@ def table(
 
     grid = _Grid(axes)
     entries = _select(si, grid, quantities)
+    _refuse_or_drop_unused(grid, entries, named=quantities is not None)
     total = sum(grid.size_of(e) for e in entries)
     variables = {}  # the Dataset is built once at the end: each __setitem__ is a merge
     done = 0
@@ -1028,6 +1051,7 @@ def table(
                 },
             )
     data = xr.Dataset(variables, coords=grid.coords())
+    data = _with_validity(si, data, entries)
     names = [e.name for e in entries]
     data.attrs.update(
         {
@@ -1047,6 +1071,29 @@ def table(
         }
     )
     return data
+
+
+def _with_validity(si, data, entries):
+    """Each variable with its ``<name>_validity`` flags (see :mod:`.validity`)."""
+    from .validity import attributes, flags
+
+    extra = {}
+    for entry in entries:
+        coords = {c: data[c] for c in data.coords if c in entry.takes}
+        for variable, long_name in entry.outputs:
+            flag, left = flags(
+                si,
+                entry.model_quantities(),
+                data[variable],
+                data[variable].dims,
+                coords,
+                entry.name,
+            )
+            extra[f"{variable}_validity"] = flag.assign_attrs(
+                attributes(variable, long_name, left, entry.name)
+            )
+            data[variable].attrs["ancillary_variables"] = f"{variable}_validity"
+    return data.assign(extra)
 
 
 def _provenance_json(si, name: str) -> str:

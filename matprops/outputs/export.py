@@ -30,6 +30,7 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import InputError
+from ..material.validity import flag_of
 
 __all__ = [
     "FORMATS",
@@ -43,6 +44,11 @@ __all__ = [
 ]
 
 FORMATS = ("netcdf", "csv", "json")
+MARK = "*"  # on screen: a value outside a model's validity range
+LEGEND = (
+    f"{MARK} outside the validity range of a model behind the value (an extrapolation); "
+    "files carry the flags as <name>_validity"
+)
 _SUFFIXES = {".nc": "netcdf", ".nc4": "netcdf", ".csv": "csv", ".json": "json"}
 LAYOUTS = ("long", "wide")
 
@@ -306,7 +312,7 @@ def frame(data, layout: str = "long"):
     else:
         long = pd.DataFrame({n: [v.item()] for n, v in table.variables.items()})
     order = dims + [c for c in table.coords if c not in dims] + list(table.data_vars)
-    columns, axis_columns = {}, 0
+    columns, axis_columns, flagged = {}, 0, {}
     for name in order:
         if name not in long.columns:
             continue
@@ -316,8 +322,12 @@ def frame(data, layout: str = "long"):
             columns[_heading(data, name)] = long[name].to_numpy()
         if name in table.coords:
             axis_columns = len(columns)
+        flag = flag_of(data, name) if name in data.data_vars else None
+        if flag is not None:
+            flagged[_heading(data, name)] = _heading(data, flag.name)
     result = pd.DataFrame(columns)
     result.attrs["axis_columns"] = axis_columns
+    result.attrs["flags"] = flagged  # value column -> its validity flag column
     return result
 
 
@@ -341,6 +351,7 @@ def _wide_frame(data, dims):
         elif data[name].dims == (row,):
             columns[_heading(data, name)] = data[name].values
     axis_columns = len(columns)
+    flagged = {}
     for name, variable in data.data_vars.items():
         if row not in variable.dims:
             variable = variable.expand_dims({row: index.size})
@@ -348,11 +359,16 @@ def _wide_frame(data, dims):
         variable = variable.transpose(row, *others)
         values = variable.values.reshape(index.size, -1)
         labels = list(itertools.product(*(data[d].values for d in others)))
+        flag = flag_of(data, name)
         for k, label in enumerate(labels):
             where = ", ".join(_point(data, d, v) for d, v in zip(others, label, strict=True))
-            columns[_heading(data, name) + (f" at {where}" if where else "")] = values[:, k]
+            at = f" at {where}" if where else ""
+            columns[_heading(data, name) + at] = values[:, k]
+            if flag is not None:
+                flagged[_heading(data, name) + at] = _heading(data, flag.name) + at
     result = pd.DataFrame(columns)
     result.attrs["axis_columns"] = axis_columns
+    result.attrs["flags"] = flagged
     return result
 
 
@@ -486,15 +502,22 @@ def to_text(data, width: int | None = None, layout: str = "long") -> str:
     table = frame(data, layout)
     if table.empty:
         return "(empty table)"
-    headings = list(table.columns)
+    flagged = table.attrs.get("flags", {})
+    flag_columns = set(flagged.values())
+    headings = [h for h in table.columns if h not in flag_columns]
     axis_count = min(table.attrs.get("axis_columns", 0), len(headings) - 1)
     cells, widths, heads = [], [], []
+    marked = False
     for heading in headings:
         values = table[heading].to_numpy()
         if values.dtype.kind == "f":
             texts = [f"{v:.6g}" for v in values]
         else:
             texts = [str(v) for v in values]
+        if heading in flagged:  # an extrapolated value shows with a star
+            marks = table[flagged[heading]].to_numpy()
+            texts = [t + MARK if m == 1 else t for t, m in zip(texts, marks, strict=True)]
+            marked = marked or bool(np.any(marks == 1))
         head = _split_heading(heading, 16)
         heads.append(head)
         widths.append(max(10, max(map(len, head)), max(map(len, texts))))
@@ -528,4 +551,8 @@ def to_text(data, width: int | None = None, layout: str = "long") -> str:
         for r in range(len(table)):
             out.append("  ".join(cells[i][r].rjust(widths[i]) for i in columns))
         out.append("")
+    if marked:
+        import textwrap
+
+        out.append(textwrap.fill(LEGEND, width, subsequent_indent="  "))
     return "\n".join(out).rstrip() + "\n"

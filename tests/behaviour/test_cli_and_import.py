@@ -205,7 +205,12 @@ def test_csv_and_json_on_stdout(capsys):
     code, out, _ = run(capsys, "table", "band_gap", "-t", "25,85degC", "--format", "csv")
     assert code == 0
     frame = pd.read_csv(io.StringIO(out))
-    assert list(frame.columns) == ["temperature [degC]", "temperature [K]", "band_gap [eV]"]
+    assert list(frame.columns) == [
+        "temperature [degC]",
+        "temperature [K]",
+        "band_gap [eV]",
+        "band_gap_validity",
+    ]
     code, out, _ = run(capsys, "table", "band_gap", "-t", "300", "--format", "json")
     document = json.loads(out)
     assert document["data_vars"]["band_gap"]["attrs"]["provenance"]["model"] == "passler-2002"
@@ -230,7 +235,8 @@ def test_doping_and_carrier_axes_on_the_command_line(capsys):
     frame = pd.read_csv(io.StringIO(out))
     assert list(frame["electron_density [cm^-3]"]) == [1e14, 1e15, 1e16]
     code, _, err = run(capsys, "table", "band_gap", "-t", "300", "--Nd", "1e15,1e16")
-    assert code == 0 and "no quantity in this table depends on --donor-density" in err
+    assert code == 2 and len(err.splitlines()) == 1
+    assert "option --donor-density must be left out" in err and "band_gap on temperature" in err
 
 
 def test_provenance_is_readable_by_default_and_json_on_request(capsys):

@@ -77,7 +77,12 @@ def cf_problems(path):
             vattrs = var.__dict__
             if "long_name" not in vattrs:
                 problems.append(f"{name}: no long_name")
-            if var.dtype != str and var.dtype.kind in "fi":
+            if "flag_values" in vattrs:  # CF 3.5: flags carry meanings, not units
+                if len(vattrs.get("flag_meanings", "").split()) != len(vattrs["flag_values"]):
+                    problems.append(f"{name}: flag_meanings do not match flag_values")
+                if vattrs["flag_values"].dtype != var.dtype:
+                    problems.append(f"{name}: flag_values of another type than the variable")
+            elif var.dtype != str and var.dtype.kind in "fi":
                 units = vattrs.get("units")
                 if units is None or not udunits_ok(str(units)):
                     problems.append(f"{name}: units {units!r} not UDUNITS")
@@ -155,6 +160,8 @@ def test_csv_opens_in_pandas_with_default_arguments(si, tmp_path):
         "wavelength [nm]",
         "band_gap [eV]",
         "absorption_coefficient [cm^-1]",
+        "band_gap_validity",
+        "absorption_coefficient_validity",
     ]
     assert len(frame) == 6
     np.testing.assert_allclose(frame["temperature [degC]"], [25, 25, 25, 85, 85, 85])

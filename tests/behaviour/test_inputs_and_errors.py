@@ -214,7 +214,7 @@ def test_list_mixing_kinds_says_so(si):
 def test_table_accepts_a_single_quantity_name(si):
     # before: "unknown quantity 'b'"
     data = si.table("band_gap", temperature=[300, 350])
-    assert list(data.data_vars) == ["band_gap"]
+    assert list(data.data_vars) == ["band_gap", "band_gap_validity"]
 
 
 def test_shapes_that_do_not_broadcast_name_both_arguments(si):
