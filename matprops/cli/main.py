@@ -353,10 +353,16 @@ def _cmd_compare(args):
         _wrap(f"[{m}] {c}") for m, c in zip(data.model.values, data.citation.values, strict=True)
     )
     footer += "\n" + _wrap(
-        "spread = largest minus smallest model value; relative_spread "
-        "= spread / mean absolute value"
+        "spread = (largest - smallest) / mean, in %, over the models valid at the point "
+        "(valid: how many); in files also <name>_spread in the quantity's units"
     )
-    _emit(args, data, footer)
+    if args.output or args.format not in (None, "text"):
+        _emit(args, data, footer)
+        return
+    from ..outputs.export import comparison_text
+
+    sys.stdout.write(comparison_text(data))
+    print(footer)
 
 
 def _cmd_plot(args):
@@ -515,33 +521,15 @@ def _cmd_provenance(args):
 
 
 def _cmd_release_diff(args):
-    from ..outputs.changes import release_difference
+    from ..outputs.changes import release_difference, release_difference_text
+    from ..outputs.export import terminal_width
 
     _catalog()
     diff = release_difference(args.old, args.new)
     if args.json:
         print(json.dumps(diff, indent=1, ensure_ascii=False))
         return
-    old, new = diff["old"], diff["new"]
-    print(f"models: release {old} -> {new}")
-    for record in diff["models"]:
-        mark = "changed" if record["changed"] else "same"
-        print(f"  {record['quantity']:24s} {record['old']!s:24s} -> {record['new']!s:24s} {mark}")
-    print(f"\nlargest deviation on the standard reference grid ({new} against {old}):")
-    for record in diff["deviations"]:
-        if record["largest_relative"] is None:
-            detail = record.get("note", "no finite values to compare")
-        else:
-            at = ", ".join(
-                f"{k}={v:g}" if isinstance(v, float) else f"{k}={v}"
-                for k, v in (record["at"] or {}).items()
-            )
-            detail = (
-                f"{100 * record['largest_relative']:.3g} % "
-                f"({record['largest_absolute']:.3g} {record['units']})"
-                + (f" at {at}" if at else "")
-            )
-        print(_wrap(f"{record['case']:28s} {detail}", "  "))
+    print(release_difference_text(diff, terminal_width()))
 
 
 def _scenario(name: str):

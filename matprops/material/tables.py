@@ -37,6 +37,7 @@ import numpy as np
 
 from ..errors import (
     InputError,
+    SkippedModelWarning,
     UnknownModelError,
     UnknownQuantityError,
     ValidityWarning,
@@ -1115,6 +1116,41 @@ def _overrides(si) -> dict[str, str]:
     return {q: m for q, m in si.models.items() if q in si.overridden}
 
 
+def _compare_one(variant, quantity, chunks, progress, axes):
+    """One model's table for a comparison -> (table or None, note).
+
+    A model with no coefficients for a carrier or species asked for (an electrons-only
+    mobility) gives NaN there (flag 2, no value) and a note; with none of them, None."""
+
+    from ..errors import UnknownVariantError
+
+    try:
+        return table(variant, [quantity], chunks=chunks, progress=progress, **axes), ""
+    except UnknownVariantError as exc:
+        missing = exc
+    grid = _Grid(axes)
+    category = next(
+        (d for d in ("carrier", "dopant") if d in grid and missing.name in grid.values[d]), None
+    )
+    covered = [str(v) for v in missing.known]
+    note = f"has no {missing.kind} {missing.name!r} (covers {', '.join(covered)})"
+    if category is None or grid.values[category].ndim == 0:
+        return None, f"skipped: {note}"
+    asked = [str(v) for v in grid.values[category]]
+    inside = [v for v in asked if v in covered]
+    if not inside:
+        return None, f"skipped: {note}"
+    given = {k: v for k, v in axes.items() if axis(k).name != category}
+    part = table(
+        variant, [quantity], chunks=chunks, progress=progress, **given, **{category: inside}
+    )
+    filled = part.reindex({category: asked})
+    for name in [n for n in filled.data_vars if n.endswith("_validity")]:
+        filled[name] = filled[name].fillna(2).astype(np.int8).assign_attrs(part[name].attrs)
+    filled[category].attrs.update(part[category].attrs)
+    return filled, f"{note}: NaN there"
+
+
 def compare(
     si, quantity: str, models: Iterable[str] | None = None, *, chunks=None, progress=None, **axes
 ):
@@ -1151,7 +1187,7 @@ def compare(
             raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
     if len(set(ids)) != len(ids):
         raise InputError("models", "distinct model ids", repr(ids))
-    parts, citations, provenance = [], [], {}
+    parts, citations, provenance, skipped, kept = [], [], {}, {}, []
     for model_id in ids:
         variant = type(si)(
             release=si.release.id,
@@ -1159,10 +1195,26 @@ def compare(
             strict=si.strict,
             catalog=si.catalog,
         )
-        data = table(variant, [quantity], chunks=chunks, progress=progress, **axes)
+        data, note = _compare_one(variant, quantity, chunks, progress, axes)
+        if data is None:
+            skipped[model_id] = note
+            continue
+        if note:
+            skipped[model_id] = note
+        kept.append(model_id)
         parts.append(data)
         citations.append(variant.model(quantity).source.citation())
         provenance[model_id] = variant.provenance(quantity)
+    if not parts:
+        raise InputError(
+            "models",
+            f"models of {quantity} that cover the grid asked for",
+            "; ".join(f"{m}: {n}" for m, n in skipped.items()),
+        )
+    if skipped:
+        for model_id, note in skipped.items():
+            warnings.warn(f"compare {quantity}: {model_id} {note}", SkippedModelWarning, 2)
+    ids = kept
     combined = xr.concat(
         parts,
         dim="model",
@@ -1180,30 +1232,44 @@ def compare(
         variable.attrs.update(
             {"model": ", ".join(ids), "provenance": json.dumps(provenance, ensure_ascii=False)}
         )
+        valid = variable.where(combined[f"{name}_validity"] == 0)  # inside their ranges
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN points stay NaN
-            high, low = variable.max("model", skipna=True), variable.min("model", skipna=True)
+            high, low = valid.max("model", skipna=True), valid.min("model", skipna=True)
             spread = high - low
-            scale = abs(variable).mean("model", skipna=True)
+            scale = abs(valid).mean("model", skipna=True)
             relative = spread / scale.where(scale != 0)
+            count = (combined[f"{name}_validity"] == 0).sum("model").astype(np.int16)
         combined[f"{name}_spread"] = spread.assign_attrs(
             {
                 "units": variable.attrs["units"],
-                "long_name": f"spread (largest minus smallest) across models of: "
-                f"{variable.attrs['long_name']}",
+                "long_name": f"spread (largest minus smallest) across the models valid "
+                f"at the point: {variable.attrs['long_name']}",
                 "quantity": quantity,
+                "comment": "models outside their validity range at a point (flag 1) or "
+                "without a value there (flag 2) are left out; NaN where fewer than one "
+                "model is valid",
             }
         )
         combined[f"{name}_relative_spread"] = relative.assign_attrs(
             {
                 "units": "1",
-                "long_name": f"spread across models over their mean absolute "
-                f"value: {variable.attrs['long_name']}",
+                "long_name": f"spread across the models valid at the point over their "
+                f"mean absolute value: {variable.attrs['long_name']}",
+                "quantity": quantity,
+            }
+        )
+        combined[f"{name}_valid_models"] = count.assign_attrs(
+            {
+                "units": "1",
+                "long_name": f"number of models valid at the point: {variable.attrs['long_name']}",
                 "quantity": quantity,
             }
         )
     from .._version import __version__
 
+    if skipped:
+        combined.attrs["skipped_models"] = "; ".join(f"{m}: {n}" for m, n in skipped.items())
     combined.attrs.update(
         {
             "title": f"Models of {quantity} compared (matprops)",

@@ -482,6 +482,14 @@ def terminal_width() -> int:
 
 def _split_heading(heading: str, width: int) -> list[str]:
     name, _, units = heading.partition(" [")
+    if units:  # the screen prints units as a report does: cm⁻³, cm²/(V·s), °C
+        from ..units import pretty_units
+
+        inner, _, rest = units.partition("]")
+        try:
+            units = (pretty_units(inner) or "1") + "]" + rest
+        except Exception:  # a unit pint does not know stays as written
+            pass
     lines, line = [], ""
     for piece in name.replace("_", "_\0").split("\0"):
         if line and len(line) + len(piece) > width:
@@ -556,3 +564,34 @@ def to_text(data, width: int | None = None, layout: str = "long") -> str:
 
         out.append(textwrap.fill(LEGEND, width, subsequent_indent="  "))
     return "\n".join(out).rstrip() + "\n"
+
+
+def comparison_text(data, width: int | None = None) -> str:
+    """A model comparison for the screen: one row per grid point, one column per model
+    (extrapolated values starred, missing ones NaN), then the spread across the models
+    valid at that point, once, and how many they are."""
+    import xarray as xr
+
+    from ..material.validity import attributes, flag_of
+
+    blocks = []
+    quantities = [
+        n for n in data.data_vars if "model" in data[n].dims and flag_of(data, n) is not None
+    ]
+    for name in quantities:
+        variable, flag = data[name], flag_of(data, name)
+        units = variable.attrs.get("units", "")
+        columns = {}
+        for model in data["model"].values:
+            key = str(model)
+            values = variable.sel(model=model, drop=True).drop_vars("citation", errors="ignore")
+            flags = flag.sel(model=model, drop=True).drop_vars("citation", errors="ignore")
+            columns[key] = values.assign_attrs(units=units, ancillary_variables=f"{key}_validity")
+            columns[f"{key}_validity"] = flags.assign_attrs(attributes(key, key, []))
+        spread = data[f"{name}_relative_spread"] * 100
+        columns["spread"] = spread.assign_attrs(units="%")
+        columns["valid"] = data[f"{name}_valid_models"].assign_attrs(units="")
+        table = xr.Dataset(columns).drop_vars("citation", errors="ignore")
+        heading = f"{name} [{units}] by model" if len(quantities) > 1 else ""
+        blocks.append((heading + "\n" if heading else "") + to_text(table, width))
+    return "\n".join(blocks)

@@ -32,7 +32,7 @@ def test_table_with_celsius_and_a_space_before_a_negative_value(capsys):
         capsys, "table", "band_gap", "intrinsic_density", "--temperature", "-40,25,85degC"
     )
     assert code == 0, err
-    assert "298.15" in out and "[degC]" in out and "couderc-2014" in out
+    assert "298.15" in out and "[°C]" in out and "couderc-2014" in out
     assert "-40" in out.splitlines()[4]  # echoed in the unit asked
     code, out, _ = run(capsys, "table", "band_gap", "-t", "-40.5degC")
     assert code == 0 and "232.65" in out
@@ -284,10 +284,14 @@ def test_release_diff_command(capsys, datasets_copy, monkeypatch):
         monkeypatch.delenv("MATPROPS_DATASETS")
         default_catalog.cache_clear()
     assert code == 0
-    assert "passler-2002" in out and "alex-1996" in out and "changed" in out
-    deviations = out.split("largest deviation")[1]
-    line = next(line for line in deviations.splitlines() if line.strip().startswith("band_gap "))
+    assert "passler-2002 -> alex-1996" in out and "models changed (" in out
+    deviations = out.split("numbers that moved")[1]
+    line = next(line for line in deviations.splitlines() if line.strip().startswith("band_gap:"))
     assert "%" in line and "temperature=" in line
+    assert " 0 %" not in out  # only what changed is listed
+    # a release against itself: one line
+    code, out, _ = run(capsys, "release-diff", "2026.1", "2026.1")
+    assert code == 0 and out.strip().splitlines() == [out.strip()] and "identical" in out
 
 
 def test_demo_uses_the_invented_two_site_scenario(capsys, tmp_path):
