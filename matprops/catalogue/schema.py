@@ -37,7 +37,6 @@ __all__ = [
     "KINDS",
     "MODEL",
     "RELEASE",
-    "SCENARIO",
     "THERMAL_VELOCITY_DEFINITIONS",
     "VARIANT_AXES",
     "validate",
@@ -258,31 +257,6 @@ RELEASE = {  # datasets/releases/<release-id>.toml
     "notes": (TEXT, REQUIRED),
     "models": (table_of(TEXT), REQUIRED),  # quantity = "model-id"
 }
-
-OPERATING_POINTS = {  # [temperature] of a scenario
-    "units": (TEXT, REQUIRED),
-    "sites": (table_of(table_of(NUMBER)), REQUIRED),  # [temperature.sites.<site>] name = T
-}
-
-DOPED_REGION = {  # [regions.<name>] of a scenario
-    "units": (TEXT, REQUIRED),
-    "acceptor_density": (NUMBER, OPTIONAL),
-    "donor_density": (NUMBER, OPTIONAL),
-    "excess_density": (NUMBER, OPTIONAL),
-    "note": (TEXT, OPTIONAL),
-}
-
-SCENARIO = {  # datasets/scenarios/<name>.toml (invented demo data)
-    "name": (TEXT, REQUIRED),
-    "title": (TEXT, REQUIRED),
-    "invented": (FLAG, REQUIRED),
-    "description": (TEXT, OPTIONAL),
-    "quantities": (TEXTS, REQUIRED),
-    "carriers": (TEXTS, OPTIONAL),
-    "temperature": (OPERATING_POINTS, REQUIRED),
-    "regions": (table_of(DOPED_REGION), OPTIONAL),
-}
-
 
 # --------------------------------------------------------------------------- checking
 

@@ -532,210 +532,46 @@ def _cmd_release_diff(args):
     print(release_difference_text(diff, terminal_width()))
 
 
-def _scenario(name: str):
-    from ..catalogue.store import datasets_root
+def _cmd_report(args, spec=None):
+    from ..catalogue.spec import read_spec
+    from ..material.silicon import Silicon
+    from ..outputs.report import report
 
-    folder = datasets_root() / "scenarios"
-    path = folder / f"{name}.toml"
-    if not path.is_file():
-        known = sorted(p.stem for p in folder.glob("*.toml"))
-        raise InputError("--scenario", f"one of {', '.join(known) or '(none)'}", repr(name))
-    try:
-        return path, tomllib.loads(path.read_text(encoding="utf-8"))
-    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-        raise InputError("--scenario", "a valid TOML scenario file", f"{path.name}: {exc}") from exc
-
-
-def scenario_dataset(si, scenario: dict, path_name: str = "scenario"):
-    """The scenario's table: every listed quantity the release serves, at its
-    operating points (and its regions' dopings for doping-dependent quantities).
-
-    Returns (dataset, skipped quantity names).
-    """
-    import xarray as xr
-
-    from ..material.tables import AXES, QUANTITIES, available
-    from ..units import Q_
-
-    units = scenario["temperature"]["units"]
-    points = []
-    for site, conditions in scenario["temperature"]["sites"].items():
-        for condition, value in conditions.items():
-            points.append((float(value), f"{site}: {condition}"))
-    points.sort()
-    temperature = Q_(np.array([p[0] for p in points]), units)
-    labels = np.array([p[1] for p in points])
-    serves = set(available(si))
-    listed = scenario["quantities"]
-    shown = [q for q in listed if q in serves]
-    skipped = [q for q in listed if q not in serves]
-    doping = {"acceptor_density", "donor_density", "excess_density"}
-    plain = [q for q in shown if not set(QUANTITIES[q].takes) & doping]
-    doped = [q for q in shown if q not in plain]
-    extra = {}
-    if scenario.get("carriers"):
-        extra["carrier"] = scenario["carriers"]
-    parts = []
-    if plain:
-        takes = set().union(*(QUANTITIES[q].takes for q in plain))
-        parts.append(
-            si.table(
-                plain, temperature=temperature, **{k: v for k, v in extra.items() if k in takes}
-            )
+    _catalog()
+    spec = spec or read_spec(args.spec)
+    models = dict(spec.models)
+    for item in args.model or []:
+        quantity, sep, model_id = item.partition("=")
+        if not sep:
+            raise InputError("--model", "QUANTITY=MODEL_ID", repr(item))
+        models[quantity.strip()] = model_id.strip()
+    si = Silicon(release=args.release or spec.release, models=models, strict=args.strict)
+    result = report(spec, si)
+    if args.output:
+        written = result.write(
+            args.output,
+            overwrite=args.force,
+            command=args.command_line,
+            **({"provenance": "header"} if args.csv_header else {}),
         )
-    if doped:
-        takes = set().union(*(QUANTITIES[q].takes for q in doped))
-        regions, per_region = list(scenario["regions"]), []
-        for region in regions:
-            spec = scenario["regions"][region]
-            grid = {
-                k: Q_(float(spec[k]), spec["units"])
-                for k in ("acceptor_density", "donor_density", "excess_density")
-                if k in spec and k in takes
-            }
-            grid.update({k: v for k, v in extra.items() if k in takes})
-            table = si.table(doped, temperature=temperature, **grid)
-            per_region.append(
-                table.reset_coords(
-                    [c for c in grid if c in AXES and c in table.coords and not table[c].dims],
-                    drop=False,
-                )
-            )
-        region_table = xr.concat(
-            per_region,
-            dim="region",
-            data_vars="all",
-            coords="minimal",
-            compat="override",
-            combine_attrs="override",
-        )
-        region_table = region_table.assign_coords(region=("region", np.array(regions)))
-        for name in ("acceptor_density", "donor_density", "excess_density"):
-            if name in region_table.data_vars:
-                region_table = region_table.set_coords(name)
-        parts.append(region_table)
-    data = (
-        xr.merge(parts, combine_attrs="override")
-        if parts
-        else xr.Dataset(coords={"temperature": ("temperature", temperature.m_as("K"))})
-    )
-    if "carrier" in data.dims:  # one variable per carrier keeps the screen table narrow
-        for name in [v for v in data.data_vars if "carrier" in data[v].dims]:
-            for carrier in data["carrier"].values:
-                attrs = dict(data[name].attrs, carrier=str(carrier))
-                attrs["long_name"] = f"{carrier} {attrs.get('long_name', name)}"
-                data[f"{carrier}_{name}"] = (
-                    data[name].sel(carrier=carrier, drop=True).assign_attrs(attrs)
-                )
-            data = data.drop_vars(name)
-        data = data.drop_vars("carrier")
-    data = data.assign_coords(
-        operating_point=("temperature", labels, {"long_name": "invented operating point"})
-    )
-    data.attrs.update(
-        {
-            "title": scenario["title"],
-            "scenario": f"{scenario['name']} ({path_name}); INVENTED data for demonstration",
-            "scenario_note": "INVENTED scenario - not measured data, not a real product or site.",
-        }
-    )
-    if data.attrs.get("references"):
-        data.attrs["references"] = si.cite(
-            format="text",
-            quantities=list(
-                dict.fromkeys(q for name in shown for q in QUANTITIES[name].model_quantities())
-            ),
-        )
-    return data, skipped
-
-
-def _scenario_text(data, scenario: dict) -> str:
-    """A scenario's table for the screen, one block per site: operating points across
-    (at most ~80 columns), quantities down; doping-dependent rows per region."""
-    from ..units import Q_
-
-    units = scenario["temperature"]["units"]
-    labels = [str(v) for v in data["operating_point"].values]
-    sites = list(dict.fromkeys(label.split(": ")[0] for label in labels))
-    regions = list(data["region"].values) if "region" in data.dims else []
-
-    def row(name, values):
-        cells = "".join(f" {v:>11.4g}" if isinstance(v, float) else f" {v:>11}" for v in values)
-        return f"{name[:36]:<36}{cells}"
-
-    def rows_for(columns, region=None):
-        lines = []
-        for variable in data.data_vars:
-            array = data[variable]
-            if ("region" in array.dims) != (region is not None):
-                continue
-            if region is not None:
-                array = array.sel(region=region)
-            unit = array.attrs.get("units", "")
-            extra = [d for d in array.dims if d != "temperature"]
-            picks = [{}] if not extra else [{extra[0]: value} for value in data[extra[0]].values]
-            for pick in picks:
-                selected = array.sel(pick) if pick else array
-                suffix = f" ({next(iter(pick.values()))})" if pick else ""
-                values = [float(selected.values[i]) for i in columns]
-                lines.append(row(f"{variable}{suffix} [{unit}]", values))
-        return lines
-
-    out = []
-    for site in sites:
-        columns = [i for i, label in enumerate(labels) if label.startswith(site + ":")]
-        out.append(f"== {site} (invented) ==")
-        out.append(row("operating point", [labels[i].split(": ")[1] for i in columns]))
-        shown = Q_(data["temperature"].values, "K").to(units).magnitude
-        out.append(row(f"temperature [{units}]", [float(shown[i]) for i in columns]))
-        out.extend(rows_for(columns))
-        for region in regions:
-            spec = scenario["regions"][str(region)]
-            out.append(
-                f"-- {region}: {spec.get('note', '')} (Na {spec['acceptor_density']:g},"
-                f" Nd {spec['donor_density']:g} {spec['units']})"
-            )
-            out.extend(rows_for(columns, region))
-        out.append("")
-    return "\n".join(out)
-
-
-def _cmd_demo(args):
-    path, scenario = _scenario(args.scenario)
-    if not scenario.get("invented"):
-        raise InputError("--scenario", "a scenario marked invented = true", path.name)
-    si = _silicon(args)
-    data, skipped = scenario_dataset(si, scenario, path.name)
-    on_screen = not args.output and args.format in (None, "text")
-    if on_screen:
-        print(scenario["title"])
-        print(f"(INVENTED data for demonstration; datasets/scenarios/{path.name})")
-        print(_wrap(scenario.get("description", "")))
-        print()
-    if args.output and args.output.lower().endswith((".png", ".svg")):
-        from ..outputs.plotting import plot
-
-        plot(data, args.output, x="temperature", overwrite=args.force, title=scenario["title"])
-        print(f"wrote {args.output}")
-        if skipped:
+        print("wrote " + " and ".join(str(p) for p in written))
+        if result.skipped:
             print(
-                _wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
+                _wrap("note: not in this release, left out: " + ", ".join(result.skipped)),
                 file=sys.stderr,
             )
         return
-    names = [data[v].attrs["quantity"] for v in value_names(data)]
-    footer = _footer(si, list(dict.fromkeys(names)))
-    if skipped:
-        footer += "\n" + _wrap("not yet in this release, skipped: " + ", ".join(skipped))
-    if on_screen:
-        print(_scenario_text(data, scenario))
-        print(footer)
-        return
-    _emit(args, data, footer)
-    if not on_screen and skipped:
-        print(
-            _wrap("note: not yet in this release, skipped: " + ", ".join(skipped)), file=sys.stderr
-        )
+    from ..outputs.export import terminal_width
+
+    print(result.text(terminal_width()))
+
+
+def _cmd_demo(args):
+    from ..catalogue.store import default_catalog
+
+    _catalog()
+    spec = default_catalog().scenario(args.scenario)
+    _cmd_report(args, spec)
 
 
 def _cmd_models(args):
@@ -918,15 +754,40 @@ def build_parser() -> argparse.ArgumentParser:
     diff.add_argument("--json", action="store_true")
     diff.set_defaults(run=_cmd_release_diff)
 
+    files = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+    written = files.add_argument_group("output")
+    written.add_argument(
+        "-o",
+        "--output",
+        metavar="FILE",
+        help="write the report: .nc (netCDF), .csv (+ FILE.provenance.json), .json, or a "
+        "plot: .png, .svg; refused if it exists unless --force",
+    )
+    written.add_argument(
+        "--csv-header",
+        action="store_true",
+        help="CSV: provenance as '#' lines above the header",
+    )
+    written.add_argument("--force", action="store_true", help="replace an existing file")
+
+    rep = commands.add_parser(
+        "report",
+        parents=[material, files],
+        help="a report from your own wafer spec (TOML): your wafer and layers at your "
+        "operating points",
+    )
+    rep.add_argument("spec", metavar="SPEC.toml", help="the wafer spec (see the analyst's guide)")
+    rep.set_defaults(run=_cmd_report)
+
     demo = commands.add_parser(
         "demo",
-        parents=[material, output],
-        help="tables for the bundled, INVENTED scenario (-o also takes .png or .svg: a plot)",
+        parents=[material, files],
+        help="the report of the bundled, INVENTED scenario (a wafer spec like yours)",
     )
     demo.add_argument(
         "--scenario",
         default="two-site-modules",
-        help="scenario file in datasets/scenarios (default: %(default)s)",
+        help="scenario in datasets/scenarios (default: %(default)s)",
     )
     demo.set_defaults(run=_cmd_demo)
 

@@ -1268,6 +1268,7 @@ def compare(
         )
     from .._version import __version__
 
+    combined.attrs["default_model"] = si.models.get(quantity, "")  # the material's choice
     if skipped:
         combined.attrs["skipped_models"] = "; ".join(f"{m}: {n}" for m, n in skipped.items())
     combined.attrs.update(

@@ -110,7 +110,7 @@ def one_line_error(code, err, fragment):
         (["describe", "band_gap", "passler-1900"], "unknown model 'passler-1900'"),
         (["provenance", "bandgap"], "unknown quantity 'bandgap'"),
         (["release-diff", "2026.1", "2031.1"], "unknown release '2031.1'"),
-        (["demo", "--scenario", "nowhere"], "option --scenario must be one of two-site-modules"),
+        (["demo", "--scenario", "nowhere"], "unknown name 'nowhere' among the scenarios"),
         (["table", "-t", "300", "--bogus"], "unrecognized arguments: --bogus"),
         (["frobnicate"], "invalid choice: 'frobnicate'"),
     ],
@@ -304,48 +304,29 @@ def test_demo_uses_the_invented_two_site_scenario(capsys, tmp_path):
         assert main(["demo", "-o", str(path)]) == 0
         assert path.stat().st_size > 0
     with xr.open_dataset(tmp_path / "demo.nc") as data:
-        assert "INVENTED" in data.attrs["scenario"]
+        assert "INVENTED" in data.attrs["scenario_note"] and "INVENTED" in data.attrs["title"]
         assert "doi:" in data.attrs["references"]
         assert json.loads(data.band_gap.attrs["provenance"])["model"] == "passler-2002"
     provenance = json.loads((tmp_path / "demo.provenance.json").read_text())
-    assert "INVENTED" in provenance["attrs"]["scenario"]
+    assert "INVENTED" in provenance["attrs"]["scenario_note"]
 
 
-def test_demo_shows_doping_quantities_once_they_exist(capsys, monkeypatch):
+def test_demo_shows_its_regions_with_their_dopings(tmp_path):
     import matprops
-    from matprops.material.tables import QUANTITIES, Tabulated
 
-    def fake(self, T, Na=0, Nd=0):  # a stand-in, NOT physics
-        from matprops.units import quantity, to_magnitude
-
-        t = to_magnitude(T, "temperature")
-        return quantity(
-            t * 0
-            + 1e-20 * (to_magnitude(Na, "acceptor_density") + to_magnitude(Nd, "donor_density")),
-            "eV",
-        )
-
-    monkeypatch.setattr(matprops.Silicon, "gap_narrowing", fake, raising=False)
-    monkeypatch.setitem(
-        QUANTITIES,
-        "gap_narrowing",
-        Tabulated(
-            "gap_narrowing",
-            {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"},
-            (("gap_narrowing", "stand-in"),),
-            needs=("band_gap",),
-        ),
-    )
-    code, out, err = run(capsys, "demo", "--format", "csv")
-    assert code == 0, err
-    frame = pd.read_csv(io.StringIO(out))
-    assert set(frame["region"]) == {"base", "emitter"}
+    path = tmp_path / "demo.csv"
+    assert main(["demo", "-o", str(path)]) == 0
+    frame = pd.read_csv(path)
+    assert set(frame["region"]) == {"wafer", "emitter"}
     emitter = frame[frame["region"] == "emitter"]
-    np.testing.assert_allclose(emitter["gap_narrowing [eV]"], 1e-20 * (1.2e16 + 3e19))
-    code, out, _ = run(capsys, "demo")
-    # once every listed quantity is served nothing is skipped; gap_narrowing never is
-    skipped = out.split("skipped")[-1] if "skipped" in out else ""
-    assert "gap_narrowing" not in skipped
+    na = matprops.silicon().doping_from_resistivity(1.2, "23 degC", "boron").m_as("cm^-3")
+    # (the CSV keeps 10 significant digits)
+    np.testing.assert_allclose(emitter["acceptor_density [cm^-3]"], na, rtol=1e-9)  # boron stays
+    np.testing.assert_allclose(emitter["donor_density [cm^-3]"], 3e19)
+    narrowing = matprops.silicon().gap_narrowing(
+        emitter["temperature [K]"].to_numpy(), Na=na, Nd=3e19
+    )
+    np.testing.assert_allclose(emitter["gap_narrowing [eV]"], narrowing.m_as("eV"), rtol=1e-8)
 
 
 def test_progress_bar_only_on_a_terminal():
