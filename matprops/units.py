@@ -446,6 +446,26 @@ _CF_SYMBOLS = {
 }
 
 
+# the order of factors within the positive and the negative powers (the trade's own:
+# cm^2 V^-1 s^-1, ohm cm, g cm^-3, cm^-2 s^-1)
+_ORDER = {
+    "ohm": 0,
+    "siemens": 0,
+    "gram": 0,
+    "kilogram": 0,
+    "centimeter": 1,
+    "meter": 1,
+    "nanometer": 1,
+    "micrometer": 1,
+    "volt": 2,
+    "ampere": 2,
+    "electron_volt": 2,
+    "second": 3,
+    "kelvin": 4,
+    "mole": 4,
+}
+
+
 @cache
 def cf_units(units) -> str:
     """The units string of files and screens: ``cm^-3``, ``cm^2/(V*s)`` ->
@@ -460,8 +480,9 @@ def cf_units(units) -> str:
     for name, power in unit_._units.items():
         symbol = _CF_SYMBOLS.get(name) or ureg.get_symbol(name).replace("µ", "u")
         power = int(power) if float(power).is_integer() else float(power)
-        parts.append(symbol if power == 1 else f"{symbol}^{power}")
-    return " ".join(parts) or "1"
+        parts.append((power < 0, _ORDER.get(name, 5), symbol, power))
+    parts.sort()  # one spelling whatever order pint holds them in: cm^2 V^-1 s^-1
+    return " ".join(s if p == 1 else f"{s}^{p}" for _, _, s, p in parts) or "1"
 
 
 _PRETTY_SYMBOLS = {"degC": "°C", "degF": "°F", "um": "µm", "us": "µs", "ohm": "Ω"}

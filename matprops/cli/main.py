@@ -574,6 +574,26 @@ def _cmd_demo(args):
     _cmd_report(args, spec)
 
 
+def _cmd_explain(args):
+    from ..outputs.export import terminal_width
+
+    si = _silicon(args)
+    inputs = {}
+    for name, values in _grid(args).items():
+        if isinstance(values, list):  # a category: one name
+            if len(values) != 1:
+                raise InputError(name, "one value (explain traces one point)", ",".join(values))
+            values = values[0]
+        elif getattr(values, "size", np.size(values)) != 1:
+            raise InputError(name, "one value (explain traces one point)", f"{np.size(values)}")
+        elif hasattr(values, "units"):
+            values = values.reshape(())
+        else:
+            values = float(np.ravel(values)[0])
+        inputs[name] = values
+    print(si.explain(args.quantity, **inputs).text(terminal_width()))
+
+
 def _cmd_models(args):
     from ..catalogue.store import default_catalog
     from ..material.silicon import models
@@ -738,6 +758,15 @@ def build_parser() -> argparse.ArgumentParser:
         "model_id", nargs="?", metavar="MODEL", help="model id (default: the release's choice)"
     )
     describe.set_defaults(run=_cmd_describe)
+
+    explain = commands.add_parser(
+        "explain",
+        parents=[material, grid],
+        help="the chain behind one value: inputs, every intermediate quantity with its "
+        "model, coefficients and conventions, the result (one value per option)",
+    )
+    explain.add_argument("quantity", metavar="QUANTITY")
+    explain.set_defaults(run=_cmd_explain)
 
     prov = commands.add_parser(
         "provenance", parents=[material], help="where a quantity's numbers come from"

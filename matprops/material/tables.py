@@ -1259,6 +1259,7 @@ def compare(
                 "quantity": quantity,
             }
         )
+        count.attrs = {}  # not flags: a count
         combined[f"{name}_valid_models"] = count.assign_attrs(
             {
                 "units": "1",

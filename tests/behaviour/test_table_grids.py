@@ -296,13 +296,19 @@ def test_compare_puts_models_side_by_side(si):
             warnings.simplefilter("ignore", matprops.ValidityWarning)
             np.testing.assert_array_equal(data.band_gap.values[k], other.band_gap(t).m_as("eV"))
         assert "doi" in data.citation.values[k]
-    spread = data.band_gap.values.max(axis=0) - data.band_gap.values.min(axis=0)
+    # the spread counts only the models inside their validity range at each point
+    valid = np.where(data.band_gap_validity.values == 0, data.band_gap.values, np.nan)
+    spread = np.nanmax(valid, axis=0) - np.nanmin(valid, axis=0)
     np.testing.assert_allclose(data.band_gap_spread.values, spread, rtol=1e-14)
     np.testing.assert_allclose(
         data.band_gap_relative_spread.values,
-        spread / np.abs(data.band_gap.values).mean(axis=0),
+        spread / np.nanmean(np.abs(valid), axis=0),
         rtol=1e-14,
     )
+    np.testing.assert_array_equal(
+        data.band_gap_valid_models.values, (data.band_gap_validity.values == 0).sum(axis=0)
+    )
+    assert (data.band_gap_validity.values == 1).any()  # 100-500 K leaves some ranges
     assert data.band_gap_spread.attrs["units"] == "eV"
     assert set(json.loads(data.band_gap.attrs["provenance"])) == set(ids)
 

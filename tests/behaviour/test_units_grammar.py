@@ -72,11 +72,15 @@ print(json.dumps(str(quantified["electrical_resistivity"].data.units)))
 
 
 def test_file_units_read_by_pint_cf_xarray_and_pint_xarray(tmp_path):
+    import importlib.util
     import subprocess
     import sys
 
-    pytest.importorskip("cf_xarray")
-    pytest.importorskip("pint_xarray")
+    # looked up, not imported: importing them here would change pint's application
+    # registry for every later test (the check runs in its own process)
+    for package in ("cf_xarray", "pint_xarray"):
+        if importlib.util.find_spec(package) is None:
+            pytest.skip(f"{package} is not installed")
     si = matprops.silicon()
     data = si.table(
         ["mobility", "resistivity", "radiative_coefficient", "absorption"],

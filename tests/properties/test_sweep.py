@@ -369,6 +369,7 @@ SILICON_METHODS = [
     ("sources", ("quantities",), {}),
     ("table", ("quantities",), {"temperature": "temperature", "wavelength": "wavelength"}),
     ("compare", ("quantity",), {"models": "model_ids", "temperature": "temperature"}),
+    ("explain", ("quantity",), {"temperature": "temperature"}),
 ]
 
 # optics functions: (name, positional argument kinds, keyword argument kinds)
