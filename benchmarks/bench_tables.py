@@ -250,7 +250,7 @@ def exports(si, points):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         data = si.table(["absorption", "refractive_index"], **grid)
-    size = data.absorption_coefficient.size
+    size = data.absorption.size
     print(f"\n3. export of a {size:.3g}-point table (absorption, refractive index)")
     with tempfile.TemporaryDirectory() as folder:
         for name in ("t.csv", "t.json", "t.nc"):

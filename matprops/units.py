@@ -25,6 +25,7 @@ from functools import cache
 import numpy as np
 import pint
 
+from . import vocabulary as _vocabulary
 from .errors import InputError, UnitError
 
 __all__ = [
@@ -102,38 +103,14 @@ def unit(text: str) -> pint.Unit:
     return _unit_of(ureg.get(), text)
 
 
-# Default (and internal) unit of each argument name, and what its value must be.
+# Default (and internal) unit of each argument name and alias, and what its value must
+# be: generated from the argument vocabulary (matprops.vocabulary), the one table of
+# argument names shared by methods, kernels, tables and the command line.
 ARGUMENTS = {
-    "temperature": ("K", "positive"),
-    "reference_temperature": ("K", "positive"),
-    "acceptor_density": ("cm^-3", "non-negative"),
-    "donor_density": ("cm^-3", "non-negative"),
-    "wavelength": ("nm", "positive"),
-    "thickness": ("cm", "positive"),
-    "electron_density": ("cm^-3", "non-negative"),
-    "hole_density": ("cm^-3", "non-negative"),
-    "absorption_coefficient": ("1/cm", "non-negative"),
-    "photon_energy": ("eV", "positive"),
-    "dopant_density": ("cm^-3", "non-negative"),
-    "excess_density": ("cm^-3", "non-negative"),
-    "equilibrium_electron_density": ("cm^-3", "positive"),
-    "equilibrium_hole_density": ("cm^-3", "positive"),
-    "defect_density": ("cm^-3", "non-negative"),
-    "generation": ("cm^-2/s", "positive"),
-    "electron_capture_time": ("s", "positive"),
-    # the public API's short names for densities (DESIGN.md): same units and rules
-    "Na": ("cm^-3", "non-negative"),
-    "Nd": ("cm^-3", "non-negative"),
-    "n": ("cm^-3", "non-negative"),
-    "p": ("cm^-3", "non-negative"),
-    "excess": ("cm^-3", "non-negative"),
-    "N": ("cm^-3", "non-negative"),
-    # transport
-    "field": ("V/cm", "non-negative"),
-    "resistivity": ("ohm*cm", "positive"),
-    "n0": ("cm^-3", "positive"),
-    "p0": ("cm^-3", "positive"),
-    "density": ("cm^-3", "non-negative"),
+    name: (spec.units, spec.requirement)
+    for spec in _vocabulary.ARGUMENTS.values()
+    if spec.units is not None
+    for name in spec.names
 }
 
 # Lengths a bare number would leave ambiguous (a wafer's 180 is µm to its maker, the

@@ -40,3 +40,25 @@ def spawn_pool():
     yield pool
     pool.terminate()
     pool.join()
+
+
+@pytest.fixture
+def plug_quantity(monkeypatch):
+    """Declare a stand-in quantity for one test, the way a family declares a real one:
+    ``plug_quantity(function, units="eV", ...)`` (the keywords of
+    :func:`matprops.material.registry.quantity`) makes ``function`` a Silicon method
+    and registers it; a declaration of the same name is replaced. Undone afterwards."""
+    from matprops.material.registry import REGISTRY, quantity
+
+    with REGISTRY.scratch():
+
+        def plug(function, name=None, method=None, **declaration):
+            name = name or function.__name__
+            function.__name__ = method or name
+            if name in REGISTRY:
+                REGISTRY.remove(name)
+            made = quantity(name, **declaration)(function)
+            monkeypatch.setattr(matprops.Silicon, function.__name__, made, raising=False)
+            return made
+
+        yield plug

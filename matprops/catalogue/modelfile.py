@@ -17,25 +17,32 @@ from collections.abc import Mapping
 from pathlib import Path
 from types import MappingProxyType
 
+import numpy as np
+
 from ..errors import (
     DatasetError,
 )
 from ..kernels import module_for
 from .conventions import REQUIRED as REQUIRED_CONVENTIONS
 from .conventions import legacy_conventions, parse_fit_conventions
-from .fields import convert, number_or_list, require, udunits_to_pint
+from .fields import convert, number_or_list, read_only, require, udunits_to_pint
 from .records import (
     SOURCE_TYPES,
     CatalogueLike,
     Coefficient,
+    Correlation,
     Model,
+    OutputUncertainty,
     Range,
     Source,
+    Uncertainty,
+    standard_from,
 )
 from .regions import parse_regions
 from .schema import (
     KINDS,
     THERMAL_VELOCITY_DEFINITIONS,
+    UNCERTAINTY_KINDS,
     VARIANT_AXES,
 )
 
@@ -192,6 +199,7 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
         return None if requires else functools.partial(kernel, **bound)
 
     if raw_variants is None:
+        common["uncertainty"] = _uncertainty_section(path, data, spec, shared, {})
         return Model(
             **common,
             coefficients=MappingProxyType(shared),
@@ -258,6 +266,11 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
             function=bind(merged, variant_kernel, kernel_name),
             variant=variant,
         )
+    own_sets = {
+        name: {k: c for k, c in model.coefficients.items() if k not in shared}
+        for name, model in variants.items()
+    }
+    common["uncertainty"] = _uncertainty_section(path, data, spec, shared, own_sets)
     parent = Model(
         **common,
         coefficients=MappingProxyType(shared),
@@ -268,6 +281,7 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
     object.__setattr__(parent, "variants", frozen)
     for model in variants.values():
         object.__setattr__(model, "variants", frozen)
+        object.__setattr__(model, "uncertainty", common["uncertainty"])
     return parent
 
 
@@ -305,9 +319,169 @@ def _coefficient(path, where: str, entry, target_units: str) -> Coefficient:
     if origin is not None and not (isinstance(origin, str) and origin.strip()):
         raise DatasetError(path, f"{where}.obtained must be a non-empty string")
     kernel_value = convert(path, where, value, units, target_units)
+    kind = entry.get("uncertainty_kind", "unspecified")
+    coverage = entry.get("coverage_factor")
+    said = entry.get("uncertainty_obtained")
+    kernel_uncertainty = None
+    if uncertainty is None:
+        if any(k in entry for k in ("uncertainty_kind", "coverage_factor", "uncertainty_obtained")):
+            raise DatasetError(path, f"{where}: uncertainty_* fields need an uncertainty")
+    else:
+        _check_spread(path, f"{where}.uncertainty", uncertainty, value, kind, coverage)
+        # a difference converts by the units' scale (an offset cancels)
+        low, high = convert(path, where, [0.0, 1.0], units, target_units)
+        standard = np.asarray(standard_from(uncertainty, kind, coverage), dtype=float)
+        kernel_uncertainty = standard * (high - low)
+        kernel_uncertainty = (
+            float(kernel_uncertainty)
+            if kernel_uncertainty.ndim == 0
+            else read_only(kernel_uncertainty)
+        )
     return Coefficient(
-        where.rpartition(".")[2], value, units, uncertainty, kernel_value, target_units, origin
+        where.rpartition(".")[2],
+        value,
+        units,
+        uncertainty,
+        kernel_value,
+        target_units,
+        origin,
+        uncertainty_kind=kind,
+        coverage_factor=None if coverage is None else float(coverage),
+        uncertainty_obtained=said,
+        kernel_uncertainty=kernel_uncertainty,
     )
+
+
+def _check_spread(path, where, uncertainty, value, kind, coverage) -> None:
+    """An uncertainty: non-negative, shaped like its value, its kind complete."""
+    if kind not in UNCERTAINTY_KINDS:
+        raise DatasetError(
+            path, f"{where}_kind must be one of {', '.join(UNCERTAINTY_KINDS)}, got {kind!r}"
+        )
+    if (kind == "expanded") != (coverage is not None):
+        raise DatasetError(path, f"{where}: coverage_factor goes with (only) kind 'expanded'")
+    if coverage is not None and not coverage > 0:
+        raise DatasetError(path, f"{where}: coverage_factor must be positive, got {coverage!r}")
+    values = uncertainty if isinstance(uncertainty, tuple) else (uncertainty,)
+    if isinstance(uncertainty, tuple) != isinstance(value, tuple) or (
+        isinstance(value, tuple) and len(value) != len(uncertainty)
+    ):
+        raise DatasetError(path, f"{where} must have one entry per entry of the value")
+    if any(v < 0 for v in values):
+        raise DatasetError(path, f"{where} must not be negative, got {uncertainty!r}")
+
+
+def _uncertainty_section(path, data, spec, coefficients, variants) -> Uncertainty:
+    """The ``[uncertainty]`` section: the source's statement, correlations between
+    coefficients, and stated accuracies of the output (see :class:`.records.Uncertainty`)."""
+    carried = any(c.uncertainty is not None for c in coefficients.values()) or any(
+        c.uncertainty is not None for v in variants.values() for c in v.values()
+    )
+    entry = data.get("uncertainty")
+    if entry is None:
+        if carried:
+            return Uncertainty(
+                "stated", "coefficients carry uncertainties (no [uncertainty] section)"
+            )
+        return Uncertainty()
+    statement = require(path, entry, "statement", str, where="uncertainty.")
+    obtained = require(path, entry, "obtained", str, where="uncertainty.")
+    if not obtained.strip():
+        raise DatasetError(path, "uncertainty.obtained must say where the statement was read")
+    outputs = []
+    for index, raw in enumerate(entry.get("output", [])):
+        where = f"uncertainty.output[{index}]"
+        relative, absolute = raw.get("relative"), raw.get("absolute")
+        if (relative is None) == (absolute is None):
+            raise DatasetError(path, f"{where}: give one of relative or absolute")
+        if (absolute is not None) != ("units" in raw):
+            raise DatasetError(path, f"{where}: units go with (only) absolute")
+        size = relative if relative is not None else absolute
+        _check_spread(path, where, size, 1.0, raw["kind"], raw.get("coverage_factor"))
+        validity = {
+            k: (r.low, r.high)
+            for k, r in _validity(path, raw.get("validity", {}), spec, where + ".validity").items()
+        }
+        at = {}
+        for name, point in raw.get("at", {}).items():
+            if name not in spec.inputs:
+                raise DatasetError(path, f"{where}.at: the kernel has no input {name!r}")
+            at[name] = convert(
+                path, f"{where}.at.{name}", point["value"], point["units"], spec.inputs[name]
+            )
+        variant = raw.get("variant")
+        if variant is not None and variant not in variants:
+            raise DatasetError(path, f"{where}.variant: no coefficient set {variant!r}")
+        outputs.append(
+            OutputUncertainty(
+                kind=raw["kind"],
+                statement=raw["statement"],
+                obtained=raw["obtained"],
+                relative=None if relative is None else float(relative),
+                absolute=None if absolute is None else float(absolute),
+                units=raw.get("units"),
+                coverage_factor=raw.get("coverage_factor"),
+                validity=MappingProxyType(validity),
+                at=MappingProxyType(at),
+                variant=variant,
+            )
+        )
+    correlations = []
+    for index, raw in enumerate(entry.get("correlation", [])):
+        where = f"uncertainty.correlation[{index}]"
+        names = tuple(raw["coefficients"])
+        matrix = np.asarray(raw["matrix"], dtype=float)
+        if matrix.shape != (len(names), len(names)):
+            raise DatasetError(path, f"{where}: the matrix must be {len(names)} x {len(names)}")
+        if not np.allclose(matrix, matrix.T) or not np.all(np.diag(matrix) == 1.0):
+            raise DatasetError(
+                path, f"{where}: the matrix must be symmetric with 1 on its diagonal"
+            )
+        if np.any(np.abs(matrix) > 1.0) or np.linalg.eigvalsh(matrix).min() < -1e-12:
+            raise DatasetError(path, f"{where}: not a correlation matrix (positive semi-definite)")
+        for name in names:
+            if coefficient_entry(name, coefficients, variants) is None:
+                raise DatasetError(
+                    path, f"{where}: {name!r} is not a coefficient with an uncertainty"
+                )
+        correlations.append(Correlation(names, tuple(map(tuple, matrix.tolist())), raw["obtained"]))
+    if statement != "stated" and (carried or outputs):
+        raise DatasetError(
+            path,
+            f"uncertainty.statement is {statement!r} but the file states uncertainties "
+            "(on coefficients or in uncertainty.output): 'stated'",
+        )
+    if statement == "stated" and not (carried or outputs):
+        raise DatasetError(
+            path, "uncertainty.statement 'stated' but no coefficient or output carries one"
+        )
+    return Uncertainty(statement, obtained, tuple(correlations), tuple(outputs))
+
+
+def coefficient_entry(name: str, coefficients, variants):
+    """The Coefficient (and element index) a correlation names, if it has an uncertainty:
+    ``"alpha"``, ``"low_coefficients[1]"``, ``"boron.alpha"`` -> (Coefficient, index)."""
+    table = coefficients
+    if "." in name:
+        variant, _, name = name.partition(".")
+        if variant not in variants:
+            return None
+        table = {**coefficients, **variants[variant]}
+    index = None
+    if name.endswith("]") and "[" in name:
+        name, _, rest = name.partition("[")
+        try:
+            index = int(rest[:-1])
+        except ValueError:
+            return None
+    coefficient = table.get(name)
+    if coefficient is None or coefficient.uncertainty is None:
+        return None
+    if (index is None) != isinstance(coefficient.value, tuple):
+        return None
+    if index is not None and not 0 <= index < len(coefficient.value):
+        return None
+    return coefficient, index
 
 
 def _coefficients(path, raw, spec, prefix, kernel_name, also=()) -> dict[str, Coefficient]:

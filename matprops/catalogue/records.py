@@ -138,7 +138,15 @@ class Source:
 
 @dataclass(frozen=True)
 class Coefficient:
-    """A coefficient as printed (value, units, uncertainty) and in kernel units."""
+    """A coefficient as printed (value, units, uncertainty) and in kernel units.
+
+    ``uncertainty`` is the source's "+-" as printed, in ``units``; ``uncertainty_kind``
+    says what it is (``"standard"``, ``"expanded"`` with ``coverage_factor``,
+    ``"bound"``: the half-width of limits, or ``"unspecified"``: the source does not
+    say) and :attr:`standard_uncertainty` the standard uncertainty (k = 1) it stands
+    for; ``kernel_uncertainty`` is that in the kernel's units. ``None``: the source
+    states no uncertainty for this number.
+    """
 
     name: str
     value: float | tuple[float, ...]
@@ -147,13 +155,135 @@ class Coefficient:
     kernel_value: Any  # float or ndarray in the kernel's units
     kernel_units: str
     obtained: str | None = None  # this number's own origin, where it differs from the model's
+    uncertainty_kind: str = "unspecified"
+    coverage_factor: float | None = None
+    uncertainty_obtained: str | None = None
+    kernel_uncertainty: Any = None  # standard uncertainty in the kernel's units
+
+    @property
+    def standard_uncertainty(self):
+        """The standard uncertainty (k = 1) in the printed units, or None."""
+        if self.uncertainty is None:
+            return None
+        return _plain(standard_from(self.uncertainty, self.uncertainty_kind, self.coverage_factor))
 
     def as_dict(self) -> dict:
         record = {"value": _plain(self.value), "units": self.units}
         if self.uncertainty is not None:
             record["uncertainty"] = _plain(self.uncertainty)
+            record["uncertainty_kind"] = self.uncertainty_kind
+            if self.coverage_factor is not None:
+                record["coverage_factor"] = self.coverage_factor
+            record["standard_uncertainty"] = self.standard_uncertainty
+            if self.uncertainty_obtained:
+                record["uncertainty_obtained"] = self.uncertainty_obtained
         if self.obtained:
             record["obtained"] = self.obtained
+        return record
+
+
+def standard_from(value, kind: str, coverage_factor: float | None = None):
+    """The standard uncertainty (k = 1) a source's "+-" stands for.
+
+    ``"standard"`` and ``"unspecified"`` (a "+-" whose meaning the source does not
+    say, taken as a standard uncertainty; the answer says so) as they are;
+    ``"expanded"`` divided by its coverage factor; ``"bound"`` (the half-width ``a``
+    of limits the value lies within) as a rectangular distribution, ``a / sqrt(3)``
+    (GUM, JCGM 100:2008, 4.3.7).
+    """
+    scale = {"standard": 1.0, "unspecified": 1.0, "bound": 1.0 / 3.0**0.5}.get(kind)
+    if kind == "expanded":
+        scale = 1.0 / float(coverage_factor)
+    if isinstance(value, tuple):
+        return tuple(v * scale for v in value)
+    return value * scale
+
+
+@dataclass(frozen=True)
+class OutputUncertainty:
+    """A source's stated accuracy of a model's output (not of its coefficients).
+
+    ``relative`` (a fraction) or ``absolute`` (in ``units``), of the given ``kind``
+    (see :func:`standard_from`), holding over the ranges ``validity`` (kernel input
+    -> (low, high), kernel units) or stated at the point ``at`` (input -> value).
+    """
+
+    kind: str
+    statement: str
+    obtained: str
+    relative: float | None = None
+    absolute: float | None = None
+    units: str | None = None
+    coverage_factor: float | None = None
+    validity: Mapping[str, tuple[float, float]] = field(default_factory=dict)
+    at: Mapping[str, float] = field(default_factory=dict)
+    variant: str | None = None
+
+    @property
+    def standard_relative(self) -> float | None:
+        if self.relative is None:
+            return None
+        return standard_from(self.relative, self.kind, self.coverage_factor)
+
+    @property
+    def standard_absolute(self) -> float | None:
+        if self.absolute is None:
+            return None
+        return standard_from(self.absolute, self.kind, self.coverage_factor)
+
+    def as_dict(self) -> dict:
+        record: dict[str, Any] = {"statement": self.statement, "kind": self.kind}
+        if self.relative is not None:
+            record["relative"] = self.relative
+            record["standard_relative"] = self.standard_relative
+        if self.absolute is not None:
+            record.update(
+                absolute=self.absolute, units=self.units, standard_absolute=self.standard_absolute
+            )
+        if self.coverage_factor is not None:
+            record["coverage_factor"] = self.coverage_factor
+        if self.validity:
+            record["validity"] = {k: list(v) for k, v in self.validity.items()}
+        if self.at:
+            record["at"] = dict(self.at)
+        if self.variant:
+            record["variant"] = self.variant
+        record["obtained"] = self.obtained
+        return record
+
+
+@dataclass(frozen=True)
+class Correlation:
+    """Correlation coefficients between some coefficients of one model."""
+
+    coefficients: tuple[str, ...]  # "name", "name[i]" or "<variant>.name"
+    matrix: tuple[tuple[float, ...], ...]
+    obtained: str
+
+    def as_dict(self) -> dict:
+        return {
+            "coefficients": list(self.coefficients),
+            "matrix": [list(row) for row in self.matrix],
+            "obtained": self.obtained,
+        }
+
+
+@dataclass(frozen=True)
+class Uncertainty:
+    """What a model's source states about its uncertainty (the ``[uncertainty]``
+    section of its file; a file without one: ``"not known"``)."""
+
+    statement: str = "not known"  # "stated", "not stated", "not known"
+    obtained: str = "no [uncertainty] section in the model file: not recorded"
+    correlations: tuple[Correlation, ...] = ()
+    outputs: tuple[OutputUncertainty, ...] = ()
+
+    def as_dict(self) -> dict:
+        record: dict[str, Any] = {"statement": self.statement, "obtained": self.obtained}
+        if self.correlations:
+            record["correlation"] = [c.as_dict() for c in self.correlations]
+        if self.outputs:
+            record["output"] = [o.as_dict() for o in self.outputs]
         return record
 
 
@@ -215,6 +345,8 @@ class Model:
     extra: Mapping[str, Any] = field(default_factory=dict)
     # validity limits of one input that depend on another (see matprops.catalogue.regions)
     regions: tuple[Region, ...] = ()
+    # what the source states about uncertainty (coefficients carry their own)
+    uncertainty: Uncertainty = field(default_factory=Uncertainty)
     # the catalogue that built this record: tables are read and pickles re-bound there
     catalogue: CatalogueLike | None = field(default=None, repr=False)
 
@@ -315,11 +447,17 @@ class Model:
         """Warn (or raise, if strict) when [low, high] leaves the validity range."""
         rng = self.validity.get(argument)
         if rng is not None and (low < rng.low or high > rng.high):
-            consequence = (
-                "the value is NaN where its table has no data and unvalidated elsewhere"
-                if self.kind == "table"
-                else "the value is an extrapolation"
-            )
+            if argument in getattr(self.kernel.spec, "nan_outside", ()):
+                consequence = (
+                    "the value is NaN there (its coefficients were published only inside "
+                    "this range; nothing is extrapolated)"
+                )
+            elif self.kind == "table":
+                consequence = (
+                    "the value is NaN where its table has no data and unvalidated elsewhere"
+                )
+            else:
+                consequence = "the value is an extrapolation"
             message = (
                 f"model {self.quantity}/{self.id}: {argument} "
                 f"{_span(low, high)} {rng.units} is outside its validity range "
@@ -374,6 +512,7 @@ class Model:
             "obtained": self.obtained,
             "notes": self.notes,
             "coefficients": {k: c.as_dict() for k, c in self.coefficients.items()},
+            "uncertainty": self.uncertainty.as_dict(),
             "file": self._relative_path(),
             "sha256": self.sha256,
         }

@@ -38,6 +38,8 @@ __all__ = [
     "MODEL",
     "RELEASE",
     "THERMAL_VELOCITY_DEFINITIONS",
+    "UNCERTAINTY_KINDS",
+    "UNCERTAINTY_STATEMENTS",
     "VARIANT_AXES",
     "validate",
 ]
@@ -47,6 +49,13 @@ KINDS = ("closed-form", "table", "composed")  # of model: see matprops.catalogue
 VARIANT_AXES = ("dopant", "carrier")  # what a model's coefficient sets are per
 # a thermal velocity is the mean speed sqrt(8kT/(pi m)) or the rms speed sqrt(3kT/m)
 THERMAL_VELOCITY_DEFINITIONS = ("mean speed", "root-mean-square speed")
+# what a source's "+-" is: a standard uncertainty (k = 1), an expanded one (k given), the
+# half-width of bounds (a rectangular distribution, u = a / sqrt(3), GUM 4.3.7), or a
+# "+-" whose meaning the source does not say (taken as a standard uncertainty, said so)
+UNCERTAINTY_KINDS = ("standard", "expanded", "bound", "unspecified")
+# whether a model's source states an uncertainty: "stated" (on coefficients or on the
+# output), "not stated" (the source was read and gives none), "not known" (not read here)
+UNCERTAINTY_STATEMENTS = ("stated", "not stated", "not known")
 
 
 @dataclass(frozen=True)
@@ -132,7 +141,10 @@ SOURCE = {  # which fields each type needs: catalog.SOURCE_TYPES
 COEFFICIENT = {  # [coefficients] name = { value = ..., units = ... }
     "value": (NUMBERS, REQUIRED),
     "units": (TEXT, REQUIRED),
-    "uncertainty": (NUMBERS, OPTIONAL),
+    "uncertainty": (NUMBERS, OPTIONAL),  # as printed, in `units`: see uncertainty_kind
+    "uncertainty_kind": (one_of(*UNCERTAINTY_KINDS), OPTIONAL),  # default "unspecified"
+    "coverage_factor": (NUMBER, OPTIONAL),  # k of an "expanded" uncertainty
+    "uncertainty_obtained": (TEXT, OPTIONAL),  # where the uncertainty was read
     "obtained": (TEXT, OPTIONAL),  # this number's own origin, where it differs
 }
 
@@ -184,6 +196,46 @@ FIT = {  # [fit] of an intrinsic_lifetime model sealed before [fit_conventions]
     "intrinsic_density": (FITTED_DENSITY, OPTIONAL),
 }
 
+MATRIX = Kind(
+    "a square list of lists of finite numbers",
+    lambda v: (
+        isinstance(v, list)
+        and bool(v)
+        and all(
+            isinstance(row, list) and len(row) == len(v) and all(_is_number(x) for x in row)
+            for row in v
+        )
+    ),
+)
+
+CORRELATION = {  # [[uncertainty.correlation]]: a block of correlated coefficients
+    "coefficients": (TEXTS, REQUIRED),  # "name", "name[i]" or "<variant>.name"
+    "matrix": (MATRIX, REQUIRED),  # correlation coefficients, 1 on the diagonal
+    "obtained": (TEXT, REQUIRED),
+}
+
+POINT = {"value": (NUMBER, REQUIRED), "units": (TEXT, REQUIRED)}
+
+OUTPUT_UNCERTAINTY = {  # [[uncertainty.output]]: a source's stated accuracy of the output
+    "relative": (NUMBER, OPTIONAL),  # one of relative (a fraction) or absolute (+ units)
+    "absolute": (NUMBER, OPTIONAL),
+    "units": (TEXT, OPTIONAL),
+    "kind": (one_of(*UNCERTAINTY_KINDS), REQUIRED),
+    "coverage_factor": (NUMBER, OPTIONAL),
+    "validity": (table_of(RANGE), OPTIONAL),  # the range over which it holds, or
+    "at": (table_of(POINT), OPTIONAL),  # the point it was stated at
+    "variant": (TEXT, OPTIONAL),  # one coefficient set (carrier, dopant) only
+    "statement": (TEXT, REQUIRED),  # what the source says, in a few words
+    "obtained": (TEXT, REQUIRED),
+}
+
+UNCERTAINTY = {  # [uncertainty] of a model: what its source states about uncertainty
+    "statement": (one_of(*UNCERTAINTY_STATEMENTS), REQUIRED),
+    "obtained": (TEXT, REQUIRED),
+    "correlation": (list_of(CORRELATION), OPTIONAL),
+    "output": (list_of(OUTPUT_UNCERTAINTY), OPTIONAL),
+}
+
 MODEL = {  # datasets/models/<quantity>/<model-id>.toml
     "id": (TEXT, REQUIRED),
     "quantity": (TEXT, REQUIRED),
@@ -211,6 +263,7 @@ MODEL = {  # datasets/models/<quantity>/<model-id>.toml
     "dopant_densities": (one_of("total", "ionised"), OPTIONAL),  # mobility models
     "fit": (FIT, OPTIONAL),  # intrinsic_lifetime models
     "definition": (one_of(*THERMAL_VELOCITY_DEFINITIONS), OPTIONAL),  # thermal_velocity
+    "uncertainty": (UNCERTAINTY, OPTIONAL),  # absent: "not known" (see records.Uncertainty)
     # -- new fields: one line here
 }
 

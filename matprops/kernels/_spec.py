@@ -20,20 +20,22 @@ __all__ = ["KernelSpec", "derivatives_of", "kernel"]
 class KernelSpec:
     """Units of a kernel's inputs, coefficients and output (read-only)."""
 
-    __slots__ = ("array_api", "coefficients", "inputs", "output", "requires")
+    __slots__ = ("array_api", "coefficients", "inputs", "nan_outside", "output", "requires")
 
-    def __init__(self, inputs, coefficients, output, requires, array_api=False):
+    def __init__(self, inputs, coefficients, output, requires, array_api=False, nan_outside=()):
         self.inputs: Mapping[str, str] = MappingProxyType(dict(inputs))
         self.coefficients: Mapping[str, str] = MappingProxyType(dict(coefficients))
         self.output = output
         self.requires: tuple[str, ...] = tuple(requires)
         self.array_api = bool(array_api)
+        self.nan_outside: tuple[str, ...] = tuple(nan_outside)
 
     def __repr__(self) -> str:
         return (
             f"KernelSpec(inputs={dict(self.inputs)}, "
             f"coefficients={dict(self.coefficients)}, output={self.output!r}, "
-            f"requires={self.requires}, array_api={self.array_api})"
+            f"requires={self.requires}, array_api={self.array_api}, "
+            f"nan_outside={self.nan_outside})"
         )
 
 
@@ -44,6 +46,7 @@ def kernel(
     coefficients: Mapping[str, str] = (),
     requires: tuple[str, ...] = (),
     array_api: bool = False,
+    nan_outside: tuple[str, ...] = (),
 ) -> Callable:
     """Declare a function's units for the catalogue.
 
@@ -59,10 +62,16 @@ def kernel(
     array_api : the kernel computes with the namespace of its inputs
         (:func:`matprops.kernels._xp.namespace`), so any array-API-standard array
         works, not only numpy's
+    nan_outside : inputs outside whose published points the kernel returns NaN
+        instead of extrapolating (coefficients given at a few wavelengths, say); a
+        validity warning for such an input says that the value is NaN there
     """
+    unknown = set(nan_outside) - set(inputs)
+    if unknown:
+        raise ValueError(f"nan_outside names inputs the kernel does not take: {sorted(unknown)}")
 
     def attach(func: Callable) -> Callable:
-        func.spec = KernelSpec(inputs, dict(coefficients), output, requires, array_api)
+        func.spec = KernelSpec(inputs, dict(coefficients), output, requires, array_api, nan_outside)
         return func
 
     return attach

@@ -10,11 +10,16 @@ from ._spec import derivatives_of, kernel
 from ._xp import asfloat, cbrt, errstate, namespace
 
 
+def _number(c):
+    """A coefficient as a Python float (a differentiated coefficient as it is)."""
+    return c if hasattr(c, "tangent") else float(c)
+
+
 def horner(x, coefficients):
     """``c0 + c1 x + c2 x^2 + ...`` by Horner's rule (the operations of numpy's polyval)."""
-    result = float(coefficients[-1])
+    result = _number(coefficients[-1])
     for c in reversed(coefficients[:-1]):
-        result = float(c) + result * x
+        result = _number(c) + result * x
     return result
 
 
@@ -23,7 +28,7 @@ def horner_derivative(x, coefficients):
     n = len(coefficients)
     if n < 2:
         return 0.0 * x
-    return horner(x, [k * float(coefficients[k]) for k in range(1, n)])
+    return horner(x, [k * _number(coefficients[k]) for k in range(1, n)])
 
 
 @kernel(

@@ -7,7 +7,8 @@ import functools
 
 import numpy as np
 
-from ._spec import kernel
+from ._coefficients import is_dual
+from ._spec import derivatives_of, kernel
 from ._xp import asfloat, namespace
 from .constants import AVOGADRO
 
@@ -84,6 +85,8 @@ def _okada_integral(x, c1, c2, c3, onset_temperature, exp=None):
     """``F(x) = c1 [x + exp(-c2 (x - T1)) / c2] + c3 x^2 / 2`` (a float for a float x,
     computed once per set of coefficients)."""
     if exp is None:
+        if any(is_dual(c) for c in (c1, c2, c3, onset_temperature)):
+            return _okada_integral(x, c1, c2, c3, onset_temperature, np.exp)
         return _okada_constant(float(x), c1, c2, c3, onset_temperature)
     return c1 * (x + exp(-c2 * (x - onset_temperature)) / c2) + 0.5 * c3 * x * x
 
@@ -91,6 +94,46 @@ def _okada_integral(x, c1, c2, c3, onset_temperature, exp=None):
 @functools.lru_cache(maxsize=16)
 def _okada_constant(x, c1, c2, c3, onset_temperature):
     return float(_okada_integral(x, c1, c2, c3, onset_temperature, np.exp))
+
+
+@kernel(
+    inputs={"temperature": "K"},
+    output="1/K",
+    coefficients={"c1": "1/K", "c2": "1/K", "c3": "1/K^2", "onset_temperature": "K"},
+    array_api=True,
+)
+def okada_tokumaru_expansion(temperature, *, c1, c2, c3, onset_temperature):
+    """Linear thermal-expansion coefficient of Okada and Tokumaru.
+
+    ``alpha(T) = c1 [1 - exp(-c2 (T - T1))] + c3 T``
+
+    (the derivative ``d ln a / dT`` of :func:`okada_tokumaru`'s lattice constant).
+
+    Parameters
+    ----------
+    temperature : array_like, K
+    c1 : 1/K;  c2 : 1/K;  c3 : 1/K^2;  onset_temperature (T1) : K
+
+    Returns
+    -------
+    alpha : 1/K
+
+    References
+    ----------
+    Y. Okada and Y. Tokumaru, J. Appl. Phys. 56, 314 (1984), doi:10.1063/1.333965.
+    """
+    xp = namespace(temperature)
+    t = asfloat(xp, temperature)
+    return c1 * (1.0 - xp.exp(-c2 * (t - onset_temperature))) + c3 * t
+
+
+@derivatives_of(okada_tokumaru_expansion)
+def okada_tokumaru_expansion_derivatives(temperature, *, c1, c2, c3, onset_temperature):
+    """alpha(T) and ``d alpha / dT = c1 c2 exp(-c2 (T - T1)) + c3``."""
+    xp = namespace(temperature)
+    t = asfloat(xp, temperature)
+    decay = xp.exp(-c2 * (t - onset_temperature))
+    return c1 * (1.0 - decay) + c3 * t, {"temperature": c1 * c2 * decay + c3}
 
 
 def atomic_density(lattice_constant):

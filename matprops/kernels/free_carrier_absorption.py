@@ -56,6 +56,7 @@ def power_law(
         "electron_cross_sections": "cm^2",
         "hole_cross_sections": "cm^2",
     },
+    nan_outside=("wavelength",),
 )
 def cross_sections_at_wavelengths(
     wavelength,
@@ -95,6 +96,7 @@ def cross_sections_at_wavelengths(
         "hole_prefactors": "1/cm",
         "hole_exponents": "1",
     },
+    nan_outside=("wavelength",),
 )
 def tabulated_power_laws(
     wavelength,

@@ -27,6 +27,7 @@ import math
 
 import numpy as np
 
+from ._coefficients import number
 from ._spec import derivatives_of, kernel
 from ._xp import asfloat, errstate, namespace, power, zeros_like
 
@@ -196,7 +197,7 @@ def richter(
         + hole_coefficient * g_ehh * p0
         + injection_coefficient * _power(xp, dn, injection_exponent)
     )
-    return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part, xp)
+    return _lifetime(shape, n0, p0, dn, auger, number(radiative_coefficient), part, xp)
 
 
 @derivatives_of(richter)
@@ -247,7 +248,7 @@ def richter_derivatives(
             * xp.where(dn > 0, injection / dn, zeros_like(xp, injection) + math.inf),
         }
     return _lifetime_derivatives(
-        xp, shape, n0, p0, dn, auger, float(radiative_coefficient), d_auger, {}, part
+        xp, shape, n0, p0, dn, auger, number(radiative_coefficient), d_auger, {}, part
     )
 
 
@@ -305,7 +306,7 @@ def kerr_cuevas(
     auger = electron_coefficient * _power(xp, n0, electron_exponent)
     auger = auger + hole_coefficient * _power(xp, p0, hole_exponent)
     auger = auger + injection_coefficient * _power(xp, dn, injection_exponent)
-    return _lifetime(shape, n0, p0, dn, auger, float(radiative_coefficient), part, xp)
+    return _lifetime(shape, n0, p0, dn, auger, number(radiative_coefficient), part, xp)
 
 
 @derivatives_of(kerr_cuevas)
@@ -346,7 +347,7 @@ def kerr_cuevas_derivatives(
             * _power(xp, dn, injection_exponent - 1.0),
         }
     return _lifetime_derivatives(
-        xp, shape, n0, p0, dn, auger, float(radiative_coefficient), d_auger, {}, part
+        xp, shape, n0, p0, dn, auger, number(radiative_coefficient), d_auger, {}, part
     )
 
 
@@ -432,4 +433,307 @@ def constant_coefficients_derivatives(
         d_auger,
         {"temperature": asfloat(xp, slopes["temperature"])},
         part,
+    )
+
+
+def _free_particle_ratio(t, a, b, c):
+    """(a + b tau + c tau^2) / (a + b + c) with tau = T / 300 K: a free-particle Auger
+    coefficient relative to its 300 K value."""
+    tau = t / 300.0
+    return (a + tau * (b + tau * c)) / (a + b + c)
+
+
+def relative_radiative_coefficient(
+    temperature,
+    carrier_sum,
+    *,
+    rel_low_limit,
+    rel_high_limit,
+    rel_temperature,
+    rel_temperature_exponent,
+    first_density_low,
+    first_density_high,
+    first_temperature,
+    first_temperature_exponent,
+    first_exponent,
+    second_density_low,
+    second_density_high,
+    second_temperature,
+    second_temperature_exponent,
+    second_exponent,
+):
+    """Altermatt et al.'s (2005) relative radiative coefficient B_rel(n + p, T) <= 1.
+
+    ``B_rel = b_min + (1 - b_min) / [1 + ((n+p)/b_1)^e_1 + ((n+p)/b_3)^e_3]`` with
+    ``b_min = r_max + (r_min - r_max) / [1 + (T/r_1)^r_2]`` and ``b_1``, ``b_3`` of the
+    same logistic form in T (``s``, ``w`` sets): the screening of the electron-hole
+    attraction by free carriers lowers B at high carrier densities.
+    """
+    xp = namespace(temperature, carrier_sum)
+    t = asfloat(xp, temperature)
+    total = asfloat(xp, carrier_sum)
+
+    def logistic(low, high, scale, exponent):
+        return high + (low - high) / (1.0 + _power(xp, t / scale, exponent))
+
+    b_min = logistic(rel_low_limit, rel_high_limit, rel_temperature, rel_temperature_exponent)
+    b_1 = logistic(
+        first_density_low, first_density_high, first_temperature, first_temperature_exponent
+    )
+    b_3 = logistic(
+        second_density_low, second_density_high, second_temperature, second_temperature_exponent
+    )
+    denominator = (
+        1.0 + _power(xp, total / b_1, first_exponent) + _power(xp, total / b_3, second_exponent)
+    )
+    return b_min + (1.0 - b_min) / denominator
+
+
+_RELATIVE_RADIATIVE = {
+    "rel_low_limit": "1",
+    "rel_high_limit": "1",
+    "rel_temperature": "K",
+    "rel_temperature_exponent": "1",
+    "first_density_low": "cm^-3",
+    "first_density_high": "cm^-3",
+    "first_temperature": "K",
+    "first_temperature_exponent": "1",
+    "first_exponent": "1",
+    "second_density_low": "cm^-3",
+    "second_density_high": "cm^-3",
+    "second_temperature": "K",
+    "second_temperature_exponent": "1",
+    "second_exponent": "1",
+}
+
+
+@kernel(
+    inputs=_INPUTS,
+    output="s",
+    coefficients={
+        "electron_coefficient": "cm^6/s",
+        "hole_coefficient": "cm^6/s",
+        "injection_coefficient": "cm^3/s",
+        "injection_exponent": "1",
+        "eeh_enhancement": "1",
+        "eeh_density": "cm^-3",
+        "eeh_exponent": "1",
+        "ehh_enhancement": "1",
+        "ehh_density": "cm^-3",
+        "ehh_exponent": "1",
+        "electron_free_constant": "cm^6/s",
+        "electron_free_linear": "cm^6/s",
+        "electron_free_quadratic": "cm^6/s",
+        "hole_free_constant": "cm^6/s",
+        "hole_free_linear": "cm^6/s",
+        "hole_free_quadratic": "cm^6/s",
+        **_RELATIVE_RADIATIVE,
+    },
+    requires=("radiative_coefficient",),
+)
+def richter_temperature(
+    temperature,
+    equilibrium_electron_density,
+    equilibrium_hole_density,
+    excess_density,
+    *,
+    electron_coefficient,
+    hole_coefficient,
+    injection_coefficient,
+    injection_exponent,
+    eeh_enhancement,
+    eeh_density,
+    eeh_exponent,
+    ehh_enhancement,
+    ehh_density,
+    ehh_exponent,
+    electron_free_constant,
+    electron_free_linear,
+    electron_free_quadratic,
+    hole_free_constant,
+    hole_free_linear,
+    hole_free_quadratic,
+    radiative_coefficient,
+    part="total",
+    **relative,
+):
+    """Richter et al.'s (2012) 300 K parameterisation carried in temperature.
+
+    ``A(T) = f_n(T) C_n g_eeh n0 + f_p(T) C_p g_ehh p0 + f_a(T) C_dn dn^gamma`` with
+    Richter's terms (see :func:`richter`) and the free-particle temperature factors
+    ``f_n = (a_n + b_n tau + c_n tau^2) / (a_n + b_n + c_n)``, ``tau = T / 300 K``
+    (likewise ``f_p``; ``f_a`` is the ratio of the sums for electrons and holes), so
+    that ``A(300 K)`` is Richter's. ``R = B_rel(n + p, T) B_low(T)`` with ``B_low``
+    from the material's radiative model (a bound model) and ``B_rel`` of Altermatt et
+    al. (2005) (:func:`relative_radiative_coefficient`), ``n = n0 + dn``,
+    ``p = p0 + dn``.
+
+    Parameters
+    ----------
+    temperature : array_like, K
+    equilibrium_electron_density, equilibrium_hole_density : array_like, cm^-3 (n0, p0)
+    excess_density : array_like, cm^-3 (dn = dp)
+    electron_coefficient ... ehh_exponent : Richter's coefficients (see :func:`richter`)
+    electron_free_constant, electron_free_linear, electron_free_quadratic,
+    hole_free_constant, hole_free_linear, hole_free_quadratic : cm^6/s (a, b, c of the
+        free-particle coefficients' polynomials in T / 300 K)
+    radiative_coefficient : callable ``(temperature=K) -> cm^3/s`` (B_low)
+    **relative : the B_rel coefficients (see :func:`relative_radiative_coefficient`)
+
+    Returns
+    -------
+    lifetime, s
+    """
+    xp, t, n0, p0, dn = _arrays(
+        temperature, equilibrium_electron_density, equilibrium_hole_density, excess_density
+    )
+    shape = _shape(t, n0, p0, dn)
+    f_n = _free_particle_ratio(
+        t, electron_free_constant, electron_free_linear, electron_free_quadratic
+    )
+    f_p = _free_particle_ratio(t, hole_free_constant, hole_free_linear, hole_free_quadratic)
+    f_a = _free_particle_ratio(
+        t,
+        electron_free_constant + hole_free_constant,
+        electron_free_linear + hole_free_linear,
+        electron_free_quadratic + hole_free_quadratic,
+    )
+    g_eeh = 1.0 + eeh_enhancement * (1.0 - xp.tanh(_power(xp, n0 / eeh_density, eeh_exponent)))
+    g_ehh = 1.0 + ehh_enhancement * (1.0 - xp.tanh(_power(xp, p0 / ehh_density, ehh_exponent)))
+    electron_term = electron_coefficient * g_eeh * n0
+    hole_term = hole_coefficient * g_ehh * p0
+    injection_term = injection_coefficient * _power(xp, dn, injection_exponent)
+    auger = f_n * electron_term + f_p * hole_term + f_a * injection_term
+    b_low = asfloat(xp, radiative_coefficient(temperature=t))
+    radiative = b_low * relative_radiative_coefficient(t, n0 + p0 + 2.0 * dn, **relative)
+    return _lifetime(shape, n0, p0, dn, auger, radiative, part, xp)
+
+
+def _relative_radiative_with_slopes(xp, t, total, relative):
+    """B_rel and its partials with respect to T and to the carrier sum n + p."""
+    r = relative
+
+    def logistic(low, high, scale, exponent):
+        x = _power(xp, t / scale, exponent)
+        value = high + (low - high) / (1.0 + x)
+        slope = -(low - high) * exponent * x / (t * (1.0 + x) * (1.0 + x))
+        return value, slope
+
+    b_min, d_b_min = logistic(
+        r["rel_low_limit"],
+        r["rel_high_limit"],
+        r["rel_temperature"],
+        r["rel_temperature_exponent"],
+    )
+    b_1, d_b_1 = logistic(
+        r["first_density_low"],
+        r["first_density_high"],
+        r["first_temperature"],
+        r["first_temperature_exponent"],
+    )
+    b_3, d_b_3 = logistic(
+        r["second_density_low"],
+        r["second_density_high"],
+        r["second_temperature"],
+        r["second_temperature_exponent"],
+    )
+    e_1, e_3 = r["first_exponent"], r["second_exponent"]
+    y_1 = _power(xp, total / b_1, e_1)
+    y_3 = _power(xp, total / b_3, e_3)
+    d = 1.0 + y_1 + y_3
+    value = b_min + (1.0 - b_min) / d
+    with errstate(xp, divide="ignore", invalid="ignore"):
+        d_d_total = (e_1 * y_1 + e_3 * y_3) / total
+    d_d_t = -e_1 * y_1 * d_b_1 / b_1 - e_3 * y_3 * d_b_3 / b_3
+    d_total = -(1.0 - b_min) * d_d_total / (d * d)
+    d_t = d_b_min * (1.0 - 1.0 / d) - (1.0 - b_min) * d_d_t / (d * d)
+    return value, d_t, d_total
+
+
+@derivatives_of(richter_temperature)
+def richter_temperature_derivatives(
+    temperature,
+    equilibrium_electron_density,
+    equilibrium_hole_density,
+    excess_density,
+    *,
+    electron_coefficient,
+    hole_coefficient,
+    injection_coefficient,
+    injection_exponent,
+    eeh_enhancement,
+    eeh_density,
+    eeh_exponent,
+    ehh_enhancement,
+    ehh_density,
+    ehh_exponent,
+    electron_free_constant,
+    electron_free_linear,
+    electron_free_quadratic,
+    hole_free_constant,
+    hole_free_linear,
+    hole_free_quadratic,
+    radiative_coefficient,
+    part="total",
+    **relative,
+):
+    """The lifetime and its partials: the Auger partials of :func:`richter_derivatives`
+    times the temperature factors, ``dA/dT`` through the factors'
+    ``(b + 2 c tau) / (300 K (a + b + c))``, and ``dR/dx = B dB_rel/dx`` (x = n0, p0;
+    twice that for dn) plus ``dR/dT = B' B_rel + B dB_rel/dT``."""
+    xp, t, n0, p0, dn = _arrays(
+        temperature, equilibrium_electron_density, equilibrium_hole_density, excess_density
+    )
+    shape = _shape(t, n0, p0, dn)
+
+    def factor(a, b, c):
+        value = _free_particle_ratio(t, a, b, c)
+        slope = (b + 2.0 * c * (t / 300.0)) / (300.0 * (a + b + c))
+        return value, slope
+
+    f_n, df_n = factor(electron_free_constant, electron_free_linear, electron_free_quadratic)
+    f_p, df_p = factor(hole_free_constant, hole_free_linear, hole_free_quadratic)
+    f_a, df_a = factor(
+        electron_free_constant + hole_free_constant,
+        electron_free_linear + hole_free_linear,
+        electron_free_quadratic + hole_free_quadratic,
+    )
+    y_e = _power(xp, n0 / eeh_density, eeh_exponent)
+    y_h = _power(xp, p0 / ehh_density, ehh_exponent)
+    tanh_e, tanh_h = xp.tanh(y_e), xp.tanh(y_h)
+    g_eeh = 1.0 + eeh_enhancement * (1.0 - tanh_e)
+    g_ehh = 1.0 + ehh_enhancement * (1.0 - tanh_h)
+    injection = _power(xp, dn, injection_exponent)
+    electron_term = electron_coefficient * g_eeh * n0
+    hole_term = hole_coefficient * g_ehh * p0
+    injection_term = injection_coefficient * injection
+    auger = f_n * electron_term + f_p * hole_term + f_a * injection_term
+    b_low, b_slopes = radiative_coefficient.derivative(temperature=t)
+    b_low = asfloat(xp, b_low)
+    d_b_low = asfloat(xp, b_slopes["temperature"])
+    b_rel, d_rel_t, d_rel_total = _relative_radiative_with_slopes(
+        xp, t, n0 + p0 + 2.0 * dn, relative
+    )
+    radiative = b_low * b_rel
+    with errstate(xp, divide="ignore", invalid="ignore"):
+        d_auger = {
+            "temperature": df_n * electron_term + df_p * hole_term + df_a * injection_term,
+            "equilibrium_electron_density": f_n
+            * electron_coefficient
+            * (g_eeh - eeh_enhancement * eeh_exponent * y_e * (1.0 - tanh_e * tanh_e)),
+            "equilibrium_hole_density": f_p
+            * hole_coefficient
+            * (g_ehh - ehh_enhancement * ehh_exponent * y_h * (1.0 - tanh_h * tanh_h)),
+            "excess_density": f_a
+            * (injection_coefficient * injection_exponent)
+            * xp.where(dn > 0, injection / dn, zeros_like(xp, injection) + math.inf),
+        }
+    d_radiative = {
+        "temperature": d_b_low * b_rel + b_low * d_rel_t,
+        "equilibrium_electron_density": b_low * d_rel_total,
+        "equilibrium_hole_density": b_low * d_rel_total,
+        "excess_density": 2.0 * b_low * d_rel_total,
+    }
+    return _lifetime_derivatives(
+        xp, shape, n0, p0, dn, auger, radiative, d_auger, d_radiative, part
     )

@@ -18,6 +18,7 @@ import functools
 
 import numpy as np
 
+from ._coefficients import is_dual, number
 from ._spec import kernel
 from ._xp import asfloat, errstate, namespace, zeros_like
 from .constants import BOLTZMANN_EV
@@ -111,17 +112,24 @@ def fixed_level(dopant_density, *, energy, degeneracy):
     xp = namespace(dopant_density)
     if xp is np:
         shape = np.shape(dopant_density)
+        if is_dual(energy):
+            return energy + np.zeros(shape), np.ones(shape)
         return np.full(shape, float(energy)), np.ones(shape)
     zero = zeros_like(xp, asfloat(xp, dopant_density))
-    return zero + float(energy), zero + 1.0
+    return zero + number(energy), zero + 1.0
 
 
 fixed_level.unblocked = True  # fills its outputs and nothing else: no blocks needed
 
 
+def _log(value):
+    """numpy's log of a coefficient, as a Python float, computed once (a coefficient
+    under differentiation: its log)."""
+    return np.log(value) if is_dual(value) else _cached_log(value)
+
+
 @functools.lru_cache(maxsize=64)
-def _log(value: float) -> float:
-    """numpy's log of a coefficient, as a Python float, computed once."""
+def _cached_log(value: float) -> float:
     return float(np.log(value))
 
 

@@ -18,6 +18,7 @@ import functools
 
 import numpy as np
 
+from ._coefficients import is_dual
 from ._spec import derivatives_of, kernel
 from ._xp import asfloat, errstate, interp, namespace, zeros_like
 
@@ -39,9 +40,14 @@ def _log(x, xp=np):
         return xp.log(x)
 
 
+def _flog(value):
+    """numpy's log of a coefficient, as a Python float (computed once; a coefficient
+    under differentiation: its log)."""
+    return np.log(value) if is_dual(value) else _cached_log(value)
+
+
 @functools.lru_cache(maxsize=256)
-def _flog(value: float) -> float:
-    """numpy's log of a coefficient, as a Python float (computed once)."""
+def _cached_log(value: float) -> float:
     return float(np.log(value))
 
 

@@ -32,7 +32,6 @@ Policies (stated in every kernel's docstring):
 
 from __future__ import annotations
 
-import functools
 import inspect
 import warnings
 from collections.abc import Callable, Mapping
@@ -41,8 +40,9 @@ import numpy as np
 
 from ..errors import InputError, ValidityWarning
 from ..kernels._blocks import BLOCK, evaluate
+from ..vocabulary import dopant_species
 
-__all__ = ["BoundKernel"]
+__all__ = ["BoundKernel", "make_kernel", "model_checker", "model_kernel", "validity_of"]
 
 _DTYPE_NOTE = (
     "computes in float64 and returns float64 whatever the input dtype "
@@ -164,7 +164,9 @@ class BoundKernel:
                 )
         return arguments, options
 
-    def __call__(self, *args, out=None, **kwargs):
+    def __call__(self, *args, out=None, uncertainty=False, **kwargs):
+        if uncertainty is not False:
+            return self._uncertain(args, out, uncertainty, kwargs)
         if not kwargs and len(args) == len(self._names):  # the common call: positional
             arguments, options = dict(zip(self._names, args, strict=False)), {}
             if self._optional and any(v is None for v in args):
@@ -180,6 +182,24 @@ class BoundKernel:
                 )
             return self._function(**arguments, **options)
         return evaluate(self._function, arguments, out=out, **options)
+
+    def _uncertain(self, args, out, uncertainty, kwargs):
+        """``kernel(..., uncertainty=True[, samples=, seed=, uncertainty_method=])``:
+        value and standard uncertainty (see matprops.material.uncertainty)."""
+        from .uncertainty import kernel_answer
+
+        if uncertainty is not True:
+            raise InputError("uncertainty", "True or False", repr(uncertainty))
+        if out is not None:
+            raise TypeError("out= is not supported with uncertainty=True")
+        settings = {k: kwargs.pop(k) for k in ("samples", "seed") if k in kwargs}
+        how = kwargs.pop("uncertainty_method", "auto")
+        arguments, options = self._arguments(args, kwargs)
+        if options:
+            raise TypeError(f"options {sorted(options)} are not supported with uncertainty=True")
+        if not self.array_api:
+            self._refuse_foreign(arguments)
+        return kernel_answer(self, arguments, how=how, **settings)
 
     def _refuse_foreign(self, arguments):
         for name, value in arguments.items():
@@ -441,46 +461,26 @@ def _to_numpy(value):
 
 # ---------------------------------------------------------------------------- factory
 
-# what the public method returns where it differs from the kernel's output
-_API_UNITS = {"lattice_constant": "nm"}
-_API_METHOD = {"gap_narrowing": "band_edge_shifts", "ionisation": "dopant_level"}
-_DESCRIPTIONS = {
-    "gap_narrowing": (
-        "Returns the pair (conduction-edge shift, valence-edge shift), each "
-        ">= 0; si.gap_narrowing() returns their sum, si.band_edge_shifts() "
-        "the pair."
-    ),
-    "ionisation": "Returns (ionisation energy [eV], share of states still localised [1]).",
-    "densities_of_states": "Returns (Nc, Nv).",
-    "intrinsic_lifetime": (
-        "Option part='total' (Auger + radiative), 'auger' or "
-        "'radiative': the lifetime of that part alone."
-    ),
-}
-_TABLE_REASON = "it interpolates measured tables with numpy's searchsorted and interp"
-_SOLVER_REASON = "an iterative Newton solver working on numpy blocks"
+TABLE_REASON = "it interpolates measured tables with numpy's searchsorted and interp"
+SOLVER_REASON = "an iterative Newton solver working on numpy blocks"
 
 
 def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
-    """The :class:`BoundKernel` of quantity ``name`` for ``si`` (see ``Silicon.kernel``)."""
-    from ..errors import InputError
-    from .carriers import dopant_species
-    from .transport import KERNELS as TRANSPORT_KERNELS
+    """The :class:`BoundKernel` of quantity ``name`` for ``si`` (see ``Silicon.kernel``).
+
+    The quantity's declaration (:mod:`.registry`) says how: a family that composes
+    models or fixes a carrier hands its own factory; otherwise the model the material
+    serves is bound as it is, with ``dopant=`` choosing the coefficient set of a model
+    that has one per dopant species.
+    """
+    from .registry import REGISTRY
 
     fixed = dict(fixed)
-    if name == "equilibrium":
-        return _equilibrium_kernel(si, fixed)
-    if name == "effective_intrinsic_density":
-        if fixed:
-            key = min(fixed)
-            raise InputError(
-                key, "not an option of the effective_intrinsic_density kernel", fixed[key]
-            )
-        return _effective_intrinsic_density_kernel(si)
-    if name in TRANSPORT_KERNELS:
-        model = si._transport_kernel(name, fixed)
-        return _model_kernel(si, name, model, fixed)
+    declared = REGISTRY.get(name)
+    if declared is not None and declared.kernel is not None:
+        return declared.kernel(si, name, fixed)
     model = si.model(name)
+    chosen = {}
     if model.variant_axis == "dopant":
         species = fixed.pop("dopant", None)
         if species is None:
@@ -490,15 +490,13 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
         species = dopant_species(species, "dopant")
         model = model.select(species)
         chosen = {"dopant": species}
-    else:
-        chosen = {}
     if fixed:
         key = min(fixed)
         raise InputError(key, f"not an option of the {name} kernel", fixed[key])
-    return _model_kernel(si, name, model, chosen)
+    return model_kernel(si, name, model, chosen)
 
 
-def _model_checker(models, strict_default=None):
+def model_checker(models):
     """A checker of the inputs each model takes (ranges, then regions)."""
 
     def check(arrays, ranges, strict):
@@ -514,14 +512,14 @@ def _model_checker(models, strict_default=None):
     return check
 
 
-def _validity(models) -> dict:
+def validity_of(models) -> dict:
     found = {}
     for model in models:
         for name, rng in model.validity.items():
             low, high = found.get(name, (-np.inf, np.inf))
             found[name] = (max(low, rng.low), min(high, rng.high))
         for component in model.components.values():
-            for name, (low, high) in _validity([component]).items():
+            for name, (low, high) in validity_of([component]).items():
                 old = found.get(name, (-np.inf, np.inf))
                 found[name] = (max(old[0], low), min(old[1], high))
     return found
@@ -542,8 +540,19 @@ def _options(model) -> dict:
     return options
 
 
-def _model_kernel(si, name, model, fixed) -> BoundKernel:
+def model_kernel(si, name, model, fixed) -> BoundKernel:
+    """The bound kernel of a model as it is (its inputs, units, validity, derivatives);
+    the public method's units and description come from the quantity's declaration."""
+    from .registry import REGISTRY
+
     table = model.kind == "table"
+    declared = REGISTRY.get(name)
+    api_units = None
+    api_method = None
+    if declared is not None:
+        api_method = declared.kernel_method or declared.method
+        if declared.kernel_method is None and declared.units != model.output_units:
+            api_units = declared.units
     return BoundKernel(
         si,
         name,
@@ -553,130 +562,19 @@ def _model_kernel(si, name, model, fixed) -> BoundKernel:
         model=model,
         model_id=model.id,
         citation=model.source.citation(),
-        validity=_validity([model]),
+        validity=validity_of([model]),
         regions=model.regions,
-        checker=_model_checker([model]),
+        checker=model_checker([model]),
         derivative=model.derivative,
         array_api=model.array_api,
-        api_units=_API_UNITS.get(name),
-        api_method=_API_METHOD.get(name),
+        api_units=api_units,
+        api_method=api_method,
         numpy_only_reason=(
-            _TABLE_REASON
+            TABLE_REASON
             if table
             else "it interpolates coefficients published at a few wavelengths with numpy indexing"
         ),
         options=_options(model),
         fixed=fixed,
-        description=_DESCRIPTIONS.get(name, ""),
-    )
-
-
-def _effective_intrinsic_density_kernel(si) -> BoundKernel:
-    bound = si._carriers()
-    inputs = {
-        "temperature": "K",
-        "donor_density": "cm^-3",
-        "acceptor_density": "cm^-3",
-        "electron_density": "cm^-3",
-        "hole_density": "cm^-3",
-    }
-    optional = () if bound.uses_carriers else ("electron_density", "hole_density")
-    models = [bound.ni, bound.narrowing]
-    citation = "; ".join(dict.fromkeys(m.source.citation() for m in models))
-    carriers = (
-        "the free-carrier densities n and p are required (the narrowing "
-        f"{bound.narrowing.id} depends on them)"
-        if bound.uses_carriers
-        else f"electron_density and hole_density are ignored (the narrowing "
-        f"{bound.narrowing.id} does not depend on them)"
-    )
-    return BoundKernel(
-        si,
-        "effective_intrinsic_density",
-        bound.effective_intrinsic_density,
-        inputs,
-        "cm^-3",
-        model=None,
-        model_id=f"derived ({bound.ni.id} x {bound.narrowing.id})",
-        citation=citation,
-        validity=_validity(models),
-        checker=_model_checker(models),
-        derivative=(
-            bound.effective_intrinsic_density_derivatives
-            if bound.ni.derivative is not None and bound.narrowing.derivative is not None
-            else None
-        ),
-        array_api=bound.ni.array_api and bound.narrowing.array_api,
-        numpy_only_reason="one of its models takes numpy arrays only",
-        optional=optional,
-        description=(
-            "ni_eff = ni(T) x ratio x exp((dEc + dEv) / 2kT), composed as "
-            "si.effective_intrinsic_density() does (see its provenance); " + carriers + "."
-        ),
-    )
-
-
-def _equilibrium_kernel(si, fixed) -> BoundKernel:
-    from ..errors import InputError
-    from .carriers import dopant_species
-
-    unknown = set(fixed) - {"donor", "acceptor", "statistics"}
-    if unknown:
-        raise InputError(min(unknown), "one of donor, acceptor, statistics", fixed[min(unknown)])
-    bound = si._carriers()
-    statistics = fixed.get("statistics") or bound.statistics
-    donor = dopant_species(fixed.get("donor", "phosphorus"), "donor", "donor")
-    acceptor = dopant_species(fixed.get("acceptor", "boron"), "acceptor", "acceptor")
-    fermi_dirac = si._check_statistics(statistics, bound)
-    function = functools.partial(
-        bound.equilibrium, donor=donor, acceptor=acceptor, fermi_dirac=fermi_dirac
-    )
-    models = [bound.dos, bound.ni, bound.narrowing]
-    donor_model = bound.ionisation.select(donor)
-    acceptor_model = bound.ionisation.select(acceptor)
-    base = _model_checker(models)
-
-    def check(arrays, ranges, strict):
-        base(arrays, ranges, strict)
-        for model, key in ((donor_model, "donor_density"), (acceptor_model, "acceptor_density")):
-            low, high = ranges[key]
-            if low <= high:
-                model.check("dopant_density", low, high, strict)
-
-    validity = _validity(models)
-    validity.pop("electron_density", None)
-    validity.pop("hole_density", None)
-    ids = ", ".join(f"{m.quantity} {m.id}" for m in (*models, bound.ionisation))
-    return BoundKernel(
-        si,
-        "equilibrium",
-        function,
-        {"temperature": "K", "donor_density": "cm^-3", "acceptor_density": "cm^-3"},
-        "dict",
-        model=None,
-        model_id=f"derived ({ids})",
-        citation="; ".join(dict.fromkeys(m.source.citation() for m in (*models, bound.ionisation))),
-        validity=validity,
-        checker=check,
-        array_api=False,
-        blocked=True,
-        numpy_only_reason=_SOLVER_REASON,
-        fixed={
-            "donor": donor,
-            "acceptor": acceptor,
-            "statistics": "fermi-dirac" if fermi_dirac else "boltzmann",
-        },
-        returns=(
-            "dict of arrays: electron_density, hole_density, ionised_donors, "
-            "ionised_acceptors [cm^-3]; conduction_edge_shift, valence_edge_shift, "
-            "fermi_from_conduction_edge, fermi_from_valence_edge, "
-            "fermi_from_intrinsic [eV]; reduced_fermi_level, residual [1]; "
-            "temperature [K]"
-        ),
-        description=(
-            f"Charge neutrality with {'Fermi-Dirac' if fermi_dirac else 'Boltzmann'}"
-            f" statistics, donor {donor}, acceptor {acceptor}: the solver of "
-            "si.equilibrium() on plain arrays; every point converges to 1e-12 "
-            "relative neutrality or SolverError names those that did not."
-        ),
+        description=declared.kernel_note if declared is not None else "",
     )

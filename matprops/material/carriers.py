@@ -20,6 +20,7 @@ Composition rules (each shown in the provenance of what it returns):
 from __future__ import annotations
 
 import dataclasses
+import functools
 
 import numpy as np
 
@@ -34,61 +35,39 @@ from ..kernels._blocks import evaluate
 from ..kernels._xp import asfloat, namespace
 from ..kernels.constants import BOLTZMANN_EV
 from ..units import coerce, quantity
+from ..vocabulary import DOPANTS, dopant_species
+from .bound import SOLVER_REASON, BoundKernel, model_checker, validity_of
+from .registry import (
+    DOPANTS_GRID,
+    DOPING_GRID,
+    TEMPERATURES,
+    Part,
+    case,
+    method_of,
+)
+from .registry import quantity as declare
 from .results import Result
 
-__all__ = ["DERIVED", "DOPANTS", "CarrierMethods", "Equilibrium", "dopant_species"]
+__all__ = ["DOPANTS", "CarrierMethods", "Equilibrium", "dopant_species"]
 
-# Dopant species of silicon and which kind each is (a classification, not a coefficient).
-DOPANTS = {
-    "phosphorus": "donor",
-    "arsenic": "donor",
-    "antimony": "donor",
-    "boron": "acceptor",
-    "aluminium": "acceptor",
-    "gallium": "acceptor",
-    "indium": "acceptor",
-}
-_SYMBOLS = {
-    "p": "phosphorus",
-    "as": "arsenic",
-    "sb": "antimony",
-    "b": "boron",
-    "al": "aluminium",
-    "aluminum": "aluminium",
-    "ga": "gallium",
-    "in": "indium",
-}
 STATISTICS = ("fermi-dirac", "boltzmann")
-
-DERIVED = {
-    "effective_intrinsic_density": (
-        ("intrinsic_density", "gap_narrowing"),
-        (
-            "ni_eff = ni(T) exp(dEg / 2kT); for an apparent narrowing ni(T) is scaled by "
-            "ni_fit / ni(T_fit), the intrinsic density the narrowing was fitted with"
-        ),
-    ),
-    "equilibrium": (
-        ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation"),
-        (
-            "charge neutrality p + Nd+ = n + Na- solved for the Fermi level with "
-            "n = Nc F(eta), p = Nv F(-eta - Eg'/kT), Eg' = kT ln(Nc Nv / ni^2) - dEg"
-        ),
-    ),
-}
+_DOPING = ("acceptor_density", "donor_density", "electron_density", "hole_density")
+_EQUILIBRIUM_MODELS = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
+_IONISATION_DENSITIES = [0.0, 1e14, 1e16, 1e18, 3e18, 1e19, 1e20]
 
 
-def dopant_species(value, argument: str, kind: str | None = None) -> str:
-    """The canonical name of a dopant species (``"P"``, ``"phosphorus"`` -> ``"phosphorus"``)."""
-    if isinstance(value, str) and value in DOPANTS and kind in (None, DOPANTS[value]):
-        return value
-    text = str(value).strip().lower()
-    name = _SYMBOLS.get(text, text)
-    allowed = [d for d, k in DOPANTS.items() if kind in (None, k)]
-    if name not in allowed:
-        what = f"a {kind} species" if kind else "a dopant species"
-        raise InputError(argument, f"{what}: one of {', '.join(allowed)}", repr(value))
-    return name
+def _ionisation_cases(si):
+    """Every coefficient set of the ionisation model (one case per dopant species)."""
+    if "ionisation" not in si.models:
+        return []
+    return [
+        case(
+            f"dopant_level_{species}",
+            fixed={"dopant": species},
+            N=_IONISATION_DENSITIES,
+        )
+        for species in si.model("ionisation").variants
+    ]
 
 
 @dataclasses.dataclass(frozen=True, repr=False)
@@ -277,15 +256,36 @@ class CarrierMethods:
     gap narrowing, dopant ionisation and equilibrium carrier statistics."""
 
     # ------------------------------------------------------------------ undoped
+    @declare(
+        units="eV",
+        long_name="fundamental (indirect) band gap, undoped, no narrowing",
+        cases=[case(temperature=TEMPERATURES)],
+    )
     def band_gap(self, temperature):
         """Fundamental (indirect) band gap of undoped silicon, eV; no narrowing."""
         return self._quantity("band_gap", temperature=temperature)
 
+    @declare(
+        units=("cm^-3", "cm^-3"),
+        parts=(
+            Part("conduction_band_states", "effective density of states of the conduction band"),
+            Part("valence_band_states", "effective density of states of the valence band"),
+        ),
+        log=True,
+        cases=[case(temperature=TEMPERATURES)],
+        kernel_note="Returns (Nc, Nv).",
+    )
     def densities_of_states(self, temperature):
         """Effective densities of states ``(Nc, Nv)`` of the conduction and valence bands, cm^-3."""
         (nc, nv), (uc, uv) = self._evaluate("densities_of_states", temperature=temperature)
         return quantity(nc, uc), quantity(nv, uv)
 
+    @declare(
+        units="cm^-3",
+        long_name="intrinsic carrier density, undoped",
+        log=True,
+        cases=[case(temperature=TEMPERATURES)],
+    )
     def intrinsic_density(self, temperature):
         """Intrinsic carrier density of undoped silicon (no gap narrowing), cm^-3."""
         return self._quantity("intrinsic_density", temperature=temperature)
@@ -380,6 +380,18 @@ class CarrierMethods:
         return result, donor, acceptor, fermi_dirac
 
     # ------------------------------------------------------------------ narrowing
+    @method_of(
+        "gap_narrowing",
+        cases=[
+            case(
+                temperature=[250.0, 300.0, 400.0],
+                Nd=[0.0, 1e18, 1e20],
+                Na=[0.0, 1e17],
+                n=[1e10, 1e18, 1e20],
+                p=[1e3, 1e16, 1e19],
+            )
+        ],
+    )
     def band_edge_shifts(
         self, temperature, Na=0, Nd=0, n=None, p=None, *, donor="phosphorus", acceptor="boron"
     ):
@@ -412,6 +424,18 @@ class CarrierMethods:
             dec, dev = np.broadcast_to(dec, shape), np.broadcast_to(dev, shape)
         return dec, dev
 
+    @declare(
+        units="eV",
+        long_name="band-gap narrowing",
+        wants=_DOPING,
+        cases=[case(**DOPING_GRID)],
+        kernel_method="band_edge_shifts",
+        kernel_note=(
+            "Returns the pair (conduction-edge shift, valence-edge shift), each "
+            ">= 0; si.gap_narrowing() returns their sum, si.band_edge_shifts() "
+            "the pair."
+        ),
+    )
     def gap_narrowing(
         self, temperature, Na=0, Nd=0, n=None, p=None, *, donor="phosphorus", acceptor="boron"
     ):
@@ -423,6 +447,19 @@ class CarrierMethods:
         dec, dev = self._edge_shifts(temperature, Na, Nd, n, p, donor, acceptor)
         return quantity(np.add(dec, dev, dtype=float), "eV")
 
+    @declare(
+        units="cm^-3",
+        long_name="effective intrinsic carrier density, with band-gap narrowing",
+        models=("intrinsic_density", "gap_narrowing"),
+        formula=(
+            "ni_eff = ni(T) exp(dEg / 2kT); for an apparent narrowing ni(T) is scaled by "
+            "ni_fit / ni(T_fit), the intrinsic density the narrowing was fitted with"
+        ),
+        wants=_DOPING,
+        log=True,
+        cases=[case(**DOPING_GRID)],
+        kernel=lambda si, name, fixed: _effective_intrinsic_density_kernel(si, fixed),
+    )
     def effective_intrinsic_density(
         self, temperature, Na=0, Nd=0, n=None, p=None, *, donor="phosphorus", acceptor="boron"
     ):
@@ -458,6 +495,17 @@ class CarrierMethods:
         return quantity(np.asarray(value, dtype=float), "cm^-3")
 
     # ------------------------------------------------------------------ dopants
+    @declare(
+        "ionisation",
+        units=("eV", "dimensionless"),
+        parts=(
+            Part("ionisation_energy", "ionisation energy of the dopant level"),
+            Part("localised_share", "share of the dopant's states still localised"),
+        ),
+        wants=("dopant_density",),
+        cases=[_ionisation_cases],
+        kernel_note="Returns (ionisation energy [eV], share of states still localised [1]).",
+    )
     def dopant_level(self, N, dopant="phosphorus"):
         """``(ionisation energy [eV], share of states still localised [1])`` of a dopant
         at total density ``N`` (cm^-3); the rest of its states has merged into the band."""
@@ -470,11 +518,51 @@ class CarrierMethods:
             np.asarray(share, float), "dimensionless"
         )
 
+    @method_of("ionisation")
     def ionisation_energy(self, N, dopant="phosphorus"):
         """Ionisation energy of a dopant at total density ``N`` (cm^-3), eV."""
         return self.dopant_level(N, dopant)[0]
 
     # ------------------------------------------------------------------ equilibrium
+    @declare(
+        units=("eV", "eV", "cm^-3", "cm^-3", "cm^-3", "cm^-3"),
+        parts=(
+            Part(
+                "fermi_level",
+                "Fermi level from the intrinsic level of undoped silicon",
+                "fermi_level",
+            ),
+            Part(
+                "fermi_level_from_conduction_edge",
+                "Fermi level from the conduction-band edge after narrowing",
+                "fermi_level_from_conduction_edge",
+            ),
+            Part(
+                "equilibrium_electron_density",
+                "electron density in equilibrium",
+                "electron_density",
+            ),
+            Part("equilibrium_hole_density", "hole density in equilibrium", "hole_density"),
+            Part("ionised_donor_density", "ionised donor density", "ionised_donors"),
+            Part("ionised_acceptor_density", "ionised acceptor density", "ionised_acceptors"),
+        ),
+        models=_EQUILIBRIUM_MODELS,
+        formula=(
+            "charge neutrality p + Nd+ = n + Na- solved for the Fermi level with "
+            "n = Nc F(eta), p = Nv F(-eta - Eg'/kT), Eg' = kT ln(Nc Nv / ni^2) - dEg"
+        ),
+        wants=_DOPING[:2],
+        cases=[
+            case(temperature=[77.0, 200.0, 300.0, 400.0, 500.0], **DOPANTS_GRID),
+            case(
+                "equilibrium_boltzmann",
+                fixed={"statistics": "boltzmann"},
+                temperature=[300.0],
+                **DOPANTS_GRID,
+            ),
+        ],
+        kernel=lambda si, name, fixed: _equilibrium_kernel(si, fixed),
+    )
     def equilibrium(
         self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron", statistics=None
     ) -> Equilibrium:
@@ -549,3 +637,118 @@ class CarrierMethods:
             f"intrinsic density {bound.ni.id} as it is; default statistics "
             f"{bound.statistics}"
         )
+
+
+# --------------------------------------------------------------------------- kernels
+
+
+def _effective_intrinsic_density_kernel(si, fixed) -> BoundKernel:
+    """The bound kernel of the effective intrinsic density (see ``Silicon.kernel``)."""
+    if fixed:
+        key = min(fixed)
+        raise InputError(key, "not an option of the effective_intrinsic_density kernel", fixed[key])
+    bound = si._carriers()
+    inputs = {
+        "temperature": "K",
+        "donor_density": "cm^-3",
+        "acceptor_density": "cm^-3",
+        "electron_density": "cm^-3",
+        "hole_density": "cm^-3",
+    }
+    optional = () if bound.uses_carriers else ("electron_density", "hole_density")
+    models = [bound.ni, bound.narrowing]
+    citation = "; ".join(dict.fromkeys(m.source.citation() for m in models))
+    carriers = (
+        "the free-carrier densities n and p are required (the narrowing "
+        f"{bound.narrowing.id} depends on them)"
+        if bound.uses_carriers
+        else f"electron_density and hole_density are ignored (the narrowing "
+        f"{bound.narrowing.id} does not depend on them)"
+    )
+    return BoundKernel(
+        si,
+        "effective_intrinsic_density",
+        bound.effective_intrinsic_density,
+        inputs,
+        "cm^-3",
+        model=None,
+        model_id=f"derived ({bound.ni.id} x {bound.narrowing.id})",
+        citation=citation,
+        validity=validity_of(models),
+        checker=model_checker(models),
+        derivative=(
+            bound.effective_intrinsic_density_derivatives
+            if bound.ni.derivative is not None and bound.narrowing.derivative is not None
+            else None
+        ),
+        array_api=bound.ni.array_api and bound.narrowing.array_api,
+        numpy_only_reason="one of its models takes numpy arrays only",
+        optional=optional,
+        description=(
+            "ni_eff = ni(T) x ratio x exp((dEc + dEv) / 2kT), composed as "
+            "si.effective_intrinsic_density() does (see its provenance); " + carriers + "."
+        ),
+    )
+
+
+def _equilibrium_kernel(si, fixed) -> BoundKernel:
+    unknown = set(fixed) - {"donor", "acceptor", "statistics"}
+    if unknown:
+        raise InputError(min(unknown), "one of donor, acceptor, statistics", fixed[min(unknown)])
+    bound = si._carriers()
+    statistics = fixed.get("statistics") or bound.statistics
+    donor = dopant_species(fixed.get("donor", "phosphorus"), "donor", "donor")
+    acceptor = dopant_species(fixed.get("acceptor", "boron"), "acceptor", "acceptor")
+    fermi_dirac = si._check_statistics(statistics, bound)
+    function = functools.partial(
+        bound.equilibrium, donor=donor, acceptor=acceptor, fermi_dirac=fermi_dirac
+    )
+    models = [bound.dos, bound.ni, bound.narrowing]
+    donor_model = bound.ionisation.select(donor)
+    acceptor_model = bound.ionisation.select(acceptor)
+    base = model_checker(models)
+
+    def check(arrays, ranges, strict):
+        base(arrays, ranges, strict)
+        for model, key in ((donor_model, "donor_density"), (acceptor_model, "acceptor_density")):
+            low, high = ranges[key]
+            if low <= high:
+                model.check("dopant_density", low, high, strict)
+
+    validity = validity_of(models)
+    validity.pop("electron_density", None)
+    validity.pop("hole_density", None)
+    ids = ", ".join(f"{m.quantity} {m.id}" for m in (*models, bound.ionisation))
+    return BoundKernel(
+        si,
+        "equilibrium",
+        function,
+        {"temperature": "K", "donor_density": "cm^-3", "acceptor_density": "cm^-3"},
+        "dict",
+        model=None,
+        model_id=f"derived ({ids})",
+        citation="; ".join(dict.fromkeys(m.source.citation() for m in (*models, bound.ionisation))),
+        validity=validity,
+        checker=check,
+        array_api=False,
+        blocked=True,
+        numpy_only_reason=SOLVER_REASON,
+        fixed={
+            "donor": donor,
+            "acceptor": acceptor,
+            "statistics": "fermi-dirac" if fermi_dirac else "boltzmann",
+        },
+        returns=(
+            "dict of arrays: electron_density, hole_density, ionised_donors, "
+            "ionised_acceptors [cm^-3]; conduction_edge_shift, valence_edge_shift, "
+            "fermi_from_conduction_edge, fermi_from_valence_edge, "
+            "fermi_from_intrinsic [eV]; reduced_fermi_level, residual [1]; "
+            "temperature [K]"
+        ),
+        description=(
+            f"Charge neutrality with {'Fermi-Dirac' if fermi_dirac else 'Boltzmann'}"
+            f" statistics, donor {donor}, acceptor {acceptor}: the solver of "
+            "si.equilibrium() on plain arrays; every point converges to 1e-12 "
+            "relative neutrality or SolverError names those that did not."
+        ),
+    )

@@ -1,16 +1,22 @@
 """Quantities computed from other quantities' models (no model file of their own).
 
 ``DERIVED`` maps each such quantity to ``(quantities it is built from, formula shown
-in the provenance)``; each family of methods declares its own.
+in the provenance)``; it is read from the quantity registry (:mod:`.registry`), where
+each family of methods declares its quantities.
 """
 
 from __future__ import annotations
 
-from .carriers import DERIVED as CARRIER_DERIVED
-from .crystal import DERIVED as CRYSTAL_DERIVED
-from .recombination import DERIVED as RECOMBINATION_DERIVED
-from .transport import DERIVED as TRANSPORT_DERIVED
+from . import (  # noqa: F401 (declarations)
+    carriers,
+    crystal,
+    optical,
+    recombination,
+    thermal,
+    transport,
+)
+from .registry import REGISTRY
 
 __all__ = ["DERIVED"]
 
-DERIVED = {**CRYSTAL_DERIVED, **CARRIER_DERIVED, **TRANSPORT_DERIVED, **RECOMBINATION_DERIVED}
+DERIVED = REGISTRY.derived()

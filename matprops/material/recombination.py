@@ -51,34 +51,48 @@ from ..kernels import srh_lifetime as srh
 from ..kernels._blocks import evaluate
 from ..kernels.constants import ELEMENTARY_CHARGE
 from ..units import coerce, quantity, unit
+from .registry import (
+    EXCESS,
+    LIFETIME_DOPING,
+    LIFETIME_TEMPERATURES,
+    TEMPERATURES,
+    Part,
+    case,
+)
+from .registry import quantity as declare
 from .results import Result
 
-__all__ = ["DERIVED", "ImpliedVoltage", "Lifetimes", "RecombinationMethods"]
+__all__ = ["ImpliedVoltage", "Lifetimes", "RecombinationMethods"]
 
 _EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
 _SRH = ("srh_lifetime", "thermal_velocity", "band_gap")
+_INJECTED = ("acceptor_density", "donor_density", "excess_density")
 
-DERIVED = {
-    "auger_lifetime": (
-        ("intrinsic_lifetime", *_EQUILIBRIUM),
-        "the Auger part of the intrinsic-lifetime model alone: 1/[(n0 + p0 + dn) A]",
-    ),
-    "effective_lifetime": (
-        ("intrinsic_lifetime", *_SRH, *_EQUILIBRIUM),
-        (
-            "1/tau_eff = 1/tau_intrinsic + sum over defects of 1/tau_SRH, at the same excess "
-            "density; no surface recombination"
-        ),
-    ),
-    "implied_voltage": (
-        ("intrinsic_lifetime", *_SRH, *_EQUILIBRIUM),
-        (
-            "steady state G = dn/tau_eff(dn) with G the generation per area over the "
-            "thickness (uniform generation, flat carrier profile), then "
-            "V = (kT/q) ln[(n0 + dn)(p0 + dn)/(n0 p0)]"
-        ),
-    ),
-}
+
+def _defect_cases(si):
+    """Shockley-Read-Hall lifetime of every defect of the catalogue, p- and n-type."""
+    if "srh_lifetime" not in si.models:
+        return []
+    cases = []
+    for name in defect_catalogue.names(si.catalog):
+        entry = defect_catalogue.defect(name, si.catalog)
+        fixed = (
+            {"defect": name, "density": 1e11}
+            if entry.absolute
+            else {"defect": name, "electron_capture_time": 1e-5}
+        )
+        for doping in ("Na", "Nd"):
+            cases.append(
+                case(
+                    f"srh_lifetime_{name}_{doping}",
+                    fixed=fixed,
+                    temperature=[250.0, 300.0, 350.0],
+                    **{doping: [1e14, 1e15, 1e16, 1e17]},
+                    excess=[1e12, 1e14, 1e16],
+                )
+            )
+    return cases
+
 
 ASSUMPTIONS = (
     "steady state; generation uniform through the thickness; flat carrier "
@@ -167,6 +181,12 @@ class RecombinationMethods:
     defect catalogue, effective lifetime and implied open-circuit voltage."""
 
     # ------------------------------------------------------------------ radiative
+    @declare(
+        units="cm^3/s",
+        long_name="radiative recombination coefficient",
+        log=True,
+        cases=[case(temperature=TEMPERATURES)],
+    )
     def radiative_coefficient(self, temperature):
         """Radiative recombination coefficient B, cm^3/s (``U = B (n p - n0 p0)``).
 
@@ -249,6 +269,31 @@ class RecombinationMethods:
         return evaluate(model.function or model, state.kernel_inputs(excess), part=part)
 
     # ------------------------------------------------------------------ intrinsic
+    @declare(
+        units="s",
+        long_name="intrinsic (Auger and radiative) lifetime",
+        uses=_EQUILIBRIUM,
+        wants=_INJECTED,
+        log=True,
+        cases=[
+            case(
+                "intrinsic_lifetime_n_type",
+                temperature=LIFETIME_TEMPERATURES,
+                Nd=LIFETIME_DOPING,
+                excess=EXCESS,
+            ),
+            case(
+                "intrinsic_lifetime_p_type",
+                temperature=LIFETIME_TEMPERATURES,
+                Na=LIFETIME_DOPING,
+                excess=EXCESS,
+            ),
+        ],
+        kernel_note=(
+            "Option part='total' (Auger + radiative), 'auger' or "
+            "'radiative': the lifetime of that part alone."
+        ),
+    )
     def intrinsic_lifetime(
         self,
         temperature,
@@ -292,6 +337,22 @@ class RecombinationMethods:
         self._check_intrinsic(state)
         return quantity(_full(self._intrinsic(state), state.shape), "s")
 
+    @declare(
+        units="s",
+        long_name="Auger lifetime (the Auger part of the intrinsic lifetime)",
+        models=("intrinsic_lifetime", *_EQUILIBRIUM),
+        formula="the Auger part of the intrinsic-lifetime model alone: 1/[(n0 + p0 + dn) A]",
+        wants=_INJECTED,
+        log=True,
+        cases=[
+            case(
+                "auger_lifetime_n_type",
+                temperature=[300.0],
+                Nd=LIFETIME_DOPING,
+                excess=EXCESS,
+            )
+        ],
+    )
     def auger_lifetime(
         self,
         temperature,
@@ -472,6 +533,13 @@ class RecombinationMethods:
                 )
         return items
 
+    @declare(
+        units="s",
+        long_name="Shockley-Read-Hall lifetime through the defect",
+        uses=(*_SRH[1:], *_EQUILIBRIUM),
+        log=True,
+        cases=[_defect_cases],
+    )
     def srh_lifetime(
         self,
         defect,
@@ -518,6 +586,31 @@ class RecombinationMethods:
         return quantity(value, "s")
 
     # ------------------------------------------------------------------ effective
+    @declare(
+        units="s",
+        parts=(
+            Part(
+                "effective_lifetime",
+                "effective bulk lifetime (intrinsic and SRH)",
+                "effective_lifetime",
+            ),
+        ),
+        models=("intrinsic_lifetime", *_SRH, *_EQUILIBRIUM),
+        formula=(
+            "1/tau_eff = 1/tau_intrinsic + sum over defects of 1/tau_SRH, at the same excess "
+            "density; no surface recombination"
+        ),
+        wants=_INJECTED,
+        log=True,
+        cases=[
+            case(
+                fixed={"defect": "iron-boron-pair", "density": 1e11},
+                temperature=[300.0],
+                Na=[1e15, 1e16],
+                excess=EXCESS,
+            )
+        ],
+    )
     def effective_lifetime(
         self,
         temperature,
@@ -594,6 +687,38 @@ class RecombinationMethods:
         return provenance
 
     # ------------------------------------------------------------------ implied voltage
+    @declare(
+        units=("V", "cm^-3"),
+        parts=(
+            Part(
+                "implied_voltage",
+                (
+                    "implied open-circuit voltage (steady state, uniform "
+                    "generation, flat carrier profile)"
+                ),
+                "implied_voltage",
+            ),
+            Part(
+                "steady_state_excess_density",
+                "excess carrier density in steady state",
+                "excess_density",
+            ),
+        ),
+        models=("intrinsic_lifetime", *_SRH, *_EQUILIBRIUM),
+        formula=(
+            "steady state G = dn/tau_eff(dn) with G the generation per area over the "
+            "thickness (uniform generation, flat carrier profile), then "
+            "V = (kT/q) ln[(n0 + dn)(p0 + dn)/(n0 p0)]"
+        ),
+        cases=[
+            case(
+                fixed={"thickness": 0.018},
+                temperature=[298.15, 300.0],
+                Na=[1e15, 1e16],
+                generation=[1e15, 1e17, 2.5e17],
+            )
+        ],
+    )
     def implied_voltage(
         self,
         temperature,

@@ -30,13 +30,20 @@ from .crystal import CrystalMethods
 from .derived import DERIVED
 from .optical import OpticalMethods
 from .recombination import RecombinationMethods
+from .registry import REGISTRY
+from .thermal import ThermalMethods
 from .transport import TransportMethods
 
 __all__ = ["DERIVED", "Silicon", "models", "releases", "silicon"]
 
 
 class Silicon(
-    CarrierMethods, CrystalMethods, OpticalMethods, TransportMethods, RecombinationMethods
+    CarrierMethods,
+    CrystalMethods,
+    OpticalMethods,
+    TransportMethods,
+    RecombinationMethods,
+    ThermalMethods,
 ):
     """Crystalline silicon as described by one release of matprops.
 
@@ -118,7 +125,7 @@ class Silicon(
 
     def model(self, name: str) -> Model:
         """The bound :class:`~matprops.catalogue.records.Model` serving a quantity."""
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         if name not in self._models:
             if name in DERIVED:
                 raise UnknownQuantityError(
@@ -147,7 +154,7 @@ class Silicon(
         """
         from .bound import make_kernel
 
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         try:
             key = (name, tuple(sorted(fixed.items())))
             hash(key)
@@ -192,7 +199,7 @@ class Silicon(
     # ------------------------------------------------------------------ provenance
     def provenance(self, name: str) -> dict:
         """Model id, source, DOI, validity, coefficients, release, and overrides."""
-        name = check_name(name)
+        name = REGISTRY.canonical(check_name(name))
         if name in DERIVED:
             parts, formula = DERIVED[name]
             record = {
@@ -321,3 +328,14 @@ def models(quantity: str | None = None):
     if quantity is None:
         return {q: catalog.model_ids(q) for q in catalog.quantities()}
     return catalog.model_ids(quantity)
+
+
+def _give_uncertainty():
+    """Every public method answers uncertainty=True (see matprops.material.uncertainty)."""
+    from .uncertainty import public_methods, with_uncertainty
+
+    for method_name in public_methods():
+        setattr(Silicon, method_name, with_uncertainty(getattr(Silicon, method_name)))
+
+
+_give_uncertainty()

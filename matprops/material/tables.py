@@ -25,16 +25,15 @@ Writing files (netCDF, CSV, JSON) lives in :mod:`matprops.export`.
 from __future__ import annotations
 
 import functools
-import inspect
 import itertools
 import json
 import math
 import warnings
 from collections.abc import Callable, Iterable, Mapping
-from dataclasses import dataclass, field
 
 import numpy as np
 
+from .. import vocabulary
 from ..errors import (
     InputError,
     SkippedModelWarning,
@@ -42,9 +41,10 @@ from ..errors import (
     UnknownQuantityError,
     ValidityWarning,
 )
-from ..units import cf_units, to_magnitude
+from ..units import NEEDS_UNIT, cf_units, to_magnitude
 from ..units import name as check_name
 from ..units import names as check_names
+from .registry import REGISTRY, Quantity
 
 __all__ = [
     "AXES",
@@ -53,6 +53,7 @@ __all__ = [
     "Tabulated",
     "available",
     "axis",
+    "axis_units",
     "cf_units",
     "compare",
     "table",
@@ -60,480 +61,26 @@ __all__ = [
 
 BLOCK = 1 << 18  # points per evaluation block (~2 MB per float64 temporary)
 
-
-# --------------------------------------------------------------------------- axes
-
-
-@dataclass(frozen=True)
-class Axis:
-    """A grid axis: the coordinate name (also the argument name the units layer
-    knows), a short keyword alias, internal units (None for a category axis such as
-    the carrier) and how to read it."""
-
-    name: str
-    alias: str | None
-    units: str | None
-    long_name: str
-    requirement: str | None = None  # "positive" or "non-negative" for numeric axes
-    log: bool = False  # spans decades: log-spaced ranges, log plot axis
-    choices: tuple[str, ...] = ()  # the values a category axis takes
-    unit_required: bool = False  # plain numbers refused (matprops.units.NEEDS_UNIT)
-
-    @property
-    def category(self) -> bool:
-        return self.units is None
-
-    @property
-    def option(self) -> str:
-        """The command-line option for this axis."""
-        return "--" + self.name.replace("_", "-")
-
-    @property
-    def cf_units(self) -> str | None:
-        return None if self.category else cf_units(self.units)
-
-
-def _catalogue_defects() -> tuple[str, ...]:
-    """Names of the defect catalogue, for the ``defect`` axis (empty if unreadable:
-    the recombination methods then name what exists)."""
-    try:
-        from ..catalogue.defects import names
-
-        return tuple(names())
-    except Exception:
-        return ()
-
-
-# The order here is the order of a table's dimensions (last varies fastest).
-AXES: dict[str, Axis] = {
-    a.name: a
-    for a in (
-        Axis("carrier", None, None, "charge carrier", choices=("electron", "hole")),
-        Axis("plane", None, None, "crystal plane (Miller indices)", choices=("100", "110", "111")),
-        Axis(
-            "defect",
-            None,
-            None,
-            "recombination centre of the defect catalogue",
-            choices=_catalogue_defects(),
-        ),
-        Axis("temperature", "T", "K", "temperature", "positive"),
-        Axis("acceptor_density", "Na", "cm^-3", "acceptor density", "non-negative", log=True),
-        Axis("donor_density", "Nd", "cm^-3", "donor density", "non-negative", log=True),
-        Axis(
-            "excess_density", "excess", "cm^-3", "excess carrier density", "non-negative", log=True
-        ),
-        Axis("electron_density", "n", "cm^-3", "electron density", "non-negative", log=True),
-        Axis("hole_density", "p", "cm^-3", "hole density", "non-negative", log=True),
-        Axis("field", None, "V/cm", "electric field strength", "non-negative", log=True),
-        Axis("resistivity", "rho", "ohm*cm", "resistivity", "positive", log=True),
-        Axis("defect_density", None, "cm^-3", "defect density", "non-negative", log=True),
-        Axis(
-            "generation",
-            None,
-            "cm^-2/s",
-            "photogeneration per area (absorbed photon flux)",
-            "positive",
-            log=True,
-        ),
-        Axis("thickness", None, "um", "sample thickness", "positive", unit_required=True),
-        Axis("wavelength", None, "nm", "vacuum wavelength", "positive"),
-        Axis(
-            "dopant",
-            None,
-            None,
-            "dopant species",
-            choices=(
-                "phosphorus",
-                "arsenic",
-                "antimony",
-                "boron",
-                "aluminium",
-                "gallium",
-                "indium",
-            ),
-        ),
-        Axis(
-            "dopant_density",
-            "N",
-            "cm^-3",
-            "density of one dopant species",
-            "non-negative",
-            log=True,
-        ),
-    )
-}
-_ALIASES = {a.alias: a.name for a in AXES.values() if a.alias}
+#: the grid axes (:data:`matprops.vocabulary.AXES`), in the order of a table's dimensions
+AXES = vocabulary.AXES
+Axis = vocabulary.Argument
+#: the tabulable quantities: the quantity registry (:mod:`.registry`)
+QUANTITIES = REGISTRY
+Tabulated = Quantity
 
 
 def axis(name: str) -> Axis:
-    """The :class:`Axis` for a name or alias (``"Na"`` -> acceptor_density)."""
-    key = _ALIASES.get(name, name)
+    """The axis for a name or alias (``"Na"`` -> acceptor_density)."""
+    key = vocabulary.canonical_name(name)
     if key not in AXES:
-        known = sorted(AXES) + sorted(_ALIASES)
+        known = sorted(n for ax in AXES.values() for n in ax.names)
         raise InputError(name, f"a grid axis: one of {', '.join(known)}", "an unknown keyword")
     return AXES[key]
 
 
-# --------------------------------------------------------------------------- registry
-
-
-@dataclass(frozen=True)
-class Tabulated:
-    """How to tabulate one quantity.
-
-    Parameters
-    ----------
-    name : the quantity (and, unless ``method`` says otherwise, the Silicon method)
-    takes : axis name -> the method's positional index (int) or keyword (str)
-    outputs : (variable name, long name) for each part of the result (a method
-        returning a tuple, like densities_of_states, has several parts)
-    wants : for the default selection of a table with no quantities named: at least
-        one of these axes must be given (free-carrier absorption is zero without a
-        carrier density)
-    log : the values span decades (log y axis in plots)
-    needs : quantities whose models produce it (default: its own name, or the
-        components of a derived quantity)
-    fields : for a method that returns a result object (e.g. a frozen dataclass of
-        pint quantities), the attribute holding each output, in the order of
-        ``outputs``
-    fixed : keyword arguments always passed to the method (e.g. the standard
-        resistivity is ``si.resistivity(..., conversion="standard")``)
-    by_default : False for a quantity tabulated only when named (the standard's 23 degC
-        conversions, which warn at any other temperature)
-
-    Example: ``Tabulated("mobility", {"carrier": 0, "temperature": 1,
-    "acceptor_density": "Na", "donor_density": "Nd"}, (("mobility", "carrier
-    mobility"),))`` makes ``si.mobility(carrier, T, Na=..., Nd=...)`` tabulable.
-    """
-
-    name: str
-    takes: Mapping[str, int | str]
-    outputs: tuple[tuple[str, str], ...]
-    method: str | None = None
-    wants: tuple[str, ...] = ()
-    log: bool = False
-    needs: tuple[str, ...] = ()
-    fields: tuple[str, ...] = ()
-    fixed: Mapping[str, object] = field(default_factory=dict)
-    by_default: bool = True
-    _signature: dict = field(default_factory=dict, compare=False, repr=False)
-
-    def parameters(self, si) -> dict[str, tuple[str, bool]]:
-        """Axis -> (the method's parameter name, whether the parameter is required)."""
-        method = getattr(type(si), self.method or self.name)
-        if id(method) not in self._signature:
-            params = [
-                p
-                for p in inspect.signature(method).parameters.values()
-                if p.kind in (p.POSITIONAL_OR_KEYWORD, p.KEYWORD_ONLY)
-            ][1:]  # no self
-            by_name = {p.name: p for p in params}
-            resolved = {}
-            for ax, where in self.takes.items():
-                param = params[where] if isinstance(where, int) else by_name[where]
-                resolved[ax] = (param.name, param.default is inspect.Parameter.empty)
-            self._signature[id(method)] = resolved
-        return self._signature[id(method)]
-
-    def required(self, si) -> tuple[str, ...]:
-        """Axes the method cannot do without (its parameters with no default)."""
-        return tuple(ax for ax, (_, needed) in self.parameters(si).items() if needed)
-
-    def model_quantities(self) -> tuple[str, ...]:
-        if self.needs:
-            return self.needs
-        from .derived import DERIVED
-
-        return tuple(DERIVED[self.name][0]) if self.name in DERIVED else (self.name,)
-
-    def call(self, si, values: Mapping[str, object]):
-        """Call the Silicon method with axis values (missing optional axes: defaults)."""
-        names = self.parameters(si)
-        return getattr(si, self.method or self.name)(
-            **{names[ax][0]: value for ax, value in values.items() if ax in names}, **self.fixed
-        )
-
-
-def _registry(*entries: Tabulated) -> dict[str, Tabulated]:
-    table = {}
-    for entry in entries:
-        for ax in entry.takes:
-            if ax not in AXES:
-                raise ValueError(f"quantity {entry.name!r} takes unknown axis {ax!r}")
-        table[entry.name] = entry
-    return table
-
-
-_T = {"temperature": 0}
-_DOPED = {
-    "temperature": 0,
-    "acceptor_density": "Na",
-    "donor_density": "Nd",
-    "electron_density": "n",
-    "hole_density": "p",
-}
-_DOPING = ("acceptor_density", "donor_density", "electron_density", "hole_density")
-_EQUILIBRIUM_AXES = {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"}
-_DOPANTS_AND_CARRIERS = {
-    "acceptor_density": "Na",
-    "donor_density": "Nd",
-    "electron_density": "n",
-    "hole_density": "p",
-}
-_DOPED_SHIFTED = {"temperature": 1, **_DOPANTS_AND_CARRIERS}  # after a carrier argument
-_FROM_RESISTIVITY = {"resistivity": 0, "temperature": 1, "dopant": "dopant"}
-_LIFETIME = {
-    "temperature": 0,
-    "acceptor_density": "Na",
-    "donor_density": "Nd",
-    "excess_density": "excess",
-}
-_INJECTED = ("acceptor_density", "donor_density", "excess_density")
-_EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
-# One entry per tabulable quantity; add one here when a Silicon method lands.
-QUANTITIES: dict[str, Tabulated] = _registry(
-    Tabulated(
-        "band_gap", _T, (("band_gap", "fundamental (indirect) band gap, undoped, no narrowing"),)
-    ),
-    Tabulated(
-        "intrinsic_density",
-        _T,
-        (("intrinsic_density", "intrinsic carrier density, undoped"),),
-        log=True,
-    ),
-    Tabulated(
-        "densities_of_states",
-        _T,
-        (
-            ("conduction_band_states", "effective density of states of the conduction band"),
-            ("valence_band_states", "effective density of states of the valence band"),
-        ),
-        log=True,
-    ),
-    Tabulated("lattice_constant", _T, (("lattice_constant", "cubic lattice constant"),)),
-    Tabulated("density", _T, (("density", "mass density"),)),
-    Tabulated("atomic_density", _T, (("atomic_density", "silicon atoms per volume"),)),
-    Tabulated(
-        "surface_atom_density",
-        {"plane": 0, "temperature": 1},
-        (("surface_atom_density", "atoms per area in one atomic layer of the plane"),),
-    ),
-    Tabulated(
-        "dangling_bond_density",
-        {"plane": 0, "temperature": 1},
-        (
-            (
-                "dangling_bond_density",
-                "dangling bonds per area of the ideal unreconstructed surface",
-            ),
-        ),
-    ),
-    Tabulated("molar_mass", {}, (("molar_mass", "molar mass (standard atomic weight)"),)),
-    Tabulated("permittivity", {}, (("relative_permittivity", "static relative permittivity"),)),
-    Tabulated(
-        "absorption",
-        {"wavelength": 0, "temperature": 1},
-        (("absorption_coefficient", "band-to-band absorption coefficient"),),
-        log=True,
-    ),
-    Tabulated(
-        "refractive_index",
-        {"wavelength": 0, "temperature": 1},
-        (("refractive_index", "real part of the complex refractive index"),),
-    ),
-    Tabulated(
-        "free_carrier_absorption",
-        {"wavelength": 0, "electron_density": "n", "hole_density": "p"},
-        (("free_carrier_absorption_coefficient", "free-carrier absorption coefficient"),),
-        wants=("electron_density", "hole_density"),
-        log=True,
-    ),
-    # doping axis (methods of the carrier family; inert until the release serves them)
-    Tabulated("gap_narrowing", _DOPED, (("gap_narrowing", "band-gap narrowing"),), wants=_DOPING),
-    Tabulated(
-        "effective_intrinsic_density",
-        _DOPED,
-        (
-            (
-                "effective_intrinsic_density",
-                "effective intrinsic carrier density, with band-gap narrowing",
-            ),
-        ),
-        wants=_DOPING,
-        log=True,
-    ),
-    Tabulated(
-        "equilibrium",
-        {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"},
-        (
-            ("fermi_level", "Fermi level from the intrinsic level of undoped silicon"),
-            (
-                "fermi_level_from_conduction_edge",
-                "Fermi level from the conduction-band edge after narrowing",
-            ),
-            ("equilibrium_electron_density", "electron density in equilibrium"),
-            ("equilibrium_hole_density", "hole density in equilibrium"),
-            ("ionised_donor_density", "ionised donor density"),
-            ("ionised_acceptor_density", "ionised acceptor density"),
-        ),
-        fields=(
-            "fermi_level",
-            "fermi_level_from_conduction_edge",
-            "electron_density",
-            "hole_density",
-            "ionised_donors",
-            "ionised_acceptors",
-        ),
-        wants=_DOPING[:2],
-    ),
-    Tabulated(
-        "ionisation",
-        {"dopant_density": 0, "dopant": 1},
-        (
-            ("ionisation_energy", "ionisation energy of the dopant level"),
-            ("localised_share", "share of the dopant's states still localised"),
-        ),
-        method="dopant_level",
-        wants=("dopant_density",),
-    ),
-    # transport (methods of the transport family)
-    Tabulated(
-        "mobility",
-        {"carrier": 0, **_DOPED_SHIFTED},
-        (("mobility", "low-field carrier mobility"),),
-        log=True,
-    ),
-    Tabulated(
-        "high_field_mobility",
-        {"carrier": 0, "field": 1, "temperature": 2, **_DOPANTS_AND_CARRIERS},
-        (("high_field_mobility", "carrier mobility in an electric field"),),
-        needs=("high_field_mobility", "mobility", "saturation_velocity"),
-        log=True,
-    ),
-    Tabulated(
-        "diffusivity",
-        {"carrier": 0, **_DOPED_SHIFTED},
-        (("diffusivity", "carrier diffusion coefficient (Einstein relation)"),),
-        log=True,
-    ),
-    Tabulated(
-        "saturation_velocity",
-        {"carrier": 0, "temperature": 1},
-        (("saturation_velocity", "saturation drift velocity"),),
-    ),
-    Tabulated(
-        "thermal_velocity",
-        {"carrier": 0, "temperature": 1},
-        (("thermal_velocity", "thermal velocity (mean thermal speed)"),),
-    ),
-    Tabulated(
-        "resistivity",
-        _EQUILIBRIUM_AXES,
-        (("electrical_resistivity", "resistivity of silicon in equilibrium"),),
-        wants=_DOPING[:2],
-        log=True,
-    ),
-    Tabulated(
-        "conductivity",
-        _EQUILIBRIUM_AXES,
-        (("electrical_conductivity", "conductivity of silicon in equilibrium"),),
-        wants=_DOPING[:2],
-        log=True,
-    ),
-    Tabulated(
-        "doping_from_resistivity",
-        _FROM_RESISTIVITY,
-        (("doping_from_resistivity", "density of the dopant species that gives the resistivity"),),
-        log=True,
-    ),
-    Tabulated(
-        "standard_resistivity",
-        _EQUILIBRIUM_AXES,
-        (("standard_resistivity", "resistivity by the standard conversion (23 degC)"),),
-        method="resistivity",
-        fixed={"conversion": "standard"},
-        wants=_DOPING[:2],
-        log=True,
-        by_default=False,
-    ),
-    Tabulated(
-        "standard_dopant_density",
-        _FROM_RESISTIVITY,
-        (("standard_dopant_density", "dopant density by the standard conversion (23 degC)"),),
-        method="doping_from_resistivity",
-        fixed={"conversion": "standard"},
-        log=True,
-        by_default=False,
-    ),
-    # recombination (methods of the recombination family)
-    Tabulated(
-        "radiative_coefficient",
-        _T,
-        (("radiative_coefficient", "radiative recombination coefficient"),),
-        log=True,
-    ),
-    Tabulated(
-        "intrinsic_lifetime",
-        _LIFETIME,
-        (("intrinsic_lifetime", "intrinsic (Auger and radiative) lifetime"),),
-        wants=_INJECTED,
-        log=True,
-        needs=("intrinsic_lifetime", *_EQUILIBRIUM),
-    ),
-    Tabulated(
-        "auger_lifetime",
-        _LIFETIME,
-        (("auger_lifetime", "Auger lifetime (the Auger part of the intrinsic lifetime)"),),
-        wants=_INJECTED,
-        log=True,
-    ),
-    Tabulated(
-        "srh_lifetime",
-        {
-            "defect": 0,
-            "temperature": 1,
-            "acceptor_density": "Na",
-            "donor_density": "Nd",
-            "excess_density": "excess",
-            "defect_density": "density",
-        },
-        (("srh_lifetime", "Shockley-Read-Hall lifetime through the defect"),),
-        log=True,
-        needs=("srh_lifetime", "thermal_velocity", "band_gap", *_EQUILIBRIUM),
-    ),
-    Tabulated(
-        "effective_lifetime",
-        {**_LIFETIME, "defect": "defect", "defect_density": "density"},
-        (("effective_lifetime", "effective bulk lifetime (intrinsic and SRH)"),),
-        fields=("effective_lifetime",),
-        wants=_INJECTED,
-        log=True,
-    ),
-    Tabulated(
-        "implied_voltage",
-        {
-            "temperature": 0,
-            "generation": 1,
-            "thickness": 2,
-            "acceptor_density": "Na",
-            "donor_density": "Nd",
-            "defect": "defect",
-            "defect_density": "density",
-        },
-        (
-            (
-                "implied_voltage",
-                (
-                    "implied open-circuit voltage (steady state, uniform "
-                    "generation, flat carrier profile)"
-                ),
-            ),
-            ("steady_state_excess_density", "excess carrier density in steady state"),
-        ),
-        fields=("implied_voltage", "excess_density"),
-    ),
-)
+def axis_units(ax: Axis) -> str | None:
+    """The UDUNITS string of a numeric axis (None for a category)."""
+    return None if ax.category else cf_units(ax.units)
 
 
 def available(si) -> list[str]:
@@ -542,7 +89,7 @@ def available(si) -> list[str]:
     return [
         name
         for name, entry in QUANTITIES.items()
-        if hasattr(si, entry.method or name) and all(q in served for q in entry.model_quantities())
+        if hasattr(si, entry.method) and all(q in served for q in entry.needs)
     ]
 
 
@@ -559,18 +106,25 @@ _DISPLAY_TEMPERATURE = {
 # --------------------------------------------------------------------------- grids
 
 
-def _grid_values(ax: Axis, value):
+def _category_value(ax: Axis, item, catalogue) -> str:
+    """The canonical value of one category item (``"electrons"`` -> ``"electron"``,
+    ``"B"`` -> ``"boron"``, ``"Fe_i"`` -> ``"iron-interstitial"``)."""
+    if ax.name == "defect":
+        from ..catalogue import defects
+
+        if not isinstance(item, str):
+            raise InputError(ax.name, "a name or alias of the defect catalogue", repr(item))
+        return defects.defect(item, catalogue).name
+    return vocabulary.canonical(ax.name, item)
+
+
+def _grid_values(ax: Axis, value, catalogue=None):
     """Coerce one axis: (values in internal units or strings, requested units, is_dim)."""
     import pint
 
     if ax.category:
         items = [value] if isinstance(value, str) or np.ndim(value) == 0 else list(value)
-        cleaned = []
-        for item in items:
-            text = str(item).strip().strip("(){}[]<>").replace(" ", "").replace(",", "")
-            if ax.choices and text not in ax.choices:
-                raise InputError(ax.name, f"one of {', '.join(ax.choices)}", repr(item))
-            cleaned.append(text)
+        cleaned = [_category_value(ax, item, catalogue) for item in items]
         if not cleaned:
             raise InputError(ax.name, "at least one value", "an empty list")
         scalar = isinstance(value, str) or np.ndim(value) == 0
@@ -611,7 +165,7 @@ def _grid_values(ax: Axis, value):
 class _Grid:
     """The axes of one table: values (1-D for dimensions, 0-d for scalars)."""
 
-    def __init__(self, axes: Mapping[str, object]):
+    def __init__(self, axes: Mapping[str, object], catalogue=None):
         given: dict[str, object] = {}
         for key, value in axes.items():
             if value is None:
@@ -631,7 +185,7 @@ class _Grid:
         for name, ax in AXES.items():  # canonical order
             if name not in given:
                 continue
-            values, requested, is_dim = _grid_values(ax, given[name])
+            values, requested, is_dim = _grid_values(ax, given[name], catalogue)
             self.values[name] = values if is_dim else values.reshape(())
             if requested:
                 self.requested[name] = requested
@@ -653,7 +207,7 @@ class _Grid:
             ax = AXES[name]
             attrs = {"long_name": ax.long_name}
             if not ax.category:
-                attrs["units"] = ax.cf_units
+                attrs["units"] = axis_units(ax)
             if name == "temperature":
                 attrs["units_metadata"] = "temperature: on_scale"
             if name in self.requested:
@@ -688,7 +242,7 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
                 continue
             if not set(entry.takes) & set(grid.values):
                 continue
-            if not set(entry.required(si)) <= set(grid.values):
+            if not set(entry.required) <= set(grid.values):
                 continue
             if entry.wants and not set(entry.wants) & set(grid.values):
                 continue
@@ -710,10 +264,11 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
             raise InputError("quantities", "quantity names (strings)", repr(name))
         if name not in QUANTITIES:
             raise UnknownQuantityError(name, QUANTITIES, "for tables")
+        name = QUANTITIES.canonical(name)
         if name not in serves:
             raise UnknownQuantityError(name, serves, f"in release {si.release.id}")
         entry = QUANTITIES[name]
-        missing = [a for a in entry.required(si) if a not in grid]
+        missing = [a for a in entry.required if a not in grid]
         if missing:
             raise InputError(
                 missing[0], f"given for {name} ({_axis_hint(AXES[missing[0]])})", "nothing"
@@ -746,6 +301,8 @@ def _refuse_or_drop_unused(grid: _Grid, entries: list[Tabulated], named: bool) -
 
 def _axis_hint(ax: Axis) -> str:
     if ax.category:
+        if not ax.choices:
+            return f"one or more {ax.long_name} names"
         return "one or more of " + ", ".join(ax.choices)
     return f"in {ax.units}"
 
@@ -782,7 +339,7 @@ def _call_block(si, entry: Tabulated, values: Mapping[str, np.ndarray], dims: li
                 arguments[name] = _shape(vals, numeric.index(name), len(numeric))
             else:
                 arguments[name] = str(vals.item()) if AXES[name].category else vals.item()
-            if AXES[name].unit_required:  # the method takes it only with its unit
+            if name in NEEDS_UNIT:  # the method takes it only with its unit
                 from ..units import Q_
 
                 arguments[name] = Q_(arguments[name], AXES[name].units)
@@ -989,6 +546,9 @@ def table(
     *,
     chunks=None,
     progress: Callable[[int, int], None] | None = None,
+    uncertainty: bool = False,
+    samples: int | None = None,
+    seed: int = 0,
     **axes,
 ):
     """Evaluate quantities of ``si`` on a grid -> :class:`xarray.Dataset`.
@@ -1009,6 +569,12 @@ def table(
         checked now, on the grid's extremes; values are computed by dask).
     progress : callable(done_points, total_points), optional
         Called as blocks of a large grid are evaluated (the command line draws a bar).
+    uncertainty : bool
+        Add ``<variable>_uncertainty`` (standard uncertainty from the sources' stated
+        coefficient uncertainties; NaN where none is stated) and
+        ``<variable>_model_spread`` (over the catalogue's models valid at each point),
+        linked by CF ``ancillary_variables``; ``samples`` and ``seed`` of Monte Carlo
+        draws (see :mod:`matprops.material.uncertainty`). Not with ``chunks``.
 
     Returns
     -------
@@ -1025,9 +591,10 @@ def table(
 
     from .._version import __version__
 
-    grid = _Grid(axes)
+    grid = _Grid(axes, si.catalog)
     entries = _select(si, grid, quantities)
     _refuse_or_drop_unused(grid, entries, named=quantities is not None)
+    names_asked = [e.name for e in entries]
     total = sum(grid.size_of(e) for e in entries)
     variables = {}  # the Dataset is built once at the end: each __setitem__ is a merge
     done = 0
@@ -1040,6 +607,13 @@ def table(
         provenance = _provenance_json(si, entry.name)
         model = si.models.get(entry.name, "derived")
         for (variable, long_name), values, unit in zip(entry.outputs, outs, units, strict=True):
+            if variable in grid.values or variable in variables:
+                raise InputError(
+                    "quantities",
+                    f"quantities whose variables are not also axes or other variables "
+                    f"({variable!r} is both: tabulate {entry.name} separately)",
+                    repr(names_asked),
+                )
             variables[variable] = (
                 tuple(dims),
                 values,
@@ -1052,6 +626,12 @@ def table(
                 },
             )
     data = xr.Dataset(variables, coords=grid.coords())
+    if uncertainty:
+        if chunks is not None:
+            raise InputError("uncertainty", "used without chunks= (an eager table)", True)
+        from .uncertainty import table_figures
+
+        data = table_figures(si, data, entries, grid, _call_block, samples=samples, seed=seed)
     data = _with_validity(si, data, entries)
     names = [e.name for e in entries]
     data.attrs.update(
@@ -1064,7 +644,8 @@ def table(
                 quantities=list(dict.fromkeys(q for e in entries for q in e.model_quantities())),
             ),
             "history": f"matprops {__version__}: si.table({names!r}, {grid.describe()}"
-            f"{f', chunks={chunks!r}' if chunks is not None else ''})",
+            f"{f', chunks={chunks!r}' if chunks is not None else ''}"
+            f"{', uncertainty=True' if uncertainty else ''})",
             "release": si.release.id,
             "release_status": si.release.status,
             "comment": "Model estimates; for decisions with consequences defer to measured "
@@ -1093,7 +674,8 @@ def _with_validity(si, data, entries):
             extra[f"{variable}_validity"] = flag.assign_attrs(
                 attributes(variable, long_name, left, entry.name)
             )
-            data[variable].attrs["ancillary_variables"] = f"{variable}_validity"
+            linked = data[variable].attrs.get("ancillary_variables", "")
+            data[variable].attrs["ancillary_variables"] = f"{linked} {variable}_validity".strip()
     return data.assign(extra)
 
 
@@ -1121,14 +703,13 @@ def _compare_one(variant, quantity, chunks, progress, axes):
 
     A model with no coefficients for a carrier or species asked for (an electrons-only
     mobility) gives NaN there (flag 2, no value) and a note; with none of them, None."""
-
     from ..errors import UnknownVariantError
 
     try:
         return table(variant, [quantity], chunks=chunks, progress=progress, **axes), ""
     except UnknownVariantError as exc:
         missing = exc
-    grid = _Grid(axes)
+    grid = _Grid(axes, variant.catalog)
     category = next(
         (d for d in ("carrier", "dopant") if d in grid and missing.name in grid.values[d]), None
     )
@@ -1196,11 +777,10 @@ def compare(
             catalog=si.catalog,
         )
         data, note = _compare_one(variant, quantity, chunks, progress, axes)
-        if data is None:
-            skipped[model_id] = note
-            continue
         if note:
             skipped[model_id] = note
+        if data is None:
+            continue
         kept.append(model_id)
         parts.append(data)
         citations.append(variant.model(quantity).source.citation())
@@ -1211,9 +791,8 @@ def compare(
             f"models of {quantity} that cover the grid asked for",
             "; ".join(f"{m}: {n}" for m, n in skipped.items()),
         )
-    if skipped:
-        for model_id, note in skipped.items():
-            warnings.warn(f"compare {quantity}: {model_id} {note}", SkippedModelWarning, 2)
+    for model_id, note in skipped.items():
+        warnings.warn(f"compare {quantity}: {model_id} {note}", SkippedModelWarning, 2)
     ids = kept
     combined = xr.concat(
         parts,
@@ -1247,8 +826,7 @@ def compare(
                 f"at the point: {variable.attrs['long_name']}",
                 "quantity": quantity,
                 "comment": "models outside their validity range at a point (flag 1) or "
-                "without a value there (flag 2) are left out; NaN where fewer than one "
-                "model is valid",
+                "without a value there (flag 2) are left out; NaN where no model is valid",
             }
         )
         combined[f"{name}_relative_spread"] = relative.assign_attrs(

@@ -25,7 +25,7 @@ import numpy as np
 
 from ..errors import InputError
 from ..kernels.constants import BOLTZMANN_EV, ELEMENTARY_CHARGE
-from ..units import coerce
+from ..units import NEEDS_UNIT, coerce
 
 __all__ = ["Step", "Trace", "explain"]
 
@@ -397,9 +397,9 @@ def explain(si, quantity: str, **inputs) -> Trace:
             converted[ax.name] = (str(value), "")
         else:
             number = _scalar_in(value, ax)
-            values[ax.name] = value if ax.unit_required else number  # thickness: with its unit
+            values[ax.name] = value if ax.name in NEEDS_UNIT else number  # thickness: with its unit
             converted[ax.name] = (number, ax.units)
-    missing = [a for a in entry.required(si) if a not in values]
+    missing = [a for a in entry.required if a not in values]
     if missing:
         raise InputError(missing[0], f"given for {quantity}", "nothing")
     result = entry.call(si, values)

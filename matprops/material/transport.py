@@ -38,68 +38,32 @@ from ..kernels import resistivity as resistivity_kernels
 from ..kernels.constants import BOLTZMANN_EV
 from ..kernels.diffusivity import einstein_factor
 from ..units import coerce, quantity
-from .carriers import DOPANTS, dopant_species
+from ..vocabulary import CARRIERS, DOPANTS, carrier_name, dopant_species
+from .bound import model_kernel
 from .composition import complete_ionisation
+from .registry import DOPINGS, TEMPERATURES, TRANSPORT_TEMPERATURES, case
+from .registry import quantity as declare
 
-__all__ = ["CARRIERS", "CONVERSIONS", "DERIVED", "KERNELS", "TransportMethods", "carrier_name"]
+__all__ = ["CARRIERS", "CONVERSIONS", "TransportMethods", "carrier_name"]
 
-CARRIERS = ("electron", "hole")
-_CARRIER_ALIASES = {"electrons": "electron", "holes": "hole", "e": "electron", "h": "hole"}
 CONVERSIONS = ("physics", "standard")
 DOPANT_DENSITIES = ("total", "ionised")
 _EQUILIBRIUM = ("densities_of_states", "intrinsic_density", "gap_narrowing", "ionisation")
-
-# Quantities computed from other quantities' models (no model file of their own):
-# name -> (quantities it is built from, formula shown in the provenance)
-DERIVED = {
-    "diffusivity": (
-        ("mobility", *_EQUILIBRIUM),
-        (
-            "D = mu kT/q F_1/2(eta)/F_-1/2(eta) (Einstein relation; the factor is 1 with "
-            "Boltzmann statistics), eta = (E_F - E_c')/kT for electrons, (E_v' - E_F)/kT for "
-            "holes: the equilibrium reduced Fermi level, or the quasi-Fermi level of the given "
-            "n or p (n = Nc F_1/2(eta))"
-        ),
-    ),
-    "conductivity": (
-        ("mobility", *_EQUILIBRIUM),
-        (
-            "sigma = q (n0 mu_n + p0 mu_p): equilibrium n0, p0 and ionised dopants; mu_n with "
-            "the donor species' coefficients, mu_p with the acceptor's; dopant densities total "
-            "or ionised as the mobility model takes them"
-        ),
-    ),
-    "resistivity": (
-        ("mobility", *_EQUILIBRIUM),
-        "rho = 1 / (q (n0 mu_n + p0 mu_p)), as for conductivity",
-    ),
-    "doping_from_resistivity": (
-        ("mobility", *_EQUILIBRIUM),
-        (
-            "the density N of one dopant species with rho(T, N) equal to the given "
-            "resistivity, rho as for resistivity; solved for all points at once (Illinois "
-            "false position in ln N, to 1e-13 in ln N) on the doping-dominated branch: for "
-            "acceptors above the resistivity maximum at N = ni (sqrt(r) - 1/sqrt(r)), "
-            "r = mu_n/mu_p of intrinsic silicon"
-        ),
-    ),
-}
-
-# Quantities whose plain-array kernels this family hands out (see Silicon.kernel).
-KERNELS = ("thermal_velocity", "saturation_velocity", "mobility", "high_field_mobility")
+_DOPANTS = ("acceptor_density", "donor_density")
+_RESISTIVITIES = [1e-3, 0.1, 1.0, 10.0, 1e3]
+_STANDARD_DOPINGS = [1e12, 1e14, 1e16, 1e18, 1e20]
 
 _HIGHEST_DENSITY = 1e21  # cm^-3: the top of the bracket for doping from resistivity
 
 
-def carrier_name(value, argument: str = "carrier") -> str:
-    """``"electron"`` or ``"hole"`` (plural and ``e``/``h`` accepted), else an error."""
-    if isinstance(value, str) and value in CARRIERS:  # canonical already
-        return value
-    text = str(value).strip().lower()
-    name = _CARRIER_ALIASES.get(text, text)
-    if name not in CARRIERS:
-        raise InputError(argument, f"one of {', '.join(CARRIERS)}", repr(value))
-    return name
+def _carrier_kernel(si, name, fixed):
+    """The bound kernel of a transport quantity (``carrier=`` required; see
+    ``TransportMethods._transport_kernel``)."""
+    return model_kernel(si, name, si._transport_kernel(name, fixed), fixed)
+
+
+def _per_carrier(name, **grid):
+    return [case(f"{name}_{c}", fixed={"carrier": c}, **grid) for c in CARRIERS]
 
 
 def _choice(value, argument, allowed):
@@ -119,6 +83,12 @@ class TransportMethods:
     """Mobility, velocities, diffusivity, resistivity and the resistivity-doping conversion."""
 
     # ------------------------------------------------------------------ velocities
+    @declare(
+        units="cm/s",
+        long_name="thermal velocity (mean thermal speed)",
+        cases=_per_carrier("thermal_velocity", temperature=TEMPERATURES),
+        kernel=_carrier_kernel,
+    )
     def thermal_velocity(self, carrier, temperature):
         """Thermal velocity of electrons or holes, cm/s.
 
@@ -139,6 +109,12 @@ class TransportMethods:
             model.output_units,
         )
 
+    @declare(
+        units="cm/s",
+        long_name="saturation drift velocity",
+        cases=_per_carrier("saturation_velocity", temperature=TEMPERATURES),
+        kernel=_carrier_kernel,
+    )
     def saturation_velocity(self, carrier, temperature):
         """Saturation drift velocity of electrons or holes at high field, cm/s."""
         model = self.model("saturation_velocity").select(carrier_name(carrier))
@@ -211,6 +187,21 @@ class TransportMethods:
         shape = np.broadcast_shapes(*(a.shape for a, _, _ in prepared.values()))
         return np.broadcast_to(np.asarray(value, dtype=float), shape)
 
+    @declare(
+        units="cm^2/(V*s)",
+        long_name="low-field carrier mobility",
+        log=True,
+        cases=[
+            case(
+                "mobility_electron_arsenic",
+                fixed={"carrier": "electron", "donor": "arsenic"},
+                temperature=[250.0, 300.0, 400.0],
+                Nd=[1e15, 1e17, 1e19, 1e20],
+            ),
+            *_per_carrier("mobility", temperature=TRANSPORT_TEMPERATURES, Na=DOPINGS, Nd=DOPINGS),
+        ],
+        kernel=_carrier_kernel,
+    )
     def mobility(
         self,
         carrier,
@@ -255,6 +246,19 @@ class TransportMethods:
             self._broadcast_all(self._call(model, prepared), prepared), model.output_units
         )
 
+    @declare(
+        units="cm^2/(V*s)",
+        long_name="carrier mobility in an electric field",
+        uses=("mobility", "saturation_velocity"),
+        log=True,
+        cases=_per_carrier(
+            "high_field_mobility",
+            field=[0.0, 1e3, 1e4, 3e4, 6e4],
+            temperature=[250.0, 300.0, 400.0],
+            Nd=[1e15, 1e18],
+        ),
+        kernel=_carrier_kernel,
+    )
     def high_field_mobility(
         self,
         carrier,
@@ -301,6 +305,24 @@ class TransportMethods:
             self._broadcast_all(self._call(model, prepared), prepared), model.output_units
         )
 
+    @declare(
+        units="cm^2/s",
+        long_name="carrier diffusion coefficient (Einstein relation)",
+        models=("mobility", *_EQUILIBRIUM),
+        formula=(
+            "D = mu kT/q F_1/2(eta)/F_-1/2(eta) (Einstein relation; the factor is 1 with "
+            "Boltzmann statistics), eta = (E_F - E_c')/kT for electrons, (E_v' - E_F)/kT for "
+            "holes: the equilibrium reduced Fermi level, or the quasi-Fermi level of the given "
+            "n or p (n = Nc F_1/2(eta))"
+        ),
+        log=True,
+        cases=_per_carrier(
+            "diffusivity",
+            temperature=[250.0, 300.0, 400.0],
+            Na=[0.0, 1e17, 1e20],
+            Nd=[0.0, 1e15, 1e20],
+        ),
+    )
     def diffusivity(
         self,
         carrier,
@@ -421,6 +443,19 @@ class TransportMethods:
                 bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
         self._check_dopants(prepared, donor, acceptor)
 
+    @declare(
+        units="S/cm",
+        long_name="conductivity of silicon in equilibrium",
+        models=("mobility", *_EQUILIBRIUM),
+        formula=(
+            "sigma = q (n0 mu_n + p0 mu_p): equilibrium n0, p0 and ionised dopants; mu_n with "
+            "the donor species' coefficients, mu_p with the acceptor's; dopant densities total "
+            "or ionised as the mobility model takes them"
+        ),
+        wants=_DOPANTS,
+        log=True,
+        cases=[case(temperature=TRANSPORT_TEMPERATURES, Na=DOPINGS, Nd=DOPINGS)],
+    )
     def conductivity(self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron"):
         """Electrical conductivity of silicon in equilibrium, S/cm.
 
@@ -431,6 +466,28 @@ class TransportMethods:
         t, nd, na, donor, acceptor = self._physics_inputs(temperature, Na, Nd, donor, acceptor)
         return quantity(self._conductivity(t, nd, na, donor, acceptor), "S/cm")
 
+    @declare(
+        "standard_resistivity",
+        units="ohm*cm",
+        long_name="resistivity by the standard conversion (23 degC)",
+        fixed={"conversion": "standard"},
+        wants=_DOPANTS,
+        log=True,
+        by_default=False,
+        cases=[
+            case(f"standard_resistivity_{d}", temperature=[296.15], **{kind: _STANDARD_DOPINGS})
+            for d, kind in (("boron", "Na"), ("phosphorus", "Nd"))
+        ],
+    )
+    @declare(
+        units="ohm*cm",
+        long_name="resistivity of silicon in equilibrium",
+        models=("mobility", *_EQUILIBRIUM),
+        formula="rho = 1 / (q (n0 mu_n + p0 mu_p)), as for conductivity",
+        wants=_DOPANTS,
+        log=True,
+        cases=[case(temperature=TRANSPORT_TEMPERATURES, Na=DOPINGS, Nd=DOPINGS)],
+    )
     def resistivity(
         self, temperature, Na=0, Nd=0, *, donor="phosphorus", acceptor="boron", conversion="physics"
     ):
@@ -480,6 +537,45 @@ class TransportMethods:
                 out[where] = self._call(chosen, values)
         return quantity(out, "ohm*cm")
 
+    @declare(
+        "standard_dopant_density",
+        units="cm^-3",
+        long_name="dopant density by the standard conversion (23 degC)",
+        fixed={"conversion": "standard"},
+        log=True,
+        by_default=False,
+        cases=[
+            case(
+                f"standard_dopant_density_{d}",
+                fixed={"dopant": d},
+                resistivity=_RESISTIVITIES,
+                temperature=[296.15],
+            )
+            for d in ("boron", "phosphorus")
+        ],
+    )
+    @declare(
+        units="cm^-3",
+        long_name="density of the dopant species that gives the resistivity",
+        models=("mobility", *_EQUILIBRIUM),
+        formula=(
+            "the density N of one dopant species with rho(T, N) equal to the given "
+            "resistivity, rho as for resistivity; solved for all points at once (Illinois "
+            "false position in ln N, to 1e-13 in ln N) on the doping-dominated branch: for "
+            "acceptors above the resistivity maximum at N = ni (sqrt(r) - 1/sqrt(r)), "
+            "r = mu_n/mu_p of intrinsic silicon"
+        ),
+        log=True,
+        cases=[
+            case(
+                f"doping_from_resistivity_{d}",
+                fixed={"dopant": d},
+                resistivity=_RESISTIVITIES,
+                temperature=[250.0, 300.0, 400.0],
+            )
+            for d in ("boron", "phosphorus")
+        ],
+    )
     def doping_from_resistivity(self, resistivity, temperature, dopant, *, conversion="physics"):
         """Density of one dopant species that gives silicon a resistivity, cm^-3.
 

@@ -2,7 +2,11 @@
 
     python -m matprops.outputs.modeldocs            # rewrites docs/models.md
 
-A test checks that the committed file matches what this produces.
+Each quantity's heading says what it is, the method that serves it, its units and
+table axes (from the quantity registry, :mod:`matprops.material.registry`); then
+every model of it (from its model file). Derived quantities, which have no model
+files, follow with the formula they are composed by. A test checks that the
+committed file matches what this produces.
 """
 
 from __future__ import annotations
@@ -12,6 +16,7 @@ import sys
 from pathlib import Path
 
 from ..catalogue.store import Catalog, default_catalog
+from ..material.registry import declared
 
 __all__ = ["main", "render"]
 
@@ -33,8 +38,11 @@ def render(catalog: Catalog | None = None) -> str:
     ]
     lines += ["| release | status | date |", "|---|---|---|"]
     lines += [f"| {r.id} | {r.status} | {r.date} |" for r in releases.values()]
+    registry = declared()
     for quantity in catalog.quantities():
         lines += ["", f"## {quantity}", ""]
+        if quantity in registry:
+            lines += [_declaration(registry[quantity]), ""]
         for model_id in catalog.model_ids(quantity):
             model = catalog.model(quantity, model_id)
             chosen = [r for r, rel in releases.items() if rel.models.get(quantity) == model_id]
@@ -71,8 +79,40 @@ def render(catalog: Catalog | None = None) -> str:
             if model.notes:
                 lines.append(f"- notes: {_one_line(model.notes)}")
             lines.append("")
+    lines += _derived_lines(registry)
     lines += _defect_lines(catalog)
     return "\n".join(lines).rstrip() + "\n"
+
+
+def _units(units) -> str:
+    return ", ".join(units) if isinstance(units, tuple) else units
+
+
+def _declaration(entry) -> str:
+    """One line from a quantity's declaration: what it is, its method, units, axes."""
+    arguments = ", ".join(entry.takes.values())
+    fixed = "".join(f", {k}={v!r}" for k, v in entry.fixed.items())
+    axes = ", ".join(entry.takes) or "none"
+    aliases = f"; also called {', '.join(entry.aliases)}" if entry.aliases else ""
+    return (
+        f"{_one_line(entry.long_name)}: `si.{entry.method}({arguments}{fixed})` "
+        f"[{_units(entry.units)}]; table axes: {axes}{aliases}."
+    )
+
+
+def _derived_lines(registry) -> list[str]:
+    """Quantities composed from other quantities' models (no model file of their own)."""
+    derived = [q for q in registry.values() if q.derived]
+    if not derived:
+        return []
+    lines = ["", "## Derived quantities", ""]
+    lines += ["Composed from the models the material serves; each one's provenance names them.", ""]
+    for entry in derived:
+        lines += [f"### {entry.name}", "", _declaration(entry), ""]
+        lines.append(f"- from: {', '.join(entry.models)}")
+        lines.append(f"- formula: {_one_line(entry.formula)}")
+        lines.append("")
+    return lines
 
 
 def _defect_lines(catalog: Catalog) -> list[str]:

@@ -276,7 +276,17 @@ def _panel(ax, data, name, x, xs, ratio_to=None):
             )
             or None
         )
-        dashed |= _draw(ax, xs, ys, flags, _style(index), label)
+        style = _style(index)
+        dashed |= _draw(ax, xs, ys, flags, style, label)
+        band = f"{name}_uncertainty"
+        if band in data and reference is None:  # value +- standard uncertainty (k = 1)
+            sigma = data[band].isel({d: i for d, i in pick.items() if d in data[band].dims})
+            sigma = np.broadcast_to(
+                sigma.transpose(*[d for d in (x,) if d in sigma.dims]).values, np.shape(ys)
+            )
+            ax.fill_between(
+                xs, ys - sigma, ys + sigma, color=style["color"], alpha=0.2, linewidth=0
+            )
         everything.append(ys)
     if ratio_to is not None:
         ax.axhline(1.0, color="0.6", linewidth=0.8)
@@ -353,7 +363,9 @@ def plot(
     _, Figure = _matplotlib()
     data = data.compute() if any(v.chunks for v in data.variables.values()) else data
     x = _x_axis(data, x)
-    values = [n for n in value_names(data) if not n.endswith(("spread", "_valid_models"))]
+    values = [
+        n for n in value_names(data) if not n.endswith(("spread", "_valid_models", "_uncertainty"))
+    ]
     names = list(variables) if variables else [n for n in values if x in data[n].dims]
     for name in names:
         if name not in data.data_vars:

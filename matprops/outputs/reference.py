@@ -36,7 +36,9 @@ import hashlib
 import json
 import sys
 import warnings
+from collections.abc import Mapping
 from pathlib import Path
+from types import MappingProxyType
 
 import numpy as np
 
@@ -47,273 +49,49 @@ from ..catalogue.store import (
     sha256_of,
 )
 from ..errors import Error, ReleaseFrozenError
+from ..material.registry import (  # noqa: F401 (the reference grids, for readers of this module)
+    DOPINGS,
+    EXCESS,
+    OPTICAL_TEMPERATURES,
+    TEMPERATURES,
+    WAVELENGTHS,
+)
 
 __all__ = ["CASES", "compare", "evaluate", "regenerate", "table_digest"]
 
-TEMPERATURES = [
-    50.0,
-    77.0,
-    150.0,
-    200.0,
-    233.15,
-    250.0,
-    273.15,
-    298.15,
-    300.0,
-    350.0,
-    400.0,
-    473.15,
-    500.0,
-    600.0,
-]
 
-WAVELENGTHS = [
-    260.0,
-    300.0,
-    365.0,
-    400.0,
-    500.0,
-    600.0,
-    700.0,
-    800.0,
-    900.0,
-    1000.0,
-    1050.0,
-    1100.0,
-    1150.0,
-    1180.0,
-    1300.0,
-    1450.0,
-]
-OPTICAL_TEMPERATURES = [80.0, 250.0, 295.0, 300.0, 350.0, 473.15]
-TRANSPORT_TEMPERATURES = [77.0, 150.0, 250.0, 300.0, 350.0, 400.0, 500.0]
-DOPINGS = [0.0, 1e14, 1e16, 1e18, 1e20]
+def static_cases() -> list:
+    """Every reference case declared in the quantity registry that does not depend on
+    the data (``(label, method, fixed keyword arguments, gridded arguments)``; gridded
+    arguments are combined as an outer product in the order given)."""
+    from ..material.registry import declared
 
-LIFETIME_TEMPERATURES = [250.0, 298.15, 300.0, 350.0]
-LIFETIME_DOPING = [1e13, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20]
-EXCESS = [0.0, 1e12, 1e14, 1e15, 1e16, 1e17]
-
-# (case label, Silicon method, fixed keyword arguments, gridded arguments)
-# Gridded arguments are combined as an outer product in the order given.
-DOPANTS = {"Nd": [0.0, 1e14, 1e16, 1e18, 3e19, 1e20], "Na": [0.0, 1e15, 1e17, 1e19]}
-DOPING_GRID = {"temperature": [250.0, 300.0, 350.0], **DOPANTS}
-
-CASES = [
-    ("band_gap", "band_gap", {}, {"temperature": TEMPERATURES}),
-    ("densities_of_states", "densities_of_states", {}, {"temperature": TEMPERATURES}),
-    ("intrinsic_density", "intrinsic_density", {}, {"temperature": TEMPERATURES}),
-    ("lattice_constant", "lattice_constant", {}, {"temperature": TEMPERATURES}),
-    ("density", "density", {}, {"temperature": TEMPERATURES}),
-    ("atomic_density", "atomic_density", {}, {"temperature": TEMPERATURES}),
-    ("molar_mass", "molar_mass", {}, {}),
-    ("permittivity", "permittivity", {}, {}),
-    *[
-        (
-            f"surface_atom_density_{p}",
-            "surface_atom_density",
-            {"plane": p},
-            {"temperature": [300.0]},
-        )
-        for p in ("100", "110", "111")
-    ],
-    *[
-        (
-            f"dangling_bond_density_{p}",
-            "dangling_bond_density",
-            {"plane": p},
-            {"temperature": [300.0]},
-        )
-        for p in ("100", "110", "111")
-    ],
-    (
-        "absorption",
-        "absorption",
-        {},
-        {"wavelength": WAVELENGTHS, "temperature": OPTICAL_TEMPERATURES},
-    ),
-    (
-        "refractive_index",
-        "refractive_index",
-        {},
-        {"wavelength": WAVELENGTHS, "temperature": OPTICAL_TEMPERATURES},
-    ),
-    (
-        "free_carrier_absorption",
-        "free_carrier_absorption",
-        {},
-        {
-            "wavelength": [1000.0, 1300.0, 1450.0, 1550.0, 2000.0, 5000.0],
-            "n": [0.0, 1e16, 1e19],
-            "p": [0.0, 1e16, 1e19],
-        },
-    ),
-    ("gap_narrowing", "gap_narrowing", {}, DOPING_GRID),
-    (
-        "band_edge_shifts",
-        "band_edge_shifts",
-        {},
-        {
-            "temperature": [250.0, 300.0, 400.0],
-            "Nd": [0.0, 1e18, 1e20],
-            "Na": [0.0, 1e17],
-            "n": [1e10, 1e18, 1e20],
-            "p": [1e3, 1e16, 1e19],
-        },
-    ),
-    ("effective_intrinsic_density", "effective_intrinsic_density", {}, DOPING_GRID),
-    (
-        "equilibrium",
-        "equilibrium",
-        {},
-        {"temperature": [77.0, 200.0, 300.0, 400.0, 500.0], **DOPANTS},
-    ),
-    (
-        "equilibrium_boltzmann",
-        "equilibrium",
-        {"statistics": "boltzmann"},
-        {"temperature": [300.0], **DOPANTS},
-    ),
-    *[
-        (f"thermal_velocity_{c}", "thermal_velocity", {"carrier": c}, {"temperature": TEMPERATURES})
-        for c in ("electron", "hole")
-    ],
-    ("radiative_coefficient", "radiative_coefficient", {}, {"temperature": TEMPERATURES}),
-    (
-        "intrinsic_lifetime_n_type",
-        "intrinsic_lifetime",
-        {},
-        {"temperature": LIFETIME_TEMPERATURES, "Nd": LIFETIME_DOPING, "excess": EXCESS},
-    ),
-    (
-        "intrinsic_lifetime_p_type",
-        "intrinsic_lifetime",
-        {},
-        {"temperature": LIFETIME_TEMPERATURES, "Na": LIFETIME_DOPING, "excess": EXCESS},
-    ),
-    (
-        "auger_lifetime_n_type",
-        "auger_lifetime",
-        {},
-        {"temperature": [300.0], "Nd": LIFETIME_DOPING, "excess": EXCESS},
-    ),
-    (
-        "effective_lifetime",
-        "effective_lifetime",
-        {"defect": "iron-boron-pair", "density": 1e11},
-        {"temperature": [300.0], "Na": [1e15, 1e16], "excess": EXCESS},
-    ),
-    (
-        "implied_voltage",
-        "implied_voltage",
-        {"thickness": 0.018},
-        {"temperature": [298.15, 300.0], "Na": [1e15, 1e16], "generation": [1e15, 1e17, 2.5e17]},
-    ),
-    *[
-        (
-            f"saturation_velocity_{c}",
-            "saturation_velocity",
-            {"carrier": c},
-            {"temperature": TEMPERATURES},
-        )
-        for c in ("electron", "hole")
-    ],
-    (
-        "mobility_electron_arsenic",
-        "mobility",
-        {"carrier": "electron", "donor": "arsenic"},
-        {"temperature": [250.0, 300.0, 400.0], "Nd": [1e15, 1e17, 1e19, 1e20]},
-    ),
-    *[
-        (
-            f"mobility_{c}",
-            "mobility",
-            {"carrier": c},
-            {"temperature": TRANSPORT_TEMPERATURES, "Na": DOPINGS, "Nd": DOPINGS},
-        )
-        for c in ("electron", "hole")
-    ],
-    *[
-        (
-            f"high_field_mobility_{c}",
-            "high_field_mobility",
-            {"carrier": c},
-            {
-                "field": [0.0, 1e3, 1e4, 3e4, 6e4],
-                "temperature": [250.0, 300.0, 400.0],
-                "Nd": [1e15, 1e18],
-            },
-        )
-        for c in ("electron", "hole")
-    ],
-    *[
-        (
-            f"diffusivity_{c}",
-            "diffusivity",
-            {"carrier": c},
-            {
-                "temperature": [250.0, 300.0, 400.0],
-                "Na": [0.0, 1e17, 1e20],
-                "Nd": [0.0, 1e15, 1e20],
-            },
-        )
-        for c in ("electron", "hole")
-    ],
-    (
-        "resistivity",
-        "resistivity",
-        {},
-        {"temperature": TRANSPORT_TEMPERATURES, "Na": DOPINGS, "Nd": DOPINGS},
-    ),
-    *[
-        (
-            f"doping_from_resistivity_{d}",
-            "doping_from_resistivity",
-            {"dopant": d},
-            {"resistivity": [1e-3, 0.1, 1.0, 10.0, 1e3], "temperature": [250.0, 300.0, 400.0]},
-        )
-        for d in ("boron", "phosphorus")
-    ],
-    *[
-        (
-            f"standard_resistivity_{d}",
-            "resistivity",
-            {"conversion": "standard"},
-            {"temperature": [296.15], kind: [1e12, 1e14, 1e16, 1e18, 1e20]},
-        )
-        for d, kind in (("boron", "Na"), ("phosphorus", "Nd"))
-    ],
-    *[
-        (
-            f"standard_dopant_density_{d}",
-            "doping_from_resistivity",
-            {"dopant": d, "conversion": "standard"},
-            {"resistivity": [1e-3, 0.1, 1.0, 10.0, 1e3], "temperature": [296.15]},
-        )
-        for d in ("boron", "phosphorus")
-    ],
-]
+    return declared().reference_cases(_NO_MATERIAL)
 
 
-# Silicon methods named otherwise than the quantity whose model they evaluate
-_METHOD_QUANTITIES = {"band_edge_shifts": ("gap_narrowing",), "dopant_level": ("ionisation",)}
+class _NoMaterial:
+    """Stands for a material in :func:`static_cases`: data-dependent cases see a
+    material that serves nothing and contribute none."""
+
+    models: Mapping[str, str] = MappingProxyType({})
 
 
-# the standard's conversions are models of their own, reached through these methods
-_STANDARD = {
-    "resistivity": ("standard_resistivity",),
-    "doping_from_resistivity": ("standard_dopant_density",),
-}
+_NO_MATERIAL = _NoMaterial()
+
+#: the declared cases that do not depend on the data (see :func:`static_cases`)
+CASES = static_cases()
 
 
 def _needs(method: str, fixed: dict | None = None) -> tuple[str, ...]:
-    """The quantities whose models a case evaluates."""
-    from ..material.derived import DERIVED
+    """The quantities whose models a case evaluates: those of the quantity the call
+    evaluates (read from the registry: ``resistivity(conversion="standard")`` is the
+    standard's own model)."""
+    from ..material.registry import declared
 
-    if (fixed or {}).get("conversion") == "standard" and method in _STANDARD:
-        return _STANDARD[method]
-    if method in _METHOD_QUANTITIES:
-        return _METHOD_QUANTITIES[method]
-    return DERIVED[method][0] if method in DERIVED else (method,)
+    found = declared().for_method(method, fixed)
+    if found is None:
+        raise KeyError(f"no declared quantity is served by method {method!r}")
+    return found.models
 
 
 def _table_cases(si) -> list:
@@ -365,51 +143,6 @@ def table_digest(arrays) -> str:
 def _table_digests(si) -> dict:
     names = sorted({name for model in si._models.values() for name in model.tables})
     return {name: table_digest(si.catalog.table_arrays(name)) for name in names}
-
-
-def _variant_cases(si) -> list:
-    """Every coefficient set of the ionisation model (one case per dopant species)."""
-    if "ionisation" not in si.models:
-        return []
-    return [
-        (
-            f"dopant_level_{species}",
-            "dopant_level",
-            {"dopant": species},
-            {"N": [0.0, 1e14, 1e16, 1e18, 3e18, 1e19, 1e20]},
-        )
-        for species in si.model("ionisation").variants
-    ]
-
-
-def _defect_cases(si) -> list:
-    """Shockley-Read-Hall lifetime of every defect of the catalogue, p- and n-type."""
-    if "srh_lifetime" not in si.models:
-        return []
-    from ..catalogue import defects
-
-    cases = []
-    for name in defects.names(si.catalog):
-        entry = defects.defect(name, si.catalog)
-        fixed = (
-            {"defect": name, "density": 1e11}
-            if entry.absolute
-            else {"defect": name, "electron_capture_time": 1e-5}
-        )
-        for doping in ("Na", "Nd"):
-            cases.append(
-                (
-                    f"srh_lifetime_{name}_{doping}",
-                    "srh_lifetime",
-                    fixed,
-                    {
-                        "temperature": [250.0, 300.0, 350.0],
-                        doping: [1e14, 1e15, 1e16, 1e17],
-                        "excess": [1e12, 1e14, 1e16],
-                    },
-                )
-            )
-    return cases
 
 
 def _data_files(si) -> dict:
@@ -581,9 +314,14 @@ def _evaluate_cases(si, cases) -> dict:
 
 
 def _default_cases(si) -> list:
+    """The cases of ``si``'s release: every declared case whose models it serves (the
+    quantity registry's, including those that depend on the data, such as one per
+    defect of the catalogue) and every stored point of each table model."""
+    from ..material.registry import declared
+
     return [
         case
-        for case in CASES + _table_cases(si) + _variant_cases(si) + _defect_cases(si)
+        for case in declared().reference_cases(si) + _table_cases(si)
         if all(q in si.models for q in _needs(case[1], case[2]))
     ]
 

@@ -372,13 +372,13 @@ def _dataset(si, spec: Spec, doping: DopingStep):
 
         raise UnknownQuantityError(unknown[0], QUANTITIES, "for reports")
     allowed = {"temperature", "carrier"} | _DOPING_AXES | {"electron_density", "hole_density"}
-    unfit = [q for q in spec.quantities if not set(QUANTITIES[q].required(si)) <= allowed]
+    unfit = [q for q in spec.quantities if not set(QUANTITIES[q].required) <= allowed]
     if unfit:
         raise SpecError(
             spec.source,
             "quantities",
             f"must be quantities of temperature and doping: {unfit[0]} also needs "
-            f"{', '.join(a for a in QUANTITIES[unfit[0]].required(si) if a not in allowed)}",
+            f"{', '.join(a for a in QUANTITIES[unfit[0]].required if a not in allowed)}",
         )
     shown = [q for q in spec.quantities if q in serves]
     skipped = [q for q in spec.quantities if q not in serves]

@@ -47,11 +47,13 @@ def test_cite_bibtex_lists_every_source_once(si):
     dois = set()
     for quantity in si.models:
         record = si.provenance(quantity)
-        dois.add(record["doi"])
-        dois.update(s["doi"] for s in record.get("additional_sources", []))
+        # a source without a DOI (a data monograph, an old letter) counts by its title
+        dois.add(record["doi"] or record["source"]["title"])
+        dois.update(s["doi"] or s["title"] for s in record.get("additional_sources", []))
     assert text.count("@article{") + text.count("@book{") == len(dois)
     for doi in dois:
-        assert text.count(f"doi = {{{doi}}}") == 1
+        if doi.startswith("10."):
+            assert text.count(f"doi = {{{doi}}}") == 1
     assert "@article{franta-2017," in text  # a combined model cites both its sources
 
 

@@ -404,12 +404,12 @@ def test_optical_table(tmp_path, capsys):
         == 0
     )
     out = capsys.readouterr().out
-    assert "absorption_" in out and "coefficient" in out and "green-2008-franta-2017" in out
+    assert "absorption" in out and "refractive_index" in out and "green-2008-franta-2017" in out
     path = tmp_path / "optics.nc"
     assert main(["table", "-t", "300", "-w", "1000", "-o", str(path)]) == 0
     with xr.open_dataset(path) as data:
-        assert data.absorption_coefficient.dims == ("temperature", "wavelength")
-        assert data.absorption_coefficient.values.item() == pytest.approx(64.0, rel=1e-3)
+        assert data.absorption.dims == ("temperature", "wavelength")
+        assert data.absorption.values.item() == pytest.approx(64.0, rel=1e-3)
 
 
 @pytest.fixture
@@ -448,3 +448,30 @@ def test_unusable_datasets_folder_is_one_line(capsys, tmp_path, datasets_env, ca
     for argv in (["table", "-t", "300"], ["releases"]):
         code, _, err = run(capsys, *argv)
         one_line_error(code, err, fragment)
+
+
+def test_demo_prints_no_warning(capsys):
+    # the demo's operating points (-35 to 83 degC, invented) lie inside the ranges of the
+    # newest release's default models: its first screen carries no validity warning
+    import warnings as _warnings
+
+    with _warnings.catch_warnings():
+        _warnings.simplefilter("error")
+        code, out, err = run(capsys, "demo")
+    assert code == 0
+    assert "warning" not in err.lower() and "warning" not in out.lower()
+
+
+def test_intrinsic_lifetime_covers_cold_and_hot_modules():
+    # 240, 300 and 360 K (a winter night to a module in summer) under the newest release:
+    # no validity warning
+    import warnings as _warnings
+
+    import matprops
+
+    si = matprops.silicon()
+    with _warnings.catch_warnings():
+        _warnings.simplefilter("error")
+        for doping in ({"Na": 1e16}, {"Nd": 1e16}, {"Nd": 3e19, "Na": 1e16}):
+            values = si.intrinsic_lifetime([240.0, 300.0, 360.0], **doping, excess=1e14).m
+            assert np.all(np.isfinite(values)) and np.all(values > 0)

@@ -159,20 +159,20 @@ def test_csv_opens_in_pandas_with_default_arguments(si, tmp_path):
         "temperature [K]",
         "wavelength [nm]",
         "band_gap [eV]",
-        "absorption_coefficient [cm^-1]",
+        "absorption [cm^-1]",
         "band_gap_validity",
-        "absorption_coefficient_validity",
+        "absorption_validity",
     ]
     assert len(frame) == 6
     np.testing.assert_allclose(frame["temperature [degC]"], [25, 25, 25, 85, 85, 85])
     np.testing.assert_allclose(
-        frame["absorption_coefficient [cm^-1]"],
-        data.absorption_coefficient.values.ravel(),
+        frame["absorption [cm^-1]"],
+        data.absorption.values.ravel(),
         rtol=1e-9,
     )
     provenance = json.loads((tmp_path / "t.provenance.json").read_text())
     assert provenance["describes"] == "t.csv"
-    record = provenance["data_vars"]["absorption_coefficient"]["attrs"]["provenance"]
+    record = provenance["data_vars"]["absorption"]["attrs"]["provenance"]
     assert record["model"] == "green-2008-franta-2017" and record["tables"]
 
 
@@ -182,10 +182,10 @@ def test_wide_csv_has_one_row_per_temperature(si, tmp_path):
     export.write(data, path, layout="wide")
     frame = pd.read_csv(path)
     assert len(frame) == 2
-    assert "absorption_coefficient [cm^-1] at wavelength=800 nm" in frame.columns
+    assert "absorption [cm^-1] at wavelength=800 nm" in frame.columns
     np.testing.assert_allclose(
-        frame["absorption_coefficient [cm^-1] at wavelength=800 nm"],
-        data.absorption_coefficient.values[:, 1],
+        frame["absorption [cm^-1] at wavelength=800 nm"],
+        data.absorption.values[:, 1],
         rtol=1e-9,
     )
     np.testing.assert_allclose(frame["band_gap [eV]"], data.band_gap.values, rtol=1e-9)
@@ -206,14 +206,12 @@ def test_json_provenance_is_an_object_and_nan_is_null(si, tmp_path):
     path = tmp_path / "t.json"
     export.write(data, path)
     document = json.loads(path.read_text())  # strict JSON: no NaN tokens
-    variable = document["data_vars"]["absorption_coefficient"]
+    variable = document["data_vars"]["absorption"]
     assert isinstance(variable["attrs"]["provenance"], dict)
     assert variable["attrs"]["provenance"]["model"] == "green-2008-franta-2017"
     assert variable["data"][0][0] is None
     back = xr.Dataset.from_dict(document)
-    assert back.absorption_coefficient.values[0, 1] == pytest.approx(
-        data.absorption_coefficient.values[0, 1]
-    )
+    assert back.absorption.values[0, 1] == pytest.approx(data.absorption.values[0, 1])
 
 
 def test_existing_files_are_refused_unless_overwrite(si, tmp_path):
@@ -283,5 +281,5 @@ def test_lazy_table_writes_the_same_netcdf(si, tmp_path):
     lazy = si.table(["absorption"], T=t, wavelength=[500.0, 900.0], chunks=6)
     export.write(lazy, tmp_path / "lazy.nc")
     with xr.open_dataset(tmp_path / "lazy.nc") as back:
-        np.testing.assert_array_equal(back.absorption_coefficient, eager.absorption_coefficient)
+        np.testing.assert_array_equal(back.absorption, eager.absorption)
     assert cf_problems(tmp_path / "lazy.nc") == []

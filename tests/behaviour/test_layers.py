@@ -13,7 +13,7 @@ PACKAGE = Path(matprops.__file__).resolve().parent
 
 # lowest first; a module may import its own layer or any layer below it
 LAYERS = [
-    ("errors", "_version"),
+    ("errors", "_version", "vocabulary"),
     ("kernels",),
     ("units",),
     ("catalogue",),

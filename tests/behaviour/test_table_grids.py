@@ -15,7 +15,7 @@ import pytest
 
 import matprops
 from matprops.material import tables
-from matprops.material.tables import QUANTITIES, Tabulated, available
+from matprops.material.tables import QUANTITIES, available
 
 
 def test_table_values_equal_single_calls(si):
@@ -43,7 +43,7 @@ def test_table_values_equal_single_calls(si):
         assert data.density.values[i] == si.density(t).m_as("g/cm^3")
         for j, lam in enumerate(data.wavelength.values):
             expected = si.absorption(lam, t).m_as("1/cm")
-            assert data.absorption_coefficient.values[i, j] == pytest.approx(expected, rel=1e-14)
+            assert data.absorption.values[i, j] == pytest.approx(expected, rel=1e-14)
         for k, plane in enumerate(["100", "111"]):
             assert data.surface_atom_density.values[k, i] == pytest.approx(
                 si.surface_atom_density(plane, t).m_as("cm^-2"), rel=1e-14
@@ -59,7 +59,7 @@ def test_free_carrier_absorption_and_permittivity_are_tabulable(si):
         n=[1e15, 1e16],
         p=[0.0, 1e16],
     )
-    assert data.free_carrier_absorption_coefficient.dims == (
+    assert data.free_carrier_absorption.dims == (
         "electron_density",
         "hole_density",
         "wavelength",
@@ -67,12 +67,12 @@ def test_free_carrier_absorption_and_permittivity_are_tabulable(si):
     for a, n in enumerate([1e15, 1e16]):
         for b, p in enumerate([0.0, 1e16]):
             for c, lam in enumerate([1300.0, 1550.0]):
-                assert data.free_carrier_absorption_coefficient.values[a, b, c] == pytest.approx(
+                assert data.free_carrier_absorption.values[a, b, c] == pytest.approx(
                     si.free_carrier_absorption(lam, n=n, p=p).m_as("1/cm"), rel=1e-14
                 )
-    assert data.relative_permittivity.dims == ()
-    assert data.relative_permittivity.item() == si.permittivity().m_as("")
-    assert data.relative_permittivity.attrs["units"] == "1"
+    assert data.permittivity.dims == ()
+    assert data.permittivity.item() == si.permittivity().m_as("")
+    assert data.permittivity.attrs["units"] == "1"
     assert data.molar_mass.attrs["units"] == "g mol^-1"
 
 
@@ -116,7 +116,7 @@ def test_dimensions_are_the_axes_given(si):
     assert dict(data.sizes) == {"wavelength": 2}
     assert data.temperature.dims == () and float(data.temperature) == 300.0
     assert data.band_gap.dims == ()
-    assert data.absorption_coefficient.dims == ("wavelength",)
+    assert data.absorption.dims == ("wavelength",)
     data = si.table(["band_gap", "gap_narrowing"], T=[300.0, 350.0], Na=[1e15, 1e16])
     assert list(data.dims) == ["temperature", "acceptor_density"]  # the order of AXES
     assert data.band_gap.dims == ("temperature",)  # depends on temperature only
@@ -138,15 +138,19 @@ def test_axes_that_do_not_apply_are_refused_or_dropped(si):
 
 def test_default_selection_follows_the_axes(si):
     names = {v.attrs["quantity"] for v in si.table(T=[300.0]).data_vars.values()}
-    assert names == {
-        "band_gap",
-        "intrinsic_density",
-        "densities_of_states",
-        "lattice_constant",
-        "density",
-        "atomic_density",
-        "radiative_coefficient",
+    # the rule: every quantity of the release that depends on temperature, needs no
+    # other axis and wants none (read from the registry, so a new one is included)
+    expected = {
+        name
+        for name in available(si)
+        if "temperature" in QUANTITIES[name].takes
+        and set(QUANTITIES[name].required) <= {"temperature"}
+        and not QUANTITIES[name].wants
+        and QUANTITIES[name].by_default
     }
+    assert names == expected
+    assert {"band_gap", "intrinsic_density", "density", "radiative_coefficient"} <= names
+    assert not {"mobility", "gap_narrowing", "absorption", "molar_mass"} & names
     with_light = {
         v.attrs["quantity"] for v in si.table(T=[300.0], wavelength=[800.0]).data_vars.values()
     }
@@ -155,7 +159,7 @@ def test_default_selection_follows_the_axes(si):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         with_carriers = si.table(wavelength=[1300.0], n=[1e17])
-    assert "free_carrier_absorption_coefficient" in with_carriers
+    assert "free_carrier_absorption" in with_carriers
 
 
 @pytest.mark.parametrize(
@@ -199,7 +203,7 @@ def test_large_grids_are_evaluated_in_blocks(si, monkeypatch):
         wavelength=lam,
         progress=lambda done, total: calls.append((done, total)),
     )
-    np.testing.assert_array_equal(blocked.absorption_coefficient, whole.absorption_coefficient)
+    np.testing.assert_array_equal(blocked.absorption, whole.absorption)
     np.testing.assert_array_equal(blocked.band_gap, whole.band_gap)
     assert len(calls) > 10 and calls[-1] == (2040, 2040)
     assert [d for d, _ in calls] == sorted(d for d, _ in calls)
@@ -222,16 +226,16 @@ def test_lazy_table_matches_eager(si):
         wavelength=lam,
         chunks={"T": 7, "wavelength": 8},
     )
-    assert lazy.absorption_coefficient.chunks == ((7, 7, 7, 7, 2), (8, 8, 4))
+    assert lazy.absorption.chunks == ((7, 7, 7, 7, 2), (8, 8, 4))
     computed = lazy.compute(scheduler="synchronous")
     for name in eager.data_vars:
         np.testing.assert_array_equal(computed[name], eager[name])
         assert str(computed[name].attrs) == str(eager[name].attrs)  # flag_values: arrays
     # dask keys are deterministic, and differ when the chunks differ
     again = si.table(["absorption"], T=t, wavelength=lam, chunks={"T": 7, "wavelength": 8})
-    assert again.absorption_coefficient.data.name == lazy.absorption_coefficient.data.name
+    assert again.absorption.data.name == lazy.absorption.data.name
     other = si.table(["absorption"], T=t, wavelength=lam, chunks=7)
-    assert other.absorption_coefficient.data.name != lazy.absorption_coefficient.data.name
+    assert other.absorption.data.name != lazy.absorption.data.name
     # blocks larger than the evaluation block are evaluated in pieces, same numbers
     big = si.table(
         ["absorption"],
@@ -240,12 +244,12 @@ def test_lazy_table_matches_eager(si):
         chunks=600,
     )
     np.testing.assert_array_equal(
-        big.absorption_coefficient.compute(scheduler="synchronous"),
+        big.absorption.compute(scheduler="synchronous"),
         si.table(
             ["absorption"],
             T=np.linspace(250.0, 400.0, 600),
             wavelength=np.linspace(400.0, 1100.0, 500),
-        ).absorption_coefficient,
+        ).absorption,
     )
     with pytest.warns(matprops.ValidityWarning, match="200-1100 nm"):  # warned at build time
         si.table(["absorption"], T=t, wavelength=np.linspace(200.0, 1100.0, 10), chunks=5)
@@ -275,10 +279,8 @@ def test_lazy_table_on_a_two_worker_cluster(si):
         # (here each value and its validity flags): "lost dependencies", measured with
         # plain dask arrays too
         computed = lazy.compute()
-    np.testing.assert_array_equal(computed.absorption_coefficient, eager.absorption_coefficient)
-    np.testing.assert_array_equal(
-        computed.absorption_coefficient_validity, eager.absorption_coefficient_validity
-    )
+    np.testing.assert_array_equal(computed.absorption, eager.absorption)
+    np.testing.assert_array_equal(computed.absorption_validity, eager.absorption_validity)
     np.testing.assert_array_equal(computed.intrinsic_density, eager.intrinsic_density)
 
 
@@ -388,19 +390,15 @@ def _fake_narrowing(self, T, Na=0, Nd=0):
 
 
 @pytest.fixture
-def plugged(monkeypatch):
-    """A doping quantity added the way the new ones will be: one registry entry."""
-    monkeypatch.setattr(matprops.Silicon, "gap_narrowing", _fake_narrowing, raising=False)
-    monkeypatch.setitem(
-        QUANTITIES,
+def plugged(plug_quantity):
+    """A doping quantity added the way the new ones are: one declaration."""
+    plug_quantity(
+        _fake_narrowing,
         "gap_narrowing",
-        Tabulated(
-            "gap_narrowing",
-            {"temperature": 0, "acceptor_density": "Na", "donor_density": "Nd"},
-            (("gap_narrowing", "band-gap narrowing (test stand-in)"),),
-            wants=("acceptor_density", "donor_density"),
-            needs=("band_gap",),
-        ),
+        units="eV",
+        long_name="band-gap narrowing (test stand-in)",
+        wants=("acceptor_density", "donor_density"),
+        models=("band_gap",),
     )
     return matprops.silicon()
 
@@ -419,31 +417,27 @@ def test_a_registry_entry_is_all_a_new_quantity_needs(plugged):
     }
 
 
-def test_methods_returning_a_result_object(monkeypatch):
-    """A method that answers with several named fields (like the coming equilibrium
-    result) is tabulated field by field."""
+def test_methods_returning_a_result_object(plug_quantity):
+    """A method that answers with several named fields (like the equilibrium result)
+    is tabulated field by field."""
     from dataclasses import dataclass
+
+    from matprops.material.registry import Part
 
     @dataclass(frozen=True)
     class Pair:
         gap: object
         states: object
 
-    def pair(self, T):
+    def pair_probe(self, T):
         nc, _ = self.densities_of_states(T)
         return Pair(self.band_gap(T), nc)
 
-    monkeypatch.setattr(matprops.Silicon, "pair_probe", pair, raising=False)
-    monkeypatch.setitem(
-        QUANTITIES,
-        "pair_probe",
-        Tabulated(
-            "pair_probe",
-            {"temperature": 0},
-            (("gap", "gap"), ("states", "states")),
-            needs=("band_gap", "densities_of_states"),
-            fields=("gap", "states"),
-        ),
+    plug_quantity(
+        pair_probe,
+        units=("eV", "cm^-3"),
+        parts=(Part("gap", "gap", "gap"), Part("states", "states", "states")),
+        models=("band_gap", "densities_of_states"),
     )
     si = matprops.silicon()
     data = si.table(["pair_probe"], T=[250.0, 300.0])

@@ -30,6 +30,30 @@ def test_thermal_expansion_near_room_temperature(si):
     assert alpha == pytest.approx(2.6e-6, rel=0.05)
 
 
+@pytest.mark.model("thermal_expansion/okada-1984")
+def test_thermal_expansion_coefficient_near_room_temperature():
+    # the linear expansion coefficient of silicon, 2.6e-6 /K at room temperature:
+    # common practice (the handbook figure, two significant digits)
+    si = matprops.silicon(release="2026.2")
+    alpha = si.thermal_expansion(matprops.Q_([20, 25, 27], "degC")).m_as("1/K")
+    np.testing.assert_allclose(alpha, 2.6e-6, rtol=0.05)
+
+
+@pytest.mark.model("thermal_expansion/okada-1984")
+def test_thermal_expansion_rises_towards_a_plateau():
+    # a crystal's expansion coefficient grows with temperature and levels off well
+    # above the Debye temperature (645 K for silicon): common practice; silicon's
+    # is near 4e-6 /K at 1000 K and below 5e-6 /K at 1500 K (from memory)
+    si = matprops.silicon(release="2026.2")
+    t = np.array([150.0, 300.0, 600.0, 1000.0, 1500.0])
+    alpha = si.thermal_expansion(t).m_as("1/K")
+    assert np.all(np.diff(alpha) > 0)
+    steps = np.diff(alpha) / np.diff(t)
+    assert steps[-1] < steps[0] / 5
+    assert alpha[3] == pytest.approx(4e-6, rel=0.1)
+    assert alpha[4] < 5e-6
+
+
 def test_density_against_the_handbook_value(si):
     # 2.329 g/cm^3 at room temperature: common practice, printed to four significant
     # figures, so the model must round to it (half a unit of the last figure)

@@ -46,7 +46,10 @@ def ambipolar_coefficient(si, excess):
 # ----------------------------------------------------------------- radiative
 
 
-def test_radiative_coefficient_of_intrinsic_silicon_at_300K(si):
+def test_radiative_coefficient_of_intrinsic_silicon_at_300K():
+    # the constant model of 2026.1 (2026.2's default is tested in
+    # test_recombination_temperature.py)
+    si = matprops.silicon(models={"radiative_coefficient": "trupke-2003"})
     # from memory (recalled with high confidence, not checked): Trupke et al. 2003,
     # J. Appl. Phys. 94, 4930, give B = 4.73e-15 cm^3/s for intrinsic silicon at 300 K;
     # printed to three digits
@@ -56,7 +59,8 @@ def test_radiative_coefficient_of_intrinsic_silicon_at_300K(si):
     assert "recalled, not checked" in record["coefficients"]["coefficient"]["obtained"]
 
 
-def test_radiative_coefficient_warns_below_room_temperature(si):
+def test_radiative_coefficient_warns_below_room_temperature():
+    si = matprops.silicon(models={"radiative_coefficient": "trupke-2003"})  # 2026.1's
     # Trupke et al. 2003, abstract (read): B of intrinsic silicon decreases as the
     # temperature rises over 77-300 K, so a constant 300 K value is wrong below room
     # temperature and must say so; Nguyen et al. 2014, abstract (read): near-constant at
@@ -183,8 +187,9 @@ def test_auger_dominates_heavily_doped_silicon(si):
 # ----------------------------------------------------------------- validity and composition
 
 
-def test_richter_is_a_300K_model(si):
+def test_richter_is_a_300K_model():
     # Richter et al. 2012 (Energy Procedia abstract, read): a parameterisation at 300 K
+    si = matprops.silicon(models={"intrinsic_lifetime": "richter-2012"})
     with pytest.warns(
         matprops.ValidityWarning,
         match="intrinsic_lifetime/richter-2012: "
@@ -192,7 +197,9 @@ def test_richter_is_a_300K_model(si):
     ):
         si.intrinsic_lifetime(350, Nd=1e16)
     with pytest.raises(matprops.ValidityError):
-        matprops.silicon(strict=True).intrinsic_lifetime(350, Nd=1e16)
+        matprops.silicon(
+            strict=True, models={"intrinsic_lifetime": "richter-2012"}
+        ).intrinsic_lifetime(350, Nd=1e16)
     with warnings.catch_warnings():
         warnings.simplefilter("error")
         si.intrinsic_lifetime(Q_(25, "degC"), Nd=1e16, excess=1e15)

@@ -563,7 +563,7 @@ def test_transport_tables_equal_single_calls(si):
                 assert data.mobility.values[i, j, k] == pytest.approx(
                     si.mobility(carrier, t, Nd=nd).m, rel=1e-12
                 )
-    assert data.electrical_resistivity.dims == ("temperature", "donor_density")
+    assert data.resistivity.dims == ("temperature", "donor_density")
     inverse = si.table(
         ["doping_from_resistivity", "standard_dopant_density"],
         rho=[0.1, 10.0],
