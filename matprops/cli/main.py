@@ -346,7 +346,7 @@ def _cmd_compare(args):
     models = [m.strip() for m in args.models.split(",")] if args.models else None
     progress = _Progress()
     try:
-        data = si.compare(args.quantity, models, progress=progress, **_grid(args))
+        data = _compare_marked(si, args.quantity, models, progress=progress, **_grid(args))
     finally:
         progress.close()
     footer = "\n".join(
@@ -365,6 +365,21 @@ def _cmd_compare(args):
     print(footer)
 
 
+def _compare_marked(si, quantity, models, **grid):
+    """A comparison whose models' validity warnings become its marks: each value
+    outside its model's range is starred on screen and dashed in a plot (the
+    <name>_validity flags), so the screen does not also repeat them as warnings."""
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        data = si.compare(quantity, models, **grid)
+    for warning in caught:
+        if not issubclass(warning.category, ValidityWarning):
+            warnings.warn_explicit(
+                warning.message, warning.category, warning.filename, warning.lineno
+            )
+    return data
+
+
 def _cmd_plot(args):
     from ..outputs.plotting import plot
 
@@ -379,7 +394,7 @@ def _cmd_plot(args):
         models = [m.strip() for m in args.models.split(",")]
         if models == ["all"]:
             models = None
-        data = si.compare(args.quantities[0], models, **grid)
+        data = _compare_marked(si, args.quantities[0], models, **grid)
     else:
         data = si.table(args.quantities, **grid)
     plot(data, args.output, x=args.x, format=args.format, overwrite=args.force)
