@@ -1,9 +1,11 @@
 """Build the documentation site: generate the catalogue's pages, then run Sphinx.
 
-    python docs/build.py            # -> docs/_build/html (index.html)
+    python docs/build.py            # -> build/docs/html (index.html)
 
-Generated into docs/generated/ (not kept in git), from the data files, the quantity
-registry and the command's own parser:
+The Sphinx source is assembled in build/docs/source (the hand-written pages of docs/,
+then the generated ones), so docs/ holds only what is kept in git. Generated into
+build/docs/source/generated/, from the data files, the quantity registry and the
+command's own parser:
 
 - quantities/<quantity>.md: what it is, its units and table axes, the release's
   model or the formula of a derived quantity, every model with its equation, source,
@@ -28,7 +30,11 @@ import warnings
 from pathlib import Path
 
 DOCS = Path(__file__).resolve().parent
-OUT = DOCS / "generated"
+BUILD = DOCS.parent / "build" / "docs"
+SOURCE = BUILD / "source"
+OUT = SOURCE / "generated"
+# the hand-written pages and the configuration, copied into the source folder
+KEPT = ("conf.py", "index.md", "models.md", "simulation.md", "guides", "_static")
 
 
 def _md(text) -> str:
@@ -284,8 +290,14 @@ def generate() -> None:
     from matprops.material.registry import REGISTRY
     from matprops.material.tables import available
 
-    if OUT.exists():
-        shutil.rmtree(OUT)
+    if SOURCE.exists():
+        shutil.rmtree(SOURCE)
+    SOURCE.mkdir(parents=True)
+    for name in KEPT:
+        if (DOCS / name).is_dir():
+            shutil.copytree(DOCS / name, SOURCE / name)
+        else:
+            shutil.copy2(DOCS / name, SOURCE / name)
     (OUT / "quantities").mkdir(parents=True)
     (OUT / "releases").mkdir(parents=True)
     si = matprops.silicon()
@@ -336,7 +348,7 @@ def generate() -> None:
 
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--out", default=str(DOCS / "_build" / "html"))
+    parser.add_argument("--out", default=str(BUILD / "html"))
     parser.add_argument("--generate-only", action="store_true")
     args = parser.parse_args(argv)
     generate()
@@ -352,7 +364,7 @@ def main(argv=None) -> int:
             "-q",
             "-b",
             "html",
-            str(DOCS),
+            str(SOURCE),
             args.out,
         ]
     )

@@ -1,6 +1,6 @@
 """Check the built documentation site in a real headless browser (Debian's chromium).
 
-    python docs/check_site.py [docs/_build/html] [--screenshots DIR]
+    python docs/check_site.py [build/docs/html] [--screenshots DIR]
 
 Serves the site on 127.0.0.1 (a port of its own), drives /usr/bin/chromium through
 /usr/bin/chromedriver (Selenium) and checks that
@@ -178,8 +178,10 @@ def check(root: Path, shots: Path) -> list[str]:
 
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description="check the built site in headless chromium")
-    parser.add_argument("site", nargs="?", default=str(DOCS / "_build" / "html"))
-    parser.add_argument("--screenshots", default=str(DOCS / "_build" / "screenshots"))
+    parser.add_argument("site", nargs="?", default=str(DOCS.parent / "build" / "docs" / "html"))
+    parser.add_argument(
+        "--screenshots", default=str(DOCS.parent / "build" / "docs" / "screenshots")
+    )
     args = parser.parse_args(argv)
     root = Path(args.site)
     if not (root / "index.html").is_file():

@@ -1,8 +1,8 @@
 """Sphinx configuration of the matprops documentation site.
 
-Built by ``python docs/build.py`` (see the README's "Documentation"), which first
-generates the pages drawn from the catalogue (one per quantity and per release, the
-command-line reference) into ``docs/generated/``.
+Built by ``python docs/build.py`` (see the README's "Documentation"), which copies the
+hand-written pages into ``build/docs/source`` beside the pages it generates from the
+catalogue (one per quantity and per release, the command-line reference).
 """
 
 import matprops
@@ -17,7 +17,7 @@ myst_enable_extensions = ["colon_fence", "deflist", "dollarmath"]
 myst_heading_anchors = 3
 source_suffix = {".md": "markdown"}
 root_doc = "index"
-exclude_patterns = ["_build", "README*", "*.py"]
+exclude_patterns = ["README*", "*.py"]
 suppress_warnings = ["myst.header"]
 
 html_theme = "pydata_sphinx_theme"
