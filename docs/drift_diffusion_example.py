@@ -15,7 +15,10 @@ a simulation code does:
   partial derivatives with respect to n and p enter the Newton step of Poisson's
   equation;
 - Klaassen's mobilities of electrons and holes, which depend on the dopant and the
-  carrier densities;
+  carrier densities, fed the kinds of density the kernel asks for
+  (``kernel.input_kinds``: total or ionised dopants, free carriers or the carriers of
+  complete ionisation; from release 2026.2 the total dopant densities and the carriers
+  of complete ionisation, which is what this solver has: it ionises every dopant);
 - the radiative recombination coefficient;
 
 and validates the mesh once, up front, with ``kernel.check``.
@@ -75,6 +78,16 @@ class Diode:
         self.ni_eff = si.kernel("effective_intrinsic_density")
         self.mobility = {c: si.kernel("mobility", carrier=c) for c in ("electron", "hole")}
         self.radiative = si.kernel("radiative_coefficient")
+        # feed the mobility the dopant densities it asks for: this solver ionises every
+        # dopant (Poisson with Nd - Na), so its own n, p are the carriers of complete
+        # ionisation and the total densities serve a model fitted with them; a model
+        # that asks for ionised densities gets those of equilibrium, solved once
+        kinds = self.mobility["electron"].input_kinds
+        if kinds["donor_density"] == "ionised" or kinds["acceptor_density"] == "ionised":
+            state = si.kernel("equilibrium")(self.t, self.nd, self.na)
+            self.scatterers = (state["ionised_donors"], state["ionised_acceptors"])
+        else:
+            self.scatterers = (self.nd, self.na)
         # the mesh, validated once, with every carrier density from 1e2 cm^-3 to the
         # largest dopant density; the warnings list what lies outside a model's range
         span = np.array([[1e2], [SURFACE_DONORS]])
@@ -91,9 +104,10 @@ class Diode:
         return value, partials["electron_density"] / value, partials["hole_density"] / value
 
     def mobilities(self, n, p):
+        nd, na = self.scatterers
         return (
-            self.mobility["electron"](self.t, self.nd, self.na, n, p),
-            self.mobility["hole"](self.t, self.nd, self.na, n, p),
+            self.mobility["electron"](self.t, nd, na, n, p),
+            self.mobility["hole"](self.t, nd, na, n, p),
         )
 
     def recombination(self, n, p, nie):

@@ -180,6 +180,42 @@ class ValidityWarning(UserWarning):
     """
 
 
+class Unusable:
+    """Stands for an object that could not be rebuilt in this process: a material, a
+    model, a kernel or a release unpickled where the data differ from those it was
+    pickled with (or cannot be read). Every use raises the error that prevented it.
+
+    An exception raised *while unpickling* never reaches the sender: a process pool's
+    worker dies with the task (the pool waits for it forever) and a dask client hangs.
+    So unpickling never raises; the error waits for the first use, an ordinary call
+    whose exception a pool or a dask worker sends back to the client. Methods of the
+    object stood for are returned as functions that raise (``getattr(material,
+    "band_gap")`` is how a bound method unpickles); other attributes raise at once.
+    """
+
+    def __init__(self, error: BaseException, stands_for: type):
+        self.error, self.stands_for = error, stands_for
+
+    def _raise(self, *args, **kwargs):
+        raise self.error.with_traceback(None)
+
+    def __call__(self, *args, **kwargs):
+        self._raise()
+
+    def __getattr__(self, name):
+        if name.startswith("__") or name in ("error", "stands_for"):
+            raise AttributeError(name)
+        if callable(getattr(self.stands_for, name, None)):
+            return self._raise
+        self._raise()
+
+    def __reduce__(self):
+        return Unusable, (self.error, self.stands_for)
+
+    def __repr__(self) -> str:
+        return f"<unusable {self.stands_for.__name__}: {self.error}>"
+
+
 _PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))
 
 

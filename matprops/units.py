@@ -13,11 +13,15 @@ the mask out again. Evaluate ``a.compressed()`` (or ``a.filled(v)`` with a value
 your choice) and put the mask back with ``numpy.ma.masked_array(result, a.mask)``.
 Booleans and complex numbers are refused too (numpy would read True as 1 and drop
 an imaginary part), and so is a temperature difference (``delta_degC``) where an
-absolute temperature belongs.
+absolute temperature belongs. Dates and durations (numpy ``datetime64`` and
+``timedelta64``, Python ``datetime``, ``date``, ``time`` and ``timedelta``) are refused
+everywhere: numpy would read 300 s as the number 300. A Python integer too large for a
+float (>= 1.8e308) is an InputError, not an OverflowError.
 """
 
 from __future__ import annotations
 
+import datetime
 import math
 import re
 from functools import cache
@@ -32,6 +36,7 @@ __all__ = [
     "Q_",
     "check_broadcast",
     "coerce",
+    "kernel_input",
     "name",
     "names",
     "normalise_units",
@@ -186,7 +191,10 @@ def coerce(
             argument, NEEDS_UNIT[argument], f"{_brief(value)} (a bare number: which unit?)"
         )
     if type(value) in _PLAIN_SCALARS:  # the scalar fast path: a plain number
-        number = float(value)
+        try:
+            number = float(value)
+        except OverflowError:  # a Python int beyond float's 1.8e308
+            raise InputError(argument, f"finite numbers in {units}", _huge(value)) from None
         if not math.isfinite(number):
             raise InputError(argument, f"finite numbers in {units}", repr(value))
         if requirement == "positive" and number <= 0:
@@ -202,52 +210,89 @@ def coerce(
     elif isinstance(value, (list, tuple)) and any(isinstance(v, pint.Quantity) for v in value):
         value = _from_sequence(value, argument, units)
     if isinstance(value, pint.Quantity):
-        _real_array(value.magnitude, argument, units)
-        if target == unit("K") and "delta_" in str(value.units):
-            raise UnitError(
-                argument,
-                "K, degC or degF (an absolute temperature)",
-                value,
-                plain="K",
-                description=f"{value} (a temperature difference)",
-            )
-        spectral = argument in SPECTRAL and value.dimensionality != target.dimensionality
-        if spectral and np.any(np.asarray(value.magnitude) <= 0):
-            raise InputError(
-                argument,
-                f"> 0 {units} (or a positive energy, frequency or wavenumber)",
-                _describe(value),
-            )
-        try:
-            if spectral:
-                magnitude = np.asarray(value.to(target, "sp").magnitude, dtype=float)
-            else:
-                magnitude = np.asarray(value.m_as(target), dtype=float)
-        except pint.DimensionalityError as exc:
-            accepted = (
-                f"{units} or as a photon energy, frequency or wavenumber"
-                if argument in SPECTRAL
-                else units
-            )
-            raise UnitError(
-                argument, accepted, f"{value} ({value.dimensionality})", plain=units
-            ) from exc
-        except (pint.PintError, ValueError, TypeError) as exc:
-            # e.g. a quantity from another UnitRegistry: say so, with pint's reason
-            raise UnitError(
-                argument,
-                f"{units} (a quantity of matprops.ureg, pint's application registry)",
-                f"{value!r}: {exc}",
-                plain=units,
-            ) from exc
+        magnitude = _magnitude_in(value, argument, units, target)
     else:
         array = _real_array(value, argument, units)
         try:
             magnitude = np.asarray(array, dtype=float)
+        except OverflowError:
+            raise InputError(argument, f"finite numbers in {units}", _huge(value)) from None
         except (TypeError, ValueError) as exc:
             raise UnitError(argument, units, value) from exc
     low, high = check_values(magnitude, argument, units, requirement)
     return magnitude, low, high
+
+
+def kernel_input(value, argument: str, units: str):
+    """An input of a bound kernel: a pint quantity converted to ``units`` (the kernel's
+    internal unit; offset temperatures to kelvin, photon energies to wavelengths),
+    dates and durations refused (UnitError), anything else returned unchanged (the
+    kernel checks nothing per call; ``kernel.check`` validates a mesh)."""
+    if isinstance(value, pint.Quantity):
+        return _magnitude_in(value, argument, units, unit(units))
+    if isinstance(value, (np.ndarray, np.generic)):
+        if value.dtype.kind in "mM":
+            _real_array(value, argument, units)  # raises, naming the kind
+        return value
+    if isinstance(value, (list, tuple, *_DATES)):
+        _real_array(value, argument, units)  # refuses dates, durations, quantities mixed in
+        if isinstance(value, (list, tuple)) and any(isinstance(v, pint.Quantity) for v in value):
+            return _magnitude_in(
+                _from_sequence(value, argument, units), argument, units, unit(units)
+            )
+    return value
+
+
+def _huge(value) -> str:
+    """A description of an integer too large for a float (without printing its digits)."""
+    if isinstance(value, int):
+        return f"an integer of about 1e{int(value.bit_length() * math.log10(2))} (beyond a float)"
+    return f"a {type(value).__name__} holding an integer beyond a float's range (1.8e308)"
+
+
+def _magnitude_in(value, argument: str, units: str, target) -> np.ndarray:
+    """A quantity's magnitude as a float array in ``target`` (no value checks)."""
+    _real_array(value.magnitude, argument, units)
+    if target == unit("K") and "delta_" in str(value.units):
+        raise UnitError(
+            argument,
+            "K, degC or degF (an absolute temperature)",
+            value,
+            plain="K",
+            description=f"{value} (a temperature difference)",
+        )
+    spectral = argument in SPECTRAL and value.dimensionality != target.dimensionality
+    if spectral and np.any(np.asarray(value.magnitude) <= 0):
+        raise InputError(
+            argument,
+            f"> 0 {units} (or a positive energy, frequency or wavenumber)",
+            _describe(value),
+        )
+    try:
+        if spectral:
+            magnitude = np.asarray(value.to(target, "sp").magnitude, dtype=float)
+        else:
+            magnitude = np.asarray(value.m_as(target), dtype=float)
+    except pint.DimensionalityError as exc:
+        accepted = (
+            f"{units} or as a photon energy, frequency or wavenumber"
+            if argument in SPECTRAL
+            else units
+        )
+        raise UnitError(
+            argument, accepted, f"{value} ({value.dimensionality})", plain=units
+        ) from exc
+    except OverflowError:
+        raise InputError(argument, f"finite numbers in {units}", _huge(value.magnitude)) from None
+    except (pint.PintError, ValueError, TypeError) as exc:
+        # e.g. a quantity from another UnitRegistry: say so, with pint's reason
+        raise UnitError(
+            argument,
+            f"{units} (a quantity of matprops.ureg, pint's application registry)",
+            f"{value!r}: {exc}",
+            plain=units,
+        ) from exc
+    return magnitude
 
 
 def _real_array(value, argument: str, units: str) -> np.ndarray:
@@ -275,9 +320,26 @@ def _real_array(value, argument: str, units: str) -> np.ndarray:
             value,
             description=f"a complex {_brief(value)} (only real numbers are accepted)",
         )
+    if array.dtype.kind in "mM" or (
+        array.dtype.kind == "O" and any(isinstance(v, _DATES) for v in array.flat)
+    ):
+        what = {
+            "M": "a date (numpy datetime64)",
+            "m": "a duration (numpy timedelta64)",
+        }.get(array.dtype.kind, "a date or a duration (Python datetime)")
+        raise UnitError(
+            argument,
+            units,
+            value,
+            description=f"{what}: {_brief(value)}; dates and durations are not numbers "
+            f"in {units} (numpy would read 300 s as 300)",
+        )
     if array.dtype.kind == "O" and any(v is None for v in array.flat):
         raise UnitError(argument, units, value)  # not "received array(nan)"
     return array
+
+
+_DATES = (datetime.date, datetime.time, datetime.timedelta)  # (datetime is a date)
 
 
 def _from_sequence(values, argument: str, units: str):

@@ -28,6 +28,38 @@ def datasets_copy(tmp_path):
     return root, Catalog(root)
 
 
+DRAFT = "2030.1"  # a draft release made in a datasets copy (no shipped release has this id)
+
+
+@pytest.fixture(scope="session")
+def _datasets_with_draft_template(tmp_path_factory):
+    """A datasets copy with a draft release DRAFT pinning the newest release's models
+    and its reference evaluated, made once per test session."""
+    from matprops.outputs.reference import regenerate
+
+    root = tmp_path_factory.mktemp("draft") / "datasets"
+    shutil.copytree(datasets_root(), root, ignore=shutil.ignore_patterns("__pycache__", "*.py"))
+    catalog = Catalog(root)
+    newest = catalog.newest_release_id()
+    text = (root / f"releases/{newest}.toml").read_text()
+    text = text.replace(f'release = "{newest}"', f'release = "{DRAFT}"')
+    text = text.replace('status = "final"', 'status = "draft"')
+    (root / f"releases/{DRAFT}.toml").write_text(text)
+    (root / f"releases/{DRAFT}.reference.json").write_text("{}")
+    catalog.write_checksums()
+    regenerate(DRAFT, catalog)
+    return root
+
+
+@pytest.fixture
+def datasets_with_draft(tmp_path, _datasets_with_draft_template):
+    """A private copy of datasets/ holding a draft release (so the tests of drafts run
+    even when every shipped release is final): (root, Catalog, draft id)."""
+    root = tmp_path / "datasets"
+    shutil.copytree(_datasets_with_draft_template, root)
+    return root, Catalog(root), DRAFT
+
+
 @pytest.fixture(scope="session")
 def spawn_pool():
     """Two worker processes started with 'spawn' (as on Windows and macOS): nothing is

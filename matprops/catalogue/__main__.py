@@ -11,6 +11,7 @@ from pathlib import Path
 
 from ..errors import Error
 from .checks import check
+from .files import interruptible
 from .store import Catalog
 
 
@@ -33,7 +34,8 @@ def main(argv=None) -> int:
     try:
         catalog = Catalog(args.root)
         if args.update_checksums:
-            print(f"wrote {catalog.write_checksums()}")
+            with interruptible("python -m matprops.catalogue"):  # no temporary left behind
+                print(f"wrote {catalog.write_checksums()}")
     except Error as exc:  # e.g. a read-only install, MATPROPS_DATASETS pointing nowhere
         print(f"error: {exc}", file=sys.stderr)
         return 2

@@ -61,12 +61,15 @@ __all__ = [
     "CONVENTION_NAMES",
     "REFERENCES",
     "REQUIRED",
+    "SPECIES",
     "UNKNOWN",
     "WORDS",
     "Convention",
     "FitConventions",
+    "StandIn",
     "legacy_conventions",
     "parse_fit_conventions",
+    "parse_stand_ins",
 ]
 
 UNKNOWN = ("not stated", "not known")
@@ -109,6 +112,65 @@ REQUIRED = {
     "free_carrier_absorption": ("carrier_densities",),
     "high_field_mobility": ("saturation_velocity",),
 }
+
+
+# Dopant species of silicon (the material layer classifies them as donors and acceptors).
+SPECIES = ("phosphorus", "arsenic", "antimony", "boron", "aluminium", "gallium", "indium")
+
+
+@dataclass(frozen=True)
+class StandIn:
+    """What serves a dopant species a model has no coefficient set for: another
+    species' set of the same model (``variant``) or another model of the same quantity
+    that has the species (``model``), and why (``obtained``)."""
+
+    species: str
+    variant: str | None
+    model: str | None
+    obtained: str
+
+    def describe(self) -> str:
+        what = f"the {self.variant} set" if self.variant else f"model {self.model}"
+        return f"{self.species}: {what} ({' '.join(self.obtained.split())})"
+
+    def as_dict(self) -> dict:
+        record = {"variant": self.variant} if self.variant else {"model": self.model}
+        record["obtained"] = self.obtained
+        return record
+
+
+def parse_stand_ins(path, quantity: str, raw, variants, variant_axis, catalog) -> dict:
+    """The ``[stand_ins]`` section of a model with one coefficient set per dopant."""
+    if variant_axis != "dopant":
+        raise DatasetError(path, "field 'stand_ins' goes with variant_axis = 'dopant'")
+    found = {}
+    for species, entry in raw.items():
+        where = f"stand_ins.{species}"
+        if species not in SPECIES:
+            raise DatasetError(
+                path, f"{where}: not a dopant species of silicon ({', '.join(SPECIES)})"
+            )
+        if species in variants:
+            raise DatasetError(path, f"{where}: the model has a coefficient set of its own")
+        variant, model = entry.get("variant"), entry.get("model")
+        if (variant is None) == (model is None):
+            raise DatasetError(path, f"{where}: give either 'variant' or 'model'")
+        if variant is not None and variant not in variants:
+            raise DatasetError(
+                path,
+                f"{where}.variant {variant!r} is not a set of this model ({', '.join(variants)})",
+            )
+        if model is not None and model not in catalog.model_ids(quantity):
+            raise DatasetError(
+                path,
+                f"{where}.model {model!r} is not a model of {quantity!r} "
+                f"({', '.join(catalog.model_ids(quantity))})",
+            )
+        obtained = entry.get("obtained", "")
+        if not obtained.strip():
+            raise DatasetError(path, f"{where}.obtained must say why")
+        found[species] = StandIn(species, variant, model, obtained)
+    return found
 
 
 @dataclass(frozen=True)

@@ -28,7 +28,8 @@ import json
 from collections.abc import Mapping
 from typing import Any, Protocol
 
-from ..errors import FinalityError
+from ..errors import DatasetError, FinalityError
+from .files import read_limited
 
 __all__ = ["FINAL_SEALS", "SEAL_VERSION", "is_final", "seal_path", "sealed_files", "verify"]
 
@@ -60,12 +61,12 @@ def sealed_files(catalogue: _Catalogue, release_id: str) -> dict[str, str]:
     the seal itself against :data:`FINAL_SEALS`."""
     path = seal_path(catalogue, release_id)
     try:
-        data = path.read_bytes()
-    except OSError as exc:
+        data = read_limited(path)  # (a regular file, its size checked before reading)
+    except DatasetError as exc:
         raise FinalityError(
             path,
             f"release {release_id} is final (its seal is recorded in matprops), but its "
-            f"seal file cannot be read ({exc.strerror or exc})",
+            f"seal file cannot be read ({exc.problem})",
         ) from exc
     digest = hashlib.sha256(data).hexdigest()
     if digest != FINAL_SEALS[release_id]:

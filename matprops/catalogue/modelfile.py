@@ -11,8 +11,10 @@ dopant densities, ...) are validated here.
 from __future__ import annotations
 
 import functools
+import os
 import re
 import threading
+import weakref
 from collections.abc import Mapping
 from pathlib import Path
 from types import MappingProxyType
@@ -24,7 +26,7 @@ from ..errors import (
 )
 from ..kernels import module_for
 from .conventions import REQUIRED as REQUIRED_CONVENTIONS
-from .conventions import legacy_conventions, parse_fit_conventions
+from .conventions import legacy_conventions, parse_fit_conventions, parse_stand_ins
 from .fields import convert, number_or_list, read_only, require, udunits_to_pint
 from .records import (
     SOURCE_TYPES,
@@ -169,6 +171,12 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
             f"quantities; {data['kernel']!r} requires none",
         )
     extra = _extra_sections(path, quantity, data, catalog, requires)
+    if "stand_ins" in data:  # what serves a dopant species without a set of its own
+        extra["stand_ins"] = MappingProxyType(
+            parse_stand_ins(
+                path, quantity, data["stand_ins"], list(raw_variants or {}), variant_axis, catalog
+            )
+        )
     common = {
         "quantity": quantity,
         "id": model_id,
@@ -670,6 +678,19 @@ def _extra_sections(path, quantity, data, catalog, requires=()) -> dict:
     return found
 
 
+# every table function, so that a forked child can give each a fresh lock: a lock held
+# by another thread at the fork would never be released in the child
+_TABLE_FUNCTIONS: weakref.WeakSet = weakref.WeakSet()
+
+
+def _after_fork_in_child() -> None:
+    for function in list(_TABLE_FUNCTIONS):
+        function._lock = threading.Lock()
+
+
+os.register_at_fork(after_in_child=_after_fork_in_child)
+
+
 class _TableFunction:
     """A table kernel whose arrays are read (and checked) on first call.
 
@@ -683,6 +704,7 @@ class _TableFunction:
         self._table, self._arguments, self._bound = table, table_arguments, bound
         self._function = None
         self._lock = threading.Lock()
+        _TABLE_FUNCTIONS.add(self)
 
     def _load(self):
         with self._lock:  # the first callers wait for one load; later calls take no lock

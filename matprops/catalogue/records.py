@@ -21,8 +21,10 @@ import numpy as np
 
 from ..errors import (
     DatasetError,
+    Error,
     UnknownNameError,
     UnknownVariantError,
+    Unusable,
     ValidityError,
     ValidityWarning,
     warn,
@@ -39,6 +41,10 @@ class CatalogueLike(Protocol):
     def release(self, release_id: str) -> Release: ...
 
     def table(self, name: str) -> Any: ...
+
+    def table_path(self, name: str) -> Path: ...
+
+    def checksums(self) -> dict[str, str]: ...
 
 
 SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi")
@@ -443,8 +449,16 @@ class Model:
         function = functools.partial(self.kernel, **own, **chosen)
         return _replace(self, components=MappingProxyType(chosen), function=function)
 
-    def check(self, argument: str, low: float, high: float, strict: bool = False) -> None:
-        """Warn (or raise, if strict) when [low, high] leaves the validity range."""
+    def check(
+        self, argument: str, low: float, high: float, strict: bool = False, report=None
+    ) -> list[str]:
+        """Warn (or raise, if strict) when [low, high] leaves the validity range.
+
+        ``report``, a callable taking the message, replaces the warning (an application
+        that prints its own messages passes one; no warning filter is touched).
+        Returns the messages (this model's and those of the models it is composed of).
+        """
+        messages = []
         rng = self.validity.get(argument)
         if rng is not None and (low < rng.low or high > rng.high):
             if argument in getattr(self.kernel.spec, "nan_outside", ()):
@@ -468,31 +482,31 @@ class Model:
                     f"; the model {self.fallback!r} covers a wider range "
                     f"(models={{{self.quantity!r}: {self.fallback!r}}})"
                 )
-            if strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            messages.append(report_violation(message, strict, report))
         for component in self.components.values():
-            component.check(argument, low, high, strict)
+            messages += component.check(argument, low, high, strict, report)
+        return messages
 
     def check_regions(
         self,
         values: Mapping[str, Any],
         strict: bool = False,
         ranges: Mapping[str, tuple[float, float]] | None = None,
-    ) -> None:
+        report=None,
+    ) -> list[str]:
         """Warn (or raise) where inputs leave a validity region of several inputs.
 
         ``values`` maps input names to arrays in kernel units (broadcast together);
         ``ranges``, input -> (min, max) where known, spare a pass over the points when
-        the extremes already show every point inside.
+        the extremes already show every point inside. ``report`` as for :meth:`check`;
+        returns the messages.
         """
+        messages = []
         for region in self.regions:
             message = region.violation(values, f"{self.quantity}/{self.id}", ranges)
-            if message is None:
-                continue
-            if strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            if message is not None:
+                messages.append(report_violation(message, strict, report))
+        return messages
 
     # -- provenance
     def provenance(self) -> dict:
@@ -597,7 +611,19 @@ class Model:
             self.sha256,
             dict(self.components),
             self.variant,
+            self._table_digests(),
         )
+
+    def _table_digests(self) -> dict[str, str]:
+        """Table file name -> recorded sha256, for the tables this model reads."""
+        if not self.tables or self.catalogue is None:
+            return {}
+        sums = self.catalogue.checksums()
+        root = self.catalogue.root
+        return {
+            name: sums.get(self.catalogue.table_path(name).relative_to(root).as_posix(), "")
+            for name in self.tables
+        }
 
     def __copy__(self):
         return self  # immutable
@@ -629,17 +655,43 @@ def _rebind_model(
     sha256: str,
     components: Mapping[str, Model],
     variant: str | None = None,
-) -> Model:
-    model = catalog.model(quantity, model_id)
-    if model.sha256 != sha256:
-        raise DatasetError(
-            model.path,
-            f"has sha256 {model.sha256} here but {sha256} where "
-            "the model was pickled: the two processes read different data",
-        )
-    if variant is not None:
-        model = model.select(variant)
-    return model.compose(**components) if components else model
+    tables: Mapping[str, str] | None = None,
+) -> Model | Unusable:
+    """Unpickle a model; never raises (see :class:`matprops.errors.Unusable`): a model
+    whose file or tables differ here, or cannot be read, raises on its first use."""
+    for part in (catalog, *components.values()):
+        if isinstance(part, Unusable):
+            return Unusable(part.error, Model)
+    try:
+        model = catalog.model(quantity, model_id)
+        here = {"model file": (model.path, model.sha256, sha256)}
+        for name, digest in (tables or {}).items():
+            here[name] = (catalog.table_path(name), model._table_digests().get(name), digest)
+        for mine_path, mine, theirs in here.values():
+            if mine != theirs:
+                raise DatasetError(
+                    mine_path,
+                    f"has sha256 {mine or '(none)'} here but {theirs} where the model was "
+                    "pickled: the two processes read different data",
+                )
+        if variant is not None:
+            model = model.select(variant)
+        return model.compose(**components) if components else model
+    except Error as exc:
+        return Unusable(exc, Model)
+
+
+def report_violation(message: str, strict: bool = False, report=None) -> str:
+    """Raise :class:`ValidityError` (strict), hand the message to ``report``, or warn
+    (:class:`ValidityWarning`, attributed to the caller outside matprops); returns the
+    message. Never touches the warning filters."""
+    if strict:
+        raise ValidityError(message)
+    if report is not None:
+        report(message)
+    else:
+        warn(message, ValidityWarning)
+    return message
 
 
 def _span(low, high) -> str:
@@ -663,6 +715,8 @@ class Release:
     models: Mapping[str, str]
     path: Path
     catalogue: CatalogueLike | None = field(default=None, repr=False, compare=False)
+    # defaults of methods' options the release chooses (e.g. doping_from_resistivity)
+    defaults: Mapping[str, str] = field(default_factory=dict)
 
     @property
     def final(self) -> bool:
@@ -682,5 +736,10 @@ class Release:
         return self
 
 
-def _reload_release(catalog: CatalogueLike, release_id: str) -> Release:
-    return catalog.release(release_id)
+def _reload_release(catalog: CatalogueLike, release_id: str) -> Release | Unusable:
+    if isinstance(catalog, Unusable):
+        return Unusable(catalog.error, Release)
+    try:
+        return catalog.release(release_id)
+    except Error as exc:  # (never raise while unpickling: see errors.Unusable)
+        return Unusable(exc, Release)

@@ -49,6 +49,9 @@ KINDS = ("closed-form", "table", "composed")  # of model: see matprops.catalogue
 VARIANT_AXES = ("dopant", "carrier")  # what a model's coefficient sets are per
 # a thermal velocity is the mean speed sqrt(8kT/(pi m)) or the rms speed sqrt(3kT/m)
 THERMAL_VELOCITY_DEFINITIONS = ("mean speed", "root-mean-square speed")
+# a release's default route for doping from resistivity: the physics route everywhere, or
+# the standard's conversion where it holds (its species and temperature) and physics elsewhere
+DOPING_DEFAULTS = ("physics", "standard where it holds")
 # what a source's "+-" is: a standard uncertainty (k = 1), an expanded one (k given), the
 # half-width of bounds (a rectangular distribution, u = a / sqrt(3), GUM 4.3.7), or a
 # "+-" whose meaning the source does not say (taken as a standard uncertainty, said so)
@@ -190,6 +193,12 @@ CONVENTION = {  # one entry of [fit_conventions]: see matprops.catalogue.convent
     "obtained": (TEXT, REQUIRED),  # where it was read, or "not stated in the source"
 }
 
+STAND_IN = {  # [stand_ins.<species>]: a dopant species this model has no set for
+    "variant": (TEXT, OPTIONAL),  # another species' coefficient set of this model, or
+    "model": (TEXT, OPTIONAL),  # another model of the quantity that has the species
+    "obtained": (TEXT, REQUIRED),  # why (where the practice was read)
+}
+
 FIT = {  # [fit] of an intrinsic_lifetime model sealed before [fit_conventions]
     "radiative": (TEXT, REQUIRED),  # which radiative term the model goes with
     "gap_narrowing": (TEXT, REQUIRED),  # a gap_narrowing model id, or "none"/"not known"
@@ -259,6 +268,7 @@ MODEL = {  # datasets/models/<quantity>/<model-id>.toml
     # what the coefficients were fitted with (required for a composed quantity's model
     # in the main tree: matprops.catalogue.conventions.REQUIRED)
     "fit_conventions": (table_of(CONVENTION), OPTIONAL),
+    "stand_ins": (table_of(STAND_IN), OPTIONAL),  # with variant_axis = "dopant"
     # -- the forms of files sealed before [fit_conventions] (archives of final releases)
     "dopant_densities": (one_of("total", "ionised"), OPTIONAL),  # mobility models
     "fit": (FIT, OPTIONAL),  # intrinsic_lifetime models
@@ -309,6 +319,8 @@ RELEASE = {  # datasets/releases/<release-id>.toml
     "date": (DATE, REQUIRED),
     "notes": (TEXT, REQUIRED),
     "models": (table_of(TEXT), REQUIRED),  # quantity = "model-id"
+    # defaults of methods' options that a release chooses (absent: "physics")
+    "defaults": ({"doping_from_resistivity": (one_of(*DOPING_DEFAULTS), OPTIONAL)}, OPTIONAL),
 }
 
 # --------------------------------------------------------------------------- checking

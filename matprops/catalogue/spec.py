@@ -25,8 +25,9 @@ every field. In short::
     noon = "64 degC"
 
 Optional: ``description``, ``invented = true`` (marks made-up data everywhere),
-``release = "2026.2"``, ``conversion = "standard"`` in ``[wafer]`` (the ASTM F723
-conversion at 23 degC instead of the physics at the measuring temperature),
+``release = "2026.2"``, ``conversion = "physics"`` or ``"standard"`` in ``[wafer]``
+(default: the release's choice; from 2026.2 the ASTM F723 conversion where it holds,
+boron and phosphorus at 23 degC, the physics at the measuring temperature elsewhere),
 ``excess = "1e15 cm^-3"`` in ``[wafer]`` or a layer (injection for lifetimes),
 ``[models]`` (``quantity = "model-id"``: override the release's choice), and
 ``units = "degC"`` in ``[operating_points]`` or a site to give plain numbers a unit.
@@ -82,7 +83,7 @@ class Wafer:
     measured_at: float | None = None  # K
     measured_at_text: str = ""
     density: float | None = None  # cm^-3, when given instead of a resistivity
-    conversion: str = "physics"
+    conversion: str | None = None  # None: the release's choice
     excess: float = 0.0  # cm^-3
 
 
@@ -332,8 +333,8 @@ def _wafer(source, data) -> Wafer:
             "or wafer.density must be given (one of them: the resistivity as measured, "
             "with measured_at, or the dopant density)",
         )
-    conversion = data.get("conversion", "physics")
-    if conversion not in CONVERSIONS:
+    conversion = data.get("conversion")
+    if conversion is not None and conversion not in CONVERSIONS:
         raise SpecError(source, "wafer.conversion", f"must be one of {CONVERSIONS}", conversion)
     excess = _value(source, "wafer.excess", data.get("excess", 0.0), "excess_density", "cm^-3")
     if has_density:

@@ -28,11 +28,13 @@ loads them once (thread-safe) and caches what it built.
 
 from __future__ import annotations
 
+import contextlib
 import hashlib
 import os
 import re
 import threading
 import tomllib
+import weakref
 from pathlib import Path
 from types import MappingProxyType
 
@@ -41,13 +43,16 @@ import numpy as np
 from ..errors import (
     ChecksumError,
     DatasetError,
+    Error,
     UnknownModelError,
     UnknownNameError,
     UnknownQuantityError,
     UnknownReleaseError,
+    Unusable,
 )
 from . import finality
 from .fields import read_only
+from .files import confined, forget, read_limited, temporary_for
 from .modelfile import _build_model
 from .records import (
     CatalogueLike,
@@ -88,12 +93,47 @@ DATA_FILES = {
     "defects": (".toml",),
 }
 MODEL_ID = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
+TABLE_NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]*\.nc$")
+_NOT_FINITE = (
+    "variable {!r} holds NaN, infinite or missing (masked) values: a stored table must "
+    "hold numbers everywhere (a model outside its data says so itself); refusing to use it"
+)
 RELEASE_ID = re.compile(r"^\d{4}\.\d+$")
 
 # The netCDF/HDF5 library is not thread-safe: two threads opening files at once can
 # crash the process. Every read of a table goes through this one (process-wide) lock;
 # what is read is then kept in read-only arrays and never changes.
 _TABLE_LOCK = threading.RLock()
+# every catalogue, so that a forked child can give each a fresh lock (see _after_fork)
+_CATALOGUES: weakref.WeakSet = weakref.WeakSet()
+
+
+def _before_fork() -> None:
+    # no thread is inside the netCDF/HDF5 library while the process forks: the child
+    # would inherit that library half-way through a read (and the lock held forever)
+    _TABLE_LOCK.acquire()
+
+
+def _after_fork_in_parent() -> None:
+    _TABLE_LOCK.release()
+
+
+def _after_fork_in_child() -> None:
+    """A forked child has only the forking thread: locks another thread held at the
+    fork would never be released there, so every lock of the catalogue is made anew
+    (what those threads were loading is loaded again, by the child, when needed)."""
+    global _TABLE_LOCK, _DEFAULT_LOCK
+    _TABLE_LOCK = threading.RLock()
+    _DEFAULT_LOCK = threading.Lock()
+    for catalogue in list(_CATALOGUES):
+        catalogue._lock = threading.RLock()
+
+
+os.register_at_fork(
+    before=_before_fork,
+    after_in_parent=_after_fork_in_parent,
+    after_in_child=_after_fork_in_child,
+)
 
 
 def datasets_root() -> Path:
@@ -130,7 +170,8 @@ def datasets_root() -> Path:
 
 
 def sha256_of(path: Path) -> str:
-    return hashlib.sha256(path.read_bytes()).hexdigest()
+    with open(path, "rb") as handle:  # (streamed: a large file is not held in memory)
+        return hashlib.file_digest(handle, "sha256").hexdigest()
 
 
 # --------------------------------------------------------------------------- loading
@@ -161,12 +202,13 @@ class Catalog:
         self._views: dict[str, ReleaseCatalogue] = {}
         self._checksums: dict[str, str] | None = None
         self._lock = threading.RLock()  # models are built once, even from many threads
+        _CATALOGUES.add(self)
 
     def __reduce__(self):
         # a catalogue pickles as its root; the default one as "the receiver's default",
         # so a worker on another machine reads its own installed copy
         default = bool(_DEFAULT) and self is _DEFAULT[0]
-        return catalog_at, (None if default else str(self.root),)
+        return _unpickle_catalog, (None if default else str(self.root),)
 
     def __copy__(self):
         return self  # a cache of immutable records: one per root is enough
@@ -230,8 +272,12 @@ class Catalog:
             path = self.root / CHECKSUM_FILE
             if not path.is_file():
                 raise DatasetError(path, "checksum list is missing; refusing to load data")
+            try:
+                text = read_limited(path).decode("utf-8")
+            except UnicodeDecodeError as exc:
+                raise DatasetError(path, f"is not UTF-8 text ({exc})") from exc
             sums = {}
-            for number, line in enumerate(path.read_text().splitlines(), 1):
+            for number, line in enumerate(text.splitlines(), 1):
                 if not line.strip() or line.startswith("#"):
                     continue
                 parts = line.split(maxsplit=1)
@@ -242,19 +288,22 @@ class Catalog:
         return self._checksums
 
     def verified_bytes(self, path: Path) -> bytes:
-        """Read a dataset file, refusing it if its sha256 differs from the record."""
-        relative = path.relative_to(self.root).as_posix()
+        """Read a dataset file, refusing it if its sha256 differs from the record.
+
+        The path must lie inside the datasets folder (after ``..`` and symbolic links),
+        be a regular file and no larger than its kind's limit
+        (:data:`matprops.catalogue.files.LIMITS`), checked before reading."""
+        confined(path, self.root)
+        try:
+            relative = path.relative_to(self.root).as_posix()
+        except ValueError:
+            relative = path.resolve().relative_to(self.root.resolve()).as_posix()
         recorded = self.checksums().get(relative)
         if recorded is None:
             raise ChecksumError(
                 path, f"no checksum recorded in {CHECKSUM_FILE}; refusing to load an unlisted file"
             )
-        try:
-            data = path.read_bytes()
-        except OSError as exc:
-            raise DatasetError(
-                path, f"cannot be read ({exc.strerror or exc}); it is listed in {CHECKSUM_FILE}"
-            ) from exc
+        data = read_limited(path)
         actual = hashlib.sha256(data).hexdigest()
         if actual != recorded:
             raise ChecksumError(
@@ -350,10 +399,19 @@ class Catalog:
             MappingProxyType(dict(data["models"])),
             path,
             self,
+            MappingProxyType(dict(data.get("defaults", {}))),
         )
 
     def table_path(self, name: str) -> Path:
-        path = self.data_folder("tables") / name
+        folder = self.data_folder("tables")
+        if not TABLE_NAME.match(str(name)):
+            raise DatasetError(
+                folder / str(name),
+                "a table is named by its file name in the tables folder (letters, digits, "
+                "'-', '_', '.', ending in .nc; no folders): refusing to read it",
+            )
+        path = folder / name
+        confined(path, self.root)
         if not path.is_file():
             raise DatasetError(path, "table file is missing")
         return path
@@ -362,7 +420,11 @@ class Catalog:
         """A verified netCDF table from ``datasets/tables/`` as an xarray.Dataset
         (read from the checked bytes themselves: no window between check and read)."""
         path = self.table_path(name)
-        return _open_table(path.name, self.verified_bytes(path))
+        data = _open_table(path.name, self.verified_bytes(path))
+        for key, variable in data.variables.items():
+            if variable.dtype.kind == "f" and not np.isfinite(variable.values).all():
+                raise DatasetError(path, _NOT_FINITE.format(key))
+        return data
 
     # -- scenarios (invented demonstration data)
     def scenario_names(self) -> list[str]:
@@ -401,10 +463,16 @@ class Catalog:
         path = self.table_path(name)
         data = self.verified_bytes(path)
         with _TABLE_LOCK, netCDF4.Dataset(path.name, mode="r", memory=data) as handle:
-            return {
-                key: (read_only(np.array(var[:], dtype=float)), str(getattr(var, "units", "1")))
-                for key, var in handle.variables.items()
-            }
+            arrays = {}
+            for key, variable in handle.variables.items():
+                values = variable[:]
+                if np.ma.is_masked(values) or not np.isfinite(np.ma.getdata(values)).all():
+                    raise DatasetError(path, _NOT_FINITE.format(key))
+                arrays[key] = (
+                    read_only(np.array(np.ma.getdata(values), dtype=float)),
+                    str(getattr(variable, "units", "1")),
+                )
+            return arrays
 
 
 class ReleaseCatalogue:
@@ -463,29 +531,65 @@ class ReleaseCatalogue:
         return self.base.for_release(release)
 
 
-def _release_view(base: Catalog, release_id: str) -> Catalog | ReleaseCatalogue:
-    return base.for_release(base.release(release_id))
+def _release_view(base: Catalog, release_id: str) -> Catalog | ReleaseCatalogue | Unusable:
+    if isinstance(base, Unusable):
+        return base
+    try:
+        return base.for_release(base.release(release_id))
+    except Error as exc:  # (never raise while unpickling: see errors.Unusable)
+        return Unusable(exc, ReleaseCatalogue)
+
+
+def _unpickle_catalog(root: str | None) -> Catalog | Unusable:
+    try:
+        return catalog_at(root)
+    except Error as exc:  # e.g. MATPROPS_DATASETS names no folder in this process
+        return Unusable(exc, Catalog)
+
+
+#: Deepest nesting of tables and arrays a data file may have (the catalogue's files
+#: nest three or four levels; Python's TOML reader fails near a thousand).
+MAX_NESTING = 32
 
 
 def _parse_toml(path: Path, raw: bytes) -> dict:
     try:
-        return tomllib.loads(raw.decode("utf-8"))
+        data = tomllib.loads(raw.decode("utf-8"))
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
         raise DatasetError(path, f"not valid TOML: {exc}") from exc
+    except RecursionError:
+        raise DatasetError(
+            path, f"nests tables or arrays too deeply to be read (at most {MAX_NESTING} levels)"
+        ) from None
+    depth = _nesting(data)
+    if depth > MAX_NESTING:
+        raise DatasetError(
+            path, f"nests tables or arrays {depth} levels deep; at most {MAX_NESTING} are read"
+        )
+    return data
+
+
+def _nesting(value) -> int:
+    """How deeply tables and arrays nest in a parsed TOML document (no recursion)."""
+    deepest, stack = 0, [(value, 1)]
+    while stack:
+        item, depth = stack.pop()
+        deepest = max(deepest, depth)
+        if depth > MAX_NESTING:
+            break
+        children = item.values() if isinstance(item, dict) else item
+        stack.extend((c, depth + 1) for c in children if isinstance(c, (dict, list)))
+    return deepest
 
 
 def _atomic_write_text(target: Path, text: str) -> None:
     """Write through a temporary file and a rename; a folder that cannot be written
     (a read-only install) is a DatasetError saying so, not an OSError traceback."""
-    tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")
+    tmp = temporary_for(target)  # (removed by an interrupted application: files.py)
     try:
         tmp.write_text(text)
         os.replace(tmp, target)
     except OSError as exc:
-        try:
-            tmp.unlink(missing_ok=True)
-        except OSError:
-            pass
         raise DatasetError(
             target,
             f"cannot be written ({exc.strerror or exc}): this "
@@ -493,6 +597,10 @@ def _atomic_write_text(target: Path, text: str) -> None:
             "here (an installed copy?); run it in a writable checkout, or "
             "on a writable copy (--root or MATPROPS_DATASETS)",
         ) from exc
+    finally:  # (after an error or a KeyboardInterrupt: no temporary stays behind)
+        with contextlib.suppress(OSError):
+            tmp.unlink(missing_ok=True)
+        forget(tmp)
 
 
 _DEFAULT: list[Catalog] = []

@@ -27,15 +27,14 @@ import shlex
 import sys
 import textwrap
 import tomllib
-import warnings
 
 import numpy as np
 
+from ..catalogue.files import interruptible
 from ..errors import (
     Error,
     InputError,
     UnitError,
-    ValidityWarning,
 )
 from ..material.validity import value_names
 
@@ -166,6 +165,13 @@ def _cli_message(text: str) -> str:
     ):
         text = text.replace(f"argument {argument!r}", f"option {option}")
     text = text.replace("argument 'quantities'", "the QUANTITY arguments")
+    text = text.replace("argument 'grid' must be", "the grid must hold")
+    text = text.replace(
+        "(max_values=None, or --allow-large on the command line, goes", "(--allow-large goes"
+    )
+    text = text.replace(
+        "; chunks= makes a lazy table)", "; --chunks N with -o FILE.nc writes a lazy table)"
+    )
     text = text.replace("(--force, or overwrite=True, replaces it)", "(--force replaces it)")
     text = re.sub(r"\(?models=\{'(\w+)': '([\w.-]+)'\}\)?", r"(--model \1=\2)", text)
     text = text.replace("strict=True", "--strict")
@@ -240,7 +246,17 @@ def _silicon(args):
         if not sep:
             raise InputError("--model", "QUANTITY=MODEL_ID", repr(item))
         overrides[quantity.strip()] = model_id.strip()
-    return Silicon(release=args.release, models=overrides, strict=args.strict)
+    si = Silicon(release=args.release, models=overrides, strict=args.strict)
+    # validity messages go straight to stderr (one line each, once): the material
+    # reports them to the command instead of warning, so no warning filter is set
+    si._report = getattr(args, "report", None)
+    return si
+
+
+def _max_values(args):
+    from ..material.tables import MAX_VALUES
+
+    return None if getattr(args, "allow_large", False) else MAX_VALUES
 
 
 def _grid(args) -> dict:
@@ -269,10 +285,49 @@ def _command_line(argv) -> str:
     return "matprops " + shlex.join(argv)
 
 
+#: Output (file or screen) above which the command asks first (or, not run from a
+#: terminal, refuses unless --allow-large).
+LARGE_OUTPUT = 10**9
+
+
+def _confirm_size(args, data) -> None:
+    """Say how large an output will be before writing more than ~1 GB, and ask (on a
+    terminal) or refuse (otherwise) unless --allow-large."""
+    from ..outputs import export
+
+    kind = "text" if not args.output and args.format in (None, "text") else None
+    try:
+        kind = kind or export.format_for(
+            args.output or "-", None if args.format in (None, "text") else args.format
+        )
+    except InputError:
+        return  # (the writer names the problem)
+    size = export.estimate_size(data, kind, layout=args.layout)
+    if size <= LARGE_OUTPUT:
+        return
+    where = args.output or "the screen"
+    shown = f"about {size / 1e9:.3g} GB of {kind} to {where}"
+    if getattr(args, "allow_large", False):
+        print(f"matprops: note: writing {shown}", file=sys.stderr)
+        return
+    if sys.stdin is not None and sys.stdin.isatty():
+        sys.stderr.write(f"matprops: this writes {shown}; continue? [y/N] ")
+        sys.stderr.flush()
+        if sys.stdin.readline().strip().lower() in ("y", "yes"):
+            return
+        raise InputError("--allow-large", "given (or the question answered y)", "no")
+    raise InputError(
+        "--allow-large",
+        f"given to write {shown} (not run from a terminal, so not asked)",
+        "nothing",
+    )
+
+
 def _emit(args, data, footer: str = ""):
     """Write a table to -o, or print it in --format (text by default)."""
     from ..outputs import export
 
+    _confirm_size(args, data)
     if args.output:
         written = export.write(
             data,
@@ -333,7 +388,13 @@ def _cmd_table(args):
             repr(args.chunks),
         )
     try:
-        data = si.table(args.quantities or None, progress=progress, chunks=chunks, **_grid(args))
+        data = si.table(
+            args.quantities or None,
+            progress=progress,
+            chunks=chunks,
+            max_values=_max_values(args),
+            **_grid(args),
+        )
     finally:
         progress.close()
     _emit(args, data, _footer(si, [data[v].attrs["quantity"] for v in value_names(data)]))
@@ -346,7 +407,14 @@ def _cmd_compare(args):
     models = [m.strip() for m in args.models.split(",")] if args.models else None
     progress = _Progress()
     try:
-        data = _compare_marked(si, args.quantity, models, progress=progress, **_grid(args))
+        data = _compare_marked(
+            si,
+            args.quantity,
+            models,
+            progress=progress,
+            max_values=_max_values(args),
+            **_grid(args),
+        )
     finally:
         progress.close()
     footer = "\n".join(
@@ -366,18 +434,21 @@ def _cmd_compare(args):
 
 
 def _compare_marked(si, quantity, models, **grid):
-    """A comparison whose models' validity warnings become its marks: each value
+    """A comparison whose models' validity messages become its marks: each value
     outside its model's range is starred on screen and dashed in a plot (the
-    <name>_validity flags), so the screen does not also repeat them as warnings."""
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always")
-        data = si.compare(quantity, models, **grid)
-    for warning in caught:
-        if not issubclass(warning.category, ValidityWarning):
-            warnings.warn_explicit(
-                warning.message, warning.category, warning.filename, warning.lineno
-            )
-    return data
+    <name>_validity flags), so the screen does not also repeat them as warnings; the
+    notes of models left out still show."""
+    reporter = si._report
+
+    def notes_only(message):
+        if str(message).startswith("compare ") and reporter is not None:
+            reporter(message)
+
+    si._report = notes_only
+    try:
+        return si.compare(quantity, models, **grid)
+    finally:
+        si._report = reporter
 
 
 def _cmd_plot(args):
@@ -394,9 +465,9 @@ def _cmd_plot(args):
         models = [m.strip() for m in args.models.split(",")]
         if models == ["all"]:
             models = None
-        data = _compare_marked(si, args.quantities[0], models, **grid)
+        data = _compare_marked(si, args.quantities[0], models, max_values=_max_values(args), **grid)
     else:
-        data = si.table(args.quantities, **grid)
+        data = si.table(args.quantities, max_values=_max_values(args), **grid)
     plot(data, args.output, x=args.x, format=args.format, overwrite=args.force)
     print(f"wrote {args.output}")
 
@@ -478,14 +549,7 @@ def _provenance_text(record: dict, indent: str = "") -> list[str]:
     lines.append(_wrap(record.get("name", ""), indent + "  "))
     lines.append(_wrap(f"source: {record.get('citation', '?')}", indent + "  "))
     for extra in record.get("additional_sources", []):
-        authors = ", ".join(extra["authors"][:3]) + (" et al." if len(extra["authors"]) > 3 else "")
-        lines.append(
-            _wrap(
-                f"also: {authors} ({extra['year']}), {extra['journal']} "
-                f"{extra['volume']}, {extra['pages']}, doi:{extra['doi']}",
-                indent + "  ",
-            )
-        )
+        lines.append(_wrap(f"also: {_source_text(extra)}", indent + "  "))
     validity = record.get("validity") or {}
     if validity:
         lines.append(
@@ -514,6 +578,26 @@ def _provenance_text(record: dict, indent: str = "") -> list[str]:
     for part in record.get("components", {}).values():
         lines += _provenance_text(part, indent + "  ")
     return lines
+
+
+def _source_text(source: dict) -> str:
+    """One line for a source record of any type (an article: journal, volume, pages; a
+    book: edition, publisher, address, pages), as ``Source.as_dict`` gives it."""
+    names = list(source.get("authors", []))
+    authors = ", ".join(names[:3]) + (" et al." if len(names) > 3 else "")
+    head = f"{authors} ({source.get('year', '?')})"
+    if source.get("type") == "book":
+        edition = f"{source['edition']} edition" if source.get("edition") else ""
+        place = ", ".join(p for p in (edition, source.get("publisher"), source.get("address")) if p)
+        text = f"{head}, {source.get('title', '')}" + (f" ({place})" if place else "")
+        if source.get("pages"):
+            text += f", pp. {source['pages']}"
+    else:
+        parts = [p for p in (source.get("journal"), source.get("volume")) if p]
+        text = f"{head}, {' '.join(parts)}" + (
+            f", {source['pages']}" if source.get("pages") else ""
+        )
+    return text + (f", doi:{source['doi']}" if source.get("doi") else "")
 
 
 def _cmd_provenance(args):
@@ -561,6 +645,7 @@ def _cmd_report(args, spec=None):
             raise InputError("--model", "QUANTITY=MODEL_ID", repr(item))
         models[quantity.strip()] = model_id.strip()
     si = Silicon(release=args.release or spec.release, models=models, strict=args.strict)
+    si._report = getattr(args, "report", None)  # validity messages: one line each
     result = report(spec, si)
     if args.output:
         written = result.write(
@@ -582,11 +667,13 @@ def _cmd_report(args, spec=None):
 
 
 def _cmd_demo(args):
-    from ..catalogue.store import default_catalog
-
-    _catalog()
-    spec = default_catalog().scenario(args.scenario)
-    _cmd_report(args, spec)
+    catalog = _catalog()
+    known = catalog.scenario_names()
+    if args.scenario not in known:  # (a path such as ../.. is no scenario's name)
+        raise InputError(
+            "--scenario", f"one of {', '.join(known) or '(none)'}", repr(args.scenario)
+        )
+    _cmd_report(args, catalog.scenario(args.scenario))
 
 
 def _cmd_explain(args):
@@ -687,6 +774,12 @@ def build_parser() -> argparse.ArgumentParser:
         else:
             text = f"{ax.long_name} (plain numbers are {ax.units})"
         group.add_argument(*flags, dest=ax.name, metavar="VALUES", help=text)
+    grid.add_argument(
+        "--allow-large",
+        action="store_true",
+        help="evaluate grids of more than 1e8 values (0.8 GB) in memory, and write or "
+        "print more than ~1 GB without asking",
+    )
 
     output = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
     out = output.add_argument_group("output")
@@ -878,18 +971,19 @@ def main(argv=None) -> int:
     args.command_line = _command_line(argv)
     seen = set()
 
-    def show(message, *rest, **kw):
+    def report(message):
         text = _cli_message(str(message))
         if text not in seen:
             seen.add(text)
             print(f"matprops: warning: {text}", file=sys.stderr)
 
+    args.report = report
     try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("always", ValidityWarning)
-            warnings.showwarning = show
+        # SIGINT or SIGTERM while a file is written: its temporary is removed and the
+        # command stops at once (status 130 / 143); see matprops.catalogue.files
+        with interruptible():
             args.run(args)
-        sys.stdout.flush()
+            sys.stdout.flush()
     except Error as exc:
         print(f"matprops: error: {_cli_message(str(exc))}", file=sys.stderr)
         return 2

@@ -102,6 +102,8 @@ class GridTable:
         lam = np.asarray(wavelength, dtype=float)
         t = np.asarray(temperature, dtype=float)
         shape = np.broadcast_shapes(lam.shape, t.shape)
+        if math.prod(shape) == 0:  # an empty input: an empty result of the broadcast shape
+            return self._finish(np.empty(shape), shape, out)
         if lam.ndim != t.ndim:  # one number of axes for both (views)
             lam = lam.reshape((1,) * (len(shape) - lam.ndim) + lam.shape)
             t = t.reshape((1,) * (len(shape) - t.ndim) + t.shape)

@@ -9,7 +9,10 @@ narrowed gap. Then
   order 1/2 (:mod:`.fermi_dirac`) or, for Boltzmann statistics, ``exp``;
 - ``Nd+ = Nd [(1 - b_D) + b_D logistic(-(eta + w_D))]`` and
   ``Na- = Na [(1 - b_A) + b_A logistic(-(eta_v + w_A))]`` with
-  ``w = E_dop/kT + ln g`` (see :mod:`.ionisation`);
+  ``w = E_dop/kT + ln g`` (see :mod:`.ionisation`); with ``occupancy_from_densities``
+  the occupancy takes ``ln(n/Nc)`` for eta and ``ln(p/Nv)`` for eta_v (the Boltzmann
+  relation between density and Fermi level that an ionisation model fitted with
+  Boltzmann statistics holds), the band densities keeping their Fermi-Dirac form;
 - neutrality: ``p + Nd+ = n + Na-``.
 
 The solver works on the logarithm of the two sides, ``r(eta) = ln(p + Nd+) -
@@ -88,11 +91,15 @@ def _log_ionised(log_density, x, share):
 class _Neutrality:
     """The log residual r(eta) and its derivative at fixed narrowing."""
 
-    def __init__(self, log_nc, log_nv, log_nd, log_na, gap, w_d, b_d, w_a, b_a, fermi_dirac):
+    def __init__(
+        self, log_nc, log_nv, log_nd, log_na, gap, w_d, b_d, w_a, b_a, fermi_dirac, by_density
+    ):
         self.log_nc, self.log_nv = log_nc, log_nv
         self.log_nd, self.log_na = log_nd, log_na
         self.gap, self.w_d, self.b_d, self.w_a, self.b_a = gap, w_d, b_d, w_a, b_a
         self.fermi_dirac = fermi_dirac
+        # the occupancy written with ln(n/Nc), ln(p/Nv) (Boltzmann-fitted ionisation)
+        self.by_density = by_density and fermi_dirac
 
     def subset(self, index):
         """The same equation on a subset of the points."""
@@ -112,6 +119,7 @@ class _Neutrality:
                 )
             ),
             self.fermi_dirac,
+            self.by_density,
         )
 
     def parts(self, eta):
@@ -120,8 +128,11 @@ class _Neutrality:
         log_fv, rho_v = _log_states(eta_v, self.fermi_dirac)
         log_n = self.log_nc + log_fc
         log_p = self.log_nv + log_fv
-        log_donors, q_d = _log_ionised(self.log_nd, eta + self.w_d, self.b_d)
-        log_acceptors, q_a = _log_ionised(self.log_na, eta_v + self.w_a, self.b_a)
+        x_d, x_a = (log_fc, log_fv) if self.by_density else (eta, eta_v)
+        log_donors, q_d = _log_ionised(self.log_nd, x_d + self.w_d, self.b_d)
+        log_acceptors, q_a = _log_ionised(self.log_na, x_a + self.w_a, self.b_a)
+        if self.by_density:  # d x / d eta of the occupancy's argument
+            q_d, q_a = q_d * rho_c, q_a * rho_v
         return log_n, log_p, log_donors, log_acceptors, rho_c, rho_v, q_d, q_a
 
     def __call__(self, eta):
@@ -234,6 +245,7 @@ def solve(
     acceptor_degeneracy,
     gap_offset=0.0,
     fermi_dirac=True,
+    occupancy_from_densities=False,
     rtol=1e-12,
     self_consistency=1e-10,
     max_iterations=200,
@@ -254,6 +266,9 @@ def solve(
     gap_offset : array_like, eV; a further narrowing of the gap, split equally between
         the edges (an apparent narrowing's reconciliation with its own ni)
     fermi_dirac : bool; Boltzmann statistics when False
+    occupancy_from_densities : bool; with Fermi-Dirac statistics, the dopant occupancy
+        takes ``ln(n/Nc)`` and ``ln(p/Nv)`` in place of the reduced Fermi levels (an
+        ionisation model fitted with Boltzmann statistics); no effect under Boltzmann
     rtol : relative neutrality residual to reach
     self_consistency : for a narrowing that depends on n and p, the largest change of
         the narrowing (in units of kT) between the densities it was used with and the
@@ -296,6 +311,7 @@ def solve(
         "g_d": donor_degeneracy,
         "g_a": acceptor_degeneracy,
         "fermi_dirac": fermi_dirac,
+        "by_density": occupancy_from_densities,
         "rtol": rtol,
         "self_consistency": self_consistency,
         "max_iterations": max_iterations,
@@ -348,6 +364,7 @@ def _solve_block(
     g_d,
     g_a,
     fermi_dirac,
+    by_density,
     rtol,
     self_consistency,
     max_iterations,
@@ -373,7 +390,7 @@ def _solve_block(
     def equation(dec, dev):
         gap = reduced_gap - (dec + dev) / kt
         return _Neutrality(
-            log_nc, log_nv, log_nd, log_na, gap, w_d, b_d, w_a, b_a, fermi_dirac
+            log_nc, log_nv, log_nd, log_na, gap, w_d, b_d, w_a, b_a, fermi_dirac, by_density
         ), gap
 
     # start from Boltzmann statistics with the majority dopant's ionisation solved

@@ -122,4 +122,7 @@ def _fail(bad, shape, generation, what):
         for i in index[:5]
     )
     more = f" and {index.size - 5} more" if index.size > 5 else ""
-    raise SolverError(f"steady state: {index.size} point(s) failed ({what}): {shown}{more}")
+    error = SolverError(f"steady state: {index.size} point(s) failed ({what}): {shown}{more}")
+    # the failing points (flat indices into ``shape``), for a caller naming their inputs
+    error.points, error.count, error.reason = index[:5].tolist(), int(index.size), what
+    raise error

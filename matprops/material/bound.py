@@ -15,12 +15,20 @@ Policies (stated in every kernel's docstring):
 - **Units.** Internal units throughout (K, cm, cm^-3, eV, s, V, nm for
   wavelengths). Where the public method returns other units, the kernel says so
   loudly (``lattice_constant``: the kernel gives cm, ``si.lattice_constant`` nm).
+  A pint quantity given to a kernel (or to ``kernel.check``) is *converted* to the
+  input's internal unit (25 degC -> 298.15 K, 1e22 m^-3 -> 1e16 cm^-3, a photon
+  energy -> nm), never stripped; a quantity of the wrong dimension is a
+  :class:`~matprops.UnitError`. Dates and durations (numpy ``datetime64`` /
+  ``timedelta64``, Python ``datetime`` / ``timedelta``) are refused with a
+  :class:`~matprops.UnitError`. Plain floats and float arrays take no detour.
 - **dtype.** Every kernel computes in float64 and returns float64 whatever the
   input dtype: doping quantities square densities up to 1e21 cm^-3 (1e42 is beyond
   float32's 3e38), Auger coefficients of 1e-30 cm^6/s lie below its smallest
   normal number (1e-38), and the equilibrium solver needs 1e-12 relative
   neutrality (float32 carries 6e-8). To store a result in float32, pass
   ``out=`` a float32 array: each block is computed in float64 and cast on writing.
+  ``out=`` of any other dtype (integers, booleans, complex) is refused with a
+  :class:`TypeError` (numpy would truncate a band gap of 1.12 eV to 1).
 - **Memory.** Inputs of more than :data:`~matprops.kernels._blocks.BLOCK` points
   (numpy arrays) are evaluated in blocks of that size into one output: extra memory
   is the result plus a few block-sized temporaries, cost linear in the size.
@@ -32,23 +40,69 @@ Policies (stated in every kernel's docstring):
 
 from __future__ import annotations
 
+import datetime
 import inspect
-import warnings
+import sys
 from collections.abc import Callable, Mapping
 
 import numpy as np
 
-from ..errors import InputError, ValidityWarning
+from ..errors import InputError
 from ..kernels._blocks import BLOCK, evaluate
 from ..vocabulary import dopant_species
+from .composition import input_kinds, species_model
 
 __all__ = ["BoundKernel", "make_kernel", "model_checker", "model_kernel", "validity_of"]
 
 _DTYPE_NOTE = (
     "computes in float64 and returns float64 whatever the input dtype "
     "(densities squared overflow float32, Auger coefficients underflow it); "
-    "pass out=<float32 array> to store the result in float32"
+    "pass out=<float32 array> to store the result in float32 (out= of another "
+    "dtype is refused); pint quantities are converted to the internal units, dates "
+    "and durations refused"
 )
+
+
+def _screen(arguments: dict, units: Mapping[str, str]) -> dict:
+    """Inputs as the kernel takes them: plain numbers and numeric arrays unchanged (no
+    cost, and pint is not imported for them), pint quantities converted to the internal
+    unit, dates and durations refused."""
+    for name, value in arguments.items():
+        kind = type(value)
+        if kind is float or kind is int:
+            continue
+        if isinstance(value, (np.ndarray, np.generic)):
+            if value.dtype.kind not in "mM":
+                continue
+        elif isinstance(value, (list, tuple)):
+            if np.asarray(value).dtype.kind not in "mMO":
+                continue
+        elif not isinstance(value, _DATES) and not _is_quantity(value):
+            continue  # an array of another library: passed through
+        from ..units import kernel_input  # (pint is loaded only when a quantity comes)
+
+        arguments[name] = kernel_input(value, name, units[name])
+    return arguments
+
+
+_DATES = (datetime.date, datetime.time, datetime.timedelta)
+
+
+def _is_quantity(value) -> bool:
+    pint = sys.modules.get("pint")  # (no quantity can exist before pint is imported)
+    return pint is not None and isinstance(value, pint.Quantity)
+
+
+def _check_out_dtype(out, quantity: str) -> None:
+    """``out=`` must hold floating-point arrays (each block is cast on writing)."""
+    for target in out if isinstance(out, tuple) else (out,):
+        dtype = getattr(target, "dtype", None)
+        if dtype is not None and dtype.kind != "f":
+            raise TypeError(
+                f"out= of the {quantity} kernel must be a floating-point array "
+                f"(float64, or float32 to store less); received dtype {dtype} "
+                "(numpy would truncate or wrap the values silently)"
+            )
 
 
 def _foreign(value) -> bool:
@@ -101,6 +155,7 @@ class BoundKernel:
         fixed=None,
         description: str = "",
         returns: str = "",
+        kinds: Mapping[str, tuple[str, str]] | None = None,
     ):
         self._si = si
         self.quantity = quantity
@@ -125,6 +180,10 @@ class BoundKernel:
         self._fixed = dict(fixed or {})
         self._description = description
         self._returns = returns
+        # input -> (short kind, description) of each density: total or ionised dopants,
+        # free carriers, carriers of complete ionisation (the model's fit conventions)
+        self.input_kinds = {name: kinds[name][0] for name in (kinds or {})}
+        self._kind_text = {name: kinds[name][1] for name in (kinds or {})}
         self.__doc__ = self._document()
 
     # ------------------------------------------------------------------ calling
@@ -173,6 +232,9 @@ class BoundKernel:
                 arguments, options = self._arguments(args, kwargs)
         else:
             arguments, options = self._arguments(args, kwargs)
+        arguments = _screen(arguments, self.inputs)
+        if out is not None:
+            _check_out_dtype(out, self.quantity)
         if not self.array_api:
             self._refuse_foreign(arguments)
         if not self._blocked:
@@ -233,6 +295,7 @@ class BoundKernel:
                 "lifetime, mobility)"
             )
         arguments, options = self._arguments(args, kwargs, "derivatives")
+        arguments = _screen(arguments, self.inputs)
         names = tuple(arguments)
         function = self._derivative
 
@@ -262,6 +325,8 @@ class BoundKernel:
                     "out must be (value array(s), {input: partial array(s)}) "
                     f"with a partial for each input given ({', '.join(names)})"
                 ) from None
+        if flat_out is not None:
+            _check_out_dtype(flat_out, self.quantity)
         parts = evaluate(flat, arguments, out=flat_out)
 
         def pick(k):
@@ -294,6 +359,7 @@ class BoundKernel:
         from ..units import ARGUMENTS, check_values
 
         arguments, _ = self._arguments(args, kwargs, "check")
+        arguments = _screen(arguments, self.inputs)
         arrays, ranges = {}, {}
         for name, value in arguments.items():
             if _foreign(value):
@@ -312,15 +378,9 @@ class BoundKernel:
                 ", ".join(f"{n} {a.shape}" for n, a in arrays.items()),
             ) from None
         strict = self._si.strict if strict is None else bool(strict)
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always", ValidityWarning)
-            self._checker(arrays, ranges, strict)
-        messages = []
-        for item in caught:
-            if issubclass(item.category, ValidityWarning):
-                messages.append(str(item.message))
-            warnings.warn_explicit(item.message, item.category, item.filename, item.lineno)
-        return messages
+        # each check warns (or raises) itself and returns its messages: no warning
+        # filter is touched
+        return self._checker(arrays, ranges, strict, self._si._report)
 
     # ------------------------------------------------------------------ description
     @property
@@ -332,6 +392,8 @@ class BoundKernel:
             record["release"] = self._si.release.id
         if self._fixed:
             record["kernel_options"] = dict(self._fixed)
+        if self.input_kinds:
+            record["input_kinds"] = dict(self._kind_text)
         return record
 
     def _signature(self) -> str:
@@ -357,7 +419,8 @@ class BoundKernel:
             valid = self._validity.get(name)
             span = f"; valid {valid[0]:g}-{valid[1]:g} {unit}" if valid else ""
             optional = " (optional)" if name in self._optional else ""
-            lines.append(f"    {name} : {unit}{span}{optional}")
+            kind = f", {self._kind_text[name]}" if name in self._kind_text else ""
+            lines.append(f"    {name} : {unit}{kind}{span}{optional}")
         for region in self._regions:
             lines.append(f"    validity region: {region}")
         lines += ["", f"Output: {shown}"]
@@ -410,7 +473,10 @@ class BoundKernel:
     def __repr__(self) -> str:
         units = self.output_units
         shown = ", ".join(units) if isinstance(units, tuple) else units
-        inputs = ", ".join(f"{n} [{u}]" for n, u in self.inputs.items())
+        inputs = ", ".join(
+            f"{n} [{u}, {self.input_kinds[n]}]" if n in self.input_kinds else f"{n} [{u}]"
+            for n, u in self.inputs.items()
+        )
         valid = (
             "; ".join(
                 f"{n} {lo:g}-{hi:g} {self.inputs.get(n, '')}".rstrip()
@@ -448,7 +514,15 @@ class BoundKernel:
 
 
 def _rebuild(si, quantity, fixed):
-    return si.kernel(quantity, **fixed)
+    """Unpickle a kernel; never raises (see :class:`matprops.errors.Unusable`)."""
+    from ..errors import Error, Unusable
+
+    if isinstance(si, Unusable):
+        return Unusable(si.error, BoundKernel)
+    try:
+        return si.kernel(quantity, **fixed)
+    except Error as exc:
+        return Unusable(exc, BoundKernel)
 
 
 def _to_numpy(value):
@@ -480,7 +554,7 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
     if declared is not None and declared.kernel is not None:
         return declared.kernel(si, name, fixed)
     model = si.model(name)
-    chosen = {}
+    chosen, note = {}, ""
     if model.variant_axis == "dopant":
         species = fixed.pop("dopant", None)
         if species is None:
@@ -488,26 +562,30 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
                 "dopant", f"given for {name} (one of {', '.join(model.variants)})", None
             )
         species = dopant_species(species, "dopant")
-        model = model.select(species)
+        model, stand_in = species_model(model, species, si.catalog)
         chosen = {"dopant": species}
+        if stand_in is not None:  # served by another species' set or model: labelled
+            note = f"The dopant {stand_in.describe()}"
     if fixed:
         key = min(fixed)
         raise InputError(key, f"not an option of the {name} kernel", fixed[key])
-    return model_kernel(si, name, model, chosen)
+    return model_kernel(si, name, model, chosen, note)
 
 
 def model_checker(models):
     """A checker of the inputs each model takes (ranges, then regions)."""
 
-    def check(arrays, ranges, strict):
+    def check(arrays, ranges, strict, report=None) -> list[str]:
+        messages = []
         for model in models:
             for argument in model.inputs:
                 if argument in ranges and ranges[argument][0] <= ranges[argument][1]:
-                    model.check(argument, *ranges[argument], strict)
+                    messages += model.check(argument, *ranges[argument], strict, report)
             if model.regions:
-                model.check_regions(
-                    {k: arrays[k] for k in model.inputs if k in arrays}, strict, ranges
+                messages += model.check_regions(
+                    {k: arrays[k] for k in model.inputs if k in arrays}, strict, ranges, report
                 )
+        return messages
 
     return check
 
@@ -540,7 +618,7 @@ def _options(model) -> dict:
     return options
 
 
-def model_kernel(si, name, model, fixed) -> BoundKernel:
+def model_kernel(si, name, model, fixed, note: str = "") -> BoundKernel:
     """The bound kernel of a model as it is (its inputs, units, validity, derivatives);
     the public method's units and description come from the quantity's declaration."""
     from .registry import REGISTRY
@@ -576,5 +654,8 @@ def model_kernel(si, name, model, fixed) -> BoundKernel:
         ),
         options=_options(model),
         fixed=fixed,
-        description=declared.kernel_note if declared is not None else "",
+        description=" ".join(
+            part for part in (declared.kernel_note if declared is not None else "", note) if part
+        ),
+        kinds=input_kinds(name, model),
     )

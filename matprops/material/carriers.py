@@ -26,9 +26,6 @@ import numpy as np
 
 from ..errors import (
     InputError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import equilibrium as equilibrium_kernel
 from ..kernels._blocks import evaluate
@@ -37,6 +34,7 @@ from ..kernels.constants import BOLTZMANN_EV
 from ..units import coerce, quantity
 from ..vocabulary import DOPANTS, dopant_species
 from .bound import SOLVER_REASON, BoundKernel, model_checker, validity_of
+from .composition import input_kinds, species_model
 from .registry import (
     DOPANTS_GRID,
     DOPING_GRID,
@@ -74,8 +72,10 @@ def _ionisation_cases(si):
 class Equilibrium(Result):
     """Thermal-equilibrium state of doped silicon (arrays broadcast to one shape).
 
-    Energies are in eV. ``fermi_level`` is measured from the intrinsic level of
-    undoped silicon at the same temperature (``E_i = E_c - kT ln(Nc/ni)``);
+    ``n0 p0 = gamma_n gamma_p ni_eff^2`` (see :attr:`degeneracy_factors`; the gammas
+    are 1 with Boltzmann statistics). Energies are in eV. ``fermi_level`` is measured
+    from the intrinsic level of undoped silicon at the same temperature
+    (``E_i = E_c - kT ln(Nc/ni)``);
     ``fermi_level_from_conduction_edge`` (negative inside the gap) and
     ``fermi_level_from_valence_edge`` (positive inside the gap) are measured from
     the band edges *after* narrowing.
@@ -103,6 +103,31 @@ class Equilibrium(Result):
         return self.electron_density
 
     @property
+    def degeneracy_factors(self):
+        """``(gamma_n, gamma_p)``, dimensionless: ``n0 = gamma_n Nc exp(eta_n)`` and
+        ``p0 = gamma_p Nv exp(eta_p)``, ``gamma = F_1/2(eta) / exp(eta)`` (1 with
+        Boltzmann statistics, below 1 in degenerate silicon).
+
+        The law that holds: ``n0 p0 = gamma_n gamma_p ni_eff^2`` with the
+        :attr:`effective_intrinsic_density`; ``n0 p0 = ni_eff^2`` only with Boltzmann
+        statistics (at 1e20 cm^-3 of phosphorus the product is about 0.3 ni_eff^2).
+        A minority density is ``gamma_n gamma_p ni_eff^2 / (majority density)``.
+        """
+        from ..kernels.fermi_dirac import fd_half
+
+        kt = BOLTZMANN_EV * np.asarray(self.temperature.m_as("K"), dtype=float)
+        reduced = (
+            np.asarray(self.fermi_level_from_conduction_edge.m_as("eV"), float) / kt,
+            -np.asarray(self.fermi_level_from_valence_edge.m_as("eV"), float) / kt,
+        )
+        if self.statistics != "fermi-dirac":
+            return tuple(quantity(np.ones_like(eta), "dimensionless") for eta in reduced)
+        return tuple(
+            quantity(np.asarray(fd_half(eta), float) * np.exp(-eta), "dimensionless")
+            for eta in reduced
+        )
+
+    @property
     def p(self):
         return self.hole_density
 
@@ -122,6 +147,17 @@ class _Bound:
         )
         self.fitted_density = conventions.get("intrinsic_density")
         self.uses_carriers = "electron_density" in self.narrowing.inputs
+        self.catalog = si.catalog
+        # the ionisation model's own densities of states and statistics, carried into
+        # the occupancy of its levels where they differ from the material's
+        ionisation = self.ionisation.conventions
+        states = ionisation.value("densities_of_states")
+        self.level_states = (
+            self.catalog.model("densities_of_states", states)
+            if states not in (None, "none", "own", "composed") and states != self.dos.id
+            else None
+        )
+        self.occupancy_from_densities = ionisation.value("statistics") == "boltzmann"
 
     def narrowing_args(self, temperature, donor_density, acceptor_density, n, p):
         values = {
@@ -149,14 +185,29 @@ class _Bound:
         """The extra narrowing that reconciles an apparent narrowing with the release's ni."""
         return 2.0 * BOLTZMANN_EV * temperature * np.log(self.reference_ratio())
 
-    def level(self, species, density, complete=False):
-        """((E_dop, localised share b), degeneracy) of a dopant species; with
-        ``complete`` the share is 0: every dopant ionised (the carrier convention of
-        fits that took the dopant density for the majority density)."""
-        model = self.ionisation.select(species)
+    def species_level(self, species):
+        """The ionisation model serving a dopant species, and its stand-in record."""
+        return species_model(self.ionisation, species, self.catalog)
+
+    def level(self, species, density, temperature=None, complete=False):
+        """((E_dop, localised share b), degeneracy) of a dopant species.
+
+        ``complete``: the share is 0, every dopant ionised (the carrier convention of
+        fits that took the dopant density for the majority density). Where the
+        ionisation model was fitted with other densities of states (its fit
+        conventions), the level carries them: ``E_dop + kT ln(N/N_fit)`` with N = Nc
+        (donors) or Nv (acceptors), exact for an occupancy written with the carrier
+        density (``n/N_fit``), as the solver writes it for a Boltzmann-fitted model.
+        """
+        model, _ = self.species_level(species)
         energy, share = model(dopant_density=density)
         if complete:
             share = np.zeros(np.shape(density))
+        if self.level_states is not None and temperature is not None:
+            band = 0 if DOPANTS[species] == "donor" else 1
+            own = self.dos(temperature=temperature)[band]
+            fitted = self.level_states(temperature=temperature)[band]
+            energy = energy + BOLTZMANN_EV * temperature * np.log(own / fitted)
         return (energy, share), model.coefficients["degeneracy"].kernel_value
 
     def equilibrium(
@@ -174,8 +225,8 @@ class _Bound:
             *(np.asarray(a, dtype=float) for a in (temperature, donor_density, acceptor_density))
         )
         nc, nv = self.dos(temperature=t)
-        donor_level, g_d = self.level(donor, nd, complete)
-        acceptor_level, g_a = self.level(acceptor, na, complete)
+        donor_level, g_d = self.level(donor, nd, t, complete)
+        acceptor_level, g_a = self.level(acceptor, na, t, complete)
 
         fixed = getattr(self.narrowing.kernel, "with_fixed_dopants", None)
         coefficients = {name: c.kernel_value for name, c in self.narrowing.coefficients.items()}
@@ -200,6 +251,7 @@ class _Bound:
             acceptor_degeneracy=g_a,
             gap_offset=self.gap_offset(t),
             fermi_dirac=fermi_dirac,
+            occupancy_from_densities=self.occupancy_from_densities,
         )
         result["temperature"] = t
         return result
@@ -343,17 +395,26 @@ class CarrierMethods:
                 f"fitted with {bound.statistics} statistics; combined with "
                 f"{statistics} statistics it counts degeneracy twice"
             )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._violation(message)
         return statistics == "fermi-dirac"
+
+    def _check_narrowing(self, prepared, bound: _Bound):
+        """Validity ranges and regions of the narrowing model at the inputs given."""
+        values, ranges = {}, {}
+        for argument in bound.narrowing.inputs:
+            if argument in prepared:
+                array, low, high = prepared[argument]
+                self._check(bound.narrowing, argument, low, high)
+                values[argument], ranges[argument] = array, (low, high)
+        if bound.narrowing.regions and values:
+            self._check_regions(bound.narrowing, values, ranges)
 
     def _check_dopants(self, prepared, donor, acceptor):
         """Validity of the ionisation models for the dopant densities given."""
-        ionisation = self._carriers().ionisation
+        bound = self._carriers()
         for species, key in ((donor, "donor_density"), (acceptor, "acceptor_density")):
             _, low, high = prepared[key]
-            ionisation.select(species).check("dopant_density", low, high, self.strict)
+            self._check(bound.species_level(species)[0], "dopant_density", low, high)
 
     def _solve(self, temperature, Na, Nd, donor, acceptor, statistics, complete=False):
         donor = dopant_species(donor, "donor", "donor")
@@ -363,10 +424,8 @@ class CarrierMethods:
         fermi_dirac = self._check_statistics(statistics, bound)
         t, low, high = prepared["temperature"]
         for quantity_name in ("densities_of_states", "intrinsic_density"):
-            self.model(quantity_name).check("temperature", low, high, self.strict)
-        for argument in bound.narrowing.inputs:
-            if argument in prepared:
-                bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+            self._check(self.model(quantity_name), "temperature", low, high)
+        self._check_narrowing(prepared, bound)
         self._check_dopants(prepared, donor, acceptor)
         result = bound.equilibrium(
             t,
@@ -453,7 +512,9 @@ class CarrierMethods:
         models=("intrinsic_density", "gap_narrowing"),
         formula=(
             "ni_eff = ni(T) exp(dEg / 2kT); for an apparent narrowing ni(T) is scaled by "
-            "ni_fit / ni(T_fit), the intrinsic density the narrowing was fitted with"
+            "ni_fit / ni(T_fit), the intrinsic density the narrowing was fitted with. "
+            "In equilibrium n0 p0 = gamma_n gamma_p ni_eff^2, gamma = F_1/2(eta)/exp(eta) "
+            "(1 with Boltzmann statistics)"
         ),
         wants=_DOPING,
         log=True,
@@ -468,6 +529,14 @@ class CarrierMethods:
         Composed from the release's intrinsic density and gap narrowing (its
         provenance names both and says how they were combined, see the module
         notes). ``n``, ``p`` as in :meth:`band_edge_shifts`.
+
+        The law it enters: ``n0 p0 = gamma_n gamma_p ni_eff^2`` with the Fermi-Dirac
+        degeneracy factors ``gamma = F_1/2(eta)/exp(eta)`` of the equilibrium
+        (``si.equilibrium(...).degeneracy_factors``); only with Boltzmann statistics
+        (an apparent narrowing's) is ``n0 p0 = ni_eff^2``. With the release default
+        (Schenk's narrowing, Fermi-Dirac statistics) the product is about 0.3 ni_eff^2
+        at 1e20 cm^-3: a minority density taken as ni_eff^2 / N is then several
+        times too high.
         """
         bound = self._carriers()
         if bound.uses_carriers and (n is None or p is None):
@@ -480,11 +549,8 @@ class CarrierMethods:
             result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, None)
             n, p = result["electron_density"], result["hole_density"]
         prepared = self._inputs(temperature=temperature, Na=Na, Nd=Nd, n=n, p=p)
-        self.model("intrinsic_density").check(
-            "temperature", *prepared["temperature"][1:], self.strict
-        )
-        for argument in bound.narrowing.inputs:
-            bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+        self._check(self.model("intrinsic_density"), "temperature", *prepared["temperature"][1:])
+        self._check_narrowing(prepared, bound)
         arrays = {k: v[0] for k, v in prepared.items()}
         arrays.setdefault("donor_density", 0.0)
         arrays.setdefault("acceptor_density", 0.0)
@@ -510,9 +576,9 @@ class CarrierMethods:
         """``(ionisation energy [eV], share of states still localised [1])`` of a dopant
         at total density ``N`` (cm^-3); the rest of its states has merged into the band."""
         species = dopant_species(dopant, "dopant")
-        model = self.model("ionisation").select(species)
+        model, _ = species_model(self.model("ionisation"), species, self.catalog)
         array, low, high = coerce(N, "N")
-        model.check("dopant_density", low, high, self.strict)
+        self._check(model, "dopant_density", low, high)
         energy, share = model(dopant_density=array)
         return quantity(np.asarray(energy, float), "eV"), quantity(
             np.asarray(share, float), "dimensionless"
@@ -686,34 +752,49 @@ def _effective_intrinsic_density_kernel(si, fixed) -> BoundKernel:
         optional=optional,
         description=(
             "ni_eff = ni(T) x ratio x exp((dEc + dEv) / 2kT), composed as "
-            "si.effective_intrinsic_density() does (see its provenance); " + carriers + "."
+            "si.effective_intrinsic_density() does (see its provenance); " + carriers + ". "
+            "In equilibrium n0 p0 = gamma_n gamma_p ni_eff^2 (Fermi-Dirac degeneracy "
+            "factors, 1 with Boltzmann statistics)."
         ),
+        kinds=input_kinds("effective_intrinsic_density"),
     )
 
 
 def _equilibrium_kernel(si, fixed) -> BoundKernel:
-    unknown = set(fixed) - {"donor", "acceptor", "statistics"}
+    unknown = set(fixed) - {"donor", "acceptor", "statistics", "complete_ionisation"}
     if unknown:
-        raise InputError(min(unknown), "one of donor, acceptor, statistics", fixed[min(unknown)])
+        raise InputError(
+            min(unknown),
+            "one of donor, acceptor, statistics, complete_ionisation",
+            fixed[min(unknown)],
+        )
     bound = si._carriers()
     statistics = fixed.get("statistics") or bound.statistics
     donor = dopant_species(fixed.get("donor", "phosphorus"), "donor", "donor")
     acceptor = dopant_species(fixed.get("acceptor", "boron"), "acceptor", "acceptor")
     fermi_dirac = si._check_statistics(statistics, bound)
+    complete = fixed.get("complete_ionisation", False)
+    if not isinstance(complete, (bool, np.bool_)):
+        raise InputError("complete_ionisation", "True or False", repr(complete))
     function = functools.partial(
-        bound.equilibrium, donor=donor, acceptor=acceptor, fermi_dirac=fermi_dirac
+        bound.equilibrium,
+        donor=donor,
+        acceptor=acceptor,
+        fermi_dirac=fermi_dirac,
+        complete=bool(complete),
     )
     models = [bound.dos, bound.ni, bound.narrowing]
-    donor_model = bound.ionisation.select(donor)
-    acceptor_model = bound.ionisation.select(acceptor)
+    donor_model = bound.species_level(donor)[0]
+    acceptor_model = bound.species_level(acceptor)[0]
     base = model_checker(models)
 
-    def check(arrays, ranges, strict):
-        base(arrays, ranges, strict)
+    def check(arrays, ranges, strict, report=None) -> list[str]:
+        messages = base(arrays, ranges, strict, report)
         for model, key in ((donor_model, "donor_density"), (acceptor_model, "acceptor_density")):
             low, high = ranges[key]
             if low <= high:
-                model.check("dopant_density", low, high, strict)
+                messages += model.check("dopant_density", low, high, strict, report)
+        return messages
 
     validity = validity_of(models)
     validity.pop("electron_density", None)
@@ -737,7 +818,9 @@ def _equilibrium_kernel(si, fixed) -> BoundKernel:
             "donor": donor,
             "acceptor": acceptor,
             "statistics": "fermi-dirac" if fermi_dirac else "boltzmann",
+            **({"complete_ionisation": True} if complete else {}),
         },
+        kinds=input_kinds("equilibrium"),
         returns=(
             "dict of arrays: electron_density, hole_density, ionised_donors, "
             "ionised_acceptors [cm^-3]; conduction_edge_shift, valence_edge_shift, "

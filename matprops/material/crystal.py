@@ -35,7 +35,7 @@ class CrystalMethods:
         after the lattice model's input and validity checks."""
         model = self.model("lattice_constant")
         prepared = coerce(temperature, "temperature")
-        model.check("temperature", prepared[1], prepared[2], self.strict)
+        self._check(model, "temperature", prepared[1], prepared[2])
         lattice = model.function
 
         def composed(temperature):

@@ -307,7 +307,15 @@ def _stripped(model: Model) -> Model:
 
 
 # attributes a Silicon is built with; everything else in its __dict__ is a cache
-_MATERIAL_STATE = ("release", "catalog", "strict", "_overrides", "overridden", "_models")
+_MATERIAL_STATE = (
+    "release",
+    "catalog",
+    "strict",
+    "_overrides",
+    "overridden",
+    "_models",
+    "_report",
+)
 
 
 def changed_material(si, values: Mapping, cache: dict | None = None):

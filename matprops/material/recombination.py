@@ -41,16 +41,15 @@ import numpy as np
 from ..catalogue import defects as defect_catalogue
 from ..errors import (
     InputError,
+    SolverError,
     UnitError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import implied_voltage as voltage_kernel
 from ..kernels import srh_lifetime as srh
 from ..kernels._blocks import evaluate
-from ..kernels.constants import ELEMENTARY_CHARGE
+from ..kernels.constants import BOLTZMANN_EV, ELEMENTARY_CHARGE
 from ..units import coerce, quantity, unit
+from .composition import complete_ionisation
 from .registry import (
     EXCESS,
     LIFETIME_DOPING,
@@ -100,6 +99,23 @@ ASSUMPTIONS = (
     "recombination; dn = dp (no trapping); Boltzmann statistics for the "
     "quasi-Fermi-level splitting, with the narrowing of equilibrium"
 )
+# with a narrowing that depends on the free carriers (Schenk's, its fit conventions say so)
+ASSUMPTIONS_INJECTED = (
+    "steady state; generation uniform through the thickness; flat carrier "
+    "profile (diffusion length well above the thickness) and no surface "
+    "recombination; dn = dp (no trapping); the quasi-Fermi-level splitting "
+    "qV = kT ln[n p / (gamma_n gamma_p ni_eff(n, p)^2)] with the narrowing at the "
+    "injected densities n = n0 + dn, p = p0 + dn and the Fermi-Dirac degeneracy "
+    "factors gamma there; every recombination rate takes n p - ni_eff(n, p)^2"
+)
+LIFETIME_ASSUMPTIONS = (
+    "dn = dp (no trapping); uniform excess density; the rates vanish in equilibrium (n p - n0 p0)"
+)
+LIFETIME_ASSUMPTIONS_INJECTED = (
+    "dn = dp (no trapping); uniform excess density; every rate takes "
+    "n p - ni_eff(n, p)^2 with the narrowing at the injected densities (the "
+    "material's narrowing depends on the free carriers)"
+)
 
 
 @dataclasses.dataclass(frozen=True, repr=False)
@@ -119,6 +135,7 @@ class Lifetimes(Result):
     excess_density: object
     equilibrium_electron_density: object
     equilibrium_hole_density: object
+    assumptions: str
     provenance: dict = dataclasses.field(compare=False)
 
 
@@ -138,6 +155,11 @@ class ImpliedVoltage(Result):
     provenance: dict = dataclasses.field(compare=False)
 
 
+# the shortest step (relative to n0 + p0) over which the rise of ni_eff with injection is
+# taken (see RecombinationMethods._injection_factor)
+_SECANT = 1e-4
+
+
 def _range(values):
     """(min, max) of an array; (inf, -inf) for an empty one (no check applies)."""
     array = np.asarray(values)
@@ -147,6 +169,54 @@ def _range(values):
 def _optional(values):
     """The SRH lifetime as a quantity, or None when there is no defect."""
     return None if values is None else quantity(values, "s")
+
+
+def _widen(state, items) -> None:
+    """Make the state's shape span the defect densities and capture times too (arrays
+    broadcast with the other inputs); an InputError names one that does not."""
+    for defect, density, capture in items:
+        for name, value in (("density", density), ("electron_capture_time", capture)):
+            if value is None:
+                continue
+            shape = np.shape(getattr(value, "magnitude", value))
+            try:
+                state.shape = np.broadcast_shapes(state.shape, shape)
+            except ValueError:
+                raise InputError(
+                    name,
+                    f"a number or an array whose shape broadcasts with the other inputs' "
+                    f"{state.shape} (for defect {defect.name!r})",
+                    f"shape {shape}",
+                ) from None
+
+
+def _steady_state_failure(error, state, generation, thickness, shape) -> SolverError:
+    """The steady-state solver's error, its first failing points named by their inputs."""
+    points = getattr(error, "points", None)
+    if not points:
+        return error
+    inputs = {
+        "T": (state.temperature, "K"),
+        "G": (generation, "cm^-2 s^-1"),
+        "thickness": (thickness, "cm"),
+        "n0": (state.n0, "cm^-3"),
+        "p0": (state.p0, "cm^-3"),
+    }
+    shown = []
+    for flat in points:
+        where = np.unravel_index(flat, shape) if shape else ()
+        values = ", ".join(
+            f"{name}={float(np.broadcast_to(array, shape)[where]):.4g} {units}"
+            for name, (array, units) in inputs.items()
+        )
+        shown.append(f"#{where if len(shape) > 1 else flat} ({values})")
+    more = f"; and {error.count - len(points)} more" if error.count > len(points) else ""
+    failure = SolverError(
+        f"implied_voltage: the steady state was not found at {error.count} point(s) "
+        f"({error.reason}): {'; '.join(shown)}{more}"
+    )
+    failure.points, failure.count = points, error.count
+    return failure
 
 
 def _full(values, shape):
@@ -166,12 +236,18 @@ class _State:
     shape: tuple
     given: bool  # n0, p0 given by the caller instead of solved
     ranges: dict  # kernel input -> (min, max), for the validity checks
+    # the equilibrium densities as the intrinsic-lifetime model was fitted with them
+    # (its carrier convention and intrinsic density); n0, p0 where they are the same
+    fit_n0: np.ndarray | None = None
+    fit_p0: np.ndarray | None = None
+    # (T, Nd, Na) of a solved state, for the narrowing at the injected densities
+    dopants: tuple | None = None
 
     def kernel_inputs(self, excess=None):
         return {
             "temperature": self.temperature,
-            "equilibrium_electron_density": self.n0,
-            "equilibrium_hole_density": self.p0,
+            "equilibrium_electron_density": self.n0 if self.fit_n0 is None else self.fit_n0,
+            "equilibrium_hole_density": self.p0 if self.fit_p0 is None else self.fit_p0,
             "excess_density": self.excess if excess is None else excess,
         }
 
@@ -191,8 +267,11 @@ class RecombinationMethods:
         """Radiative recombination coefficient B, cm^3/s (``U = B (n p - n0 p0)``).
 
         The release's model says which quantity it is: ``trupke-2003`` is the
-        coefficient of intrinsic silicon at low injection (see its provenance).
+        coefficient of intrinsic silicon at low injection (see its provenance). A
+        model fitted with another intrinsic density than the release's warns (see
+        :meth:`consistency`).
         """
+        self._warn_mismatches("radiative_coefficient")
         return self._quantity("radiative_coefficient", temperature=temperature)
 
     # ------------------------------------------------------------------ state
@@ -222,10 +301,15 @@ class RecombinationMethods:
             p0_array, *p0_range = coerce(p0, "p0")
             given = True
         else:
-            result, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics)
+            result, _, _, fermi_dirac = self._solve(
+                temperature, Na, Nd, donor, acceptor, statistics
+            )
             n0_array, p0_array = result["electron_density"], result["hole_density"]
-            n0_range, p0_range = _range(n0_array), _range(p0_array)
             given = False
+            fit_n0, fit_p0 = self._fitted_equilibrium(
+                result, temperature, Na, Nd, donor, acceptor, statistics
+            )
+            n0_range, p0_range = _range(fit_n0), _range(fit_p0)
         try:
             shape = np.broadcast_shapes(t.shape, n0_array.shape, p0_array.shape, dn.shape)
         except ValueError:
@@ -240,33 +324,65 @@ class RecombinationMethods:
             "equilibrium_hole_density": tuple(p0_range),
             "excess_density": prepared["excess_density"][1:],
         }
-        return _State(t, n0_array, p0_array, dn, shape, given, ranges)
+        state = _State(t, n0_array, p0_array, dn, shape, given, ranges)
+        if not given:
+            state.fit_n0 = None if fit_n0 is n0_array else fit_n0
+            state.fit_p0 = None if fit_p0 is p0_array else fit_p0
+            state.dopants = (
+                result["temperature"],
+                np.broadcast_to(prepared["donor_density"][0], result["temperature"].shape),
+                np.broadcast_to(prepared["acceptor_density"][0], result["temperature"].shape),
+                fermi_dirac,
+            )
+        return state
+
+    def _fitted_equilibrium(self, result, temperature, Na, Nd, donor, acceptor, statistics):
+        """n0, p0 as the intrinsic-lifetime model was fitted with them: the equilibrium of
+        its carrier convention (complete ionisation, or the free carriers), with the
+        product n0 p0 scaled to its own intrinsic density (``(ni_fit/ni(T_fit))^2``,
+        the net doping n0 - p0 kept). Unknown conventions: the equilibrium as solved."""
+        model = self.model("intrinsic_lifetime")
+        n0, p0 = result["electron_density"], result["hole_density"]
+        if complete_ionisation(model):
+            complete, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics, True)
+            n0, p0 = complete["electron_density"], complete["hole_density"]
+        ratio = self._fitted_ni_ratio(model, result["temperature"])
+        if ratio is None:
+            return n0, p0
+        net = n0 - p0
+        product = n0 * p0 * ratio * ratio
+        majority = 0.5 * np.abs(net) + np.sqrt(0.25 * net * net + product)
+        minority = product / majority
+        return np.where(net >= 0, majority, minority), np.where(net >= 0, minority, majority)
+
+    def _fitted_ni_ratio(self, model, temperature):
+        """ni_fit / ni of a model's intrinsic-density convention (None: not carried)."""
+        entry = model.conventions.get("intrinsic_density") if model.conventions else None
+        if entry is None or not entry.known or entry.value in ("none", "own", "composed"):
+            return None
+        ni = self.model("intrinsic_density")
+        if entry.number:
+            return entry.kernel_value / float(ni(temperature=entry.temperature))
+        other = self.catalog.model("intrinsic_density", entry.value)
+        return other(temperature=temperature) / ni(temperature=temperature)
 
     def _check_intrinsic(self, state: _State):
         """Validity of the intrinsic-lifetime model at these inputs; fit conventions."""
         model = self.model("intrinsic_lifetime")
         for argument, (low, high) in state.ranges.items():
             if low <= high:  # (an empty array has no range)
-                model.check(argument, low, high, self.strict)
+                self._check(model, argument, low, high)
         if model.regions:
-            model.check_regions(state.kernel_inputs(), self.strict)
-        fitted = model.conventions.value("gap_narrowing")
-        used = self.models.get("gap_narrowing")
-        if not state.given and fitted in self.catalog.model_ids("gap_narrowing") and used != fitted:
-            message = (
-                f"model intrinsic_lifetime/{model.id} was fitted with the effective "
-                f"intrinsic density of gap_narrowing/{fitted}; the material uses "
-                f"{used}: the minority densities, and the lifetime where dn is not "
-                "far above them, differ from the published model's"
-            )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._check_regions(model, state.kernel_inputs())
+        if not state.given:
+            self._warn_mismatches("intrinsic_lifetime")
         return model
 
     def _intrinsic(self, state: _State, part="total", excess=None):
         model = self.model("intrinsic_lifetime")
-        return evaluate(model.function or model, state.kernel_inputs(excess), part=part)
+        tau = evaluate(model.function or model, state.kernel_inputs(excess), part=part)
+        factor = self._injection_factor(state, excess)
+        return tau if factor is None else tau / factor
 
     # ------------------------------------------------------------------ intrinsic
     @declare(
@@ -397,7 +513,7 @@ class RecombinationMethods:
         for carrier in ("electron", "hole"):
             bound = model.select(carrier) if model.variant_axis == "carrier" else model
             if low <= high:
-                bound.check("temperature", low, high, self.strict)
+                self._check(bound, "temperature", low, high)
             arguments = {"temperature": t}
             if "carrier" in bound.inputs:
                 arguments["carrier"] = carrier
@@ -439,9 +555,7 @@ class RecombinationMethods:
                     f"outside the range of its data, {low:g}-{high:g} K; the capture "
                     "parameters are extrapolated"
                 )
-                if self.strict:
-                    raise ValidityError(message)
-                warn(message, ValidityWarning)
+                self._violation(message)
 
     def _capture_times(self, defect, t, density, electron_capture_time):
         """(tau_n0, tau_p0) in s for one defect, and a provenance record."""
@@ -482,6 +596,7 @@ class RecombinationMethods:
         """SRH lifetime of several (defect, density, electron_capture_time) items."""
         if not items:
             return None, []
+        _widen(state, items)
         model = self.model("srh_lifetime")
         nc, nv = self.model("densities_of_states")(temperature=state.temperature)
         product = state.n0 * state.p0
@@ -507,8 +622,10 @@ class RecombinationMethods:
             with np.errstate(divide="ignore"):
                 rate = rate + 1.0 / tau
             records.append(record)
+        factor = self._injection_factor(state, excess)  # every rate: n p - ni_eff(n, p)^2
         with np.errstate(divide="ignore"):
-            return _full(1.0 / rate, state.shape), records
+            value = 1.0 / rate if factor is None else 1.0 / (rate * factor)
+            return _full(value, state.shape), records
 
     def _defect_items(self, defect, density, electron_capture_time, defects):
         """Normalise the ways of naming defects into (Defect, density, tau_n0) items."""
@@ -582,6 +699,7 @@ class RecombinationMethods:
         state = self._recombination_state(
             temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
         )
+        _widen(state, items)  # (array densities broadcast with the other inputs)
         value, _ = self._srh(state, items)
         return quantity(value, "s")
 
@@ -648,6 +766,7 @@ class RecombinationMethods:
         state = self._recombination_state(
             temperature, Na, Nd, excess, n0, p0, donor, acceptor, statistics
         )
+        _widen(state, items)  # (array densities broadcast with the other inputs)
         self._check_intrinsic(state)
         parts = self._lifetime_parts(state, items)
         provenance = self._recombination_provenance("effective_lifetime", parts["records"], state)
@@ -660,6 +779,11 @@ class RecombinationMethods:
             excess_density=quantity(_full(state.excess, state.shape), "cm^-3"),
             equilibrium_electron_density=quantity(_full(state.n0, state.shape), "cm^-3"),
             equilibrium_hole_density=quantity(_full(state.p0, state.shape), "cm^-3"),
+            assumptions=(
+                LIFETIME_ASSUMPTIONS_INJECTED
+                if not state.given and self._injection_narrows()
+                else LIFETIME_ASSUMPTIONS
+            ),
             provenance=provenance,
         )
 
@@ -677,6 +801,70 @@ class RecombinationMethods:
             "srh": srh_value,
             "records": records,
         }
+
+    def _injection_narrows(self) -> bool:
+        """Whether the narrowing depends on the free carriers and says so in its fit
+        conventions (Schenk's): then the injected densities narrow the gap further."""
+        bound = self._carriers()
+        conventions = bound.narrowing.conventions
+        return (
+            bound.uses_carriers
+            and conventions.recorded
+            and conventions.value("carrier_densities") == "free"
+        )
+
+    def _injected_narrowing(self, state, excess, floor=0.0):
+        """(dEg(n, p) - dEg(n0, p0)) / kT at the injected densities n0 + dn, p0 + dn,
+        dn raised to ``floor`` x (n0 + p0) at least (None: no change)."""
+        if state.given or state.dopants is None or not self._injection_narrows():
+            return None
+        dn = state.excess if excess is None else excess
+        t, nd, na, _ = state.dopants
+        bound = self._carriers()
+        n0, p0 = state.n0, state.p0
+        if floor:
+            dn = np.maximum(dn, floor * (n0 + p0))
+        before = bound.shifts(t, nd, na, n0, p0)
+        after = bound.shifts(t, nd, na, n0 + dn, p0 + dn)
+        kt = BOLTZMANN_EV * t
+        return ((after[0] - before[0]) + (after[1] - before[1])) / kt
+
+    def _degeneracy_change(self, state, dn):
+        """ln(gamma_n gamma_p) at n0 + dn, p0 + dn less its equilibrium value (0 with
+        Boltzmann statistics): gamma = F_1/2(eta) / exp(eta), n = Nc F_1/2(eta)."""
+        t, _, _, fermi_dirac = state.dopants
+        if not fermi_dirac:
+            return 0.0
+        from ..kernels.fermi_dirac import fd_half_inverse
+
+        nc, nv = self._carriers().dos(temperature=t)
+
+        def log_gamma(density, states):
+            reduced = density / states
+            return np.log(reduced) - fd_half_inverse(reduced)
+
+        return (
+            log_gamma(state.n0 + dn, nc)
+            + log_gamma(state.p0 + dn, nv)
+            - log_gamma(state.n0, nc)
+            - log_gamma(state.p0, nv)
+        )
+
+    def _injection_factor(self, state, excess):
+        """``(n p - ni_eff(n, p)^2) / (n p - n0 p0)``: the share of every net rate left
+        when the narrowing at the injected densities (Schenk's) raises ni_eff; None
+        where the narrowing does not depend on the carriers (or n0, p0 were given)."""
+        # the rise of ni_eff^2 per excess carrier, (ni_eff(n, p)^2/n0 p0 - 1) / dn, taken
+        # over at least 1e-4 (n0 + p0): a secant that tends to the derivative as dn -> 0
+        # without the round-off of a difference over a vanishing step
+        extra = self._injected_narrowing(state, excess, floor=_SECANT)
+        if extra is None:
+            return None
+        dn = state.excess if excess is None else excess
+        n0, p0 = state.n0, state.p0
+        step = np.maximum(dn, _SECANT * (n0 + p0))
+        share = 1.0 - n0 * p0 * (np.expm1(extra) / step) / (n0 + p0 + dn)
+        return _full(share, state.shape)
 
     def _recombination_provenance(self, name, records, state):
         provenance = self.provenance(name)
@@ -767,6 +955,7 @@ class RecombinationMethods:
         state = self._recombination_state(
             temperature, Na, Nd, 0.0, n0, p0, donor, acceptor, statistics
         )
+        _widen(state, items)
         shape = np.broadcast_shapes(state.shape, rate.shape)
         state.shape = shape
         state.excess = np.zeros(shape)
@@ -778,14 +967,23 @@ class RecombinationMethods:
 
         low_injection = self._lifetime_parts(state, items, np.zeros(shape))["effective"]
         guess = np.clip(rate * low_injection, 1.0, 1e22)
-        dn = voltage_kernel.steady_state_excess(recombination, rate, guess)
+        try:
+            dn = voltage_kernel.steady_state_excess(recombination, rate, guess)
+        except SolverError as error:  # name the failing points by their inputs
+            raise _steady_state_failure(error, state, g_area, w, shape) from None
         state.excess = dn
         state.ranges["excess_density"] = _range(dn)
         self._check_intrinsic(state)  # the excess densities reached
         parts = self._lifetime_parts(state, items)
         volts = voltage_kernel.implied_voltage(state.temperature, state.n0, state.p0, dn)
+        extra = self._injected_narrowing(state, dn)
+        if extra is not None:  # qV = kT ln[n p / (gamma_n gamma_p ni_eff(n, p)^2)]
+            volts = volts - BOLTZMANN_EV * state.temperature * (
+                extra + self._degeneracy_change(state, dn)
+            )
         provenance = self._recombination_provenance("implied_voltage", parts["records"], state)
-        provenance["assumptions"] = ASSUMPTIONS
+        assumptions = ASSUMPTIONS_INJECTED if extra is not None else ASSUMPTIONS
+        provenance["assumptions"] = assumptions
         return ImpliedVoltage(
             implied_voltage=quantity(_full(volts, shape), "V"),
             excess_density=quantity(_full(dn, shape), "cm^-3"),
@@ -795,7 +993,7 @@ class RecombinationMethods:
             srh_lifetime=_optional(parts["srh"]),
             equilibrium_electron_density=quantity(_full(state.n0, shape), "cm^-3"),
             equilibrium_hole_density=quantity(_full(state.p0, shape), "cm^-3"),
-            assumptions=ASSUMPTIONS,
+            assumptions=assumptions,
             provenance=provenance,
         )
 

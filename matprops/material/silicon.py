@@ -19,8 +19,9 @@ from collections.abc import Iterable, Mapping
 
 import numpy as np
 
+from ..catalogue.records import report_violation
 from ..catalogue.store import Catalog, Model, default_catalog
-from ..errors import DatasetError, InputError, UnknownQuantityError
+from ..errors import DatasetError, Error, InputError, UnknownQuantityError, Unusable
 from ..kernels._blocks import evaluate
 from ..units import check_broadcast, coerce, quantity
 from ..units import name as check_name
@@ -64,6 +65,11 @@ class Silicon(
     gives a scalar output. Outputs are pint quantities.
     """
 
+    # validity policy besides ``strict`` (see _check); class defaults, so that copies
+    # made without __init__ (propagation.changed_material) have them too
+    _checked = False  # a view whose inputs were checked already skips the checks
+    _report = None  # a callable taking each validity message instead of a warning
+
     def __init__(
         self,
         release: str | None = None,
@@ -95,10 +101,47 @@ class Silicon(
             self._bind(name, choice)
 
     def __reduce__(self):
-        # pickled by release, overrides, strict flag and catalogue, re-bound on load;
-        # the model files' hashes travel along so that both sides use the same numbers
-        hashes = {q: m.sha256 for q, m in self._models.items()}
-        return _restore, (self.catalog, self.release.id, self._overrides, self.strict, hashes)
+        # pickled by release, overrides, strict flag and datasets folder (None: the
+        # receiver's installed data), re-bound on load; the digests of every data file
+        # the material reads travel along, so that both sides use the same numbers
+        base = self.catalog.base
+        root = None if base is default_catalog() else str(base.root)
+        return _restore, (
+            root,
+            self.release.id,
+            self._overrides,
+            self.strict,
+            self._data_digests(),
+        )
+
+    def _data_digests(self) -> dict[str, str]:
+        """Relative path -> recorded sha256 of every data file this material's numbers
+        are read from: the release file, the model file of every bound model (and of the
+        models they are composed of), the tables those read, every defect file of the
+        catalogue and the thermal-velocity model each defect names. Every file is
+        verified against the checksum list when read, so equal digests mean equal data."""
+        digests = self.__dict__.get("_digests")
+        if digests is None:
+            digests = _data_digests(self)
+            self.__dict__["_digests"] = digests
+        return digests
+
+    def _digest_mismatch(self, expected: Mapping[str, str]) -> DatasetError | None:
+        """The first data file whose digest here differs from ``expected`` (those of the
+        process that pickled the material or made the lazy table), as an error."""
+        here = self._data_digests()
+        root = self.catalog.base.root
+        for path in sorted(set(here) | set(expected)):
+            mine, theirs = here.get(path), expected.get(path)
+            if mine != theirs:
+                return DatasetError(
+                    root / path,
+                    f"has sha256 {mine or '(no such file)'} here but "
+                    f"{theirs or '(no such file)'} where the material was pickled (or the "
+                    "lazy table made): the two processes read different data; give the "
+                    "workers the same datasets folder and release",
+                )
+        return None
 
     def _bind(self, name: str, choice: Mapping[str, str], chain=()) -> Model:
         if name in self._models:
@@ -148,7 +191,8 @@ class Silicon(
         ``kernel.derivatives(...)``. ``fixed`` chooses what a quantity needs fixed:
         ``carrier=`` (and ``donor=`` / ``acceptor=`` where the model has one
         coefficient set per dopant) for the transport quantities; ``dopant=`` for
-        ionisation; ``donor=``, ``acceptor=`` and ``statistics=`` for ``equilibrium``
+        ionisation; ``donor=``, ``acceptor=``, ``statistics=`` and ``complete_ionisation=``
+        (every dopant ionised) for ``equilibrium``
         (a callable ``(temperature, donor_density, acceptor_density) -> dict of
         arrays``).
         """
@@ -185,12 +229,53 @@ class Silicon(
         values, ranges = {}, {}
         for argument in model.inputs:
             array, low, high = prepared[argument]
-            model.check(argument, low, high, self.strict)
+            self._check(model, argument, low, high)
             values[argument] = array
             ranges[argument] = (low, high)
         if model.regions:
-            model.check_regions(values, self.strict, ranges)
+            self._check_regions(model, values, ranges)
         return evaluate(model.function or model, values)  # in blocks for large inputs
+
+    # ------------------------------------------------------------------ validity
+    # Every validity check of the material goes through these three: a warning (or a
+    # ValidityError when strict), a message handed to the application's reporter, or
+    # nothing in a view whose inputs were checked already (a table checks its grid's
+    # extremes once and evaluates its blocks with such a view). No warning filter is
+    # ever touched, so another thread's warnings are never lost.
+    def _check(self, model: Model, argument: str, low: float, high: float) -> None:
+        if not self._checked:
+            model.check(argument, low, high, self.strict, self._report)
+
+    def _check_regions(self, model: Model, values, ranges=None) -> None:
+        if not self._checked:
+            model.check_regions(values, self.strict, ranges, self._report)
+
+    def _violation(self, message: str) -> None:
+        """A validity message of the material's own (not of one model's range)."""
+        if not self._checked:
+            report_violation(message, self.strict, self._report)
+
+    def _checked_already(self) -> Silicon:
+        """A view of this material whose methods skip the validity checks: the caller
+        has checked the inputs' ranges already (a table, on its grid's extremes) or
+        crosses them on purpose (the reference grid). Shares the bound models."""
+        view = self.__dict__.get("_checked_view")
+        if view is None:
+            view = object.__new__(type(self))
+            view.__dict__.update(self.__dict__)
+            view.__dict__.pop("_kernel_cache", None)
+            view._checked = True
+            self.__dict__["_checked_view"] = view
+        return view
+
+    def _sibling(self, models: Mapping[str, str]) -> Silicon:
+        """The same release, strictness, catalogue and reporter with other model
+        choices (``models`` are overrides on top of the release's)."""
+        sibling = type(self)(
+            release=self.release.id, models=models, strict=self.strict, catalog=self.catalog.base
+        )
+        sibling._report = self._report
+        return sibling
 
     def _quantity(self, name: str, **arguments):
         result, units = self._evaluate(name, **arguments)
@@ -213,6 +298,19 @@ class Silicon(
                 record["composition"] = note
         else:
             record = self.model(name).provenance()
+        # how the fit conventions of the models behind it were honoured (or not)
+        parts = DERIVED[name][0] if name in DERIVED else (name,)
+        report = self.consistency()
+        applied = [entry for q in parts for entry in report.applied.get(q, ())]
+        if applied:
+            record["conventions_applied"] = applied
+        mismatched = [m.as_dict() for q in parts for m in report.of(q)]
+        if mismatched:
+            record["conventions_mismatched"] = mismatched
+        if name == "doping_from_resistivity":
+            record["conversion_default"] = self.release.defaults.get(
+                "doping_from_resistivity", "physics"
+            )
         record["release"] = self.release.id
         record["release_status"] = self.release.status
         if self.release.final and name not in DERIVED:
@@ -223,6 +321,34 @@ class Silicon(
         if name in self.overridden:
             record["release_choice"] = self.release.models.get(name)
         return record
+
+    def consistency(self):
+        """Whether the models in use are fed what their coefficients were fitted with.
+
+        Returns a :class:`~matprops.material.composition.Consistency` report: its
+        ``mismatches`` (empty for a consistent choice, such as every release's
+        default) list each fit convention of a model in use that the material could not
+        honour (a lifetime parameterisation fitted with another narrowing, ...) with
+        its size at standard points (300 K; 1e15, 1e17, 1e19 cm^-3 of donors and of
+        acceptors); ``applied`` says, per quantity, what the composition carried to
+        honour the conventions (densities fed, the fit's own intrinsic density or
+        densities of states, statistics); ``unverified`` lists conventions not known;
+        ``stand_ins`` the dopant species served by another's coefficient set.
+        Computing model that uses a mismatched composition warns (a ValidityWarning),
+        or raises with ``strict=True``.
+        """
+        report = self.__dict__.get("_consistency")
+        if report is None:
+            from .composition import consistency
+
+            report = self.__dict__["_consistency"] = consistency(self)
+        return report
+
+    def _warn_mismatches(self, quantity: str) -> None:
+        """Warn (raise when strict) for each fit convention of ``quantity``'s model that
+        the material cannot honour (see :meth:`consistency`)."""
+        for mismatch in self.consistency().of(quantity):
+            self._violation(mismatch.message())
 
     def sources(self, names: Iterable[str] | None = None):
         """Unique (citation key, Source) pairs behind the given quantities (default: all)."""
@@ -261,7 +387,9 @@ class Silicon(
 
         Axes by name or alias (``T``, ``Na``, ``Nd``, ``excess``, ``n``, ``p``,
         ``wavelength``, ``carrier``, ``plane``) and ``chunks=`` for a lazy dask-backed
-        Dataset; see :func:`matprops.tables.table`.
+        Dataset; a grid of more than ``max_values`` values (1e8 by default, 0.8 GB;
+        ``None`` for no limit) is an InputError before anything is allocated; see
+        :func:`matprops.tables.table`.
         """
         from .tables import table
 
@@ -297,17 +425,48 @@ class Silicon(
         )
 
 
-def _restore(catalog, release, overrides, strict, hashes) -> Silicon:
-    si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog)
-    for name, model in si._models.items():
-        if model.sha256 != hashes.get(name):
-            raise DatasetError(
-                model.path,
-                f"has sha256 {model.sha256} here but "
-                f"{hashes.get(name)} where the material was pickled: "
-                "the two processes read different data",
-            )
-    return si
+def _restore(root, release, overrides, strict, digests) -> Silicon | Unusable:
+    """Unpickle a material; never raises (see :class:`matprops.errors.Unusable`): a
+    material whose data differ here, or cannot be read, raises on its first use."""
+    from ..catalogue.store import catalog_at
+
+    try:
+        si = Silicon(release=release, models=overrides, strict=strict, catalog=catalog_at(root))
+        mismatch = si._digest_mismatch(digests)
+    except Error as exc:
+        return Unusable(exc, Silicon)
+    return si if mismatch is None else Unusable(mismatch, Silicon)
+
+
+def _data_digests(si: Silicon) -> dict[str, str]:
+    from ..catalogue import defects
+
+    files = {si.release.path}
+    seen = set()
+
+    def walk(model):
+        if id(model) in seen:
+            return
+        seen.add(id(model))
+        files.add(model.path)
+        for name in model.tables:
+            files.add(model.catalogue.table_path(name))
+        for component in model.components.values():
+            walk(component)
+
+    for model in si._models.values():
+        walk(model)
+    for entry in defects.describe(si.catalog):
+        files.add(entry.path)
+        if entry.thermal_velocity:
+            files.add(si.catalog.model("thermal_velocity", entry.thermal_velocity).path)
+    base = si.catalog.base
+    return {
+        path.relative_to(base.root).as_posix(): base.checksums().get(
+            path.relative_to(base.root).as_posix(), ""
+        )
+        for path in files
+    }
 
 
 def silicon(

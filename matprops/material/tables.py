@@ -28,7 +28,6 @@ import functools
 import itertools
 import json
 import math
-import warnings
 from collections.abc import Callable, Iterable, Mapping
 
 import numpy as np
@@ -39,7 +38,7 @@ from ..errors import (
     SkippedModelWarning,
     UnknownModelError,
     UnknownQuantityError,
-    ValidityWarning,
+    warn,
 )
 from ..units import NEEDS_UNIT, cf_units, to_magnitude
 from ..units import name as check_name
@@ -67,6 +66,12 @@ Axis = vocabulary.Argument
 #: the tabulable quantities: the quantity registry (:mod:`.registry`)
 QUANTITIES = REGISTRY
 Tabulated = Quantity
+
+#: Most values (grid points x outputs, over every quantity) a table evaluates in memory
+#: unless told otherwise (``max_values=``; ``--allow-large`` on the command line): 1e8
+#: float64 values are 0.8 GB. A lazy table (``chunks=``) is not held in memory and has
+#: no such limit.
+MAX_VALUES = 10**8
 
 
 def axis(name: str) -> Axis:
@@ -398,9 +403,9 @@ def _evaluate(si, entry: Tabulated, grid: _Grid, progress=None, done=0, total=0)
             progress(done + outs[0].size, total)
         return dims, outs, units
     units = _check_extremes(si, entry, grid, dims)  # warns once, or raises if strict
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", ValidityWarning)  # checked on the extremes above
-        outs = _in_blocks(si, entry, values, dims, units, progress, done, total)
+    # the blocks are evaluated by a view that knows the extremes were checked (no
+    # warning filter: another thread's warnings must still arrive)
+    outs = _in_blocks(si._checked_already(), entry, values, dims, units, progress, done, total)
     return dims, outs, units
 
 
@@ -452,30 +457,45 @@ def _recipe(si):
     return (type(si), root, si.release.id, overrides, si.strict)
 
 
-class _BlockFunction:
-    """Picklable block evaluator for dask: one output part of one quantity."""
+@functools.lru_cache(maxsize=8)
+def _verified(recipe, digests):
+    """The material of a recipe, once its data files were found to have the digests
+    of the process that made the lazy table (a DatasetError, raised in the task and
+    sent back to the client, when they differ)."""
+    si = _rebuild(recipe)
+    mismatch = si._digest_mismatch(dict(digests))
+    if mismatch is not None:
+        raise mismatch
+    return si
 
-    def __init__(self, recipe, quantity, dims, scalars, part, all_units):
+
+class _BlockFunction:
+    """Picklable block evaluator for dask: one output part of one quantity.
+
+    It carries the recipe of the material and the digests of every data file the
+    material reads, and checks them on its first call in a worker (never while being
+    unpickled: an error there would hang the client)."""
+
+    def __init__(self, recipe, quantity, dims, scalars, part, all_units, digests=()):
         self.recipe, self.quantity, self.dims = recipe, quantity, dims
         self.scalars, self.part, self.all_units = scalars, part, all_units
         self.units = all_units[part]
+        self.digests = digests
 
     def __call__(self, *blocks):
-        si = _rebuild(self.recipe)
+        # validity was checked on the grid's extremes before the graph was made: the
+        # worker's view skips the checks (no warning filter is touched)
+        si = _verified(self.recipe, self.digests)._checked_already()
         values = dict(self.scalars)
         values.update(zip(self.dims, blocks, strict=True))
         entry = QUANTITIES[self.quantity]
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", ValidityWarning)  # checked before the graph
-            if math.prod(values[d].size for d in self.dims) <= BLOCK:
-                outs, got = _call_block(si, entry, values, self.dims)
-                out = outs[self.part]
-                return (
-                    out
-                    if got[self.part] == self.units
-                    else _convert(out, got[self.part], self.units)
-                )
-            return _in_blocks(si, entry, values, self.dims, self.all_units)[self.part]
+        if math.prod(values[d].size for d in self.dims) <= BLOCK:
+            outs, got = _call_block(si, entry, values, self.dims)
+            out = outs[self.part]
+            return (
+                out if got[self.part] == self.units else _convert(out, got[self.part], self.units)
+            )
+        return _in_blocks(si, entry, values, self.dims, self.all_units)[self.part]
 
 
 def _chunk_sizes(chunks, dims: list[str], grid: _Grid) -> dict[str, int]:
@@ -508,10 +528,11 @@ def _evaluate_lazy(si, entry: Tabulated, grid: _Grid, chunks):
     for d, letter in zip(dims, letters, strict=True):
         arguments += [da.from_array(grid.values[d], chunks=sizes[d]), letter]
     recipe = _recipe(si)
+    digests = tuple(sorted(si._data_digests().items()))
     outs = []
-    token = _grid_token(grid, (recipe, sorted(sizes.items())))
+    token = _grid_token(grid, (recipe, digests, sorted(sizes.items())))
     for part in range(len(units)):
-        function = _BlockFunction(recipe, entry.name, dims, scalars, part, units)
+        function = _BlockFunction(recipe, entry.name, dims, scalars, part, units, digests)
         outs.append(
             da.blockwise(
                 function,
@@ -549,6 +570,7 @@ def table(
     uncertainty: bool = False,
     samples: int | None = None,
     seed: int = 0,
+    max_values: int | None = MAX_VALUES,
     **axes,
 ):
     """Evaluate quantities of ``si`` on a grid -> :class:`xarray.Dataset`.
@@ -575,6 +597,17 @@ def table(
         ``<variable>_model_spread`` (over the catalogue's models valid at each point),
         linked by CF ``ancillary_variables``; ``samples`` and ``seed`` of Monte Carlo
         draws (see :mod:`matprops.material.uncertainty`). Not with ``chunks``.
+    max_values : int or None
+        Most values (grid points times outputs, summed over the quantities; three
+        times that with ``uncertainty``) evaluated in memory, :data:`MAX_VALUES` (1e8,
+        0.8 GB) by default; ``None`` for no limit. A lazy table (``chunks=``) is not
+        held in memory and is not limited.
+
+    Raises
+    ------
+    matprops.InputError
+        For a grid larger than ``max_values`` (before anything is allocated: the size is
+        the product of the axes' lengths), naming its size and how to go beyond it.
 
     Returns
     -------
@@ -594,6 +627,11 @@ def table(
     grid = _Grid(axes, si.catalog)
     entries = _select(si, grid, quantities)
     _refuse_or_drop_unused(grid, entries, named=quantities is not None)
+    eager = [e for e in entries if chunks is None or not grid.dims_of(e)]
+    if uncertainty:
+        check_size(grid, eager, max_values, 3, "parts: value, uncertainty and model spread")
+    else:
+        check_size(grid, eager, max_values)
     names_asked = [e.name for e in entries]
     total = sum(grid.size_of(e) for e in entries)
     variables = {}  # the Dataset is built once at the end: each __setitem__ is a merge
@@ -679,6 +717,32 @@ def _with_validity(si, data, entries):
     return data.assign(extra)
 
 
+def values_in(grid: _Grid, entries, copies: int = 1) -> int:
+    """How many values a table of these entries holds (grid points x outputs)."""
+    return copies * sum(grid.size_of(e) * len(e.outputs) for e in entries)
+
+
+def check_size(
+    grid: _Grid, entries, max_values: int | None, copies: int = 1, copies_of: str = ""
+) -> None:
+    """An InputError for a table of more than ``max_values`` values, before any work."""
+    if max_values is None:
+        return
+    if isinstance(max_values, bool) or not isinstance(max_values, (int, np.integer)):
+        raise InputError("max_values", "a positive integer or None", repr(max_values))
+    count = values_in(grid, entries, copies)
+    if count <= max_values:
+        return
+    axes = " x ".join(f"{grid.values[d].size} {d}" for d in grid.dims) or "scalars"
+    raise InputError(
+        "grid",
+        f"at most {max_values:.3g} values in memory (max_values=None, or --allow-large on "
+        "the command line, goes beyond; chunks= makes a lazy table)",
+        f"{count:.3g} values ({axes}, {len(entries)} quantit{'y' if len(entries) == 1 else 'ies'}"
+        f"{f', {copies} {copies_of}' if copies > 1 else ''}; {8 * count / 1e9:.3g} GB)",
+    )
+
+
 def _provenance_json(si, name: str) -> str:
     try:
         record = si.provenance(name)
@@ -706,7 +770,10 @@ def _compare_one(variant, quantity, chunks, progress, axes):
     from ..errors import UnknownVariantError
 
     try:
-        return table(variant, [quantity], chunks=chunks, progress=progress, **axes), ""
+        return (
+            table(variant, [quantity], chunks=chunks, progress=progress, max_values=None, **axes),
+            "",
+        )
     except UnknownVariantError as exc:
         missing = exc
     grid = _Grid(axes, variant.catalog)
@@ -723,7 +790,13 @@ def _compare_one(variant, quantity, chunks, progress, axes):
         return None, f"skipped: {note}"
     given = {k: v for k, v in axes.items() if axis(k).name != category}
     part = table(
-        variant, [quantity], chunks=chunks, progress=progress, **given, **{category: inside}
+        variant,
+        [quantity],
+        chunks=chunks,
+        progress=progress,
+        max_values=None,
+        **given,
+        **{category: inside},
     )
     filled = part.reindex({category: asked})
     for name in [n for n in filled.data_vars if n.endswith("_validity")]:
@@ -733,7 +806,14 @@ def _compare_one(variant, quantity, chunks, progress, axes):
 
 
 def compare(
-    si, quantity: str, models: Iterable[str] | None = None, *, chunks=None, progress=None, **axes
+    si,
+    quantity: str,
+    models: Iterable[str] | None = None,
+    *,
+    chunks=None,
+    progress=None,
+    max_values: int | None = MAX_VALUES,
+    **axes,
 ):
     """Evaluate several models of one quantity on the same grid.
 
@@ -742,7 +822,8 @@ def compare(
     si : matprops.Silicon (its release, other model choices and strictness are kept)
     quantity : a quantity with model files (``matprops.models()`` lists them)
     models : model ids (default: every model of the quantity)
-    **axes, chunks, progress : as for :func:`table`
+    **axes, chunks, progress, max_values : as for :func:`table` (the values of every
+        model's table count towards ``max_values``)
 
     Returns
     -------
@@ -768,14 +849,12 @@ def compare(
             raise UnknownModelError(model_id, known, f"for quantity {quantity!r}")
     if len(set(ids)) != len(ids):
         raise InputError("models", "distinct model ids", repr(ids))
+    if chunks is None:  # every model's table, before any is evaluated
+        grid = _Grid(axes, si.catalog)
+        check_size(grid, [QUANTITIES[quantity]], max_values, len(ids), "models")
     parts, citations, provenance, skipped, kept = [], [], {}, {}, []
     for model_id in ids:
-        variant = type(si)(
-            release=si.release.id,
-            models={**_overrides(si), quantity: model_id},
-            strict=si.strict,
-            catalog=si.catalog,
-        )
+        variant = si._sibling({**_overrides(si), quantity: model_id})
         data, note = _compare_one(variant, quantity, chunks, progress, axes)
         if note:
             skipped[model_id] = note
@@ -792,7 +871,11 @@ def compare(
             "; ".join(f"{m}: {n}" for m, n in skipped.items()),
         )
     for model_id, note in skipped.items():
-        warnings.warn(f"compare {quantity}: {model_id} {note}", SkippedModelWarning, 2)
+        message = f"compare {quantity}: {model_id} {note}"
+        if getattr(si, "_report", None) is not None:  # the application's reporter
+            si._report(message)
+        else:
+            warn(message, SkippedModelWarning)
     ids = kept
     combined = xr.concat(
         parts,
@@ -811,14 +894,18 @@ def compare(
         variable.attrs.update(
             {"model": ", ".join(ids), "provenance": json.dumps(provenance, ensure_ascii=False)}
         )
-        valid = variable.where(combined[f"{name}_validity"] == 0)  # inside their ranges
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN points stay NaN
-            high, low = valid.max("model", skipna=True), valid.min("model", skipna=True)
-            spread = high - low
-            scale = abs(valid).mean("model", skipna=True)
-            relative = spread / scale.where(scale != 0)
-            count = (combined[f"{name}_validity"] == 0).sum("model").astype(np.int16)
+        # only the models inside their validity range at a point count there; NaN (a
+        # table model without data) is skipped, a point with no valid model stays NaN
+        # (written without nanmax, which warns there)
+        valid = variable.where(combined[f"{name}_validity"] == 0)
+        count = valid.notnull().sum("model")
+        anywhere = count > 0
+        high = valid.fillna(-np.inf).max("model").where(anywhere)
+        low = valid.fillna(np.inf).min("model").where(anywhere)
+        spread = high - low
+        scale = abs(valid).fillna(0.0).sum("model") / count.where(anywhere)
+        relative = spread / scale.where(scale != 0)
+        count = count.astype(np.int16)
         combined[f"{name}_spread"] = spread.assign_attrs(
             {
                 "units": variable.attrs["units"],

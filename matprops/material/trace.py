@@ -248,7 +248,7 @@ def _transport_chain(si, t, na, nd, donor, acceptor):
             continue
         species = acceptor if na > 0 or nd == 0 else donor
         (level, share), degeneracy = bound.level(
-            species, np.array([na if species == acceptor else nd]), complete
+            species, np.array([na if species == acceptor else nd]), T, complete
         )
         result = bound.equilibrium(
             T, np.array([nd]), np.array([na]), donor, acceptor, fermi_dirac, complete
@@ -266,8 +266,15 @@ def _transport_chain(si, t, na, nd, donor, acceptor):
                 {"N": (na if species == acceptor else nd, "cm^-3")},
             )
         )
+        notes = []
         if complete:
-            steps[-1].note = "complete ionisation (the mobility's fit convention): b taken as 0"
+            notes.append("complete ionisation (the mobility's fit convention): b taken as 0")
+        if bound.level_states is not None:
+            notes.append(
+                "the level carries the model's own densities of states: E_dopant + kT "
+                f"ln(N/N_fit) with N_fit of {bound.level_states.id}"
+            )
+        steps[-1].note = "; ".join(notes)
         dec, dev = result["conduction_edge_shift"][0], result["valence_edge_shift"][0]
         steps.append(
             _model_step(
@@ -291,6 +298,17 @@ def _transport_chain(si, t, na, nd, donor, acceptor):
             f" - {_number(offset)} eV (the apparent narrowing's ni offset)" if offset else ""
         )
         statistics = "Fermi-Dirac, F = F_1/2" if fermi_dirac else "Boltzmann, F = exp"
+        by_density = bound.occupancy_from_densities and fermi_dirac
+        acceptor_label = (
+            "Na- = Na [(1-b) + b / (1 + g (p0/Nv) exp(E_dopant/kT))]"
+            if by_density
+            else "Na- = Na [(1-b) + b / (1 + g exp(E_dopant/kT + eta_v))]"
+        )
+        donor_label = (
+            "Nd+ = Nd [(1-b) + b / (1 + g (n0/Nc) exp(E_dopant/kT))]"
+            if by_density
+            else "Nd+ = Nd [(1-b) + b / (1 + g exp(E_dopant/kT + eta))]"
+        )
         steps.append(
             Step(
                 "equilibrium (charge neutrality p + Nd+ = n + Na-)"
@@ -301,17 +319,18 @@ def _transport_chain(si, t, na, nd, donor, acceptor):
                     "eta_v = (Ev' - E_F)/kT = -eta - Eg'/kT": (eta_v, ""),
                     "n0 = Nc F(eta)": (result["electron_density"][0], "cm^-3"),
                     "p0 = Nv F(eta_v)": (result["hole_density"][0], "cm^-3"),
-                    "Na- = Na [(1-b) + b / (1 + g exp(E_dopant/kT + eta_v))]": (
-                        result["ionised_acceptors"][0],
-                        "cm^-3",
-                    ),
-                    "Nd+ = Nd [(1-b) + b / (1 + g exp(E_dopant/kT + eta))]": (
-                        result["ionised_donors"][0],
-                        "cm^-3",
-                    ),
+                    acceptor_label: (result["ionised_acceptors"][0], "cm^-3"),
+                    donor_label: (result["ionised_donors"][0], "cm^-3"),
                 },
                 formula=f"statistics: {statistics}; F_1/2 normalised, F_1/2(x) -> exp(x) "
-                "for x << 0; relative neutrality residual "
+                "for x << 0"
+                + (
+                    "; the dopants' occupancy written with n0/Nc and p0/Nv (their ionisation "
+                    "model was fitted with Boltzmann statistics)"
+                    if by_density
+                    else ""
+                )
+                + "; relative neutrality residual "
                 f"{abs(float(result['residual'][0])):.1e}",
             )
         )
@@ -446,13 +465,31 @@ def explain(si, quantity: str, **inputs) -> Trace:
                 inputs={"rho": (values["resistivity"], "ohm*cm"), "T": (t, "K")},
             )
         )
+        standard = bool(si._standard_applies(dopant, np.array([t]), None)[0])
+        if standard:
+            model = si.model("standard_dopant_density").select(dopant)
+            steps[-1] = _model_step(
+                f"{dopant} density by the standard's conversion",
+                model,
+                {"N": (density, "cm^-3")},
+                {"rho": (values["resistivity"], "ohm cm"), "T": (t, "K")},
+            )
         chain, conventions, sigma = _transport_chain(si, t, na, nd, donor, acceptor)
+        route = (
+            "the standard's (ASTM F723), the release's default where it holds (23 degC "
+            "+-0.5 K); the physics chain below shows what the release's models give at "
+            "that density"
+            if standard
+            else "the release's physics, inverted: the chain below reproduces the resistivity"
+        )
+        conventions.insert(0, f"conversion: {route}")
         steps += chain
         steps.append(
             Step(
-                "check: resistivity at that density",
+                "check: resistivity at that density (the release's physics)",
                 {"rho": (1.0 / sigma, "ohm cm")},
-                formula="rho = 1 / sigma reproduces the resistivity given",
+                formula="rho = 1 / sigma"
+                + ("" if standard else ": it reproduces the resistivity given"),
             )
         )
         constants = {"q": (ELEMENTARY_CHARGE, "C"), "k": (BOLTZMANN_EV, "eV/K")}

@@ -30,9 +30,6 @@ import numpy as np
 from ..errors import (
     InputError,
     SolverError,
-    ValidityError,
-    ValidityWarning,
-    warn,
 )
 from ..kernels import resistivity as resistivity_kernels
 from ..kernels.constants import BOLTZMANN_EV
@@ -40,7 +37,7 @@ from ..kernels.diffusivity import einstein_factor
 from ..units import coerce, quantity
 from ..vocabulary import CARRIERS, DOPANTS, carrier_name, dopant_species
 from .bound import model_kernel
-from .composition import complete_ionisation
+from .composition import complete_ionisation, species_model
 from .registry import DOPINGS, TEMPERATURES, TRANSPORT_TEMPERATURES, case
 from .registry import quantity as declare
 
@@ -59,7 +56,16 @@ _HIGHEST_DENSITY = 1e21  # cm^-3: the top of the bracket for doping from resisti
 def _carrier_kernel(si, name, fixed):
     """The bound kernel of a transport quantity (``carrier=`` required; see
     ``TransportMethods._transport_kernel``)."""
-    return model_kernel(si, name, si._transport_kernel(name, fixed), fixed)
+    model = si._transport_kernel(name, fixed)
+    note = ""
+    if name == "mobility" and model.variant_axis == "dopant":
+        carrier = carrier_name(fixed.get("carrier"))
+        key, default = ("donor", "phosphorus") if carrier == "electron" else ("acceptor", "boron")
+        species = dopant_species(fixed.get(key, default), key, key)
+        stand_in = species_model(si.model("mobility"), species, si.catalog)[1]
+        if stand_in is not None:  # another species' coefficient set: labelled
+            note = f"The dopant {stand_in.describe()}"
+    return model_kernel(si, name, model, fixed, note)
 
 
 def _per_carrier(name, **grid):
@@ -128,7 +134,8 @@ class TransportMethods:
         """The release's mobility model bound to the coefficient set for ``carrier``."""
         model = self.model("mobility")
         if model.variant_axis == "dopant":
-            return model.select(donor if carrier == "electron" else acceptor)
+            species = donor if carrier == "electron" else acceptor
+            return species_model(model, species, self.catalog)[0]
         if model.variant_axis == "carrier":
             return model.select(carrier)
         return model
@@ -282,6 +289,7 @@ class TransportMethods:
         kV/cm), >= 0. Other arguments as for :meth:`mobility`.
         """
         carrier = carrier_name(carrier)
+        self._warn_mismatches("high_field_mobility")
         model = self.model("high_field_mobility").select(carrier)
         low = self.mobility(
             carrier,
@@ -340,8 +348,9 @@ class TransportMethods:
         """Diffusion coefficient of electrons or holes, cm^2/s (Einstein relation).
 
         ``D = mu kT/q x F_1/2(eta) / F_-1/2(eta)``: the Fermi-Dirac factor (> 1 in
-        degenerate silicon) at the equilibrium reduced Fermi level, or at the
-        quasi-Fermi level of the given ``n`` (electrons) or ``p`` (holes).
+        degenerate silicon) at the equilibrium reduced Fermi level (of the free
+        carriers, whatever carriers the mobility's fit took), or at the quasi-Fermi
+        level of the given ``n`` (electrons) or ``p`` (holes).
         ``statistics``: ``"fermi-dirac"``, ``"boltzmann"`` (factor 1) or None (the
         narrowing model's own, as for :meth:`equilibrium`). Other arguments as for
         :meth:`mobility`.
@@ -371,10 +380,19 @@ class TransportMethods:
         factor = 1.0
         if fermi_dirac:
             nc, nv = bound.dos(temperature=t)
+            densities = prepared
+            if n is None and complete_ionisation(model):
+                # the mobility takes the carriers of its fit; the degeneracy of the
+                # Einstein relation is that of the free carriers there are
+                free, *_ = self._solve(temperature, Na, Nd, donor, acceptor, statistics)
+                densities = {
+                    "electron_density": (free["electron_density"],),
+                    "hole_density": (free["hole_density"],),
+                }
             density, states = (
-                (prepared["electron_density"][0], nc)
+                (densities["electron_density"][0], nc)
                 if carrier == "electron"
-                else (prepared["hole_density"][0], nv)
+                else (densities["hole_density"][0], nv)
             )
             with np.errstate(divide="ignore"):
                 factor = einstein_factor(np.log(density) - np.log(states))
@@ -394,15 +412,17 @@ class TransportMethods:
         fermi_dirac = bound.statistics == "fermi-dirac"
         models = [self._mobility_model(carrier, donor, acceptor) for carrier in CARRIERS]
         solved = {}
-        for model in models:
-            complete = complete_ionisation(model)
-            if complete not in solved:
-                solved[complete] = bound.equilibrium(
-                    t, nd, na, donor, acceptor, fermi_dirac, complete
-                )
+
+        def equilibrium(complete, donor=donor, acceptor=acceptor):
+            key = (complete, donor, acceptor)
+            if key not in solved:
+                solved[key] = bound.equilibrium(t, nd, na, donor, acceptor, fermi_dirac, complete)
+            return solved[key]
+
         conductivities = []
         for carrier, model in zip(CARRIERS, models, strict=True):
-            result = solved[complete_ionisation(model)]
+            complete = complete_ionisation(model)
+            result = equilibrium(complete)
             ionised = model.conventions.value("dopant_densities") == "ionised"
             values = {
                 "temperature": result["temperature"],
@@ -413,9 +433,17 @@ class TransportMethods:
             }
             if check:
                 for name in model.inputs:
-                    model.check(name, *_extremes(values[name])[1:], self.strict)
+                    self._check(model, name, *_extremes(values[name])[1:])
             mobility = model(**{k: values[k] for k in model.inputs})
-            density = values["electron_density" if carrier == "electron" else "hole_density"]
+            key = "electron_density" if carrier == "electron" else "hole_density"
+            density = values[key]
+            species = donor if carrier == "electron" else acceptor
+            if complete and model.variant_axis == "dopant" and model.variant != species:
+                # a stand-in set (boron's for gallium): its fit holds the set's own
+                # species' incomplete ionisation in n mu; the species' carriers are
+                # those scaled by the ratio of the two species' free-carrier densities
+                swapped = {"donor" if carrier == "electron" else "acceptor": model.variant}
+                density = density * (equilibrium(False)[key] / equilibrium(False, **swapped)[key])
             conductivities.append((density, mobility))
         (n, mu_n), (p, mu_p) = conductivities
         return resistivity_kernels.conductivity(n, p, mu_n, mu_p)
@@ -437,10 +465,8 @@ class TransportMethods:
         """The validity checks the equilibrium solver's models make (as in ``_solve``)."""
         _, low, high = prepared["temperature"]
         for name in ("densities_of_states", "intrinsic_density"):
-            self.model(name).check("temperature", low, high, self.strict)
-        for argument in bound.narrowing.inputs:
-            if argument in prepared:
-                bound.narrowing.check(argument, *prepared[argument][1:], self.strict)
+            self._check(self.model(name), "temperature", low, high)
+        self._check_narrowing(prepared, bound)
         self._check_dopants(prepared, donor, acceptor)
 
     @declare(
@@ -520,15 +546,13 @@ class TransportMethods:
                 f"{np.count_nonzero(compensated)} point(s) with both Na and Nd > 0 "
                 "are NaN (conversion='physics' handles them)"
             )
-            if self.strict:
-                raise ValidityError(message)
-            warn(message, ValidityWarning)
+            self._violation(message)
         model = self.model("standard_resistivity")
         out = np.full(t.shape, np.nan)
         for species, where in ((acceptor, (na > 0) & ~compensated), (donor, ~(na > 0))):
             if not where.any():
                 continue
-            chosen = model.select(species)
+            chosen = species_model(model, species, self.catalog)[0]
             values = {
                 "temperature": _extremes(t[where]),
                 "dopant_density": _extremes((na if species == acceptor else nd)[where]),
@@ -576,19 +600,33 @@ class TransportMethods:
             for d in ("boron", "phosphorus")
         ],
     )
-    def doping_from_resistivity(self, resistivity, temperature, dopant, *, conversion="physics"):
+    def doping_from_resistivity(self, resistivity, temperature, dopant, *, conversion=None):
         """Density of one dopant species that gives silicon a resistivity, cm^-3.
 
         Parameters
         ----------
         resistivity : ohm cm (or a pint quantity of resistivity), > 0
         temperature : K (or a pint quantity)
-        dopant : the species (``"boron"``, ``"phosphorus"``, ...); the silicon holds
-            that dopant only
-        conversion : ``"physics"`` (default): the inverse of :meth:`resistivity` at the
-            temperature given, solved for every point at once; ``"standard"``: the
-            standard's own conversion (ASTM F723 at 23 degC; boron and phosphorus),
-            which warns at any other temperature
+        dopant : the species (``"boron"``, ``"phosphorus"``, ``"gallium"``, ...); the
+            silicon holds that dopant only
+        conversion : None (default): the release's choice (``si.release.defaults``;
+            from 2026.2: the standard's conversion where it holds, boron and
+            phosphorus at 23 degC within its validity of +-0.5 K, and the physics route
+            everywhere else, point by point; 2026.1: the physics route); ``"physics"``:
+            the inverse of
+            :meth:`resistivity` at the temperature given, solved for every point at
+            once; ``"standard"``: the standard's own conversion (ASTM F723 at 23 degC;
+            boron and phosphorus, its phosphorus conversion also for arsenic and
+            antimony as its scope allows), which warns at any other temperature
+
+        Why the default: at 23 degC the physics route (Klaassen's mobility, fed as it
+        was fitted) lies within the ASTM F723 conversion by -12..+9 % (boron) and
+        -11..+13 % (phosphorus) in density, beyond +-10 % near 5e17 (boron), 5e18-1e19
+        and 1e20 cm^-3 (phosphorus), while the standard condenses Thurber et al.'s
+        measurements at that temperature (``si.provenance("doping_from_resistivity")``
+        and the README's agreement table). A species the mobility model has no set
+        for (gallium, aluminium, indium: boron's; antimony: phosphorus's) is labelled
+        so in the provenance of ``mobility``.
 
         A resistivity that no density of the dopant gives at that temperature
         (above that of nearly intrinsic silicon, or below that of 1e21 cm^-3) is an
@@ -597,7 +635,8 @@ class TransportMethods:
         more mobile electrons) up to a maximum near ``N = ni (sqrt(r) - 1/sqrt(r))``,
         ``r = mu_n / mu_p``; the answer is the density above that maximum.
         """
-        _choice(conversion, "conversion", CONVERSIONS)
+        if conversion is not None:
+            _choice(conversion, "conversion", CONVERSIONS)
         species = dopant_species(dopant, "dopant")
         rho = coerce(resistivity, "resistivity")
         t = coerce(temperature, "temperature")
@@ -610,20 +649,51 @@ class TransportMethods:
                 f"{rho[0].shape}, {t[0].shape}",
             ) from None
         if conversion == "standard":
-            model = self.model("standard_dopant_density").select(species)
+            model = species_model(self.model("standard_dopant_density"), species, self.catalog)[0]
             value = self._call(model, {"temperature": t, "resistivity": rho})
             return quantity(np.broadcast_to(value, shape).astype(float), "cm^-3")
+        target = np.broadcast_to(rho[0], shape).ravel()
+        temperatures = np.broadcast_to(t[0], shape).ravel()
+        density = np.empty(target.size)
+        standard = self._standard_applies(species, temperatures, conversion)
+        if standard.any():
+            model = self.model("standard_dopant_density").select(species)
+            values = {
+                "temperature": _extremes(temperatures[standard]),
+                "resistivity": _extremes(target[standard]),
+            }
+            density[standard] = self._call(model, values)
+        physics = ~standard
+        if physics.any():
+            density[physics] = self._physics_doping(target[physics], temperatures[physics], species)
+        return quantity(density.reshape(shape), "cm^-3")
+
+    def _standard_applies(self, species, temperatures, conversion):
+        """Points (1-D mask) the default conversion answers with the standard's: the
+        species has a conversion of its own and the temperature lies in its validity."""
+        if conversion is None:  # the release's choice (2026.1: the physics route)
+            conversion = self.release.defaults.get("doping_from_resistivity", "physics")
+        if conversion == "physics":
+            return np.zeros(temperatures.shape, dtype=bool)
+        model = self.model("standard_dopant_density")
+        if species not in model.variants:
+            return np.zeros(temperatures.shape, dtype=bool)
+        valid = model.select(species).validity.get("temperature")
+        if valid is None:
+            return np.ones(temperatures.shape, dtype=bool)
+        return (temperatures >= valid.low) & (temperatures <= valid.high)
+
+    def _physics_doping(self, target, temperatures, species):
+        """The physics route's N (1-D) for resistivities ``target`` at ``temperatures``."""
         kind = DOPANTS[species]
         donor = species if kind == "donor" else "phosphorus"
         acceptor = species if kind == "acceptor" else "boron"
-        target = np.broadcast_to(rho[0], shape).ravel()
-        temperatures = np.broadcast_to(t[0], shape).ravel()
         density = self._invert_resistivity(target, temperatures, species, donor, acceptor)
         # validity of every model on the answer's range (warn, or raise if strict)
         zeros = np.zeros_like(density)
         nd, na = (density, zeros) if kind == "donor" else (zeros, density)
         prepared = {
-            "temperature": t,
+            "temperature": _extremes(temperatures),
             "donor_density": _extremes(nd),
             "acceptor_density": _extremes(na),
         }
@@ -632,8 +702,8 @@ class TransportMethods:
             model = self._mobility_model(carrier, donor, acceptor)
             for name in ("temperature", "donor_density", "acceptor_density"):
                 if name in model.inputs:
-                    model.check(name, *prepared[name][1:], self.strict)
-        return quantity(density.reshape(shape), "cm^-3")
+                    self._check(model, name, *prepared[name][1:])
+        return density
 
     def _lowest_density(self, temperatures, kind, donor, acceptor):
         """Where the doping-dominated branch of rho(N) starts (cm^-3, 1-D).
@@ -697,11 +767,15 @@ class TransportMethods:
         )
         if not converged.all():
             bad = np.flatnonzero(~converged)
-            raise SolverError(
-                f"doping_from_resistivity: {bad.size} point(s) did not "
-                f"converge, e.g. #{bad[0]}: {target[bad[0]]:g} ohm*cm at "
-                f"{temperatures[bad[0]]:g} K"
+            shown = "; ".join(
+                f"#{i} ({target[i]:g} ohm*cm at {temperatures[i]:g} K, {species})" for i in bad[:5]
             )
+            more = f"; and {bad.size - 5} more" if bad.size > 5 else ""
+            error = SolverError(
+                f"doping_from_resistivity: {bad.size} point(s) did not converge: {shown}{more}"
+            )
+            error.points, error.count = bad[:5].tolist(), int(bad.size)
+            raise error
         return np.exp(log_n)
 
     # ------------------------------------------------------------------ kernels
@@ -711,8 +785,8 @@ class TransportMethods:
         ``carrier=`` is required; for ``mobility`` also ``donor=`` / ``acceptor=``
         (defaults phosphorus, boron) where the model has one set per dopant species.
         The callable takes the model's inputs (``si.model(name).inputs``) in internal
-        units; a mobility model takes the dopant densities it declares (see its
-        ``dopant_densities``), nothing is converted.
+        units; a mobility model takes the dopant densities and carriers its fit
+        conventions name (the kernel's ``input_kinds``), nothing is converted.
         """
         fixed = dict(fixed)
         carrier = fixed.pop("carrier", None)

@@ -2,8 +2,11 @@
 
 Every file is written atomically: the content goes to a temporary file in the
 target folder, which is then linked (or renamed) to the final name, so a crash or
-an error never leaves a half-written file under that name. An existing file is
-refused unless ``overwrite=True``.
+an error never leaves a half-written file under that name, and the temporary is
+removed on an error or a KeyboardInterrupt (the ``matprops`` command removes it on
+SIGTERM too, see :func:`matprops.catalogue.files.interruptible`). An existing file is
+refused unless ``overwrite=True``, which replaces regular files only (never a device
+such as /dev/null, a pipe, a folder, or a symbolic link to one of them).
 
 - **netCDF**: CF-1.11 attributes; ``date_created`` and a ``history`` line with the
   timestamp and the command (or call) that made the file; provenance attributes are
@@ -21,19 +24,24 @@ refused unless ``overwrite=True``.
 
 from __future__ import annotations
 
+import contextlib
 import datetime as _dt
 import json
+import math
 import os
 import shutil
+import stat
 from pathlib import Path
 
 import numpy as np
 
+from ..catalogue import files
 from ..errors import InputError
 from ..material.validity import flag_of
 
 __all__ = [
     "FORMATS",
+    "estimate_size",
     "format_for",
     "json_document",
     "provenance_document",
@@ -90,7 +98,9 @@ def _suffix_of(format, suffixes):
 
 def check_target(path, overwrite: bool = False) -> Path:
     """Refuse early, before any work: a missing folder, a folder in place of a file,
-    an existing file (unless ``overwrite``)."""
+    an existing file (unless ``overwrite``), and with ``overwrite`` anything but a
+    regular file (a device such as /dev/null, a pipe, a socket, a folder, or a symbolic
+    link to one of them: replacing those would break the system or lose a folder)."""
     path = Path(path)
     folder = path.parent if str(path.parent) else Path(".")
     if not folder.is_dir():
@@ -99,24 +109,65 @@ def check_target(path, overwrite: bool = False) -> Path:
         )
     if path.is_dir():
         raise InputError("path", "a file name, not a folder", repr(str(path)))
-    if path.exists() and not overwrite:
+    kind = _kind(path)
+    if kind is not None and not overwrite:
         raise InputError(
             "path",
             "a new file (--force, or overwrite=True, replaces it)",
             f"{str(path)!r}, which exists",
         )
+    if kind not in (None, "regular file", "symbolic link to a regular file"):
+        raise InputError(
+            "path",
+            "a new file or a regular file to replace (--force, or overwrite=True, replaces "
+            "regular files only)",
+            f"{str(path)!r}, which is a {kind}",
+        )
     return path
+
+
+def _kind(path: Path) -> str | None:
+    """What is at ``path``: None (nothing), "regular file", "symbolic link to a regular
+    file", or a description of anything else."""
+    try:
+        mode = os.lstat(path).st_mode
+    except FileNotFoundError:
+        return None
+    if stat.S_ISLNK(mode):
+        try:
+            target = os.stat(path).st_mode
+        except OSError:
+            return "symbolic link to nothing"
+        inner = _describe_mode(target)
+        return f"symbolic link to a {inner}"
+    return _describe_mode(mode)
+
+
+def _describe_mode(mode: int) -> str:
+    for test, name in (
+        (stat.S_ISREG, "regular file"),
+        (stat.S_ISDIR, "folder"),
+        (stat.S_ISCHR, "character device"),
+        (stat.S_ISBLK, "block device"),
+        (stat.S_ISFIFO, "named pipe (FIFO)"),
+        (stat.S_ISSOCK, "socket"),
+    ):
+        if test(mode):
+            return name
+    return "special file"
 
 
 def atomic_write(targets: list[tuple[Path, object]], overwrite: bool = False) -> list[Path]:
     """Write each ``(path, writer)``: ``writer(tmp_path)`` fills a temporary file,
     then all are moved into place. Nothing appears under a final name unless every
-    writer succeeded."""
-    temporaries = []
+    writer succeeded; on an error or a KeyboardInterrupt the temporaries are removed,
+    and an application using :func:`matprops.catalogue.files.interruptible` removes
+    them (and the files of an unfinished set) on SIGINT or SIGTERM too."""
+    temporaries, committed = [], []
     try:
         for path, writer in targets:
             check_target(path, overwrite)
-            tmp = path.with_name(f".{path.name}.tmp-{os.getpid()}")
+            tmp = files.temporary_for(path)
             temporaries.append(tmp)
             try:
                 writer(tmp)
@@ -125,34 +176,43 @@ def atomic_write(targets: list[tuple[Path, object]], overwrite: bool = False) ->
                     "path", "a file in a writable folder", f"{str(path)!r} ({exc.strerror or exc})"
                 ) from exc
         for (path, _), tmp in zip(targets, temporaries, strict=True):
-            _commit(tmp, path, overwrite)
+            replaced = _commit(tmp, path, overwrite)
+            if len(targets) > 1 and not replaced:  # removed if interrupted before the last
+                files.pending(path)
+                committed.append(path)
     finally:
         for tmp in temporaries:
-            if tmp.exists():
-                tmp.unlink()
+            with contextlib.suppress(OSError):
+                tmp.unlink(missing_ok=True)
+        files.forget(*temporaries, *committed)
     return [path for path, _ in targets]
 
 
-def _commit(tmp: Path, path: Path, overwrite: bool) -> None:
-    if overwrite:
+def _commit(tmp: Path, path: Path, overwrite: bool) -> bool:
+    """Move ``tmp`` to ``path``; True when an existing file was replaced."""
+    if overwrite and _kind(path) is not None:
+        check_target(path, overwrite)  # still a regular file (checked again: no race)
         os.replace(tmp, path)
-        return
+        return True
     try:
         os.link(tmp, path)  # fails if the name exists: no race with another writer
     except FileExistsError as exc:
+        if overwrite:
+            return _commit(tmp, path, overwrite)
         raise InputError(
             "path",
             "a new file (--force, or overwrite=True, replaces it)",
             f"{str(path)!r}, which exists",
         ) from exc
     except OSError:  # a file system without hard links
-        if path.exists():
+        if path.exists() and not overwrite:
             raise InputError(
                 "path",
                 "a new file (--force, or overwrite=True, replaces it)",
                 f"{str(path)!r}, which exists",
             ) from None
         os.replace(tmp, path)
+    return False
 
 
 # --------------------------------------------------------------------------- write
@@ -226,6 +286,43 @@ def write(
             )
         )
     return atomic_write(targets, overwrite)
+
+
+# bytes per value of each format, as written here (netCDF: float64; CSV: "%.10g" and a
+# comma; JSON: indented one value per line; text: a column of at least 10 and 2 spaces)
+_BYTES_PER_VALUE = {"netcdf": 8, "csv": 17, "json": 24, "text": 14}
+_BYTES_PER_FLAG = {"netcdf": 1, "csv": 2, "json": 4, "text": 1}
+
+
+def estimate_size(data, format: str, layout: str = "long") -> int:
+    """An estimate of the bytes a table takes in ``format`` ("netcdf", "csv", "json" or
+    "text"), from its shape alone (a lazy table is not computed)."""
+    from ..material.validity import is_flag
+
+    per_value = _BYTES_PER_VALUE.get(format, 17)
+    per_flag = _BYTES_PER_FLAG.get(format, 2)  # validity flags: one digit (int8)
+    flags = [v for v in data.data_vars.values() if is_flag(v)]
+    if format in ("netcdf", "json"):
+        count = sum(v.size for v in data.variables.values()) - sum(v.size for v in flags)
+        return (
+            per_value * count
+            + per_flag * sum(v.size for v in flags)
+            + sum(len(str(v)) for v in data.attrs.values())
+        )
+    dims = list(data.dims)
+    rows = math.prod(data.sizes[d] for d in dims) if dims else 1
+    if layout == "wide" and dims:
+        count = sum(v.size for v in data.data_vars.values() if not is_flag(v))
+        count += 2 * data.sizes[dims[0]]
+        return per_value * count + per_flag * sum(v.size for v in flags)
+    columns = (
+        len(dims)
+        + len(data.data_vars)
+        - len(flags)
+        + sum(1 for c in data.coords if c not in data.dims)
+        + ("temperature" in dims)
+    )
+    return per_value * rows * columns + per_flag * rows * len(flags)
 
 
 def stamp(data, command: str | None = None):

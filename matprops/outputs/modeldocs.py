@@ -15,6 +15,7 @@ import os
 import sys
 from pathlib import Path
 
+from ..catalogue.files import forget, interruptible, temporary_for
 from ..catalogue.store import Catalog, default_catalog
 from ..material.registry import declared
 
@@ -75,6 +76,11 @@ def render(catalog: Catalog | None = None) -> str:
                 lines.append("- fitted with:")
                 for name, entry in conventions.items():
                     lines.append(f"  - {name}: {_one_line(entry.describe())}")
+            stand_ins = model.extra.get("stand_ins", {})
+            if stand_ins:
+                lines.append("- species without a set of their own:")
+                for record in stand_ins.values():
+                    lines.append(f"  - {_one_line(record.describe())}")
             lines.append(f"- obtained: {_one_line(model.obtained)}")
             if model.notes:
                 lines.append(f"- notes: {_one_line(model.notes)}")
@@ -171,9 +177,15 @@ def main(argv=None) -> int:
     )
     target = parser.parse_args(argv).output
     target.parent.mkdir(parents=True, exist_ok=True)
-    tmp = target.with_name(f".{target.name}.tmp-{os.getpid()}")
-    tmp.write_text(render())
-    os.replace(tmp, target)
+    text = render()
+    with interruptible("python -m matprops.outputs.modeldocs"):
+        tmp = temporary_for(target)
+        try:
+            tmp.write_text(text)
+            os.replace(tmp, target)
+        finally:
+            tmp.unlink(missing_ok=True)
+            forget(tmp)
     print(f"wrote {target}")
     return 0
 

@@ -18,14 +18,13 @@ from __future__ import annotations
 
 import json
 import textwrap
-import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
 
 from ..catalogue.spec import Spec, SpecError, parse_spec, parse_text, read_spec
-from ..errors import ValidityWarning
+from ..errors import Error
 from ..material.validity import flag_of, value_names
 
 __all__ = ["Report", "SpecError", "report"]
@@ -82,8 +81,9 @@ class DopingStep:
         )
         out.append(f"  -> {kind} density {self.density:.4g} cm⁻³, by {how}")
         if self.check_resistivity is not None:
+            what = "check" if self.conversion == "physics" else "the release's physics"
             out.append(
-                f"     check: resistivity at that density and {self.measured_at:.2f} K = "
+                f"     {what}: resistivity at that density and {self.measured_at:.2f} K = "
                 f"{self.check_resistivity:.6g} Ω·cm"
             )
         if self.other_density is not None:
@@ -287,45 +287,48 @@ def report(spec, si=None) -> Report:
 
 
 def doping_step(si, spec: Spec) -> DopingStep:
-    """The wafer's dopant density, from its resistivity as measured where given."""
+    """The wafer's dopant density, from its resistivity as measured where given, by the
+    spec's conversion or the release's choice (the standard's where it holds)."""
     wafer = spec.wafer
     if wafer.resistivity is None:
         return DopingStep(dopant=wafer.dopant, density=wafer.density)
+    t = np.array([wafer.measured_at])
+    used = wafer.conversion or (
+        "standard" if si._standard_applies(wafer.dopant, t, None)[0] else "physics"
+    )
     density = float(
         si.doping_from_resistivity(
-            wafer.resistivity, wafer.measured_at, wafer.dopant, conversion=wafer.conversion
+            wafer.resistivity, wafer.measured_at, wafer.dopant, conversion=used
         ).m_as("cm^-3")
     )
-    other = "standard" if wafer.conversion == "physics" else "physics"
+    other = "standard" if used == "physics" else "physics"
     notes = []
+    if wafer.conversion is None:
+        notes.append(f"the {used} conversion is the release's choice here")
     other_density = None
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always", ValidityWarning)
+    if other == "standard" and abs(wafer.measured_at - 296.15) > 0.5:
+        notes.append(
+            "the standard (ASTM F723) conversion holds at 23 °C only: not shown for a "
+            "resistivity measured at another temperature"
+        )
+    else:
         try:
             other_density = float(
                 si.doping_from_resistivity(
                     wafer.resistivity, wafer.measured_at, wafer.dopant, conversion=other
                 ).m_as("cm^-3")
             )
-        except Exception as exc:  # the other conversion may not cover the point
+        except Error as exc:  # the other conversion may not cover the point
             notes.append(f"the {other} conversion does not apply here: {exc}")
-    if other == "standard" and abs(wafer.measured_at - 296.15) > 0.5 and other_density:
-        notes.append(
-            "the standard conversion holds at 23 °C only; it is shown for comparison "
-            "at the measuring temperature"
-        )
-    notes += [f"{other} conversion: {w.message}" for w in caught][:1]
     kind = "Na" if wafer.dopant == "boron" else "Nd"
-    check = None
-    if wafer.conversion == "physics":
-        check = float(si.resistivity(wafer.measured_at, **{kind: density}).m_as("ohm*cm"))
+    check = float(si.resistivity(wafer.measured_at, **{kind: density}).m_as("ohm*cm"))
     return DopingStep(
         dopant=wafer.dopant,
         density=density,
         resistivity=wafer.resistivity,
         measured_at=wafer.measured_at,
         measured_at_text=wafer.measured_at_text,
-        conversion=wafer.conversion,
+        conversion=used,
         other_conversion=other,
         other_density=other_density,
         check_resistivity=check,

@@ -110,7 +110,7 @@ def one_line_error(code, err, fragment):
         (["describe", "band_gap", "passler-1900"], "unknown model 'passler-1900'"),
         (["provenance", "bandgap"], "unknown quantity 'bandgap'"),
         (["release-diff", "2026.1", "2031.1"], "unknown release '2031.1'"),
-        (["demo", "--scenario", "nowhere"], "unknown name 'nowhere' among the scenarios"),
+        (["demo", "--scenario", "nowhere"], "option --scenario must be one of two-site-modules"),
         (["table", "-t", "300", "--bogus"], "unrecognized arguments: --bogus"),
         (["frobnicate"], "invalid choice: 'frobnicate'"),
     ],

@@ -124,8 +124,11 @@ def test_unpickling_against_different_data_is_refused(datasets_copy):
     path.write_text(path.read_text() + "\n# changed after pickling\n")
     catalog.write_checksums()
     catalog_module._CATALOGS.pop(root, None)  # as in a fresh worker process
+    clone = pickle.loads(data)  # never raises while unpickling: a pool would wait forever
     with pytest.raises(matprops.DatasetError, match=r"passler-2002\.toml: has sha256"):
-        pickle.loads(data)
+        clone.band_gap(300)  # the first use raises, in an ordinary call
+    with pytest.raises(matprops.DatasetError, match=r"passler-2002\.toml: has sha256"):
+        clone.release  # noqa: B018  (an attribute, read: it raises)
 
 
 def test_spawn_pool_gives_the_serial_numbers(spawn_pool, si):

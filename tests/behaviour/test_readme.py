@@ -22,3 +22,14 @@ def test_the_usage_example_runs():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         exec(compile(block, "README.md (Use)", "exec"), namespace)
     assert namespace["si"].release.id == matprops.releases()[-1]
+
+
+def test_the_reliability_section_names_tests_that_exist():
+    text = README.read_text()
+    section = text.split("\n## Reliability\n", 1)[1].split("\n## ", 1)[0]
+    import re
+
+    named = set(re.findall(r"`(tests/[\w/]+\.py)`", section))
+    assert len(named) >= 10
+    root = README.parent
+    assert all((root / path).is_file() for path in named), named

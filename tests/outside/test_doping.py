@@ -37,7 +37,9 @@ def test_narrowing_is_about_a_tenth_of_an_ev_at_1e20(model_id):
 def test_narrowing_vanishes_in_lightly_doped_silicon(model_id):
     # common practice: below about 1e15 cm^-3 narrowing is negligible (< 2 meV, under kT/10)
     si = with_narrowing(model_id)
-    dEg = si.gap_narrowing(300, Nd=1e14, n=1e14, p=1e6).m_as("eV")
+    with warnings.catch_warnings():  # (apparent narrowings warn there: see below)
+        warnings.simplefilter("ignore", matprops.ValidityWarning)
+        dEg = si.gap_narrowing(300, Nd=1e14, n=1e14, p=1e6).m_as("eV")
     assert 0 <= dEg < 0.002
 
 
@@ -138,21 +140,16 @@ def minimum_ionised_fraction(si, species):
     return float(np.min(ionised.m_as("cm^-3") / N))
 
 
-# The ionised fraction depends on the valence/conduction densities of states as well as
-# on the dopant model: Altermatt et al. fitted with Nc, Nv close to Green 1990's (recalled),
-# so the published curve is checked with those; with the release's couderc-2014 Nv
-# (2.5e19 at 300 K against 3.1e19) the boron dip is deeper (0.69), as the model file says.
-GREEN_DOS = {"densities_of_states": "green-1990"}
-
-
 @pytest.mark.parametrize("species, published", [("phosphorus", 0.76), ("boron", 0.73)])
-def test_minimum_ionised_fraction_at_300K(species, published):
+def test_minimum_ionised_fraction_at_300K(si, species, published):
     # Altermatt et al. 2006, J. Appl. Phys. 100, 113715, Fig. 5, as read in the nextnano3
     # tutorial on incomplete ionisation: the ionised fraction at 300 K dips to about 0.76
     # (Si:P) and 0.73 (Si:B) near 2-3e18 cm^-3; +-0.02 for reading a figure second-hand.
+    # The release default as it is: its levels carry the densities of states and the
+    # statistics the model was fitted with (its fit conventions), so the release's own
+    # couderc-2014 Nv (19 % below Green's) no longer deepens the boron dip to 0.69.
     # (For P the recalled N_ref was preferred over another source's value because it
     # reproduces this figure: this check is not independent of that choice.)
-    si = matprops.silicon(models=GREEN_DOS)
     assert minimum_ionised_fraction(si, species) == pytest.approx(published, abs=0.02)
 
 
@@ -161,9 +158,8 @@ def test_minimum_ionised_fraction_at_300K(species, published):
     reason="the recalled arsenic parameters of altermatt-2006 "
     "give 0.69 against the published 0.66: they are doubtful (see the file)",
 )
-def test_minimum_ionised_fraction_arsenic():
+def test_minimum_ionised_fraction_arsenic(si):
     # Altermatt et al. 2006, J. Appl. Phys. 100, 113715, Fig. 5 (via the nextnano3 tutorial)
-    si = matprops.silicon(models=GREEN_DOS)
     assert minimum_ionised_fraction(si, "arsenic") == pytest.approx(0.66, abs=0.02)
 
 
@@ -172,8 +168,26 @@ def test_unknown_or_wrong_kind_of_dopant_lists_the_valid_ones(si):
         si.equilibrium(300, Nd=1e16, donor="boron")
     with pytest.raises(matprops.InputError, match="antimony"):
         si.dopant_level(1e16, "unobtainium")
-    with pytest.raises(matprops.UnknownVariantError, match="known: arsenic, boron, phosphorus"):
-        si.dopant_level(1e16, "gallium")  # a dopant the default model has no set for
+    # a species a model has no set for and no stand-in: the error lists what is served
+    with pytest.raises(
+        matprops.UnknownVariantError, match="known: antimony, arsenic, boron, phosphorus"
+    ):
+        si.doping_from_resistivity(1.0, "23 degC", "gallium", conversion="standard")
+
+
+def test_gallium_indium_aluminium_antimony_are_served_and_labelled(si):
+    # the release's ionisation (Altermatt et al.: P, As, B) names sze-2007's fixed levels
+    # for the other species; Sze & Ng / Genius TCAD Open (secondary): Ga 72, In 160,
+    # Al 67, Sb 39 meV
+    for species, energy in (("gallium", 72), ("indium", 160), ("aluminium", 67), ("antimony", 39)):
+        assert si.ionisation_energy(1e15, species).m_as("meV") == pytest.approx(energy)
+    stand_ins = si.provenance("ionisation")["stand_ins"]
+    assert stand_ins["gallium"]["model"] == "sze-2007"
+    assert si.provenance("mobility")["stand_ins"]["gallium"]["variant"] == "boron"
+    # a deeper level ionises less: gallium-doped silicon has fewer holes than boron-doped
+    ga = si.equilibrium(300, Na=1e17, acceptor="gallium").hole_density.m
+    b = si.equilibrium(300, Na=1e17).hole_density.m
+    assert ga < 0.95 * b
 
 
 # ----------------------------------------------------------------- equilibrium
@@ -295,16 +309,49 @@ def test_neutrality_holds_everywhere(T, Nd, Na):
 
 @settings(max_examples=40, deadline=None)
 @given(temperatures, st.floats(min_value=1e13, max_value=1e20))
-def test_narrowing_non_decreasing_and_ni_eff_at_least_ni(T, N):
+def test_narrowing_does_not_fall_with_doping(T, N):
+    # property (common practice): more dopants narrow the gap more
     for model_id in APPARENT + ("schenk-1998",):
         si = with_narrowing(model_id)
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", matprops.ValidityWarning)
             low = si.gap_narrowing(T, Nd=N, n=N, p=1.0).m_as("eV")
             high = si.gap_narrowing(T, Nd=2 * N, n=2 * N, p=1.0).m_as("eV")
-            ni_eff = si.effective_intrinsic_density(T, Nd=N, n=N, p=1.0).m_as("cm^-3")
         assert high >= low >= 0
-        assert ni_eff >= si.intrinsic_density(T).m_as("cm^-3")
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.floats(min_value=250, max_value=400), st.floats(min_value=1e10, max_value=1e13))
+def test_release_ni_eff_tends_to_its_intrinsic_density_at_low_doping(T, N):
+    # physics (common practice): narrowing vanishes in lightly doped silicon, so the
+    # release default's ni_eff tends to the release's own ni (within 1 % below 1e13
+    # cm^-3) and never falls below it
+    si = matprops.silicon()
+    ni = si.intrinsic_density(T).m_as("cm^-3")
+    for kind in ("Nd", "Na"):
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", matprops.ValidityWarning)
+            ni_eff = si.effective_intrinsic_density(T, **{kind: N}).m_as("cm^-3")
+        assert ni <= ni_eff <= 1.01 * ni
+
+
+@pytest.mark.parametrize("model_id", APPARENT)
+def test_an_apparent_narrowing_warns_where_it_does_not_tend_to_the_release_ni(model_id):
+    # an apparent narrowing composed with the intrinsic density it was fitted with tends
+    # to that density (1.2-1.5 times the release's), not to the release's, as doping
+    # falls: below the limit in its file (where that offset outweighs the narrowing
+    # itself) every composed quantity warns, and strict raises
+    si = with_narrowing(model_id)
+    with pytest.warns(matprops.ValidityWarning, match="tends to that density"):
+        si.effective_intrinsic_density(300, Nd=1e15)
+    with pytest.warns(matprops.ValidityWarning, match="validity region"):
+        si.equilibrium(300, Na=1e15)
+    strict = matprops.silicon(models={"gap_narrowing": model_id}, strict=True)
+    with pytest.raises(matprops.ValidityError):
+        strict.effective_intrinsic_density(300, Nd=1e15)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        si.effective_intrinsic_density(300, Nd=3e18)
 
 
 @settings(max_examples=30, deadline=None)

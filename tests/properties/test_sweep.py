@@ -247,6 +247,7 @@ SILICON_METHODS = [row(name) for name in declared().methods()] + [
     ("kernel", ("quantity",), {}),
     ("cite", (), {"format": "format", "quantities": "quantities"}),
     ("sources", ("quantities",), {}),
+    ("consistency", (), {}),
     ("table", ("quantities",), {"temperature": "temperature", "wavelength": "wavelength"}),
     ("compare", ("quantity",), {"models": "model_ids", "temperature": "temperature"}),
     ("explain", ("quantity",), {"temperature": "temperature"}),

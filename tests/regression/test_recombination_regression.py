@@ -82,8 +82,27 @@ def test_steady_state_and_implied_voltage(si):
     np.testing.assert_allclose(dn / result.effective_lifetime.m_as("s"), generation, rtol=1e-10)
     n0 = result.equilibrium_electron_density.m_as("cm^-3")
     p0 = result.equilibrium_hole_density.m_as("cm^-3")
-    expected = K_B * 300 * np.log((n0 + dn) * (p0 + dn) / (n0 * p0))
+    # qV = kT ln[n p / (gamma_n gamma_p ni_eff(n, p)^2)]: the plain splitting less the
+    # narrowing the injected carriers add (Schenk's) and the change of the degeneracy
+    # factors gamma = F_1/2(eta)/exp(eta), n = Nc F_1/2(eta)
+    from matprops.kernels.fermi_dirac import fd_half_inverse
+
+    nc, nv = (x.m_as("cm^-3") for x in si.densities_of_states(300))
+    plain = K_B * 300 * np.log((n0 + dn) * (p0 + dn) / (n0 * p0))
+    narrowing = (
+        si.gap_narrowing(300, Nd=[1e15, 1e16], n=n0 + dn, p=p0 + dn)
+        - si.gap_narrowing(300, Nd=[1e15, 1e16], n=n0, p=p0)
+    ).m_as("eV")
+
+    def log_gamma(density, states):
+        return np.log(density / states) - fd_half_inverse(density / states)
+
+    degeneracy = (
+        log_gamma(n0 + dn, nc) + log_gamma(p0 + dn, nv) - log_gamma(n0, nc) - log_gamma(p0, nv)
+    )
+    expected = plain - narrowing - K_B * 300 * degeneracy
     np.testing.assert_allclose(result.implied_voltage.m_as("V"), expected, rtol=1e-9)
+    assert np.all(narrowing > 0)
     # the same point through the lifetime methods
     again = si.effective_lifetime(300, Nd=[1e15, 1e16], excess=dn, defect="Fe_i", density=1e11)
     np.testing.assert_allclose(
@@ -260,4 +279,47 @@ def test_quoted_figures_are_what_the_code_gives(path, template, compute):
     expected = _normalise(template.format(*compute()))
     assert expected in _normalise(Path(path).read_text()), (
         f"{Path(path).name} should say: {expected!r}"
+    )
+
+
+# ----------------------------------------------------------------- moved from outside/
+# (these compare the code with the numbers its own files hold: regression, not validation)
+
+
+def test_each_lifetime_model_keeps_the_radiative_term_it_was_fitted_with(si):
+    # REGRESSION of the composition (the model files' own coefficients): the two 300 K
+    # values in circulation are not interchangeable (doping-models.md section 6.1):
+    # Richter's B_low = 4.73e-15, Kerr & Cuevas's constant 9.5e-15; a model without one
+    # takes the release's coefficient
+    expected = {
+        "richter-2012": 4.73e-15,
+        "kerr-2002": 9.5e-15,
+        "dziewior-1977": si.radiative_coefficient(300).m_as("cm^3/s"),
+    }
+    for model_id, b in expected.items():
+        model = matprops.silicon(models={"intrinsic_lifetime": model_id}).model(
+            "intrinsic_lifetime"
+        )
+        tau = model(
+            temperature=300.0,
+            equilibrium_electron_density=1e15,
+            equilibrium_hole_density=1e5,
+            excess_density=1e14,
+            part="radiative",
+        )
+        assert 1.0 / (tau * (1e15 + 1e5 + 1e14)) == pytest.approx(b, rel=1e-12)
+        convention = model.conventions["radiative_coefficient"].value
+        assert convention == ("composed" if model_id == "dziewior-1977" else "own")
+
+
+def test_iron_entries_as_recalled(si):
+    # REGRESSION (recalled values, as the catalogue stores them; from memory: Istratov et
+    # al. 1999 review): Fe_i at E_v + 0.38 eV, sigma_n = 5e-14, sigma_p = 7e-17 cm^2;
+    # Rein & Glunz's k = 51 against the lifetime-spectroscopy entry's ratio
+    fe = si.defect("Fe_i")
+    assert (fe.reference, fe.energy) == ("valence", pytest.approx(0.38))
+    assert fe.electron_cross_section(300.0) == pytest.approx(5e-14)
+    assert fe.hole_cross_section(300.0) == pytest.approx(7e-17)
+    assert float(si.defect("iron-interstitial-rein-2005").ratio(300.0)) == pytest.approx(
+        51, abs=0.5
     )

@@ -512,3 +512,75 @@ def test_quoted_figures_are_what_the_code_gives(path, template, compute):
     # data change, the note must change with them
     expected = _normalise(template.format(*compute()))
     assert expected in _normalise(path.read_text()), f"{path.name} should say: {expected!r}"
+
+
+def test_readme_f723_table_is_what_the_code_gives():
+    # regression of the text: the README's agreement table with ASTM F723 is recomputed
+    # from the release default (tests/outside/test_transport.py checks its bounds)
+    from outside_data import f723_table
+
+    assert f723_table(matprops.silicon()) in (ROOT / "README.md").read_text()
+
+
+def test_lattice_limited_mobility_is_the_files_1414_and_470_5():
+    # REGRESSION (the model file's own coefficients, as the device simulators it was read
+    # in quote them): Klaassen's lattice-limited 1414 (electrons, phosphorus set) and
+    # 470.5 (holes) cm^2/(V s) at 300 K; at 1e12 cm^-3 impurity scattering takes off
+    # under 0.1 %
+    si = matprops.silicon()
+    assert si.mobility("electron", 300, Nd=1e12).m_as("cm^2/(V*s)") == pytest.approx(1414, rel=1e-3)
+    assert si.mobility("hole", 300, Na=1e12).m_as("cm^2/(V*s)") == pytest.approx(470.5, rel=1e-3)
+
+
+def test_model_gets_the_dopant_densities_its_file_asks_for():
+    si = matprops.silicon()
+    # regression of the composition: Klaassen's fit conventions (total dopant densities,
+    # carriers of complete ionisation) decide what the material passes from totals
+    conventions = si.provenance("mobility")["fit_conventions"]
+    assert conventions["dopant_densities"]["value"] == "total"
+    assert conventions["carrier_densities"]["value"] == "complete-ionisation"
+    nd = 3e18
+    direct = si.mobility("electron", 300, Nd=nd, n=nd, p=1.0)
+    assert si.mobility("electron", 300, Nd=nd).m == pytest.approx(direct.m, rel=1e-3)
+    eq = si.equilibrium(300, Nd=nd)
+    assert eq.ionised_donors.m < 0.9 * nd  # complete and incomplete ionisation differ here
+    # a model that takes total densities refuses 'ionised'
+    arora = matprops.silicon(models={"mobility": "arora-1982"})
+    kernel = arora.kernel("mobility", carrier="electron")
+    assert arora.mobility("electron", 350, Nd=3e18).m == pytest.approx(
+        float(kernel(temperature=350.0, donor_density=3e18, acceptor_density=0.0))
+    )
+    with pytest.raises(matprops.InputError, match="dopant_densities.*total"):
+        arora.mobility("electron", 350, Nd=3e18, dopant_densities="ionised")
+
+
+def _changes_2026_2():
+    old, new = matprops.silicon("2026.1"), matprops.silicon("2026.2")
+    n = np.array([1e15, 1e16, 1e17, 1e18, 1e19, 1e20])
+    rho = [quiet(s.resistivity, 300, Na=n).m_as("ohm*cm") for s in (old, new)]
+    result = quiet(
+        new.implied_voltage, 300, matprops.Q_(40, "mA/cm^2"), matprops.Q_(180, "um"), Na=1e15
+    )
+    n0, p0, dn = (
+        result.equilibrium_electron_density.m_as("cm^-3"),
+        result.equilibrium_hole_density.m_as("cm^-3"),
+        result.excess_density.m_as("cm^-3"),
+    )
+    plain = 8.617333262e-5 * 300 * math.log((n0 + dn) * (p0 + dn) / (n0 * p0))
+    state = quiet(new.equilibrium, 300, Na=np.logspace(17, 19.5, 251))
+    minimum = np.min(state.ionised_acceptors.m_as("cm^-3") / np.logspace(17, 19.5, 251))
+    return (
+        " / ".join(f"{100 * (b / a - 1):+.1f}" for a, b in zip(*rho, strict=True)).replace("+", ""),
+        f"{1e3 * (plain - result.implied_voltage.m_as('V')):.2f}",
+        near(minimum, 3),
+    )
+
+
+def test_release_notes_of_2026_2_quote_what_the_code_gives():
+    # regression of the text: the draft release's notes list each change with its size
+    path = datasets_root() / "releases/2026.2.toml"
+    rho, voltage, minimum = _changes_2026_2()
+    text = _normalise(path.read_text())
+    assert _normalise(f"Resistivity, boron {rho} %") in text
+    assert f"lowers the implied voltage by {voltage} / " in text
+    assert f"(minimum 0.69 -> {minimum} near" in text

@@ -13,21 +13,6 @@ FINAL = [r for r in RELEASES if default_catalog().release(r).final]
 DRAFTS = [r for r in RELEASES if r not in FINAL]
 
 
-def _make_draft(root, catalog, release_id="2030.1") -> str:
-    """A draft release in a datasets copy, pinning the newest release's models, with
-    its reference evaluated (the tests of drafts run even when every shipped release
-    is final)."""
-    newest = catalog.newest_release_id()
-    text = (root / f"releases/{newest}.toml").read_text()
-    text = text.replace(f'release = "{newest}"', f'release = "{release_id}"')
-    text = text.replace('status = "final"', 'status = "draft"')
-    (root / f"releases/{release_id}.toml").write_text(text)
-    (root / f"releases/{release_id}.reference.json").write_text("{}")
-    catalog.write_checksums()
-    regenerate(release_id, catalog)
-    return release_id
-
-
 @pytest.mark.parametrize("release_id", RELEASES)
 def test_release_reproduces_its_frozen_reference(release_id):
     # regression check of every number the release pinned, each case at its stored
@@ -139,11 +124,10 @@ def test_the_main_tree_moves_on_without_moving_a_final_release(datasets_copy, re
     assert "archive" in si.model("band_gap").path.parts
 
 
-def test_a_draft_regenerates_within_its_tolerances(datasets_copy):
+def test_a_draft_regenerates_within_its_tolerances(datasets_with_draft):
     # regression check: regenerating a draft with the same code and data reproduces
     # its reference: every field exactly, the numbers within each case's tolerance
-    root, catalog = datasets_copy
-    release_id = _make_draft(root, catalog)
+    root, catalog, release_id = datasets_with_draft
     path = root / f"releases/{release_id}.reference.json"
     before = json.loads(path.read_text())
     regenerate(release_id, catalog)
@@ -179,14 +163,13 @@ def _scale_table(root, name, variable, wavelength, factor, temperature=None):
     ],
 )
 def test_an_edit_anywhere_in_a_table_is_detected(
-    datasets_copy, name, variable, wavelength, temperature
+    datasets_with_draft, name, variable, wavelength, temperature
 ):
-    root, catalog = datasets_copy
+    root, catalog, draft = datasets_with_draft
     if wavelength is None:  # pick a Franta wavelength between two of Green's
         table = catalog.table("franta-2017.nc")
         lam = table.wavelength.values
         wavelength = float(lam[(lam > 1001) & (lam < 1009)][0])
-    draft = _make_draft(root, catalog)
     _scale_table(root, name, variable, wavelength, 1.10, temperature)
     catalog.write_checksums()  # a deliberate edit: the checksum list is not the guard here
     catalog = Catalog(root)  # a fresh reader (the draft's evaluation kept the old table)
@@ -239,13 +222,12 @@ def test_update_checksums_on_a_read_only_install_says_so(datasets_copy, read_onl
 
 
 def test_reference_regenerate_on_a_read_only_install_says_so(
-    datasets_copy, read_only, capsys, monkeypatch
+    datasets_with_draft, read_only, capsys, monkeypatch
 ):
     from matprops.catalogue import store as catalog_module
     from matprops.outputs.reference import main
 
-    root, catalog = datasets_copy
-    draft = _make_draft(root, catalog)  # (a final release refuses first)
+    root, catalog, draft = datasets_with_draft  # (a final release refuses first)
     monkeypatch.setattr(catalog_module, "_DEFAULT", [catalog])  # the "installed" copy
     read_only(root)
     assert main(["regenerate", draft]) == 2
