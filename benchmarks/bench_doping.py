@@ -10,7 +10,8 @@
 2. Schenk's narrowing on N points through the public API (n and p given) against
    the same equations written in the benchmark as one numpy expression.
 
-Prints the figures; says whether the OpenBLAS variables were set (PITFALLS.md).
+Prints the figures; says whether the OpenBLAS variables were set (OPENBLAS_CORETYPE,
+OPENBLAS_L2_SIZE: on some processors they slow a current numpy).
 """
 
 from __future__ import annotations

@@ -16,7 +16,8 @@ Three cases, all on --points (T, N, dn) points:
    (incomplete ionisation, the release's statistics and narrowing, self-consistent):
    that solve, not the lifetime formula, sets the time.
 
-Reports whether OPENBLAS_CORETYPE / OPENBLAS_L2_SIZE were set (see PITFALLS.md).
+Reports whether OPENBLAS_CORETYPE / OPENBLAS_L2_SIZE were set (on some processors
+they slow a current numpy).
 """
 
 import argparse

@@ -63,12 +63,14 @@ def plan(si, points: int):
             return total
 
         def intrinsic_lifetime():
-            state = solve(tt, dd, 0.0)
-            return lifetime(tt, state["electron_density"], state["hole_density"], EXCESS)
+            state = solve(tt, Nd=dd, Na=0.0)
+            return lifetime(
+                tt, n0=state["electron_density"], p0=state["hole_density"], excess=EXCESS
+            )
 
         calls = [
-            ("gap_narrowing", lambda: summed(narrowing(tt, dd, 0.0, n, p))),
-            ("effective_intrinsic_density", lambda: ni_eff(tt, dd, 0.0, n, p)),
+            ("gap_narrowing", lambda: summed(narrowing(tt, Nd=dd, Na=0.0, n=n, p=p))),
+            ("effective_intrinsic_density", lambda: ni_eff(tt, Nd=dd, Na=0.0, n=n, p=p)),
             ("intrinsic_lifetime", intrinsic_lifetime),
         ]
         return list(DOPING_SET), grid, calls

@@ -156,7 +156,7 @@ def loop_part(si, m_points, l_points):
     def log_rho(log_n, temperature):
         na = np.array([np.exp(log_n)])
         nd = np.zeros(1)
-        state = equilibrium(np.array([temperature]), nd, na)
+        state = equilibrium(np.array([temperature]), Nd=nd, Na=na)
         mus = []
         for model in (electron, hole):
             args = {

@@ -224,7 +224,8 @@ def quantity_page(si, quantity, entry, folder: Path) -> str:
 
 
 def release_page(catalog, release_id, previous) -> str:
-    from matprops.outputs.changes import release_difference, release_difference_text
+    from matprops.outputs.changes import release_difference
+    from matprops.outputs.render import release_difference_text
 
     release = catalog.release(release_id)
     lines = [

@@ -84,7 +84,7 @@ class Diode:
         # that asks for ionised densities gets those of equilibrium, solved once
         kinds = self.mobility["electron"].input_kinds
         if kinds["donor_density"] == "ionised" or kinds["acceptor_density"] == "ionised":
-            state = si.kernel("equilibrium")(self.t, self.nd, self.na)
+            state = si.kernel("equilibrium")(self.t, Nd=self.nd, Na=self.na)
             self.scatterers = (state["ionised_donors"], state["ionised_acceptors"])
         else:
             self.scatterers = (self.nd, self.na)
@@ -92,22 +92,22 @@ class Diode:
         # largest dopant density; the warnings list what lies outside a model's range
         span = np.array([[1e2], [SURFACE_DONORS]])
         self.warnings = (
-            self.ni_eff.check(self.t, self.nd, self.na, span, span)
-            + self.mobility["electron"].check(self.t, self.nd, self.na, span, span)
+            self.ni_eff.check(self.t, Nd=self.nd, Na=self.na, n=span, p=span)
+            + self.mobility["electron"].check(self.t, Nd=self.nd, Na=self.na, n=span, p=span)
             + self.radiative.check(self.t)
         )
 
     # --- material parameters at the current densities (kernel calls) ---------------------
     def intrinsic(self, n, p):
         """n_ie and its logarithmic partials d ln n_ie / dn, d ln n_ie / dp."""
-        value, partials = self.ni_eff.derivatives(self.t, self.nd, self.na, n, p)
+        value, partials = self.ni_eff.derivatives(self.t, Nd=self.nd, Na=self.na, n=n, p=p)
         return value, partials["electron_density"] / value, partials["hole_density"] / value
 
     def mobilities(self, n, p):
         nd, na = self.scatterers
         return (
-            self.mobility["electron"](self.t, nd, na, n, p),
-            self.mobility["hole"](self.t, nd, na, n, p),
+            self.mobility["electron"](self.t, Nd=nd, Na=na, n=n, p=p),
+            self.mobility["hole"](self.t, Nd=nd, Na=na, n=n, p=p),
         )
 
     def recombination(self, n, p, nie):
@@ -202,7 +202,7 @@ class Diode:
     def solve(self, biases=(0.0, 0.1, 0.2, 0.3, 0.4), tolerance=1e-7, iterations=200):
         """Steady states at each forward bias (the p contact at +V); returns a list of
         dicts (bias, iterations, total current, the arrays)."""
-        nie = self.ni_eff(self.t, self.nd, self.na, self.nd + 1e4, 1e4 + self.na)
+        nie = self.ni_eff(self.t, Nd=self.nd, Na=self.na, n=self.nd + 1e4, p=1e4 + self.na)
         net = self.nd - self.na
         psi = self.vt * np.arcsinh(net / (2.0 * nie))
         n = 0.5 * net + np.sqrt((0.5 * net) ** 2 + nie**2)
@@ -210,7 +210,7 @@ class Diode:
         states = []
         for bias in biases:
             for count in range(1, iterations + 1):
-                nie_now = self.ni_eff(self.t, self.nd, self.na, n, p)
+                nie_now = self.ni_eff(self.t, Nd=self.nd, Na=self.na, n=n, p=p)
                 phi_n = psi - self.vt * np.log(n / nie_now)
                 phi_p = psi + self.vt * np.log(p / nie_now)
                 start, end = self.contact(0, 0.0, nie_now[0]), self.contact(-1, bias, nie_now[-1])

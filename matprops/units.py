@@ -40,6 +40,7 @@ __all__ = [
     "name",
     "names",
     "normalise_units",
+    "parse",
     "pretty_units",
     "quantity",
     "to_magnitude",
@@ -134,9 +135,10 @@ SPECTRAL = {"wavelength", "photon_energy"}
 _NUMBER_THEN_UNIT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
 
 
-def _parse(text: str, argument: str, units: str):
-    """'25 degC' -> Quantity; the number and the unit are split first, because pint
-    would otherwise multiply 25 by an offset unit and refuse."""
+def parse(text: str, argument: str, units: str):
+    """'25 degC' -> Quantity (a bare number is in ``units``); the number and the unit
+    are split first, because pint would otherwise multiply 25 by an offset unit and
+    refuse. The one parser of a value written as text with its unit."""
     match = _NUMBER_THEN_UNIT.match(text)
     try:
         if match:
@@ -206,7 +208,7 @@ def coerce(
     if value is None:
         raise UnitError(argument, units, None)
     if isinstance(value, str):
-        value = _parse(value, argument, units)
+        value = parse(value, argument, units)
     elif isinstance(value, (list, tuple)) and any(isinstance(v, pint.Quantity) for v in value):
         value = _from_sequence(value, argument, units)
     if isinstance(value, pint.Quantity):

@@ -246,11 +246,11 @@ def canonical(name: str, value, argument_name: str | None = None) -> str:
         if text in spec.choices:
             return text
         raise InputError(shown, f"one of {', '.join(spec.choices)} (Miller indices)", repr(value))
-    text = str(value).strip().lower() if isinstance(value, str) else None
-    if text is not None:
-        text = (spec.spellings or {}).get(text, text)
-        if text in spec.choices:
-            return text
+    if isinstance(value, str):
+        spelled = value.strip().lower()
+        spelled = (spec.spellings or {}).get(spelled, spelled)
+        if spelled in spec.choices:
+            return spelled
     if spec.name in ("dopant", "donor", "acceptor"):
         what = {"donor": "a donor species", "acceptor": "an acceptor species"}.get(
             spec.kind or "", "a dopant species"

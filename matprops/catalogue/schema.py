@@ -6,7 +6,7 @@ a missing required field, a value of the wrong kind and a number that is not fin
 (TOML allows ``nan`` and ``inf``) are each a :class:`~matprops.DatasetError` naming the
 file and the field, e.g. ``coefficients.alpha.value[1]``. A new field is one new line
 in its section. Rules that need more than the file's shape (a coefficient set that
-matches its kernel, units that convert, min below max) live in :mod:`matprops.catalogue.store`.
+matches its kernel, units that convert, min below max) live in :mod:`matprops.catalogue.modelfile`.
 
 Kinds of value::
 

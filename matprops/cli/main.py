@@ -25,7 +25,6 @@ import os
 import re
 import shlex
 import sys
-import textwrap
 import tomllib
 
 import numpy as np
@@ -37,6 +36,7 @@ from ..errors import (
     UnitError,
 )
 from ..material.validity import value_names
+from ..outputs import render
 
 __all__ = ["main", "parse_grid"]
 
@@ -270,17 +270,6 @@ def _grid(args) -> dict:
     return grid
 
 
-def _wrap(text: str, indent: str = "", width: int | None = None) -> str:
-    from ..outputs.export import terminal_width
-
-    return textwrap.fill(
-        " ".join(str(text).split()),
-        width or terminal_width(),
-        initial_indent=indent,
-        subsequent_indent=indent + "  ",
-    )
-
-
 def _command_line(argv) -> str:
     return "matprops " + shlex.join(argv)
 
@@ -350,20 +339,6 @@ def _emit(args, data, footer: str = ""):
             print(footer)
 
 
-def _footer(si, names) -> str:
-    names = list(dict.fromkeys(names))
-    lines = [
-        _wrap(
-            f"release {si.release.id} ({si.release.status}); models: "
-            + "; ".join(
-                f"{q} {si.models[q]}" if q in si.models else f"{q} (derived)" for q in names
-            )
-        )
-    ]
-    lines.append(_wrap("sources: matprops provenance QUANTITY; references: matprops cite"))
-    return "\n".join(lines)
-
-
 def _needs_output(args, what: str):
     if not args.output:
         raise InputError("-o/--output", f"a file name for {what}", "none")
@@ -397,7 +372,9 @@ def _cmd_table(args):
         )
     finally:
         progress.close()
-    _emit(args, data, _footer(si, [data[v].attrs["quantity"] for v in value_names(data)]))
+    _emit(
+        args, data, render.table_footer(si, [data[v].attrs["quantity"] for v in value_names(data)])
+    )
 
 
 def _cmd_compare(args):
@@ -418,9 +395,10 @@ def _cmd_compare(args):
     finally:
         progress.close()
     footer = "\n".join(
-        _wrap(f"[{m}] {c}") for m, c in zip(data.model.values, data.citation.values, strict=True)
+        render.wrap(f"[{m}] {c}")
+        for m, c in zip(data.model.values, data.citation.values, strict=True)
     )
-    footer += "\n" + _wrap(
+    footer += "\n" + render.wrap(
         "spread = (largest - smallest) / mean, in %, over the models valid at the point "
         "(valid: how many); in files also <name>_spread in the quantity's units"
     )
@@ -472,146 +450,36 @@ def _cmd_plot(args):
     print(f"wrote {args.output}")
 
 
-def _equation(model) -> str:
-    import inspect
-
-    doc = inspect.getdoc(model.kernel) or ""
-    return doc.split("\nParameters")[0].strip()
-
-
-def _describe(si, quantity, model_id=None) -> str:
-    catalog = si.catalog
-    if model_id is None:
-        model = si.model(quantity)
-    else:
-        catalog.model_ids(quantity)  # unknown quantity -> error listing what exists
-        model = catalog.model(quantity, model_id)
-    releases = [
-        r for r in catalog.release_ids() if catalog.release(r).models.get(quantity) == model.id
-    ]
-    out = [f"{quantity} / {model.id}", _wrap(model.name, "  ")]
-    if releases:
-        out.append(f"  default in release {', '.join(releases)}")
-    out += ["", "equation:"]
-    out += [_wrap(line, "  ") if line.strip() else "" for line in _equation(model).splitlines()]
-    kernel = f"{model.kernel.__module__.removeprefix('matprops.')}.{model.kernel.__name__}"
-    out.append(f"  (kernel {kernel}; kind {model.kind})")
-    if model.requires:
-        chosen = ", ".join(f"{q} {si.models.get(q, '?')}" for q in model.requires)
-        out.append(_wrap(f"composed from the material's choice of: {chosen}", "  "))
-    if model.coefficients:
-        out += ["", "coefficients (as published; value ± uncertainty, units):"]
-        width = max(len(n) for n in model.coefficients)
-        for name, coef in model.coefficients.items():
-            value = (
-                ", ".join(f"{v:g}" for v in coef.value)
-                if isinstance(coef.value, tuple)
-                else f"{coef.value:g}"
-            )
-            unc = coef.uncertainty
-            unc = (
-                ""
-                if unc is None
-                else " ± "
-                + (", ".join(f"{u:g}" for u in unc) if isinstance(unc, tuple) else f"{unc:g}")
-            )
-            units = "" if coef.units in ("1", "dimensionless") else f" {coef.units}"
-            out.append(_wrap(f"{name.ljust(width)} = {value}{unc}{units}", "  "))
-    if model.tables:
-        out += ["", "tables: " + ", ".join(f"datasets/tables/{t}" for t in model.tables)]
-    out += ["", "validity:"]
-    out += [f"  {r}" for r in model.validity.values()] or ["  no limits recorded"]
-    out += ["", "source:", _wrap(model.source.citation(), "  ")]
-    out += [_wrap(s.citation(), "  also: ") for s in model.additional_sources]
-    out += ["", "how the numbers were obtained:", _wrap(model.obtained, "  ")]
-    if model.notes:
-        out += ["", "notes:", _wrap(model.notes, "  ")]
-    relative = f"models/{quantity}/{model.path.name}"
-    out += ["", f"file: datasets/{relative}", f"sha256: {model.sha256}"]
-    return "\n".join(out)
-
-
 def _cmd_describe(args):
     si = _silicon(args)
-    print(_describe(si, args.quantity, args.model_id))
-
-
-def _provenance_text(record: dict, indent: str = "") -> list[str]:
-    lines = []
-    if record.get("model") == "derived":
-        lines.append(f"{indent}{record['quantity']}: derived, {record['formula']}")
-        for part in record.get("components", {}).values():
-            lines += _provenance_text(part, indent + "  ")
-        return lines
-    lines.append(
-        f"{indent}{record['quantity']}: model {record['model']} ({record.get('kind', '?')})"
-    )
-    lines.append(_wrap(record.get("name", ""), indent + "  "))
-    lines.append(_wrap(f"source: {record.get('citation', '?')}", indent + "  "))
-    for extra in record.get("additional_sources", []):
-        lines.append(_wrap(f"also: {_source_text(extra)}", indent + "  "))
-    validity = record.get("validity") or {}
-    if validity:
-        lines.append(
-            _wrap(
-                "validity: "
-                + "; ".join(
-                    f"{k} {v['min']:g}-{v['max']:g} {v['units']}" for k, v in validity.items()
-                ),
-                indent + "  ",
-            )
-        )
-    coefficients = record.get("coefficients") or {}
-    if coefficients:
-        lines.append(
-            _wrap(
-                "coefficients: "
-                + "; ".join(f"{k} = {v['value']} {v['units']}" for k, v in coefficients.items()),
-                indent + "  ",
-            )
-        )
-    lines.append(_wrap(f"obtained: {record.get('obtained', '?')}", indent + "  "))
-    if "file" in record:
-        lines.append(
-            f"{indent}  file: datasets/{record['file']} (sha256 {record.get('sha256', '')[:12]}...)"
-        )
-    for part in record.get("components", {}).values():
-        lines += _provenance_text(part, indent + "  ")
-    return lines
-
-
-def _source_text(source: dict) -> str:
-    """One line for a source record of any type (an article: journal, volume, pages; a
-    book: edition, publisher, address, pages), as ``Source.as_dict`` gives it."""
-    names = list(source.get("authors", []))
-    authors = ", ".join(names[:3]) + (" et al." if len(names) > 3 else "")
-    head = f"{authors} ({source.get('year', '?')})"
-    if source.get("type") == "book":
-        edition = f"{source['edition']} edition" if source.get("edition") else ""
-        place = ", ".join(p for p in (edition, source.get("publisher"), source.get("address")) if p)
-        text = f"{head}, {source.get('title', '')}" + (f" ({place})" if place else "")
-        if source.get("pages"):
-            text += f", pp. {source['pages']}"
+    catalogue = si.catalog
+    if args.model_id is None:
+        model = si.model(args.quantity)
     else:
-        parts = [p for p in (source.get("journal"), source.get("volume")) if p]
-        text = f"{head}, {' '.join(parts)}" + (
-            f", {source['pages']}" if source.get("pages") else ""
-        )
-    return text + (f", doi:{source['doi']}" if source.get("doi") else "")
+        catalogue.model_ids(args.quantity)  # unknown quantity -> error listing what exists
+        model = catalogue.model(args.quantity, args.model_id)
+    defaults = [
+        r
+        for r in catalogue.release_ids()
+        if catalogue.release(r).models.get(args.quantity) == model.id
+    ]
+    composed = ", ".join(f"{q} {si.models.get(q, '?')}" for q in model.requires)
+    print("\n".join(render.model_record(model, "full", defaults=defaults, composed_with=composed)))
 
 
 def _cmd_provenance(args):
-    record = _silicon(args).provenance(args.quantity)
+    si = _silicon(args)
+    record = si.provenance(args.quantity)
     if args.json:
         print(json.dumps(record, indent=2, ensure_ascii=False))
         return
-    lines = _provenance_text(record)
+    lines = render.provenance_lines(si, record["quantity"])
     status = f"release {record['release']} ({record['release_status']})"
     if record.get("overridden"):
         status += f"; overridden with --model (the release chose {record['release_choice']})"
     lines.append(status)
     lines.append(
-        _wrap(
+        render.wrap(
             f"(all fields: matprops provenance {args.quantity} --json; the "
             f"model in full: matprops describe {args.quantity})"
         )
@@ -620,15 +488,14 @@ def _cmd_provenance(args):
 
 
 def _cmd_release_diff(args):
-    from ..outputs.changes import release_difference, release_difference_text
-    from ..outputs.export import terminal_width
+    from ..outputs.changes import release_difference
 
     _catalog()
     diff = release_difference(args.old, args.new)
     if args.json:
         print(json.dumps(diff, indent=1, ensure_ascii=False))
         return
-    print(release_difference_text(diff, terminal_width()))
+    print(render.release_difference_text(diff, render.terminal_width()))
 
 
 def _cmd_report(args, spec=None):
@@ -657,7 +524,7 @@ def _cmd_report(args, spec=None):
         print("wrote " + " and ".join(str(p) for p in written))
         if result.skipped:
             print(
-                _wrap("note: not in this release, left out: " + ", ".join(result.skipped)),
+                render.wrap("note: not in this release, left out: " + ", ".join(result.skipped)),
                 file=sys.stderr,
             )
         return
@@ -697,19 +564,15 @@ def _cmd_explain(args):
 
 
 def _cmd_models(args):
-    from ..catalogue.store import default_catalog
     from ..material.silicon import models
 
-    _catalog()
-    catalog = models(args.quantity) if args.quantity else models()
-    if args.quantity:
-        catalog = {args.quantity: catalog}
-    for quantity, ids in catalog.items():
+    catalogue = _catalog()
+    listing = {args.quantity: models(args.quantity)} if args.quantity else models()
+    for quantity, ids in listing.items():
         print(f"{quantity}:")
         for model_id in ids:
-            model = default_catalog().model(quantity, model_id)
-            ranges = ", ".join(str(r) for r in model.validity.values()) or "no limits"
-            print(_wrap(f"{model_id:22s} {model.name} [{ranges}]", "  "))
+            model = catalogue.model(quantity, model_id)
+            print("\n".join(render.model_record(model, "line", indent="  ")))
 
 
 def _cmd_releases(args):

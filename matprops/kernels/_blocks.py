@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable, Mapping
+from typing import Any
 
 import numpy as np
 
@@ -37,7 +38,7 @@ _SCALARS = (float, int)
 
 def evaluate(
     function: Callable,
-    arguments: Mapping[str, object],
+    arguments: Mapping[str, Any],
     out=None,
     block: int | None = None,
     **options,

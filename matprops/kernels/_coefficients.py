@@ -225,7 +225,7 @@ class Dual:
 
     __ne__ = __eq__
 
-    __hash__ = None
+    __hash__ = None  # type: ignore[assignment]  # unhashable, as __eq__ refuses to compare
 
     def __repr__(self) -> str:
         return f"Dual({self.value!r}, tangent shape {np.shape(self.tangent)})"

@@ -43,7 +43,7 @@ def kernel(
     *,
     inputs: Mapping[str, str],
     output,
-    coefficients: Mapping[str, str] = (),
+    coefficients: Mapping[str, str] | None = None,
     requires: tuple[str, ...] = (),
     array_api: bool = False,
     nan_outside: tuple[str, ...] = (),
@@ -71,7 +71,9 @@ def kernel(
         raise ValueError(f"nan_outside names inputs the kernel does not take: {sorted(unknown)}")
 
     def attach(func: Callable) -> Callable:
-        func.spec = KernelSpec(inputs, dict(coefficients), output, requires, array_api, nan_outside)
+        coefficient_units = dict(coefficients or {})
+        spec = KernelSpec(inputs, coefficient_units, output, requires, array_api, nan_outside)
+        setattr(func, "spec", spec)  # noqa: B010 (an attribute a plain function does not declare)
         return func
 
     return attach
@@ -87,7 +89,7 @@ def derivatives_of(function: Callable) -> Callable:
     """
 
     def attach(derivative: Callable) -> Callable:
-        function.derivatives = derivative
+        setattr(function, "derivatives", derivative)  # noqa: B010 (as for spec above)
         return derivative
 
     return attach

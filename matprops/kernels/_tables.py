@@ -150,6 +150,7 @@ class GridTable:
         row = self._rows.get(temperature)
         if row is None:
             grid = self.temperature_grid
+            assert grid is not None  # a one-row table never asks for a row
             if not grid[0] <= temperature <= grid[-1]:
                 row = np.full(self.wavelength_grid.size, np.nan)
             else:

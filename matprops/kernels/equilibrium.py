@@ -104,20 +104,15 @@ class _Neutrality:
     def subset(self, index):
         """The same equation on a subset of the points."""
         return _Neutrality(
-            *(
-                a[index]
-                for a in (
-                    self.log_nc,
-                    self.log_nv,
-                    self.log_nd,
-                    self.log_na,
-                    self.gap,
-                    self.w_d,
-                    self.b_d,
-                    self.w_a,
-                    self.b_a,
-                )
-            ),
+            self.log_nc[index],
+            self.log_nv[index],
+            self.log_nd[index],
+            self.log_na[index],
+            self.gap[index],
+            self.w_d[index],
+            self.b_d[index],
+            self.w_a[index],
+            self.b_a[index],
             self.fermi_dirac,
             self.by_density,
         )

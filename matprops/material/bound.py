@@ -12,6 +12,11 @@ smooth closed-form models, returns partial derivatives with
 
 Policies (stated in every kernel's docstring):
 
+- **Names.** Inputs are named as in the argument vocabulary
+  (:mod:`matprops.vocabulary`), and any of an input's names is accepted
+  (``temperature`` or ``T``, ``donor_density`` or ``Nd``). Densities (cm^-3) are
+  keyword-only: ``mobility(300.0, donor_density=nd, acceptor_density=na, ...)``; only
+  the inputs before the first density may be given by position.
 - **Units.** Internal units throughout (K, cm, cm^-3, eV, s, V, nm for
   wavelengths). Where the public method returns other units, the kernel says so
   loudly (``lattice_constant``: the kernel gives cm, ``si.lattice_constant`` nm).
@@ -49,7 +54,7 @@ import numpy as np
 
 from ..errors import InputError
 from ..kernels._blocks import BLOCK, evaluate
-from ..vocabulary import dopant_species
+from ..vocabulary import ARGUMENTS, canonical_name, dopant_species
 from .composition import input_kinds, species_model
 
 __all__ = ["BoundKernel", "make_kernel", "model_checker", "model_kernel", "validity_of"]
@@ -61,6 +66,12 @@ _DTYPE_NOTE = (
     "dtype is refused); pint quantities are converted to the internal units, dates "
     "and durations refused"
 )
+
+
+def _is_density(name: str) -> bool:
+    """Whether a kernel input is a density (cm^-3): those are keyword-only."""
+    spec = ARGUMENTS.get(canonical_name(name) or "")
+    return spec is not None and spec.units == "cm^-3"
 
 
 def _screen(arguments: dict, units: Mapping[str, str]) -> dict:
@@ -113,8 +124,11 @@ def _foreign(value) -> bool:
 class BoundKernel:
     """A quantity's model bound to its coefficients: plain arrays in internal units.
 
-    Call it with the inputs named in :attr:`inputs` (positionally in that order, or by
-    name); it returns the output in :attr:`output_units`. See the module notes for
+    Call it with the inputs named in :attr:`inputs`, by name (any name of the argument
+    vocabulary: ``temperature`` or ``T``, ``donor_density`` or ``Nd``); the inputs
+    before the first density may also be given by position, in that order. Densities
+    are keyword-only, so that a positional call cannot swap donors and acceptors. It
+    returns the output in :attr:`output_units`. See the module notes for
     the units, dtype, memory and array-API policies, and ``help(kernel)`` or
     ``print(kernel.__doc__)`` for this kernel's own.
 
@@ -165,6 +179,23 @@ class BoundKernel:
         self._function = function
         self.inputs = dict(inputs)
         self._names = tuple(self.inputs)
+        # densities are keyword-only: only the inputs before the first density may be
+        # given by position (so a positional call cannot swap donors and acceptors)
+        positional = []
+        for name in self._names:
+            if _is_density(name):
+                break
+            positional.append(name)
+        self._positional = tuple(positional)
+        self._all_positional = len(positional) == len(self._names)
+        # every name of the argument vocabulary is accepted for an input (T, Nd ...)
+        self._aliases = {
+            other: name
+            for name in self._names
+            if (spec := ARGUMENTS.get(canonical_name(name) or "")) is not None
+            for other in spec.names
+            if other != name
+        }
         self._optional = frozenset(optional)
         self.output_units = output_units
         self.api_units = output_units if api_units is None else api_units
@@ -189,20 +220,28 @@ class BoundKernel:
     # ------------------------------------------------------------------ calling
     def _arguments(self, args, kwargs, what="kernel"):
         """Positional and keyword inputs -> (inputs by name, options)."""
-        if len(args) > len(self._names):
+        if len(args) > len(self._positional):
+            named = [n for n in self._names if n not in self._positional]
             raise TypeError(
-                f"the {self.quantity} {what} takes at most {len(self._names)} "
-                f"positional inputs ({', '.join(self._names)}); "
-                f"received {len(args)}"
+                f"the {self.quantity} {what} takes at most {len(self._positional)} "
+                f"positional input(s) ({', '.join(self._positional) or 'none'})"
+                + (
+                    f"; {', '.join(named)} are keyword-only (densities are named, so that "
+                    "donors and acceptors, electrons and holes cannot be swapped)"
+                    if named
+                    else ""
+                )
+                + f"; received {len(args)}"
             )
         arguments = dict(zip(self._names, args, strict=False))
         options = {}
         for name, value in kwargs.items():
+            name = self._aliases.get(name, name)
             if name in self.inputs:
                 if name in arguments:
                     raise TypeError(
                         f"input {name!r} of the {self.quantity} {what} given "
-                        "twice (by position and by name)"
+                        "twice (by position and by name, or by two of its names)"
                     )
                 arguments[name] = value
             elif name in self._options:
@@ -226,7 +265,7 @@ class BoundKernel:
     def __call__(self, *args, out=None, uncertainty=False, **kwargs):
         if uncertainty is not False:
             return self._uncertain(args, out, uncertainty, kwargs)
-        if not kwargs and len(args) == len(self._names):  # the common call: positional
+        if not kwargs and len(args) == len(self._names) and self._all_positional:
             arguments, options = dict(zip(self._names, args, strict=False)), {}
             if self._optional and any(v is None for v in args):
                 arguments, options = self._arguments(args, kwargs)
@@ -397,7 +436,10 @@ class BoundKernel:
         return record
 
     def _signature(self) -> str:
-        names = [f"{n}=None" if n in self._optional else n for n in self._names]
+        names = [f"{n}=None" if n in self._optional else n for n in self._positional]
+        named = [f"{n}=None" if n in self._optional else n for n in self._names[len(names) :]]
+        if named:
+            names += ["*", *named]
         names += [f"{k}={v!r}" for k, v in self._options.items()]
         return f"({', '.join(names)})"
 

@@ -125,7 +125,7 @@ class Case:
     method: str | None = None
 
 
-def case(label: str | None = None, *, method: str | None = None, fixed=None, **grid) -> Case:
+def case(label: Any = None, *, method: Any = None, fixed: Any = None, **grid) -> Case:
     """A reference case: ``case("mobility_electron", fixed={"carrier": "electron"},
     temperature=[300.0], Nd=[1e15, 1e18])``; the label defaults to the quantity's name."""
     return Case(dict(grid), dict(fixed or {}), label, method)
@@ -390,7 +390,7 @@ def _accepting_every_name(function: Callable, renames: Mapping[str, str]) -> Cal
     if getattr(function, "_renames", None) is not None:  # declared twice: wrapped once
         return function
     if not renames:
-        function._renames = {}
+        setattr(function, "_renames", {})  # noqa: B010 (marks the method as declared)
         return function
     others = frozenset(renames)
 
@@ -406,7 +406,7 @@ def _accepting_every_name(function: Callable, renames: Mapping[str, str]) -> Cal
                 kwargs[target] = kwargs.pop(other)
         return function(self, *args, **kwargs)
 
-    method._renames = dict(renames)
+    setattr(method, "_renames", dict(renames))  # noqa: B010 (as above)
     return method
 
 

@@ -192,9 +192,10 @@ class Silicon(
         ``carrier=`` (and ``donor=`` / ``acceptor=`` where the model has one
         coefficient set per dopant) for the transport quantities; ``dopant=`` for
         ionisation; ``donor=``, ``acceptor=``, ``statistics=`` and ``complete_ionisation=``
-        (every dopant ionised) for ``equilibrium``
-        (a callable ``(temperature, donor_density, acceptor_density) -> dict of
-        arrays``).
+        (every dopant ionised) for ``equilibrium`` (a callable ``(temperature, *,
+        donor_density, acceptor_density) -> dict of arrays``). Densities are keyword-only
+        in every bound kernel, so a positional call cannot swap donors and acceptors; any
+        name of the argument vocabulary is accepted (``T``, ``Nd``, ``donor_density``).
         """
         from .bound import make_kernel
 
@@ -389,7 +390,7 @@ class Silicon(
         ``wavelength``, ``carrier``, ``plane``) and ``chunks=`` for a lazy dask-backed
         Dataset; a grid of more than ``max_values`` values (1e8 by default, 0.8 GB;
         ``None`` for no limit) is an InputError before anything is allocated; see
-        :func:`matprops.tables.table`.
+        :func:`matprops.material.tables.table`.
         """
         from .tables import table
 
@@ -399,7 +400,7 @@ class Silicon(
 
     def compare(self, quantity, models=None, **grid):
         """The same grid evaluated by several models of one quantity -> xarray.Dataset
-        with a ``model`` dimension and the spread; see :func:`matprops.tables.compare`."""
+        with a ``model`` dimension and the spread; see :func:`matprops.material.tables.compare`."""
         from .tables import compare
 
         return compare(self, quantity, models, **grid)

@@ -1,10 +1,11 @@
 """Grids of quantities -> xarray.Dataset, and model comparison.
 
-The analyst's door. :data:`QUANTITIES` is the registry of what can be tabulated:
-each entry says which grid axes (:data:`AXES`: temperature, doping, excess
-density, wavelength, carrier, ...) its :class:`~matprops.Silicon` method takes and
-how the method takes them. A new quantity becomes tabulable, comparable and
-plottable from the command line by adding one entry.
+The analyst's door. What can be tabulated is the quantity registry
+(:mod:`.registry`, here :data:`QUANTITIES`): each declared quantity spans the grid
+axes (:data:`AXES`, the axes of the argument vocabulary: temperature, doping, excess
+density, wavelength, carrier, ...) its :class:`~matprops.Silicon` method takes. A
+quantity declared beside its method is tabulable, comparable and plottable from the
+command line with nothing more.
 
 A table's dimensions are the axes actually given (a scalar becomes a scalar
 coordinate, a list a dimension), in the fixed order of :data:`AXES`; each variable
@@ -16,10 +17,12 @@ dataset carries the release, the references and the call that made it.
 Large grids are evaluated in blocks of about 2^18 points written into
 preallocated outputs (memory and time stay linear in the grid size; the validity
 check runs once on the grid's extremes). ``chunks=`` returns a lazy dask-backed
-Dataset instead, for sweeps larger than memory; any dask scheduler (threads, a
-``dask.distributed`` cluster) evaluates it.
+Dataset instead, for sweeps larger than memory, made with
+``xr.apply_ufunc(..., dask="parallelized")`` over the chunked axes; any dask
+scheduler (threads, a ``dask.distributed`` cluster) evaluates it, each worker
+rebuilding the material from its recipe.
 
-Writing files (netCDF, CSV, JSON) lives in :mod:`matprops.export`.
+Writing files (netCDF, CSV, JSON) lives in :mod:`matprops.outputs.export`.
 """
 
 from __future__ import annotations
@@ -40,7 +43,7 @@ from ..errors import (
     UnknownQuantityError,
     warn,
 )
-from ..units import NEEDS_UNIT, cf_units, to_magnitude
+from ..units import NEEDS_UNIT, cf_units, parse, to_magnitude
 from ..units import name as check_name
 from ..units import names as check_names
 from .registry import REGISTRY, Quantity
@@ -146,19 +149,11 @@ def _grid_values(ax: Axis, value, catalogue=None):
             repr(value),
         )
     requested = None
+    if isinstance(value, str):  # "25 degC": the units layer's one parser of such text
+        value = parse(value, ax.name, ax.units)
     if isinstance(value, pint.Quantity) and ax.name == "temperature":
         for name in value.units._units:
             requested = _DISPLAY_TEMPERATURE.get(name)
-    elif isinstance(value, str) and ax.name == "temperature":
-        for key, short in (
-            ("degC", "degC"),
-            ("°C", "degC"),
-            ("celsius", "degC"),
-            ("degF", "degF"),
-            ("°F", "degF"),
-        ):
-            if key.lower() in value.lower():
-                requested = short
     array = to_magnitude(value, ax.name, ax.units, ax.requirement)
     if array.ndim > 1:
         raise InputError(ax.name, "a scalar or a 1-D list", f"shape {array.shape}")
@@ -470,32 +465,43 @@ def _verified(recipe, digests):
 
 
 class _BlockFunction:
-    """Picklable block evaluator for dask: one output part of one quantity.
+    """Picklable block evaluator for dask: every output part of one quantity on one block.
 
-    It carries the recipe of the material and the digests of every data file the
-    material reads, and checks them on its first call in a worker (never while being
-    unpickled: an error there would hang the client)."""
+    ``xr.apply_ufunc`` hands it one block of each dimension's coordinate, broadcast
+    against the others (length 1 along every other axis): their values are the 1-D
+    axes of the block's outer product. It carries the recipe of the material and the
+    digests of every data file the material reads, and checks them on its first call
+    in a worker (never while being unpickled: an error there would hang the client).
+    """
 
-    def __init__(self, recipe, quantity, dims, scalars, part, all_units, digests=()):
+    def __init__(self, recipe, quantity, dims, scalars, all_units, digests=()):
         self.recipe, self.quantity, self.dims = recipe, quantity, dims
-        self.scalars, self.part, self.all_units = scalars, part, all_units
-        self.units = all_units[part]
+        self.scalars, self.all_units = scalars, all_units
         self.digests = digests
+
+    def __dask_tokenize__(self):
+        # deterministic: the same recipe, data, quantity and fixed axes give the same keys
+        scalars = sorted((k, np.asarray(v).tolist()) for k, v in self.scalars.items())
+        return ("matprops", repr(self.recipe), self.digests, self.quantity, self.dims, scalars)
 
     def __call__(self, *blocks):
         # validity was checked on the grid's extremes before the graph was made: the
         # worker's view skips the checks (no warning filter is touched)
         si = _verified(self.recipe, self.digests)._checked_already()
         values = dict(self.scalars)
-        values.update(zip(self.dims, blocks, strict=True))
+        values.update(
+            (d, np.asarray(b).reshape(-1)) for d, b in zip(self.dims, blocks, strict=True)
+        )
         entry = QUANTITIES[self.quantity]
         if math.prod(values[d].size for d in self.dims) <= BLOCK:
             outs, got = _call_block(si, entry, values, self.dims)
-            out = outs[self.part]
-            return (
-                out if got[self.part] == self.units else _convert(out, got[self.part], self.units)
-            )
-        return _in_blocks(si, entry, values, self.dims, self.all_units)[self.part]
+            outs = [
+                out if unit == want else _convert(out, unit, want)
+                for out, unit, want in zip(outs, got, self.all_units, strict=True)
+            ]
+        else:
+            outs = _in_blocks(si, entry, values, self.dims, self.all_units)
+        return tuple(outs) if len(outs) > 1 else outs[0]
 
 
 def _chunk_sizes(chunks, dims: list[str], grid: _Grid) -> dict[str, int]:
@@ -517,45 +523,26 @@ def _chunk_sizes(chunks, dims: list[str], grid: _Grid) -> dict[str, int]:
 
 
 def _evaluate_lazy(si, entry: Tabulated, grid: _Grid, chunks):
-    import dask.array as da
+    """Lazy dask-backed parts of one quantity through ``xr.apply_ufunc(...,
+    dask="parallelized")``: one call of :class:`_BlockFunction` per block of the
+    grid's outer product, on any dask scheduler (threads, a distributed cluster)."""
+    import xarray as xr
 
     dims = grid.dims_of(entry)
     units = _check_extremes(si, entry, grid, dims)  # warns or raises now, not in workers
     sizes = _chunk_sizes(chunks, dims, grid)
     scalars = {n: grid.values[n] for n in entry.takes if n in grid and n not in dims}
-    letters = "abcdefghijklmnopqrstuvwxyz"[: len(dims)]
-    arguments = []
-    for d, letter in zip(dims, letters, strict=True):
-        arguments += [da.from_array(grid.values[d], chunks=sizes[d]), letter]
-    recipe = _recipe(si)
+    axes = [xr.DataArray(grid.values[d], dims=(d,)).chunk({d: sizes[d]}) for d in dims]
     digests = tuple(sorted(si._data_digests().items()))
-    outs = []
-    token = _grid_token(grid, (recipe, digests, sorted(sizes.items())))
-    for part in range(len(units)):
-        function = _BlockFunction(recipe, entry.name, dims, scalars, part, units, digests)
-        outs.append(
-            da.blockwise(
-                function,
-                letters,
-                *arguments,
-                dtype=float,
-                name=f"matprops-{entry.name}-{part}-{token}",
-            )
-        )
-    return dims, outs, units
-
-
-def _grid_token(grid: _Grid, recipe) -> str:
-    """A deterministic dask key: same recipe and grid -> same key, in any process."""
-    import hashlib
-
-    digest = hashlib.sha1(repr(recipe).encode())
-    for d, values in grid.values.items():  # every axis, scalars included
-        digest.update(d.encode())
-        digest.update(
-            np.ascontiguousarray(values).astype(str if AXES[d].category else float).tobytes()
-        )
-    return digest.hexdigest()[:16]
+    parts = xr.apply_ufunc(
+        _BlockFunction(_recipe(si), entry.name, tuple(dims), scalars, units, digests),
+        *axes,
+        dask="parallelized",
+        output_dtypes=[float] * len(units),
+        output_core_dims=[[] for _ in units] if len(units) > 1 else [[]],
+    )
+    parts = parts if isinstance(parts, tuple) else (parts,)
+    return dims, [part.transpose(*dims).data for part in parts], units
 
 
 # --------------------------------------------------------------------------- table

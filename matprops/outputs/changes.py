@@ -1,6 +1,7 @@
 """What changed between two releases: their model choices, and the largest deviation
 of each quantity on the releases' standard reference grid
-(:data:`matprops.outputs.reference.CASES`).
+(:data:`matprops.outputs.reference.CASES`); the screen's text of it is
+:func:`matprops.outputs.render.release_difference_text`.
 
     matprops release-diff 2026.1 2026.2
 """
@@ -9,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["release_difference", "release_difference_text"]
+__all__ = ["release_difference"]
 
 
 def release_difference(old: str, new: str, catalog=None) -> dict:
@@ -99,74 +100,3 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
         "deviations": deviations,
         "notes": releases[new].notes,
     }
-
-
-def _pretty(units: str) -> str:
-    from ..units import pretty_units
-
-    try:
-        return pretty_units(units.replace(" ** ", "^").replace("Ω", "ohm"))
-    except Exception:  # a unit pint does not read stays as written
-        return units
-
-
-def release_difference_text(diff: dict, width: int = 100) -> str:
-    """What changed, for the screen: the models whose id or file changed and the
-    cases of the reference grid whose numbers moved; "identical" when nothing did."""
-    import textwrap
-
-    def wrap(text, indent="  "):
-        return textwrap.fill(text, width, initial_indent=indent, subsequent_indent=indent + "  ")
-
-    old, new = diff["old"], diff["new"]
-    changed = [r for r in diff["models"] if r["changed"]]
-    moved = [
-        r
-        for r in diff["deviations"]
-        if (r["largest_relative"] is None and r.get("note"))
-        or (r["largest_relative"] or 0) > 0
-        or (r["largest_absolute"] or 0) > 0
-    ]
-    defaults = diff.get("defaults", [])
-    if not changed and not moved and not defaults:
-        return (
-            f"releases {old} and {new} are identical: the same models (ids and files) and "
-            f"the same numbers on the standard reference grid ({len(diff['deviations'])} cases)"
-        )
-    out = [f"release {old} -> {new}"]
-    if changed:
-        out.append(f"models changed ({len(changed)} of {len(diff['models'])}):")
-        for r in changed:
-            what = "file changed" if r["old"] == r["new"] else f"{r['old']} -> {r['new']}"
-            out.append(f"  {r['quantity']:24s} {what}")
-    else:
-        out.append("models: the same ids and files")
-    for r in defaults:
-        out.append(f"default of {r['option']}: {r['old'] or 'physics'} -> {r['new'] or 'physics'}")
-    same = len(diff["deviations"]) - len(moved)
-    if moved:
-        out.append(
-            f"numbers that moved on the standard reference grid ({len(moved)} cases; "
-            f"{same} unchanged), largest relative change |new/old - 1|:"
-        )
-        for r in sorted(moved, key=lambda r: -(r["largest_relative"] or 0)):
-            if r["largest_relative"] is None:
-                out.append(wrap(f"{r['case']}: {r['note']}"))
-                continue
-            at = ", ".join(
-                f"{k}={v:g}" if isinstance(v, float) else f"{k}={v}"
-                for k, v in (r["at"] or {}).items()
-            )
-            out.append(
-                wrap(
-                    f"{r['case']}: {100 * r['largest_relative']:.3g} % "
-                    f"({r['largest_absolute']:.3g} {_pretty(r['units'])})"
-                    + (f" at {at}" if at else "")
-                )
-            )
-    else:
-        out.append(f"numbers: identical on the standard reference grid ({same} cases)")
-    if diff.get("notes"):
-        out.append(f"notes of {new} (each change with its size at standard points):")
-        out += ["  " + line for line in str(diff["notes"]).strip().splitlines()]
-    return "\n".join(out)

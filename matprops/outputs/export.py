@@ -228,7 +228,7 @@ def write(
     overwrite: bool = False,
     command: str | None = None,
 ) -> list[Path]:
-    """Write a table (from :func:`matprops.tables.table`) atomically.
+    """Write a table (from :func:`matprops.material.tables.table`) atomically.
 
     Parameters
     ----------

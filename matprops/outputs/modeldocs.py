@@ -18,6 +18,7 @@ from pathlib import Path
 from ..catalogue.files import forget, interruptible, temporary_for
 from ..catalogue.store import Catalog, default_catalog
 from ..material.registry import declared
+from .render import model_record
 
 __all__ = ["main", "render"]
 
@@ -47,44 +48,7 @@ def render(catalog: Catalog | None = None) -> str:
         for model_id in catalog.model_ids(quantity):
             model = catalog.model(quantity, model_id)
             chosen = [r for r, rel in releases.items() if rel.models.get(quantity) == model_id]
-            default = f" — default in {', '.join(chosen)}" if chosen else ""
-            lines += [f"### `{model_id}`{default}", "", _one_line(model.name), ""]
-            lines.append(
-                f"- kind: {model.kind}; kernel: "
-                f"`{model.kernel.__module__.removeprefix('matprops.')}."
-                f"{model.kernel.__name__}`"
-            )
-            lines.append(f"- source: {model.source.citation()}")
-            for extra in model.additional_sources:
-                lines.append(f"- also: {extra.citation()}")
-            if model.validity:
-                lines.append("- validity: " + "; ".join(str(r) for r in model.validity.values()))
-            for region in model.regions:
-                lines.append(f"- validity region: {region} ({region.reason})")
-            if model.requires:
-                lines.append(
-                    f"- composed from: {', '.join(model.requires)} (the material's choice)"
-                )
-            if model.table:
-                lines.append(f"- tables: {', '.join(model.provenance()['tables'])}")
-            for name, coef in model.coefficients.items():
-                unc = f" ± {coef.uncertainty}" if coef.uncertainty is not None else ""
-                value = list(coef.value) if isinstance(coef.value, tuple) else coef.value
-                lines.append(f"- `{name}` = {value}{unc} {coef.units}")
-            conventions = model.conventions
-            if conventions:
-                lines.append("- fitted with:")
-                for name, entry in conventions.items():
-                    lines.append(f"  - {name}: {_one_line(entry.describe())}")
-            stand_ins = model.extra.get("stand_ins", {})
-            if stand_ins:
-                lines.append("- species without a set of their own:")
-                for record in stand_ins.values():
-                    lines.append(f"  - {_one_line(record.describe())}")
-            lines.append(f"- obtained: {_one_line(model.obtained)}")
-            if model.notes:
-                lines.append(f"- notes: {_one_line(model.notes)}")
-            lines.append("")
+            lines += model_record(model, "markdown", defaults=chosen)
     lines += _derived_lines(registry)
     lines += _defect_lines(catalog)
     return "\n".join(lines).rstrip() + "\n"

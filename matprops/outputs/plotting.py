@@ -340,7 +340,7 @@ def plot(
 
     Parameters
     ----------
-    data : xarray.Dataset from :func:`matprops.tables.table` or ``compare``
+    data : xarray.Dataset from :func:`matprops.material.tables.table` or ``compare``
     path : output file; the extension (any case) or ``format`` gives PNG or SVG
     x : axis to plot against (name or alias); default: the axis with most values
     variables : names of the variables to draw (default: every value variable)

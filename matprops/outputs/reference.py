@@ -99,7 +99,8 @@ def _table_cases(si) -> list:
     at every stored temperature of its tables (or its validity limits if its table
     holds one temperature)."""
     cases = []
-    for quantity, model in sorted(si._models.items()):
+    for quantity in sorted(si.models):
+        model = si.model(quantity)
         if model.kind != "table":
             continue
         arrays = {name: si.catalog.table_arrays(name) for name in model.tables}

@@ -80,8 +80,8 @@ def test_bound_kernels_name_each_density_inputs_kind(si):
 
 
 def test_the_equilibrium_kernel_gives_the_carriers_of_complete_ionisation(si):
-    free = si.kernel("equilibrium")(300.0, 3e18, 0.0)
-    complete = si.kernel("equilibrium", complete_ionisation=True)(300.0, 3e18, 0.0)
+    free = si.kernel("equilibrium")(300.0, Nd=3e18, Na=0.0)
+    complete = si.kernel("equilibrium", complete_ionisation=True)(300.0, Nd=3e18, Na=0.0)
     assert float(complete["ionised_donors"]) == pytest.approx(3e18, rel=1e-12)
     assert float(complete["electron_density"]) == pytest.approx(3e18, rel=1e-9)
     assert float(free["electron_density"]) < 0.85 * 3e18
@@ -176,6 +176,5 @@ def test_kernels_serve_stand_in_species_and_say_so(si):
     assert "gallium: model sze-2007" in ionisation.__doc__
     mobility = si.kernel("mobility", carrier="hole", acceptor="gallium")
     assert "gallium: the boron set" in mobility.__doc__
-    assert mobility(300.0, 0.0, 1e16, 1e4, 1e16) == si.kernel("mobility", carrier="hole")(
-        300.0, 0.0, 1e16, 1e4, 1e16
-    )
+    densities = {"Nd": 0.0, "Na": 1e16, "n": 1e4, "p": 1e16}
+    assert mobility(300.0, **densities) == si.kernel("mobility", carrier="hole")(300.0, **densities)

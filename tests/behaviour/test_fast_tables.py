@@ -1,4 +1,4 @@
-"""Prepared optical tables (issue 12): the same function as the tables' definitions.
+"""Prepared optical tables: the same function as the tables' definitions.
 
 Every table model of absorption and refractive index is evaluated through a
 :class:`matprops.kernels._tables.GridTable` prepared once (the combined models on the

@@ -1,4 +1,4 @@
-"""The simulation-code door (issue 12): bound kernels, blocks, checks, derivatives,
+"""The simulation-code door: bound kernels, blocks, checks, derivatives,
 the array API, start-up.
 
 Derivatives are checked against central finite differences of the kernels themselves
@@ -117,7 +117,11 @@ def test_units_that_differ_from_the_api_are_said_loudly(si):
 def test_the_existing_kernel_door_keeps_working(si):
     # regression check of the behaviours callers rely on
     solve = si.kernel("equilibrium", donor="phosphorus", acceptor="boron")
-    result = solve(np.array([300.0, 350.0]), np.array([1e16, 1e17]), np.array([0.0, 1e15]))
+    result = solve(
+        np.array([300.0, 350.0]),
+        donor_density=np.array([1e16, 1e17]),
+        acceptor_density=np.array([0.0, 1e15]),
+    )
     state = si.equilibrium([300.0, 350.0], Nd=[1e16, 1e17], Na=[0.0, 1e15])
     np.testing.assert_allclose(result["electron_density"], state.n.m_as("cm^-3"), rtol=1e-14)
     level = si.kernel("ionisation", dopant="boron")
@@ -129,8 +133,28 @@ def test_the_existing_kernel_door_keeps_working(si):
         si.kernel("band_gap", colour="red")
     with pytest.raises(TypeError, match="temperature"):
         si.kernel("band_gap")(300.0, temperature=300.0)
-    with pytest.raises(TypeError, match="no input or option 'T'"):
-        si.kernel("band_gap")(T=300.0)
+    with pytest.raises(TypeError, match="no input or option 'temp'"):
+        si.kernel("band_gap")(temp=300.0)
+
+
+def test_kernels_take_every_name_and_densities_by_name_only(si):
+    # the argument vocabulary: T or temperature, Nd or donor_density; densities named
+    gap = si.kernel("band_gap")
+    assert gap(T=300.0) == gap(temperature=300.0) == gap(300.0)
+    with pytest.raises(TypeError, match="given twice"):
+        gap(300.0, T=300.0)
+    mobility = si.kernel("mobility", carrier="electron")
+    named = mobility(300.0, Nd=1e17, Na=0.0, n=1e17, p=1e3)
+    assert named == mobility(
+        temperature=300.0,
+        donor_density=1e17,
+        acceptor_density=0.0,
+        electron_density=1e17,
+        hole_density=1e3,
+    )
+    with pytest.raises(TypeError, match="keyword-only .*cannot be swapped"):
+        mobility(300.0, 1e17, 0.0, 1e17, 1e3)
+    assert "(temperature, *, donor_density" in mobility.__doc__
 
 
 def test_check_validates_a_whole_mesh_once(si):
@@ -144,12 +168,12 @@ def test_check_validates_a_whole_mesh_once(si):
     with pytest.raises(matprops.InputError, match="temperature"):
         kernel.check(900.0, np.array([300.0, np.nan]))
     with pytest.raises(matprops.InputError, match="donor_density"):
-        si.kernel("equilibrium").check(300.0, -1.0, 0.0)
+        si.kernel("equilibrium").check(300.0, donor_density=-1.0, acceptor_density=0.0)
     # compositions check every model they use (the dopants' ionisation too)
     with pytest.warns(matprops.ValidityWarning, match="dopant_density"):
-        si.kernel("equilibrium").check(300.0, 5e20, 0.0)
+        si.kernel("equilibrium").check(300.0, Nd=5e20, Na=0.0)
     with pytest.warns(matprops.ValidityWarning, match="temperature"):
-        si.kernel("effective_intrinsic_density").check(900.0, 1e16, 0.0, 1e16, 1e4)
+        si.kernel("effective_intrinsic_density").check(900.0, Nd=1e16, Na=0.0, n=1e16, p=1e4)
 
 
 # ----------------------------------------------------------------- blocks and dtype
@@ -161,15 +185,15 @@ def test_large_inputs_are_blocked_into_one_output(si):
     t = np.linspace(250.0, 450.0, 300)[:, None]
     nd = np.logspace(14, 20, 500)[None, :]
     direct = si.model("gap_narrowing").function(t, nd, 0.0, nd, 1e4)
-    blocked = kernel(t, nd, 0.0, nd, 1e4)
+    blocked = kernel(t, Nd=nd, Na=0.0, n=nd, p=1e4)
     assert t.size * nd.size > BLOCK
     for a, b in zip(blocked, direct, strict=True):
         np.testing.assert_array_equal(a, b)
     out = (np.empty((300, 500), np.float32), np.empty((300, 500), np.float32))
-    assert kernel(t, nd, 0.0, nd, 1e4, out=out) is out
+    assert kernel(t, Nd=nd, Na=0.0, n=nd, p=1e4, out=out) is out
     np.testing.assert_allclose(out[0], direct[0], rtol=1e-6)
     with pytest.raises(ValueError, match="broadcast shape"):
-        kernel(t, nd, 0.0, nd, 1e4, out=(np.empty(3), np.empty(3)))
+        kernel(t, Nd=nd, Na=0.0, n=nd, p=1e4, out=(np.empty(3), np.empty(3)))
 
 
 def test_dtype_policy_float32_in_float64_out(si):
@@ -312,16 +336,16 @@ def test_bound_kernels_take_array_api_arrays_or_refuse_them(si):
     assert type(partials["temperature"]).__module__.startswith("array_api_strict")
     ni_eff = si.kernel("effective_intrinsic_density")(
         t,
-        xp.asarray([1e16] * 3),
-        xp.asarray([0.0] * 3),
-        xp.asarray([1e16] * 3),
-        xp.asarray([1e4] * 3),
+        donor_density=xp.asarray([1e16] * 3),
+        acceptor_density=xp.asarray([0.0] * 3),
+        electron_density=xp.asarray([1e16] * 3),
+        hole_density=xp.asarray([1e4] * 3),
     )
     assert type(ni_eff).__module__.startswith("array_api_strict")
     with pytest.raises(TypeError, match="numpy arrays only.*interpolates"):
         si.kernel("absorption")(xp.asarray([800.0]), t)
     with pytest.raises(TypeError, match="numpy arrays only.*solver"):
-        si.kernel("equilibrium")(t, xp.asarray([1e16] * 3), xp.asarray([0.0] * 3))
+        si.kernel("equilibrium")(t, Nd=xp.asarray([1e16] * 3), Na=xp.asarray([0.0] * 3))
     assert "numpy arrays only" in si.kernel("absorption").__doc__
     assert "any array-API-standard array" in si.kernel("band_gap").__doc__
 

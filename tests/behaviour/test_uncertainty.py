@@ -297,16 +297,16 @@ def test_bound_kernels_answer(si):
     assert gap.status == "not known" and np.all(np.isnan(gap.uncertainty))
     arora = matprops.silicon(models={"mobility": "arora-1982"}).kernel("mobility", carrier="hole")
     t = np.linspace(250, 500, 50_000)  # in blocks
-    linear = arora(t, 1e16, 0.0, uncertainty=True)
+    linear = arora(t, Nd=1e16, Na=0.0, uncertainty=True)
     assert linear.method == "linear"
     assert np.allclose(linear.uncertainty / linear.value, 0.13 / 3**0.5)
-    assert np.array_equal(linear.value, arora(t, 1e16, 0.0))
+    assert np.array_equal(linear.value, arora(t, Nd=1e16, Na=0.0))
     sampled = arora(
-        t[:100], 1e16, 0.0, uncertainty=True, samples=400, uncertainty_method="monte-carlo"
+        t[:100], Nd=1e16, Na=0.0, uncertainty=True, samples=400, uncertainty_method="monte-carlo"
     )
     assert np.allclose(sampled.uncertainty, linear.uncertainty[:100], rtol=0.10)
     with pytest.raises(matprops.InputError, match="uncertainty"):
-        arora(300.0, 1e16, 0.0, uncertainty="yes")
+        arora(300.0, Nd=1e16, Na=0.0, uncertainty="yes")
 
 
 def test_contributions_name_the_largest(si):

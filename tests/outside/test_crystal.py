@@ -8,6 +8,7 @@ import scipy.constants
 import matprops
 
 
+@pytest.mark.model("lattice_constant/okada-1984")
 def test_lattice_constant_against_codata(si):
     # CODATA 2018 lattice parameter of silicon, 543.1020511 pm at 22.5 degC in vacuum
     # (open dataset: scipy.constants.physical_constants)
@@ -17,11 +18,13 @@ def test_lattice_constant_against_codata(si):
     assert a == pytest.approx(codata, rel=1e-5)
 
 
+@pytest.mark.model("lattice_constant/okada-1984")
 def test_lattice_constant_room_temperature(si):
     # 0.5431 nm at room temperature: common practice
     assert si.lattice_constant(298.15).m_as("nm") == pytest.approx(0.5431, abs=5e-5)
 
 
+@pytest.mark.model("lattice_constant/okada-1984")
 def test_thermal_expansion_near_room_temperature(si):
     # linear expansion coefficient about 2.6e-6 /K at 300 K: common practice
     # (Okada & Tokumaru 1984, J. Appl. Phys. 56, 314, abstract: formula gives 2.57e-6)
@@ -54,22 +57,26 @@ def test_thermal_expansion_rises_towards_a_plateau():
     assert alpha[4] < 5e-6
 
 
+@pytest.mark.model("lattice_constant/okada-1984", "molar_mass/prohaska-2022")
 def test_density_against_the_handbook_value(si):
     # 2.329 g/cm^3 at room temperature: common practice, printed to four significant
     # figures, so the model must round to it (half a unit of the last figure)
     assert si.density(298.15).m_as("g/cm^3") == pytest.approx(2.329, abs=5e-4)
 
 
+@pytest.mark.model("molar_mass/prohaska-2022")
 def test_molar_mass_against_periodictable(si):
     # periodictable ships IUPAC standard atomic weights
     assert si.molar_mass().m_as("g/mol") == pytest.approx(periodictable.Si.mass, abs=1e-3)
 
 
+@pytest.mark.model("lattice_constant/okada-1984")
 def test_atomic_density(si):
     # 5.0e22 cm^-3 (4.99e22 = 8/a^3): common practice
     assert si.atomic_density(300).m_as("cm^-3") == pytest.approx(4.99e22, rel=2e-3)
 
 
+@pytest.mark.model("lattice_constant/okada-1984")
 @pytest.mark.parametrize(
     "plane, atoms, bonds",
     [
@@ -84,18 +91,21 @@ def test_surface_densities(si, plane, atoms, bonds):
     assert si.dangling_bond_density(plane, 300).m_as("cm^-2") == pytest.approx(bonds, rel=3e-3)
 
 
+@pytest.mark.model("lattice_constant/okada-1984")
 def test_plane_spelling_and_errors(si):
     assert si.surface_atom_density("(111)", 300) == si.surface_atom_density(111, 300)
     with pytest.raises(matprops.InputError, match="plane"):
         si.surface_atom_density("123", 300)
 
 
+@pytest.mark.model("permittivity/dunlap-1953")
 def test_permittivity(si):
     # 11.7: Dunlap & Watters 1953, Phys. Rev. 92, 1396 (abstract); common practice
     assert si.permittivity().m_as("") == pytest.approx(11.7)
     assert si.provenance("permittivity")["coefficients"]["value"]["uncertainty"] == 0.2
 
 
+@pytest.mark.model("lattice_constant/okada-1984", "molar_mass/prohaska-2022")
 def test_density_provenance_names_both_parts(si):
     record = si.provenance("density")
     assert set(record["components"]) == {"lattice_constant", "molar_mass"}

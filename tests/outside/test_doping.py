@@ -8,6 +8,7 @@ import warnings
 
 import numpy as np
 import pytest
+from helpers import minimum_ionised_fraction
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -24,6 +25,12 @@ def with_narrowing(model_id):
 # ----------------------------------------------------------------- narrowing
 
 
+@pytest.mark.model(
+    "gap_narrowing/delalamo-1985",
+    "gap_narrowing/klaassen-1992",
+    "gap_narrowing/schenk-1998",
+    "gap_narrowing/slotboom-1976",
+)
 @pytest.mark.parametrize("model_id", APPARENT + ("schenk-1998",))
 def test_narrowing_is_about_a_tenth_of_an_ev_at_1e20(model_id):
     # common practice: heavily doped emitters (1e20 cm^-3) narrow the gap by roughly
@@ -33,6 +40,12 @@ def test_narrowing_is_about_a_tenth_of_an_ev_at_1e20(model_id):
     assert 0.08 <= dEg <= 0.13
 
 
+@pytest.mark.model(
+    "gap_narrowing/delalamo-1985",
+    "gap_narrowing/klaassen-1992",
+    "gap_narrowing/schenk-1998",
+    "gap_narrowing/slotboom-1976",
+)
 @pytest.mark.parametrize("model_id", APPARENT + ("schenk-1998",))
 def test_narrowing_vanishes_in_lightly_doped_silicon(model_id):
     # common practice: below about 1e15 cm^-3 narrowing is negligible (< 2 meV, under kT/10)
@@ -43,6 +56,7 @@ def test_narrowing_vanishes_in_lightly_doped_silicon(model_id):
     assert 0 <= dEg < 0.002
 
 
+@pytest.mark.model("gap_narrowing/schenk-1998")
 def test_schenk_cross_check_against_an_independent_implementation(si):
     # CROSS-CHECK, not validation: values computed in ../shared/reference/doping-models.md
     # §3.4 from the equations of a device simulator's implementation of Schenk (1998)
@@ -59,6 +73,7 @@ def test_schenk_cross_check_against_an_independent_implementation(si):
         assert value == pytest.approx(expected, abs=0.06)
 
 
+@pytest.mark.model("gap_narrowing/schenk-1998")
 def test_schenk_depends_on_free_carriers_and_splits_between_bands(si):
     # Schenk (1998) is a rigid shift of each band: both shifts > 0, and the
     # exchange-correlation part grows with injected carriers
@@ -69,12 +84,19 @@ def test_schenk_depends_on_free_carriers_and_splits_between_bands(si):
     assert high > low
 
 
+@pytest.mark.model("gap_narrowing/klaassen-1992")
 def test_apparent_narrowing_splits_in_halves():
     si = with_narrowing("klaassen-1992")
     dec, dev = si.band_edge_shifts(300, Nd=[1e18, 1e19])
     np.testing.assert_array_equal(dec.magnitude, dev.magnitude)
 
 
+@pytest.mark.model(
+    "gap_narrowing/delalamo-1985",
+    "gap_narrowing/klaassen-1992",
+    "gap_narrowing/slotboom-1976",
+    "intrinsic_density/couderc-2014",
+)
 def test_apparent_narrowing_is_composed_with_its_own_intrinsic_density():
     # an apparent narrowing describes ni_eff = ni_fit exp(dEg/2kT) with the ni it was
     # fitted with (recorded in its file); matprops must use that density, and say so
@@ -90,6 +112,12 @@ def test_apparent_narrowing_is_composed_with_its_own_intrinsic_density():
         assert set(record["components"]) == {"intrinsic_density", "gap_narrowing"}
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/slotboom-1976",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 def test_apparent_narrowing_with_fermi_dirac_statistics_warns():
     si = with_narrowing("slotboom-1976")
     with pytest.warns(matprops.ValidityWarning, match="counts degeneracy twice"):
@@ -99,6 +127,7 @@ def test_apparent_narrowing_with_fermi_dirac_statistics_warns():
         strict.equilibrium(300, Nd=1e18, statistics="fermi-dirac")
 
 
+@pytest.mark.model("gap_narrowing/delalamo-1985")
 def test_narrowing_outside_validity_warns_and_strict_raises():
     si = with_narrowing("delalamo-1985")
     with pytest.warns(matprops.ValidityWarning, match=r"acceptor_density .*1e\+17"):
@@ -112,6 +141,7 @@ def test_narrowing_outside_validity_warns_and_strict_raises():
 # ----------------------------------------------------------------- ionisation
 
 
+@pytest.mark.model("ionisation/sze-2007")
 def test_textbook_ionisation_energies():
     # Solymar & Walsh, Electrical Properties of Materials, Table 8.1, and Ahmed,
     # Physics and Engineering of Radiation Detection, Table 5.1.4: P and B 45 meV
@@ -122,6 +152,7 @@ def test_textbook_ionisation_energies():
     assert 157 <= si.ionisation_energy(1e15, "In").m_as("meV") <= 160
 
 
+@pytest.mark.model("ionisation/altermatt-2006")
 def test_altermatt_level_falls_with_density_and_merges(si):
     energy, share = si.dopant_level([1e14, 1e18, 1e19, 1e20], "phosphorus")
     assert np.all(np.diff(energy.m_as("eV")) < 0) and np.all(np.diff(share.magnitude) < 0)
@@ -130,16 +161,7 @@ def test_altermatt_level_falls_with_density_and_merges(si):
     assert energy[0].m_as("meV") == pytest.approx(45, abs=1)
 
 
-def minimum_ionised_fraction(si, species):
-    N = np.logspace(16, 20, 161)
-    kwargs = {"Nd": N, "donor": species} if species != "boron" else {"Na": N, "acceptor": species}
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", matprops.ValidityWarning)
-        state = si.equilibrium(300, **kwargs)
-    ionised = state.ionised_donors if species != "boron" else state.ionised_acceptors
-    return float(np.min(ionised.m_as("cm^-3") / N))
-
-
+@pytest.mark.model("ionisation/altermatt-2006")
 @pytest.mark.parametrize("species, published", [("phosphorus", 0.76), ("boron", 0.73)])
 def test_minimum_ionised_fraction_at_300K(si, species, published):
     # Altermatt et al. 2006, J. Appl. Phys. 100, 113715, Fig. 5, as read in the nextnano3
@@ -153,6 +175,7 @@ def test_minimum_ionised_fraction_at_300K(si, species, published):
     assert minimum_ionised_fraction(si, species) == pytest.approx(published, abs=0.02)
 
 
+@pytest.mark.model("ionisation/altermatt-2006")
 @pytest.mark.xfail(
     strict=True,
     reason="the recalled arsenic parameters of altermatt-2006 "
@@ -163,6 +186,12 @@ def test_minimum_ionised_fraction_arsenic(si):
     assert minimum_ionised_fraction(si, "arsenic") == pytest.approx(0.66, abs=0.02)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 def test_unknown_or_wrong_kind_of_dopant_lists_the_valid_ones(si):
     with pytest.raises(matprops.InputError, match="donor species: one of phosphorus, arsenic"):
         si.equilibrium(300, Nd=1e16, donor="boron")
@@ -193,6 +222,12 @@ def test_gallium_indium_aluminium_antimony_are_served_and_labelled(si):
 # ----------------------------------------------------------------- equilibrium
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 def test_boltzmann_low_doping_limits(si):
     # common practice (textbook, Boltzmann statistics, complete ionisation): n0 = Nd,
     # p0 = ni^2/Nd, and the Fermi level lies kT ln(Nd/ni) above the intrinsic level.
@@ -213,6 +248,12 @@ def test_boltzmann_low_doping_limits(si):
     assert p_type.fermi_level.m_as("eV") == pytest.approx(-K_B * T * np.log(N / ni), abs=1e-3)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 def test_undoped_equilibrium_reproduces_the_release_intrinsic_density(si):
     # identity of the composition: the solver's gap is kT ln(NcNv/ni^2), so undoped
     # silicon gives n = p = ni_eff = ni exp(dEg/2kT), dEg being Schenk's small shift
@@ -227,6 +268,12 @@ def test_undoped_equilibrium_reproduces_the_release_intrinsic_density(si):
         assert ni_eff == pytest.approx(ni * np.exp(dEg / (2 * K_B * T)), rel=1e-12)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 def test_compensated_and_undoped_material_are_solved(si):
     state = si.equilibrium(300, Na=1e16, Nd=1e16)
     n, p = state.n.m_as("cm^-3"), state.p.m_as("cm^-3")
@@ -236,6 +283,12 @@ def test_compensated_and_undoped_material_are_solved(si):
     )
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/sze-2007",
+)
 def test_freeze_out_at_cryogenic_temperature():
     # common practice: at 20-40 K shallow donors in lightly doped silicon are largely
     # neutral (freeze-out), at room temperature almost fully ionised
@@ -248,6 +301,12 @@ def test_freeze_out_at_cryogenic_temperature():
     assert warm.n.m_as("cm^-3") > 0.99e16
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 def test_equilibrium_shapes_broadcast_and_result_exports(si):
     T = np.array([250.0, 300.0, 350.0])[:, None]
     Nd = np.array([1e15, 1e17])[None, :]
@@ -260,11 +319,23 @@ def test_equilibrium_shapes_broadcast_and_result_exports(si):
     assert "fermi_level" in repr(state)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 def test_shapes_that_do_not_broadcast_are_named(si):
     with pytest.raises(matprops.InputError, match="Na, Nd"):
         si.equilibrium(300, Na=np.ones(3) * 1e15, Nd=np.ones(4) * 1e15)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 def test_negative_densities_and_bad_statistics_are_refused(si):
     with pytest.raises(matprops.InputError, match="'Nd' must be >= 0 cm\\^-3"):
         si.equilibrium(300, Nd=-1e15)
@@ -272,14 +343,26 @@ def test_negative_densities_and_bad_statistics_are_refused(si):
         si.equilibrium(300, Nd=1e15, statistics="maxwell")
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 def test_dopant_density_beyond_validity_warns(si):
     with pytest.warns(matprops.ValidityWarning, match="dopant_density"):
         si.equilibrium(300, Nd=5e20)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 def test_kernel_door_gives_plain_arrays(si):
     solve = si.kernel("equilibrium", donor="phosphorus", acceptor="boron")
-    result = solve(np.array([300.0, 350.0]), np.array([1e16, 1e17]), np.array([0.0, 1e15]))
+    result = solve(np.array([300.0, 350.0]), Nd=np.array([1e16, 1e17]), Na=np.array([0.0, 1e15]))
     state = si.equilibrium([300.0, 350.0], Nd=[1e16, 1e17], Na=[0.0, 1e15])
     np.testing.assert_allclose(result["electron_density"], state.n.m_as("cm^-3"), rtol=1e-14)
     level = si.kernel("ionisation", dopant="boron")
@@ -295,6 +378,12 @@ densities = st.floats(min_value=1e13, max_value=1e20)
 temperatures = st.floats(min_value=200, max_value=500)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 @settings(max_examples=40, deadline=None)
 @given(temperatures, densities, densities)
 def test_neutrality_holds_everywhere(T, Nd, Na):
@@ -307,6 +396,13 @@ def test_neutrality_holds_everywhere(T, Nd, Na):
     assert abs(positive - negative) <= 1e-10 * max(positive, negative)
 
 
+@pytest.mark.model(
+    "gap_narrowing/delalamo-1985",
+    "gap_narrowing/klaassen-1992",
+    "gap_narrowing/schenk-1998",
+    "gap_narrowing/slotboom-1976",
+    "intrinsic_density/couderc-2014",
+)
 @settings(max_examples=40, deadline=None)
 @given(temperatures, st.floats(min_value=1e13, max_value=1e20))
 def test_narrowing_does_not_fall_with_doping(T, N):
@@ -354,6 +450,14 @@ def test_an_apparent_narrowing_warns_where_it_does_not_tend_to_the_release_ni(mo
         si.effective_intrinsic_density(300, Nd=3e18)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/delalamo-1985",
+    "gap_narrowing/klaassen-1992",
+    "gap_narrowing/slotboom-1976",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+)
 @settings(max_examples=30, deadline=None)
 @given(temperatures, st.floats(min_value=1e13, max_value=1e17), st.sampled_from(APPARENT))
 def test_mass_action_in_the_boltzmann_limit(T, N, model_id):

@@ -12,26 +12,35 @@ def ni(model_id, t):
     )
 
 
+@pytest.mark.model("intrinsic_density/couderc-2014")
 def test_default_matches_altermatt_2003(si):
     # Altermatt et al. 2003, J. Appl. Phys. 93, 1598: ni(300 K) = 9.65e9 cm^-3 (within 2 %)
     assert si.intrinsic_density(300).m_as("cm^-3") == pytest.approx(9.65e9, rel=0.02)
 
 
+@pytest.mark.model("intrinsic_density/sproul-1991")
 def test_sproul_1991_quoted_value():
     # Sproul & Green 1991, J. Appl. Phys. 70, 846: ni(300 K) = 1.00e10 cm^-3
     assert ni("sproul-1991", 300) == pytest.approx(1.00e10, rel=0.01)
 
 
+@pytest.mark.model("intrinsic_density/sproul-1993")
 def test_sproul_1993_quoted_value():
     # Sproul & Green 1993, J. Appl. Phys. 73, 1214: 1.00e10 cm^-3 at 300 K (from memory)
     assert ni("sproul-1993", 300) == pytest.approx(1.00e10, rel=0.01)
 
 
+@pytest.mark.model("intrinsic_density/misiakos-1993")
 def test_misiakos_1993_quoted_value():
     # Misiakos & Tsamakis 1993, J. Appl. Phys. 74, 3293 (abstract): (9.7 +- 0.1)e9 at 300 K
     assert ni("misiakos-1993", 300) == pytest.approx(9.7e9, abs=0.1e9)
 
 
+@pytest.mark.model(
+    "intrinsic_density/couderc-2014",
+    "intrinsic_density/misiakos-1993",
+    "intrinsic_density/sproul-1991",
+)
 def test_independent_measurements_agree_in_their_common_range():
     # Sproul & Green 1991 (275-375 K), Misiakos & Tsamakis 1993 (78-340 K) and Couderc et
     # al. 2014 are independent evaluations; over 275-340 K they agree within 5 %
@@ -42,6 +51,7 @@ def test_independent_measurements_agree_in_their_common_range():
     assert np.all(spread < 0.05)
 
 
+@pytest.mark.model("intrinsic_density/misiakos-1993", "intrinsic_density/sproul-1993")
 def test_low_temperature_measurements_agree():
     # Sproul & Green 1993 (77-300 K) against Misiakos & Tsamakis 1993 (78-340 K):
     # independent measurements; at 100-300 K within 15 % (ni spans 20 decades there)
@@ -50,6 +60,7 @@ def test_low_temperature_measurements_agree():
     assert np.all(np.abs(ratio - 1) < 0.15)
 
 
+@pytest.mark.model("intrinsic_density/boltzmann")
 def test_boltzmann_composition_names_both_inputs():
     si = matprops.silicon(models={"intrinsic_density": "boltzmann"})
     record = si.provenance("intrinsic_density")
@@ -61,6 +72,7 @@ def test_boltzmann_composition_names_both_inputs():
     assert si.intrinsic_density(300).m_as("cm^-3") == pytest.approx(9.65e9, rel=0.02)
 
 
+@pytest.mark.model("densities_of_states/green-1990")
 def test_green_1990_densities_of_states_at_300K():
     # Green 1990, J. Appl. Phys. 67, 2944: Nc = 2.86e19, Nv = 3.10e19 cm^-3 at 300 K
     # (seen in a textbook appendix; the same in Genius TCAD Open's
@@ -72,6 +84,7 @@ def test_green_1990_densities_of_states_at_300K():
     assert nv.m_as("cm^-3") == pytest.approx(3.10e19, abs=0.005e19)
 
 
+@pytest.mark.model("densities_of_states/couderc-2014")
 def test_densities_of_states_grow_as_T_to_the_3_halves_roughly(si):
     # N ~ (m T)^(3/2) with slowly rising masses: exponent 1.5-2.0 near room temperature
     # (Green 1990 quotes power laws 1.58 and 1.85)
@@ -81,6 +94,7 @@ def test_densities_of_states_grow_as_T_to_the_3_halves_roughly(si):
         assert 1.5 <= exponent <= 2.1
 
 
+@pytest.mark.model("intrinsic_density/couderc-2014")
 def test_array_broadcasting_and_scalar_output(si):
     t = np.array([[250.0], [300.0]])
     out = si.intrinsic_density(t)

@@ -1,10 +1,9 @@
 """Absorption, refractive index, free-carrier absorption and Beer-Lambert tools,
 checked against independent data sets, published values and common practice."""
 
-import warnings
-
 import numpy as np
 import pytest
+from helpers import quiet
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from outside_data import green_2008_copy, green_temperature_ratio
@@ -18,15 +17,10 @@ def absorption(model_id, wavelength, temperature=300.0):
     return si.absorption(wavelength, temperature).m_as("1/cm")
 
 
-def quiet(function, *args):
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", matprops.ValidityWarning)
-        return function(*args)
-
-
 # ---------------------------------------------------------------- external checks
 
 
+@pytest.mark.model("absorption/green-2008", "absorption/schinke-2015")
 def test_green_2008_against_schinke_2015():
     # Two independent measurements: Green 2008 (Sol. Energ. Mater. Sol. Cells 92, 1305;
     # 300 K) and Schinke et al. 2015 (AIP Advances 5, 067168; 295 K). Schinke et al.
@@ -40,6 +34,7 @@ def test_green_2008_against_schinke_2015():
     assert np.max(np.abs(schinke / green - 1)) < 0.11 * np.sqrt(2)
 
 
+@pytest.mark.model("absorption/green-2008-franta-2017")
 def test_common_practice_values_at_300K(si):
     # common practice: alpha ~ 1e3 /cm near 800 nm and ~ 1e2 /cm just below 1000 nm;
     # 90 % absorption then needs ~23 um and ~230 um of silicon
@@ -53,6 +48,7 @@ def test_common_practice_values_at_300K(si):
     np.testing.assert_allclose(d90.m_as("um"), [23.0, 230.0], rtol=0.05)
 
 
+@pytest.mark.model("absorption/green-2008")
 def test_direct_gap_edge():
     # common practice: silicon's lowest direct gap, ~3.4 eV, lies at ~365 nm; above it
     # alpha rises by an order of magnitude (Green 2008: 9.3e4 /cm at 400 nm, ~1e6 at 350)
@@ -61,6 +57,7 @@ def test_direct_gap_edge():
     assert absorption("green-2008", 350.0) / absorption("green-2008", 400.0) > 8
 
 
+@pytest.mark.model("absorption/green-2008", "refractive_index/green-2008")
 def test_green_2008_table_matches_an_independent_copy():
     # Outside check of the committed table (built from the open refractive-index
     # database): Green 2008's Table 1 as transcribed independently in the source of the
@@ -75,6 +72,7 @@ def test_green_2008_table_matches_an_independent_copy():
     np.testing.assert_allclose(quiet(absorption, "green-2008", lam), alpha, rtol=0.005)
 
 
+@pytest.mark.model("absorption/green-2008-franta-2017", "absorption/rajkanan-1979")
 def test_temperature_dependence_against_green_2008_coefficients():
     # Outside check: Green 2008 publishes temperature coefficients C(lambda) of alpha,
     # here as transcribed in Genius TCAD Open (tests/data) and applied as there,
@@ -98,6 +96,7 @@ def test_temperature_dependence_against_green_2008_coefficients():
     assert np.all(np.diff(alpha, axis=1) > 0)
 
 
+@pytest.mark.model("refractive_index/green-2008-franta-2017", "refractive_index/schinke-2015")
 def test_refractive_index():
     si = matprops.silicon()
     # Green 2008: n(600 nm, 300 K) = 3.94 (as in the open database); common practice
@@ -116,6 +115,16 @@ def test_refractive_index():
     assert 1.5e-4 < dn < 2.2e-4
 
 
+@pytest.mark.model("refractive_index/franta-2017")
+def test_refractive_index_in_the_infrared():
+    # n of silicon at room temperature: 3.48 at 1550 nm (the telecom wavelength of
+    # silicon photonics) and 3.42 at 5-10 um: common practice, two decimals
+    franta = matprops.silicon(models={"refractive_index": "franta-2017"})
+    n = franta.refractive_index([1550.0, 5000.0, 10000.0], 295.0).m_as("")
+    np.testing.assert_allclose(n, [3.48, 3.42, 3.42], atol=0.005)
+
+
+@pytest.mark.model("free_carrier_absorption/nedeljkovic-2011")
 def test_free_carrier_default_coefficients_against_an_independent_copy():
     # Outside check of the copied coefficients: at 1.3 and 1.55 um the default's coefficients
     # (read in the Tidy3D source) must reproduce the equations quoted from L. Chrostowski
@@ -138,6 +147,10 @@ def test_free_carrier_default_coefficients_against_an_independent_copy():
         )
 
 
+@pytest.mark.model(
+    "free_carrier_absorption/nedeljkovic-2011",
+    "free_carrier_absorption/soref-1987",
+)
 def test_free_carrier_default_is_superlinear_in_heavily_doped_silicon():
     # Outside checks from two abstracts (read): Isenberg & Warta 2004 (Appl. Phys. Lett.
     # 84, 2265) found the linear-in-density parameterisation valid only up to about
@@ -158,6 +171,10 @@ def test_free_carrier_default_is_superlinear_in_heavily_doped_silicon():
         assert np.all(np.diff(per_carrier) > 0)
 
 
+@pytest.mark.model(
+    "free_carrier_absorption/nedeljkovic-2011",
+    "free_carrier_absorption/schroder-1978",
+)
 def test_free_carrier_default_is_valid_for_doped_layers_and_linear_forms_are_not():
     si = matprops.silicon(strict=True)
     assert si.free_carrier_absorption(1550, n=1e19, p=0).m_as("1/cm") > 0  # no error
@@ -168,6 +185,7 @@ def test_free_carrier_default_is_valid_for_doped_layers_and_linear_forms_are_not
         schroder.free_carrier_absorption(1550, n=1e19)
 
 
+@pytest.mark.model("free_carrier_absorption/nedeljkovic-2011")
 def test_free_carrier_absorption_grows_with_wavelength():
     # common practice (Drude-like behaviour of free carriers): alpha rises with wavelength
     si = matprops.silicon()
@@ -176,6 +194,7 @@ def test_free_carrier_absorption_grows_with_wavelength():
         assert np.all(np.diff(si.free_carrier_absorption(lam, **kw).m_as("1/cm")) > 0)
 
 
+@pytest.mark.model("absorption/green-2008-franta-2017")
 def test_low_temperature_band_edge_is_a_validity_region():
     # At 10-200 K band-to-band absorption ends at shorter wavelengths than at 300 K; the
     # default's temperature series keeps a floor there. Those points must warn.
@@ -195,6 +214,7 @@ def test_low_temperature_band_edge_is_a_validity_region():
     assert region["input"] == "wavelength" and region["varies_with"] == "temperature"
 
 
+@pytest.mark.model("absorption/green-2008-franta-2017")
 def test_region_limit_at_low_temperature_respects_the_phonon_threshold():
     # Outside check (physics of an indirect gap, common practice): near 0 K no phonons
     # can be absorbed, so band-to-band absorption needs hv >= Eg(0) + the energy of the
@@ -213,6 +233,7 @@ def test_region_limit_at_low_temperature_respects_the_phonon_threshold():
 # ---------------------------------------------------------------- validity and errors
 
 
+@pytest.mark.model("absorption/green-2008")
 def test_wavelength_outside_table_warns_names_fallback_and_gives_nan():
     si = matprops.silicon(models={"absorption": "green-2008"})
     with pytest.warns(
@@ -226,16 +247,19 @@ def test_wavelength_outside_table_warns_names_fallback_and_gives_nan():
         matprops.silicon(models={"absorption": "green-2008"}, strict=True).absorption(200, 300)
 
 
+@pytest.mark.model("absorption/franta-2017")
 def test_fallback_covers_it():
     si = matprops.silicon(models={"absorption": "franta-2017"})
     assert si.absorption(250, 300).m_as("1/cm") > 1e6
 
 
+@pytest.mark.model("absorption/green-2008")
 def test_temperature_outside_single_temperature_table_warns():
     with pytest.warns(matprops.ValidityWarning, match="temperature 350 K .* 295-305 K"):
         matprops.silicon(models={"absorption": "green-2008"}).absorption(800, 350)
 
 
+@pytest.mark.model("absorption/green-2008-franta-2017")
 def test_energy_and_frequency_are_converted(si):
     by_nm = si.absorption(1000.0, 300).m_as("1/cm")
     by_ev = si.absorption(matprops.Q_(1239.84198 / 1000.0, "eV"), 300).m_as("1/cm")
@@ -244,6 +268,7 @@ def test_energy_and_frequency_are_converted(si):
     np.testing.assert_allclose([by_ev, by_um, by_thz], by_nm, rtol=1e-6)
 
 
+@pytest.mark.model("absorption/green-2008-franta-2017")
 @pytest.mark.parametrize(
     "bad, error, pattern",
     [
@@ -263,6 +288,7 @@ def test_bad_wavelengths(si, bad, error, pattern):
         si.absorption(bad, 300)
 
 
+@pytest.mark.model("absorption/green-2008-franta-2017")
 def test_beer_lambert_tools():
     alpha = matprops.Q_(1e3, "1/cm")
     assert optics.absorption_depth(alpha).m_as("um") == pytest.approx(10.0)
@@ -327,6 +353,7 @@ def band_edge_limit(temperature):
     return float(region.bound_at(temperature))
 
 
+@pytest.mark.model("absorption/green-2008-franta-2017")
 @settings(deadline=None, max_examples=50)
 @given(st.floats(400, 1179), st.floats(1, 40), st.floats(80, 495))
 def test_alpha_positive_and_decreasing_with_wavelength(lam, step, t):
@@ -339,6 +366,7 @@ def test_alpha_positive_and_decreasing_with_wavelength(lam, step, t):
     assert a[1] <= a[0]
 
 
+@pytest.mark.model("absorption/green-2008-franta-2017")
 @settings(deadline=None, max_examples=50)
 @given(st.floats(950, 1150), st.floats(80, 480), st.floats(5, 100))
 def test_alpha_rises_with_temperature_near_the_edge(lam, t, dt):

@@ -12,6 +12,7 @@ import warnings
 
 import numpy as np
 import pytest
+from helpers import quiet, with_model
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -19,16 +20,6 @@ import matprops
 from matprops import Q_
 
 K_B = 8.617333262e-5  # eV/K, CODATA 2018 (exact)
-
-
-def quiet(function, *args, **kwargs):
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", matprops.ValidityWarning)
-        return function(*args, **kwargs)
-
-
-def with_model(quantity, model_id):
-    return matprops.silicon(models={quantity: model_id})
 
 
 def auger_coefficient_low_injection(si, n0, p0):
@@ -46,6 +37,7 @@ def ambipolar_coefficient(si, excess):
 # ----------------------------------------------------------------- radiative
 
 
+@pytest.mark.model("radiative_coefficient/trupke-2003")
 def test_radiative_coefficient_of_intrinsic_silicon_at_300K():
     # the constant model of 2026.1 (2026.2's default is tested in
     # test_recombination_temperature.py)
@@ -60,6 +52,7 @@ def test_radiative_coefficient_of_intrinsic_silicon_at_300K():
     assert "recalled, not checked" in record["coefficients"]["coefficient"]["obtained"]
 
 
+@pytest.mark.model("radiative_coefficient/trupke-2003")
 def test_radiative_coefficient_warns_below_room_temperature():
     si = matprops.silicon(models={"radiative_coefficient": "trupke-2003"})  # 2026.1's
     # Trupke et al. 2003, abstract (read): B of intrinsic silicon decreases as the
@@ -76,6 +69,13 @@ def test_radiative_coefficient_warns_below_room_temperature():
 # ----------------------------------------------------------------- Auger coefficients
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/dziewior-1977",
+    "ionisation/altermatt-2006",
+)
 def test_dziewior_schmid_coefficients():
     # COMSOL Semiconductor Module user guide and Genius TCAD Open (Si_band_schenk.cc),
     # secondary, uncited there: C_n = 2.8e-31, C_p = 9.9e-32 cm^6/s (attribution to
@@ -85,6 +85,13 @@ def test_dziewior_schmid_coefficients():
     assert auger_coefficient_low_injection(si, 1e1, 1e19) == pytest.approx(9.9e-32, abs=5e-34)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/dziewior-1977",
+    "ionisation/altermatt-2006",
+)
 def test_dziewior_schmid_ambipolar_coefficient():
     # Allpix Squared user manual, "Auger Recombination" (secondary): C_a = C_n + C_p =
     # 3.8e-31 cm^6/s from Dziewior & Schmid; half a unit of the last printed digit
@@ -99,6 +106,13 @@ def test_dziewior_schmid_ambipolar_coefficient():
 # g_ehh is from memory). A witness independent of the model file's recollection.
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_richter_coefficients_where_coulomb_enhancement_has_vanished(si):
     # DPML (above): 2.5e-31 g_eeh n0 and 8.5e-32 g_ehh p0, with g -> 1 at high doping;
     # half a unit of the last printed digit (the injection term is absent at dn -> 0)
@@ -106,6 +120,13 @@ def test_richter_coefficients_where_coulomb_enhancement_has_vanished(si):
     assert auger_coefficient_low_injection(si, 1e0, 1e20) == pytest.approx(8.5e-32, abs=5e-34)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_richter_coulomb_enhancement_at_low_doping(si):
     # DPML (above): g_eeh = 1 + 13[...] -> 14 in lowly doped silicon; g_ehh = 1 + 7.5[...]
     # -> 8.5 from memory (here 1e12 cm^-3, where tanh((N/N0)^x) is below 2e-3)
@@ -113,6 +134,14 @@ def test_richter_coulomb_enhancement_at_low_doping(si):
     assert auger_coefficient_low_injection(si, 1e8, 1e12) / 8.5e-32 == pytest.approx(8.5, rel=2e-3)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/kerr-2002",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 @pytest.mark.parametrize("model_id", ["richter-2012", "kerr-2002"])
 def test_high_injection_ambipolar_coefficient(model_id):
     # from memory, with one secondary witness: the ambipolar Auger coefficient of lowly
@@ -127,6 +156,14 @@ def test_high_injection_ambipolar_coefficient(model_id):
         assert 1.66e-30 * 0.8 <= ambipolar_coefficient(si, excess) <= 1.66e-30 * 1.2
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/dziewior-1977",
+    "intrinsic_lifetime/kerr-2002",
+    "ionisation/altermatt-2006",
+)
 def test_kerr_cuevas_enhancement_above_the_free_particle_rate():
     # Kerr & Cuevas 2002, abstract (read): Auger recombination is enhanced above the
     # traditional free-particle rate at both low and high injection, and the enhancement is
@@ -144,6 +181,7 @@ def test_kerr_cuevas_enhancement_above_the_free_particle_rate():
     assert high_injection < low_injection
 
 
+@pytest.mark.model("intrinsic_lifetime/kerr-2002", "intrinsic_lifetime/richter-2012")
 @pytest.mark.parametrize("kwargs", [{"Nd": 1e15}, {"Na": 1e15}, {"Nd": 1e16}, {"Na": 1e16}])
 def test_richter_exceeds_the_kerr_cuevas_limit(kwargs):
     # Richter et al. 2012 (Energy Procedia 27, 88, abstract read): measured lifetimes
@@ -159,6 +197,13 @@ def test_richter_exceeds_the_kerr_cuevas_limit(kwargs):
     assert np.all(ratio > 1.2)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_auger_dominates_heavily_doped_silicon(si):
     # common practice: above about 1e18 cm^-3 the intrinsic lifetime is Auger-limited
     # (radiative recombination is a small share)
@@ -170,6 +215,7 @@ def test_auger_dominates_heavily_doped_silicon(si):
 # ----------------------------------------------------------------- validity and composition
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_richter_is_a_300K_model():
     # Richter et al. 2012 (Energy Procedia abstract, read): a parameterisation at 300 K
     si = matprops.silicon(models={"intrinsic_lifetime": "richter-2012"})
@@ -188,6 +234,7 @@ def test_richter_is_a_300K_model():
         si.intrinsic_lifetime(Q_(25, "degC"), Nd=1e16, excess=1e15)
 
 
+@pytest.mark.model("intrinsic_lifetime/dziewior-1977")
 def test_constant_coefficients_warn_below_heavy_doping():
     # Dziewior & Schmid's coefficients hold for heavily doped silicon only (below about
     # 5e18 cm^-3 Coulomb enhancement makes Auger faster: Hangleiter & Haecker 1990, from
@@ -200,6 +247,7 @@ def test_constant_coefficients_warn_below_heavy_doping():
         si.intrinsic_lifetime(300, Nd=1e19)
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_mixing_a_lifetime_model_with_another_narrowing_warns():
     # Richter et al. fitted with Schenk's narrowing (from memory); composing the model with
     # another narrowing mixes conventions and must say so
@@ -215,6 +263,13 @@ def test_mixing_a_lifetime_model_with_another_narrowing_warns():
     assert len(mismatch.sizes) == 6
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+)
 def test_intrinsic_lifetime_uses_the_equilibrium_densities(si):
     # composition: the lifetime at (T, Nd) is the model evaluated at the equilibrium n0, p0
     # (incomplete ionisation included: at 1e18 cm^-3 n0 is well below Nd)
@@ -236,6 +291,7 @@ MIDGAP = {
 }
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952", "thermal_velocity/green-1990")
 def test_srh_low_injection_is_one_over_sigma_v_n(si):
     # common practice: a mid-gap level in p-type silicon at low injection limits the
     # lifetime to tau_n0 = 1/(sigma_n v_th,n N_t) (n-type: 1/(sigma_p v_th,p N_t))
@@ -247,6 +303,7 @@ def test_srh_low_injection_is_one_over_sigma_v_n(si):
     assert n_type.m_as("s") == pytest.approx(1 / (1e-15 * v_p * 1e12), rel=1e-5)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952", "thermal_velocity/green-1990")
 def test_srh_high_injection_is_the_sum_of_capture_times(si):
     # common practice: at high injection tau_SRH -> tau_n0 + tau_p0 whatever the level
     v_n = si.thermal_velocity("electron", 300).m_as("cm/s")
@@ -257,6 +314,7 @@ def test_srh_high_injection_is_the_sum_of_capture_times(si):
         assert tau.m_as("s") == pytest.approx(expected, rel=1e-5)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 def test_shallow_levels_recombine_less(si):
     # common practice: SRH recombination is most effective through levels near mid-gap
     levels = [0.05, 0.15, 0.3, 0.56]
@@ -278,6 +336,7 @@ def test_shallow_levels_recombine_less(si):
     assert np.all(np.diff(taus) < 0)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952", "thermal_velocity/green-1990")
 def test_ratio_only_entry_with_the_electron_capture_time(si):
     # lifetime spectroscopy gives k = sigma_n/sigma_p (common practice): with tau_n0 given,
     # tau_p0 = k (v_n / v_p) tau_n0, and high injection tends to tau_n0 + tau_p0
@@ -357,6 +416,7 @@ def test_every_entry_states_its_source_origin_and_velocity_convention(si):
 _DOPING = st.floats(13, 19).map(lambda x: 10.0**x)
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     low=st.floats(13, 18).map(lambda x: 10.0**x),
@@ -371,6 +431,7 @@ def test_intrinsic_lifetime_falls_with_doping(si, low, factor, kind, excess):
     assert tau[1] < tau[0]
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     doping=_DOPING,
@@ -388,6 +449,16 @@ def test_intrinsic_lifetime_falls_with_injection_at_high_injection(si, doping, k
     assert tau[1] < tau[0]
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 @settings(max_examples=30, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     t=st.floats(250, 400),
@@ -425,6 +496,16 @@ def test_every_lifetime_is_positive(
             assert np.all(value.m_as("s") > 0), name
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 @settings(max_examples=15, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     doping=st.floats(14, 17).map(lambda x: 10.0**x),
@@ -448,6 +529,16 @@ def test_implied_voltage_rises_with_generation(si, doping, kind, flux, factor, d
     assert volts[1] > volts[0] > 0
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_implied_voltage_per_decade_of_generation(si):
     # common practice: with an injection-independent lifetime, dn is proportional to G,
     # so the implied voltage rises by (kT/q) ln 10 per decade at low injection and by
@@ -478,6 +569,16 @@ def test_implied_voltage_per_decade_of_generation(si):
     assert high[1] - high[0] == pytest.approx(2 * kt * math.log(10), rel=2e-2)
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_implied_voltage_states_its_assumptions(si):
     result = si.implied_voltage(300, Na=1e15, generation=Q_(40, "mA/cm^2"), thickness=Q_(180, "um"))
     for word in ("steady state", "uniform", "flat carrier profile", "surface", "injected"):
@@ -518,6 +619,7 @@ def test_narrowing_at_the_injected_densities_lowers_the_voltage(si):
 # ----------------------------------------------------------------- bad input
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_negative_excess_density_is_refused(si):
     with pytest.raises(
         matprops.InputError,
@@ -527,6 +629,7 @@ def test_negative_excess_density_is_refused(si):
         si.intrinsic_lifetime(300, Nd=1e16, excess=-1e14)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 @pytest.mark.parametrize(
     "defect, pattern",
     [
@@ -608,6 +711,7 @@ def test_defect_parameters_out_of_physical_range(si, defect, pattern):
         si.srh_lifetime(defect, 300, Na=1e16, density=1e12)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 def test_unknown_defect_lists_the_catalogue(si):
     with pytest.raises(matprops.UnknownDefectError) as info:
         si.srh_lifetime("iron-interstitiel", 300, Na=1e16, density=1e12)
@@ -619,6 +723,7 @@ def test_unknown_defect_lists_the_catalogue(si):
     assert isinstance(info.value, KeyError)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 @pytest.mark.parametrize(
     "kwargs, argument, pattern",
     [
@@ -639,6 +744,7 @@ def test_incomplete_defect_arguments(si, kwargs, argument, pattern):
     assert info.value.argument == argument
 
 
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_equilibrium_densities_given_incompletely_or_twice(si):
     with pytest.raises(matprops.InputError, match="'p0' must be given together with n0"):
         si.intrinsic_lifetime(300, n0=1e16)
@@ -648,6 +754,16 @@ def test_equilibrium_densities_given_incompletely_or_twice(si):
         si.intrinsic_lifetime(300, n0=0, p0=1e4)
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 @pytest.mark.parametrize(
     "kwargs, pattern",
     [
@@ -669,6 +785,7 @@ def test_bad_generation_or_thickness(si, kwargs, pattern):
         si.implied_voltage(300, Na=1e15, **kwargs)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 def test_defect_outside_its_temperature_range_warns(datasets_copy):
     root, catalog = datasets_copy
     path = root / "defects" / "iron-interstitial.toml"

@@ -1,16 +1,11 @@
 """Temperature-dependent intrinsic recombination of the newest release against published
 values and an independent physical relation."""
 
-import warnings
-
 import numpy as np
 import pytest
+from helpers import van_roosbroeck_shockley
 
 import matprops
-
-H = 6.62607015e-34  # J s
-C = 2.99792458e10  # cm/s
-K = 1.380649e-23  # J/K
 
 
 @pytest.fixture(scope="module")
@@ -18,27 +13,12 @@ def newest():
     return matprops.silicon()
 
 
-def _van_roosbroeck_shockley(si, temperature):
-    """B(T) from the band-to-band absorption by the van Roosbroeck-Shockley relation,
-    B ni^2 = integral of 8 pi n^2 nu^2 alpha(nu) exp(-h nu / kT) / c^2 d nu (the route
-    of Trupke et al. 2003 and Nguyen et al. 2014, abstracts read)."""
-    wavelength = np.arange(950.0, 1181.0, 1.0)  # nm: the band edge, inside the model's range
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")
-        alpha = si.absorption(wavelength, temperature).m_as("1/cm")
-        index = si.refractive_index(wavelength, temperature).m
-        ni = si.intrinsic_density(temperature).m_as("cm^-3")
-    nu = C / (wavelength * 1e-7)
-    integrand = 8 * np.pi * index**2 * nu**2 / C**2 * alpha * np.exp(-H * nu / (K * temperature))
-    return -np.trapezoid(integrand, nu) / ni**2
-
-
 @pytest.mark.model("radiative_coefficient/trupke-2003-nguyen-2014")
 def test_radiative_coefficient_temperature_trend_from_absorption(newest):
     # van Roosbroeck & Shockley 1954 (Phys. Rev. 94, 1558) applied to the release's
     # band-to-band absorption (Green 2008 scaled by Franta et al. 2017, open refractive-
     # index database) and intrinsic density: an independent route to B(240 K)/B(300 K)
-    ratio_vrs = _van_roosbroeck_shockley(newest, 240.0) / _van_roosbroeck_shockley(newest, 300.0)
+    ratio_vrs = van_roosbroeck_shockley(newest, 240.0) / van_roosbroeck_shockley(newest, 300.0)
     b = newest.radiative_coefficient([240.0, 300.0]).m_as("cm^3/s")
     assert b[0] / b[1] == pytest.approx(ratio_vrs, rel=0.10)
 
@@ -47,7 +27,7 @@ def test_radiative_coefficient_at_300_K(newest):
     # B_low = 4.73e-15 cm^3/s (Trupke et al. 2003 as used by Richter et al. 2012): from
     # memory, high confidence; the van Roosbroeck-Shockley integral above gives 4.4e-15
     assert newest.radiative_coefficient(300.0).m_as("cm^3/s") == pytest.approx(4.73e-15, rel=0.01)
-    assert _van_roosbroeck_shockley(newest, 300.0) == pytest.approx(4.73e-15, rel=0.12)
+    assert van_roosbroeck_shockley(newest, 300.0) == pytest.approx(4.73e-15, rel=0.12)
 
 
 def test_radiative_coefficient_falls_with_temperature_then_saturates(newest):

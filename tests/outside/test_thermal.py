@@ -108,6 +108,19 @@ def test_electron_ionisation_agrees_with_independent_fits(newest, temperature):
     assert alpha == pytest.approx(massey, rel=0.30)
 
 
+@pytest.mark.model("impact_ionisation/okuto-1975", "impact_ionisation/massey-2006")
+@pytest.mark.parametrize("model_id", ["okuto-1975", "massey-2006"])
+def test_alternative_ionisation_fits_agree_with_the_default(newest, model_id):
+    # the alternatives through their model files, against the release default, a fit to
+    # other measurements (van Overstraeten & de Man 1970): electrons within 30 % at
+    # 3e5 V/cm, 250-400 K, the spread of the three fits above
+    other = matprops.silicon(models={"impact_ionisation": model_id})
+    temperatures = [250.0, 300.0, 400.0]
+    alternative = other.impact_ionisation("electron", 3e5, temperatures).m_as("1/cm")
+    default = newest.impact_ionisation("electron", 3e5, temperatures).m_as("1/cm")
+    np.testing.assert_allclose(default, alternative, rtol=0.30)
+
+
 def test_holes_ionise_less_than_electrons(newest):
     # Chynoweth 1958 (Phys. Rev. 109, 1537; abstract read): the electron ionisation rate
     # is higher than the hole rate over the fields measured (2e5-5e5 V/cm)

@@ -22,12 +22,14 @@ M0 = 9.1093837015e-31  # kg, CODATA 2018
 # ----------------------------------------------------------------- thermal velocity
 
 
+@pytest.mark.model("thermal_velocity/green-1990")
 def test_electron_thermal_velocity_at_300k_is_greens(si):
     # Green, J. Appl. Phys. 67, 2944 (1990): 2.05e7 cm/s at 300 K (from memory; the
     # recalled value has three digits, so it stands for 2.045e7-2.055e7)
     assert 2.045e7 <= si.thermal_velocity("electron", 300).m_as("cm/s") <= 2.055e7
 
 
+@pytest.mark.model("thermal_velocity/green-1990")
 def test_hole_thermal_velocity_at_300k(si):
     # Green 1990: 1.69e7 cm/s at 300 K (from memory); the model holds a recalled mass of
     # 0.41 m0 whose rounding (+-0.005 m0) moves the speed by +-0.61 %
@@ -35,6 +37,7 @@ def test_hole_thermal_velocity_at_300k(si):
     assert value == pytest.approx(1.69e7, rel=0.0061)
 
 
+@pytest.mark.model("thermal_velocity/green-1990")
 def test_thermal_velocity_is_the_mean_speed(si):
     # definition (Maxwell distribution): the mean speed of a spherical band is
     # sqrt(8kT/(pi m)), sqrt(3 pi/8) = 1.085 times below the rms speed sqrt(3kT/m)
@@ -57,6 +60,7 @@ def test_mean_speed_mass_of_an_ellipsoid_matches_a_numerical_average():
         assert mean_speed_mass(m_l, m_t) == pytest.approx(1 / average**2, rel=1e-9)
 
 
+@pytest.mark.model("thermal_velocity/green-1990")
 def test_thermal_velocity_kernel_door_and_table(si):
     kernel = si.kernel("thermal_velocity", carrier="electron")
     t = np.array([250.0, 300.0, 350.0])
@@ -70,6 +74,7 @@ def test_thermal_velocity_kernel_door_and_table(si):
     )
 
 
+@pytest.mark.model("thermal_velocity/green-1990")
 def test_unknown_carrier_lists_the_valid_ones(si):
     with pytest.raises(matprops.InputError, match="carrier.*electron, hole.*'proton'"):
         si.thermal_velocity("proton", 300)
@@ -77,6 +82,7 @@ def test_unknown_carrier_lists_the_valid_ones(si):
         si.kernel("thermal_velocity")
 
 
+@pytest.mark.model("thermal_velocity/green-1990")
 def test_hole_thermal_velocity_warns_outside_its_range(si):
     with pytest.warns(matprops.ValidityWarning, match="250-400 K"):
         si.thermal_velocity("hole", 150)
@@ -88,6 +94,7 @@ def test_hole_thermal_velocity_warns_outside_its_range(si):
 # ----------------------------------------------------------------- mobility
 
 
+@pytest.mark.model("mobility/klaassen-1992")
 def test_lightly_doped_limits_at_300k(si):
     # common practice: about 1400 (electrons) and 470 (holes) cm^2/(V s) in lightly doped
     # silicon at 300 K (quoted to two or three digits); also the implied dopant-density
@@ -99,6 +106,7 @@ def test_lightly_doped_limits_at_300k(si):
     assert hole == pytest.approx(470, rel=0.02)
 
 
+@pytest.mark.model("mobility/klaassen-1992")
 def test_klaassen_g_minimum_at_300k():
     # device-simulator documentation quoting the model: P_min = 0.3246 (electrons) is the
     # 300 K start value hard-coded in Charon 2.2's evaluator and Xyce calcPhilipsMob,
@@ -136,6 +144,7 @@ def test_g_minimum_is_the_minimum():
             assert g_minimum(t, m, **s) == pytest.approx(grid[g.argmin()], abs=1e-5)
 
 
+@pytest.mark.model("mobility/klaassen-1992", "mobility/masetti-1983")
 def test_klaassen_majority_mobility_tracks_masetti():
     # CONSISTENCY CHECK, not validation: Klaassen built his majority doping dependence on
     # Masetti et al.'s fit, so the two must agree where both apply (300 K, majority
@@ -151,6 +160,7 @@ def test_klaassen_majority_mobility_tracks_masetti():
         np.testing.assert_allclose(a.m_as("cm^2/(V*s)"), b.m_as("cm^2/(V*s)"), rtol=tolerance)
 
 
+@pytest.mark.model("mobility/masetti-1983")
 def test_masetti_against_a_textbook_evaluation():
     # Van Zeghbroeck, Principles of Semiconductor Devices (online textbook, example
     # ecee.colorado.edu/~bart/book/ex006.htm): with Masetti's constants at 1e18 cm^-3,
@@ -164,6 +174,7 @@ def test_masetti_against_a_textbook_evaluation():
         assert value == pytest.approx(expected, abs=0.5)
 
 
+@pytest.mark.model("mobility/arora-1982")
 def test_arora_lattice_limits_against_cider():
     # ngspice CIDER numconst.h (secondary, 'ref. AROR82') stores Arora's 300 K maxima as
     # mu_min + mu_0 = 1340 and 461.3 cm^2/(V s) (= 88 + 1252, 54.3 + 407: mu_0 rounded
@@ -173,6 +184,7 @@ def test_arora_lattice_limits_against_cider():
     assert si.mobility("hole", 300).m_as("cm^2/(V*s)") == pytest.approx(461.3, abs=0.5)
 
 
+@pytest.mark.model("mobility/klaassen-1992")
 def test_minority_exceeds_majority_mobility_in_heavy_doping(si):
     # common practice (Klaassen's point): at 1e19 cm^-3 minority electrons in p-type
     # silicon are more mobile than majority electrons in n-type
@@ -214,6 +226,7 @@ def test_electrons_take_the_donor_set_and_holes_the_acceptor_set(si):
     )
 
 
+@pytest.mark.model("mobility/caughey-1967")
 def test_caughey_thomas_has_electrons_only():
     si = matprops.silicon(models={"mobility": "caughey-1967"})
     assert si.mobility("electron", 300, Nd=1e17).m > 0
@@ -221,6 +234,7 @@ def test_caughey_thomas_has_electrons_only():
         si.mobility("hole", 300, Na=1e17)
 
 
+@pytest.mark.model("mobility/caughey-1967", "mobility/masetti-1983")
 def test_room_temperature_models_warn_elsewhere():
     for model_id in ("masetti-1983", "caughey-1967"):
         si = matprops.silicon(models={"mobility": model_id})
@@ -232,11 +246,19 @@ def test_room_temperature_models_warn_elsewhere():
         )
 
 
+@pytest.mark.model("mobility/klaassen-1992")
 def test_doping_beyond_validity_warns(si):
     with pytest.warns(matprops.ValidityWarning, match="mobility/klaassen-1992.*1e\\+21"):
         si.mobility("electron", 300, Nd=5e21, n=5e21, p=1)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+)
 def test_unknown_dopant_names_list_the_valid_ones(si):
     with pytest.raises(matprops.InputError, match="donor.*phosphorus, arsenic.*'carbon'"):
         si.mobility("electron", 300, Nd=1e16, donor="carbon")
@@ -248,11 +270,13 @@ def test_unknown_dopant_names_list_the_valid_ones(si):
         si.doping_from_resistivity(1.0, 300, dopant="unobtainium")
 
 
+@pytest.mark.model("mobility/klaassen-1992")
 def test_n_and_p_go_together(si):
     with pytest.raises(matprops.InputError, match="'p'"):
         si.mobility("electron", 300, Nd=1e16, n=1e16)
 
 
+@pytest.mark.model("mobility/klaassen-1992")
 @settings(deadline=None, max_examples=25)
 @given(
     st.floats(250, 450),
@@ -271,6 +295,7 @@ def test_mobility_falls_with_doping(t, log_n, step, carrier):
     assert mu[1] < mu[0]
 
 
+@pytest.mark.model("mobility/arora-1982", "mobility/klaassen-1992", "mobility/lombardi-1988")
 @settings(deadline=None, max_examples=25)
 @given(
     st.floats(250, 445),
@@ -295,6 +320,7 @@ def test_mobility_falls_with_temperature_when_lattice_limited(t, dt, log_n, carr
 # ----------------------------------------------------------------- high field
 
 
+@pytest.mark.model("saturation_velocity/jacoboni-1977")
 def test_saturation_velocity_at_300k(si):
     # Garfield++ MediumSilicon.cc (general-purpose detector simulator, citing Canali et al.
     # 1975): 1.07e7 (electrons) and 8.37e6 cm/s (holes) at 300 K, three digits (+-0.5 %)
@@ -304,6 +330,7 @@ def test_saturation_velocity_at_300k(si):
     assert si.saturation_velocity("electron", 300).m_as("cm/s") == pytest.approx(1e7, rel=0.1)
 
 
+@pytest.mark.model("saturation_velocity/canali-1975", "saturation_velocity/jacoboni-1977")
 def test_canali_prefactor_differs_by_seven_percent():
     # Allpix Squared manual (secondary): Canali eq. 2a 1.43e9 against Jacoboni Table 5
     # 1.53e9 T^-0.87 cm/s for electrons, holes equal
@@ -317,6 +344,7 @@ def test_canali_prefactor_differs_by_seven_percent():
     assert canali.saturation_velocity("hole", 300) == jacoboni.saturation_velocity("hole", 300)
 
 
+@pytest.mark.model("high_field_mobility/canali-1975")
 def test_field_dependence_beta_at_300k(si):
     # Garfield++ (secondary, citing Canali et al.): beta = 1.109 (electrons), 1.213 (holes)
     # at 300 K; printed to four digits (+-5e-4)
@@ -326,6 +354,11 @@ def test_field_dependence_beta_at_300k(si):
         assert beta == pytest.approx(expected, abs=5e-4)
 
 
+@pytest.mark.model(
+    "high_field_mobility/canali-1975",
+    "mobility/klaassen-1992",
+    "saturation_velocity/jacoboni-1977",
+)
 def test_field_dependence_limits(si):
     # definition of the form: mu(0) = mu_0 and the drift velocity tends to v_sat
     low = si.mobility("electron", 300, Nd=1e15)
@@ -336,6 +369,7 @@ def test_field_dependence_limits(si):
     assert velocity == pytest.approx(si.saturation_velocity("electron", 300).m_as("cm/s"), rel=1e-3)
 
 
+@pytest.mark.model("high_field_mobility/canali-1975")
 def test_electron_drift_velocity_at_10_kv_per_cm(si):
     # from memory: Canali et al.'s measured electron drift velocity at 300 K and 1e4 V/cm in
     # pure silicon is about 6.5e6 cm/s (<111>); 10 % for reading a recalled curve
@@ -343,6 +377,7 @@ def test_electron_drift_velocity_at_10_kv_per_cm(si):
     assert (mu * matprops.Q_(1e4, "V/cm")).m_as("cm/s") == pytest.approx(6.5e6, rel=0.1)
 
 
+@pytest.mark.model("high_field_mobility/canali-1975")
 def test_negative_field_is_refused(si):
     with pytest.raises(matprops.InputError, match="'field' must be >= 0 V/cm"):
         si.high_field_mobility("electron", -1e3, 300)
@@ -353,6 +388,13 @@ def test_negative_field_is_refused(si):
 # ----------------------------------------------------------------- diffusivity
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+)
 def test_einstein_relation_in_lightly_doped_silicon(si):
     # common practice: D = mu kT/q, about 36 (electrons) and 12 cm^2/s (holes) at 300 K
     kt = 8.617333262e-5 * 300
@@ -383,6 +425,14 @@ def test_fermi_dirac_factor_against_direct_integration():
         assert einstein_factor(np.log(reduced)) == pytest.approx(expected, rel=1e-6)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/klaassen-1992",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+)
 def test_degenerate_diffusivity_exceeds_einstein(si):
     # Fermi-Dirac statistics: in degenerate silicon D > mu kT/q; Boltzmann gives equality
     kt = 8.617333262e-5 * 300
@@ -396,6 +446,7 @@ def test_degenerate_diffusivity_exceeds_einstein(si):
 # ----------------------------------------------------------------- resistivity
 
 
+@pytest.mark.model("standard_dopant_density/thurber-1981", "standard_resistivity/thurber-1981")
 @pytest.mark.parametrize(
     "dopant, kind, low, high, tolerance",
     [
@@ -443,6 +494,7 @@ HANDBOOK = {
 }
 
 
+@pytest.mark.model("standard_resistivity/thurber-1981")
 @pytest.mark.parametrize("density", sorted(HANDBOOK))
 def test_standard_resistivity_against_the_handbook_table(si, density):
     phosphorus, boron = HANDBOOK[density]
@@ -535,6 +587,7 @@ def test_gallium_doped_wafers_convert_with_borons_mobility_and_galliums_ionisati
     )
 
 
+@pytest.mark.model("standard_dopant_density/thurber-1981", "standard_resistivity/thurber-1981")
 def test_standard_conversion_warns_away_from_23_degc(si):
     with warnings.catch_warnings():
         warnings.simplefilter("error")
@@ -557,12 +610,26 @@ def test_standard_conversion_warns_away_from_23_degc(si):
     assert np.isfinite(value.m[0]) and np.isnan(value.m[1])
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+)
 def test_conductivity_is_the_inverse_of_resistivity(si):
     na = np.array([0.0, 1e15, 1e18])
     product = si.resistivity(320, Na=na, Nd=1e16) * si.conductivity(320, Na=na, Nd=1e16)
     np.testing.assert_allclose(product.m_as("dimensionless"), 1.0, rtol=1e-14)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+)
 @settings(deadline=None, max_examples=30)
 @given(st.floats(-3, 3), st.floats(250, 400), st.sampled_from(["boron", "phosphorus"]))
 def test_resistivity_round_trip(log_rho, t, dopant):
@@ -577,6 +644,13 @@ def test_resistivity_round_trip(log_rho, t, dopant):
     assert back == pytest.approx(rho, rel=1e-9)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+)
 def test_doping_from_resistivity_is_vectorised_and_broadcasts(si):
     rho = matprops.Q_([[0.01], [1.0], [100.0]], "ohm*cm")
     n = si.doping_from_resistivity(rho, [250.0, 300.0], "phosphorus")
@@ -586,6 +660,13 @@ def test_doping_from_resistivity_is_vectorised_and_broadcasts(si):
     assert si.doping_from_resistivity(1.0, 296.15, "boron").m == pytest.approx(1.5e16, rel=0.15)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+)
 def test_bad_resistivity_is_refused(si):
     with pytest.raises(matprops.InputError, match="'resistivity' must be > 0"):
         si.doping_from_resistivity(0.0, 300, "boron")
@@ -604,6 +685,14 @@ def test_bad_resistivity_is_refused(si):
 # ----------------------------------------------------------------- doors
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+    "standard_dopant_density/thurber-1981",
+)
 def test_transport_tables_equal_single_calls(si):
     data = si.table(
         ["mobility", "resistivity"],
@@ -632,6 +721,13 @@ def test_transport_tables_equal_single_calls(si):
     ).item() == pytest.approx(si.doping_from_resistivity(10.0, 296.15, "boron").m, rel=1e-12)
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+)
 def test_command_line_reaches_the_transport_quantities(capsys):
     from matprops.cli import main
 
@@ -658,6 +754,7 @@ def test_command_line_reaches_the_transport_quantities(capsys):
     assert "doping_from_resistivity" in capsys.readouterr().out
 
 
+@pytest.mark.model("mobility/klaassen-1992", "standard_resistivity/thurber-1981")
 def test_kernel_door_for_transport(si):
     kernel = si.kernel("mobility", carrier="hole")
     assert kernel.variant == "boron" and "hole_density" in kernel.inputs
@@ -669,6 +766,13 @@ def test_kernel_door_for_transport(si):
     )
 
 
+@pytest.mark.model(
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "ionisation/altermatt-2006",
+    "mobility/klaassen-1992",
+)
 def test_provenance_of_derived_transport_quantities(si):
     record = si.provenance("resistivity")
     assert record["model"] == "derived" and "mobility" in record["components"]

@@ -1,7 +1,10 @@
 """Property-based sweep of every public Silicon method and optics function.
 
 Each callable is a row of :data:`SILICON_METHODS` or :data:`OPTICS_FUNCTIONS`: its
-name and the kind of each argument. Hypothesis draws every argument in many forms —
+name and the kind of each argument. The rows of the methods that serve a quantity are
+read from the quantity registry and the methods' signatures (the kind of each argument
+from the argument vocabulary), so a declared quantity is swept without a line here.
+Hypothesis draws every argument in many forms —
 plain numbers and arrays of random shapes and dtypes (float, int, bool, complex),
 lists, masked arrays, pint quantities in compatible and incompatible units, strings,
 None — with values that include NaN, infinities, zero, negative, tiny and huge
@@ -12,8 +15,8 @@ numbers. The only allowed outcomes are
 - one of matprops' documented errors (:class:`matprops.Error`);
 
 never another exception (numpy's, scipy's, pint's, a bare TypeError) and never a
-NaN or infinity without a ValidityWarning. A new method is covered by adding a row;
-a new kind of argument by adding an entry to :data:`KINDS`.
+NaN or infinity without a ValidityWarning. A plumbing method of the facade is covered
+by adding a row; a new kind of argument by adding an entry to :data:`KINDS`.
 
 The sweep is derandomised (the same examples every run, as tests must be
 deterministic). For a longer, random exploration on demand::

@@ -102,6 +102,7 @@ def test_a_release_file_cannot_claim_finality(datasets_copy):
         catalog.release("2030.1")
 
 
+@pytest.mark.slow  # about 5 s or more
 def test_freezing_a_draft_end_to_end(datasets_with_draft, monkeypatch):
     root, catalog, draft = datasets_with_draft
     assert draft == "2030.1"

@@ -95,6 +95,7 @@ def test_the_perturbation_reaches_the_kernels(monkeypatch, mode):
     assert np.allclose(solved_now, solved, rtol=1e-10, atol=0)
 
 
+@pytest.mark.slow  # about 5 s or more
 @pytest.mark.parametrize("release_id", matprops.releases())
 def test_every_release_reproduces_when_the_last_bits_differ(release_id, last_bits_differ):
     assert reference.compare(release_id) == []

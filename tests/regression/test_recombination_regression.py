@@ -8,11 +8,11 @@ recombination model files' notes, recomputed so the text cannot drift from the c
 
 import json
 import re
-import warnings
 from pathlib import Path
 
 import numpy as np
 import pytest
+from helpers import quiet
 
 import matprops
 from matprops.catalogue.store import datasets_root
@@ -20,12 +20,7 @@ from matprops.catalogue.store import datasets_root
 K_B = 8.617333262e-5  # eV/K
 
 
-def quiet(function, *args, **kwargs):
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", matprops.ValidityWarning)
-        return function(*args, **kwargs)
-
-
+@pytest.mark.model("intrinsic_lifetime/richter-2012")
 def test_kernel_door_equals_the_public_method(si):
     kernel = si.kernel("intrinsic_lifetime")
     n0 = np.array([1e15, 1e16, 1e17])
@@ -42,6 +37,16 @@ def test_kernel_door_equals_the_public_method(si):
     assert isinstance(plain, np.ndarray)
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_lifetimes_compose(si):
     result = si.effective_lifetime(
         300, Na=[1e15, 1e16], excess=1e14, defects={"Fe_i": 1e11, "FeB": 1e11}
@@ -67,6 +72,16 @@ def test_lifetimes_compose(si):
     assert "Istratov" in result.provenance["defects"][0]["citation"]
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_steady_state_and_implied_voltage(si):
     result = si.implied_voltage(
         300,
@@ -110,6 +125,16 @@ def test_steady_state_and_implied_voltage(si):
     )
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_current_density_is_a_photon_flux_times_q(si):
     a = si.implied_voltage(
         300, Na=1e15, generation=matprops.Q_(40, "mA/cm^2"), thickness=matprops.Q_(180, "um")
@@ -118,6 +143,7 @@ def test_current_density_is_a_photon_flux_times_q(si):
     assert a.implied_voltage.m_as("V") == pytest.approx(b.implied_voltage.m_as("V"), rel=1e-12)
 
 
+@pytest.mark.model("srh_lifetime/shockley-1952")
 def test_inline_defect_may_name_its_thermal_velocity_model(si):
     defect = {
         "level": 0.38,
@@ -133,6 +159,16 @@ def test_inline_defect_may_name_its_thermal_velocity_model(si):
         si.srh_lifetime({**defect, "thermal_velocity": "sze-1981"}, 300, Na=1e16, density=1e11)
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_tables_equal_single_calls(si):
     data = si.table(
         ["intrinsic_lifetime", "srh_lifetime", "implied_voltage"],
@@ -168,6 +204,16 @@ def test_tables_equal_single_calls(si):
     assert record["model"] == "derived"
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 def test_results_become_datasets(si):
     result = si.effective_lifetime(300, Na=[1e15, 1e16], excess=1e14, defect="FeB", density=1e11)
     data = result.to_dataset(dims=("acceptor_density",))
@@ -272,6 +318,17 @@ def _normalise(text):
     return re.sub(r"\s+", " ", text)
 
 
+@pytest.mark.model(
+    "band_gap/passler-2002",
+    "densities_of_states/couderc-2014",
+    "gap_narrowing/schenk-1998",
+    "intrinsic_density/couderc-2014",
+    "intrinsic_lifetime/kerr-2002",
+    "intrinsic_lifetime/richter-2012",
+    "ionisation/altermatt-2006",
+    "srh_lifetime/shockley-1952",
+    "thermal_velocity/green-1990",
+)
 @pytest.mark.parametrize(
     "path, template, compute", QUOTED, ids=[f"{Path(p).name}:{t[:30]}" for p, t, _ in QUOTED]
 )
