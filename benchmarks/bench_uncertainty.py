@@ -1,4 +1,4 @@
-"""Cost of uncertainty=True on bound kernels (issue 21; run on demand, not a test).
+"""Cost of uncertainty=True on bound kernels (run on demand, not a test).
 
 1. Linear propagation against the value's cost at 1e6 points (target <= 3x):
    - Arora's mobility with its source's +-13 % output accuracy (the data as they are);

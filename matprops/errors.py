@@ -13,6 +13,7 @@ import os
 import pickle
 import sys
 import warnings
+from types import FrameType
 
 __all__ = [
     "ChecksumError",
@@ -163,6 +164,12 @@ class ReleaseFrozenError(Error, RuntimeError):
 class SolverError(Error, ArithmeticError):
     """A numerical solve (e.g. charge neutrality) did not converge; names the points."""
 
+    # set by solvers that know them: the first failing points (flat indices into the
+    # input's shape), how many failed, and why
+    points: list[int]
+    count: int
+    reason: str
+
 
 class ValidityError(Error, ValueError):
     """An input outside a model's validity range, with ``strict=True``."""
@@ -221,7 +228,8 @@ _PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))
 
 def warn(message: str, category=ValidityWarning) -> None:
     """Issue a warning attributed to the first caller outside matprops."""
-    frame, level = sys._getframe(0), 1
+    frame: FrameType | None = sys._getframe(0)
+    level = 1
     while frame is not None and frame.f_code.co_filename.startswith(_PACKAGE_DIR):
         frame, level = frame.f_back, level + 1
     warnings.warn(message, category, stacklevel=level)

@@ -39,6 +39,11 @@ def counts() -> tuple[dict[str, int], str]:
         if match:
             found[match["path"]] = found.get(match["path"], 0) + 1
     summary = run.stdout.strip().splitlines()[-1] if run.stdout.strip() else ""
+    if not re.match(r"(Found \d+ errors? in|Success:)", summary):
+        # mypy did not report (not installed in this Python, or crashed): never a pass
+        sys.stderr.write(run.stdout + run.stderr)
+        sys.stderr.write("types: mypy gave no summary (is it installed? pip install -e '.[dev]')\n")
+        raise SystemExit(2)
     return dict(sorted(found.items())), summary
 
 

@@ -46,6 +46,9 @@ class CatalogueLike(Protocol):
 
     def checksums(self) -> dict[str, str]: ...
 
+    @property
+    def root(self) -> Path: ...
+
 
 SOURCE_FIELDS = ("authors", "year", "title", "journal", "volume", "pages", "doi")
 # Required fields of each kind of source record (``type`` in the file; default "article").
@@ -199,6 +202,8 @@ def standard_from(value, kind: str, coverage_factor: float | None = None):
     """
     scale = {"standard": 1.0, "unspecified": 1.0, "bound": 1.0 / 3.0**0.5}.get(kind)
     if kind == "expanded":
+        if coverage_factor is None:
+            raise ValueError("an expanded uncertainty needs its coverage_factor")
         scale = 1.0 / float(coverage_factor)
     if isinstance(value, tuple):
         return tuple(v * scale for v in value)
@@ -328,7 +333,7 @@ class Model:
     id: str
     name: str
     kind: str
-    kernel: Callable
+    kernel: Any  # a kernel function carrying its .spec (kernels._spec)
     source: Source
     obtained: str
     notes: str
@@ -664,7 +669,9 @@ def _rebind_model(
             return Unusable(part.error, Model)
     try:
         model = catalog.model(quantity, model_id)
-        here = {"model file": (model.path, model.sha256, sha256)}
+        here: dict[str, tuple[Path, str | None, str]] = {
+            "model file": (model.path, model.sha256, sha256)
+        }
         for name, digest in (tables or {}).items():
             here[name] = (catalog.table_path(name), model._table_digests().get(name), digest)
         for mine_path, mine, theirs in here.values():

@@ -213,8 +213,9 @@ class BoundKernel:
         self._returns = returns
         # input -> (short kind, description) of each density: total or ionised dopants,
         # free carriers, carriers of complete ionisation (the model's fit conventions)
-        self.input_kinds = {name: kinds[name][0] for name in (kinds or {})}
-        self._kind_text = {name: kinds[name][1] for name in (kinds or {})}
+        kinds = kinds or {}
+        self.input_kinds = {name: kinds[name][0] for name in kinds}
+        self._kind_text = {name: kinds[name][1] for name in kinds}
         self.__doc__ = self._document()
 
     # ------------------------------------------------------------------ calling
@@ -419,6 +420,8 @@ class BoundKernel:
         strict = self._si.strict if strict is None else bool(strict)
         # each check warns (or raises) itself and returns its messages: no warning
         # filter is touched
+        if self._checker is None:
+            return []
         return self._checker(arrays, ranges, strict, self._si._report)
 
     # ------------------------------------------------------------------ description
@@ -633,7 +636,7 @@ def model_checker(models):
 
 
 def validity_of(models) -> dict:
-    found = {}
+    found: dict[str, tuple[float, float]] = {}
     for model in models:
         for name, rng in model.validity.items():
             low, high = found.get(name, (-np.inf, np.inf))

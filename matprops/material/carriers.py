@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import dataclasses
 import functools
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -306,6 +307,12 @@ class _Bound:
 class CarrierMethods:
     """Band gap, densities of states, intrinsic and effective intrinsic density,
     gap narrowing, dopant ionisation and equilibrium carrier statistics."""
+
+    if TYPE_CHECKING:  # provided by the facade (silicon.Silicon) these methods serve
+        _violation: Any
+        _check: Any
+        _check_regions: Any
+        provenance: Any
 
     # ------------------------------------------------------------------ undoped
     @declare(

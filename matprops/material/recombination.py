@@ -35,6 +35,7 @@ from __future__ import annotations
 
 import dataclasses
 from collections.abc import Mapping
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -255,6 +256,16 @@ class _State:
 class RecombinationMethods:
     """Radiative coefficient, intrinsic (Auger + radiative) and SRH lifetimes, the
     defect catalogue, effective lifetime and implied open-circuit voltage."""
+
+    if TYPE_CHECKING:  # provided by the facade (silicon.Silicon) these methods serve
+        _inputs: Any
+        _solve: Any
+        model: Any
+        _check: Any
+        _check_regions: Any
+        _warn_mismatches: Any
+        catalog: Any
+        _carriers: Any
 
     # ------------------------------------------------------------------ radiative
     @declare(

@@ -16,6 +16,7 @@ from __future__ import annotations
 
 from collections import Counter
 from collections.abc import Iterable, Mapping
+from typing import Any
 
 import numpy as np
 
@@ -286,6 +287,7 @@ class Silicon(
     def provenance(self, name: str) -> dict:
         """Model id, source, DOI, validity, coefficients, release, and overrides."""
         name = REGISTRY.canonical(check_name(name))
+        record: dict[str, Any]
         if name in DERIVED:
             parts, formula = DERIVED[name]
             record = {
@@ -458,7 +460,8 @@ def _data_digests(si: Silicon) -> dict[str, str]:
     for model in si._models.values():
         walk(model)
     for entry in defects.describe(si.catalog):
-        files.add(entry.path)
+        if entry.path is not None:
+            files.add(entry.path)
         if entry.thermal_velocity:
             files.add(si.catalog.model("thermal_velocity", entry.thermal_velocity).path)
     base = si.catalog.base

@@ -25,6 +25,8 @@ Composition rules (each shown in the provenance of what it returns):
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import numpy as np
 
 from ..errors import (
@@ -87,6 +89,10 @@ def _extremes(array):
 
 class TransportMethods:
     """Mobility, velocities, diffusivity, resistivity and the resistivity-doping conversion."""
+
+    if TYPE_CHECKING:  # provided by the facade (silicon.Silicon) these methods serve
+        model: Any
+        catalog: Any
 
     # ------------------------------------------------------------------ velocities
     @declare(

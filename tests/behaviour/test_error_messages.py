@@ -1,4 +1,4 @@
-"""Errors instead of tracebacks (issue 15, item 9).
+"""Errors instead of tracebacks.
 
 Each input below gave a raw traceback from deep inside numpy or tomllib; now each works
 or is a documented matprops error (one line on the command line, exit status 2).

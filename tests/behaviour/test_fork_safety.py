@@ -1,4 +1,4 @@
-"""Fork safety (issue 15, item 6): a process forked while another thread loads tables.
+"""Fork safety: a process forked while another thread loads tables.
 
 A forked child has only the thread that forked: a lock another thread held at the fork
 stays held forever in the child, and a child that needs it waits forever. matprops

@@ -1,4 +1,4 @@
-"""Grid size (issue 15, item 8): the total size of a grid (the product of its axes) is
+"""Grid size: the total size of a grid (the product of its axes) is
 checked before anything is allocated, with a one-line error (exit status 2 on the
 command line, an InputError in Python) and an explicit way beyond it; the command
 line says how large an output will be and asks (or, not run from a terminal, refuses)

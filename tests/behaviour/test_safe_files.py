@@ -1,4 +1,4 @@
-"""Files stay safe (issue 15, item 7): interrupted writes leave nothing behind,
+"""Files stay safe: interrupted writes leave nothing behind,
 ``--force`` replaces regular files only, every data file is read through the catalogue
 (checksum, schema, confinement to the datasets folder, size before reading), stored
 tables hold numbers only, and a deeply nested TOML file is a one-line error.

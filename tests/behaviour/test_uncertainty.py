@@ -1,5 +1,5 @@
 """uncertainty=True: coefficient derivatives, linear against Monte Carlo, the answer's
-status, bound kernels, the data's checks (issue 21).
+status, bound kernels, the data's checks.
 
 Machinery checks. Where a test needs an uncertainty that no source states, it makes one
 up here, *test-only*: 1 % of each coefficient, never data.
@@ -166,7 +166,7 @@ def _linear_and_monte_carlo(si, model, found, samples=800):
 
 def test_linear_and_monte_carlo_agree_on_every_smooth_model(si):
     # test-only 1 % uncertainties on every coefficient a model's kernel follows: the
-    # linear figure and 800 seeded Monte Carlo draws agree within 10 % (issue 21)
+    # linear figure and 800 seeded Monte Carlo draws agree within 10 %
     compared = 0
     for model in _smooth_models(si):
         label = f"{model.quantity}/{model.id}"

@@ -1,4 +1,4 @@
-"""Validity warnings are never filtered process-wide (issue 15, item 3).
+"""Validity warnings are never filtered process-wide.
 
 A table checks validity once, on its grid's extremes, and evaluates its blocks with a
 material that knows the inputs were checked already: it never touches the warning

@@ -1,4 +1,4 @@
-"""Workers verify all data (issue 15, item 5).
+"""Workers verify all data.
 
 A pickled material (and every kernel or bound method of it) and a lazy table carry the
 sha256 of every data file their numbers are read from: model files, the tables those

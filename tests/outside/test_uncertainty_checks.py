@@ -1,4 +1,4 @@
-"""The propagated uncertainties against what the sources themselves state (issue 21).
+"""The propagated uncertainties against what the sources themselves state.
 
 Each check names its source beside it. Where the propagated figure rests on a single
 stated accuracy, the check compares the figure with the statement and with an

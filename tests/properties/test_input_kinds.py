@@ -1,5 +1,4 @@
-"""Units, dtypes and shapes of inputs: kernels convert or refuse, never strip (issue 15,
-item 4).
+"""Units, dtypes and shapes of inputs: kernels convert or refuse, never strip.
 
 A bound kernel given a pint quantity converts it to its internal unit (the policy
 stated in docs/simulation.md and in every kernel's docstring), ``kernel.check`` too;
