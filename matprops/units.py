@@ -25,6 +25,7 @@ import datetime
 import math
 import re
 from functools import cache
+from typing import cast
 
 import numpy as np
 import pint
@@ -417,7 +418,8 @@ def name(value, argument: str = "name") -> str:
 def check_broadcast(**arrays) -> tuple[int, ...]:
     """The broadcast shape of the arguments, or an InputError naming the first one
     whose shape does not broadcast with those before it."""
-    shape, seen = (), []
+    shape: tuple[int, ...] = ()
+    seen: list[tuple[str, tuple[int, ...]]] = []
     for name, array in arrays.items():
         try:
             shape = np.broadcast_shapes(shape, np.shape(array))
@@ -520,8 +522,9 @@ def cf_units(units) -> str:
     parts = []
     for name, power in unit_._units.items():
         symbol = _CF_SYMBOLS.get(name) or ureg.get_symbol(name).replace("µ", "u")
-        power = int(power) if float(power).is_integer() else float(power)
-        parts.append((power < 0, _ORDER.get(name, 5), symbol, power))
+        exponent = float(cast(float, power))
+        number = int(exponent) if exponent.is_integer() else exponent
+        parts.append((number < 0, _ORDER.get(name, 5), symbol, number))
     parts.sort()  # one spelling whatever order pint holds them in: cm^2 V^-1 s^-1
     return " ".join(s if p == 1 else f"{s}^{p}" for _, _, s, p in parts) or "1"
 
@@ -540,12 +543,12 @@ def pretty_units(units) -> str:
     if text in _PRETTY_SYMBOLS:
         return _PRETTY_SYMBOLS[text]
     tokens = cf_units(unit(text)).split()
-    up, down = [], []
+    up: list[tuple[str, int]] = []
+    down: list[tuple[str, int]] = []
     for token in tokens:
-        symbol, _, power = token.partition("^")
-        symbol = _PRETTY_SYMBOLS.get(symbol, symbol)
-        power = int(power) if power else 1
-        (up if power > 0 else down).append((symbol, abs(power)))
+        symbol, _, written = token.partition("^")
+        power = int(written) if written else 1
+        (up if power > 0 else down).append((_PRETTY_SYMBOLS.get(symbol, symbol), abs(power)))
     if not up:  # only negative powers: cm⁻³, s⁻¹
         return "·".join(f"{s}{str(-p).translate(_PRETTY_POWER)}" for s, p in down)
 

@@ -90,7 +90,7 @@ def _expand(start: float, stop: float, step: str, option: str, text: str) -> np.
     return values
 
 
-def parse_grid(text: str, option: str = "--temperature", default_units: str = "K"):
+def parse_grid(text: str, option: str = "--temperature", default_units: str | None = "K"):
     """Values of a grid option: ``"-40,25,85 degC"``, ``"250:400:50 K"``,
     ``"1e15:1e19:*10"`` (geometric), ``"1e15:1e19:4/decade"``, ``"3e2 K"``, ``"300"``.
 
@@ -608,7 +608,7 @@ def build_parser() -> argparse.ArgumentParser:
         dest="command", required=True, metavar="COMMAND", parser_class=_Parser
     )
 
-    material = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+    material = _Parser(add_help=False, allow_abbrev=False)  # parents: their options only
     material.add_argument("--release", help="release id (default: newest)")
     material.add_argument(
         "--model",
@@ -622,7 +622,7 @@ def build_parser() -> argparse.ArgumentParser:
         help="fail instead of warning outside a model's validity range",
     )
 
-    grid = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+    grid = _Parser(add_help=False, allow_abbrev=False)  # parents: their options only
     group = grid.add_argument_group("grid (" + _GRID_HELP + ")")
     for ax in AXES.values():
         flags = [ax.option]
@@ -644,7 +644,7 @@ def build_parser() -> argparse.ArgumentParser:
         "print more than ~1 GB without asking",
     )
 
-    output = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+    output = _Parser(add_help=False, allow_abbrev=False)  # parents: their options only
     out = output.add_argument_group("output")
     out.add_argument(
         "-o",
@@ -754,7 +754,7 @@ def build_parser() -> argparse.ArgumentParser:
     diff.add_argument("--json", action="store_true")
     diff.set_defaults(run=_cmd_release_diff)
 
-    files = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+    files = _Parser(add_help=False, allow_abbrev=False)  # parents: their options only
     written = files.add_argument_group("output")
     written.add_argument(
         "-o",

@@ -401,7 +401,9 @@ def explain(si, quantity: str, **inputs) -> Trace:
 
         raise UnknownQuantityError(quantity, QUANTITIES, "to explain")
     entry = QUANTITIES[quantity]
-    given, converted, values = {}, {}, {}
+    given: dict[str, str] = {}
+    converted: dict[str, tuple[object, str]] = {}  # (value, kernel units)
+    values: dict[str, object] = {}
     for key, value in inputs.items():
         ax = axis(key)
         if ax.name not in entry.takes:
@@ -417,7 +419,7 @@ def explain(si, quantity: str, **inputs) -> Trace:
         else:
             number = _scalar_in(value, ax)
             values[ax.name] = value if ax.name in NEEDS_UNIT else number  # thickness: with its unit
-            converted[ax.name] = (number, ax.units)
+            converted[ax.name] = (number, ax.units or "")
     missing = [a for a in entry.required if a not in values]
     if missing:
         raise InputError(missing[0], f"given for {quantity}", "nothing")
@@ -450,7 +452,7 @@ def explain(si, quantity: str, **inputs) -> Trace:
             )
     elif quantity == "doping_from_resistivity":
         density = float(value.m_as("cm^-3"))
-        dopant = values.get("dopant")
+        dopant = str(values.get("dopant"))
         from .carriers import DOPANTS
 
         kind = DOPANTS[dopant]

@@ -20,12 +20,18 @@ import json
 import textwrap
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from ..catalogue.spec import Spec, SpecError, parse_spec, parse_text, read_spec
 from ..errors import Error
 from ..material.validity import flag_of, value_names
+
+if TYPE_CHECKING:
+    import xarray as xr
+
+    from ..material.silicon import Silicon
 
 __all__ = ["Report", "SpecError", "report"]
 
@@ -106,9 +112,9 @@ class Report:
     table (an xarray.Dataset with validity flags) and what was left out."""
 
     spec: Spec
-    si: object
+    si: Silicon
     doping: DopingStep
-    dataset: object
+    dataset: xr.Dataset
     skipped: list[str] = field(default_factory=list)
 
     # ------------------------------------------------------------------ screen
@@ -291,14 +297,19 @@ def doping_step(si, spec: Spec) -> DopingStep:
     spec's conversion or the release's choice (the standard's where it holds)."""
     wafer = spec.wafer
     if wafer.resistivity is None:
+        if wafer.density is None:
+            raise SpecError(spec.source, "wafer", "needs a resistivity or a density")
         return DopingStep(dopant=wafer.dopant, density=wafer.density)
-    t = np.array([wafer.measured_at])
+    measured_at = wafer.measured_at
+    if measured_at is None:
+        raise SpecError(spec.source, "wafer.measured_at", "goes with wafer.resistivity")
+    t = np.array([measured_at])
     used = wafer.conversion or (
         "standard" if si._standard_applies(wafer.dopant, t, None)[0] else "physics"
     )
     density = float(
         si.doping_from_resistivity(
-            wafer.resistivity, wafer.measured_at, wafer.dopant, conversion=used
+            wafer.resistivity, measured_at, wafer.dopant, conversion=used
         ).m_as("cm^-3")
     )
     other = "standard" if used == "physics" else "physics"
@@ -306,7 +317,7 @@ def doping_step(si, spec: Spec) -> DopingStep:
     if wafer.conversion is None:
         notes.append(f"the {used} conversion is the release's choice here")
     other_density = None
-    if other == "standard" and abs(wafer.measured_at - 296.15) > 0.5:
+    if other == "standard" and abs(measured_at - 296.15) > 0.5:
         notes.append(
             "the standard (ASTM F723) conversion holds at 23 °C only: not shown for a "
             "resistivity measured at another temperature"
@@ -315,18 +326,18 @@ def doping_step(si, spec: Spec) -> DopingStep:
         try:
             other_density = float(
                 si.doping_from_resistivity(
-                    wafer.resistivity, wafer.measured_at, wafer.dopant, conversion=other
+                    wafer.resistivity, measured_at, wafer.dopant, conversion=other
                 ).m_as("cm^-3")
             )
         except Error as exc:  # the other conversion may not cover the point
             notes.append(f"the {other} conversion does not apply here: {exc}")
     kind = "Na" if wafer.dopant == "boron" else "Nd"
-    check = float(si.resistivity(wafer.measured_at, **{kind: density}).m_as("ohm*cm"))
+    check = float(si.resistivity(measured_at, **{kind: density}).m_as("ohm*cm"))
     return DopingStep(
         dopant=wafer.dopant,
         density=density,
         resistivity=wafer.resistivity,
-        measured_at=wafer.measured_at,
+        measured_at=measured_at,
         measured_at_text=wafer.measured_at_text,
         conversion=used,
         other_conversion=other,
@@ -398,7 +409,7 @@ def _dataset(si, spec: Spec, doping: DopingStep):
         takes = set().union(*(QUANTITIES[q].takes for q in doped))
         per_region = []
         for values in regions.values():
-            grid = {k: v for k, v in values.items() if k in takes}
+            grid: dict[str, object] = {k: v for k, v in values.items() if k in takes}
             if "carrier" in takes:
                 grid["carrier"] = carriers
             table = si.table(doped, temperature=temperature, **grid)
