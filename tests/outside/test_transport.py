@@ -98,8 +98,8 @@ def test_hole_thermal_velocity_warns_outside_its_range(si):
 def test_lightly_doped_limits_at_300k(si):
     # common practice: about 1400 (electrons) and 470 (holes) cm^2/(V s) in lightly doped
     # silicon at 300 K (quoted to two or three digits); also the implied dopant-density
-    # mobilities of ASTM F723 at 1e14 cm^-3 and 23 degC, 1456 and 477 (research note
-    # issue16-21-sources.md A4, computed from the standard's equations), 3 K cooler
+    # mobilities of ASTM F723 at 1e14 cm^-3 and 23 degC, 1456 and 477 (computed from the
+    # standard's equations), 3 K cooler
     electron = si.mobility("electron", 300, Nd=1e12).m_as("cm^2/(V*s)")
     hole = si.mobility("hole", 300, Na=1e12).m_as("cm^2/(V*s)")
     assert electron == pytest.approx(1400, rel=0.02)
