@@ -30,6 +30,8 @@ __all__ = [
     "Q_",
     "ureg",
     "optics",
+    "report",
+    "explain",
     "__version__",
     *_errors.__all__,
 ]
@@ -46,6 +48,8 @@ _LAZY = {
     "freeze_release": "outputs.catalogues",
     "Q_": "units",
     "ureg": "units",
+    "report": "outputs.report",
+    "explain": "outputs.explain",
 }
 # submodules reachable as attributes (``from matprops import export``): the layers,
 # and the public modules of the outputs and material layers by their short names

@@ -22,6 +22,7 @@ __all__ = [
     "FinalityError",
     "InputError",
     "ReleaseFrozenError",
+    "SkippedModelWarning",
     "SolverError",
     "UnitError",
     "UnknownDefectError",
@@ -176,6 +177,11 @@ class SolverError(Error, ArithmeticError):
 
 class ValidityError(Error, ValueError):
     """An input outside a model's validity range, with ``strict=True``."""
+
+
+class SkippedModelWarning(UserWarning):
+    """A comparison left a model out (or out at some points): it does not cover a
+    carrier or dopant species asked for."""
 
 
 class ValidityWarning(UserWarning):

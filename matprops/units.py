@@ -26,6 +26,7 @@ import math
 import re
 import threading
 from functools import cache
+from typing import cast
 
 import numpy as np
 import pint
@@ -40,7 +41,9 @@ __all__ = [
     "kernel_input",
     "name",
     "names",
+    "normalise_units",
     "parse",
+    "pretty_units",
     "quantity",
     "to_magnitude",
     "unit",
@@ -85,12 +88,44 @@ def _Q(value, units=None):
 
 @cache
 def _unit_of(registry, text: str) -> pint.Unit:
-    return registry.Unit(text)
+    return registry.Unit(normalise_units(text))
+
+
+# One units grammar for input and output: what the screen and the files print
+# (``cm^-3``, ``cm^2 V^-1 s^-1``, ``ohm cm``), UDUNITS' compact powers (``cm-3``,
+# ``cm2 V-1 s-1``), pint's own (``cm**-3``, ``cm^2/(V*s)``) and the typographic forms of
+# a report (``cm⁻³``, ``Ω·cm``, ``°C``, ``µm``) all read as the same unit.
+_SUPERSCRIPT = str.maketrans("⁻⁰¹²³⁴⁵⁶⁷⁸⁹", "-0123456789")
+_SUPERSCRIPT_POWER = re.compile(r"([A-Za-zµΩ%])([⁻⁰¹²³⁴⁵⁶⁷⁸⁹]+)")
+_COMPACT_POWER = re.compile(r"(?<![\w^*.])([A-Za-zµ%]+)(-?[0-9]+)(?![\w.])")
+_TYPOGRAPHIC = (
+    ("·", "*"),
+    ("⋅", "*"),
+    ("\u00d7", "*"),  # multiplication sign
+    ("Ω", "ohm"),
+    ("°C", "degC"),
+    ("°F", "degF"),
+)
+
+
+@cache
+def normalise_units(text: str) -> str:
+    """A unit string in any of the grammars above -> pint's grammar.
+
+    ``"cm-3"`` -> ``"cm^-3"``, ``"cm2 V-1 s-1"`` -> ``"cm^2 V^-1 s^-1"``,
+    ``"cm⁻³"`` -> ``"cm^-3"``, ``"Ω·cm"`` -> ``"ohm*cm"``; pint's own strings pass
+    unchanged.
+    """
+    text = str(text).strip()
+    for typographic, plain in _TYPOGRAPHIC:
+        text = text.replace(typographic, plain)
+    text = _SUPERSCRIPT_POWER.sub(lambda m: f"{m[1]}^{m[2].translate(_SUPERSCRIPT)}", text)
+    return _COMPACT_POWER.sub(r"\1^\2", text)
 
 
 def unit(text: str) -> pint.Unit:
     """A pint Unit of the application registry, parsed once per registry (parsing a
-    string costs ~56 µs per call)."""
+    string costs ~56 µs per call). Any grammar of :func:`normalise_units` is read."""
     return _unit_of(registry(), text)
 
 
@@ -103,6 +138,10 @@ ARGUMENTS = {
     if spec.units is not None
     for name in spec.names
 }
+
+# Lengths a bare number would leave ambiguous (a wafer's 180 is µm to its maker, the
+# internal unit is cm): these need a unit, given as a pint quantity or a string.
+NEEDS_UNIT = {"thickness": "a length with its unit, e.g. Q_(180, 'um') or '180 um'"}
 
 # Exact types that take the scalar fast path of coerce (bool, a subclass of int, is not
 # one of them: it is refused below, as True is not a number here).
@@ -128,6 +167,19 @@ def parse(text: str, argument: str, units: str):
         return _Q(text)
     except Exception as exc:  # pint raises several unrelated types here
         raise UnitError(argument, units, text) from exc
+
+
+def _has_unit(value) -> bool:
+    """Whether ``value`` says its unit: a pint quantity (or a list of them), or a
+    string with a unit after its number."""
+    if isinstance(value, pint.Quantity):
+        return True
+    if isinstance(value, str):
+        match = _NUMBER_THEN_UNIT.match(value)
+        return not match or bool(match.group(2))
+    if isinstance(value, (list, tuple)) and value:
+        return all(_has_unit(v) for v in value)
+    return False
 
 
 def _describe(value) -> str:
@@ -156,6 +208,10 @@ def coerce(
     default_units, default_req = ARGUMENTS.get(argument, (None, None))
     units = units or default_units
     requirement = requirement or default_req
+    if argument in NEEDS_UNIT and not _has_unit(value):
+        raise InputError(
+            argument, NEEDS_UNIT[argument], f"{_brief(value)} (a bare number: which unit?)"
+        )
     if units is None:  # a name no argument has, and no units given
         raise InputError(argument, "an argument name the library knows, or units", argument)
     if type(value) in _PLAIN_SCALARS:  # the scalar fast path: a plain number
@@ -466,7 +522,8 @@ def name(value, argument: str = "name") -> str:
 def check_broadcast(**arrays) -> tuple[int, ...]:
     """The broadcast shape of the arguments, or an InputError naming the first one
     whose shape does not broadcast with those before it."""
-    shape, seen = (), []
+    shape: tuple[int, ...] = ()
+    seen: list[tuple[str, tuple[int, ...]]] = []
     for name, array in arrays.items():
         try:
             shape = np.broadcast_shapes(shape, np.shape(array))
@@ -536,16 +593,73 @@ _CF_SYMBOLS = {
 }
 
 
+# the order of factors within the positive and the negative powers (the trade's own:
+# cm^2 V^-1 s^-1, ohm cm, g cm^-3, cm^-2 s^-1)
+_ORDER = {
+    "ohm": 0,
+    "siemens": 0,
+    "gram": 0,
+    "kilogram": 0,
+    "centimeter": 1,
+    "meter": 1,
+    "nanometer": 1,
+    "micrometer": 1,
+    "volt": 2,
+    "ampere": 2,
+    "electron_volt": 2,
+    "second": 3,
+    "kelvin": 4,
+    "mole": 4,
+}
+
+
 @cache
 def cf_units(units) -> str:
-    """A UDUNITS string for CF files: ``cm^-3`` -> ``cm-3``,
-    ``cm^2/(V*s)`` -> ``cm2 V-1 s-1``, dimensionless -> ``1`` (ASCII only)."""
+    """The units string of files and screens: ``cm^-3``, ``cm^2/(V*s)`` ->
+    ``cm^2 V^-1 s^-1``, dimensionless -> ``1`` (ASCII only).
+
+    One grammar that UDUNITS-2 (CF), pint's default registry and cf-xarray's registry
+    all read, and that every input of matprops accepts (:func:`normalise_units`)."""
     unit_ = unit(units) if isinstance(units, str) else units
     if unit_.dimensionless and not unit_._units:
         return "1"
     parts = []
     for name, power in unit_._units.items():
         symbol = _CF_SYMBOLS.get(name) or registry().get_symbol(name).replace("µ", "u")
-        power = int(power) if float(power).is_integer() else float(power)
-        parts.append(symbol if power == 1 else f"{symbol}{power}")
-    return " ".join(parts) or "1"
+        exponent = float(cast(float, power))
+        number = int(exponent) if exponent.is_integer() else exponent
+        parts.append((number < 0, _ORDER.get(name, 5), symbol, number))
+    parts.sort()  # one spelling whatever order pint holds them in: cm^2 V^-1 s^-1
+    return " ".join(s if p == 1 else f"{s}^{p}" for _, _, s, p in parts) or "1"
+
+
+_PRETTY_SYMBOLS = {"degC": "°C", "degF": "°F", "um": "µm", "us": "µs", "ohm": "Ω"}
+_PRETTY_POWER = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+@cache
+def pretty_units(units) -> str:
+    """Units as a report prints them: ``cm⁻³``, ``cm²/(V·s)``, ``Ω·cm``, ``°C``, ``µm``;
+    ``""`` for dimensionless. :func:`normalise_units` reads them back."""
+    text = units if isinstance(units, str) else cf_units(units)
+    if text in ("", "1"):
+        return ""
+    if text in _PRETTY_SYMBOLS:
+        return _PRETTY_SYMBOLS[text]
+    tokens = cf_units(unit(text)).split()
+    up: list[tuple[str, int]] = []
+    down: list[tuple[str, int]] = []
+    for token in tokens:
+        symbol, _, written = token.partition("^")
+        power = int(written) if written else 1
+        (up if power > 0 else down).append((_PRETTY_SYMBOLS.get(symbol, symbol), abs(power)))
+    if not up:  # only negative powers: cm⁻³, s⁻¹
+        return "·".join(f"{s}{str(-p).translate(_PRETTY_POWER)}" for s, p in down)
+
+    def product(parts):
+        return "·".join(s if p == 1 else f"{s}{str(p).translate(_PRETTY_POWER)}" for s, p in parts)
+
+    if not down:
+        return product(up)
+    below = product(down)
+    return f"{product(up)}/({below})" if len(down) > 1 else f"{product(up)}/{below}"

@@ -39,7 +39,6 @@ __all__ = [
     "MODEL",
     "OVERLAY",
     "RELEASE",
-    "SCENARIO",
     "THERMAL_VELOCITY_DEFINITIONS",
     "UNCERTAINTY_KINDS",
     "UNCERTAINTY_STATEMENTS",
@@ -361,31 +360,6 @@ OVERLAY = {  # overlay.toml: who keeps an overlay catalogue (matprops.catalogue.
     "description": (TEXT, REQUIRED),
     "contact": (TEXT, OPTIONAL),
 }
-
-OPERATING_POINTS = {  # [temperature] of a scenario
-    "units": (TEXT, REQUIRED),
-    "sites": (table_of(table_of(NUMBER)), REQUIRED),  # [temperature.sites.<site>] name = T
-}
-
-DOPED_REGION = {  # [regions.<name>] of a scenario
-    "units": (TEXT, REQUIRED),
-    "acceptor_density": (NUMBER, OPTIONAL),
-    "donor_density": (NUMBER, OPTIONAL),
-    "excess_density": (NUMBER, OPTIONAL),
-    "note": (TEXT, OPTIONAL),
-}
-
-SCENARIO = {  # datasets/scenarios/<name>.toml (invented demo data)
-    "name": (TEXT, REQUIRED),
-    "title": (TEXT, REQUIRED),
-    "invented": (FLAG, REQUIRED),
-    "description": (TEXT, OPTIONAL),
-    "quantities": (TEXTS, REQUIRED),
-    "carriers": (TEXTS, OPTIONAL),
-    "temperature": (OPERATING_POINTS, REQUIRED),
-    "regions": (table_of(DOPED_REGION), OPTIONAL),
-}
-
 
 # --------------------------------------------------------------------------- checking
 

@@ -443,17 +443,27 @@ class Catalog:
     def scenario_names(self) -> list[str]:
         return sorted(p.stem for p in (self.root / "scenarios").glob("*.toml"))
 
-    def scenario(self, name: str) -> dict:
-        """A verified, schema-checked scenario file from ``datasets/scenarios/``."""
-        from .schema import SCENARIO
+    def scenario(self, name: str):
+        """A verified, checked scenario from ``datasets/scenarios/``: a wafer spec
+        (:class:`matprops.catalogue.spec.Spec`) of invented demonstration data."""
+        from .spec import SpecError, parse_spec
 
         known = self.scenario_names()
         if name not in known:
             raise UnknownNameError(name, known, "among the scenarios")
         path = self.root / "scenarios" / f"{name}.toml"
         data = _parse_toml(path, self.verified_bytes(path))
-        validate(path, data, SCENARIO)
-        return data
+        try:
+            spec = parse_spec(data, path.name)
+        except SpecError as exc:
+            raise DatasetError(
+                path,
+                f"field '{exc.where}' {exc.requirement}"
+                + ("" if exc.received is None else f", got {exc.received!r}"),
+            ) from exc
+        if not spec.invented:
+            raise DatasetError(path, "a bundled scenario must say invented = true")
+        return spec
 
     def table_arrays(self, name: str) -> dict[str, tuple[np.ndarray, str]]:
         """Variables of a verified table as ``{name: (values, UDUNITS units)}``.

@@ -35,8 +35,8 @@ from ..errors import (
     InputError,
     UnitError,
 )
+from ..material.validity import value_names
 from ..outputs import render
-from ..outputs.scenario import scenario_dataset
 from . import own
 
 __all__ = ["main", "parse_grid"]
@@ -91,7 +91,7 @@ def _expand(start: float, stop: float, step: str, option: str, text: str) -> np.
     return values
 
 
-def parse_grid(text: str, option: str = "--temperature", default_units: str = "K"):
+def parse_grid(text: str, option: str = "--temperature", default_units: str | None = "K"):
     """Values of a grid option: ``"-40,25,85 degC"``, ``"250:400:50 K"``,
     ``"1e15:1e19:*10"`` (geometric), ``"1e15:1e19:4/decade"``, ``"3e2 K"``, ``"300"``.
 
@@ -375,20 +375,9 @@ def _cmd_table(args):
         )
     finally:
         progress.close()
-    _note_unused_axes(data)
-    _emit(args, data, render.table_footer(si, [data[v].attrs["quantity"] for v in data.data_vars]))
-
-
-def _note_unused_axes(data):
-    from ..material.tables import AXES
-
-    used = set().union(*(data[v].dims for v in data.data_vars)) if data.data_vars else set()
-    for dim in data.dims:
-        if dim in AXES and dim not in used:
-            print(
-                f"matprops: note: no quantity in this table depends on {AXES[dim].option}",
-                file=sys.stderr,
-            )
+    _emit(
+        args, data, render.table_footer(si, [data[v].attrs["quantity"] for v in value_names(data)])
+    )
 
 
 def _cmd_compare(args):
@@ -398,8 +387,13 @@ def _cmd_compare(args):
     models = [m.strip() for m in args.models.split(",")] if args.models else None
     progress = _Progress()
     try:
-        data = si.compare(
-            args.quantity, models, progress=progress, max_values=_max_values(args), **_grid(args)
+        data = _compare_marked(
+            si,
+            args.quantity,
+            models,
+            progress=progress,
+            max_values=_max_values(args),
+            **_grid(args),
         )
     finally:
         progress.close()
@@ -408,10 +402,34 @@ def _cmd_compare(args):
         for m, c in zip(data.model.values, data.citation.values, strict=True)
     )
     footer += "\n" + render.wrap(
-        "spread = largest minus smallest model value; relative_spread "
-        "= spread / mean absolute value"
+        "spread = (largest - smallest) / mean, in %, over the models valid at the point "
+        "(valid: how many); in files also <name>_spread in the quantity's units"
     )
-    _emit(args, data, footer)
+    if args.output or args.format not in (None, "text"):
+        _emit(args, data, footer)
+        return
+    from ..outputs.export import comparison_text
+
+    sys.stdout.write(comparison_text(data))
+    print(footer)
+
+
+def _compare_marked(si, quantity, models, **grid):
+    """A comparison whose models' validity messages become its marks: each value
+    outside its model's range is starred on screen and dashed in a plot (the
+    <name>_validity flags), so the screen does not also repeat them as warnings; the
+    notes of models left out still show."""
+    reporter = si._report
+
+    def notes_only(message):
+        if str(message).startswith("compare ") and reporter is not None:
+            reporter(message)
+
+    si._report = notes_only
+    try:
+        return si.compare(quantity, models, **grid)
+    finally:
+        si._report = reporter
 
 
 def _cmd_plot(args):
@@ -428,7 +446,7 @@ def _cmd_plot(args):
         models = [m.strip() for m in args.models.split(",")]
         if models == ["all"]:
             models = None
-        data = si.compare(args.quantities[0], models, max_values=_max_values(args), **grid)
+        data = _compare_marked(si, args.quantities[0], models, max_values=_max_values(args), **grid)
     else:
         data = si.table(args.quantities, max_values=_max_values(args), **grid)
     plot(data, args.output, x=args.x, format=args.format, overwrite=args.force)
@@ -486,56 +504,72 @@ def _cmd_release_diff(args):
     if args.json:
         print(json.dumps(diff, indent=1, ensure_ascii=False))
         return
-    print("\n".join(render.release_difference_lines(diff)))
+    print(render.release_difference_text(diff, render.terminal_width()))
 
 
-def _scenario(name: str):
-    """A scenario of the datasets folder by name, read as every data file is: its
-    checksum, its schema, and nowhere outside ``datasets/scenarios/``."""
-    catalog = _catalog()
-    known = catalog.scenario_names()
-    if name not in known:  # (a path such as ../.. is no scenario's name)
-        raise InputError("--scenario", f"one of {', '.join(known) or '(none)'}", repr(name))
-    return catalog.root / "scenarios" / f"{name}.toml", catalog.scenario(name)
+def _cmd_report(args, spec=None):
+    from ..catalogue.spec import read_spec
+    from ..material.silicon import Silicon
+    from ..outputs.report import report
 
-
-def _cmd_demo(args):
-    path, scenario = _scenario(args.scenario)
-    if not scenario.get("invented"):
-        raise InputError("--scenario", "a scenario marked invented = true", path.name)
-    si = _silicon(args)
-    data, skipped = scenario_dataset(si, scenario, path.name)
-    on_screen = not args.output and args.format in (None, "text")
-    if on_screen:
-        print(scenario["title"])
-        print(f"(INVENTED data for demonstration; datasets/scenarios/{path.name})")
-        print(render.wrap(scenario.get("description", "")))
-        print()
-    if args.output and args.output.lower().endswith((".png", ".svg")):
-        from ..outputs.plotting import plot
-
-        plot(data, args.output, x="temperature", overwrite=args.force, title=scenario["title"])
-        print(f"wrote {args.output}")
-        if skipped:
+    _catalog()
+    spec = spec or read_spec(args.spec)
+    models = dict(spec.models)
+    for item in args.model or []:
+        quantity, sep, model_id = item.partition("=")
+        if not sep:
+            raise InputError("--model", "QUANTITY=MODEL_ID", repr(item))
+        models[quantity.strip()] = model_id.strip()
+    si = Silicon(release=args.release or spec.release, models=models, strict=args.strict)
+    si._report = getattr(args, "report", None)  # validity messages: one line each
+    result = report(spec, si)
+    if args.output:
+        written = result.write(
+            args.output,
+            overwrite=args.force,
+            command=args.command_line,
+            **({"provenance": "header"} if args.csv_header else {}),
+        )
+        print("wrote " + " and ".join(str(p) for p in written))
+        if result.skipped:
             print(
-                render.wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
+                render.wrap("note: not in this release, left out: " + ", ".join(result.skipped)),
                 file=sys.stderr,
             )
         return
-    names = [data[v].attrs["quantity"] for v in data.data_vars]
-    footer = render.table_footer(si, list(dict.fromkeys(names)))
-    if skipped:
-        footer += "\n" + render.wrap("not yet in this release, skipped: " + ", ".join(skipped))
-    if on_screen:
-        print(render.scenario_text(data, scenario))
-        print(footer)
-        return
-    _emit(args, data, footer)
-    if not on_screen and skipped:
-        print(
-            render.wrap("note: not yet in this release, skipped: " + ", ".join(skipped)),
-            file=sys.stderr,
+    from ..outputs.export import terminal_width
+
+    print(result.text(terminal_width()))
+
+
+def _cmd_demo(args):
+    catalog = _catalog()
+    known = catalog.scenario_names()
+    if args.scenario not in known:  # (a path such as ../.. is no scenario's name)
+        raise InputError(
+            "--scenario", f"one of {', '.join(known) or '(none)'}", repr(args.scenario)
         )
+    _cmd_report(args, catalog.scenario(args.scenario))
+
+
+def _cmd_explain(args):
+    from ..outputs.export import terminal_width
+
+    si = _silicon(args)
+    inputs = {}
+    for name, values in _grid(args).items():
+        if isinstance(values, list):  # a category: one name
+            if len(values) != 1:
+                raise InputError(name, "one value (explain traces one point)", ",".join(values))
+            values = values[0]
+        elif getattr(values, "size", np.size(values)) != 1:
+            raise InputError(name, "one value (explain traces one point)", f"{np.size(values)}")
+        elif hasattr(values, "units"):
+            values = values.reshape(())
+        else:
+            values = float(np.ravel(values)[0])
+        inputs[name] = values
+    print(si.explain(args.quantity, **inputs).text(terminal_width()))
 
 
 def _cmd_models(args):
@@ -583,7 +617,7 @@ def build_parser() -> argparse.ArgumentParser:
         dest="command", required=True, metavar="COMMAND", parser_class=_Parser
     )
 
-    material = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+    material = _Parser(add_help=False, allow_abbrev=False)  # parents: their options only
     material.add_argument("--release", help="release id (default: newest)")
     material.add_argument(
         "--model",
@@ -598,7 +632,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     own.add_options(material)  # --catalogue, --seals
 
-    grid = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+    grid = _Parser(add_help=False, allow_abbrev=False)  # parents: their options only
     group = grid.add_argument_group("grid (" + _GRID_HELP + ")")
     for ax in AXES.values():
         flags = [ax.option]
@@ -620,7 +654,7 @@ def build_parser() -> argparse.ArgumentParser:
         "print more than ~1 GB without asking",
     )
 
-    output = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+    output = _Parser(add_help=False, allow_abbrev=False)  # parents: their options only
     out = output.add_argument_group("output")
     out.add_argument(
         "-o",
@@ -706,6 +740,15 @@ def build_parser() -> argparse.ArgumentParser:
     )
     describe.set_defaults(run=_cmd_describe)
 
+    explain = commands.add_parser(
+        "explain",
+        parents=[material, grid],
+        help="the chain behind one value: inputs, every intermediate quantity with its "
+        "model, coefficients and conventions, the result (one value per option)",
+    )
+    explain.add_argument("quantity", metavar="QUANTITY")
+    explain.set_defaults(run=_cmd_explain)
+
     prov = commands.add_parser(
         "provenance", parents=[material], help="where a quantity's numbers come from"
     )
@@ -721,15 +764,40 @@ def build_parser() -> argparse.ArgumentParser:
     diff.add_argument("--json", action="store_true")
     diff.set_defaults(run=_cmd_release_diff)
 
+    files = _Parser(add_help=False, allow_abbrev=False)  # parents: their options only
+    written = files.add_argument_group("output")
+    written.add_argument(
+        "-o",
+        "--output",
+        metavar="FILE",
+        help="write the report: .nc (netCDF), .csv (+ FILE.provenance.json), .json, or a "
+        "plot: .png, .svg; refused if it exists unless --force",
+    )
+    written.add_argument(
+        "--csv-header",
+        action="store_true",
+        help="CSV: provenance as '#' lines above the header",
+    )
+    written.add_argument("--force", action="store_true", help="replace an existing file")
+
+    rep = commands.add_parser(
+        "report",
+        parents=[material, files],
+        help="a report from your own wafer spec (TOML): your wafer and layers at your "
+        "operating points",
+    )
+    rep.add_argument("spec", metavar="SPEC.toml", help="the wafer spec (see the analyst's guide)")
+    rep.set_defaults(run=_cmd_report)
+
     demo = commands.add_parser(
         "demo",
-        parents=[material, output],
-        help="tables for the bundled, INVENTED scenario (-o also takes .png or .svg: a plot)",
+        parents=[material, files],
+        help="the report of the bundled, INVENTED scenario (a wafer spec like yours)",
     )
     demo.add_argument(
         "--scenario",
         default="two-site-modules",
-        help="scenario file in datasets/scenarios (default: %(default)s)",
+        help="scenario in datasets/scenarios (default: %(default)s)",
     )
     demo.set_defaults(run=_cmd_demo)
 

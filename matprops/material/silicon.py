@@ -424,6 +424,17 @@ class Silicon(
 
         return compare(self, quantity, models, **grid)
 
+    def explain(self, quantity, **inputs):
+        """The chain behind one value: inputs as given and converted, every intermediate
+        quantity with its value, units, model, coefficients and the conventions applied,
+        and the value; ``print()`` it. See :mod:`matprops.material.trace`.
+
+        ``si.explain("resistivity", T="23 degC", Na=1.2e16)``
+        """
+        from .trace import explain
+
+        return explain(self, quantity, **inputs)
+
     def __repr__(self) -> str:
         chosen = ", ".join(
             f"{q}={m.id}{'*' if q in self.overridden else ''}" for q, m in self._models.items()

@@ -38,10 +38,12 @@ import numpy as np
 from .. import vocabulary
 from ..errors import (
     InputError,
+    SkippedModelWarning,
     UnknownModelError,
     UnknownQuantityError,
+    warn,
 )
-from ..units import cf_units, parse, to_magnitude
+from ..units import NEEDS_UNIT, cf_units, parse, to_magnitude
 from ..units import name as check_name
 from ..units import names as check_names
 from .registry import REGISTRY, Quantity
@@ -279,6 +281,28 @@ def _select(si, grid: _Grid, quantities) -> list[Tabulated]:
     return entries
 
 
+def _refuse_or_drop_unused(grid: _Grid, entries: list[Tabulated], named: bool) -> None:
+    """An axis no quantity of the table depends on is refused when the quantities were
+    named (it would show beside values it did not affect), dropped when they were
+    chosen from the axes."""
+    used = set().union(*(e.takes for e in entries))
+    unused = [name for name in grid.values if name not in used]
+    if not unused:
+        return
+    if named:
+        depends = "; ".join(f"{e.name} on {', '.join(e.takes) or 'nothing'}" for e in entries)
+        raise InputError(
+            unused[0],
+            f"left out: no quantity asked for depends on it ({depends})",
+            "a value",
+        )
+    for name in unused:
+        del grid.values[name]
+        grid.requested.pop(name, None)
+        if name in grid.dims:
+            grid.dims.remove(name)
+
+
 def _axis_hint(ax: Axis) -> str:
     if ax.category:
         if not ax.choices:
@@ -319,6 +343,10 @@ def _call_block(si, entry: Tabulated, values: Mapping[str, np.ndarray], dims: li
                 arguments[name] = _shape(vals, numeric.index(name), len(numeric))
             else:
                 arguments[name] = str(vals.item()) if AXES[name].category else vals.item()
+            if name in NEEDS_UNIT:  # the method takes it only with its unit
+                from ..units import Q_
+
+                arguments[name] = Q_(arguments[name], AXES[name].units)
         result = entry.call(si, arguments)
         if isinstance(result, tuple):
             parts = result
@@ -590,6 +618,7 @@ def table(
 
     grid = _Grid(axes, si.catalog)
     entries = _select(si, grid, quantities)
+    _refuse_or_drop_unused(grid, entries, named=quantities is not None)
     eager = [e for e in entries if chunks is None or not grid.dims_of(e)]
     if uncertainty:
         check_size(grid, eager, max_values, 3, "parts: value, uncertainty and model spread")
@@ -633,6 +662,7 @@ def table(
         from .uncertainty import table_figures
 
         data = table_figures(si, data, entries, grid, _call_block, samples=samples, seed=seed)
+    data = _with_validity(si, data, entries)
     names = [e.name for e in entries]
     data.attrs.update(
         {
@@ -653,6 +683,30 @@ def table(
         }
     )
     return data
+
+
+def _with_validity(si, data, entries):
+    """Each variable with its ``<name>_validity`` flags (see :mod:`.validity`)."""
+    from .validity import attributes, flags
+
+    extra = {}
+    for entry in entries:
+        coords = {c: data[c] for c in data.coords if c in entry.takes}
+        for variable, long_name in entry.outputs:
+            flag, left = flags(
+                si,
+                entry.model_quantities(),
+                data[variable],
+                data[variable].dims,
+                coords,
+                entry.name,
+            )
+            extra[f"{variable}_validity"] = flag.assign_attrs(
+                attributes(variable, long_name, left, entry.name)
+            )
+            linked = data[variable].attrs.get("ancillary_variables", "")
+            data[variable].attrs["ancillary_variables"] = f"{linked} {variable}_validity".strip()
+    return data.assign(extra)
 
 
 def values_in(grid: _Grid, entries, copies: int = 1) -> int:
@@ -710,6 +764,49 @@ def _overrides(si) -> dict[str, str]:
     return {q: m for q, m in si.models.items() if q in si.overridden}
 
 
+def _compare_one(variant, quantity, chunks, progress, axes):
+    """One model's table for a comparison -> (table or None, note).
+
+    A model with no coefficients for a carrier or species asked for (an electrons-only
+    mobility) gives NaN there (flag 2, no value) and a note; with none of them, None."""
+    from ..errors import UnknownVariantError
+
+    try:
+        return (
+            table(variant, [quantity], chunks=chunks, progress=progress, max_values=None, **axes),
+            "",
+        )
+    except UnknownVariantError as exc:
+        missing = exc
+    grid = _Grid(axes, variant.catalog)
+    category = next(
+        (d for d in ("carrier", "dopant") if d in grid and missing.name in grid.values[d]), None
+    )
+    covered = [str(v) for v in missing.known]
+    note = f"has no {missing.kind} {missing.name!r} (covers {', '.join(covered)})"
+    if category is None or grid.values[category].ndim == 0:
+        return None, f"skipped: {note}"
+    asked = [str(v) for v in grid.values[category]]
+    inside = [v for v in asked if v in covered]
+    if not inside:
+        return None, f"skipped: {note}"
+    given = {k: v for k, v in axes.items() if axis(k).name != category}
+    part = table(
+        variant,
+        [quantity],
+        chunks=chunks,
+        progress=progress,
+        max_values=None,
+        **given,
+        **{category: inside},
+    )
+    filled = part.reindex({category: asked})
+    for name in [n for n in filled.data_vars if n.endswith("_validity")]:
+        filled[name] = filled[name].fillna(2).astype(np.int8).assign_attrs(part[name].attrs)
+    filled[category].attrs.update(part[category].attrs)
+    return filled, f"{note}: NaN there"
+
+
 def compare(
     si,
     quantity: str,
@@ -757,13 +854,31 @@ def compare(
     if chunks is None:  # every model's table, before any is evaluated
         grid = _Grid(axes, si.catalog)
         check_size(grid, [QUANTITIES[quantity]], max_values, len(ids), "models")
-    parts, citations, provenance = [], [], {}
+    parts, citations, provenance, skipped, kept = [], [], {}, {}, []
     for model_id in ids:
         variant = si._sibling({**_overrides(si), quantity: model_id})
-        data = table(variant, [quantity], chunks=chunks, progress=progress, max_values=None, **axes)
+        data, note = _compare_one(variant, quantity, chunks, progress, axes)
+        if note:
+            skipped[model_id] = note
+        if data is None:
+            continue
+        kept.append(model_id)
         parts.append(data)
         citations.append(variant.model(quantity).source.citation())
         provenance[model_id] = variant.provenance(quantity)
+    if not parts:
+        raise InputError(
+            "models",
+            f"models of {quantity} that cover the grid asked for",
+            "; ".join(f"{m}: {n}" for m, n in skipped.items()),
+        )
+    for model_id, note in skipped.items():
+        message = f"compare {quantity}: {model_id} {note}"
+        if getattr(si, "_report", None) is not None:  # the application's reporter
+            si._report(message)
+        else:
+            warn(message, SkippedModelWarning)
+    ids = kept
     combined = xr.concat(
         parts,
         dim="model",
@@ -781,34 +896,49 @@ def compare(
         variable.attrs.update(
             {"model": ", ".join(ids), "provenance": json.dumps(provenance, ensure_ascii=False)}
         )
-        # NaN (a table model without data there) is skipped; a point where every
-        # model is NaN stays NaN (written without nanmax, which warns there)
-        known = variable.notnull()
-        count = known.sum("model")
+        # only the models inside their validity range at a point count there; NaN (a
+        # table model without data) is skipped, a point with no valid model stays NaN
+        # (written without nanmax, which warns there)
+        valid = variable.where(combined[f"{name}_validity"] == 0)
+        count = valid.notnull().sum("model")
         anywhere = count > 0
-        high = variable.fillna(-np.inf).max("model").where(anywhere)
-        low = variable.fillna(np.inf).min("model").where(anywhere)
+        high = valid.fillna(-np.inf).max("model").where(anywhere)
+        low = valid.fillna(np.inf).min("model").where(anywhere)
         spread = high - low
-        scale = abs(variable).fillna(0.0).sum("model") / count.where(anywhere)
+        scale = abs(valid).fillna(0.0).sum("model") / count.where(anywhere)
         relative = spread / scale.where(scale != 0)
+        count = count.astype(np.int16)
         combined[f"{name}_spread"] = spread.assign_attrs(
             {
                 "units": variable.attrs["units"],
-                "long_name": f"spread (largest minus smallest) across models of: "
-                f"{variable.attrs['long_name']}",
+                "long_name": f"spread (largest minus smallest) across the models valid "
+                f"at the point: {variable.attrs['long_name']}",
                 "quantity": quantity,
+                "comment": "models outside their validity range at a point (flag 1) or "
+                "without a value there (flag 2) are left out; NaN where no model is valid",
             }
         )
         combined[f"{name}_relative_spread"] = relative.assign_attrs(
             {
                 "units": "1",
-                "long_name": f"spread across models over their mean absolute "
-                f"value: {variable.attrs['long_name']}",
+                "long_name": f"spread across the models valid at the point over their "
+                f"mean absolute value: {variable.attrs['long_name']}",
+                "quantity": quantity,
+            }
+        )
+        count.attrs = {}  # not flags: a count
+        combined[f"{name}_valid_models"] = count.assign_attrs(
+            {
+                "units": "1",
+                "long_name": f"number of models valid at the point: {variable.attrs['long_name']}",
                 "quantity": quantity,
             }
         )
     from .._version import __version__
 
+    combined.attrs["default_model"] = si.models.get(quantity, "")  # the material's choice
+    if skipped:
+        combined.attrs["skipped_models"] = "; ".join(f"{m}: {n}" for m, n in skipped.items())
     combined.attrs.update(
         {
             "title": f"Models of {quantity} compared (matprops)",

@@ -1,6 +1,7 @@
 """What changed between two releases: their model choices, and the largest deviation
 of each quantity on the releases' standard reference grid
-(:data:`matprops.outputs.reference.CASES`).
+(:data:`matprops.outputs.reference.CASES`); the screen's text of it is
+:func:`matprops.outputs.render.release_difference_text`.
 
     matprops release-diff 2026.1 2026.2
 """

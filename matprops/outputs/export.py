@@ -37,6 +37,7 @@ import numpy as np
 
 from ..catalogue import files
 from ..errors import InputError
+from ..material.validity import flag_of
 
 __all__ = [
     "FORMATS",
@@ -51,6 +52,11 @@ __all__ = [
 ]
 
 FORMATS = ("netcdf", "csv", "json")
+MARK = "*"  # on screen: a value outside a model's validity range
+LEGEND = (
+    f"{MARK} outside the validity range of a model behind the value (an extrapolation); "
+    "files carry the flags as <name>_validity"
+)
 _SUFFIXES = {".nc": "netcdf", ".nc4": "netcdf", ".csv": "csv", ".json": "json"}
 LAYOUTS = ("long", "wide")
 
@@ -285,28 +291,38 @@ def write(
 # bytes per value of each format, as written here (netCDF: float64; CSV: "%.10g" and a
 # comma; JSON: indented one value per line; text: a column of at least 10 and 2 spaces)
 _BYTES_PER_VALUE = {"netcdf": 8, "csv": 17, "json": 24, "text": 14}
+_BYTES_PER_FLAG = {"netcdf": 1, "csv": 2, "json": 4, "text": 1}
 
 
 def estimate_size(data, format: str, layout: str = "long") -> int:
     """An estimate of the bytes a table takes in ``format`` ("netcdf", "csv", "json" or
     "text"), from its shape alone (a lazy table is not computed)."""
+    from ..material.validity import is_flag
+
     per_value = _BYTES_PER_VALUE.get(format, 17)
+    per_flag = _BYTES_PER_FLAG.get(format, 2)  # validity flags: one digit (int8)
+    flags = [v for v in data.data_vars.values() if is_flag(v)]
     if format in ("netcdf", "json"):
-        count = sum(v.size for v in data.variables.values())
-        return per_value * count + sum(len(str(v)) for v in data.attrs.values())
+        count = sum(v.size for v in data.variables.values()) - sum(v.size for v in flags)
+        return (
+            per_value * count
+            + per_flag * sum(v.size for v in flags)
+            + sum(len(str(v)) for v in data.attrs.values())
+        )
     dims = list(data.dims)
     rows = math.prod(data.sizes[d] for d in dims) if dims else 1
     if layout == "wide" and dims:
-        count = sum(v.size for v in data.data_vars.values()) + 2 * data.sizes[dims[0]]
-    else:
-        columns = (
-            len(dims)
-            + len(data.data_vars)
-            + sum(1 for c in data.coords if c not in data.dims)
-            + ("temperature" in dims)
-        )
-        count = rows * columns
-    return per_value * count
+        count = sum(v.size for v in data.data_vars.values() if not is_flag(v))
+        count += 2 * data.sizes[dims[0]]
+        return per_value * count + per_flag * sum(v.size for v in flags)
+    columns = (
+        len(dims)
+        + len(data.data_vars)
+        - len(flags)
+        + sum(1 for c in data.coords if c not in data.dims)
+        + ("temperature" in dims)
+    )
+    return per_value * rows * columns + per_flag * rows * len(flags)
 
 
 def stamp(data, command: str | None = None):
@@ -393,7 +409,7 @@ def frame(data, layout: str = "long"):
     else:
         long = pd.DataFrame({n: [v.item()] for n, v in table.variables.items()})
     order = dims + [c for c in table.coords if c not in dims] + list(table.data_vars)
-    columns, axis_columns = {}, 0
+    columns, axis_columns, flagged = {}, 0, {}
     for name in order:
         if name not in long.columns:
             continue
@@ -403,8 +419,12 @@ def frame(data, layout: str = "long"):
             columns[_heading(data, name)] = long[name].to_numpy()
         if name in table.coords:
             axis_columns = len(columns)
+        flag = flag_of(data, name) if name in data.data_vars else None
+        if flag is not None:
+            flagged[_heading(data, name)] = _heading(data, flag.name)
     result = pd.DataFrame(columns)
     result.attrs["axis_columns"] = axis_columns
+    result.attrs["flags"] = flagged  # value column -> its validity flag column
     return result
 
 
@@ -428,6 +448,7 @@ def _wide_frame(data, dims):
         elif data[name].dims == (row,):
             columns[_heading(data, name)] = data[name].values
     axis_columns = len(columns)
+    flagged = {}
     for name, variable in data.data_vars.items():
         if row not in variable.dims:
             variable = variable.expand_dims({row: index.size})
@@ -435,11 +456,16 @@ def _wide_frame(data, dims):
         variable = variable.transpose(row, *others)
         values = variable.values.reshape(index.size, -1)
         labels = list(itertools.product(*(data[d].values for d in others)))
+        flag = flag_of(data, name)
         for k, label in enumerate(labels):
             where = ", ".join(_point(data, d, v) for d, v in zip(others, label, strict=True))
-            columns[_heading(data, name) + (f" at {where}" if where else "")] = values[:, k]
+            at = f" at {where}" if where else ""
+            columns[_heading(data, name) + at] = values[:, k]
+            if flag is not None:
+                flagged[_heading(data, name) + at] = _heading(data, flag.name) + at
     result = pd.DataFrame(columns)
     result.attrs["axis_columns"] = axis_columns
+    result.attrs["flags"] = flagged
     return result
 
 
@@ -553,6 +579,14 @@ def terminal_width() -> int:
 
 def _split_heading(heading: str, width: int) -> list[str]:
     name, _, units = heading.partition(" [")
+    if units:  # the screen prints units as a report does: cm⁻³, cm²/(V·s), °C
+        from ..units import pretty_units
+
+        inner, _, rest = units.partition("]")
+        try:
+            units = (pretty_units(inner) or "1") + "]" + rest
+        except Exception:  # a unit pint does not know stays as written
+            pass
     lines, line = [], ""
     for piece in name.replace("_", "_\0").split("\0"):
         if line and len(line) + len(piece) > width:
@@ -573,15 +607,22 @@ def to_text(data, width: int | None = None, layout: str = "long") -> str:
     table = frame(data, layout)
     if table.empty:
         return "(empty table)"
-    headings = list(table.columns)
+    flagged = table.attrs.get("flags", {})
+    flag_columns = set(flagged.values())
+    headings = [h for h in table.columns if h not in flag_columns]
     axis_count = min(table.attrs.get("axis_columns", 0), len(headings) - 1)
     cells, widths, heads = [], [], []
+    marked = False
     for heading in headings:
         values = table[heading].to_numpy()
         if values.dtype.kind == "f":
             texts = [f"{v:.6g}" for v in values]
         else:
             texts = [str(v) for v in values]
+        if heading in flagged:  # an extrapolated value shows with a star
+            marks = table[flagged[heading]].to_numpy()
+            texts = [t + MARK if m == 1 else t for t, m in zip(texts, marks, strict=True)]
+            marked = marked or bool(np.any(marks == 1))
         head = _split_heading(heading, 16)
         heads.append(head)
         widths.append(max(10, max(map(len, head)), max(map(len, texts))))
@@ -615,4 +656,39 @@ def to_text(data, width: int | None = None, layout: str = "long") -> str:
         for r in range(len(table)):
             out.append("  ".join(cells[i][r].rjust(widths[i]) for i in columns))
         out.append("")
+    if marked:
+        import textwrap
+
+        out.append(textwrap.fill(LEGEND, width, subsequent_indent="  "))
     return "\n".join(out).rstrip() + "\n"
+
+
+def comparison_text(data, width: int | None = None) -> str:
+    """A model comparison for the screen: one row per grid point, one column per model
+    (extrapolated values starred, missing ones NaN), then the spread across the models
+    valid at that point, once, and how many they are."""
+    import xarray as xr
+
+    from ..material.validity import attributes, flag_of
+
+    blocks = []
+    quantities = [
+        n for n in data.data_vars if "model" in data[n].dims and flag_of(data, n) is not None
+    ]
+    for name in quantities:
+        variable, flag = data[name], flag_of(data, name)
+        units = variable.attrs.get("units", "")
+        columns = {}
+        for model in data["model"].values:
+            key = str(model)
+            values = variable.sel(model=model, drop=True).drop_vars("citation", errors="ignore")
+            flags = flag.sel(model=model, drop=True).drop_vars("citation", errors="ignore")
+            columns[key] = values.assign_attrs(units=units, ancillary_variables=f"{key}_validity")
+            columns[f"{key}_validity"] = flags.assign_attrs(attributes(key, key, []))
+        spread = data[f"{name}_relative_spread"] * 100
+        columns["spread"] = spread.assign_attrs(units="%")
+        columns["valid"] = data[f"{name}_valid_models"].assign_attrs(units="")
+        table = xr.Dataset(columns).drop_vars("citation", errors="ignore")
+        heading = f"{name} [{units}] by model" if len(quantities) > 1 else ""
+        blocks.append((heading + "\n" if heading else "") + to_text(table, width))
+    return "\n".join(blocks)

@@ -285,6 +285,17 @@ def _differs(new, old, rtol, energy_scale) -> tuple[bool, float]:
 # --------------------------------------------------------------------------- evaluation
 
 
+def _with_units(fixed: dict) -> dict:
+    """Stored inputs in internal units; the lengths the public API takes only with a
+    unit (thickness, stored in cm) get theirs."""
+    from ..units import ARGUMENTS, NEEDS_UNIT, Q_
+
+    return {
+        k: Q_(v, ARGUMENTS[k][0]) if k in NEEDS_UNIT and not isinstance(v, str) else v
+        for k, v in fixed.items()
+    }
+
+
 def _evaluate_cases(si, cases) -> dict:
     from ..material.results import Result
 
@@ -296,7 +307,7 @@ def _evaluate_cases(si, cases) -> dict:
         arguments = {n: a.ravel() for n, a in zip(names, arrays, strict=True)}
         record = {"method": method, "fixed": fixed, "grid": grid}
         try:
-            result = getattr(si, method)(**fixed, **arguments)
+            result = getattr(si, method)(**_with_units(fixed), **arguments)
         except Error as exc:  # a model that does not cover a case (a carrier, a species)
             record["error"] = type(exc).__name__
             evaluated[label] = record

@@ -8,7 +8,9 @@ here, never in the command itself (which only parses and prints):
   ``"line"`` (``matprops models``), ``"brief"`` (inside ``matprops provenance``),
   ``"full"`` (``matprops describe``) and ``"markdown"`` (``docs/models.md``);
 - :func:`provenance_lines` — a quantity's provenance, derived ones with their parts;
-- :func:`table_footer`, :func:`release_difference_lines`, :func:`scenario_text`.
+- :func:`table_footer`, :func:`release_difference_text`; the report, explain and
+  comparison screens are rendered beside their results (:mod:`.report`,
+  :mod:`.explain`, :func:`.export.comparison_text`).
 
 Every function returns text (or lines); none prints, reads files or evaluates a model.
 """
@@ -24,8 +26,7 @@ __all__ = [
     "model_record",
     "one_line",
     "provenance_lines",
-    "release_difference_lines",
-    "scenario_text",
+    "release_difference_text",
     "table_footer",
     "wrap",
 ]
@@ -263,90 +264,71 @@ def table_footer(si, names) -> str:
 # --------------------------------------------------------------------------- releases
 
 
-def release_difference_lines(diff: dict) -> list[str]:
-    """``matprops release-diff``: the models that changed and the largest deviations."""
+def _pretty_units(units: str) -> str:
+    from ..units import pretty_units
+
+    try:
+        return pretty_units(units.replace(" ** ", "^").replace("Ω", "ohm"))
+    except Exception:  # a unit pint does not read stays as written
+        return units
+
+
+def release_difference_text(diff: dict, width: int = 100) -> str:
+    """What changed, for the screen: the models whose id or file changed and the
+    cases of the reference grid whose numbers moved; "identical" when nothing did."""
+
+    def wrap(text, indent="  "):
+        return textwrap.fill(text, width, initial_indent=indent, subsequent_indent=indent + "  ")
+
     old, new = diff["old"], diff["new"]
-    lines = [f"models: release {old} -> {new}"]
-    for record in diff["models"]:
-        mark = "changed" if record["changed"] else "same"
-        lines.append(
-            f"  {record['quantity']:24s} {record['old']!s:24s} -> {record['new']!s:24s} {mark}"
+    changed = [r for r in diff["models"] if r["changed"]]
+    moved = [
+        r
+        for r in diff["deviations"]
+        if (r["largest_relative"] is None and r.get("note"))
+        or (r["largest_relative"] or 0) > 0
+        or (r["largest_absolute"] or 0) > 0
+    ]
+    defaults = diff.get("defaults", [])
+    if not changed and not moved and not defaults:
+        return (
+            f"releases {old} and {new} are identical: the same models (ids and files) and "
+            f"the same numbers on the standard reference grid ({len(diff['deviations'])} cases)"
         )
-    for record in diff.get("defaults", []):
-        lines.append(
-            f"  default of {record['option']}: {record['old'] or 'physics'} -> "
-            f"{record['new'] or 'physics'}"
+    out = [f"release {old} -> {new}"]
+    if changed:
+        out.append(f"models changed ({len(changed)} of {len(diff['models'])}):")
+        for r in changed:
+            what = "file changed" if r["old"] == r["new"] else f"{r['old']} -> {r['new']}"
+            out.append(f"  {r['quantity']:24s} {what}")
+    else:
+        out.append("models: the same ids and files")
+    for r in defaults:
+        out.append(f"default of {r['option']}: {r['old'] or 'physics'} -> {r['new'] or 'physics'}")
+    same = len(diff["deviations"]) - len(moved)
+    if moved:
+        out.append(
+            f"numbers that moved on the standard reference grid ({len(moved)} cases; "
+            f"{same} unchanged), largest relative change |new/old - 1|:"
         )
-    lines.append(f"\nlargest deviation on the standard reference grid ({new} against {old}):")
-    for record in diff["deviations"]:
-        if record["largest_relative"] is None:
-            detail = record.get("note", "no finite values to compare")
-        else:
+        for r in sorted(moved, key=lambda r: -(r["largest_relative"] or 0)):
+            if r["largest_relative"] is None:
+                out.append(wrap(f"{r['case']}: {r['note']}"))
+                continue
             at = ", ".join(
                 f"{k}={v:g}" if isinstance(v, float) else f"{k}={v}"
-                for k, v in (record["at"] or {}).items()
+                for k, v in (r["at"] or {}).items()
             )
-            detail = (
-                f"{100 * record['largest_relative']:.3g} % "
-                f"({record['largest_absolute']:.3g} {record['units']})"
-                + (f" at {at}" if at else "")
-            )
-        lines.append(wrap(f"{record['case']:28s} {detail}", "  "))
-    if "notes" in diff:
-        lines.append(f"\nnotes of {new} (each change with its size at standard points):")
-        lines += ["  " + line for line in diff["notes"].splitlines()]
-    return lines
-
-
-# --------------------------------------------------------------------------- scenarios
-
-
-def scenario_text(data, scenario: dict) -> str:
-    """A scenario's table for the screen, one block per site: operating points across
-    (at most ~80 columns), quantities down; doping-dependent rows per region."""
-    from ..units import Q_
-
-    units = scenario["temperature"]["units"]
-    labels = [str(v) for v in data["operating_point"].values]
-    sites = list(dict.fromkeys(label.split(": ")[0] for label in labels))
-    regions = list(data["region"].values) if "region" in data.dims else []
-
-    def row(name, values):
-        cells = "".join(f" {v:>11.4g}" if isinstance(v, float) else f" {v:>11}" for v in values)
-        return f"{name[:36]:<36}{cells}"
-
-    def rows_for(columns, region=None):
-        lines = []
-        for variable in data.data_vars:
-            array = data[variable]
-            if ("region" in array.dims) != (region is not None):
-                continue
-            if region is not None:
-                array = array.sel(region=region)
-            unit = array.attrs.get("units", "")
-            extra = [d for d in array.dims if d != "temperature"]
-            picks = [{}] if not extra else [{extra[0]: value} for value in data[extra[0]].values]
-            for pick in picks:
-                selected = array.sel(pick) if pick else array
-                suffix = f" ({next(iter(pick.values()))})" if pick else ""
-                values = [float(selected.values[i]) for i in columns]
-                lines.append(row(f"{variable}{suffix} [{unit}]", values))
-        return lines
-
-    out = []
-    for site in sites:
-        columns = [i for i, label in enumerate(labels) if label.startswith(site + ":")]
-        out.append(f"== {site} (invented) ==")
-        out.append(row("operating point", [labels[i].split(": ")[1] for i in columns]))
-        shown = Q_(data["temperature"].values, "K").to(units).magnitude
-        out.append(row(f"temperature [{units}]", [float(shown[i]) for i in columns]))
-        out.extend(rows_for(columns))
-        for region in regions:
-            spec = scenario["regions"][str(region)]
             out.append(
-                f"-- {region}: {spec.get('note', '')} (Na {spec['acceptor_density']:g},"
-                f" Nd {spec['donor_density']:g} {spec['units']})"
+                wrap(
+                    f"{r['case']}: {100 * r['largest_relative']:.3g} % "
+                    f"({r['largest_absolute']:.3g} {_pretty_units(r['units'])})"
+                    + (f" at {at}" if at else "")
+                )
             )
-            out.extend(rows_for(columns, region))
-        out.append("")
+    else:
+        out.append(f"numbers: identical on the standard reference grid ({same} cases)")
+    if diff.get("notes"):
+        out.append(f"notes of {new} (each change with its size at standard points):")
+        out += ["  " + line for line in str(diff["notes"]).strip().splitlines()]
     return "\n".join(out)

@@ -32,7 +32,7 @@ def test_table_with_celsius_and_a_space_before_a_negative_value(capsys):
         capsys, "table", "band_gap", "intrinsic_density", "--temperature", "-40,25,85degC"
     )
     assert code == 0, err
-    assert "298.15" in out and "[degC]" in out and "couderc-2014" in out
+    assert "298.15" in out and "[°C]" in out and "couderc-2014" in out
     assert "-40" in out.splitlines()[4]  # echoed in the unit asked
     code, out, _ = run(capsys, "table", "band_gap", "-t", "-40.5degC")
     assert code == 0 and "232.65" in out
@@ -186,7 +186,7 @@ def test_export_netcdf_and_csv(capsys, tmp_path):
     assert main(["table", "-t", "250:350:50 K", "-o", str(nc)]) == 0
     with xr.open_dataset(nc) as data:
         assert data.attrs["Conventions"] == "CF-1.11"
-        assert data["intrinsic_density"].attrs["units"] == "cm-3"
+        assert data["intrinsic_density"].attrs["units"] == "cm^-3"
         assert data["band_gap"].attrs["model"] == "passler-2002"
         assert data.temperature.attrs["units_metadata"] == "temperature: on_scale"
         assert "matprops table -t '250:350:50 K' -o" in data.attrs["history"]
@@ -205,7 +205,12 @@ def test_csv_and_json_on_stdout(capsys):
     code, out, _ = run(capsys, "table", "band_gap", "-t", "25,85degC", "--format", "csv")
     assert code == 0
     frame = pd.read_csv(io.StringIO(out))
-    assert list(frame.columns) == ["temperature [degC]", "temperature [K]", "band_gap [eV]"]
+    assert list(frame.columns) == [
+        "temperature [degC]",
+        "temperature [K]",
+        "band_gap [eV]",
+        "band_gap_validity",
+    ]
     code, out, _ = run(capsys, "table", "band_gap", "-t", "300", "--format", "json")
     document = json.loads(out)
     assert document["data_vars"]["band_gap"]["attrs"]["provenance"]["model"] == "passler-2002"
@@ -228,9 +233,10 @@ def test_doping_and_carrier_axes_on_the_command_line(capsys):
     )
     assert code == 0, err
     frame = pd.read_csv(io.StringIO(out))
-    assert list(frame["electron_density [cm-3]"]) == [1e14, 1e15, 1e16]
+    assert list(frame["electron_density [cm^-3]"]) == [1e14, 1e15, 1e16]
     code, _, err = run(capsys, "table", "band_gap", "-t", "300", "--Nd", "1e15,1e16")
-    assert code == 0 and "no quantity in this table depends on --donor-density" in err
+    assert code == 2 and len(err.splitlines()) == 1
+    assert "option --donor-density must be left out" in err and "band_gap on temperature" in err
 
 
 def test_provenance_is_readable_by_default_and_json_on_request(capsys):
@@ -278,10 +284,14 @@ def test_release_diff_command(capsys, datasets_copy, monkeypatch):
         monkeypatch.delenv("MATPROPS_DATASETS")
         default_catalog.cache_clear()
     assert code == 0
-    assert "passler-2002" in out and "alex-1996" in out and "changed" in out
-    deviations = out.split("largest deviation")[1]
-    line = next(line for line in deviations.splitlines() if line.strip().startswith("band_gap "))
+    assert "passler-2002 -> alex-1996" in out and "models changed (" in out
+    deviations = out.split("numbers that moved")[1]
+    line = next(line for line in deviations.splitlines() if line.strip().startswith("band_gap:"))
     assert "%" in line and "temperature=" in line
+    assert " 0 %" not in out  # only what changed is listed
+    # a release against itself: one line
+    code, out, _ = run(capsys, "release-diff", "2026.1", "2026.1")
+    assert code == 0 and out.strip().splitlines() == [out.strip()] and "identical" in out
 
 
 def test_demo_uses_the_invented_two_site_scenario(capsys, tmp_path):
@@ -294,35 +304,29 @@ def test_demo_uses_the_invented_two_site_scenario(capsys, tmp_path):
         assert main(["demo", "-o", str(path)]) == 0
         assert path.stat().st_size > 0
     with xr.open_dataset(tmp_path / "demo.nc") as data:
-        assert "INVENTED" in data.attrs["scenario"]
+        assert "INVENTED" in data.attrs["scenario_note"] and "INVENTED" in data.attrs["title"]
         assert "doi:" in data.attrs["references"]
         assert json.loads(data.band_gap.attrs["provenance"])["model"] == "passler-2002"
     provenance = json.loads((tmp_path / "demo.provenance.json").read_text())
-    assert "INVENTED" in provenance["attrs"]["scenario"]
+    assert "INVENTED" in provenance["attrs"]["scenario_note"]
 
 
-def test_demo_shows_doping_quantities_once_they_exist(capsys, plug_quantity):
-    def fake(self, T, Na=0, Nd=0):  # a stand-in, NOT physics
-        from matprops.units import quantity, to_magnitude
+def test_demo_shows_its_regions_with_their_dopings(tmp_path):
+    import matprops
 
-        t = to_magnitude(T, "temperature")
-        return quantity(
-            t * 0
-            + 1e-20 * (to_magnitude(Na, "acceptor_density") + to_magnitude(Nd, "donor_density")),
-            "eV",
-        )
-
-    plug_quantity(fake, "gap_narrowing", units="eV", long_name="stand-in", models=("band_gap",))
-    code, out, err = run(capsys, "demo", "--format", "csv")
-    assert code == 0, err
-    frame = pd.read_csv(io.StringIO(out))
-    assert set(frame["region"]) == {"base", "emitter"}
+    path = tmp_path / "demo.csv"
+    assert main(["demo", "-o", str(path)]) == 0
+    frame = pd.read_csv(path)
+    assert set(frame["region"]) == {"wafer", "emitter"}
     emitter = frame[frame["region"] == "emitter"]
-    np.testing.assert_allclose(emitter["gap_narrowing [eV]"], 1e-20 * (1.2e16 + 3e19))
-    code, out, _ = run(capsys, "demo")
-    # once every listed quantity is served nothing is skipped; gap_narrowing never is
-    skipped = out.split("skipped")[-1] if "skipped" in out else ""
-    assert "gap_narrowing" not in skipped
+    na = matprops.silicon().doping_from_resistivity(1.2, "23 degC", "boron").m_as("cm^-3")
+    # (the CSV keeps 10 significant digits)
+    np.testing.assert_allclose(emitter["acceptor_density [cm^-3]"], na, rtol=1e-9)  # boron stays
+    np.testing.assert_allclose(emitter["donor_density [cm^-3]"], 3e19)
+    narrowing = matprops.silicon().gap_narrowing(
+        emitter["temperature [K]"].to_numpy(), Na=na, Nd=3e19
+    )
+    np.testing.assert_allclose(emitter["gap_narrowing [eV]"], narrowing.m_as("eV"), rtol=1e-8)
 
 
 def test_progress_bar_only_on_a_terminal():

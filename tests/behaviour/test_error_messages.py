@@ -89,7 +89,8 @@ def test_every_tabulated_method_takes_an_empty_array_for_each_input(name):
         "temperature": 296.0, "acceptor_density": 1e16, "donor_density": 0.0,
         "excess_density": 1e14, "electron_density": 1e16, "hole_density": 1e4,
         "field": 1e3, "resistivity": 1.0, "defect_density": 1e11, "generation": 1e17,
-        "thickness": 0.018, "dopant_density": 1e17, "carrier": "electron", "plane": "100",
+        "thickness": matprops.Q_(0.018, "cm"), "dopant_density": 1e17,
+        "carrier": "electron", "plane": "100",
         "defect": "iron-interstitial", "dopant": "boron",
         "wavelength": 1550.0 if name == "free_carrier_absorption" else 800.0,
     }  # fmt: skip
@@ -97,7 +98,10 @@ def test_every_tabulated_method_takes_an_empty_array_for_each_input(name):
     for axis in entry.takes:
         if AXES[axis].category:
             continue
-        result = entry.call(SI, {**base, axis: np.array([])})
+        empty = np.array([])
+        if axis == "thickness":  # a length needs its unit, even an empty one
+            empty = matprops.Q_(empty, "cm")
+        result = entry.call(SI, {**base, axis: empty})
         parts = result if isinstance(result, tuple) else (result,)
         if entry.fields:
             parts = tuple(getattr(result, f) for f in entry.fields)
@@ -201,7 +205,7 @@ def test_a_steady_state_failure_names_its_points_and_inputs(monkeypatch):
         lambda rate, generation, guess: original(rate, generation, guess, max_iterations=1),
     )
     with pytest.raises(matprops.SolverError) as info:
-        SI.implied_voltage(300.0, [1e16, 1e17], 0.018, Na=1e15)
+        SI.implied_voltage(300.0, [1e16, 1e17], matprops.Q_(0.018, "cm"), Na=1e15)
     message = str(info.value)
     assert message.startswith("implied_voltage: the steady state was not found at 2 point(s)")
     assert "T=300 K, G=1e+16 cm^-2 s^-1, thickness=0.018 cm" in message

@@ -26,9 +26,10 @@ from matprops import export
 # - 2.5.1: valid_min/valid_max/valid_range mean data outside are missing, so a model's
 #   validity domain must not be written there;
 # - 3.4 ancillary_variables name variables of the file.
-# UDUNITS units: space-separated products of symbols with optional integer powers
-# ("cm-3", "cm2 V-1 s-1", "g cm-3"); "1" for dimensionless. "^", "*", "/" and "**"
-# are pint's grammar, not UDUNITS' canonical form.
+# UDUNITS units: space-separated products of symbols with optional integer powers;
+# UDUNITS-2's grammar (its manual, "Unit syntax") writes a power as "cm3", "cm^3" or
+# "cm**3"; matprops writes "cm^-3", "cm^2 V^-1 s^-1" (which pint's default registry
+# also reads, unlike "cm-3"); "1" for dimensionless. "/" and "*" are not used.
 UDUNITS_SYMBOLS = {
     "K",
     "degC",
@@ -48,7 +49,7 @@ UDUNITS_SYMBOLS = {
     "J",
     "%",
 }
-UDUNITS_TOKEN = re.compile(r"^([A-Za-z%]+)(-?\d+)?$")
+UDUNITS_TOKEN = re.compile(r"^([A-Za-z%]+)(\^-?\d+)?$")
 
 
 def udunits_ok(text):
@@ -76,7 +77,12 @@ def cf_problems(path):
             vattrs = var.__dict__
             if "long_name" not in vattrs:
                 problems.append(f"{name}: no long_name")
-            if var.dtype != str and var.dtype.kind in "fi":
+            if "flag_values" in vattrs:  # CF 3.5: flags carry meanings, not units
+                if len(vattrs.get("flag_meanings", "").split()) != len(vattrs["flag_values"]):
+                    problems.append(f"{name}: flag_meanings do not match flag_values")
+                if vattrs["flag_values"].dtype != var.dtype:
+                    problems.append(f"{name}: flag_values of another type than the variable")
+            elif var.dtype != str and var.dtype.kind in "fi":
                 units = vattrs.get("units")
                 if units is None or not udunits_ok(str(units)):
                     problems.append(f"{name}: units {units!r} not UDUNITS")
@@ -102,13 +108,13 @@ def units_of_temperature(vattrs):
 
 def test_cf_checker_catches_what_it_should(tmp_path):
     bad = xr.Dataset(
-        {"x": ("t", [1.0, 2.0], {"units": "cm^-3", "valid_min": 0.0})},
+        {"x": ("t", [1.0, 2.0], {"units": "cm**-3", "valid_min": 0.0})},
         coords={"t": ("t", [1.0, 2.0], {"units": "K"})},
     )
     bad.to_netcdf(tmp_path / "bad.nc")
     problems = cf_problems(tmp_path / "bad.nc")
     assert any("Conventions" in p for p in problems)
-    assert any("x: units 'cm^-3'" in p for p in problems)
+    assert any("x: units 'cm**-3'" in p for p in problems)
     assert any("valid_min" in p for p in problems)
     assert any("t: temperature without units_metadata" in p for p in problems)
     assert any("_FillValue" in p for p in problems)
@@ -153,12 +159,14 @@ def test_csv_opens_in_pandas_with_default_arguments(si, tmp_path):
         "temperature [K]",
         "wavelength [nm]",
         "band_gap [eV]",
-        "absorption [cm-1]",
+        "absorption [cm^-1]",
+        "band_gap_validity",
+        "absorption_validity",
     ]
     assert len(frame) == 6
     np.testing.assert_allclose(frame["temperature [degC]"], [25, 25, 25, 85, 85, 85])
     np.testing.assert_allclose(
-        frame["absorption [cm-1]"],
+        frame["absorption [cm^-1]"],
         data.absorption.values.ravel(),
         rtol=1e-9,
     )
@@ -174,9 +182,9 @@ def test_wide_csv_has_one_row_per_temperature(si, tmp_path):
     export.write(data, path, layout="wide")
     frame = pd.read_csv(path)
     assert len(frame) == 2
-    assert "absorption [cm-1] at wavelength=800 nm" in frame.columns
+    assert "absorption [cm^-1] at wavelength=800 nm" in frame.columns
     np.testing.assert_allclose(
-        frame["absorption [cm-1] at wavelength=800 nm"],
+        frame["absorption [cm^-1] at wavelength=800 nm"],
         data.absorption.values[:, 1],
         rtol=1e-9,
     )

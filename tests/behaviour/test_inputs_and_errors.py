@@ -134,7 +134,7 @@ def test_masked_input_is_refused_by_every_door(si):
     from matprops import optics
 
     with pytest.raises(matprops.InputError, match="'thickness'.*masked"):
-        optics.absorbed_fraction(10.0, masked)
+        optics.absorbed_fraction(10.0, matprops.Q_(masked, "cm"))
 
 
 # ------------------------------------------------------------------ booleans, complex, deltas
@@ -214,7 +214,7 @@ def test_list_mixing_kinds_says_so(si):
 def test_table_accepts_a_single_quantity_name(si):
     # before: "unknown quantity 'b'"
     data = si.table("band_gap", temperature=[300, 350])
-    assert list(data.data_vars) == ["band_gap"]
+    assert list(data.data_vars) == ["band_gap", "band_gap_validity"]
 
 
 def test_shapes_that_do_not_broadcast_name_both_arguments(si):
@@ -230,7 +230,7 @@ def test_shapes_that_do_not_broadcast_name_both_arguments(si):
     from matprops import optics
 
     with pytest.raises(matprops.InputError, match=r"'thickness'.*broadcast"):
-        optics.absorbed_fraction([10.0, 20.0], [1e-4, 2e-4, 3e-4])
+        optics.absorbed_fraction([10.0, 20.0], matprops.Q_([1e-4, 2e-4, 3e-4], "cm"))
     assert si.absorption([[800], [900]], [250, 300, 350]).shape == (2, 3)  # still broadcasts
 
 

@@ -37,6 +37,7 @@ EXAMPLES = [
     (errors.SolverError("charge neutrality did not converge at 3 points"), ()),
     (errors.ValidityError("temperature 700 K is outside 0-600 K"), ()),
     (errors.ValidityWarning("temperature 700 K is outside 0-600 K"), ()),
+    (errors.SkippedModelWarning("compare mobility: caughey-1967 has no hole"), ()),
 ]
 
 

@@ -36,14 +36,31 @@ def test_comparison_plot_png(si, tmp_path):
     import matplotlib.image
 
     assert matplotlib.image.imread(path).ndim == 3
-    main_axes, spread_axes = figure.axes
+    main_axes, ratio_axes = figure.axes
     assert main_axes.get_yscale() == "log"  # ni spans decades
-    assert len(main_axes.get_lines()) == len(matprops.models("intrinsic_density"))
-    assert "[cm-3]" in main_axes.get_ylabel()
-    assert "temperature [K]" in spread_axes.get_xlabel()
+    labels = main_axes.get_legend_handles_labels()[1]
+    assert labels[: len(matprops.models("intrinsic_density"))] == matprops.models(
+        "intrinsic_density"
+    )
+    # common practice: lines told apart by colour and marker, not colour alone
+    solid = [line for line in main_axes.get_lines() if line.get_label() in labels]
+    assert len({line.get_color() for line in solid}) == len(solid)
+    assert len({line.get_marker() for line in solid}) == len(solid)
+    # models outside their range: a dashed part, and the legend says what dashes mean
+    assert any(line.get_linestyle() == "--" for line in main_axes.get_lines())
+    legend = [t.get_text() for t in main_axes.get_legend().get_texts()]
+    assert "dashed: outside the model's validity range" in legend
+    assert "[cm⁻³]" in main_axes.get_ylabel()
+    assert "ratio to" in ratio_axes.get_ylabel() and "couderc-2014" in ratio_axes.get_ylabel()
+    assert "temperature [K]" in ratio_axes.get_xlabel()
     caption = texts(figure)
-    assert "doi:10.1063/1.4867776" in caption
+    assert "couderc-2014" in caption and "full references in the file's metadata" in caption
     assert f"release {matprops.releases()[-1]}" in caption
+    # the footer stays compact: a few lines, not a paragraph of references
+    footer = next(t for t in figure.texts if "Sources" in t.get_text())
+    assert footer.get_text().count("\n") <= 2
+    with Image.open(path) as image:  # the full references ride in the PNG's text chunks
+        assert "doi:10.1063/1.4867776" in image.info["Description"]
 
 
 def test_svg_in_celsius_with_log_doping_axis(si, tmp_path):
@@ -57,10 +74,14 @@ def test_svg_in_celsius_with_log_doping_axis(si, tmp_path):
     root = ET.parse(path).getroot()
     assert root.tag.endswith("svg")
     assert figure.axes[0].get_xscale() == "log"  # a doping axis
-    assert "electron density [cm-3]" in figure.axes[0].get_xlabel()
+    assert "electron density [cm⁻³]" in figure.axes[0].get_xlabel()
     data = si.table(["band_gap"], T=matprops.Q_(np.arange(-40.0, 86.0, 5.0), "degC"))
     figure = plotting.plot(data, tmp_path / "gap.svg")
-    assert figure.axes[0].get_xlabel() == "temperature [degC]"
+    assert figure.axes[0].get_xlabel() == "temperature [°C]"
+    # SVG text stays text (editable), and the references are in its metadata
+    svg = (tmp_path / "gap.svg").read_text()
+    assert "<text" in svg and "temperature [°C]" in svg
+    assert "doi:" in svg.split("</metadata>")[0]
     assert figure.axes[0].get_lines()[0].get_xdata()[0] == pytest.approx(-40.0)
 
 
@@ -112,3 +133,26 @@ def test_plot_command(tmp_path, capsys):
         main(["plot", "absorption", "-t", "25", "-w", "400:1100:20", "-o", str(path)]) == 2
     )  # exists, no --force
     assert "--force" in capsys.readouterr().err
+
+
+def test_plot_into_your_own_axes(si):
+    from matplotlib.figure import Figure
+
+    figure = Figure()
+    left, right = figure.subplots(1, 2)
+    data = si.table(["band_gap"], T=np.arange(250.0, 401.0, 10.0))
+    assert plotting.plot(data, ax=right) is right
+    assert right.get_lines() and not left.get_lines()
+    assert "band gap" in right.get_ylabel() and "[eV]" in right.get_ylabel()
+    with pytest.raises(matprops.InputError, match="'path'"):
+        plotting.plot(data, "x.png", ax=left)
+
+
+def test_plot_sizes_stay_sensible(si, tmp_path):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", matprops.ValidityWarning)
+        path = tmp_path / "demo.png"
+        assert main(["demo", "-o", str(path)]) == 0
+    with Image.open(path) as image:
+        width, height = image.size
+    assert 800 <= width <= 1600 and height <= 2000

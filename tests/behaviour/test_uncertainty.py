@@ -394,7 +394,7 @@ def test_tables_and_files_carry_the_figures(tmp_path):
         uncertainty=True,
     )
     linked = data.cf.get_associated_variable_names("mobility")["ancillary_variables"]
-    assert linked == ["mobility_uncertainty", "mobility_model_spread"]
+    assert linked == ["mobility_uncertainty", "mobility_model_spread", "mobility_validity"]
     assert data["mobility_uncertainty"].attrs["uncertainty_status"] == "stated"
     assert np.allclose(data["mobility_uncertainty"] / data["mobility"], 0.13 / 3**0.5)
     assert np.all(np.isnan(data["band_gap_uncertainty"]))  # not zero

@@ -313,7 +313,7 @@ def test_equilibrium_shapes_broadcast_and_result_exports(si):
     state = si.equilibrium(T, Nd=Nd, Na=1e14)
     assert state.n.shape == (3, 2) and state.fermi_level.shape == (3, 2)
     data = state.to_dataset(dims=("temperature", "donor_density"))
-    assert data["electron_density"].attrs["units"] == "cm-3"
+    assert data["electron_density"].attrs["units"] == "cm^-3"
     assert data.attrs["statistics"] == "fermi-dirac"
     assert "gap_narrowing" in data.attrs["provenance"]
     assert "fermi_level" in repr(state)

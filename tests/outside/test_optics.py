@@ -295,7 +295,7 @@ def test_beer_lambert_tools():
     assert optics.transmitted_fraction(alpha, matprops.Q_(10, "um")).m_as("") == pytest.approx(
         np.exp(-1)
     )
-    assert optics.absorbed_fraction(1e3, 10e-4).m_as("") == pytest.approx(1 - np.exp(-1))
+    assert optics.absorbed_fraction(1e3, "10 um").m_as("") == pytest.approx(1 - np.exp(-1))
     d = optics.thickness_for_absorbed_fraction(alpha, [0.5, 0.9, 0.99])
     np.testing.assert_allclose(d.m_as("um"), 10 * np.log([2, 10, 100]))
     # along a wavelength grid with a thickness grid: broadcasting
@@ -318,9 +318,9 @@ def test_beer_lambert_tools():
         ),
         (lambda: optics.thickness_for_absorbed_fraction(1e3, 0.0), "'fraction' must be > 0"),
         (lambda: optics.thickness_for_absorbed_fraction(1e3, 1.5), "'fraction'"),
-        (lambda: optics.absorbed_fraction(1e3, -1e-4), "'thickness' must be > 0 cm"),
-        (lambda: optics.absorbed_fraction(1e3, 0), "'thickness' must be > 0 cm"),
-        (lambda: optics.absorbed_fraction(-1.0, 1e-4), "'absorption_coefficient' must be >= 0"),
+        (lambda: optics.absorbed_fraction(1e3, "-1e-4 cm"), "'thickness' must be > 0 cm"),
+        (lambda: optics.absorbed_fraction(1e3, "0 um"), "'thickness' must be > 0 cm"),
+        (lambda: optics.absorbed_fraction(-1.0, "1 um"), "'absorption_coefficient' must be >= 0"),
         (lambda: optics.absorption_depth(0.0), "'alpha'"),
         (lambda: optics.photon_energy(matprops.Q_(1, "kg")), "'wavelength'"),
     ],
@@ -328,6 +328,15 @@ def test_beer_lambert_tools():
 def test_beer_lambert_bad_input(call, pattern):
     with pytest.raises(matprops.Error, match=pattern):
         call()
+
+
+def test_thickness_needs_its_unit():
+    # common practice: a wafer's "180" is µm to its maker and cm to the kernels; a bare
+    # number is refused rather than read in either
+    with pytest.raises(matprops.InputError, match="'thickness' must be a length with its unit"):
+        optics.absorbed_fraction(1e3, 180)
+    with pytest.raises(matprops.InputError, match="bare number"):
+        optics.absorbed_fraction(1e3, "180")
 
 
 def test_thickness_must_be_a_length():

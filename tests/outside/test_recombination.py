@@ -521,7 +521,7 @@ def test_implied_voltage_rises_with_generation(si, doping, kind, flux, factor, d
         si.implied_voltage,
         300,
         generation=[flux, flux * factor],
-        thickness=0.018,
+        thickness="180 um",
         **{kind: doping},
         **kwargs,
     )
@@ -549,7 +549,7 @@ def test_implied_voltage_per_decade_of_generation(si):
         300,
         Na=1e16,
         generation=[1e13, 1e14],
-        thickness=0.018,
+        thickness="180 um",
         defect=MIDGAP,
         density=1e14,
     ).implied_voltage.m_as("V")
@@ -562,7 +562,7 @@ def test_implied_voltage_per_decade_of_generation(si):
         300,
         Na=1e10,
         generation=[1e20, 1e21],
-        thickness=0.018,
+        thickness="180 um",
         defect=MIDGAP,
         density=1e14,
     ).implied_voltage.m_as("V")
@@ -767,17 +767,17 @@ def test_equilibrium_densities_given_incompletely_or_twice(si):
 @pytest.mark.parametrize(
     "kwargs, pattern",
     [
-        ({"generation": -1e17, "thickness": 0.018}, r"'generation' must be > 0"),
-        ({"generation": 1e17, "thickness": 0}, r"'thickness' must be > 0 cm"),
+        ({"generation": -1e17, "thickness": "180 um"}, r"'generation' must be > 0"),
+        ({"generation": 1e17, "thickness": "0 um"}, r"'thickness' must be > 0 cm"),
         (
-            {"generation": Q_(1, "V"), "thickness": 0.018},
+            {"generation": Q_(1, "V"), "thickness": "180 um"},
             (
                 r"'generation' expects a quantity in cm\^-2/s "
                 r"\(photons absorbed per area and time\) "
                 r"or A/cm\^2"
             ),
         ),
-        ({"generation": Q_(-40, "mA/cm^2"), "thickness": 0.018}, r"'generation' must be > 0"),
+        ({"generation": Q_(-40, "mA/cm^2"), "thickness": "180 um"}, r"'generation' must be > 0"),
     ],
 )
 def test_bad_generation_or_thickness(si, kwargs, pattern):

@@ -68,7 +68,7 @@ def test_thermal_velocity_kernel_door_and_table(si):
         kernel(temperature=t), si.thermal_velocity("electron", t).m_as("cm/s")
     )
     data = si.table(["thermal_velocity"], carrier=["electron", "hole"], T=[300.0])
-    assert data["thermal_velocity"].attrs["units"] == "cm s-1"
+    assert data["thermal_velocity"].attrs["units"] == "cm s^-1"
     assert data["thermal_velocity"].sel(carrier="hole").item() == pytest.approx(
         si.thermal_velocity("hole", 300).m_as("cm/s")
     )
@@ -98,8 +98,8 @@ def test_hole_thermal_velocity_warns_outside_its_range(si):
 def test_lightly_doped_limits_at_300k(si):
     # common practice: about 1400 (electrons) and 470 (holes) cm^2/(V s) in lightly doped
     # silicon at 300 K (quoted to two or three digits); also the implied dopant-density
-    # mobilities of ASTM F723 at 1e14 cm^-3 and 23 degC, 1456 and 477 (research note
-    # issue16-21-sources.md A4, computed from the standard's equations), 3 K cooler
+    # mobilities of ASTM F723 at 1e14 cm^-3 and 23 degC, 1456 and 477 (computed from the
+    # standard's equations), 3 K cooler
     electron = si.mobility("electron", 300, Nd=1e12).m_as("cm^2/(V*s)")
     hole = si.mobility("hole", 300, Na=1e12).m_as("cm^2/(V*s)")
     assert electron == pytest.approx(1400, rel=0.02)
@@ -715,7 +715,7 @@ def test_transport_tables_equal_single_calls(si):
         dopant=["boron", "phosphorus"],
     )
     assert inverse.doping_from_resistivity.dims == ("resistivity", "dopant")
-    assert inverse.standard_dopant_density.attrs["units"] == "cm-3"
+    assert inverse.standard_dopant_density.attrs["units"] == "cm^-3"
     assert inverse.doping_from_resistivity.sel(
         dopant="boron", resistivity=10.0
     ).item() == pytest.approx(si.doping_from_resistivity(10.0, 296.15, "boron").m, rel=1e-12)

@@ -253,6 +253,7 @@ SILICON_METHODS = [row(name) for name in declared().methods()] + [
     ("consistency", (), {}),
     ("table", ("quantities",), {"temperature": "temperature", "wavelength": "wavelength"}),
     ("compare", ("quantity",), {"models": "model_ids", "temperature": "temperature"}),
+    ("explain", ("quantity",), {"temperature": "temperature"}),
 ]
 
 # optics functions: (name, positional argument kinds, keyword argument kinds)

@@ -87,7 +87,7 @@ def test_steady_state_and_implied_voltage(si):
         300,
         Nd=[1e15, 1e16],
         generation=[1e15, 2.5e17],
-        thickness=0.018,
+        thickness="180 um",
         defect="Fe_i",
         density=1e11,
     )
@@ -139,7 +139,7 @@ def test_current_density_is_a_photon_flux_times_q(si):
     a = si.implied_voltage(
         300, Na=1e15, generation=matprops.Q_(40, "mA/cm^2"), thickness=matprops.Q_(180, "um")
     )
-    b = si.implied_voltage(300, Na=1e15, generation=0.040 / 1.602176634e-19, thickness=0.018)
+    b = si.implied_voltage(300, Na=1e15, generation=0.040 / 1.602176634e-19, thickness="180 um")
     assert a.implied_voltage.m_as("V") == pytest.approx(b.implied_voltage.m_as("V"), rel=1e-12)
 
 
@@ -178,7 +178,7 @@ def test_tables_equal_single_calls(si):
         defect=["iron-interstitial", "iron-boron-pair"],
         defect_density=1e11,
         generation=[1e16, 1e17],
-        thickness=0.018,
+        thickness="180 um",
     )
     for i, na in enumerate([1e15, 1e16]):
         for j, dn in enumerate([0.0, 1e15]):
@@ -193,7 +193,7 @@ def test_tables_equal_single_calls(si):
         for k, defect in enumerate(["iron-interstitial", "iron-boron-pair"]):
             for j, g in enumerate([1e16, 1e17]):
                 single = si.implied_voltage(
-                    300, Na=na, generation=g, thickness=0.018, defect=defect, density=1e11
+                    300, Na=na, generation=g, thickness="180 um", defect=defect, density=1e11
                 )
                 assert data.implied_voltage.values[k, i, j] == pytest.approx(
                     single.implied_voltage.m_as("V"), rel=1e-10
