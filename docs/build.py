@@ -124,7 +124,7 @@ def _plot(si, quantity, entry, folder: Path) -> str:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # the flags mark what is outside a range
         try:
-            if quantity in si.catalog.quantities() and len(si.catalog.model_ids(quantity)) > 1:
+            if quantity in si.catalogue.quantities() and len(si.catalogue.model_ids(quantity)) > 1:
                 data = si.compare(quantity, **grid)
                 what = "Every model of the quantity"
             else:
@@ -156,13 +156,13 @@ def quantity_page(si, quantity, entry, folder: Path) -> str:
         + (", ".join(f"`{a}`" for a in entry.takes) or "none"),
         f"- command line: `matprops table {quantity} ...`, `matprops explain {quantity} ...`",
     ]
-    catalog = si.catalog
-    has_models = quantity in catalog.quantities()
+    catalogue = si.catalogue
+    has_models = quantity in catalogue.quantities()
     if entry.derived:
         lines += [
             "- derived from: "
             + ", ".join(
-                f"[{q}]({q}.md)" if q in catalog.quantities() else q
+                f"[{q}]({q}.md)" if q in catalogue.quantities() else q
                 for q in entry.model_quantities()
             ),
             f"- formula: {_md(entry.formula or '')}",
@@ -172,11 +172,11 @@ def quantity_page(si, quantity, entry, folder: Path) -> str:
     lines += ["", "## Comparison", "", _plot(si, quantity, entry, folder)]
     if has_models:
         lines += ["## Models", ""]
-        releases = catalog.release_ids()
-        for model_id in catalog.model_ids(quantity):
-            model = catalog.model(quantity, model_id)
+        releases = catalogue.release_ids()
+        for model_id in catalogue.model_ids(quantity):
+            model = catalogue.model(quantity, model_id)
             default_in = [
-                r for r in releases if catalog.release(r).models.get(quantity) == model_id
+                r for r in releases if catalogue.release(r).models.get(quantity) == model_id
             ]
             lines += [f"### {model_id}", "", _md(model.name) + ".", ""]
             if default_in:
@@ -223,11 +223,11 @@ def quantity_page(si, quantity, entry, folder: Path) -> str:
     return "\n".join(lines)
 
 
-def release_page(catalog, release_id, previous) -> str:
+def release_page(catalogue, release_id, previous) -> str:
     from matprops.outputs.changes import release_difference
     from matprops.outputs.render import release_difference_text
 
-    release = catalog.release(release_id)
+    release = catalogue.release(release_id)
     lines = [
         f"# Release {release_id}",
         "",
@@ -320,8 +320,8 @@ def generate() -> None:
     index.append("```")
     (OUT / "quantities" / "index.md").write_text("\n".join(index) + "\n", encoding="utf-8")
     # every quantity a release names gets a page even if this release does not serve it
-    catalog = si.catalog
-    releases = catalog.release_ids()
+    catalogue = si.catalogue
+    releases = catalogue.release_ids()
     rindex = [
         "# Releases",
         "",
@@ -334,13 +334,13 @@ def generate() -> None:
     for number, release_id in enumerate(releases):
         previous = releases[number - 1] if number else None
         (OUT / "releases" / f"{release_id}.md").write_text(
-            release_page(catalog, release_id, previous), encoding="utf-8"
+            release_page(catalogue, release_id, previous), encoding="utf-8"
         )
         rindex.append(release_id)
     rindex.append("```")
     (OUT / "releases" / "index.md").write_text("\n".join(rindex) + "\n", encoding="utf-8")
     for release_id in releases:  # a quantity of an older release no longer served
-        for quantity in catalog.release(release_id).models:
+        for quantity in catalogue.release(release_id).models:
             page = OUT / "quantities" / f"{quantity}.md"
             if not page.exists():
                 page.write_text(f"# {quantity}\n\nNot served by release {si.release.id}.\n")

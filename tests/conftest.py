@@ -4,7 +4,7 @@ import warnings
 import pytest
 
 import matprops
-from matprops.catalogue.store import Catalog, datasets_root
+from matprops.catalogue.store import Catalogue, datasets_root
 
 
 @pytest.fixture(scope="session")
@@ -22,10 +22,10 @@ def warm_up_pint():
 
 @pytest.fixture
 def datasets_copy(tmp_path):
-    """A private, writable copy of datasets/ and a Catalog over it."""
+    """A private, writable copy of datasets/ and a Catalogue over it."""
     root = tmp_path / "datasets"
     shutil.copytree(datasets_root(), root, ignore=shutil.ignore_patterns("__pycache__", "*.py"))
-    return root, Catalog(root)
+    return root, Catalogue(root)
 
 
 DRAFT = "2030.1"  # a draft release made in a datasets copy (no shipped release has this id)
@@ -39,25 +39,25 @@ def _datasets_with_draft_template(tmp_path_factory):
 
     root = tmp_path_factory.mktemp("draft") / "datasets"
     shutil.copytree(datasets_root(), root, ignore=shutil.ignore_patterns("__pycache__", "*.py"))
-    catalog = Catalog(root)
-    newest = catalog.newest_release_id()
+    catalogue = Catalogue(root)
+    newest = catalogue.newest_release_id()
     text = (root / f"releases/{newest}.toml").read_text()
     text = text.replace(f'release = "{newest}"', f'release = "{DRAFT}"')
     text = text.replace('status = "final"', 'status = "draft"')
     (root / f"releases/{DRAFT}.toml").write_text(text)
     (root / f"releases/{DRAFT}.reference.json").write_text("{}")
-    catalog.write_checksums()
-    regenerate(DRAFT, catalog)
+    catalogue.write_checksums()
+    regenerate(DRAFT, catalogue)
     return root
 
 
 @pytest.fixture
 def datasets_with_draft(tmp_path, _datasets_with_draft_template):
     """A private copy of datasets/ holding a draft release (so the tests of drafts run
-    even when every shipped release is final): (root, Catalog, draft id)."""
+    even when every shipped release is final): (root, Catalogue, draft id)."""
     root = tmp_path / "datasets"
     shutil.copytree(_datasets_with_draft_template, root)
-    return root, Catalog(root), DRAFT
+    return root, Catalogue(root), DRAFT
 
 
 @pytest.fixture(scope="session")

@@ -32,11 +32,11 @@ def main() -> int:
 
     from matprops.catalogue import fields
     from matprops.catalogue.checks import check
-    from matprops.catalogue.store import Catalog
+    from matprops.catalogue.store import Catalogue
 
     fields_factors = __import__("matprops.catalogue._unit_factors", fromlist=["FACTORS"])
     fields_factors.FACTORS.clear()  # record every pair through pint
-    problems, _ = check(Catalog())
+    problems, _ = check(Catalogue())
     if problems:
         print("\n".join(problems))
         return 1

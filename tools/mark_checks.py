@@ -106,13 +106,13 @@ class Recorder:
                 return _original(self, name, *args, **kwargs)
 
             setattr(silicon, door, wrapped)
-        original_model = store.Catalog.model
+        original_model = store.Catalogue.model
 
         def model(self, quantity, model_id):
             recorder.note(quantity, model_id)
             return original_model(self, quantity, model_id)
 
-        store.Catalog.model = model
+        store.Catalogue.model = model
 
 
 def _has_marker(function: ast.FunctionDef) -> bool:

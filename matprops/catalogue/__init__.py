@@ -7,7 +7,7 @@
 - :mod:`.conventions` — what a model's coefficients were fitted with (the
   ``[fit_conventions]`` section of a composed quantity's model file);
 - :mod:`.modelfile` — the checks and binding of one model file to its kernel;
-- :mod:`.store` — :class:`Catalog`: finds, verifies (checksums) and loads the files;
+- :mod:`.store` — :class:`Catalogue`: finds, verifies (checksums) and loads the files;
 - :mod:`.overlay` — overlay catalogues: a lab's own models and releases layered over
   the shipped data (:mod:`.folders` writes their folders), each checked like them;
 - :mod:`.defects` — the defect catalogue of Shockley-Read-Hall centres;
@@ -20,18 +20,18 @@ folders -> overlay -> defects -> checks.
 
 from .records import Coefficient, Model, Range, Release, Source
 from .regions import Region
-from .store import Catalog, catalog_at, datasets_root, default_catalog, sha256_of
+from .store import Catalogue, catalogue_at, datasets_root, default_catalogue, sha256_of
 
 __all__ = [
-    "Catalog",
+    "Catalogue",
     "Coefficient",
     "Model",
     "Range",
     "Region",
     "Release",
     "Source",
-    "catalog_at",
+    "catalogue_at",
     "datasets_root",
-    "default_catalog",
+    "default_catalogue",
     "sha256_of",
 ]

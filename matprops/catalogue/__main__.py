@@ -12,7 +12,7 @@ from pathlib import Path
 from ..errors import Error
 from .checks import check
 from .files import interruptible
-from .store import Catalog
+from .store import Catalogue
 
 
 def main(argv=None) -> int:
@@ -49,14 +49,14 @@ def main(argv=None) -> int:
     try:
         if args.catalogue:
             return _check_overlays(args)
-        catalog = Catalog(args.root)
+        catalogue = Catalogue(args.root)
         if args.update_checksums:
             with interruptible("python -m matprops.catalogue"):  # no temporary left behind
-                print(f"wrote {catalog.write_checksums()}")
+                print(f"wrote {catalogue.write_checksums()}")
     except Error as exc:  # e.g. a read-only install, MATPROPS_DATASETS pointing nowhere
         print(f"error: {exc}", file=sys.stderr)
         return 2
-    return _report(*check(catalog), catalog.root)
+    return _report(*check(catalogue), catalogue.root)
 
 
 def _report(problems, checked, root) -> int:
@@ -71,7 +71,7 @@ def _report(problems, checked, root) -> int:
 
 
 def _check_overlays(args) -> int:
-    from .overlay import _write_checksums_of, catalog_at
+    from .overlay import _write_checksums_of, catalogue_at
 
     roots = [path.expanduser().resolve() for path in args.catalogue]
     if args.update_checksums:
@@ -79,7 +79,7 @@ def _check_overlays(args) -> int:
             print(f"wrote {_write_checksums_of(root)}")
     status = 0
     for index, root in enumerate(roots):
-        overlay = catalog_at(args.root, roots[index:], args.seals)
+        overlay = catalogue_at(args.root, roots[index:], args.seals)
         status = max(status, _report(*check(overlay), root))
     return status
 

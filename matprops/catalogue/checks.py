@@ -14,7 +14,7 @@ from __future__ import annotations
 import json
 
 from ..errors import Error
-from .store import CHECKSUM_FILE, Catalog
+from .store import CHECKSUM_FILE, Catalogue
 
 __all__ = ["check"]
 
@@ -32,13 +32,13 @@ def _attempts(problems: list[str]):
     return attempt
 
 
-def _files(catalog, problems, attempt) -> int | None:
+def _files(catalogue, problems, attempt) -> int | None:
     """Check the checksum list against the files on disk; the number verified."""
-    root = catalog.root
-    recorded = attempt(catalog.checksums)
+    root = catalogue.root
+    recorded = attempt(catalogue.checksums)
     if recorded is None:
         return None
-    on_disk = set(catalog.data_files())
+    on_disk = set(catalogue.data_files())
     for relative in sorted(set(recorded) - on_disk):
         problems.append(f"{root / relative}: listed in {CHECKSUM_FILE} but missing")
     for relative in sorted(on_disk - set(recorded)):
@@ -47,67 +47,67 @@ def _files(catalog, problems, attempt) -> int | None:
             "matprops.catalogue --update-checksums after a deliberate change)"
         )
     for relative in sorted(on_disk & set(recorded)):
-        attempt(catalog.verified_bytes, root / relative)
+        attempt(catalogue.verified_bytes, root / relative)
     return len(on_disk & set(recorded))
 
 
-def check(catalog: Catalog) -> tuple[list[str], int]:
+def check(catalogue: Catalogue) -> tuple[list[str], int]:
     """(problems, number of data files verified); no problems means all is well."""
     from .overlay import Overlay
 
-    if isinstance(catalog, Overlay):
-        return check_overlay(catalog)
-    root = catalog.root
+    if isinstance(catalogue, Overlay):
+        return check_overlay(catalogue)
+    root = catalogue.root
     if not root.is_dir():
         return [f"{root}: the datasets folder does not exist"], 0
     problems: list[str] = []
     attempt = _attempts(problems)
-    if _files(catalog, problems, attempt) is None:
+    if _files(catalogue, problems, attempt) is None:
         return problems, 0
-    on_disk = set(catalog.data_files())
-    recorded = catalog.checksums()
+    on_disk = set(catalogue.data_files())
+    recorded = catalogue.checksums()
 
-    quantities = attempt(catalog.quantities)  # None: the folder is missing (reported)
+    quantities = attempt(catalogue.quantities)  # None: the folder is missing (reported)
     if quantities == []:
         problems.append(f"{root / 'models'}: no model files")
     for quantity in quantities or []:
-        for model_id in catalog.model_ids(quantity):
-            model = attempt(catalog.model, quantity, model_id)
+        for model_id in catalogue.model_ids(quantity):
+            model = attempt(catalogue.model, quantity, model_id)
             if model is not None and model.kind == "table":
                 attempt(model.function._load)  # opens and converts every table it reads
 
-    releases = attempt(catalog.release_ids)
+    releases = attempt(catalogue.release_ids)
     if releases == []:
         problems.append(f"{root / 'releases'}: no release files")
     for release_id in releases or []:
-        release = attempt(catalog.release, release_id)
+        release = attempt(catalogue.release, release_id)
         if release is None:
             continue
         for quantity, model_id in release.models.items():
-            known = catalog.model_ids(quantity) if quantity in (quantities or []) else []
+            known = catalogue.model_ids(quantity) if quantity in (quantities or []) else []
             if model_id not in known:
                 problems.append(
                     f"{release.path}: models.{quantity} = {model_id!r} does not "
                     f"exist (models of {quantity!r}: {', '.join(known) or 'none'})"
                 )
-        view = catalog.for_release(release)
-        if view is not catalog:  # a final release's archive: its sealed model files load
+        view = catalogue.for_release(release)
+        if view is not catalogue:  # a final release's archive: its sealed model files load
             for quantity in view.quantities():
                 for model_id in view.archived_model_ids(quantity):
                     attempt(view.model, quantity, model_id)
-        reference = attempt(catalog.verified_bytes, release.reference_path)
+        reference = attempt(catalogue.verified_bytes, release.reference_path)
         if reference is not None:
             try:
                 json.loads(reference)
             except ValueError as exc:
                 problems.append(f"{release.reference_path}: not valid JSON: {exc}")
 
-    for name in catalog.scenario_names():  # (optional folder)
-        attempt(catalog.scenario, name)
+    for name in catalogue.scenario_names():  # (optional folder)
+        attempt(catalogue.scenario, name)
     from . import defects  # the defect catalogue (optional folder)
 
-    for name in defects.names(catalog):
-        attempt(defects.defect, name, catalog)
+    for name in defects.names(catalogue):
+        attempt(defects.defect, name, catalogue)
     return problems, len(on_disk & set(recorded))
 
 

@@ -139,7 +139,7 @@ class StandIn:
         return record
 
 
-def parse_stand_ins(path, quantity: str, raw, variants, variant_axis, catalog) -> dict:
+def parse_stand_ins(path, quantity: str, raw, variants, variant_axis, catalogue) -> dict:
     """The ``[stand_ins]`` section of a model with one coefficient set per dopant."""
     if variant_axis != "dopant":
         raise DatasetError(path, "field 'stand_ins' goes with variant_axis = 'dopant'")
@@ -160,11 +160,11 @@ def parse_stand_ins(path, quantity: str, raw, variants, variant_axis, catalog) -
                 path,
                 f"{where}.variant {variant!r} is not a set of this model ({', '.join(variants)})",
             )
-        if model is not None and model not in catalog.model_ids(quantity):
+        if model is not None and model not in catalogue.model_ids(quantity):
             raise DatasetError(
                 path,
                 f"{where}.model {model!r} is not a model of {quantity!r} "
-                f"({', '.join(catalog.model_ids(quantity))})",
+                f"({', '.join(catalogue.model_ids(quantity))})",
             )
         obtained = entry.get("obtained", "")
         if not obtained.strip():
@@ -257,7 +257,7 @@ class FitConventions(Mapping):
         return record
 
 
-def _entry(path, name: str, raw, catalog) -> Convention:
+def _entry(path, name: str, raw, catalogue) -> Convention:
     where = f"fit_conventions.{name}"
     if not isinstance(raw, Mapping):
         raise DatasetError(path, f"{where} must be a table {{ value = ..., obtained = ... }}")
@@ -287,7 +287,7 @@ def _entry(path, name: str, raw, catalog) -> Convention:
             return Convention(name, value, obtained)
         if value in REFERENCE_WORDS:
             return Convention(name, value, obtained)
-        known = catalog.model_ids(name) if name in catalog.quantities() else []
+        known = catalogue.model_ids(name) if name in catalogue.quantities() else []
         if value not in known:
             raise DatasetError(
                 path,
@@ -319,7 +319,7 @@ def _entry(path, name: str, raw, catalog) -> Convention:
     return Convention(name, float(value), obtained, raw["units"], temperature, kernel_value)
 
 
-def parse_fit_conventions(path, quantity: str, raw, catalog) -> FitConventions:
+def parse_fit_conventions(path, quantity: str, raw, catalogue) -> FitConventions:
     """The ``[fit_conventions]`` section of a model file, checked."""
     if not isinstance(raw, Mapping):
         raise DatasetError(path, "field 'fit_conventions' must be a table")
@@ -331,7 +331,7 @@ def parse_fit_conventions(path, quantity: str, raw, catalog) -> FitConventions:
                 f"unknown field 'fit_conventions.{name}' "
                 f"(allowed here: {', '.join(CONVENTION_NAMES)})",
             )
-        entries[name] = _entry(path, name, entry, catalog)
+        entries[name] = _entry(path, name, entry, catalogue)
     missing = [name for name in REQUIRED.get(quantity, ()) if name not in entries]
     if missing:
         raise DatasetError(

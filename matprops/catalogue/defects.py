@@ -42,7 +42,7 @@ from .fields import convert, require
 from .modelfile import sources_of
 from .records import Source
 from .schema import DEFECT, validate
-from .store import Catalog, _parse_toml, default_catalog
+from .store import Catalogue, _parse_toml, default_catalogue
 
 __all__ = ["CrossSection", "Defect", "defect", "describe", "names", "parse"]
 
@@ -192,52 +192,52 @@ class Defect:
 _LOADED: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
 
 
-def _folder(catalog: Catalog) -> Path:
-    return catalog.data_folder(FOLDER)
+def _folder(catalogue: Catalogue) -> Path:
+    return catalogue.data_folder(FOLDER)
 
 
-def names(catalog: Catalog | None = None) -> list[str]:
+def names(catalogue: Catalogue | None = None) -> list[str]:
     """Names of the defects in the catalogue (sorted)."""
-    catalog = catalog or default_catalog()
-    folder = _folder(catalog)
+    catalogue = catalogue or default_catalogue()
+    folder = _folder(catalogue)
     return sorted(p.stem for p in folder.glob("*.toml")) if folder.is_dir() else []
 
 
-def _aliases(catalog: Catalog) -> dict[str, str]:
-    cache = _LOADED.setdefault(catalog, {})
+def _aliases(catalogue: Catalogue) -> dict[str, str]:
+    cache = _LOADED.setdefault(catalogue, {})
     if "__aliases__" not in cache:
         table = {}
-        for name in names(catalog):
-            for alias in defect(name, catalog).aliases:
+        for name in names(catalogue):
+            for alias in defect(name, catalogue).aliases:
                 table[alias.lower()] = (alias, name)
         cache["__aliases__"] = table
     return cache["__aliases__"]
 
 
-def defect(name: str, catalog: Catalog | None = None) -> Defect:
+def defect(name: str, catalogue: Catalogue | None = None) -> Defect:
     """A catalogue entry by name or alias (``"iron-interstitial"``, ``"Fe_i"``)."""
-    catalog = catalog or default_catalog()
-    cache = _LOADED.setdefault(catalog, {})
-    known = names(catalog)
+    catalogue = catalogue or default_catalogue()
+    cache = _LOADED.setdefault(catalogue, {})
+    known = names(catalogue)
     key = str(name).strip()
     if key not in known:
         if key.lower() in known:
             key = key.lower()
         else:
-            aliases = _aliases(catalog)
+            aliases = _aliases(catalogue)
             if key.lower() not in aliases:
                 shown = known + sorted(f"{a} (= {n})" for a, n in aliases.values())
                 raise UnknownDefectError(name, shown, "in the defect catalogue")
             key = aliases[key.lower()][1]
     if key not in cache:
-        path = _folder(catalog) / f"{key}.toml"
-        cache[key] = _build(path, _parse_toml(path, catalog.verified_bytes(path)))
+        path = _folder(catalogue) / f"{key}.toml"
+        cache[key] = _build(path, _parse_toml(path, catalogue.verified_bytes(path)))
     return cache[key]
 
 
-def describe(catalog: Catalog | None = None) -> list[Defect]:
+def describe(catalogue: Catalogue | None = None) -> list[Defect]:
     """Every catalogue entry, loaded and checked (sorted by name)."""
-    return [defect(name, catalog) for name in names(catalog)]
+    return [defect(name, catalogue) for name in names(catalogue)]
 
 
 # --------------------------------------------------------------------------- parsing
@@ -435,12 +435,12 @@ def _inline_cross_section(value, argument) -> CrossSection:
     return CrossSection(sigma, printed={"value": value})
 
 
-def parse(value, catalog: Catalog | None = None, argument: str = "defect") -> Defect:
+def parse(value, catalogue: Catalogue | None = None, argument: str = "defect") -> Defect:
     """A :class:`Defect` from a catalogue name, an inline mapping, or a Defect."""
     if isinstance(value, Defect):
         return value
     if isinstance(value, str):
-        return defect(value, catalog)
+        return defect(value, catalogue)
     if not isinstance(value, Mapping):
         raise InputError(
             argument,

@@ -132,7 +132,7 @@ def _source(path, src, where: str) -> Source:
     )
 
 
-def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
+def _build_model(path: Path, data: Mapping, catalogue: CatalogueLike) -> Model:
     quantity = path.parent.name
     model_id = require(path, data, "id", str)
     if model_id != path.stem:
@@ -158,7 +158,7 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
 
     source, additional_sources = sources_of(path, data)
     fallback = data.get("fallback")
-    if fallback is not None and fallback not in catalog.model_ids(quantity):
+    if fallback is not None and fallback not in catalogue.model_ids(quantity):
         raise DatasetError(path, f"field 'fallback': no model {fallback!r} for {quantity!r}")
 
     validity = _validity(path, data.get("validity", {}), spec, "validity")
@@ -188,13 +188,13 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
             f"kind 'composed' needs a kernel that requires other "
             f"quantities; {data['kernel']!r} requires none",
         )
-    extra = _extra_sections(path, quantity, data, catalog, requires)
+    extra = _extra_sections(path, quantity, data, catalogue, requires)
     if "fitted" in data:  # a model fitted to one's own measurements: how, and how well
-        extra["fitted"] = _fitted_section(path, data["fitted"], catalog)
+        extra["fitted"] = _fitted_section(path, data["fitted"], catalogue)
     if "stand_ins" in data:  # what serves a dopant species without a set of its own
         extra["stand_ins"] = MappingProxyType(
             parse_stand_ins(
-                path, quantity, data["stand_ins"], list(raw_variants or {}), variant_axis, catalog
+                path, quantity, data["stand_ins"], list(raw_variants or {}), variant_axis, catalogue
             )
         )
     common = {
@@ -203,12 +203,12 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
         "name": name,
         "kind": kind,
         "kernel": kernel,
-        "catalogue": catalog,
+        "catalogue": catalogue,
         "source": source,
         "obtained": obtained,
         "notes": notes,
         "path": path,
-        "sha256": catalog.recorded(path),
+        "sha256": catalogue.recorded(path),
         "requires": requires,
         "additional_sources": additional_sources,
         "fallback": fallback,
@@ -223,7 +223,7 @@ def _build_model(path: Path, data: Mapping, catalog: CatalogueLike) -> Model:
         _check_complete(path, kernel_name, kernel.spec, set(coefficients) | set(table_arguments))
         bound = {c.name: c.kernel_value for c in coefficients.values()}
         if kind == "table":
-            return _TableFunction(catalog, path, kernel, table, table_arguments, bound)
+            return _TableFunction(catalogue, path, kernel, table, table_arguments, bound)
         return None if requires else functools.partial(kernel, **bound)
 
     if raw_variants is None:
@@ -656,23 +656,23 @@ QUANTITY_SECTIONS = {
 _KEPT = {"narrowing", "definition"}
 
 
-def _archived(path: Path, catalog) -> bool:
+def _archived(path: Path, catalogue) -> bool:
     """Whether the file is a final release's archive copy (``archive/<id>/models/...``)."""
-    root = getattr(catalog, "root", None)
+    root = getattr(catalogue, "root", None)
     try:
         return root is not None and path.relative_to(root).parts[0] == "archive"
     except ValueError:
         return False
 
 
-def _extra_sections(path, quantity, data, catalog, requires=()) -> dict:
+def _extra_sections(path, quantity, data, catalogue, requires=()) -> dict:
     """The quantity's own sections and the fit conventions, checked.
 
     A composed quantity's model file in the main tree must state its fit conventions;
     a final release's archive copy sealed before they existed gets them from its
     older fields (:func:`~.conventions.legacy_conventions`)."""
     with_conventions = "fit_conventions" in data
-    if not with_conventions and quantity in REQUIRED_CONVENTIONS and not _archived(path, catalog):
+    if not with_conventions and quantity in REQUIRED_CONVENTIONS and not _archived(path, catalogue):
         raise DatasetError(
             path,
             f"missing section [fit_conventions]: a {quantity} model is composed with "
@@ -688,17 +688,17 @@ def _extra_sections(path, quantity, data, catalog, requires=()) -> dict:
             raise DatasetError(path, f"missing required field {key!r} for a {quantity} model")
     if with_conventions:
         found["fit_conventions"] = parse_fit_conventions(
-            path, quantity, data["fit_conventions"], catalog
+            path, quantity, data["fit_conventions"], catalogue
         )
     elif quantity in REQUIRED_CONVENTIONS:  # an archive copy sealed before the section
-        narrowing_models = catalog.model_ids("gap_narrowing") if "fit" in found else ()
+        narrowing_models = catalogue.model_ids("gap_narrowing") if "fit" in found else ()
         found["fit_conventions"] = legacy_conventions(
             quantity, found, "radiative_coefficient" in requires, narrowing_models
         )
     return found
 
 
-def _fitted_section(path, entry, catalog) -> dict:
+def _fitted_section(path, entry, catalogue) -> dict:
     """The ``[fitted]`` section of a model fitted by :func:`matprops.fit`: the base
     model it started from, which coefficients were free, the method and the fit's
     statistics (schema: :data:`~.schema.FITTED`)."""
@@ -738,8 +738,8 @@ class _TableFunction:
     two tables.
     """
 
-    def __init__(self, catalog, path, kernel, table, table_arguments, bound):
-        self._catalog, self._path, self._kernel = catalog, path, kernel
+    def __init__(self, catalogue, path, kernel, table, table_arguments, bound):
+        self._catalogue, self._path, self._kernel = catalogue, path, kernel
         self._table, self._arguments, self._bound = table, table_arguments, bound
         self._function = None
         self._lock = threading.Lock()
@@ -758,7 +758,7 @@ class _TableFunction:
             table, _, variable = reference.rpartition(":")
             table = table or self._table
             if table not in opened:
-                opened[table] = self._catalog.table_arrays(table)
+                opened[table] = self._catalogue.table_arrays(table)
             data = opened[table]
             where = f"table {table}, variable {variable!r}"
             if variable not in data:

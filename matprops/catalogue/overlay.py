@@ -32,7 +32,7 @@ sees them), the defect catalogue and the tables its models read into
 the overlay (:class:`~.finality.SealRecord`). A final own release then reads only its
 archive: the shipped draft it was based on may move, the release does not.
 
-:func:`catalog_at` gives the one shared catalogue of a combination (shipped folder,
+:func:`catalogue_at` gives the one shared catalogue of a combination (shipped folder,
 overlays, seals); it pickles as the folders and the digests of their checksum lists,
 and a process that finds different data there refuses it (raised when the catalogue
 is used, so a worker pool never hangs on it).
@@ -78,11 +78,11 @@ from .schema import OVERLAY, RELEASE, validate
 from .store import (
     CHECKSUM_FILE,
     RELEASE_ID,
-    Catalog,
+    Catalogue,
     _parse_toml,
     parse_checksums,
 )
-from .store import catalog_at as _shipped_at
+from .store import catalogue_at as _shipped_at
 
 __all__ = [
     "IDENTITY",
@@ -92,7 +92,7 @@ __all__ = [
     "OverlayView",
     "OwnReleaseView",
     "archive_own",
-    "catalog_at",
+    "catalogue_at",
     "catalogues_from_environment",
     "check_unchanged",
     "create",
@@ -107,7 +107,7 @@ __all__ = [
 ]
 
 
-class Overlay(Catalog):
+class Overlay(Catalogue):
     """One overlay folder, layered over the catalogue ``below`` it.
 
     Lookups (models, releases, tables) search this folder, then ``below``; this
@@ -116,7 +116,7 @@ class Overlay(Catalog):
     :func:`~.finality.seals_path`).
     """
 
-    def __init__(self, root: Path | str, below: Catalog, seals: SealRecord | None = None):
+    def __init__(self, root: Path | str, below: Catalogue, seals: SealRecord | None = None):
         super().__init__(root)
         if not self.root.is_dir():
             raise DatasetError(
@@ -482,10 +482,10 @@ class _View:
 
     # the catalogue's readers, through the view's own table_path and verified_bytes
     def table(self, name: str):
-        return Catalog.table(cast(Catalog, self), name)
+        return Catalogue.table(cast(Catalogue, self), name)
 
     def table_arrays(self, name: str):
-        return Catalog.table_arrays(cast(Catalog, self), name)
+        return Catalogue.table_arrays(cast(Catalogue, self), name)
 
     def for_release(self, release: Release):
         return self.overlay.for_release(release)
@@ -595,15 +595,15 @@ def _overlay_view(overlay: Overlay, release_id: str):
         return Unusable(exc, OverlayView)
 
 
-def _layers(catalog) -> Iterable[Catalog]:
+def _layers(catalogue) -> Iterable[Catalogue]:
     """A catalogue and every one below it, top first."""
-    while catalog is not None:
-        yield catalog
-        catalog = getattr(catalog, "below", None)
+    while catalogue is not None:
+        yield catalogue
+        catalogue = getattr(catalogue, "below", None)
 
 
-def _defining_file(catalog, quantity: str, model_id: str) -> Path:
-    for layer in _layers(catalog):
+def _defining_file(catalogue, quantity: str, model_id: str) -> Path:
+    for layer in _layers(catalogue):
         if isinstance(layer, Overlay):
             if model_id in layer.own_model_ids(quantity):
                 return layer.root / "models" / quantity / f"{model_id}.toml"
@@ -612,8 +612,8 @@ def _defining_file(catalog, quantity: str, model_id: str) -> Path:
     raise AssertionError("unreachable")  # pragma: no cover
 
 
-def _release_file(catalog, release_id: str) -> Path:
-    for layer in _layers(catalog):
+def _release_file(catalogue, release_id: str) -> Path:
+    for layer in _layers(catalogue):
         if not isinstance(layer, Overlay) or release_id in layer.own_release_ids():
             return layer.root / "releases" / f"{release_id}.toml"
     raise AssertionError("unreachable")  # pragma: no cover
@@ -645,7 +645,7 @@ def _record_key(record: SealRecord):
     return ("given", frozenset(record.entries().items()))
 
 
-def _overlay(root: Path, below: Catalog, record: SealRecord) -> Overlay:
+def _overlay(root: Path, below: Catalogue, record: SealRecord) -> Overlay:
     key = (Path(os.path.abspath(root)), id(below), _record_key(record))
     with _LOCK:
         overlay = _OVERLAYS.get(key)
@@ -664,11 +664,11 @@ def _forget_all(root: Path | str) -> None:
             del _OVERLAYS[key]
 
 
-def catalog_at(
+def catalogue_at(
     root: Path | str | None = None,
     overlays: Sequence[Path | str] = (),
     seals: Path | str | Mapping | SealRecord | None = None,
-) -> Catalog:
+) -> Catalogue:
     """The shared catalogue of a shipped datasets folder (``None``: the installed one)
     with overlay catalogues over it.
 
@@ -676,17 +676,17 @@ def catalog_at(
     on (name the releases of) those listed after it. ``seals`` is where final own
     releases are recorded: a seals file (default ``$MATPROPS_SEALS`` or the user's
     configuration folder) or a mapping ``{(catalogue name, release id): digest}``.
-    Without overlays this is :func:`matprops.catalogue.store.catalog_at`.
+    Without overlays this is :func:`matprops.catalogue.store.catalogue_at`.
     """
-    catalog = _shipped_at(root)
+    catalogue = _shipped_at(root)
     if isinstance(overlays, (str, os.PathLike)):
         overlays = [overlays]
     if not overlays:
-        return catalog
+        return catalogue
     record = _record(seals)
     for path in reversed([Path(p).expanduser() for p in overlays]):
-        catalog = _overlay(path, catalog, record)
-    return catalog
+        catalogue = _overlay(path, catalogue, record)
+    return catalogue
 
 
 def catalogues_from_environment() -> list[str]:
@@ -696,29 +696,29 @@ def catalogues_from_environment() -> list[str]:
     return [os.path.abspath(os.path.expanduser(p)) for p in value.split(os.pathsep) if p.strip()]
 
 
-def key_of(catalog) -> tuple | None:
+def key_of(catalogue) -> tuple | None:
     """A catalogue as plain data, the same in every process that holds the same data:
     ``None`` for the installed one, ``("datasets", folder)``, or for an overlay
     ``("overlay", folder, digest of its checksum list, name, its seals, key below)``.
     :func:`from_key` rebuilds it (and refuses an overlay whose files differ)."""
-    from .store import default_catalog
+    from .store import default_catalogue
 
-    if isinstance(catalog, Overlay):
-        seals = tuple(sorted(catalog.seals.items()))
+    if isinstance(catalogue, Overlay):
+        seals = tuple(sorted(catalogue.seals.items()))
         return (
             "overlay",
-            str(catalog.root),
-            catalog.digest,
-            catalog.name,
+            str(catalogue.root),
+            catalogue.digest,
+            catalogue.name,
             seals,
-            key_of(catalog.below),
+            key_of(catalogue.below),
         )
-    if catalog is default_catalog():
+    if catalogue is default_catalogue():
         return None
-    return ("datasets", str(catalog.root))
+    return ("datasets", str(catalogue.root))
 
 
-def from_key(key: tuple | None) -> Catalog:
+def from_key(key: tuple | None) -> Catalogue:
     """The shared catalogue a :func:`key_of` key describes, in this process."""
     if key is None or key[0] == "datasets":
         return _shipped_at(None if key is None else key[1])
@@ -734,20 +734,20 @@ def _overlay_from(key) -> Overlay | Unusable:
         return Unusable(exc, Overlay)
 
 
-def file_label(catalog, path: Path) -> str:
+def file_label(catalogue, path: Path) -> str:
     """A data file as the digests of a pickled material name it: its path relative to
     the shipped folder, or ``<catalogue name>:<path>`` in an overlay."""
-    layer = catalog.layer_of(path) if isinstance(catalog, Overlay) else catalog
+    layer = catalogue.layer_of(path) if isinstance(catalogue, Overlay) else catalogue
     if layer is None:
         return str(path)
     relative = Path(path).relative_to(layer.root).as_posix()
     return f"{layer.name}:{relative}" if isinstance(layer, Overlay) else relative
 
 
-def file_of_label(catalog, label: str) -> Path:
+def file_of_label(catalogue, label: str) -> Path:
     """The file a :func:`file_label` names, in this process."""
     name, sep, relative = label.partition(":")
-    for layer in _layers(catalog):
+    for layer in _layers(catalogue):
         if sep and isinstance(layer, Overlay) and layer.name == name:
             return layer.root / relative
         if not sep and not isinstance(layer, Overlay):
@@ -773,3 +773,6 @@ def _rebuild_overlay(root, digest, below, seals) -> Overlay:
             "worker the same copy of the folder)",
         )
     return overlay
+
+
+catalog_at = catalogue_at  # former spelling, still served

@@ -682,7 +682,7 @@ def _plain_extra(value):
 
 
 def _rebind_model(
-    catalog: CatalogueLike,
+    catalogue: CatalogueLike,
     quantity: str,
     model_id: str,
     sha256: str,
@@ -692,16 +692,16 @@ def _rebind_model(
 ) -> Model | Unusable:
     """Unpickle a model; never raises (see :class:`matprops.errors.Unusable`): a model
     whose file or tables differ here, or cannot be read, raises on its first use."""
-    for part in (catalog, *components.values()):
+    for part in (catalogue, *components.values()):
         if isinstance(part, Unusable):
             return Unusable(part.error, Model)
     try:
-        model = catalog.model(quantity, model_id)
+        model = catalogue.model(quantity, model_id)
         here: dict[str, tuple[Path, str | None, str]] = {
             "model file": (model.path, model.sha256, sha256)
         }
         for name, digest in (tables or {}).items():
-            here[name] = (catalog.table_path(name), model._table_digests().get(name), digest)
+            here[name] = (catalogue.table_path(name), model._table_digests().get(name), digest)
         for mine_path, mine, theirs in here.values():
             if mine != theirs:
                 raise DatasetError(
@@ -797,10 +797,10 @@ class Release:
         return self
 
 
-def _reload_release(catalog: CatalogueLike, release_id: str) -> Release | Unusable:
-    if isinstance(catalog, Unusable):
-        return Unusable(catalog.error, Release)
+def _reload_release(catalogue: CatalogueLike, release_id: str) -> Release | Unusable:
+    if isinstance(catalogue, Unusable):
+        return Unusable(catalogue.error, Release)
     try:
-        return catalog.release(release_id)
+        return catalogue.release(release_id)
     except Error as exc:  # (never raise while unpickling: see errors.Unusable)
         return Unusable(exc, Release)

@@ -129,7 +129,7 @@ def list_of(entry) -> ListOf:
 
 # --------------------------------------------------------------------------- sections
 
-SOURCE = {  # which fields each type needs: catalog.SOURCE_TYPES
+SOURCE = {  # which fields each type needs: catalogue.SOURCE_TYPES
     "type": (one_of("article", "book", "measurement"), OPTIONAL),  # default "article"
     "authors": (TEXTS, REQUIRED),
     "year": (INTEGER, REQUIRED),

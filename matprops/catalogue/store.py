@@ -70,16 +70,16 @@ from .schema import (
 )
 
 __all__ = [
-    "Catalog",
+    "Catalogue",
     "Coefficient",
     "Model",
     "Range",
     "Region",
     "Release",
     "Source",
-    "catalog_at",
+    "catalogue_at",
     "datasets_root",
-    "default_catalog",
+    "default_catalogue",
 ]
 
 CHECKSUM_FILE = "checksums.sha256"
@@ -192,7 +192,7 @@ def _open_table(name: str, data: bytes):
                 handle.close()
 
 
-class Catalog:
+class Catalogue:
     """The models, tables and releases found under one ``datasets/`` folder."""
 
     def __init__(self, root: Path | str | None = None):
@@ -208,7 +208,7 @@ class Catalog:
         # a catalogue pickles as its root; the default one as "the receiver's default",
         # so a worker on another machine reads its own installed copy
         default = bool(_DEFAULT) and self is _DEFAULT[0]
-        return _unpickle_catalog, (None if default else str(self.root),)
+        return _unpickle_catalogue, (None if default else str(self.root),)
 
     def __copy__(self):
         return self  # a cache of immutable records: one per root is enough
@@ -217,7 +217,7 @@ class Catalog:
         return self
 
     @property
-    def base(self) -> Catalog:
+    def base(self) -> Catalogue:
         """The catalogue itself (a release's view answers with the one it views)."""
         return self
 
@@ -374,7 +374,7 @@ class Catalog:
                 self._models[path] = _build_model(path, data, owner)
             return self._models[path]
 
-    def for_release(self, release: Release) -> Catalog | ReleaseCatalogue:
+    def for_release(self, release: Release) -> Catalogue | ReleaseCatalogue:
         """The catalogue as a release sees it: a final release reads the model and
         defect files it sealed from its archive (``archive/<id>/``), so the main tree
         may move on; a draft reads the main tree."""
@@ -489,7 +489,7 @@ class Catalog:
 
 
 class ReleaseCatalogue:
-    """A catalogue as one final release sees it (see :meth:`Catalog.for_release`).
+    """A catalogue as one final release sees it (see :meth:`Catalogue.for_release`).
 
     Model and defect files come from ``archive/<release>/`` when the release sealed
     them (every model of every quantity it served, defaults and alternatives, and the
@@ -498,7 +498,7 @@ class ReleaseCatalogue:
     viewed catalogue's.
     """
 
-    def __init__(self, base: Catalog, release_id: str):
+    def __init__(self, base: Catalogue, release_id: str):
         self.base = base
         self.release_id = release_id
         self.archive = base.root / "archive" / release_id
@@ -540,11 +540,11 @@ class ReleaseCatalogue:
             return self.base.model_at(path, self)
         return self.base.model(quantity, model_id)
 
-    def for_release(self, release: Release) -> Catalog | ReleaseCatalogue:
+    def for_release(self, release: Release) -> Catalogue | ReleaseCatalogue:
         return self.base.for_release(release)
 
 
-def _release_view(base: Catalog, release_id: str) -> Catalog | ReleaseCatalogue | Unusable:
+def _release_view(base: Catalogue, release_id: str) -> Catalogue | ReleaseCatalogue | Unusable:
     if isinstance(base, Unusable):
         return base
     try:
@@ -553,11 +553,11 @@ def _release_view(base: Catalog, release_id: str) -> Catalog | ReleaseCatalogue 
         return Unusable(exc, ReleaseCatalogue)
 
 
-def _unpickle_catalog(root: str | None) -> Catalog | Unusable:
+def _unpickle_catalogue(root: str | None) -> Catalogue | Unusable:
     try:
-        return catalog_at(root)
+        return catalogue_at(root)
     except Error as exc:  # e.g. MATPROPS_DATASETS names no folder in this process
-        return Unusable(exc, Catalog)
+        return Unusable(exc, Catalogue)
 
 
 #: Deepest nesting of tables and arrays a data file may have (the catalogue's files
@@ -633,16 +633,16 @@ def _atomic_write_text(target: Path, text: str) -> None:
         forget(tmp)
 
 
-_DEFAULT: list[Catalog] = []
+_DEFAULT: list[Catalogue] = []
 _DEFAULT_LOCK = threading.Lock()
 
 
-def default_catalog() -> Catalog:
+def default_catalogue() -> Catalogue:
     """The catalogue of the installed datasets (created once, on first use)."""
     if not _DEFAULT:
         with _DEFAULT_LOCK:
             if not _DEFAULT:
-                _DEFAULT.append(Catalog())
+                _DEFAULT.append(Catalogue())
     return _DEFAULT[0]
 
 
@@ -652,24 +652,30 @@ def _forget_default() -> None:
         _DEFAULT.clear()
 
 
-default_catalog.cache_clear = _forget_default  # the name functools.lru_cache gives it
+default_catalogue.cache_clear = _forget_default  # the name functools.lru_cache gives it
 
 
-_CATALOGS: dict[Path, Catalog] = {}
+_CATALOGS: dict[Path, Catalogue] = {}
 
 
-def catalog_at(root: Path | str | None) -> Catalog:
+def catalogue_at(root: Path | str | None) -> Catalogue:
     """The shared catalogue of a datasets folder (the default one for ``None``).
 
     Unpickled models and materials find their catalogue here, so a worker reads and
     checks each file once however many objects it receives.
     """
     if root is None:
-        return default_catalog()
+        return default_catalogue()
     root = Path(root)
     with _DEFAULT_LOCK:
         if _DEFAULT and _DEFAULT[0].root == root:
             return _DEFAULT[0]
         if root not in _CATALOGS:
-            _CATALOGS[root] = Catalog(root)
+            _CATALOGS[root] = Catalogue(root)
         return _CATALOGS[root]
+
+
+# former spellings, still served
+Catalog = Catalogue
+default_catalog = default_catalogue
+catalog_at = catalogue_at

@@ -219,28 +219,28 @@ class _Progress:
             self.stream.flush()
 
 
-def _catalog():
+def _catalogue():
     """The installed catalogue, or a one-line error when its folder is unusable."""
-    from ..catalogue.store import default_catalog
+    from ..catalogue.store import default_catalogue
     from ..errors import DatasetError
 
-    catalog = default_catalog()
-    root = catalog.root
+    catalogue = default_catalogue()
+    root = catalogue.root
     hint = (
         "set MATPROPS_DATASETS to a matprops datasets folder (absolute path), or unset "
         "it to use the installed data"
     )
     if not root.is_dir():
         raise DatasetError(root, f"datasets folder does not exist; {hint}")
-    if not catalog.release_ids():
+    if not catalogue.release_ids():
         raise DatasetError(root / "releases", f"no release files (<YYYY.N>.toml); {hint}")
-    return catalog
+    return catalogue
 
 
 def _silicon(args):
     from ..material.silicon import Silicon
 
-    _catalog()
+    _catalogue()
     overrides = {}
     for item in args.model or []:
         quantity, sep, model_id = item.partition("=")
@@ -248,7 +248,7 @@ def _silicon(args):
             raise InputError("--model", "QUANTITY=MODEL_ID", repr(item))
         overrides[quantity.strip()] = model_id.strip()
     si = Silicon(
-        release=args.release, models=overrides, strict=args.strict, catalog=own.catalogue(args)
+        release=args.release, models=overrides, strict=args.strict, catalogue=own.catalogue(args)
     )
     # validity messages go straight to stderr (one line each, once): the material
     # reports them to the command instead of warning, so no warning filter is set
@@ -455,7 +455,7 @@ def _cmd_plot(args):
 
 def _cmd_describe(args):
     si = _silicon(args)
-    catalogue = si.catalog
+    catalogue = si.catalogue
     if args.model_id is None:
         model = si.model(args.quantity)
     else:
@@ -499,7 +499,7 @@ def _cmd_provenance(args):
 def _cmd_release_diff(args):
     from ..outputs.changes import release_difference
 
-    _catalog()
+    _catalogue()
     diff = release_difference(args.old, args.new)
     if args.json:
         print(json.dumps(diff, indent=1, ensure_ascii=False))
@@ -512,7 +512,7 @@ def _cmd_report(args, spec=None):
     from ..material.silicon import Silicon
     from ..outputs.report import report
 
-    _catalog()
+    _catalogue()
     spec = spec or read_spec(args.spec)
     models = dict(spec.models)
     for item in args.model or []:
@@ -543,13 +543,13 @@ def _cmd_report(args, spec=None):
 
 
 def _cmd_demo(args):
-    catalog = _catalog()
-    known = catalog.scenario_names()
+    catalogue = _catalogue()
+    known = catalogue.scenario_names()
     if args.scenario not in known:  # (a path such as ../.. is no scenario's name)
         raise InputError(
             "--scenario", f"one of {', '.join(known) or '(none)'}", repr(args.scenario)
         )
-    _cmd_report(args, catalog.scenario(args.scenario))
+    _cmd_report(args, catalogue.scenario(args.scenario))
 
 
 def _cmd_explain(args):
@@ -573,7 +573,7 @@ def _cmd_explain(args):
 
 
 def _cmd_models(args):
-    _catalog()
+    _catalogue()
     catalogue = own.catalogue(args)
     quantities = [args.quantity] if args.quantity else catalogue.quantities()
     for quantity in quantities:
@@ -584,10 +584,10 @@ def _cmd_models(args):
 
 
 def _cmd_releases(args):
-    _catalog()
-    catalog = own.catalogue(args)
-    for release_id in catalog.release_ids():
-        release = catalog.release(release_id)
+    _catalogue()
+    catalogue = own.catalogue(args)
+    for release_id in catalogue.release_ids():
+        release = catalogue.release(release_id)
         print(f"{release_id} ({release.status}, {release.date})")
         for quantity, model_id in release.models.items():
             print(f"  {quantity:24s} {model_id}")

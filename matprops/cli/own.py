@@ -47,12 +47,12 @@ def add_options(parser) -> None:
 
 def catalogue(args):
     """The catalogue the options name: the shipped one, with overlays if given."""
-    from ..catalogue.overlay import catalog_at, catalogues_from_environment
+    from ..catalogue.overlay import catalogue_at, catalogues_from_environment
 
     paths = getattr(args, "catalogues", None)
     if paths is None:
         paths = catalogues_from_environment()
-    return catalog_at(
+    return catalogue_at(
         None, [os.path.abspath(os.path.expanduser(p)) for p in paths], getattr(args, "seals", None)
     )
 

@@ -615,7 +615,7 @@ def make_kernel(si, name: str, fixed: Mapping[str, object]) -> BoundKernel:
                 "dopant", f"given for {name} (one of {', '.join(model.variants)})", None
             )
         species = dopant_species(species, "dopant")
-        model, stand_in = species_model(model, species, si.catalog)
+        model, stand_in = species_model(model, species, si.catalogue)
         chosen = {"dopant": species}
         if stand_in is not None:  # served by another species' set or model: labelled
             note = f"The dopant {stand_in.describe()}"

@@ -151,13 +151,13 @@ class _Bound:
         )
         self.fitted_density = conventions.get("intrinsic_density")
         self.uses_carriers = "electron_density" in self.narrowing.inputs
-        self.catalog = si.catalog
+        self.catalogue = si.catalogue
         # the ionisation model's own densities of states and statistics, carried into
         # the occupancy of its levels where they differ from the material's
         ionisation = self.ionisation.conventions
         states = ionisation.value("densities_of_states")
         self.level_states = (
-            self.catalog.model("densities_of_states", states)
+            self.catalogue.model("densities_of_states", states)
             if states not in (None, "none", "own", "composed") and states != self.dos.id
             else None
         )
@@ -191,7 +191,7 @@ class _Bound:
 
     def species_level(self, species):
         """The ionisation model serving a dopant species, and its stand-in record."""
-        return species_model(self.ionisation, species, self.catalog)
+        return species_model(self.ionisation, species, self.catalogue)
 
     def level(self, species, density, temperature=None, complete=False, states=None):
         """((E_dop, localised share b), degeneracy) of a dopant species.
@@ -660,7 +660,7 @@ class CarrierMethods:
         """``(ionisation energy [eV], share of states still localised [1])`` of a dopant
         at total density ``N`` (cm^-3); the rest of its states has merged into the band."""
         species = dopant_species(dopant, "dopant")
-        model, _ = species_model(self.model("ionisation"), species, self.catalog)
+        model, _ = species_model(self.model("ionisation"), species, self.catalogue)
         array, low, high = coerce(N, "N")
         self._check(model, "dopant_density", low, high)
         energy, share = model(dopant_density=array)

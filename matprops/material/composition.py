@@ -178,7 +178,7 @@ def _with(si, **models):
     return type(si)(
         release=si.release.id,
         models={**si._overrides, **models},
-        catalog=si.catalog.base,
+        catalogue=si.catalogue.base,
     )
 
 
@@ -221,7 +221,7 @@ def _statistics_sizes(si, fitted: str) -> dict:
 def _model_ratio(si, quantity: str, fitted: str, used) -> dict:
     """Relative difference of another model of ``quantity`` at the standard temperature."""
     t = STANDARD_TEMPERATURE
-    other = si.catalog.model(quantity, fitted)
+    other = si.catalogue.model(quantity, fitted)
     label = f"{t:g} K"
     if other.variant_axis == "carrier":
         return {
@@ -323,7 +323,7 @@ def consistency(si) -> Consistency:
                     if entry.number:
                         ratio = entry.kernel_value / float(bound.ni(temperature=entry.temperature))
                     else:
-                        other = si.catalog.model("intrinsic_density", value)
+                        other = si.catalogue.model("intrinsic_density", value)
                         ratio = float(other(temperature=t)) / float(bound.ni(temperature=t))
                     what = "ni_eff" if quantity == "gap_narrowing" else "the minority densities"
                     power = "" if quantity == "gap_narrowing" else "^2"
@@ -336,7 +336,7 @@ def consistency(si) -> Consistency:
                     fitted = (
                         entry.kernel_value
                         if entry.number
-                        else float(si.catalog.model("intrinsic_density", value)(temperature=t))
+                        else float(si.catalogue.model("intrinsic_density", value)(temperature=t))
                     )
                     at = entry.temperature if entry.number else t
                     used = float(bound.ni(temperature=at))
@@ -356,7 +356,7 @@ def consistency(si) -> Consistency:
                     continue
                 if quantity == "ionisation":
                     nc, nv = bound.dos(temperature=t)
-                    fc, fv = si.catalog.model("densities_of_states", value)(temperature=t)
+                    fc, fv = si.catalogue.model("densities_of_states", value)(temperature=t)
                     notes.append(
                         f"{name}: its levels carry the densities of states it was fitted "
                         f"with, {value} (E_dop + kT ln(N/N_fit): donors "

@@ -309,7 +309,7 @@ def _stripped(model: Model) -> Model:
 # attributes a Silicon is built with; everything else in its __dict__ is a cache
 _MATERIAL_STATE = (
     "release",
-    "catalog",
+    "catalogue",
     "strict",
     "_overrides",
     "overridden",

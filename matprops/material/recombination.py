@@ -75,8 +75,8 @@ def _defect_cases(si):
     if "srh_lifetime" not in si.models:
         return []
     cases = []
-    for name in defect_catalogue.names(si.catalog):
-        entry = defect_catalogue.defect(name, si.catalog)
+    for name in defect_catalogue.names(si.catalogue):
+        entry = defect_catalogue.defect(name, si.catalogue)
         fixed = (
             {"defect": name, "density": 1e11}
             if entry.absolute
@@ -270,7 +270,7 @@ class RecombinationMethods:
         _check: Any
         _check_regions: Any
         _warn_mismatches: Any
-        catalog: Any
+        catalogue: Any
         _carriers: Any
 
     # ------------------------------------------------------------------ radiative
@@ -406,7 +406,7 @@ class RecombinationMethods:
         ni = self.model("intrinsic_density")
         if entry.number:
             return entry.kernel_value / float(ni(temperature=entry.temperature))
-        other = self.catalog.model("intrinsic_density", entry.value)
+        other = self.catalogue.model("intrinsic_density", entry.value)
         return other(temperature=temperature) / ni(temperature=temperature)
 
     def _lazy_solve_pays(self, prepared) -> bool:
@@ -608,17 +608,17 @@ class RecombinationMethods:
     # ------------------------------------------------------------------ SRH
     def defect(self, name):
         """A defect of the catalogue by name or alias (see :mod:`matprops.catalogue.defects`)."""
-        return defect_catalogue.defect(name, self.catalog)
+        return defect_catalogue.defect(name, self.catalogue)
 
     def defects(self) -> list[str]:
         """Names of the defects in the catalogue."""
-        return defect_catalogue.names(self.catalog)
+        return defect_catalogue.names(self.catalogue)
 
     def _velocities(self, defect, t):
         """Thermal velocities (v_n, v_p) in cm/s for a defect's cross-sections, and the
         id of the model that gave them."""
         if defect.thermal_velocity:
-            model = self.catalog.model("thermal_velocity", defect.thermal_velocity)
+            model = self.catalogue.model("thermal_velocity", defect.thermal_velocity)
         else:
             model = self.model("thermal_velocity")
         velocities = []
@@ -745,7 +745,7 @@ class RecombinationMethods:
         items = []
         if defect is not None:
             items.append(
-                (defect_catalogue.parse(defect, self.catalog), density, electron_capture_time)
+                (defect_catalogue.parse(defect, self.catalogue), density, electron_capture_time)
             )
         elif density is not None or electron_capture_time is not None:
             raise InputError("defect", "given with density (or electron_capture_time)", "nothing")
@@ -756,7 +756,7 @@ class RecombinationMethods:
                     raise InputError(f"defects[{number}]", "a (defect, density) pair", repr(pair))
                 items.append(
                     (
-                        defect_catalogue.parse(pair[0], self.catalog, f"defects[{number}]"),
+                        defect_catalogue.parse(pair[0], self.catalogue, f"defects[{number}]"),
                         pair[1],
                         None,
                     )

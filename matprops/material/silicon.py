@@ -22,7 +22,7 @@ from typing import Any
 import numpy as np
 
 from ..catalogue.records import report_violation
-from ..catalogue.store import Catalog, Model, default_catalog
+from ..catalogue.store import Catalogue, Model, default_catalogue
 from ..errors import DatasetError, Error, InputError, UnknownQuantityError, Unusable
 from ..kernels._blocks import evaluate
 from ..units import check_broadcast, coerce, quantity
@@ -59,7 +59,7 @@ class Silicon(
     strict : bool
         Raise :class:`matprops.ValidityError` instead of warning when an input
         leaves a model's validity range.
-    catalog : Catalog, optional
+    catalogue : Catalogue, optional
         Where the data come from (default: the installed ``datasets/``).
     workers : int, optional
         Threads that evaluate the blocks of a large input side by side (numpy releases
@@ -82,15 +82,17 @@ class Silicon(
         release: str | None = None,
         models: Mapping[str, str] | None = None,
         strict: bool = False,
-        catalog: Catalog | None = None,
+        catalogue: Catalogue | None = None,
         workers: int | None = None,
+        catalog: Catalogue | None = None,
     ):
-        catalog = catalog or default_catalog()
-        self.release = catalog.release(
-            release if release is not None else catalog.newest_release_id()
+        # ``catalog`` is the former spelling of ``catalogue``, still accepted
+        catalogue = catalogue or catalog or default_catalogue()
+        self.release = catalogue.release(
+            release if release is not None else catalogue.newest_release_id()
         )
         # a final release reads the model and defect files it sealed (its archive)
-        self.catalog = catalog.for_release(self.release)
+        self.catalogue = catalogue.for_release(self.release)
         if not isinstance(strict, (bool, np.bool_)):  # strict="no" is not False
             raise InputError("strict", "True or False", repr(strict))
         self.strict = bool(strict)
@@ -99,7 +101,7 @@ class Silicon(
         check_workers(workers)
         self.workers = workers
         overrides = dict(models or {})
-        known = set(self.catalog.quantities())
+        known = set(self.catalogue.quantities())
         for name in overrides:
             if name not in known:
                 raise UnknownQuantityError(name, known, "in models=")
@@ -112,6 +114,11 @@ class Silicon(
         for name in choice:
             self._bind(name, choice)
 
+    @property
+    def catalog(self):
+        """Former spelling of :attr:`catalogue`, still served."""
+        return self.catalogue
+
     def __reduce__(self):
         # pickled by release, overrides, strict flag and catalogue (its folders as plain
         # data, None: the receiver's installed data; an overlay with the digest of its
@@ -120,7 +127,7 @@ class Silicon(
         from ..catalogue.overlay import key_of
 
         return _restore, (
-            key_of(self.catalog.base),
+            key_of(self.catalogue.base),
             self.release.id,
             self._overrides,
             self.strict,
@@ -150,7 +157,7 @@ class Silicon(
             mine, theirs = here.get(path), expected.get(path)
             if mine != theirs:
                 return DatasetError(
-                    file_of_label(self.catalog.base, path),
+                    file_of_label(self.catalogue.base, path),
                     f"has sha256 {mine or '(no such file)'} here but "
                     f"{theirs or '(no such file)'} where the material was pickled (or the "
                     "lazy table made): the two processes read different data; give the "
@@ -167,7 +174,7 @@ class Silicon(
             raise InputError(
                 "models", "free of circular compositions", " -> ".join(chain + (name,))
             )
-        model = self.catalog.model(name, choice[name])
+        model = self.catalogue.model(name, choice[name])
         if model.requires:
             model = model.compose(
                 **{q: self._bind(q, choice, chain + (name,)) for q in model.requires}
@@ -289,7 +296,10 @@ class Silicon(
         """The same release, strictness, catalogue and reporter with other model
         choices (``models`` are overrides on top of the release's)."""
         sibling = type(self)(
-            release=self.release.id, models=models, strict=self.strict, catalog=self.catalog.base
+            release=self.release.id,
+            models=models,
+            strict=self.strict,
+            catalogue=self.catalogue.base,
         )
         sibling._report = self._report
         return sibling
@@ -451,9 +461,9 @@ def _restore(key, release, overrides, strict, digests, workers=None) -> Silicon 
     from ..catalogue.overlay import from_key
 
     try:
-        catalog = from_key(key)  # (an overlay whose checksum list differs: refused)
+        catalogue = from_key(key)  # (an overlay whose checksum list differs: refused)
         si = Silicon(
-            release=release, models=overrides, strict=strict, catalog=catalog, workers=workers
+            release=release, models=overrides, strict=strict, catalogue=catalogue, workers=workers
         )
         mismatch = si._digest_mismatch(digests)
     except Error as exc:
@@ -479,14 +489,14 @@ def _data_digests(si: Silicon) -> dict[str, str]:
 
     for model in si._models.values():
         walk(model)
-    for entry in defects.describe(si.catalog):
+    for entry in defects.describe(si.catalogue):
         if entry.path is not None:
             files.add(entry.path)
         if entry.thermal_velocity:
-            files.add(si.catalog.model("thermal_velocity", entry.thermal_velocity).path)
+            files.add(si.catalogue.model("thermal_velocity", entry.thermal_velocity).path)
     from ..catalogue.overlay import file_label
 
-    base = si.catalog.base  # (a file of an overlay is labelled '<catalogue name>:<path>')
+    base = si.catalogue.base  # (a file of an overlay is labelled '<catalogue name>:<path>')
     return {file_label(base, path): base.recorded(path) for path in files}
 
 
@@ -519,21 +529,21 @@ def silicon(
         models=models,
         strict=strict,
         workers=workers,
-        catalog=_catalogue(catalogues, seals),
+        catalogue=_catalogue(catalogues, seals),
     )
 
 
-def _catalogue(catalogues, seals=None) -> Catalog:
+def _catalogue(catalogues, seals=None) -> Catalogue:
     """The shipped catalogue, with the overlays given (or named by the environment)."""
-    from ..catalogue.overlay import catalog_at, catalogues_from_environment
+    from ..catalogue.overlay import catalogue_at, catalogues_from_environment
 
     if catalogues is None:
         catalogues = catalogues_from_environment()
     elif isinstance(catalogues, (str, os.PathLike)):
         catalogues = [catalogues]
     if not catalogues:
-        return default_catalog()
-    return catalog_at(None, [os.path.abspath(os.path.expanduser(p)) for p in catalogues], seals)
+        return default_catalogue()
+    return catalogue_at(None, [os.path.abspath(os.path.expanduser(p)) for p in catalogues], seals)
 
 
 def releases(catalogues: Sequence[str | os.PathLike] | None = None) -> list[str]:
@@ -545,10 +555,10 @@ def releases(catalogues: Sequence[str | os.PathLike] | None = None) -> list[str]
 def models(quantity: str | None = None, catalogues: Sequence[str | os.PathLike] | None = None):
     """Model ids for one quantity, or a dict quantity -> ids for all (with the models of
     the overlay catalogues given, default ``$MATPROPS_CATALOGUES``)."""
-    catalog = _catalogue(catalogues)
+    catalogue = _catalogue(catalogues)
     if quantity is None:
-        return {q: catalog.model_ids(q) for q in catalog.quantities()}
-    return catalog.model_ids(quantity)
+        return {q: catalogue.model_ids(q) for q in catalogue.quantities()}
+    return catalogue.model_ids(quantity)
 
 
 def _give_uncertainty():

@@ -446,15 +446,15 @@ def _rebuild(recipe):
     from ..catalogue.overlay import from_key
 
     material, key, release, overrides, strict = recipe
-    catalog = from_key(key)  # an overlay whose files differ here is refused (an error)
-    return material(release=release, models=dict(overrides), strict=strict, catalog=catalog)
+    catalogue = from_key(key)  # an overlay whose files differ here is refused (an error)
+    return material(release=release, models=dict(overrides), strict=strict, catalogue=catalogue)
 
 
 def _recipe(si):
     from ..catalogue.overlay import key_of
 
     overrides = tuple(sorted((q, m) for q, m in si.models.items() if q in si.overridden))
-    return (type(si), key_of(si.catalog.base), si.release.id, overrides, si.strict)
+    return (type(si), key_of(si.catalogue.base), si.release.id, overrides, si.strict)
 
 
 @functools.lru_cache(maxsize=8)
@@ -616,7 +616,7 @@ def table(
 
     from .._version import __version__
 
-    grid = _Grid(axes, si.catalog)
+    grid = _Grid(axes, si.catalogue)
     entries = _select(si, grid, quantities)
     _refuse_or_drop_unused(grid, entries, named=quantities is not None)
     eager = [e for e in entries if chunks is None or not grid.dims_of(e)]
@@ -778,7 +778,7 @@ def _compare_one(variant, quantity, chunks, progress, axes):
         )
     except UnknownVariantError as exc:
         missing = exc
-    grid = _Grid(axes, variant.catalog)
+    grid = _Grid(axes, variant.catalogue)
     category = next(
         (d for d in ("carrier", "dopant") if d in grid and missing.name in grid.values[d]), None
     )
@@ -839,10 +839,10 @@ def compare(
     import xarray as xr
 
     quantity = check_name(quantity, "quantity")
-    if quantity not in si.catalog.quantities() or quantity not in QUANTITIES:
-        comparable = [q for q in si.catalog.quantities() if q in QUANTITIES]
+    if quantity not in si.catalogue.quantities() or quantity not in QUANTITIES:
+        comparable = [q for q in si.catalogue.quantities() if q in QUANTITIES]
         raise UnknownQuantityError(quantity, comparable, "with models to compare")
-    known = si.catalog.model_ids(quantity)
+    known = si.catalogue.model_ids(quantity)
     ids = list(known) if models is None else check_names(models, "models")
     if not ids:
         raise InputError("models", "at least one model id", "an empty list")
@@ -852,7 +852,7 @@ def compare(
     if len(set(ids)) != len(ids):
         raise InputError("models", "distinct model ids", repr(ids))
     if chunks is None:  # every model's table, before any is evaluated
-        grid = _Grid(axes, si.catalog)
+        grid = _Grid(axes, si.catalogue)
         check_size(grid, [QUANTITIES[quantity]], max_values, len(ids), "models")
     parts, citations, provenance, skipped, kept = [], [], {}, {}, []
     for model_id in ids:

@@ -73,7 +73,7 @@ def _carrier_kernel(si, name, fixed):
         carrier = carrier_name(fixed.get("carrier"))
         key, default = ("donor", "phosphorus") if carrier == "electron" else ("acceptor", "boron")
         species = dopant_species(fixed.get(key, default), key, key)
-        stand_in = species_model(si.model("mobility"), species, si.catalog)[1]
+        stand_in = species_model(si.model("mobility"), species, si.catalogue)[1]
         if stand_in is not None:  # another species' coefficient set: labelled
             note = f"The dopant {stand_in.describe()}"
     return model_kernel(si, name, model, fixed, note)
@@ -110,7 +110,7 @@ class TransportMethods:
 
     if TYPE_CHECKING:  # provided by the facade (silicon.Silicon) these methods serve
         model: Any
-        catalog: Any
+        catalogue: Any
 
     # ------------------------------------------------------------------ velocities
     @declare(
@@ -159,7 +159,7 @@ class TransportMethods:
         model = self.model("mobility")
         if model.variant_axis == "dopant":
             species = donor if carrier == "electron" else acceptor
-            return species_model(model, species, self.catalog)[0]
+            return species_model(model, species, self.catalogue)[0]
         if model.variant_axis == "carrier":
             return model.select(carrier)
         return model
@@ -686,7 +686,7 @@ class TransportMethods:
         for species, where in ((acceptor, (na > 0) & ~compensated), (donor, ~(na > 0))):
             if not where.any():
                 continue
-            chosen = species_model(model, species, self.catalog)[0]
+            chosen = species_model(model, species, self.catalogue)[0]
             values = {
                 "temperature": _extremes(t[where]),
                 "dopant_density": _extremes((na if species == acceptor else nd)[where]),
@@ -786,7 +786,7 @@ class TransportMethods:
                 f"{rho[0].shape}, {t[0].shape}",
             ) from None
         if conversion == "standard":
-            model = species_model(self.model("standard_dopant_density"), species, self.catalog)[0]
+            model = species_model(self.model("standard_dopant_density"), species, self.catalogue)[0]
             value = self._call(model, {"temperature": t, "resistivity": rho})
             return quantity(np.broadcast_to(value, shape).astype(float), "cm^-3")
         # views of the inputs in their broadcast shape (the blocks are cut from them)

@@ -705,14 +705,14 @@ def _spread(si, name, call, method, args, kwargs, models, parts):
     count = own_mask.astype(int)
     overrides = dict(si._overrides)
     for quantity in quantities:
-        for model_id in si.catalog.model_ids(quantity):
+        for model_id in si.catalogue.model_ids(quantity):
             if model_id == si._models[quantity].id:
                 continue
             try:
                 other = type(si)(
                     release=si.release.id,
                     models={**overrides, quantity: model_id},
-                    catalog=si.catalog,
+                    catalogue=si.catalogue,
                 )
                 changed = changed_material(other, {})
                 sample = _parts(call(changed))

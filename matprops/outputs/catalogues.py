@@ -36,12 +36,12 @@ def create_catalogue(path, *, name: str, description: str, contact: str = "") ->
 
 def _stack(catalogue, catalogues, seals):
     """The layered catalogue with ``catalogue`` (where the release goes) on top."""
-    from ..catalogue.overlay import catalog_at, catalogues_from_environment
+    from ..catalogue.overlay import catalogue_at, catalogues_from_environment
 
     root = os.path.abspath(os.path.expanduser(os.fspath(catalogue)))
     others = catalogues_from_environment() if catalogues is None else list(catalogues)
     others = [os.path.abspath(os.path.expanduser(os.fspath(p))) for p in others]
-    return catalog_at(None, [root, *(p for p in others if p != root)], seals)
+    return catalogue_at(None, [root, *(p for p in others if p != root)], seals)
 
 
 def create_release(
@@ -81,10 +81,10 @@ def freeze_release(
 ) -> str:
     """Make a draft own release final (see :func:`matprops.outputs.reference.freeze`);
     returns the seal's digest, recorded in ``seals`` (default: the user's seals file)."""
-    from ..catalogue.overlay import catalog_at, catalogues_from_environment
+    from ..catalogue.overlay import catalogue_at, catalogues_from_environment
     from .reference import freeze
 
     if catalogues is None:
         catalogues = catalogues_from_environment()
-    top = catalog_at(None, [os.path.abspath(os.path.expanduser(p)) for p in catalogues], seals)
+    top = catalogue_at(None, [os.path.abspath(os.path.expanduser(p)) for p in catalogues], seals)
     return freeze(release, top, date)

@@ -13,7 +13,7 @@ import numpy as np
 __all__ = ["release_difference"]
 
 
-def release_difference(old: str, new: str, catalog=None) -> dict:
+def release_difference(old: str, new: str, catalogue=None) -> dict:
     """What changed between two releases.
 
     Returns a dict with ``models``: one record per quantity (the model in each
@@ -25,13 +25,13 @@ def release_difference(old: str, new: str, catalog=None) -> dict:
     relative deviation ``|new/old - 1|``, the largest absolute deviation with units,
     and the grid point where the relative one occurs.
     """
-    from ..catalogue.store import default_catalog, sha256_of
+    from ..catalogue.store import default_catalogue, sha256_of
     from ..material.silicon import Silicon
     from .reference import evaluate
 
-    catalog = catalog or default_catalog()
-    releases = {r: catalog.release(r) for r in (old, new)}
-    silicon = {r: Silicon(release=r, catalog=catalog) for r in (old, new)}
+    catalogue = catalogue or default_catalogue()
+    releases = {r: catalogue.release(r) for r in (old, new)}
+    silicon = {r: Silicon(release=r, catalogue=catalogue) for r in (old, new)}
     models = []
     for quantity in sorted(set(releases[old].models) | set(releases[new].models)):
         before, after = releases[old].models.get(quantity), releases[new].models.get(quantity)

@@ -518,7 +518,7 @@ def fit(
     quantity = REGISTRY.canonical(quantity_name(quantity))
     if isinstance(model, str):
         si = silicon(release=release, catalogues=catalogues, seals=seals)
-        parent = si.catalog.model(quantity, model)
+        parent = si.catalogue.model(quantity, model)
         release = si.release.id
     else:  # a Model (si.model("band_gap"), a catalogue's): the file it was read from
         parent = model.catalogue.model(model.quantity, model.id) if model.variant else model

@@ -16,7 +16,7 @@ import sys
 from pathlib import Path
 
 from ..catalogue.files import forget, interruptible, temporary_for
-from ..catalogue.store import Catalog, default_catalog
+from ..catalogue.store import Catalogue, default_catalogue
 from ..material.registry import declared
 from .render import model_record
 
@@ -27,10 +27,10 @@ def _one_line(text: str) -> str:
     return " ".join(str(text).split())
 
 
-def render(catalog: Catalog | None = None) -> str:
+def render(catalogue: Catalogue | None = None) -> str:
     """The catalogue as Markdown: every quantity, model, source, validity, origin."""
-    catalog = catalog or default_catalog()
-    releases = {r: catalog.release(r) for r in catalog.release_ids()}
+    catalogue = catalogue or default_catalogue()
+    releases = {r: catalogue.release(r) for r in catalogue.release_ids()}
     lines = [
         "# Model catalogue",
         "",
@@ -41,16 +41,16 @@ def render(catalog: Catalog | None = None) -> str:
     lines += ["| release | status | date |", "|---|---|---|"]
     lines += [f"| {r.id} | {r.status} | {r.date} |" for r in releases.values()]
     registry = declared()
-    for quantity in catalog.quantities():
+    for quantity in catalogue.quantities():
         lines += ["", f"## {quantity}", ""]
         if quantity in registry:
             lines += [_declaration(registry[quantity]), ""]
-        for model_id in catalog.model_ids(quantity):
-            model = catalog.model(quantity, model_id)
+        for model_id in catalogue.model_ids(quantity):
+            model = catalogue.model(quantity, model_id)
             chosen = [r for r, rel in releases.items() if rel.models.get(quantity) == model_id]
             lines += model_record(model, "markdown", defaults=chosen)
     lines += _derived_lines(registry)
-    lines += _defect_lines(catalog)
+    lines += _defect_lines(catalogue)
     return "\n".join(lines).rstrip() + "\n"
 
 
@@ -85,11 +85,11 @@ def _derived_lines(registry) -> list[str]:
     return lines
 
 
-def _defect_lines(catalog: Catalog) -> list[str]:
+def _defect_lines(catalogue: Catalogue) -> list[str]:
     """The defect catalogue (``datasets/defects/``), one entry per defect."""
     from ..catalogue.defects import describe
 
-    entries = describe(catalog)
+    entries = describe(catalogue)
     if not entries:
         return []
     lines = [

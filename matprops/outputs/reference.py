@@ -43,9 +43,9 @@ import numpy as np
 
 from ..catalogue.files import interruptible
 from ..catalogue.store import (
-    Catalog,
+    Catalogue,
     _atomic_write_text,
-    default_catalog,
+    default_catalogue,
     sha256_of,
 )
 from ..errors import Error, ReleaseFrozenError
@@ -103,7 +103,7 @@ def _table_cases(si) -> list:
         model = si.model(quantity)
         if model.kind != "table":
             continue
-        arrays = {name: si.catalog.table_arrays(name) for name in model.tables}
+        arrays = {name: si.catalogue.table_arrays(name) for name in model.tables}
         wavelength = arrays[model.table]["wavelength"][0]
         rng = model.validity.get("wavelength")
         if rng is not None:
@@ -143,13 +143,13 @@ def table_digest(arrays) -> str:
 
 def _table_digests(si) -> dict:
     names = sorted({name for model in si._models.values() for name in model.tables})
-    return {name: table_digest(si.catalog.table_arrays(name)) for name in names}
+    return {name: table_digest(si.catalogue.table_arrays(name)) for name in names}
 
 
 def _data_files(si) -> dict:
     """sha256 of the data a release's numbers depend on besides its model files and
     tables: the defect catalogue (keyed ``defects/<file>`` wherever the release reads it)."""
-    folder = si.catalog.data_folder("defects")
+    folder = si.catalogue.data_folder("defects")
     return {f"defects/{path.name}": sha256_of(path) for path in sorted(folder.glob("*.toml"))}
 
 
@@ -347,11 +347,11 @@ def alternatives(si) -> dict:
 
     evaluated = {}
     for quantity, default in sorted(si.release.models.items()):
-        for model_id in si.catalog.model_ids(quantity):
+        for model_id in si.catalogue.model_ids(quantity):
             if model_id == default:
                 continue
             variant = Silicon(
-                release=si.release.id, models={quantity: model_id}, catalog=si.catalog.base
+                release=si.release.id, models={quantity: model_id}, catalogue=si.catalogue.base
             )
             cases = [
                 (f"{label}@{quantity}={model_id}", method, fixed, grid)
@@ -373,20 +373,20 @@ def _model_files(si) -> dict:
     return {q: {"model": m.id, "sha256": sha256_of(m.path)} for q, m in sorted(si._models.items())}
 
 
-def regenerate(release_id: str, catalog: Catalog | None = None) -> Path:
+def regenerate(release_id: str, catalogue: Catalogue | None = None) -> Path:
     """Write the reference evaluations of a draft release (refuses a final one): its
     default models, every alternative model of its quantities, each case with the
     tolerance it is compared with."""
     from ..material.silicon import Silicon
 
-    catalog = catalog or default_catalog()
-    release = catalog.release(release_id)
+    catalogue = catalogue or default_catalogue()
+    release = catalogue.release(release_id)
     if release.final:
         raise ReleaseFrozenError(
             f"release {release_id} is final: its reference numbers "
             "never change; make a new release instead"
         )
-    si = Silicon(release=release_id, catalog=catalog)
+    si = Silicon(release=release_id, catalogue=catalogue)
     content = {
         "release": release_id,
         "model_files": _model_files(si),
@@ -401,10 +401,10 @@ def regenerate(release_id: str, catalog: Catalog | None = None) -> Path:
     return target
 
 
-def _holder(release) -> Catalog:
+def _holder(release) -> Catalogue:
     """The catalogue whose folder holds a release's file (the shipped one or an overlay)."""
     holder = release.catalogue
-    if not isinstance(holder, Catalog):  # (every release is read by a catalogue)
+    if not isinstance(holder, Catalogue):  # (every release is read by a catalogue)
         raise Error(f"release {release.id} was not read from a catalogue folder")
     return holder
 
@@ -443,7 +443,7 @@ def _compare_cases(si, frozen: dict, fresh: dict) -> list[str]:
     return problems
 
 
-def compare(release_id: str, catalog: Catalog | None = None) -> list[str]:
+def compare(release_id: str, catalogue: Catalogue | None = None) -> list[str]:
     """Differences between the frozen reference and a fresh evaluation ([] if none).
 
     Stored inputs are compared exactly (the same grid is evaluated); evaluated numbers
@@ -452,10 +452,10 @@ def compare(release_id: str, catalog: Catalog | None = None) -> list[str]:
     """
     from ..material.silicon import Silicon
 
-    catalog = catalog or default_catalog()
-    release = catalog.release(release_id)
-    frozen = json.loads(catalog.verified_bytes(release.reference_path))
-    si = Silicon(release=release_id, catalog=catalog)
+    catalogue = catalogue or default_catalogue()
+    release = catalogue.release(release_id)
+    frozen = json.loads(catalogue.verified_bytes(release.reference_path))
+    si = Silicon(release=release_id, catalogue=catalogue)
     problems = []
     frozen_digests = frozen.get("table_digests")
     if frozen_digests is None:
@@ -472,7 +472,7 @@ def compare(release_id: str, catalog: Catalog | None = None) -> list[str]:
     frozen_alternatives = dict(frozen.get("alternatives", {}))
     supplement = release.reference_path.with_name(f"{release_id}.alternatives.json")
     if supplement.is_file():  # alternatives frozen after the release itself (2026.1)
-        frozen_alternatives.update(json.loads(catalog.verified_bytes(supplement))["cases"])
+        frozen_alternatives.update(json.loads(catalogue.verified_bytes(supplement))["cases"])
     if frozen_alternatives:
         problems += _compare_cases(si, frozen_alternatives, alternatives(si))
     if release.final:
@@ -490,11 +490,11 @@ def compare(release_id: str, catalog: Catalog | None = None) -> list[str]:
 # --------------------------------------------------------------------------- freezing
 
 
-def _sealed_paths(catalog: Catalog, release_id: str) -> list[str]:
+def _sealed_paths(catalogue: Catalogue, release_id: str) -> list[str]:
     """Every file a release's numbers depend on, relative to the datasets folder: the
     release file, its reference(s), its archive (models and defects) and the tables
     its archived models read."""
-    root = catalog.root
+    root = catalogue.root
     releases = root / "releases"
     paths = [releases / f"{release_id}.toml", releases / f"{release_id}.reference.json"]
     supplement = releases / f"{release_id}.alternatives.json"
@@ -504,22 +504,22 @@ def _sealed_paths(catalog: Catalog, release_id: str) -> list[str]:
     paths += sorted(p for p in archive.rglob("*") if p.is_file())
     tables = set()
     for path in archive.glob("models/*/*.toml"):
-        model = catalog.model_at(path, catalog)
+        model = catalogue.model_at(path, catalogue)
         tables.update(model.tables)
-    paths += [catalog.data_folder("tables") / name for name in sorted(tables)]
+    paths += [catalogue.data_folder("tables") / name for name in sorted(tables)]
     return [p.relative_to(root).as_posix() for p in paths]
 
 
-def archive(catalog: Catalog, release_id: str, models: dict) -> Path:
+def archive(catalogue: Catalogue, release_id: str, models: dict) -> Path:
     """Copy every model file of every quantity a release serves, and the defect
     catalogue, into ``archive/<release>/``: what the release sealed stays readable
     while the main tree moves on."""
     import shutil
 
-    root = catalog.root
+    root = catalogue.root
     target = root / "archive" / release_id
     for quantity in sorted(models):
-        for model_id in catalog.model_ids(quantity):
+        for model_id in catalogue.model_ids(quantity):
             source = root / "models" / quantity / f"{model_id}.toml"
             destination = target / "models" / quantity / source.name
             destination.parent.mkdir(parents=True, exist_ok=True)
@@ -531,17 +531,17 @@ def archive(catalog: Catalog, release_id: str, models: dict) -> Path:
     return target
 
 
-def write_seal(catalog: Catalog, release_id: str, date: str) -> tuple[Path, str]:
+def write_seal(catalogue: Catalogue, release_id: str, date: str) -> tuple[Path, str]:
     """Write ``releases/<id>.seal.json`` (files and their sha256); return it and its
     digest, the line to record in :data:`matprops.catalogue.finality.FINAL_SEALS`."""
     from ..catalogue.finality import SEAL_VERSION
 
     files = {
-        relative: sha256_of(catalog.root / relative)
-        for relative in _sealed_paths(catalog, release_id)
+        relative: sha256_of(catalogue.root / relative)
+        for relative in _sealed_paths(catalogue, release_id)
     }
     seal = {"release": release_id, "sealed": date, "version": SEAL_VERSION, "files": files}
-    target = catalog.root / "releases" / f"{release_id}.seal.json"
+    target = catalogue.root / "releases" / f"{release_id}.seal.json"
     _atomic_write_text(target, json.dumps(seal, indent=1, ensure_ascii=False) + "\n")
     return target, sha256_of(target)
 
@@ -560,17 +560,17 @@ def _record_seal(release_id: str, digest: str) -> Path:
     return path
 
 
-def freeze(release_id: str, catalog: Catalog | None = None, date: str | None = None) -> str:
+def freeze(release_id: str, catalogue: Catalogue | None = None, date: str | None = None) -> str:
     """Make a draft release final: check that its reference reproduces, mark it final,
     archive its model and defect files, seal every file its numbers depend on and
     record the seal's digest in the package code. Returns the digest."""
     import datetime
 
-    catalog = catalog or default_catalog()
-    release = catalog.release(release_id)
+    catalogue = catalogue or default_catalogue()
+    release = catalogue.release(release_id)
     if release.final:
         raise ReleaseFrozenError(f"release {release_id} is final already")
-    problems = compare(release_id, catalog)
+    problems = compare(release_id, catalogue)
     if problems:
         raise ReleaseFrozenError(
             f"release {release_id} does not reproduce its reference; regenerate it and "
@@ -580,10 +580,10 @@ def freeze(release_id: str, catalog: Catalog | None = None, date: str | None = N
     if release.base is not None:  # an own release of an overlay catalogue
         return _freeze_own(release, date)
     _mark_final(release, date)
-    archive(catalog, release_id, dict(release.models))
-    catalog.write_checksums()
-    _, digest = write_seal(catalog, release_id, date)
-    catalog.write_checksums()
+    archive(catalogue, release_id, dict(release.models))
+    catalogue.write_checksums()
+    _, digest = write_seal(catalogue, release_id, date)
+    catalogue.write_checksums()
     _record_seal(release_id, digest)
     return digest
 
@@ -643,20 +643,20 @@ def main(argv=None) -> int:
 
 def _run(args) -> int:
     try:
-        catalog = None
+        catalogue = None
         if args.catalogue:
-            from ..catalogue.overlay import catalog_at
+            from ..catalogue.overlay import catalogue_at
 
-            catalog = catalog_at(None, args.catalogue, args.seals)
+            catalogue = catalogue_at(None, args.catalogue, args.seals)
         if args.action == "regenerate":
-            target = regenerate(args.release, catalog)
+            target = regenerate(args.release, catalogue)
             print(f"wrote {target} (review the diff before committing)")
             return 0
         if args.action == "freeze":
-            digest = freeze(args.release, catalog)
+            digest = freeze(args.release, catalogue)
             from ..catalogue.overlay import Overlay
 
-            release = (catalog or default_catalog()).release(args.release)
+            release = (catalogue or default_catalogue()).release(args.release)
             layer = _holder(release)
             if not isinstance(layer, Overlay):  # a release shipped with matprops
                 print(
@@ -670,7 +670,7 @@ def _run(args) -> int:
                     f"{layer.name}' (its users need that line in their seals file)"
                 )
             return 0
-        problems = compare(args.release, catalog)
+        problems = compare(args.release, catalogue)
     except Error as exc:  # a read-only install, a final release, an unknown release ...
         print(f"error: {exc}", file=sys.stderr)
         return 2

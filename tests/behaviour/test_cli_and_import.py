@@ -267,22 +267,22 @@ def test_describe_one_model(capsys):
 
 
 def test_release_diff_command(capsys, datasets_copy, monkeypatch):
-    from matprops.catalogue.store import default_catalog
+    from matprops.catalogue.store import default_catalogue
 
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     text = (root / "releases/2026.1.toml").read_text().replace('"2026.1"', '"2030.1"')
     text = text.replace('status = "final"', 'status = "draft"')
     (root / "releases/2030.1.toml").write_text(
         text.replace('band_gap = "passler-2002"', 'band_gap = "alex-1996"')
     )
-    catalog.write_checksums()
+    catalogue.write_checksums()
     monkeypatch.setenv("MATPROPS_DATASETS", str(root))
-    default_catalog.cache_clear()
+    default_catalogue.cache_clear()
     try:
         code, out, _ = run(capsys, "release-diff", "2026.1", "2030.1")
     finally:
         monkeypatch.delenv("MATPROPS_DATASETS")
-        default_catalog.cache_clear()
+        default_catalogue.cache_clear()
     assert code == 0
     assert "passler-2002 -> alex-1996" in out and "models changed (" in out
     deviations = out.split("numbers that moved")[1]
@@ -415,13 +415,13 @@ def test_optical_table(tmp_path, capsys):
 @pytest.fixture
 def datasets_env(datasets_copy, monkeypatch):
     """Point the command line at a private datasets folder (and back afterwards)."""
-    from matprops.catalogue.store import default_catalog
+    from matprops.catalogue.store import default_catalogue
 
-    root, catalog = datasets_copy
-    default_catalog.cache_clear()
-    yield root, catalog, monkeypatch
+    root, catalogue = datasets_copy
+    default_catalogue.cache_clear()
+    yield root, catalogue, monkeypatch
     monkeypatch.delenv("MATPROPS_DATASETS", raising=False)
-    default_catalog.cache_clear()
+    default_catalogue.cache_clear()
 
 
 @pytest.mark.parametrize(
@@ -433,7 +433,7 @@ def datasets_env(datasets_copy, monkeypatch):
     ],
 )
 def test_unusable_datasets_folder_is_one_line(capsys, tmp_path, datasets_env, case, fragment):
-    root, catalog, monkeypatch = datasets_env
+    root, catalogue, monkeypatch = datasets_env
     if case == "missing":
         monkeypatch.setenv("MATPROPS_DATASETS", str(tmp_path / "nowhere"))
     elif case == "no releases":
@@ -441,9 +441,9 @@ def test_unusable_datasets_folder_is_one_line(capsys, tmp_path, datasets_env, ca
             path.unlink()
         monkeypatch.setenv("MATPROPS_DATASETS", str(root))
     else:
-        newest = catalog.newest_release_id()
+        newest = catalogue.newest_release_id()
         (root / f"releases/{newest}.toml").write_text(f'release = "{newest}\n')
-        catalog.write_checksums()
+        catalogue.write_checksums()
         monkeypatch.setenv("MATPROPS_DATASETS", str(root))
     for argv in (["table", "-t", "300"], ["releases"]):
         code, _, err = run(capsys, *argv)

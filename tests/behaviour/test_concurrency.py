@@ -14,7 +14,7 @@ import pytest
 COLD_THREADS = textwrap.dedent("""
     import sys, threading, warnings
     import matprops
-    from matprops.catalogue.store import Catalog, datasets_root
+    from matprops.catalogue.store import Catalogue, datasets_root
 
     rounds, count = int(sys.argv[1]), 16
     root = datasets_root()
@@ -25,7 +25,7 @@ COLD_THREADS = textwrap.dedent("""
         lambda si: float(si.model("refractive_index").to_dataset()["refractive_index"][0]),
     ]
     for number in range(rounds):
-        si = matprops.silicon() if number == 0 else matprops.Silicon(catalog=Catalog(root))
+        si = matprops.silicon() if number == 0 else matprops.Silicon(catalogue=Catalogue(root))
         barrier = threading.Barrier(count)
         results, failures = [None] * count, []
 

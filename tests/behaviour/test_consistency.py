@@ -102,12 +102,12 @@ def test_release_defaults_and_their_difference(si):
 
 
 def test_a_bad_release_default_is_refused(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "releases/2026.2.toml"
     path.write_text(path.read_text().replace('"standard where it holds"', '"always"'))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match="defaults.doping_from_resistivity"):
-        catalog.release("2026.2")
+        catalogue.release("2026.2")
 
 
 @pytest.mark.parametrize(
@@ -136,14 +136,14 @@ def test_a_bad_release_default_is_refused(datasets_copy):
     ],
 )
 def test_stand_ins_schema(datasets_copy, old, new, message):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "models/mobility/klaassen-1992.toml"
     text = path.read_text()
     assert old in text
     path.write_text(text.replace(old, new, 1))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=message):
-        catalog.model("mobility", "klaassen-1992")
+        catalogue.model("mobility", "klaassen-1992")
 
 
 def test_every_dopant_species_of_the_vocabulary_is_known_to_the_catalogue():

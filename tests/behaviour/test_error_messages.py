@@ -111,8 +111,8 @@ def test_every_tabulated_method_takes_an_empty_array_for_each_input(name):
 # ------------------------------------------------------------------ provenance
 
 # every quantity a material answers provenance for: its models' and the derived ones
-QUANTITY_NAMES = sorted(set(SI.catalog.quantities()) | set(DERIVED) | set(QUANTITIES))
-MODELS = [(q, m) for q in SI.catalog.quantities() for m in SI.catalog.model_ids(q)]
+QUANTITY_NAMES = sorted(set(SI.catalogue.quantities()) | set(DERIVED) | set(QUANTITIES))
+MODELS = [(q, m) for q in SI.catalogue.quantities() for m in SI.catalogue.model_ids(q)]
 
 
 def _run(argv):
@@ -146,7 +146,7 @@ def test_provenance_of_every_quantity_from_python_and_the_command_line(name):
 
 @pytest.mark.parametrize("quantity, model_id", MODELS, ids=[f"{q}/{m}" for q, m in MODELS])
 def test_provenance_of_every_model_from_python_and_the_command_line(quantity, model_id):
-    model = SI.catalog.model(quantity, model_id)
+    model = SI.catalogue.model(quantity, model_id)
     record = model.provenance()
     assert json.loads(json.dumps(record))["model"] == model_id
     si = matprops.silicon(models={quantity: model_id})

@@ -15,10 +15,10 @@ import pytest
 
 from matprops.catalogue.fields import convert as _convert
 from matprops.catalogue.fields import udunits_to_pint
-from matprops.catalogue.store import default_catalog
+from matprops.catalogue.store import default_catalogue
 from matprops.kernels._tables import Locator
 
-CATALOG = default_catalog()
+CATALOG = default_catalogue()
 TABLE_MODELS = [
     (q, m)
     for q in ("absorption", "refractive_index")

@@ -15,7 +15,7 @@ import pytest
 import xarray as xr
 
 import matprops
-from matprops.catalogue.overlay import catalog_at
+from matprops.catalogue.overlay import catalogue_at
 
 SOURCE = {
     "authors": ["A. Tester"],
@@ -110,7 +110,7 @@ def test_uncertainties_agree_with_a_monte_carlo_refit(gap_model):
 
 
 def test_a_variant_is_fitted_on_its_own_coefficients(tmp_path):
-    model = matprops.silicon().catalog.model("mobility", "arora-1982").select("electron")
+    model = matprops.silicon().catalogue.model("mobility", "arora-1982").select("electron")
     temperature = np.linspace(250.0, 450.0, 21)
     truth = model(temperature=temperature, donor_density=1e15, acceptor_density=0.0)
     data = {
@@ -234,7 +234,7 @@ def test_a_written_fit_loads_with_its_uncertainties_and_correlations(gap_model, 
     root = matprops.create_catalogue(tmp_path / "lab", name="fit-lab", description="tests")
     fit = matprops.fit("band_gap", gap_model, _gap_data(gap_model, 3), free=FREE)
     path = fit.write(root, "fitlab-2027", source=SOURCE, notes="INVENTED data (tests)")
-    model = catalog_at(None, [root], {}).model("band_gap", "fitlab-2027")
+    model = catalogue_at(None, [root], {}).model("band_gap", "fitlab-2027")
     for name in FREE:
         assert model.coefficients[name].kernel_value == pytest.approx(fit.values[name], 1e-15)
         assert model.coefficients[name].kernel_uncertainty == pytest.approx(
@@ -274,7 +274,7 @@ def test_a_written_fit_loads_with_its_uncertainties_and_correlations(gap_model, 
 def test_a_failed_write_leaves_the_catalogue_as_it_was(gap_model, tmp_path):
     root = matprops.create_catalogue(tmp_path / "lab", name="fit-lab", description="tests")
     before = (root / "checksums.sha256").read_bytes()
-    model = matprops.silicon().catalog.model("mobility", "arora-1982")
+    model = matprops.silicon().catalogue.model("mobility", "arora-1982")
     temperature = np.linspace(250.0, 450.0, 11)
     values = model.select("hole")(temperature=temperature, donor_density=0.0, acceptor_density=1e15)
     data = {

@@ -18,24 +18,25 @@ import pytest
 SCRIPT = textwrap.dedent("""
     import multiprocessing, sys, threading
     import matprops
-    from matprops.catalogue.store import Catalog, datasets_root
+    from matprops.catalogue.store import Catalogue, datasets_root
 
     rounds = int(sys.argv[1])
     root = datasets_root()
-    shared = matprops.Silicon(catalog=Catalog(root))  # cold: loads on first use
+    shared = matprops.Silicon(catalogue=Catalogue(root))  # cold: loads on first use
     stop = threading.Event()
 
     def loader():  # holds the table lock again and again: cold catalogues read tables
         while not stop.is_set():
-            si = matprops.Silicon(catalog=Catalog(root))
+            si = matprops.Silicon(catalogue=Catalogue(root))
             si.absorption(800.0, 300.0)
             si.refractive_index(1000.0, 350.0)
 
     def work(index):
-        si = shared if index % 2 else matprops.Silicon(catalog=Catalog(root))
+        si = shared if index % 2 else matprops.Silicon(catalogue=Catalogue(root))
         return float(si.absorption(800.0, 300.0).m_as("1/cm"))
 
-    expected = float(matprops.Silicon(catalog=Catalog(root)).absorption(800.0, 300.0).m_as("1/cm"))
+    fresh = matprops.Silicon(catalogue=Catalogue(root))
+    expected = float(fresh.absorption(800.0, 300.0).m_as("1/cm"))
     threads = [threading.Thread(target=loader) for _ in range(2)]
     threads.append(threading.Thread(target=lambda: shared.absorption(900.0, 320.0)))
     for thread in threads:
@@ -81,13 +82,13 @@ def test_a_forked_child_gets_fresh_catalogue_locks():
         import os, threading, time
         import matprops
         from matprops.catalogue import store
-        from matprops.catalogue.store import Catalog, datasets_root
+        from matprops.catalogue.store import Catalogue, datasets_root
 
-        catalog = Catalog(datasets_root())
+        catalogue = Catalogue(datasets_root())
         held, release = threading.Event(), threading.Event()
 
         def holder():
-            with catalog._lock:
+            with catalogue._lock:
                 held.set()
                 release.wait()
 
@@ -96,7 +97,7 @@ def test_a_forked_child_gets_fresh_catalogue_locks():
         held.wait()
         pid = os.fork()
         if pid == 0:  # the child: the holder thread does not exist here
-            si = matprops.Silicon(catalog=catalog)
+            si = matprops.Silicon(catalogue=catalogue)
             value = si.absorption(800.0, 300.0).m_as("1/cm")
             os._exit(0 if value > 0 else 3)
         release.set()

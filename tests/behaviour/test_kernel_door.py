@@ -15,10 +15,10 @@ import numpy as np
 import pytest
 
 import matprops
-from matprops.catalogue.store import default_catalog
+from matprops.catalogue.store import default_catalogue
 from matprops.kernels._blocks import BLOCK
 
-CATALOG = default_catalog()
+CATALOG = default_catalogue()
 
 # internal-unit values of every kernel input, inside the models' ranges
 POINTS = {

@@ -14,7 +14,7 @@ import pytest
 
 import matprops
 from matprops.catalogue import overlay as overlays
-from matprops.catalogue.overlay import catalog_at
+from matprops.catalogue.overlay import catalogue_at
 from matprops.outputs import reference
 
 SOURCE = {
@@ -71,7 +71,7 @@ def _make_lab(root, seals):
     )
     digest = matprops.freeze_release("test-lab-1", catalogues=[root], seals=seals)
     overlays.write_release(
-        catalog_at(None, [root], seals),
+        catalogue_at(None, [root], seals),
         "test-lab-2",
         "test-lab-1",
         {"mobility": "arora-1982"},
@@ -125,14 +125,14 @@ def test_an_empty_overlay_changes_nothing(tmp_path):
 
 def test_an_overlay_may_not_redefine_a_shipped_model(tmp_path):
     root = matprops.create_catalogue(tmp_path / "lab", name="bad-lab", description="x")
-    shipped = matprops.silicon().catalog.root / "models" / "band_gap" / "passler-2002.toml"
+    shipped = matprops.silicon().catalogue.root / "models" / "band_gap" / "passler-2002.toml"
     (root / "models" / "band_gap").mkdir()
     shutil.copyfile(shipped, root / "models" / "band_gap" / "passler-2002.toml")
     overlays._write_checksums_of(root)
     with pytest.raises(
         matprops.DatasetError, match=r"redefines model band_gap/passler-2002 of"
     ) as info:
-        catalog_at(None, [root], {})
+        catalogue_at(None, [root], {})
     assert str(shipped) in str(info.value) and str(root) in str(info.value)
 
 
@@ -145,11 +145,11 @@ def test_an_overlay_may_not_use_a_shipped_release_id_or_its_form(tmp_path):
     (root / "releases" / "2026.1.toml").write_text(text.format(id="2026.1"))
     overlays._write_checksums_of(root)
     with pytest.raises(matprops.DatasetError, match="YYYY.N belongs to the shipped releases"):
-        catalog_at(None, [root], {})
+        catalogue_at(None, [root], {})
     (root / "releases" / "2026.1.toml").unlink()
     with pytest.raises(matprops.DatasetError, match="release id '2027.1'"):
         overlays.write_release(
-            catalog_at(None, [_fresh(root)], {}), "2027.1", "2026.1", {}, "notes"
+            catalogue_at(None, [_fresh(root)], {}), "2027.1", "2026.1", {}, "notes"
         )
 
 
@@ -162,20 +162,20 @@ def test_each_file_is_verified_against_its_own_folders_checksums(small_lab):
     root, seals = small_lab
     path = root / "models" / "band_gap" / "testlab-2027.toml"
     path.write_text(path.read_text().replace("Fictional Test Lab", "Another Lab"))
-    catalog = catalog_at(None, [root], seals)
+    catalogue = catalogue_at(None, [root], seals)
     with pytest.raises(matprops.ChecksumError, match=r"testlab-2027\.toml: sha256"):
-        catalog.model("band_gap", "testlab-2027")
-    assert catalog.model("band_gap", "passler-2002").id == "passler-2002"  # shipped: its own
+        catalogue.model("band_gap", "testlab-2027")
+    assert catalogue.model("band_gap", "passler-2002").id == "passler-2002"  # shipped: its own
 
 
 def test_table_and_measurement_names_stay_in_their_folder(small_lab):
     root, seals = small_lab
-    catalog = catalog_at(None, [root], seals)
+    catalogue = catalogue_at(None, [root], seals)
     for name in ("../checksums.sha256", "/etc/passwd", "..", ".hidden.nc", "a/b.nc"):
         with pytest.raises(matprops.DatasetError, match="is named by its file name in its folder"):
-            catalog.table_path(name)
+            catalogue.table_path(name)
         with pytest.raises(matprops.DatasetError, match="is named by its file name in its folder"):
-            catalog.measurement_path(name)
+            catalogue.measurement_path(name)
 
 
 def test_a_model_must_cite_the_data_the_catalogue_holds(small_lab):
@@ -184,7 +184,7 @@ def test_a_model_must_cite_the_data_the_catalogue_holds(small_lab):
     data.write_text(data.read_text() + "# one more line\n")
     overlays._write_checksums_of(root)
     with pytest.raises(matprops.DatasetError, match="cites other data than the catalogue holds"):
-        catalog_at(None, [root], seals).model("band_gap", "testlab-2027")
+        catalogue_at(None, [root], seals).model("band_gap", "testlab-2027")
 
 
 def test_writing_refuses_a_folder_changed_behind_its_back(small_lab):
@@ -207,8 +207,8 @@ def test_writing_refuses_a_folder_changed_behind_its_back(small_lab):
 
 def test_a_draft_own_release_over_a_draft_base(small_lab):
     root, seals = small_lab
-    catalog = catalog_at(None, [root], seals)
-    overlays.write_release(catalog, "test-lab-0", "2026.2", {"band_gap": "testlab-2027"}, "x")
+    catalogue = catalogue_at(None, [root], seals)
+    overlays.write_release(catalogue, "test-lab-0", "2026.2", {"band_gap": "testlab-2027"}, "x")
     si = matprops.silicon("test-lab-0", catalogues=[root], seals=seals)
     shipped = matprops.silicon("2026.2")
     assert si.release.base == "2026.2" and not si.release.final
@@ -219,15 +219,15 @@ def test_a_draft_own_release_over_a_draft_base(small_lab):
     assert gap["release_choice_from"] == "test-lab-0"
     assert si.provenance("mobility")["release_choice_from"] == "2026.2"
     clone = pickle.loads(pickle.dumps(si))
-    assert clone.catalog is si.catalog and clone.band_gap(300) == si.band_gap(300)
+    assert clone.catalogue is si.catalogue and clone.band_gap(300) == si.band_gap(300)
     # a shipped release may choose an overlay's model too
     chosen = matprops.silicon("2026.2", models={"band_gap": "testlab-2027"}, catalogues=[root])
     assert chosen.band_gap(300) == si.band_gap(300)
     assert chosen.provenance("band_gap")["overridden"] is True
     with pytest.raises(matprops.UnknownReleaseError, match="the base of a new release"):
-        overlays.write_release(catalog, "test-lab-9", "2025.9", {}, "x")
+        overlays.write_release(catalogue, "test-lab-9", "2025.9", {}, "x")
     with pytest.raises(matprops.UnknownModelError, match="testlab-2026"):
-        overlays.write_release(catalog, "test-lab-9", "2026.2", {"band_gap": "testlab-2026"}, "x")
+        overlays.write_release(catalogue, "test-lab-9", "2026.2", {"band_gap": "testlab-2026"}, "x")
 
 
 def test_the_environment_names_the_catalogues(small_lab, monkeypatch):
@@ -267,23 +267,23 @@ def test_an_own_release_serves_its_models_and_its_bases(lab):
 @pytest.mark.slow
 def test_a_final_own_release_reproduces_its_reference_and_is_recorded_outside(lab):
     root, seals, digest = lab
-    catalog = catalog_at(None, [root], seals)
-    assert catalog.release("test-lab-1").final
-    assert reference.compare("test-lab-1", catalog) == []
+    catalogue = catalogue_at(None, [root], seals)
+    assert catalogue.release("test-lab-1").final
+    assert reference.compare("test-lab-1", catalogue) == []
     assert f"{digest}  test-lab-1  test-lab" in seals.read_text()
     seal = json.loads((root / "releases" / "test-lab-1.seal.json").read_text())
     assert seal["base"] == "2026.1" and seal["models"]["band_gap"] == "testlab-2027"
     assert "measurements/band_gap-testlab-2027.csv" in seal["files"]
     assert not any(path.startswith("..") for path in seal["files"])
     with pytest.raises(matprops.ReleaseFrozenError, match="final already"):
-        reference.freeze("test-lab-1", catalog)
+        reference.freeze("test-lab-1", catalogue)
     with pytest.raises(matprops.ReleaseFrozenError, match="is final"):
-        reference.regenerate("test-lab-1", catalog)
+        reference.regenerate("test-lab-1", catalogue)
 
 
 def _tampered(root, seals):
     overlays._forget_all(root)
-    return catalog_at(None, [root], seals)
+    return catalogue_at(None, [root], seals)
 
 
 @pytest.mark.slow
@@ -340,34 +340,34 @@ def test_the_main_tree_may_move_after_freezing(lab_copy):
         path.read_text().replace("gap_at_zero]\nvalue = 1.17", "gap_at_zero]\nvalue = 1.18")
     )
     overlays._write_checksums_of(root)
-    catalog = _tampered(root, seals)
-    assert matprops.Silicon("test-lab-1", catalog=catalog).band_gap(300) == frozen
-    draft = matprops.Silicon("test-lab-1", models={"band_gap": "testlab-2027"}, catalog=catalog)
+    catalogue = _tampered(root, seals)
+    assert matprops.Silicon("test-lab-1", catalogue=catalogue).band_gap(300) == frozen
+    draft = matprops.Silicon("test-lab-1", models={"band_gap": "testlab-2027"}, catalogue=catalogue)
     assert draft.band_gap(300) == frozen  # the archive's copy: the release sealed this id
-    assert reference.compare("test-lab-1", catalog) == []
+    assert reference.compare("test-lab-1", catalogue) == []
 
 
 @pytest.mark.slow
 def test_a_release_frozen_on_a_draft_base_keeps_its_numbers(datasets_copy, tmp_path):
-    shipped, shipped_catalog = datasets_copy
+    shipped, shipped_catalogue = datasets_copy
     root, seals = tmp_path / "lab", tmp_path / "seals.txt"
     matprops.create_catalogue(root, name="draft-lab", description="x")
-    top = catalog_at(shipped, [root], seals)
+    top = catalogue_at(shipped, [root], seals)
     overlays.write_release(top, "draft-lab-1", "2026.2", {}, "2026.2 as of today (tests)")
     reference.regenerate("draft-lab-1", top)
     reference.freeze("draft-lab-1", top)
-    before = matprops.Silicon("draft-lab-1", catalog=top).band_gap([100.0, 300.0])
+    before = matprops.Silicon("draft-lab-1", catalogue=top).band_gap([100.0, 300.0])
     # the shipped draft moves on
     path = shipped / "models" / "band_gap" / "passler-2002.toml"
     path.write_text(path.read_text().replace("value = 1.1701", "value = 1.1801"))
-    shipped_catalog.write_checksums()
+    shipped_catalogue.write_checksums()
     from matprops.catalogue import store
 
     store._CATALOGS.pop(shipped, None)
     overlays._forget_all(root)
-    top = catalog_at(shipped, [root], seals)
-    assert matprops.Silicon("2026.2", catalog=top).band_gap(300.0) != before[1]
-    after = matprops.Silicon("draft-lab-1", catalog=top).band_gap([100.0, 300.0])
+    top = catalogue_at(shipped, [root], seals)
+    assert matprops.Silicon("2026.2", catalogue=top).band_gap(300.0) != before[1]
+    after = matprops.Silicon("draft-lab-1", catalogue=top).band_gap([100.0, 300.0])
     np.testing.assert_array_equal(after.m_as("eV"), before.m_as("eV"))
 
 
@@ -400,7 +400,7 @@ def test_an_own_release_pickles_as_folders_and_digests(lab):
     data = pickle.dumps(si)
     assert str(root).encode() in data
     clone = pickle.loads(data)
-    assert clone.catalog is si.catalog  # the shared one of this process
+    assert clone.catalogue is si.catalogue  # the shared one of this process
     assert clone.band_gap(300) == si.band_gap(300)
 
 
@@ -482,7 +482,7 @@ def test_the_check_command_checks_an_overlay(small_lab, capsys):
 
 def test_an_overlay_model_reads_its_own_table_and_no_other_folders(small_lab):
     root, seals = small_lab
-    shipped = matprops.silicon().catalog.root
+    shipped = matprops.silicon().catalogue.root
     (root / "tables").mkdir()
     shutil.copyfile(shipped / "tables" / "green-2008.nc", root / "tables" / "ourlab-optics.nc")
     text = (shipped / "models" / "absorption" / "green-2008.toml").read_text()
@@ -512,12 +512,12 @@ def test_an_overlay_model_reads_its_own_table_and_no_other_folders(small_lab):
     overlays._write_checksums_of(root)
     overlays._forget_all(root)
     with pytest.raises(matprops.DatasetError, match="redefines table"):
-        catalog_at(None, [root], seals)
+        catalogue_at(None, [root], seals)
 
 
 def test_the_consistency_report_covers_an_own_model(small_lab):
     root, seals = small_lab
-    arora = matprops.silicon().catalog.model("mobility", "arora-1982")
+    arora = matprops.silicon().catalogue.model("mobility", "arora-1982")
     temperature = np.linspace(250.0, 450.0, 9)
     values = arora.select("electron")(
         temperature=temperature, donor_density=1e15, acceptor_density=0.0
@@ -540,8 +540,8 @@ def test_the_consistency_report_covers_an_own_model(small_lab):
         "carrier_densities": {"value": "free", "obtained": "INVENTED: the Hall densities"},
     }
     fit.write(root, "testlab-2027", source=SOURCE, conventions=stated)
-    catalog = catalog_at(None, [root], seals)
-    overlays.write_release(catalog, "test-lab-0", "2026.2", {"mobility": "testlab-2027"}, "x")
+    catalogue = catalogue_at(None, [root], seals)
+    overlays.write_release(catalogue, "test-lab-0", "2026.2", {"mobility": "testlab-2027"}, "x")
     si = matprops.silicon("test-lab-0", catalogues=[root], seals=seals)
     report = str(si.consistency())
     assert "mobility/testlab-2027: fed the total dopant densities" in report

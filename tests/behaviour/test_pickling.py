@@ -87,7 +87,7 @@ def test_silicon_pickles_with_release_overrides_and_strict_flag():
     clone = round_trip(si)
     assert clone.models == si.models and clone.release.id == si.release.id
     assert clone.strict is True and clone.overridden == {"band_gap"}
-    assert clone.catalog is si.catalog  # the same process: the same shared catalogue
+    assert clone.catalogue is si.catalogue  # the same process: the same shared catalogue
     assert clone.band_gap(300) == si.band_gap(300)
     with pytest.raises(matprops.ValidityError):
         clone.band_gap(2000)
@@ -108,22 +108,22 @@ def test_silicon_and_kernels_deep_copy(si):
 
 
 def test_pickle_keeps_the_catalogue_root(datasets_copy):
-    root, catalog = datasets_copy
-    si = matprops.Silicon(catalog=catalog)
+    root, catalogue = datasets_copy
+    si = matprops.Silicon(catalogue=catalogue)
     clone = round_trip(si)
-    assert clone.catalog.root == root
+    assert clone.catalogue.root == root
     assert round_trip(si.kernel("band_gap")).path.is_relative_to(root)
 
 
 def test_unpickling_against_different_data_is_refused(datasets_copy):
-    from matprops.catalogue import store as catalog_module
+    from matprops.catalogue import store as catalogue_module
 
-    root, catalog = datasets_copy
-    data = pickle.dumps(matprops.Silicon(catalog=catalog))
+    root, catalogue = datasets_copy
+    data = pickle.dumps(matprops.Silicon(catalogue=catalogue))
     path = root / "models/band_gap/passler-2002.toml"
     path.write_text(path.read_text() + "\n# changed after pickling\n")
-    catalog.write_checksums()
-    catalog_module._CATALOGS.pop(root, None)  # as in a fresh worker process
+    catalogue.write_checksums()
+    catalogue_module._CATALOGS.pop(root, None)  # as in a fresh worker process
     clone = pickle.loads(data)  # never raises while unpickling: a pool would wait forever
     with pytest.raises(matprops.DatasetError, match=r"passler-2002\.toml: has sha256"):
         clone.band_gap(300)  # the first use raises, in an ordinary call

@@ -15,7 +15,7 @@ import pytest
 
 import matprops
 from matprops import vocabulary
-from matprops.catalogue.store import default_catalog
+from matprops.catalogue.store import default_catalogue
 from matprops.material.derived import DERIVED
 from matprops.material.registry import REGISTRY, quantity
 from matprops.material.tables import available
@@ -24,13 +24,13 @@ from matprops.units import unit
 
 def test_every_quantity_of_the_catalogue_is_declared():
     # a model folder (datasets/models/<quantity>/) without a declaration fails here
-    undeclared = set(default_catalog().quantities()) - set(REGISTRY)
+    undeclared = set(default_catalogue().quantities()) - set(REGISTRY)
     assert undeclared == set()
 
 
 def test_every_declared_model_quantity_has_model_files():
     # a declaration without a model file (or with a misspelt model quantity) fails here
-    catalogue = set(default_catalog().quantities())
+    catalogue = set(default_catalogue().quantities())
     for entry in REGISTRY.values():
         missing = set(entry.models) - catalogue
         assert missing == set(), f"{entry.name}: no model files for {missing}"

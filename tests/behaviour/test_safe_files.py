@@ -21,7 +21,7 @@ from pathlib import Path
 import pytest
 
 import matprops
-from matprops.catalogue.store import Catalog
+from matprops.catalogue.store import Catalogue
 from matprops.cli import main
 
 
@@ -117,7 +117,7 @@ def test_the_checksum_tool_and_the_reference_tool_write_through_removable_tempor
     # the tools' own handlers); what they leave on success is the file alone
     from matprops.catalogue import files, store
 
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     seen = []
     original = files.temporary_for
 
@@ -127,7 +127,7 @@ def test_the_checksum_tool_and_the_reference_tool_write_through_removable_tempor
         return tmp
 
     monkeypatch.setattr(store, "temporary_for", spy)
-    catalog.write_checksums()
+    catalogue.write_checksums()
     assert seen and seen[0].parent == root and not seen[0].exists()
     assert not files._PENDING  # forgotten once moved into place
     assert _temporaries(root) == []
@@ -225,25 +225,25 @@ def test_a_scenario_path_cannot_leave_the_scenarios_folder(capsys):
 
 
 def test_a_scenario_goes_through_checksum_and_schema(datasets_copy, monkeypatch, capsys):
-    from matprops.catalogue.store import default_catalog
+    from matprops.catalogue.store import default_catalogue
 
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "scenarios" / "two-site-modules.toml"
     path.write_text(path.read_text() + "\n# edited\n")
     monkeypatch.setenv("MATPROPS_DATASETS", str(root))
-    default_catalog.cache_clear()
+    default_catalogue.cache_clear()
     try:
         assert main(["demo"]) == 2
         err = capsys.readouterr().err
         assert "two-site-modules.toml: sha256" in err and len(err.splitlines()) == 1
         path.write_text(path.read_text().replace("invented = true", "invented = 'yes'"))
-        catalog.write_checksums()
-        default_catalog.cache_clear()
+        catalogue.write_checksums()
+        default_catalogue.cache_clear()
         assert main(["demo"]) == 2
         err = capsys.readouterr().err
         assert "two-site-modules.toml" in err and "invented" in err
     finally:
-        default_catalog.cache_clear()
+        default_catalogue.cache_clear()
 
 
 def _edit_model(root, quantity, model_id, old, new):
@@ -259,8 +259,8 @@ def _edit_model(root, quantity, model_id, old, new):
 def test_a_table_name_cannot_leave_the_tables_folder(datasets_copy, name):
     root, _ = datasets_copy
     _edit_model(root, "absorption", "green-2008", 'table = "green-2008.nc"', f'table = "{name}"')
-    Catalog(root).write_checksums()
-    si = matprops.Silicon(catalog=Catalog(root), models={"absorption": "green-2008"})
+    Catalogue(root).write_checksums()
+    si = matprops.Silicon(catalogue=Catalogue(root), models={"absorption": "green-2008"})
     with pytest.raises(matprops.DatasetError, match="named by its file name in the tables folder"):
         si.absorption(800.0, 300.0)
 
@@ -271,7 +271,7 @@ def test_a_symbolic_link_out_of_the_datasets_folder_is_refused(datasets_copy, tm
     (root / "tables" / "green-2008.nc").rename(outside)
     (root / "tables" / "green-2008.nc").symlink_to(outside)
     with pytest.raises(matprops.DatasetError, match="lies outside the datasets folder"):
-        Catalog(root).table("green-2008.nc")
+        Catalogue(root).table("green-2008.nc")
 
 
 def test_nan_in_a_stored_table_is_refused(datasets_copy):
@@ -280,29 +280,29 @@ def test_nan_in_a_stored_table_is_refused(datasets_copy):
     root, _ = datasets_copy
     with netCDF4.Dataset(root / "tables" / "green-2008.nc", "a") as handle:
         handle["absorption_coefficient"][3] = float("nan")
-    Catalog(root).write_checksums()
-    catalog = Catalog(root)
+    Catalogue(root).write_checksums()
+    catalogue = Catalogue(root)
     with pytest.raises(matprops.DatasetError, match="'absorption_coefficient' holds NaN"):
-        matprops.Silicon(catalog=catalog).absorption(800.0, 300.0)
+        matprops.Silicon(catalogue=catalogue).absorption(800.0, 300.0)
     with pytest.raises(matprops.DatasetError, match="'absorption_coefficient' holds NaN"):
-        catalog.table("green-2008.nc")
-    problems, _ = __import__("matprops.catalogue.checks", fromlist=["check"]).check(catalog)
+        catalogue.table("green-2008.nc")
+    problems, _ = __import__("matprops.catalogue.checks", fromlist=["check"]).check(catalogue)
     assert any("holds NaN" in p for p in problems)
 
 
 def test_a_file_too_large_is_refused_before_it_is_read(datasets_copy):
     # a sparse 4 GiB file (no disk used) listed with some checksum: reading it whole
     # first would take seconds and 4 GiB of memory before the checksum refused it
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "tables" / "huge.nc"
     with open(path, "wb") as handle:
         handle.truncate(4 << 30)
     with open(root / "checksums.sha256", "a") as handle:
         handle.write(f"{'0' * 64}  tables/huge.nc\n")
-    catalog = Catalog(root)
+    catalogue = Catalogue(root)
     started = time.monotonic()
     with pytest.raises(matprops.DatasetError, match=r"huge\.nc: is 4294967296 bytes, above"):
-        catalog.table("huge.nc")
+        catalogue.table("huge.nc")
     assert time.monotonic() - started < 1.0  # (stat, not read)
 
 
@@ -311,26 +311,26 @@ def test_a_checksum_list_too_large_is_refused(datasets_copy):
     with open(root / "checksums.sha256", "ab") as handle:
         handle.truncate(64 << 20)
     with pytest.raises(matprops.DatasetError, match="checksums.sha256: is .* bytes, above"):
-        Catalog(root).checksums()
+        Catalogue(root).checksums()
 
 
 @pytest.mark.parametrize("depth", [40, 1_000, 100_000])
 def test_deeply_nested_toml_is_a_one_line_error(datasets_copy, depth, capsys, monkeypatch):
-    from matprops.catalogue.store import default_catalog
+    from matprops.catalogue.store import default_catalogue
 
     root, _ = datasets_copy
     path = root / "models" / "band_gap" / "passler-2002.toml"
     path.write_text(path.read_text() + "\nnested = " + "[" * depth + "]" * depth + "\n")
-    Catalog(root).write_checksums()
+    Catalogue(root).write_checksums()
     with pytest.raises(matprops.DatasetError, match="nests tables or arrays") as info:
-        Catalog(root).model("band_gap", "passler-2002")
+        Catalogue(root).model("band_gap", "passler-2002")
     assert len(str(info.value).splitlines()) == 1
     assert info.value.__cause__ is None or not isinstance(info.value.__cause__, RecursionError)
     monkeypatch.setenv("MATPROPS_DATASETS", str(root))
-    default_catalog.cache_clear()
+    default_catalogue.cache_clear()
     try:
         assert main(["table", "band_gap", "-t", "300"]) == 2
     finally:
-        default_catalog.cache_clear()
+        default_catalogue.cache_clear()
     err = capsys.readouterr().err
     assert "nests tables or arrays" in err and len(err.splitlines()) == 1

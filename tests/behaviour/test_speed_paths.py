@@ -189,12 +189,12 @@ def test_unit_factors_are_pints_own():
 
 def test_every_conversion_of_the_catalogue_has_its_factor():
     from matprops.catalogue.checks import check
-    from matprops.catalogue.store import Catalog
+    from matprops.catalogue.store import Catalogue
 
     before = set(fields.CONVERSIONS_SEEN)  # (other tests convert made-up units too)
     fields.CONVERSIONS_SEEN.clear()
     try:
-        problems, _ = check(Catalog())
+        problems, _ = check(Catalogue())
         seen = set(fields.CONVERSIONS_SEEN)
     finally:
         fields.CONVERSIONS_SEEN.update(before)

@@ -335,21 +335,21 @@ def test_compare_choices_and_errors(si):
         si.compare("band_gap", ["passler-2002", "passler-2002"], T=[300.0])
 
 
-def _second_release(root, catalog, changes):
+def _second_release(root, catalogue, changes):
     # a copy of the draft 2026.2 (it reads the main tree's model files, as 2030.1 will)
     text = (root / "releases/2026.2.toml").read_text()
     text = text.replace('release = "2026.2"', 'release = "2030.1"')
     for quantity, (old, new) in changes.items():
         text = text.replace(f'{quantity} = "{old}"', f'{quantity} = "{new}"')
     (root / "releases/2030.1.toml").write_text(text)
-    catalog.write_checksums()
+    catalogue.write_checksums()
 
 
 def test_release_difference_with_a_temporary_second_release(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     _second_release(
         root,
-        catalog,
+        catalogue,
         {
             "band_gap": ("passler-2002", "thurmond-1975"),
             "intrinsic_density": ("couderc-2014", "boltzmann"),
@@ -357,7 +357,7 @@ def test_release_difference_with_a_temporary_second_release(datasets_copy):
     )
     from matprops.outputs.changes import release_difference
 
-    diff = release_difference("2026.2", "2030.1", catalog)
+    diff = release_difference("2026.2", "2030.1", catalogue)
     changed = {r["quantity"] for r in diff["models"] if r["changed"]}
     assert changed == {"band_gap", "intrinsic_density"}
     record = {r["quantity"]: r for r in diff["models"]}["band_gap"]
@@ -368,8 +368,8 @@ def test_release_difference_with_a_temporary_second_release(datasets_copy):
     # the band-gap deviation, recomputed here point by point from the two models
     from matprops.outputs.reference import TEMPERATURES
 
-    old = matprops.Silicon(release="2026.2", catalog=catalog)
-    new = matprops.Silicon(release="2030.1", catalog=catalog)
+    old = matprops.Silicon(release="2026.2", catalogue=catalogue)
+    new = matprops.Silicon(release="2030.1", catalogue=catalogue)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         ratio = np.abs(new.band_gap(TEMPERATURES).m / old.band_gap(TEMPERATURES).m - 1)

@@ -8,13 +8,13 @@ import pytest
 import xarray as xr
 
 import matprops
-from matprops.catalogue.store import datasets_root, default_catalog
+from matprops.catalogue.store import datasets_root, default_catalogue
 
 TABLES = ("green-2008.nc", "schinke-2015.nc", "franta-2017.nc")
 
 
 def load(name):
-    return default_catalog().table(name)  # checksum-verified
+    return default_catalogue().table(name)  # checksum-verified
 
 
 @pytest.mark.parametrize("name", TABLES)
@@ -38,9 +38,9 @@ def test_tables_carry_cf_attributes_and_provenance(name):
 
 @pytest.mark.parametrize("quantity", ["absorption", "refractive_index"])
 def test_model_validity_lies_inside_its_tables(quantity):
-    catalog = default_catalog()
-    for model_id in catalog.model_ids(quantity):
-        model = catalog.model(quantity, model_id)
+    catalogue = default_catalogue()
+    for model_id in catalogue.model_ids(quantity):
+        model = catalogue.model(quantity, model_id)
         if model.kind != "table":
             continue
         for name in model.tables:

@@ -75,10 +75,10 @@ def si():
 
 def _smooth_models(si):
     """Every closed-form model (and coefficient set) of the catalogue, bound."""
-    catalog = si.catalog
-    for quantity in catalog.quantities():
-        for model_id in catalog.model_ids(quantity):
-            model = catalog.model(quantity, model_id)
+    catalogue = si.catalogue
+    for quantity in catalogue.quantities():
+        for model_id in catalogue.model_ids(quantity):
+            model = catalogue.model(quantity, model_id)
             if model.kind == "table":
                 continue
             if model.requires:
@@ -339,18 +339,18 @@ def test_dual_refuses_what_it_cannot_follow():
 
 
 def _model_file(tmp_path, section):
-    from matprops.catalogue.store import Catalog
+    from matprops.catalogue.store import Catalogue
 
     root = tmp_path / "datasets"
     import shutil
 
-    shutil.copytree(matprops.silicon().catalog.root, root)
+    shutil.copytree(matprops.silicon().catalogue.root, root)
     path = root / "models" / "permittivity" / "dunlap-1953.toml"
     text = path.read_text().split("\n[uncertainty]")[0]
     path.write_text(text + section)
-    catalog = Catalog(root)
-    catalog.write_checksums()
-    return catalog
+    catalogue = Catalogue(root)
+    catalogue.write_checksums()
+    return catalogue
 
 
 @pytest.mark.parametrize(
@@ -371,9 +371,9 @@ def _model_file(tmp_path, section):
     ],
 )
 def test_uncertainty_sections_are_checked(tmp_path, section, message):
-    catalog = _model_file(tmp_path, section)
+    catalogue = _model_file(tmp_path, section)
     with pytest.raises(DatasetError, match=message):
-        catalog.model("permittivity", "dunlap-1953")
+        catalogue.model("permittivity", "dunlap-1953")
 
 
 def test_tables_and_files_carry_the_figures(tmp_path):

@@ -26,7 +26,7 @@ from hypothesis import strategies as st
 
 import matprops
 from matprops.catalogue import store
-from matprops.catalogue.store import Catalog, datasets_root
+from matprops.catalogue.store import Catalogue, datasets_root
 
 CHANGES = {
     # what is changed -> (file named in the error, the call that reads it)
@@ -42,7 +42,7 @@ def _copy(tmp_path, name):
 
 
 def _change(root, what):
-    """Change one data file and re-record the checksum list (with another Catalog
+    """Change one data file and re-record the checksum list (with another Catalogue
     object: the parent's keeps the list it read)."""
     if what == "table":
         import netCDF4
@@ -54,7 +54,7 @@ def _change(root, what):
         path = root / CHANGES["defect"]
         text = path.read_text()
         path.write_text(text.replace("value = 5e-14", "value = 5.1e-14", 1))
-    Catalog(root).write_checksums()
+    Catalogue(root).write_checksums()
     store._CATALOGS.pop(root, None)  # nothing of it is shared with a forked child
 
 
@@ -64,7 +64,7 @@ def materials(tmp_path):
     found = {}
     for what in CHANGES:
         root = _copy(tmp_path, what)
-        si = matprops.Silicon(catalog=Catalog(root))
+        si = matprops.Silicon(catalogue=Catalogue(root))
         si.absorption(800.0, 300.0)  # loads the tables
         si.srh_lifetime("Fe_i", 300.0, Na=1e16, excess=1e14, density=1e11)
         getattr(si, "_data_digests", dict)()  # (what the parent read)

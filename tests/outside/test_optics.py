@@ -65,7 +65,7 @@ def test_green_2008_table_matches_an_independent_copy():
     # printed alpha has three significant figures, so the two may differ by half a unit
     # of the third figure (0.5 %); n is printed to three decimals (half a unit: 0.0005).
     lam, alpha, n, _, _ = green_2008_copy()
-    table = matprops.catalogue.store.default_catalog().table("green-2008.nc")
+    table = matprops.catalogue.store.default_catalogue().table("green-2008.nc")
     np.testing.assert_array_equal(table.wavelength.values, lam)
     np.testing.assert_allclose(table.absorption_coefficient.values, alpha, rtol=0.005)
     np.testing.assert_allclose(table.refractive_index.values, n, rtol=0, atol=0.0005)
@@ -220,7 +220,9 @@ def test_region_limit_at_low_temperature_respects_the_phonon_threshold():
     # can be absorbed, so band-to-band absorption needs hv >= Eg(0) + the energy of the
     # weakest assisting phonon, the transverse acoustic one (about 18 meV in silicon);
     # with Eg(0) = 1.17 eV that is at most hc/(1.188 eV) = 1044 nm.
-    model = matprops.catalogue.store.default_catalog().model("absorption", "green-2008-franta-2017")
+    model = matprops.catalogue.store.default_catalogue().model(
+        "absorption", "green-2008-franta-2017"
+    )
     (region,) = model.regions
     limit_at_10K = float(region.bound_at(10.0))
     threshold = optics.wavelength(matprops.Q_(1.17 + 0.018, "eV")).m_as("nm")

@@ -787,13 +787,13 @@ def test_bad_generation_or_thickness(si, kwargs, pattern):
 
 @pytest.mark.model("srh_lifetime/shockley-1952")
 def test_defect_outside_its_temperature_range_warns(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "defects" / "iron-interstitial.toml"
     path.write_text(
         path.read_text() + '\n[validity.temperature]\nmin = 250\nmax = 350\nunits = "K"\n'
     )
-    catalog.write_checksums()
-    si = matprops.Silicon(catalog=catalog)
+    catalogue.write_checksums()
+    si = matprops.Silicon(catalogue=catalogue)
     with pytest.warns(
         matprops.ValidityWarning,
         match="iron-interstitial: temperature 300-400 "
@@ -803,17 +803,17 @@ def test_defect_outside_its_temperature_range_warns(datasets_copy):
 
 
 def test_catalogue_file_with_a_level_outside_the_gap_is_refused(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "defects" / "iron-interstitial.toml"
     path.write_text(path.read_text().replace("value = 0.38", "value = 1.5"))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match="level.energy must lie inside the gap"):
-        matprops.Silicon(catalog=catalog).defect("iron-interstitial")
+        matprops.Silicon(catalogue=catalogue).defect("iron-interstitial")
 
 
 def test_edited_catalogue_file_is_refused(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "defects" / "iron-boron-pair.toml"
     path.write_text(path.read_text().replace("5.5e-15", "5.6e-15"))
     with pytest.raises(matprops.ChecksumError, match="iron-boron-pair.toml"):
-        matprops.Silicon(catalog=catalog).defect("FeB")
+        matprops.Silicon(catalogue=catalogue).defect("FeB")

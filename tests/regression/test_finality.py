@@ -13,7 +13,7 @@ import pytest
 
 import matprops
 from matprops.catalogue import checks, finality
-from matprops.catalogue.store import Catalog
+from matprops.catalogue.store import Catalogue
 from matprops.outputs import reference
 
 # A copy of every line ever written to FINAL_SEALS: the table in the package may gain
@@ -59,52 +59,52 @@ def _toggle(path: Path, old: str, new: str) -> None:
 
 
 def test_toggling_a_final_release_to_draft_is_refused(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     _toggle(root / "releases/2026.1.toml", 'status = "final"', 'status = "draft"')
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.FinalityError, match="never returns to draft"):
-        matprops.Silicon(release="2026.1", catalog=catalog)
+        matprops.Silicon(release="2026.1", catalogue=catalogue)
     with pytest.raises(matprops.FinalityError):
-        reference.regenerate("2026.1", catalog)
+        reference.regenerate("2026.1", catalogue)
 
 
 def test_the_whole_tamper_path_fails_a_test_and_the_catalogue_check(datasets_copy):
     # edit a coefficient of a model the final release sealed, regenerate its reference,
     # re-record the checksums and even re-write the seal: the seal's digest recorded in
     # the package code no longer matches
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     archived = root / "archive/2026.1/models/band_gap/passler-2002.toml"
     text = archived.read_text()
     assert "1.1701" in text
     archived.write_text(text.replace("1.1701", "1.1801"))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.FinalityError, match="sealed by final release 2026.1"):
-        matprops.Silicon(release="2026.1", catalog=catalog)
-    reference.write_seal(catalog, "2026.1", "2026-12-04")
-    catalog.write_checksums()
-    fresh = Catalog(root)
+        matprops.Silicon(release="2026.1", catalogue=catalogue)
+    reference.write_seal(catalogue, "2026.1", "2026-12-04")
+    catalogue.write_checksums()
+    fresh = Catalogue(root)
     with pytest.raises(matprops.FinalityError, match="is not the seal recorded"):
-        matprops.Silicon(release="2026.1", catalog=fresh)
+        matprops.Silicon(release="2026.1", catalogue=fresh)
     problems, _ = checks.check(fresh)
     assert any("2026.1.seal.json" in p and "not the seal recorded" in p for p in problems)
 
 
 def test_a_release_file_cannot_claim_finality(datasets_copy):
-    root, catalog = datasets_copy
-    newest = catalog.newest_release_id()
+    root, catalogue = datasets_copy
+    newest = catalogue.newest_release_id()
     text = (root / f"releases/{newest}.toml").read_text()
     text = re.sub(r'release = "[^"]+"', 'release = "2030.1"', text, count=1)
     text = text.replace('status = "draft"', 'status = "final"')
     (root / "releases/2030.1.toml").write_text(text)
     (root / "releases/2030.1.reference.json").write_text("{}")
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.FinalityError, match="records no seal"):
-        catalog.release("2030.1")
+        catalogue.release("2030.1")
 
 
 @pytest.mark.slow  # about 5 s or more
 def test_freezing_a_draft_end_to_end(datasets_with_draft, monkeypatch):
-    root, catalog, draft = datasets_with_draft
+    root, catalogue, draft = datasets_with_draft
     assert draft == "2030.1"
     # the seal is recorded in memory only (the test must not edit the package's source)
     monkeypatch.setattr(finality, "FINAL_SEALS", dict(finality.FINAL_SEALS))
@@ -113,9 +113,9 @@ def test_freezing_a_draft_end_to_end(datasets_with_draft, monkeypatch):
         "_record_seal",
         lambda release_id, digest: finality.FINAL_SEALS.__setitem__(release_id, digest),
     )
-    digest = reference.freeze("2030.1", catalog, date="2030-01-01")
+    digest = reference.freeze("2030.1", catalogue, date="2030-01-01")
     assert finality.FINAL_SEALS["2030.1"] == digest
-    fresh = Catalog(root)
+    fresh = Catalogue(root)
     release = fresh.release("2030.1")
     assert release.final and release.date == "2030-01-01"
     seal = json.loads((root / "releases/2030.1.seal.json").read_text())
@@ -123,7 +123,7 @@ def test_freezing_a_draft_end_to_end(datasets_with_draft, monkeypatch):
         assert f"archive/2030.1/models/{quantity}/{default}.toml" in seal["files"]
     assert any(name.startswith("archive/2030.1/defects/") for name in seal["files"])
     assert reference.compare("2030.1", fresh) == []
-    si = matprops.Silicon(release="2030.1", catalog=fresh)
+    si = matprops.Silicon(release="2030.1", catalogue=fresh)
     assert "archive" in si.model("mobility").path.parts
     with pytest.raises(matprops.ReleaseFrozenError):
         reference.freeze("2030.1", fresh)
@@ -132,7 +132,7 @@ def test_freezing_a_draft_end_to_end(datasets_with_draft, monkeypatch):
     archived.write_text(archived.read_text() + "\n# later\n")
     fresh.write_checksums()
     with pytest.raises(matprops.FinalityError):
-        Catalog(root).release("2030.1")
+        Catalogue(root).release("2030.1")
 
 
 def test_provenance_says_where_a_final_release_read_its_model():

@@ -22,7 +22,7 @@ from outside_data import green_temperature_ratio
 
 import matprops
 from matprops import optics
-from matprops.catalogue.store import datasets_root, default_catalog
+from matprops.catalogue.store import datasets_root, default_catalogue
 
 ROOT = Path(__file__).resolve().parents[2]
 
@@ -46,7 +46,7 @@ def absorption(model_id, wavelength, temperature=300.0):
 @pytest.mark.parametrize("model_id", matprops.models("band_gap"))
 def test_gap_tends_to_its_own_zero_kelvin_coefficient(model_id):
     # identity: each kernel's expression must tend to the Eg(0) its file holds
-    model = default_catalog().model("band_gap", model_id)
+    model = default_catalogue().model("band_gap", model_id)
     coefficients = model.provenance()["coefficients"]
     if "gap_at_zero" in coefficients:
         printed = coefficients["gap_at_zero"]["value"]
@@ -112,7 +112,7 @@ def test_linear_free_carrier_forms_follow_their_own_equations():
     assert two == pytest.approx(4 * one, rel=1e-12)
     assert one == pytest.approx(2 * half, rel=1e-12)
     soref = with_model("free_carrier_absorption", "soref-1987")
-    model = default_catalog().model("free_carrier_absorption", "soref-1987")
+    model = default_catalogue().model("free_carrier_absorption", "soref-1987")
     coefficients = model.provenance()["coefficients"]
     for lam, sn, sp in zip(
         coefficients["wavelengths"]["value"],
@@ -143,7 +143,7 @@ def band_to_band_limits(cap):
     drops below three times the floor, at most ``cap``; the list stops at the first
     temperature that reaches the cap.
     """
-    table = default_catalog().table("franta-2017.nc")
+    table = default_catalogue().table("franta-2017.nc")
     lam = table.wavelength.values
     alpha = table.absorption_coefficient.values
     fit = (lam >= FLOOR_FIT[0]) & (lam <= FLOOR_FIT[1])
@@ -166,7 +166,7 @@ def band_to_band_limits(cap):
 def test_validity_region_limits_follow_the_stated_rule(model_id, cap):
     # regression: the region's numbers are derived from the committed table by the rule
     # written in the model file; re-derive them and compare
-    model = default_catalog().model("absorption", model_id)
+    model = default_catalogue().model("absorption", model_id)
     assert model.validity["wavelength"].high == cap
     (region,) = model.regions
     stored = [[t, w] for t, w in zip(region.by_values, region.bounds, strict=True)]
@@ -223,7 +223,7 @@ def _green_temperature_coefficients():
 
 
 def _region_text(model_id, last):
-    (region,) = default_catalog().model("absorption", model_id).regions
+    (region,) = default_catalogue().model("absorption", model_id).regions
     parts = [f"{b:g} nm at {t:g} K" for t, b in zip(region.by_values, region.bounds, strict=True)]
     parts[-1] = parts[-1].replace(" at ", " from ")
     return ", ".join(parts[:-1]) + f"{last} " + parts[-1]
@@ -252,7 +252,7 @@ def _couderc_consistency():
 
 
 def _nedeljkovic():
-    model = default_catalog().model("free_carrier_absorption", "nedeljkovic-2011")
+    model = default_catalogue().model("free_carrier_absorption", "nedeljkovic-2011")
     c = model.provenance()["coefficients"]
     si = with_model("free_carrier_absorption", "nedeljkovic-2011")
     low = max(
@@ -332,7 +332,9 @@ def _okada():
 
 def _bludau_switch():
     low, high = [
-        default_catalog().model("band_gap", "bludau-1974").provenance()["coefficients"][k]["value"]
+        default_catalogue()
+        .model("band_gap", "bludau-1974")
+        .provenance()["coefficients"][k]["value"]
         for k in ("low_coefficients", "high_coefficients")
     ]
     t = 170.0
@@ -625,7 +627,7 @@ def _kerr_against_richter():
 
 
 def _richter_ambipolar():
-    c = default_catalog().model("intrinsic_lifetime", "richter-2012").provenance()["coefficients"]
+    c = default_catalogue().model("intrinsic_lifetime", "richter-2012").provenance()["coefficients"]
     a, x = c["injection_coefficient"]["value"], c["injection_exponent"]["value"]
     return [a * dn ** (x - 1.0) for dn in (1e15, 5e15, 1e16, 5e16)]
 
@@ -745,9 +747,9 @@ def _klaassen_mobilities(r5=None):
     whose records are rebound here, so no other test sees the change)."""
     import functools
 
-    from matprops.catalogue.store import Catalog, datasets_root
+    from matprops.catalogue.store import Catalogue, datasets_root
 
-    si = matprops.Silicon(catalog=Catalog(datasets_root()))
+    si = matprops.Silicon(catalogue=Catalogue(datasets_root()))
     if r5 is not None:
         for variant in si.model("mobility").variants.values():
             coefficients = {c.name: c.kernel_value for c in variant.coefficients.values()}
@@ -807,7 +809,7 @@ def _radiative_from_absorption():
 
 
 def _free_particle_at_300():
-    c = default_catalog().model("intrinsic_lifetime", "richter-2012-huldt-1979").coefficients
+    c = default_catalogue().model("intrinsic_lifetime", "richter-2012-huldt-1979").coefficients
     parts = ("constant", "linear", "quadratic")
     return [sum(c[f"{carrier}_free_{k}"].value for k in parts) for carrier in ("electron", "hole")]
 

@@ -6,11 +6,11 @@ import re
 import pytest
 
 import matprops
-from matprops.catalogue.store import Catalog, default_catalog
+from matprops.catalogue.store import Catalogue, default_catalogue
 from matprops.outputs.reference import compare, regenerate
 
 RELEASES = matprops.releases()
-FINAL = [r for r in RELEASES if default_catalog().release(r).final]
+FINAL = [r for r in RELEASES if default_catalogue().release(r).final]
 DRAFTS = [r for r in RELEASES if r not in FINAL]
 
 
@@ -24,7 +24,7 @@ def test_release_reproduces_its_frozen_reference(release_id):
 @pytest.mark.parametrize("release_id", RELEASES)
 def test_release_lookup_and_listing(release_id):
     # a release serves the models its file names; the newest is the default
-    release = default_catalog().release(release_id)
+    release = default_catalogue().release(release_id)
     assert matprops.silicon(release=release_id).models == dict(release.models)
     assert release.status in ("draft", "final")
     assert RELEASES[-1] == matprops.silicon().release.id
@@ -32,18 +32,18 @@ def test_release_lookup_and_listing(release_id):
 
 @pytest.mark.parametrize("release_id", RELEASES)
 def test_a_change_is_detected(datasets_copy, release_id):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / f"releases/{release_id}.reference.json"
     content = json.loads(path.read_text())
     label = next(iter(content["cases"]))  # the first case of the release, whichever it is
     content["cases"][label]["values"][0][0] *= 1 + 1e-9
     path.write_text(json.dumps(content))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     if release_id in FINAL:  # a final release's reference is sealed: it no longer loads
         with pytest.raises(matprops.FinalityError, match="sealed by final release"):
-            compare(release_id, catalog)
+            compare(release_id, catalogue)
     else:
-        problems = compare(release_id, catalog)
+        problems = compare(release_id, catalogue)
         assert problems and label in problems[0]
 
 
@@ -65,9 +65,9 @@ def test_reference_covers_every_model_species_and_defect(release_id):
     from matprops.outputs.reference import _needs
 
     si = matprops.silicon(release=release_id)
-    catalog = si.catalog
+    catalogue = si.catalogue
     release = si.release
-    frozen = json.loads(catalog.verified_bytes(release.reference_path))
+    frozen = json.loads(catalogue.verified_bytes(release.reference_path))
     covered = {
         q for case in frozen["cases"].values() for q in _needs(case["method"], case["fixed"])
     }
@@ -84,24 +84,24 @@ def test_reference_covers_every_model_species_and_defect(release_id):
         for case in frozen["cases"].values()
         if case["method"] == "srh_lifetime"
     }
-    assert defects_covered == set(defects.names(catalog))
+    assert defects_covered == set(defects.names(catalogue))
     assert {f"defects/{n}.toml" for n in defects_covered} == set(frozen["data_files"])
     alternatives = dict(frozen.get("alternatives", {}))
     supplement = release.reference_path.with_name(f"{release_id}.alternatives.json")
     if supplement.is_file():
-        alternatives.update(json.loads(catalog.verified_bytes(supplement))["cases"])
+        alternatives.update(json.loads(catalogue.verified_bytes(supplement))["cases"])
     swapped = {label.partition("@")[2] for label in alternatives}
     expected = {
         f"{quantity}={model_id}"
         for quantity, default in release.models.items()
-        for model_id in catalog.model_ids(quantity)
+        for model_id in catalogue.model_ids(quantity)
         if model_id != default
     }
     if release.final:  # models added to the catalogue after the release are not its own
         expected = {
             f"{quantity}={model_id}"
             for quantity, default in release.models.items()
-            for model_id in catalog.archived_model_ids(quantity)
+            for model_id in catalogue.archived_model_ids(quantity)
             if model_id != default
         }
     assert swapped == expected
@@ -118,7 +118,7 @@ def test_reference_covers_every_quantity_it_serves(release_id):
     from matprops.material.tables import available
 
     si = matprops.silicon(release=release_id)
-    frozen = json.loads(si.catalog.verified_bytes(si.release.reference_path))
+    frozen = json.loads(si.catalogue.verified_bytes(si.release.reference_path))
     covered = {
         REGISTRY.for_method(case["method"], case["fixed"]).name for case in frozen["cases"].values()
     }
@@ -130,18 +130,18 @@ def test_reference_covers_every_quantity_it_serves(release_id):
 
 @pytest.mark.parametrize("release_id", FINAL)
 def test_final_release_cannot_be_regenerated(datasets_copy, release_id):
-    _, catalog = datasets_copy
+    _, catalogue = datasets_copy
     with pytest.raises(matprops.ReleaseFrozenError, match="final"):
-        regenerate(release_id, catalog)
+        regenerate(release_id, catalogue)
 
 
 @pytest.mark.parametrize("release_id", FINAL)
 def test_the_main_tree_moves_on_without_moving_a_final_release(datasets_copy, release_id):
     # a final release reads the model and defect files it sealed from its archive:
     # editing (correcting) the main tree's copies changes nothing of it
-    root, catalog = datasets_copy
-    release = catalog.release(release_id)
-    quantity = next(q for q in release.models if catalog.model(q, release.models[q]).coefficients)
+    root, catalogue = datasets_copy
+    release = catalogue.release(release_id)
+    quantity = next(q for q in release.models if catalogue.model(q, release.models[q]).coefficients)
     model = root / f"models/{quantity}/{release.models[quantity]}.toml"
     text = model.read_text()
     number = re.search(r"value = (-?[0-9.]+(?:e-?[0-9]+)?)", text)  # the first coefficient
@@ -149,9 +149,9 @@ def test_the_main_tree_moves_on_without_moving_a_final_release(datasets_copy, re
     model.write_text(text[: number.start(1)] + corrected + text[number.end(1) :])
     defect = root / "defects/iron-interstitial.toml"
     defect.write_text(defect.read_text() + "\n# a later correction\n")
-    catalog.write_checksums()
-    assert compare(release_id, catalog) == []
-    si = matprops.Silicon(release=release_id, catalog=catalog)
+    catalogue.write_checksums()
+    assert compare(release_id, catalogue) == []
+    si = matprops.Silicon(release=release_id, catalogue=catalogue)
     assert "archive" in si.model(quantity).path.parts
 
 
@@ -159,16 +159,16 @@ def test_the_main_tree_moves_on_without_moving_a_final_release(datasets_copy, re
 def test_a_draft_regenerates_within_its_tolerances(datasets_with_draft):
     # regression check: regenerating a draft with the same code and data reproduces
     # its reference: every field exactly, the numbers within each case's tolerance
-    root, catalog, release_id = datasets_with_draft
+    root, catalogue, release_id = datasets_with_draft
     path = root / f"releases/{release_id}.reference.json"
     before = json.loads(path.read_text())
-    regenerate(release_id, catalog)
+    regenerate(release_id, catalogue)
     after = json.loads(path.read_text())
     for part in ("cases", "alternatives"):
         for case in (*before[part].values(), *after[part].values()):
             case.pop("values", None)
     assert after == before
-    assert compare(release_id, catalog) == []
+    assert compare(release_id, catalogue) == []
 
 
 def _scale_table(root, name, variable, wavelength, factor, temperature=None):
@@ -198,21 +198,21 @@ def _scale_table(root, name, variable, wavelength, factor, temperature=None):
 def test_an_edit_anywhere_in_a_table_is_detected(
     datasets_with_draft, name, variable, wavelength, temperature
 ):
-    root, catalog, draft = datasets_with_draft
+    root, catalogue, draft = datasets_with_draft
     if wavelength is None:  # pick a Franta wavelength between two of Green's
-        table = catalog.table("franta-2017.nc")
+        table = catalogue.table("franta-2017.nc")
         lam = table.wavelength.values
         wavelength = float(lam[(lam > 1001) & (lam < 1009)][0])
     _scale_table(root, name, variable, wavelength, 1.10, temperature)
-    catalog.write_checksums()  # a deliberate edit: the checksum list is not the guard here
-    catalog = Catalog(root)  # a fresh reader (the draft's evaluation kept the old table)
-    problems = compare(draft, catalog)  # a draft's reference catches the moved numbers
+    catalogue.write_checksums()  # a deliberate edit: the checksum list is not the guard here
+    catalogue = Catalogue(root)  # a fresh reader (the draft's evaluation kept the old table)
+    problems = compare(draft, catalogue)  # a draft's reference catches the moved numbers
     assert any(f"table {name}" in p for p in problems)
     if name == "green-2008.nc":  # and the evaluation at every stored point moves too
         assert any("_stored_points: differs" in p for p in problems)
     for release_id in FINAL:  # a final release sealed the table file itself
         with pytest.raises(matprops.FinalityError, match=f"tables/{name}"):
-            compare(release_id, catalog)
+            compare(release_id, catalogue)
 
 
 # ------------------------------------------------------------------ read-only installs
@@ -258,11 +258,11 @@ def test_update_checksums_on_a_read_only_install_says_so(datasets_copy, read_onl
 def test_reference_regenerate_on_a_read_only_install_says_so(
     datasets_with_draft, read_only, capsys, monkeypatch
 ):
-    from matprops.catalogue import store as catalog_module
+    from matprops.catalogue import store as catalogue_module
     from matprops.outputs.reference import main
 
-    root, catalog, draft = datasets_with_draft  # (a final release refuses first)
-    monkeypatch.setattr(catalog_module, "_DEFAULT", [catalog])  # the "installed" copy
+    root, catalogue, draft = datasets_with_draft  # (a final release refuses first)
+    monkeypatch.setattr(catalogue_module, "_DEFAULT", [catalogue])  # the "installed" copy
     read_only(root)
     assert main(["regenerate", draft]) == 2
     err = capsys.readouterr().err

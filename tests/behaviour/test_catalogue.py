@@ -5,17 +5,17 @@ import re
 import pytest
 
 import matprops
-from matprops.catalogue.store import Catalog, default_catalog
+from matprops.catalogue.store import Catalogue, default_catalogue
 
 
 def all_models():
-    catalog = default_catalog()
-    return [(q, m) for q in catalog.quantities() for m in catalog.model_ids(q)]
+    catalogue = default_catalogue()
+    return [(q, m) for q in catalogue.quantities() for m in catalogue.model_ids(q)]
 
 
 @pytest.mark.parametrize("quantity, model_id", all_models())
 def test_every_model_file_loads_with_source_and_origin(quantity, model_id):
-    model = default_catalog().model(quantity, model_id)
+    model = default_catalogue().model(quantity, model_id)
     record = model.provenance()
     assert record["source"]["authors"] and record["source"]["year"] > 1900
     source = record["source"]
@@ -69,9 +69,9 @@ def test_a_book_is_cited_as_a_book():
 def test_obtained_fields_are_traceable():
     # every coefficient's origin names a document, a secondary source, or says "recalled";
     # never an anonymous "public source code"
-    catalog = default_catalog()
+    catalogue = default_catalogue()
     for quantity, model_id in all_models():
-        obtained = catalog.model(quantity, model_id).obtained.lower()
+        obtained = catalogue.model(quantity, model_id).obtained.lower()
         assert "public source code" not in obtained
         assert any(
             word in obtained
@@ -110,20 +110,20 @@ def _rewrite(root, relative, old, new):
 
 
 def test_tampered_file_is_refused(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     _rewrite(root, "models/band_gap/passler-2002.toml", "446", "447")
     with pytest.raises(
         matprops.ChecksumError, match=r"passler-2002\.toml: sha256 .* does not match"
     ):
-        catalog.model("band_gap", "passler-2002")
+        catalogue.model("band_gap", "passler-2002")
 
 
 def test_unlisted_file_is_refused(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     source = root / "models/band_gap/alex-1996.toml"
     (root / "models/band_gap/extra-2020.toml").write_text(source.read_text())
     with pytest.raises(matprops.ChecksumError, match="no checksum recorded"):
-        catalog.model("band_gap", "extra-2020")
+        catalogue.model("band_gap", "extra-2020")
 
 
 @pytest.mark.parametrize(
@@ -145,11 +145,11 @@ def test_unlisted_file_is_refused(datasets_copy):
     ],
 )
 def test_incomplete_or_wrong_file_names_file_and_field(datasets_copy, old, new, message):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     _rewrite(root, "models/band_gap/thurmond-1975.toml", old, new)
-    catalog.write_checksums()  # a deliberate (but wrong) edit: the checksum is not the issue
+    catalogue.write_checksums()  # a deliberate (but wrong) edit: the checksum is not the issue
     with pytest.raises(matprops.DatasetError, match=message) as info:
-        catalog.model("band_gap", "thurmond-1975")
+        catalogue.model("band_gap", "thurmond-1975")
     assert "thurmond-1975.toml" in str(info.value)
 
 
@@ -167,11 +167,11 @@ def test_incomplete_or_wrong_file_names_file_and_field(datasets_copy, old, new, 
     ],
 )
 def test_source_type_is_checked(datasets_copy, edit, message):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     _rewrite(root, "models/band_gap/thurmond-1975.toml", *edit)
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=message):
-        catalog.model("band_gap", "thurmond-1975")
+        catalogue.model("band_gap", "thurmond-1975")
 
 
 REGION = """
@@ -194,19 +194,19 @@ reason = "a test"
     ],
 )
 def test_validity_region_is_checked(datasets_copy, by, points, message):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "models/absorption/rajkanan-1979.toml"
     path.write_text(path.read_text() + REGION.format(by=by, points=points))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=message):
-        catalog.model("absorption", "rajkanan-1979")
+        catalogue.model("absorption", "rajkanan-1979")
 
 
 def test_missing_checksum_list_is_refused(datasets_copy):
     root, _ = datasets_copy
     (root / "checksums.sha256").unlink()
     with pytest.raises(matprops.DatasetError, match="checksum list is missing"):
-        Catalog(root).release("2026.1")
+        Catalogue(root).release("2026.1")
 
 
 def test_catalog_command_verifies_everything(capsys):
@@ -215,7 +215,7 @@ def test_catalog_command_verifies_everything(capsys):
     assert main([]) == 0
     out = capsys.readouterr().out
     assert re.search(r"all \d+ dataset files verified", out)
-    listed = default_catalog().checksums()
+    listed = default_catalogue().checksums()
     assert f"all {len(listed)} dataset files" in out  # models, tables, releases, scenarios
     assert any(name.startswith("scenarios/") for name in listed)
 
@@ -231,10 +231,10 @@ def _alter_table(path):
 
 def test_model_dataset_refuses_a_tampered_table(datasets_copy):
     # before: to_dataset() opened the table without its checksum check
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     _alter_table(root / "tables/green-2008.nc")
     with pytest.raises(matprops.ChecksumError, match=r"green-2008\.nc: sha256"):
-        catalog.model("absorption", "green-2008").to_dataset()
+        catalogue.model("absorption", "green-2008").to_dataset()
 
 
 def _check(root, capsys):
@@ -289,15 +289,15 @@ def test_check_command_covers_every_kind_of_file(datasets_copy, capsys, relative
 
 
 def test_check_command_fails_on_unlisted_files_and_bad_references(datasets_copy, capsys):
-    root, catalog = datasets_copy
-    newest = catalog.newest_release_id()  # a draft naming a model that does not exist
+    root, catalogue = datasets_copy
+    newest = catalogue.newest_release_id()  # a draft naming a model that does not exist
     text = (root / f"releases/{newest}.toml").read_text()
     text = text.replace(f'release = "{newest}"', 'release = "2030.1"')
     text = text.replace('status = "final"', 'status = "draft"')
     text = text.replace('band_gap = "passler-2002"', 'band_gap = "passler-2003"')
     (root / "releases/2030.1.toml").write_text(text)
     (root / "releases/2030.1.reference.json").write_text("{}")
-    catalog.write_checksums()
+    catalogue.write_checksums()
     (root / "scenarios/extra.toml").write_text("name = 'extra'\n")
     status, out = _check(root, capsys)
     assert status == 1
@@ -323,22 +323,22 @@ def test_check_command_fails_on_an_empty_or_missing_folder(tmp_path, capsys):
 
 
 def test_scenario_is_read_verified_and_checked(datasets_copy):
-    root, catalog = datasets_copy
-    scenario = catalog.scenario("two-site-modules")
+    root, catalogue = datasets_copy
+    scenario = catalogue.scenario("two-site-modules")
     assert scenario.invented is True and scenario.wafer.dopant == "boron"
     _rewrite(root, "scenarios/two-site-modules.toml", "invented = true", "invented = 1")
     with pytest.raises(matprops.ChecksumError):
-        catalog.scenario("two-site-modules")
-    catalog.write_checksums()
+        catalogue.scenario("two-site-modules")
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match="field 'invented' must be true or false"):
-        catalog.scenario("two-site-modules")
+        catalogue.scenario("two-site-modules")
     _rewrite(root, "scenarios/two-site-modules.toml", "invented = 1", "invented = true")
     _rewrite(root, "scenarios/two-site-modules.toml", "dawn = 12.0", "dawn = nan")
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(
         matprops.DatasetError, match=r"field 'operating_points.hot-site.dawn' must be a temperature"
     ):
-        catalog.scenario("two-site-modules")
+        catalogue.scenario("two-site-modules")
 
 
 def test_model_catalogue_in_docs_is_generated_from_datasets():
@@ -403,28 +403,28 @@ def test_model_catalogue_in_docs_is_generated_from_datasets():
     ],
 )
 def test_model_file_schema(datasets_copy, old, new, message):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = _rewrite(root, "models/band_gap/thurmond-1975.toml", old, new)
     assert new in path.read_text()
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=message) as info:
-        catalog.model("band_gap", "thurmond-1975")
+        catalogue.model("band_gap", "thurmond-1975")
     assert str(path) in str(info.value)
 
 
 def test_missing_required_field_is_named(datasets_copy):
     import re
 
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "models/band_gap/thurmond-1975.toml"
     path.write_text(re.sub(r'obtained = """.*?"""\n', "", path.read_text(), flags=re.DOTALL))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(
         matprops.DatasetError,
         match=r"thurmond-1975.toml: missing required "
         r"field 'obtained'",
     ):
-        catalog.model("band_gap", "thurmond-1975")
+        catalogue.model("band_gap", "thurmond-1975")
 
 
 @pytest.mark.parametrize(
@@ -446,12 +446,12 @@ def test_missing_required_field_is_named(datasets_copy):
     ],
 )
 def test_release_file_schema(datasets_copy, old, new, message):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = _rewrite(root, "releases/2026.1.toml", old, new)
     assert new in path.read_text()
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=message) as info:
-        catalog.release("2026.1")
+        catalogue.release("2026.1")
     assert str(path) in str(info.value)
 
 
@@ -460,10 +460,10 @@ def test_schema_accepts_every_shipped_file():
 
     from matprops.catalogue.schema import MODEL, RELEASE, validate
 
-    catalog = default_catalog()
-    for path in sorted((catalog.root / "models").rglob("*.toml")):
+    catalogue = default_catalogue()
+    for path in sorted((catalogue.root / "models").rglob("*.toml")):
         validate(path, tomllib.loads(path.read_text()), MODEL)
-    for path in sorted((catalog.root / "releases").glob("*.toml")):
+    for path in sorted((catalogue.root / "releases").glob("*.toml")):
         validate(path, tomllib.loads(path.read_text()), RELEASE)
 
 
@@ -498,40 +498,40 @@ def test_empty_datasets_folder_is_named(tmp_path, monkeypatch):
         match=r"releases: folder is missing: .* \(set "
         r"by MATPROPS_DATASETS\) is not a matprops datasets folder",
     ):
-        matprops.Silicon(catalog=Catalog())
+        matprops.Silicon(catalogue=Catalogue())
     (tmp_path / "releases").mkdir()
     with pytest.raises(matprops.DatasetError, match=r"releases: no release file"):
-        matprops.Silicon(catalog=Catalog())
+        matprops.Silicon(catalogue=Catalogue())
 
 
 def test_relative_datasets_path_is_resolved_once(datasets_copy, monkeypatch, tmp_path):
     root, _ = datasets_copy
     monkeypatch.chdir(root.parent)
     monkeypatch.setenv("MATPROPS_DATASETS", root.name)
-    catalog = Catalog()
-    assert catalog.root == root and catalog.root.is_absolute()
+    catalogue = Catalogue()
+    assert catalogue.root == root and catalogue.root.is_absolute()
     monkeypatch.chdir(tmp_path.parent)  # elsewhere: the catalogue still finds its data
-    assert matprops.Silicon(catalog=catalog).band_gap(300).m_as("eV") > 1
+    assert matprops.Silicon(catalogue=catalogue).band_gap(300).m_as("eV") > 1
     monkeypatch.setenv("MATPROPS_DATASETS", "")  # empty counts as unset
-    assert Catalog().root == default_catalog().root
+    assert Catalogue().root == default_catalogue().root
 
 
 def test_missing_release_file_is_named(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     for path in (root / "releases").glob("*.toml"):
         path.unlink()
     with pytest.raises(matprops.DatasetError, match=r"releases: no release file"):
-        matprops.Silicon(catalog=catalog)
+        matprops.Silicon(catalogue=catalogue)
 
 
 def test_malformed_release_file_is_named(datasets_copy):
     # before: tomllib's error with no file name
-    root, catalog = datasets_copy
-    newest = catalog.newest_release_id()
+    root, catalogue = datasets_copy
+    newest = catalogue.newest_release_id()
     _rewrite(root, f"releases/{newest}.toml", "[models]", "[models")
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=rf"{newest}\.toml: not valid TOML"):
-        matprops.Silicon(catalog=catalog)
+        matprops.Silicon(catalogue=catalogue)
 
 
 def test_bibtex_keys_are_unique(si):
@@ -571,23 +571,23 @@ def _drop_section(text, section):
     ],
 )
 def test_a_composed_model_file_must_state_its_fit_conventions(datasets_copy, quantity, model_id):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / f"models/{quantity}/{model_id}.toml"
     text = path.read_text()
     assert "[fit_conventions." in text
     path.write_text(_drop_section(text, "fit_conventions"))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=r"missing section \[fit_conventions\]"):
-        catalog.model(quantity, model_id)
+        catalogue.model(quantity, model_id)
 
 
 def test_every_main_tree_model_of_a_composed_quantity_has_its_conventions():
     from matprops.catalogue.conventions import REQUIRED
 
-    catalog = matprops.catalogue.default_catalog()
+    catalogue = matprops.catalogue.default_catalogue()
     for quantity, names in REQUIRED.items():
-        for model_id in catalog.model_ids(quantity):
-            conventions = catalog.model(quantity, model_id).conventions
+        for model_id in catalogue.model_ids(quantity):
+            conventions = catalogue.model(quantity, model_id).conventions
             assert conventions.recorded, (quantity, model_id)
             assert set(names) <= set(conventions), (quantity, model_id)
             for entry in conventions.values():
@@ -630,20 +630,20 @@ BLOCK = '[fit_conventions.dopant_densities]\nvalue = "total"\n'
     ],
 )
 def test_fit_conventions_schema(datasets_copy, old, new, message):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "models/mobility/klaassen-1992.toml"
     text = path.read_text()
     assert old in text
     path.write_text(text.replace(old, new, 1))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=message):
-        catalog.model("mobility", "klaassen-1992")
+        catalogue.model("mobility", "klaassen-1992")
 
 
 def test_a_convention_must_say_where_it_was_read(datasets_copy):
     import re
 
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "models/mobility/klaassen-1992.toml"
     text = re.sub(
         r'(\[fit_conventions.dopant_densities\]\nvalue = "total"\nobtained = )""".*?"""',
@@ -652,30 +652,43 @@ def test_a_convention_must_say_where_it_was_read(datasets_copy):
         flags=re.DOTALL,
     )
     path.write_text(text)
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=r"obtained must say where"):
-        catalog.model("mobility", "klaassen-1992")
+        catalogue.model("mobility", "klaassen-1992")
 
 
 def test_a_convention_naming_a_model_must_name_one_that_exists(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "models/ionisation/altermatt-2006.toml"
     text = path.read_text()
     path.write_text(text.replace('value = "green-1990"', 'value = "green-1991"'))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=r"neither a model of 'densities_of_states'"):
-        catalog.model("ionisation", "altermatt-2006")
+        catalogue.model("ionisation", "altermatt-2006")
 
 
 def test_a_numeric_convention_needs_units_and_temperature(datasets_copy):
-    root, catalog = datasets_copy
+    root, catalogue = datasets_copy
     path = root / "models/intrinsic_lifetime/richter-2012.toml"
     text = path.read_text()
     path.write_text(text.replace('units = "cm^-3"\ntemperature = 300\n', 'units = "cm^-3"\n'))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=r"needs the temperature"):
-        catalog.model("intrinsic_lifetime", "richter-2012")
+        catalogue.model("intrinsic_lifetime", "richter-2012")
     path.write_text(text.replace('units = "cm^-3"\ntemperature = 300\n', "temperature = 300\n"))
-    catalog.write_checksums()
+    catalogue.write_checksums()
     with pytest.raises(matprops.DatasetError, match=r"needs its units"):
-        catalog.model("intrinsic_lifetime", "richter-2012")
+        catalogue.model("intrinsic_lifetime", "richter-2012")
+
+
+def test_former_american_spellings_are_still_served():
+    # identifiers are British (catalogue); the former names stay as aliases for callers
+    from matprops.catalogue import overlay, store
+
+    assert store.Catalog is store.Catalogue
+    assert store.default_catalog is store.default_catalogue
+    assert store.catalog_at is store.catalogue_at
+    assert overlay.catalog_at is overlay.catalogue_at
+    si = matprops.Silicon(catalog=store.default_catalogue())
+    assert si.catalog is si.catalogue
+    assert si.band_gap(300) == matprops.silicon().band_gap(300)
