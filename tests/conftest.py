@@ -20,12 +20,6 @@ def warm_up_pint():
         matprops.silicon().band_gap(matprops.Q_([300.0], "K"))
 
 
-@pytest.fixture
-def datasets_copy(tmp_path):
-    """A private, writable copy of datasets/ and a Catalogue over it."""
-    root = tmp_path / "datasets"
-    shutil.copytree(datasets_root(), root, ignore=shutil.ignore_patterns("__pycache__", "*.py"))
-    return root, Catalogue(root)
 
 
 DRAFT = "2030.1"  # a draft release made in a datasets copy (no shipped release has this id)
@@ -49,6 +43,16 @@ def _datasets_with_draft_template(tmp_path_factory):
     catalogue.write_checksums()
     regenerate(DRAFT, catalogue)
     return root
+
+
+@pytest.fixture
+def datasets_copy(tmp_path, _datasets_with_draft_template):
+    """A private, writable copy of datasets/ and a Catalogue over it. Its newest release
+    is the draft DRAFT pinning the newest shipped release's models, so an edited model
+    file reaches the default material as in a draft (a final release refuses it)."""
+    root = tmp_path / "datasets"
+    shutil.copytree(_datasets_with_draft_template, root)
+    return root, Catalogue(root)
 
 
 @pytest.fixture

@@ -348,12 +348,12 @@ def test_the_main_tree_may_move_after_freezing(lab_copy):
 
 
 @pytest.mark.slow
-def test_a_release_frozen_on_a_draft_base_keeps_its_numbers(datasets_copy, tmp_path):
-    shipped, shipped_catalogue = datasets_copy
+def test_a_release_frozen_on_a_draft_base_keeps_its_numbers(datasets_with_draft, tmp_path):
+    shipped, shipped_catalogue, draft = datasets_with_draft
     root, seals = tmp_path / "lab", tmp_path / "seals.txt"
     matprops.create_catalogue(root, name="draft-lab", description="x")
     top = catalogue_at(shipped, [root], seals)
-    overlays.write_release(top, "draft-lab-1", "2026.2", {}, "2026.2 as of today (tests)")
+    overlays.write_release(top, "draft-lab-1", draft, {}, f"{draft} as of today (tests)")
     reference.regenerate("draft-lab-1", top)
     reference.freeze("draft-lab-1", top)
     before = matprops.Silicon("draft-lab-1", catalogue=top).band_gap([100.0, 300.0])
@@ -366,7 +366,7 @@ def test_a_release_frozen_on_a_draft_base_keeps_its_numbers(datasets_copy, tmp_p
     store._CATALOGS.pop(shipped, None)
     overlays._forget_all(root)
     top = catalogue_at(shipped, [root], seals)
-    assert matprops.Silicon("2026.2", catalogue=top).band_gap(300.0) != before[1]
+    assert matprops.Silicon(draft, catalogue=top).band_gap(300.0) != before[1]
     after = matprops.Silicon("draft-lab-1", catalogue=top).band_gap([100.0, 300.0])
     np.testing.assert_array_equal(after.m_as("eV"), before.m_as("eV"))
 

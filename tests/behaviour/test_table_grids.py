@@ -336,9 +336,8 @@ def test_compare_choices_and_errors(si):
 
 
 def _second_release(root, catalogue, changes):
-    # a copy of the draft 2026.2 (it reads the main tree's model files, as 2030.1 will)
-    text = (root / "releases/2026.2.toml").read_text()
-    text = text.replace('release = "2026.2"', 'release = "2030.1"')
+    # the copy's draft 2030.1 (2026.2's models, read from the main tree's model files)
+    text = (root / "releases/2030.1.toml").read_text()
     for quantity, (old, new) in changes.items():
         text = text.replace(f'{quantity} = "{old}"', f'{quantity} = "{new}"')
     (root / "releases/2030.1.toml").write_text(text)
