@@ -20,8 +20,6 @@ def warm_up_pint():
         matprops.silicon().band_gap(matprops.Q_([300.0], "K"))
 
 
-
-
 DRAFT = "2030.1"  # a draft release made in a datasets copy (no shipped release has this id)
 
 
