@@ -10,12 +10,14 @@ The fictional lab re-fits two models to its own data and pins them in a release 
    Eg(0) and alpha free, theta and Delta as published;
 2. the electron mobility (Arora et al.'s form, arora-1982) to "Hall" mobilities of an n-type
    wafer at 250-450 K: the lattice term's amplitude and exponent free;
-3. release "example-lab-1" on top of the shipped draft 2026.2, choosing both;
+3. release "example-lab-1" on top of the shipped release 2026.2, choosing both;
 4. freezes it (archive, seal, and the seal's line in a seals file kept outside the catalogue);
 5. tabulates what the lab reports, each inside the range of its own data: the band gap at
    its detectors' cryogenic operating points, the electron mobility and resistivity of its
    wafers at its modules' operating temperatures, with its release and with the base, and
-   writes the tables with their provenance.
+   writes the tables with their provenance;
+6. reports one of its wafers from a wafer spec (the analyst's report, `matprops.report`)
+   with its own release, and writes the report's table.
 
 Run it with a folder for its output (made if missing; it must not hold a catalogue yet):
 
@@ -23,8 +25,8 @@ Run it with a folder for its output (made if missing; it must not hold a catalog
 
 The same from the command line: `matprops catalogue create`, `matprops fit`, `matprops
 release create`, `matprops release freeze`, then any command with `--release example-lab-1
---catalogue PATH`. (The analyst reports from a spec file take the same options once they
-land; until then step 5 builds the table here.)
+--catalogue PATH` (`matprops report SPEC.toml --release example-lab-1 --catalogue PATH` for
+step 6).
 """
 
 from __future__ import annotations
@@ -154,6 +156,27 @@ def tables(catalogue: Path, seals: Path, reports: Path):
     return own, "\n".join(lines)
 
 
+def wafer_report(own, reports: Path):
+    """Step 6: the report of one of the lab's wafers (INVENTED: a phosphorus-doped wafer of
+    2.5 ohm cm as measured at 23 degC) at its modules' operating temperatures, with the
+    lab's own release; its table is written beside the others."""
+    from matprops import export
+
+    spec = {
+        "title": "INVENTED: an Example Lab wafer with release example-lab-1",
+        "wafer": {"dopant": "phosphorus", "resistivity": "2.5 ohm cm", "measured_at": "23 degC"},
+        "operating_points": {
+            name: f"{t:g} degC"
+            for name, t in zip(("cold", "room", "hot"), OPERATING_TEMPERATURES.m, strict=True)
+        },
+        "quantities": ["mobility", "resistivity"],  # inside the range of its Hall data
+        "carriers": ["electron"],
+    }
+    result = matprops.report(spec, si=own)
+    export.write(result.dataset, reports / "example-lab-1-wafer-report.csv", overwrite=True)
+    return result
+
+
 def main(output: Path) -> int:
     output = Path(output).expanduser().resolve()
     catalogue, seals, reports = output / "example-lab", output / "seals.txt", output / "reports"
@@ -177,6 +200,7 @@ def main(output: Path) -> int:
         f"{record['catalogue']['name']!r}, release {record['release']} "
         f"({record['release_status']}, on {record['release_base']})"
     )
+    print(wafer_report(own, reports).text())
     print(f"reports and tables in {reports} (INVENTED data throughout)")
     return 0
 
