@@ -1,5 +1,5 @@
 """The worked example of docs/ (a fictional lab, INVENTED data) runs from its measurements
-to a frozen own release and its tables."""
+to a frozen own release, its tables and a wafer report made with it."""
 
 import importlib.util
 from pathlib import Path
@@ -43,6 +43,13 @@ def test_the_example_makes_fits_a_frozen_release_and_tables(tmp_path, monkeypatc
         abs(mobility["doping_exponent"].value + 2.30) < 3 * mobility["doping_exponent"].uncertainty
     )
     reports = tmp_path / "out" / "reports"
-    for name in ("band-gap-fit.png", "mobility-fit.png", "example-lab-1-wafers.csv"):
+    for name in (
+        "band-gap-fit.png",
+        "mobility-fit.png",
+        "example-lab-1-wafers.csv",
+        "example-lab-1-wafer-report.csv",
+    ):
         assert (reports / name).is_file()
     assert "example-lab-1 is final" in out and "INVENTED" in out
+    # the analyst's report of a wafer, made with the own release and its fitted mobility
+    assert "release example-lab-1 (final)" in out and "mobility examplelab-2027" in out
