@@ -36,6 +36,13 @@ __all__ = ["BLOCK", "check_workers", "evaluate", "relocated", "solver_error"]
 # 2^16 points each temporary is an mmap of its own, and page faults cost more than the
 # arithmetic; measured: 2^13-2^14 fastest at 1e5 points, flat from 2^13 to 2^16 at 1e7).
 BLOCK = 1 << 14
+# Points per block when threads share the work (workers > 1) for kernels without a block
+# size of their own (closed forms; solvers set theirs, and keep it, since how many
+# iterations a block takes depends on its points): at 2^14 points a block's ~0.2 ms of
+# numpy leaves too little time between the GIL's hand-overs, and two threads ran no
+# faster than one (measured here); elementwise formulas give the same numbers whatever
+# the blocks.
+BLOCK_THREADED = 1 << 16
 
 _SCALARS = (float, int)
 
@@ -80,7 +87,9 @@ def evaluate(
     """
     kernel = getattr(function, "func", function)  # a kernel bound with functools.partial
     if block is None:
-        block = getattr(kernel, "block", BLOCK)
+        block = getattr(kernel, "block", None)
+        if block is None:
+            block = BLOCK if workers in (None, 1) else BLOCK_THREADED
     if getattr(function, "blocks_itself", False):  # a prepared table: blocks where it helps
         if workers is not None:
             options["workers"] = workers
