@@ -55,8 +55,8 @@ def main():
     arora = matprops.silicon(models={"mobility": "arora-1982"})
     mobility = arora.kernel("mobility", carrier="electron")
     t = np.linspace(250.0, 500.0, size.points)
-    value_time = best(lambda: mobility(t, 1e16, 0.0))
-    linear_time = best(lambda: mobility(t, 1e16, 0.0, uncertainty=True))
+    value_time = best(lambda: mobility(t, Nd=1e16, Na=0.0))
+    linear_time = best(lambda: mobility(t, Nd=1e16, Na=0.0, uncertainty=True))
     print(
         f"Arora mobility, {size.points:.0e} points: value {value_time * 1e3:.1f} ms, "
         f"linear {linear_time * 1e3:.1f} ms, ratio {linear_time / value_time:.2f}"
