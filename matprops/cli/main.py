@@ -365,19 +365,29 @@ def _cmd_table(args):
             "used with a netCDF output (-o FILE.nc), which is written chunk by chunk",
             repr(args.chunks),
         )
+    if args.uncertainty and chunks is not None:
+        raise InputError(
+            "--uncertainty", "a table evaluated in memory (not with --chunks)", "--chunks"
+        )
     try:
         data = si.table(
             args.quantities or None,
             progress=progress,
             chunks=chunks,
             max_values=_max_values(args),
+            uncertainty=args.uncertainty,
             **_grid(args),
         )
     finally:
         progress.close()
-    _emit(
-        args, data, render.table_footer(si, [data[v].attrs["quantity"] for v in value_names(data)])
-    )
+    # (the quantities' own variables: not their uncertainty or spread beside them)
+    quantities = [
+        data[v].attrs["quantity"] for v in value_names(data) if "quantity" in data[v].attrs
+    ]
+    footer = render.table_footer(si, quantities)
+    if args.uncertainty:
+        footer += "\n" + render.uncertainty_note(data)
+    _emit(args, data, footer)
 
 
 def _cmd_compare(args):
@@ -698,6 +708,13 @@ def build_parser() -> argparse.ArgumentParser:
         metavar="N",
         help="with -o FILE.nc: evaluate lazily in chunks of N values per "
         "axis (grids larger than memory)",
+    )
+    table.add_argument(
+        "--uncertainty",
+        action="store_true",
+        help="add each quantity's standard uncertainty (from the uncertainties its sources "
+        "state; 'not stated' where they state none) and the spread over the catalogue's "
+        "valid models, as <quantity>_uncertainty and <quantity>_model_spread",
     )
     table.set_defaults(run=_cmd_table)
 

@@ -261,6 +261,25 @@ def table_footer(si, names) -> str:
     )
 
 
+def uncertainty_note(data) -> str:
+    """What a table's uncertainty variables hold: how each was obtained, and which
+    models' sources state none (their uncertainty is NaN, never zero)."""
+    lines = []
+    for name, variable in data.data_vars.items():
+        if not name.endswith("_uncertainty"):
+            continue
+        status = variable.attrs.get("uncertainty_status", "")
+        method = variable.attrs.get("uncertainty_method", "")
+        silent = variable.attrs.get("models_without_stated_uncertainty", "")
+        text = f"{name}: {status}" + (f" ({method})" if method and method != "none" else "")
+        if silent:
+            text += f"; NaN where no source states one: {silent}"
+        lines.append(wrap(text))
+    if lines:
+        lines.append(wrap("the model spread is a separate figure, never added to the uncertainty"))
+    return "\n".join(lines)
+
+
 # --------------------------------------------------------------------------- releases
 
 

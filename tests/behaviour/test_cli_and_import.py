@@ -475,3 +475,32 @@ def test_intrinsic_lifetime_covers_cold_and_hot_modules():
         for doping in ({"Na": 1e16}, {"Nd": 1e16}, {"Nd": 3e19, "Na": 1e16}):
             values = si.intrinsic_lifetime([240.0, 300.0, 360.0], **doping, excess=1e14).m
             assert np.all(np.isfinite(values)) and np.all(values > 0)
+
+
+def test_table_with_uncertainty_shows_each_figure_and_says_what_it_holds(capsys, tmp_path):
+    # arora-1982: its source states an output accuracy (propagated); passler-2002: none
+    code, out, err = run(
+        capsys, "table", "band_gap", "mobility", "-t", "300,350", "--Nd", "1e16",
+        "--carrier", "electron", "--model", "mobility=arora-1982", "--uncertainty",
+    )  # fmt: skip
+    assert code == 0, err
+    assert "mobility_uncertainty: stated (linear)" in out
+    assert "NaN where no source states one: band_gap/passler-2002" in out
+    path = tmp_path / "u.csv"
+    code, _, err = run(
+        capsys, "table", "mobility", "-t", "300", "--Nd", "1e16", "--carrier", "electron",
+        "--model", "mobility=arora-1982", "--uncertainty", "-o", str(path),
+    )  # fmt: skip
+    assert code == 0, err
+    table = pd.read_csv(path)
+    sigma = table["mobility_uncertainty [cm^2 V^-1 s^-1]"].iloc[0]
+    assert 0.0 < sigma < table["mobility [cm^2 V^-1 s^-1]"].iloc[0]
+    assert "mobility_model_spread [cm^2 V^-1 s^-1]" in table
+
+
+def test_uncertainty_is_refused_with_chunks(capsys, tmp_path):
+    code, _, err = run(
+        capsys, "table", "band_gap", "-t", "300", "--uncertainty", "--chunks", "10",
+        "-o", str(tmp_path / "u.nc"),
+    )  # fmt: skip
+    assert code == 2 and "--uncertainty" in err and "--chunks" in err
