@@ -20,7 +20,10 @@ folders -> overlay -> defects -> checks.
 
 from .records import Coefficient, Model, Range, Release, Source
 from .regions import Region
+from .store import Catalog as Catalog  # former spelling, still served
 from .store import Catalogue, catalogue_at, datasets_root, default_catalogue, sha256_of
+from .store import catalog_at as catalog_at  # former spelling, still served
+from .store import default_catalog as default_catalog  # former spelling, still served
 
 __all__ = [
     "Catalogue",

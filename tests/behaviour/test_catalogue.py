@@ -683,8 +683,10 @@ def test_a_numeric_convention_needs_units_and_temperature(datasets_copy):
 
 def test_former_american_spellings_are_still_served():
     # identifiers are British (catalogue); the former names stay as aliases for callers
+    import matprops.catalogue as layer
     from matprops.catalogue import overlay, store
 
+    assert layer.Catalog is layer.Catalogue and layer.default_catalog is layer.default_catalogue
     assert store.Catalog is store.Catalogue
     assert store.default_catalog is store.default_catalogue
     assert store.catalog_at is store.catalogue_at
