@@ -161,14 +161,11 @@ def _points():
             yield f"{STANDARD_TEMPERATURE:g} K, {kind}={density:g}", kind, density
 
 
-def _quiet(function, *args, **kwargs):
-    import warnings
-
-    from ..errors import ValidityWarning
-
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", ValidityWarning)
-        return function(*args, **kwargs)
+def _quiet(material, method: str, *args, **kwargs):
+    """``material.method(...)`` without validity checks (the sizes of a report are
+    evaluated at the standard points whatever the ranges say), through the material's
+    checked view: no warning filter is touched, so no other thread loses a warning."""
+    return getattr(material._checked_already(), method)(*args, **kwargs)
 
 
 def _with(si, **models):
@@ -193,7 +190,8 @@ def _product_sizes(si, other) -> dict:
         values = [
             float(
                 _quiet(
-                    material.effective_intrinsic_density,
+                    material,
+                    "effective_intrinsic_density",
                     STANDARD_TEMPERATURE,
                     n=n,
                     p=p,
@@ -210,7 +208,7 @@ def _statistics_sizes(si, fitted: str) -> dict:
     sizes = {}
     for label, kind, density in _points():
         states = [
-            _quiet(si.equilibrium, STANDARD_TEMPERATURE, statistics=s, **{kind: density})
+            _quiet(si, "equilibrium", STANDARD_TEMPERATURE, statistics=s, **{kind: density})
             for s in (si._carriers().statistics, fitted)
         ]
         products = [float(s.n.m * s.p.m) for s in states]
@@ -462,7 +460,8 @@ def _narrowing_only(si) -> dict:
         n, p = (majority, minority) if kind == "Nd" else (minority, majority)
         value = float(
             _quiet(
-                si.effective_intrinsic_density,
+                si,
+                "effective_intrinsic_density",
                 STANDARD_TEMPERATURE,
                 n=n,
                 p=p,

@@ -148,3 +148,20 @@ def test_large_table_warns_once_for_its_grid(si):
     with pytest.warns(matprops.ValidityWarning) as caught:
         si.table(["band_gap"], T=np.linspace(200.0, 800.0, 300_000))
     assert len(caught) == 1 and "200-800 K" in str(caught[0].message)
+
+
+def test_the_library_never_touches_the_warning_filters():
+    # catch_warnings and the filters are process-wide: a library that sets them hides
+    # another thread's warnings (silencing goes through a material's checked view)
+    import ast
+    from pathlib import Path
+
+    package = Path(matprops.__file__).parent
+    touching = {"simplefilter", "filterwarnings", "catch_warnings", "resetwarnings"}
+    found = [
+        f"{path.relative_to(package)}:{node.lineno}"
+        for path in sorted(package.rglob("*.py"))
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8")))
+        if isinstance(node, ast.Attribute) and node.attr in touching
+    ]
+    assert found == []
