@@ -336,11 +336,14 @@ def test_compare_choices_and_errors(si):
 
 
 def _second_release(root, catalogue, changes):
-    # the copy's draft 2030.1 (2026.2's models, read from the main tree's model files)
+    # a second draft 2030.2 beside the copy's draft 2030.1: both read the main tree's
+    # model files, so only the changed choices differ (a final release reads its
+    # archive, whose files may differ from the main tree's)
     text = (root / "releases/2030.1.toml").read_text()
+    text = text.replace('release = "2030.1"', 'release = "2030.2"')
     for quantity, (old, new) in changes.items():
         text = text.replace(f'{quantity} = "{old}"', f'{quantity} = "{new}"')
-    (root / "releases/2030.1.toml").write_text(text)
+    (root / "releases/2030.2.toml").write_text(text)
     catalogue.write_checksums()
 
 
@@ -356,7 +359,7 @@ def test_release_difference_with_a_temporary_second_release(datasets_copy):
     )
     from matprops.outputs.changes import release_difference
 
-    diff = release_difference("2026.2", "2030.1", catalogue)
+    diff = release_difference("2030.1", "2030.2", catalogue)
     changed = {r["quantity"] for r in diff["models"] if r["changed"]}
     assert changed == {"band_gap", "intrinsic_density"}
     record = {r["quantity"]: r for r in diff["models"]}["band_gap"]
@@ -367,8 +370,8 @@ def test_release_difference_with_a_temporary_second_release(datasets_copy):
     # the band-gap deviation, recomputed here point by point from the two models
     from matprops.outputs.reference import TEMPERATURES
 
-    old = matprops.Silicon(release="2026.2", catalogue=catalogue)
-    new = matprops.Silicon(release="2030.1", catalogue=catalogue)
+    old = matprops.Silicon(release="2030.1", catalogue=catalogue)
+    new = matprops.Silicon(release="2030.2", catalogue=catalogue)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", matprops.ValidityWarning)
         ratio = np.abs(new.band_gap(TEMPERATURES).m / old.band_gap(TEMPERATURES).m - 1)
